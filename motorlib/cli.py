@@ -1,0 +1,235 @@
+"""The ``motorlib`` command line: parse options, call the library, render the result.
+
+The only module that imports click. Library errors reach the terminal in one
+place, :class:`_Group`, as ``Error: path:line: field: problem`` with exit 1.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import sys
+from typing import Any
+
+import click
+
+from . import __version__
+from .errors import MotorlibError, QuantityError
+
+_EPILOG = ("Predictions are estimates. Follow your national rocketry association's safety code, local law and "
+           "the launch site's rules; the range safety officer decides; fly only motors within your certification.")
+
+
+class _Group(click.Group):
+    """Turns any MotorlibError into a clean ``Error: ...`` message with exit status 1."""
+
+    def invoke(self, ctx: click.Context) -> Any:
+        try:
+            return super().invoke(ctx)
+        except MotorlibError as exc:
+            raise click.ClickException(str(exc)) from exc
+
+
+class _Quantity(click.ParamType):
+    """A click type for quantities such as ``29mm`` or ``0.85 oz``; bare numbers take ``default_unit``."""
+
+    def __init__(self, kind: str, default_unit: str) -> None:
+        self.kind, self.default_unit = kind, default_unit
+        self.name = f"{kind}"
+
+    def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> float:
+        if isinstance(value, float):
+            return value
+        from .units import parse_quantity
+
+        try:
+            return parse_quantity(value, self.kind, field=param.name if param else "value",
+                                  default_unit=self.default_unit)
+        except QuantityError as exc:
+            self.fail(exc.problem, param, ctx)
+
+
+def _delays(ctx: click.Context, param: click.Parameter, value: str | None) -> tuple[float, ...]:
+    if not value:
+        return ()
+    try:
+        delays = tuple(float(v.strip().removesuffix("s")) for v in value.replace("/", ",").split(","))
+    except ValueError:
+        raise click.BadParameter(f"expected delays in seconds separated by commas, e.g. 3,5,7; got {value!r}")
+    if any(d <= 0 for d in delays):
+        raise click.BadParameter(f"delays must be above 0 s, got {value!r}")
+    return delays
+
+
+def _metadata_options(func: Any) -> Any:
+    """Options describing a motor whose curve file (CSV) does not."""
+    options = [
+        click.option("--designation", help="Label as printed on the motor, e.g. C6-5 or 1/2A3-2T. "
+                                           "CSV only; default: the file name."),
+        click.option("--maker", default="", help="Maker name (CSV only)."),
+        click.option("--diameter", "diameter_m", type=_Quantity("length", "mm"),
+                     help="Case diameter; a bare number is mm (e.g. 18, 0.5in)."),
+        click.option("--length", "length_m", type=_Quantity("length", "mm"),
+                     help="Case length; a bare number is mm (e.g. 70, 2.75in)."),
+        click.option("--total-mass", "total_mass_kg", type=_Quantity("mass", "g"),
+                     help="Loaded motor mass; a bare number is g (e.g. 24, 0.85oz)."),
+        click.option("--propellant-mass", "propellant_mass_kg", type=_Quantity("mass", "g"),
+                     help="Propellant mass; a bare number is g (e.g. 12.5)."),
+        click.option("--delays", "delays_s", callback=_delays, metavar="S[,S...]",
+                     help="Available ejection delays in seconds, e.g. 3,5,7."),
+        click.option("--plugged", is_flag=True, help="No ejection charge (plugged or booster)."),
+        click.option("--adjustable-delay", is_flag=True, help="The user may shorten the delay."),
+        click.option("--source-kind", type=click.Choice(["certification-test", "maker-data", "static-test", "demo",
+                                                         "other"]), default="other", show_default=True,
+                     help="Where the curve comes from."),
+        click.option("--test-date", type=click.DateTime(["%Y-%m-%d"]), help="Date of the test, YYYY-MM-DD."),
+        click.option("--notes", default="", help="Free-text provenance notes (stand, lot, operator)."),
+        click.option("--time-unit", help="Unit of the CSV time column (s, ms) when the header gives none."),
+        click.option("--thrust-unit", help="Unit of the CSV thrust column (N, lbf, kgf, gf) when the header gives none."),
+    ]
+    for option in reversed(options):
+        func = option(func)
+    return func
+
+
+def _metadata(opts: dict[str, Any]) -> Any:
+    from .csvio import CurveMetadata
+    from .curve import Provenance
+
+    if opts["plugged"] and opts["delays_s"]:
+        raise click.UsageError("--plugged and --delays exclude each other")
+    date = opts["test_date"].date() if isinstance(opts["test_date"], _dt.datetime) else None
+    return CurveMetadata(
+        designation=opts["designation"] or "", maker=opts["maker"], diameter_m=opts["diameter_m"],
+        length_m=opts["length_m"], total_mass_kg=opts["total_mass_kg"],
+        propellant_mass_kg=opts["propellant_mass_kg"], delays_s=opts["delays_s"],
+        delay_adjustable=opts["adjustable_delay"],
+        provenance=Provenance(kind=opts["source_kind"], date=date, notes=opts["notes"]),
+    )
+
+
+def _console() -> Any:
+    from rich.console import Console
+
+    return Console(highlight=False)
+
+
+@click.group(cls=_Group, epilog=_EPILOG, context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="motorlib")
+def main() -> None:
+    """motorlib: thrust-curve catalog, checks and flight tools for rocket flyers.
+
+    \b
+    Examples:
+      motorlib check sample_curves/            check every bundled curve
+      motorlib check stand.csv --designation F30-6 --diameter 24 --json
+      motorlib import stand.csv -o F30.xml --designation F30-6 --maker "Our team"
+    """
+
+
+@main.command()
+@click.argument("paths", nargs=-1, required=True, type=click.Path())
+@click.option("--json", "as_json", is_flag=True, help="Print a JSON list, one object per file.")
+@click.option("--details/--summary", default=None,
+              help="Full metrics per file (default for one file) or one table row per file (default for several).")
+@click.option("--burn-threshold", type=click.FloatRange(0.1, 50.0), default=5.0, show_default=True,
+              help="Burn time starts and ends where thrust crosses this percentage of peak thrust.")
+@click.option("--thrust-tolerance", type=click.FloatRange(1.0, 100.0), default=20.0, show_default=True,
+              help="Allowed difference, in percent, between labelled and computed average thrust.")
+@_metadata_options
+def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_threshold: float,
+          thrust_tolerance: float, **opts: Any) -> None:
+    """Check thrust-curve files (our XML, or CSV with metadata options) and their labels.
+
+    PATHS are files or folders (searched for .xml and .csv). For each curve it
+    prints total impulse (N·s), impulse class, average and peak thrust (N), burn
+    time (s) and findings: errors, warnings and notes with stable codes.
+
+    Exit status: 0 no errors, 1 errors found, 2 a file could not be read.
+
+    \b
+    Example:
+      motorlib check sample_curves/
+      motorlib check test3.csv --designation G40-7 --diameter 29mm --total-mass 120g --propellant-mass 60g
+    """
+    from .checks import CheckSettings
+    from .curvefiles import check_file, find_curve_files
+
+    settings = CheckSettings(burn_threshold=burn_threshold / 100.0, average_thrust_tolerance=thrust_tolerance / 100.0)
+    metadata = _metadata(opts)
+    files = find_curve_files(list(paths))
+    if not files:
+        raise click.UsageError(f"no .xml or .csv curve files in {', '.join(paths)}")
+    reports = [check_file(f, settings, metadata, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
+               for f in files]
+    if as_json:
+        click.echo(json.dumps([r.as_dict() for r in reports], indent=2, default=float))
+    else:
+        from . import render
+
+        console = _console()
+        if details or (details is None and len(reports) == 1):
+            for report in reports:
+                console.print(render.check_details(report))
+        else:
+            console.print(render.check_summary_table(reports))
+            for report in reports:
+                if any(f.severity != "note" for f in report.findings):
+                    console.print(f"[bold]{render.escape(report.source)}[/bold]")
+                    console.print(render.findings_text(report, include_notes=False), end="")
+        n_bad = sum(not r.ok for r in reports)
+        console.print(f"{len(reports)} file(s) checked: {len(reports) - n_bad} sound, {n_bad} with errors.")
+    if any(not r.readable for r in reports):
+        sys.exit(2)
+    if any(not r.ok for r in reports):
+        sys.exit(1)
+
+
+@main.command("import")
+@click.argument("csv_file", type=click.Path(exists=True, dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False),
+              help="Motor-record XML file to write (atomically).")
+@click.option("--overwrite", is_flag=True, help="Replace OUTPUT if it exists.")
+@click.option("--force", is_flag=True, help="Write the file even when the checks find errors.")
+@_metadata_options
+def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opts: Any) -> None:
+    """Convert a CSV thrust curve plus metadata into a motor-record XML file.
+
+    The CSV holds time and thrust columns; units come from the header
+    (time_ms, "t (s)", thrust_lbf, "Thrust [N]") or --time-unit/--thrust-unit.
+    The curve is checked first; a curve with errors is not written unless --force.
+
+    \b
+    Example:
+      motorlib import stand-03.csv -o F30-6.xml --designation F30-6 --maker "Our team" \\
+          --diameter 24 --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 \\
+          --source-kind static-test --test-date 2026-11-14
+    """
+    from . import render
+    from .checks import check_record, findings_from_problems
+    from .csvio import record_from_csv
+    from .curvefiles import CheckReport
+    from .errors import CurveDataError
+    from .xmlio import write_record
+
+    console = _console()
+    try:
+        record = record_from_csv(csv_file, _metadata(opts), time_unit=opts["time_unit"],
+                                 thrust_unit=opts["thrust_unit"])
+    except CurveDataError as exc:
+        report = CheckReport(csv_file, True, None, tuple(findings_from_problems(exc)), None)
+        console.print(render.findings_text(report), end="")
+        raise click.ClickException(f"{csv_file}: the curve breaks the record rules above; nothing was written")
+    findings = check_record(record)
+    report = CheckReport(csv_file, True, record, tuple(findings), None)
+    if findings:
+        console.print(render.findings_text(report), end="")
+    if not report.ok and not force:
+        raise click.ClickException(f"{csv_file}: the checks found errors; nothing was written (use --force to "
+                                   "write it anyway)")
+    try:
+        path = write_record(record, output, overwrite=overwrite)
+    except FileExistsError as exc:
+        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, {record.total_impulse_ns:.4g} N·s, "
+                  f"{record.computed_designation()}")

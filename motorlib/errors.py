@@ -1,0 +1,134 @@
+"""The one exception tree of motorlib, and its warning class.
+
+Every error a user can meet is a :class:`MotorlibError`; each concrete error
+also inherits the builtin a caller would expect, so ``except ValueError`` keeps
+working. File errors carry the facts as attributes and build their text as
+``path:line: field: problem`` so every message names the file and the field.
+
+::
+
+    MotorlibError
+    +-- CurveError (ValueError)          source, field, line: a curve we cannot accept
+    |   +-- CurveSyntaxError             not well-formed, refused as unsafe, or too large
+    |   +-- SchemaValidationError        breaks the XSD
+    |   +-- CurveDataError               readable, but an invariant fails (time not increasing)
+    |   +-- CsvFormatError               a CSV file we cannot read as a thrust curve
+    +-- DesignationError (ValueError)    a motor label that does not follow the trade's pattern
+    +-- QuantityError (ValueError)       a quantity with a missing, unknown or wrong-kind unit
+    MotorlibWarning (UserWarning)        suspicious but usable input; outside the error tree
+
+Only the standard library is imported here.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = [
+    "CsvFormatError",
+    "CurveDataError",
+    "CurveError",
+    "CurveSyntaxError",
+    "DesignationError",
+    "MotorlibError",
+    "MotorlibWarning",
+    "Problem",
+    "QuantityError",
+    "SchemaValidationError",
+]
+
+
+class MotorlibError(Exception):
+    """Base class of every error raised by motorlib."""
+
+
+class MotorlibWarning(UserWarning):
+    """Suspicious but usable input (kept outside the error tree on purpose)."""
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One broken invariant of a record, with a stable ``code``.
+
+    ``index`` is the 0-based sample index for sample problems, so that a reader
+    can translate it into a line number of its own file.
+    """
+
+    code: str
+    field: str
+    message: str
+    index: int | None = None
+    line: int | None = None
+
+
+class CurveError(MotorlibError, ValueError):
+    """A thrust curve (file or record) that cannot be accepted."""
+
+    def __init__(
+        self,
+        source: str,
+        problem: str,
+        *,
+        field: str | None = None,
+        line: int | None = None,
+    ) -> None:
+        self.source, self.problem, self.field, self.line = source, problem, field, line
+        where = f"{source}:{line}" if line else source
+        super().__init__(f"{where}: {field}: {problem}" if field else f"{where}: {problem}")
+
+
+class CurveSyntaxError(CurveError):
+    """The file is not well-formed XML, is refused as unsafe, or is too large."""
+
+
+class SchemaValidationError(CurveError):
+    """The XML is well-formed but does not follow the motor-record XSD."""
+
+
+class CsvFormatError(CurveError):
+    """A CSV file that cannot be read as a two-column time/thrust table."""
+
+
+class CurveDataError(CurveError):
+    """The data are readable but break an invariant of a motor record.
+
+    ``problems`` lists every broken invariant found (not only the first), each
+    with a stable code; the message text describes the first of them and how
+    many more there are.
+    """
+
+    def __init__(
+        self,
+        source: str,
+        problems: list[Problem] | tuple[Problem, ...],
+    ) -> None:
+        if not problems:
+            raise ValueError("`problems` must not be empty")
+        self.problems: tuple[Problem, ...] = tuple(problems)
+        first = self.problems[0]
+        text = first.message
+        if len(self.problems) > 1:
+            text += f" (and {len(self.problems) - 1} more problem(s))"
+        super().__init__(source, text, field=first.field, line=first.line)
+
+
+class DesignationError(MotorlibError, ValueError):
+    """A motor designation such as ``C6-5`` that cannot be parsed.
+
+    ``position`` is the 0-based character index where parsing stopped.
+    """
+
+    def __init__(self, text: str, position: int, expected: str) -> None:
+        self.text, self.position, self.expected = text, position, expected
+        found = repr(text[position:]) if position < len(text) else "the end of the label"
+        super().__init__(
+            f"designation {text!r}: at character {position + 1} expected {expected}, found {found}"
+        )
+
+
+class QuantityError(MotorlibError, ValueError):
+    """A quantity string whose unit is missing, unknown, or of the wrong kind."""
+
+    def __init__(self, field: str, problem: str) -> None:
+        self.field, self.problem = field, problem
+        super().__init__(f"{field}: {problem}")

@@ -1,0 +1,111 @@
+"""Rich renderings of library results, in display units (mm, g, N, N·s, s).
+
+No click here, and no arithmetic beyond unit conversion for display.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from rich.console import Group
+from rich.markup import escape
+from rich.table import Table
+from rich.text import Text
+
+from .curvefiles import CheckReport
+
+__all__ = ["SAFETY_CAUTION", "check_details", "check_summary_table", "findings_text"]
+
+SAFETY_CAUTION = (
+    "Caution: predictions are estimates. Follow your national rocketry association's safety code, local law "
+    "and the launch site's rules; the range safety officer decides; fly only motors within your certification."
+)
+
+_SEVERITY_STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan", "unreadable": "bold red"}
+
+
+def _fmt(value: object, digits: int = 4, scale: float = 1.0, unit: str = "") -> str:
+    if value is None:
+        return "-"
+    number = float(value) * scale  # type: ignore[arg-type]
+    return f"{number:.{digits}g}{(' ' + unit) if unit else ''}"
+
+
+def _status(report: CheckReport) -> Text:
+    if not report.readable:
+        return Text("unreadable", style="bold red")
+    if not report.ok:
+        return Text("errors", style="bold red")
+    if any(f.severity == "warning" for f in report.findings):
+        return Text("warnings", style="yellow")
+    return Text("sound", style="green")
+
+
+def check_summary_table(reports: list[CheckReport]) -> Table:
+    """One row per checked file; ``--details`` shows the rest (peak, masses, delays)."""
+    table = Table(title="Curve check", header_style="bold")
+    table.add_column("file", overflow="fold", ratio=1)
+    for name in ("label", "class"):
+        table.add_column(name, no_wrap=True)
+    for name in ("impulse N·s", "avg N", "burn s"):
+        table.add_column(name, justify="right", no_wrap=True)
+    table.add_column("result", no_wrap=True)
+    for report in reports:
+        m = report.metrics or {}
+        cls = f"{m['impulse_class']} {m['class_percent']:.0f}%" if m.get("impulse_class") else "-"
+        table.add_row(
+            escape(Path(report.source).stem), escape(str(m.get("designation", "-"))), cls,
+            _fmt(m.get("total_impulse_ns")), _fmt(m.get("average_thrust_n")), _fmt(m.get("burn_time_s"), 3),
+            _status(report),
+        )
+    return table
+
+
+def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
+    """The findings of one report, one line each: ``severity code: message``."""
+    text = Text()
+    for finding in report.findings:
+        if finding.severity == "note" and not include_notes:
+            continue
+        where = f" (line {finding.line})" if finding.line else ""
+        text.append(f"  {finding.severity:<7} ", style=_SEVERITY_STYLE.get(finding.severity, ""))
+        text.append(f"{finding.code}{where}: ", style="bold")
+        text.append(finding.message + "\n")
+    return text
+
+
+def check_details(report: CheckReport) -> Group:
+    """Metrics table and findings of one file."""
+    parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
+    m = report.metrics
+    if m:
+        table = Table(show_header=False, box=None, pad_edge=False)
+        table.add_column(style="bold")
+        table.add_column()
+        rows = [
+            ("label / maker", f"{m['designation']}  ({m['maker'] or 'maker unknown'})"),
+            ("computed designation", str(m["computed_designation"])),
+            ("total impulse", _fmt(m["total_impulse_ns"], 5, unit="N·s")),
+            ("impulse class", f"{m['impulse_class']} ({m['class_percent']:.1f} % into class)"
+             if m["impulse_class"] else "above O"),
+            ("average thrust", _fmt(m["average_thrust_n"], unit="N")),
+            ("peak thrust", f"{_fmt(m['peak_thrust_n'], unit='N')} at {_fmt(m['peak_time_s'], unit='s')}"),
+            ("burn time", f"{_fmt(m['burn_time_s'], unit='s')} ({_fmt(m['burn_start_s'])}-{_fmt(m['burn_end_s'])} s, "
+                          f"thrust above {100 * float(m['burn_threshold']):g} % of peak)"),
+            ("samples", str(m["n_samples"])),
+            ("diameter x length", f"{_fmt(m['diameter_m'], scale=1e3, unit='mm')} x {_fmt(m['length_m'], scale=1e3, unit='mm')}"),
+            ("total / propellant mass", f"{_fmt(m['total_mass_kg'], scale=1e3, unit='g')} / "
+                                        f"{_fmt(m['propellant_mass_kg'], scale=1e3, unit='g')}"),
+            ("specific impulse", _fmt(m["specific_impulse_s"], unit="s")),
+            ("delays", (", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + (" (adjustable)" if m["delay_adjustable"] else ""))  # type: ignore[union-attr]
+             if m["delays_s"] else "none (plugged or booster)"),
+        ]
+        for key, value in rows:
+            table.add_row(key, escape(value))
+        parts.append(table)
+    if report.findings:
+        parts.append(Text("Findings:", style="bold"))
+        parts.append(findings_text(report))
+    else:
+        parts.append(Text("No findings.", style="green"))
+    return Group(*parts)  # type: ignore[arg-type]

@@ -1,0 +1,64 @@
+"""Locates the motor-record XSD shipped in ``data_schema/``, compiles it once, validates trees.
+
+The only module that knows where the schema files live.
+"""
+
+from __future__ import annotations
+
+import functools
+from importlib import resources
+from pathlib import Path
+from typing import Final
+
+from lxml import etree
+
+from .errors import SchemaValidationError
+
+__all__ = ["MOTOR_RECORD_NAMESPACE", "MOTOR_RECORD_XSD", "schema_path", "validate"]
+
+MOTOR_RECORD_NAMESPACE: Final = "urn:x-motorlib:motor-record:1"
+MOTOR_RECORD_XSD: Final = "motor-record-1.xsd"
+
+
+def schema_path(name: str = MOTOR_RECORD_XSD) -> Path:
+    """Path of a schema file, installed (``motorlib.data_schema``) or in a source checkout."""
+    try:
+        candidate = Path(str(resources.files("motorlib.data_schema") / name))
+        if candidate.is_file():
+            return candidate
+    except ModuleNotFoundError:
+        pass
+    candidate = Path(__file__).resolve().parent.parent / "data_schema" / name
+    if candidate.is_file():
+        return candidate
+    raise FileNotFoundError(f"motorlib is installed without its schema file {name}; reinstall the package")
+
+
+@functools.cache
+def _motor_record_schema() -> etree.XMLSchema:
+    # The XSD is our own file: parse it with a parser that also refuses network access.
+    parser = etree.XMLParser(resolve_entities=False, no_network=True, load_dtd=False)
+    return etree.XMLSchema(etree.parse(str(schema_path()), parser))
+
+
+def validate(tree: etree._ElementTree, source: str) -> None:
+    """Validate ``tree`` against the motor-record XSD.
+
+    Raises
+    ------
+    SchemaValidationError
+        With the line and the element path of the first violation.
+    """
+    schema = _motor_record_schema()
+    if not schema.validate(tree):
+        entry = schema.error_log[0]
+        message = entry.message.replace("{" + MOTOR_RECORD_NAMESPACE + "}", "")
+        raise SchemaValidationError(source, message, field=_plain_path(entry.path), line=entry.line)
+
+
+def _plain_path(path: str | None) -> str | None:
+    """XPath from lxml without namespace prefixes: /motor-record/hardware/diameter."""
+    if not path:
+        return None
+    parts = [part.split(":", 1)[-1] for part in path.split("/")]
+    return "/".join(parts)
