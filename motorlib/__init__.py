@@ -37,7 +37,6 @@ from .xmlio import read_record, record_from_bytes, record_to_bytes, write_record
 
 __all__ = [
     "CLASS_LETTERS",
-    "DEFAULT_BURN_THRESHOLD",
     "CheckReport",
     "CheckSettings",
     "CsvFormatError",
@@ -45,6 +44,7 @@ __all__ = [
     "CurveError",
     "CurveMetadata",
     "CurveSyntaxError",
+    "DEFAULT_BURN_THRESHOLD",
     "Designation",
     "DesignationError",
     "Finding",

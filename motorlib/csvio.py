@@ -24,8 +24,8 @@ from .units import _canonical_unit, known_units, to_si
 __all__ = ["CsvCurve", "CurveMetadata", "read_csv_curve", "record_from_csv"]
 
 DEFAULT_MAX_BYTES: Final = 64 * 1024 * 1024  # a long 10 kHz log is a few MB; refuse what cannot be a log
-_TIME_NAME = re.compile(r"^(t|time|zeit|temps|tiempo)\b", re.IGNORECASE)
-_THRUST_NAME = re.compile(r"^(thrust|force|f|load|schub)\b", re.IGNORECASE)
+_TIME_NAME = re.compile(r"^(t|time|zeit|temps|tiempo)(?![a-z])", re.IGNORECASE)
+_THRUST_NAME = re.compile(r"^(thrust|force|f|load|schub)(?![a-z])", re.IGNORECASE)
 _UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|[_\s]([A-Za-z/·*.-]+))\s*$")
 
 

@@ -83,7 +83,7 @@ def _positive_or_none(name: str, value: float | None, problems: list[Problem]) -
         return None
     value = float(value)
     if not (math.isfinite(value) and value > 0.0):
-        problems.append(Problem(f"{name}-not-positive", name, f"must be a positive finite number, got {value!r}"))
+        problems.append(Problem("hardware-not-positive", name, f"must be a positive finite number, got {value!r}"))
     return value
 
 

@@ -53,12 +53,23 @@ def validate(tree: etree._ElementTree, source: str) -> None:
     if not schema.validate(tree):
         entry = schema.error_log[0]
         message = entry.message.replace("{" + MOTOR_RECORD_NAMESPACE + "}", "")
-        raise SchemaValidationError(source, message, field=_plain_path(entry.path), line=entry.line)
+        raise SchemaValidationError(source, message, field=_element_path(tree, entry.path), line=entry.line)
 
 
-def _plain_path(path: str | None) -> str | None:
-    """XPath from lxml without namespace prefixes: /motor-record/hardware/diameter."""
-    if not path:
+def _element_path(tree: etree._ElementTree, xpath: str | None) -> str | None:
+    """Readable path of the offending element, e.g. ``/motor-record/hardware/diameter``.
+
+    lxml reports namespaced nodes as ``/*/*[2]/*``; evaluating that XPath finds the
+    element, whose ancestors give the names.
+    """
+    if not xpath:
         return None
-    parts = [part.split(":", 1)[-1] for part in path.split("/")]
-    return "/".join(parts)
+    try:
+        nodes = tree.xpath(xpath)
+    except etree.XPathError:
+        return xpath
+    if not nodes or not isinstance(nodes[0], etree._Element):
+        return xpath
+    element = nodes[0]
+    names = [etree.QName(element).localname] + [etree.QName(a).localname for a in element.iterancestors()]
+    return "/" + "/".join(reversed(names))

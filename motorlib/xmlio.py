@@ -136,6 +136,7 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
         "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
         "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
         "delays_s": _child(ejection, "delays"), "designation": _child(identity, "designation"),
+        "samples": samples, "time_s": samples, "thrust_n": samples,
     }
     try:
         return MotorRecord(

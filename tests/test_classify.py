@@ -1,0 +1,113 @@
+"""Impulse classes against the published class table, and the trade's designations."""
+
+from __future__ import annotations
+
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from motorlib import DesignationError, class_bounds_ns, format_designation, impulse_class_for, parse_designation
+
+# Source: class table of NFPA 1122/1125/1127 as reproduced in check-values.md section 2.1
+# (C2 for A..O, M for 1/8A's bounds; the doubling rule gives the rest). Upper bound inclusive.
+PUBLISHED_UPPER_NS = {
+    "1/8A": 0.3125, "1/4A": 0.625, "1/2A": 1.25, "A": 2.5, "B": 5.0, "C": 10.0, "D": 20.0, "E": 40.0,
+    "F": 80.0, "G": 160.0, "H": 320.0, "I": 640.0, "J": 1280.0, "K": 2560.0, "L": 5120.0, "M": 10240.0,
+    "N": 20480.0, "O": 40960.0,
+}
+
+
+@pytest.mark.parametrize(("letter", "upper"), PUBLISHED_UPPER_NS.items())
+def test_bounds_match_the_published_table(letter: str, upper: float) -> None:
+    lower, top = class_bounds_ns(letter)
+    assert top == upper
+    assert lower == (0.0 if letter == "1/8A" else upper / 2)
+
+
+@pytest.mark.parametrize(("letter", "upper"), PUBLISHED_UPPER_NS.items())
+def test_values_just_inside_and_outside_each_boundary(letter: str, upper: float) -> None:
+    assert impulse_class_for(upper).letter == letter  # upper bound inclusive
+    assert impulse_class_for(upper * (1 - 1e-9)).letter == letter
+    above = impulse_class_for(upper * (1 + 1e-9))
+    if letter == "O":
+        assert above is None  # beyond O: reported, not classified
+    else:
+        assert above.letter != letter
+
+
+# Boundary rows from check-values.md section 2.1 (C2 published two-decimal lists).
+@pytest.mark.parametrize(("impulse", "letter"), [
+    (0.3125, "1/8A"), (1.25, "1/2A"), (1.26, "A"), (2.50, "A"), (2.51, "B"), (5.00, "B"), (10.00, "C"),
+    (20.00, "D"), (20.01, "E"), (160.00, "G"), (160.01, "H"), (40960.00, "O"),
+])
+def test_published_boundary_rows(impulse: float, letter: str) -> None:
+    assert impulse_class_for(impulse).letter == letter
+
+
+def test_boundary_decision_is_exact_comparison() -> None:
+    # Project decision (check-values.md 2.1 asks for it to be explicit): no rounding to 0.01 N·s first.
+    assert impulse_class_for(2.5000001).letter == "B"
+    assert impulse_class_for(40960.01) is None
+    assert impulse_class_for(0.0) is None
+    assert impulse_class_for(float("nan")) is None
+
+
+def test_half_a_fact_of_the_trade() -> None:
+    # Common practice, no published source: 1.1 N·s delivered over 0.36 s averages about 3 N, class 1/2A.
+    cls = impulse_class_for(1.1)
+    assert cls.letter == "1/2A"
+    assert 1.1 / 0.36 == pytest.approx(3.0, rel=0.05)
+
+
+def test_percent_into_class() -> None:
+    assert impulse_class_for(7.5).percent == pytest.approx(50.0)
+    assert impulse_class_for(10.0).percent == pytest.approx(100.0)
+
+
+@given(st.floats(1e-6, 40960.0))
+def test_every_impulse_lies_inside_its_class(impulse: float) -> None:
+    cls = impulse_class_for(impulse)
+    assert cls.lower_ns < impulse <= cls.upper_ns
+    assert 0.0 < cls.percent <= 100.0
+
+
+@pytest.mark.parametrize(("label", "fields"), [
+    ("C6-5", dict(impulse_class="C", average_thrust_n=6.0, delays_s=(5.0,))),
+    ("1/2A3-2", dict(impulse_class="1/2A", average_thrust_n=3.0, delays_s=(2.0,))),
+    ("1/4A3-3T", dict(impulse_class="1/4A", average_thrust_n=3.0, delays_s=(3.0,), delay_code="T")),
+    ("120G40-8W", dict(impulse_class="G", average_thrust_n=40.0, total_impulse_ns=120.0, delays_s=(8.0,),
+                       delay_code="W")),
+    ("H124-P", dict(impulse_class="H", average_thrust_n=124.0, plugged=True, delays_s=())),
+    ("B6-0", dict(impulse_class="B", average_thrust_n=6.0, booster=True, delays_s=())),
+    ("G25-4,7,10", dict(impulse_class="G", delays_s=(4.0, 7.0, 10.0))),
+    ("G64W-10", dict(impulse_class="G", average_thrust_n=64.0, thrust_code="W", delays_s=(10.0,))),
+    ("E9", dict(impulse_class="E", average_thrust_n=9.0, delays_s=())),
+    ("c6-5", dict(impulse_class="C")),
+    ("1/8A1.5-1", dict(impulse_class="1/8A", average_thrust_n=1.5, delays_s=(1.0,))),
+])
+def test_parse_designation(label: str, fields: dict) -> None:
+    parsed = parse_designation(label)
+    for name, value in fields.items():
+        assert getattr(parsed, name) == value, name
+
+
+@pytest.mark.parametrize("label", ["C6-5", "1/2A3-2", "1/4A3-3T", "120G40-8W", "H124-P", "B6-0", "G25-4,7,10",
+                                   "G64W-10", "E9"])
+def test_format_round_trips(label: str) -> None:
+    assert format_designation(parse_designation(label)) == label
+
+
+@pytest.mark.parametrize(("label", "position", "expected"), [
+    ("C-5", 2, "average thrust"),
+    ("P100-4", 1, "A to O"),
+    ("", 1, "impulse class"),
+    ("C6-", 4, "ejection delay"),
+    ("C6-5x!", 6, "end of the label"),
+    ("C6+5", 3, "'-'"),
+    ("C6-0,4", 7, "stands alone"),
+    ("C0-4", 2, "above 0 N"),
+])
+def test_unparseable_labels_say_which_part_is_wrong(label: str, position: int, expected: str) -> None:
+    with pytest.raises(DesignationError, match=f"character {position} expected.*{expected}") as info:
+        parse_designation(label)
+    assert isinstance(info.value, ValueError)

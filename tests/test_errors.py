@@ -1,0 +1,25 @@
+"""Every error names its file and field, and builtins still catch it."""
+
+from __future__ import annotations
+
+import pytest
+
+from motorlib import errors
+
+
+def test_tree_and_builtins() -> None:
+    for cls in (errors.CurveSyntaxError, errors.SchemaValidationError, errors.CurveDataError, errors.CsvFormatError):
+        assert issubclass(cls, errors.CurveError) and issubclass(cls, ValueError)
+        assert issubclass(cls, errors.MotorlibError)
+    assert issubclass(errors.DesignationError, ValueError) and issubclass(errors.QuantityError, ValueError)
+    assert not issubclass(errors.MotorlibWarning, errors.MotorlibError)
+
+
+def test_message_layout() -> None:
+    assert str(errors.CurveError("a.xml", "bad", field="samples", line=7)) == "a.xml:7: samples: bad"
+    assert str(errors.CurveError("a.xml", "bad")) == "a.xml: bad"
+    problem = errors.Problem("time-not-increasing", "time_s", "sample 3 ...", 2, 12)
+    err = errors.CurveDataError("a.xml", [problem, problem])
+    assert str(err) == "a.xml:12: time_s: sample 3 ... (and 1 more problem(s))"
+    with pytest.raises(ValueError, match="problems"):
+        errors.CurveDataError("a.xml", [])

@@ -1,0 +1,71 @@
+"""Unit conversions, each factor checked against pint (an independent reference library)."""
+
+from __future__ import annotations
+
+import pint
+import pytest
+
+from motorlib import QuantityError
+from motorlib.units import UNITS, parse_quantity, to_si
+
+UREG = pint.UnitRegistry()
+
+# Our symbol -> pint expression; reference: pint's default registry (check-values.md section 8, L).
+PINT_NAMES = {
+    ("length", "in"): "inch", ("length", "ft"): "foot", ("length", "mm"): "millimeter", ("length", "cm"): "centimeter",
+    ("length", "km"): "kilometer", ("length", "m"): "meter",
+    ("mass", "oz"): "ounce", ("mass", "lb"): "pound", ("mass", "g"): "gram", ("mass", "kg"): "kilogram",
+    ("time", "ms"): "millisecond", ("time", "s"): "second",
+    ("force", "lbf"): "force_pound", ("force", "kgf"): "force_kilogram", ("force", "gf"): "force_gram",
+    ("force", "N"): "newton", ("force", "kN"): "kilonewton",
+    ("impulse", "Ns"): "newton * second", ("impulse", "lbfs"): "force_pound * second",
+    ("speed", "ft/s"): "foot / second", ("speed", "mph"): "mile / hour", ("speed", "km/h"): "kilometer / hour",
+    ("speed", "m/s"): "meter / second", ("angle", "deg"): "degree", ("angle", "rad"): "radian",
+}
+SI = {"length": "meter", "mass": "kilogram", "time": "second", "force": "newton", "impulse": "newton * second",
+      "speed": "meter / second", "angle": "radian"}
+
+
+@pytest.mark.parametrize(("kind", "unit"), [(k, u) for k, table in UNITS.items() for u in table])
+def test_every_factor_matches_pint(kind: str, unit: str) -> None:
+    expected = UREG.Quantity(1.0, PINT_NAMES[(kind, unit)]).to(SI[kind]).magnitude
+    assert to_si(1.0, unit, kind) == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize(("text", "kind", "expected"), [
+    ("13mm", "length", 0.013), ("0.5 in", "length", 0.0127), ("24g", "mass", 0.024),
+    ("0.85 oz", "mass", 0.85 * 0.028349523125), ("800 ft", "length", 243.84), ("3 m/s", "speed", 3.0),
+    ("5 deg", "angle", 5 * 3.141592653589793 / 180), ("1.5 lbf", "force", 1.5 * 4.4482216152605),
+])
+def test_parse_quantity_with_units(text: str, kind: str, expected: float) -> None:
+    # Reference values: pint 0.25.3 as listed in check-values.md section 8 (L).
+    assert parse_quantity(text, kind) == pytest.approx(expected, rel=1e-12)
+    assert parse_quantity(text, kind) == pytest.approx(UREG.Quantity(text).to(SI[kind]).magnitude, rel=1e-12)
+
+
+def test_temperatures_match_pint() -> None:
+    for text, unit in (("15 degC", "degC"), ("59 degF", "degF"), ("288.15 K", "kelvin")):
+        magnitude = float(text.split()[0])
+        expected = UREG.Quantity(magnitude, unit).to("kelvin").magnitude
+        assert parse_quantity(text, "temperature") == pytest.approx(expected, rel=1e-12)
+
+
+def test_bare_numbers_take_the_default_unit_or_si() -> None:
+    assert parse_quantity("29", "length", default_unit="mm") == 0.029
+    assert parse_quantity(29, "length", default_unit="mm") == 0.029
+    assert parse_quantity("1.5", "length") == 1.5
+    assert to_si(29.0, "mm", "length") == 0.029  # exact: division by 1000, not multiplication by 1e-3
+
+
+def test_wrong_kind_names_the_field_and_the_kind() -> None:
+    with pytest.raises(QuantityError, match=r"rail_length: expected a length, got '3 kg' \(a mass\)"):
+        parse_quantity("3 kg", "length", field="rail_length")
+
+
+def test_unknown_unit_lists_the_accepted_ones() -> None:
+    with pytest.raises(QuantityError, match="unknown length unit 'furlong'.*mm"):
+        parse_quantity("3 furlong", "length", field="diameter")
+    with pytest.raises(QuantityError, match="expected a mass"):
+        parse_quantity("heavy", "mass", field="total_mass")
+    with pytest.raises(ValueError):  # QuantityError is a ValueError
+        parse_quantity(True, "mass")
