@@ -15,6 +15,7 @@ working. File errors carry the facts as attributes and build their text as
     |   +-- CsvFormatError               a CSV file we cannot read as a thrust curve
     +-- DesignationError (ValueError)    a motor label that does not follow the trade's pattern
     +-- QuantityError (ValueError)       a quantity with a missing, unknown or wrong-kind unit
+    +-- SimulationInputError (ValueError) an airframe, launch condition or setting we cannot fly
     MotorlibWarning (UserWarning)        suspicious but usable input; outside the error tree
 
 Only the standard library is imported here.
@@ -35,6 +36,7 @@ __all__ = [
     "Problem",
     "QuantityError",
     "SchemaValidationError",
+    "SimulationInputError",
 ]
 
 
@@ -132,3 +134,14 @@ class QuantityError(MotorlibError, ValueError):
     def __init__(self, field: str, problem: str) -> None:
         self.field, self.problem = field, problem
         super().__init__(f"{field}: {problem}")
+
+
+class SimulationInputError(MotorlibError, ValueError):
+    """An airframe, launch condition or flight setting that cannot be simulated.
+
+    ``source`` is the file (or "airframe"), ``field`` the key, e.g. ``launch.rail_length``.
+    """
+
+    def __init__(self, source: str, field: str, problem: str) -> None:
+        self.source, self.field, self.problem = source, field, problem
+        super().__init__(f"{source}: {field}: {problem}")
