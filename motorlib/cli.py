@@ -122,6 +122,7 @@ def main() -> None:
     \b
     Examples:
       motorlib check sample_curves/            check every bundled curve
+      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8
       motorlib check stand.csv --designation F30-6 --diameter 24 --json
       motorlib import stand.csv -o F30.xml --designation F30-6 --maker "Our team"
     """
@@ -233,3 +234,175 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
         raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
     console.print(f"Wrote {render.escape(str(path))}: {record.designation}, {record.total_impulse_ns:.4g} N·s, "
                   f"{record.computed_designation()}")
+
+
+def _caution(console: Any) -> None:
+    console.print(f"[dim]{_EPILOG}[/dim]")
+
+
+@main.command()
+@click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
+@click.option("--motor", "motor_ref", required=True,
+              help="A curve file (.xml or .csv), or a file name or designation in --catalog (e.g. F29-8).")
+@click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
+              help="Folder of curve files to find --motor in (default: the bundled sample curves).")
+@click.option("--delay", "delay_s", type=float, help="Ejection delay to use in seconds (default: the listed delay "
+                                                      "closest to the optimal one).")
+@click.option("--ballast", "ballast_kg", type=_Quantity("mass", "g"), default=None,
+              help="Mass added to the airframe; a bare number is g (e.g. 25, 1.2oz).")
+@click.option("--units", type=click.Choice(["si", "imperial"]), default="si", show_default=True,
+              help="Units of the table.")
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
+@click.option("--csv", "csv_path", type=click.Path(dir_okay=False), help="Write the trajectory to this CSV file.")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write altitude, speed and acceleration "
+                                                                           "against time to this PNG file.")
+def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
+        units: str, as_json: bool, csv_path: str | None, plot_path: str | None) -> None:
+    """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
+
+    Prints rail exit speed, apogee, optimal delay, the ejection altitude and
+    speed at each delay, and descent figures when the airframe has recovery,
+    with warnings from launch rules of thumb. Times count from motor ignition.
+
+    \b
+    Example:
+      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8 --plot f29.png
+      motorlib fly my-rocket.toml --motor tests/static-3.xml --delay 6 --json
+    """
+    import numpy as np
+
+    from .airframe_file import load_airframe
+    from .curvefiles import find_motor
+    from .flight import simulate
+    from .rules import flight_warnings
+
+    frame = load_airframe(airframe_file)
+    motor = find_motor(motor_ref, catalog_dir)
+    wanted = None if delay_s is None else np.array([delay_s])
+    if delay_s is not None and motor.delays_s and not motor.delay_adjustable and delay_s not in motor.delays_s:
+        raise click.UsageError(f"--delay {delay_s:g}: {motor.designation} offers {', '.join(f'{d:g}' for d in motor.delays_s)} s")
+    record = motor
+    if delay_s is not None and motor.delay_adjustable and delay_s not in motor.delays_s:
+        if not motor.delays_s or delay_s > max(motor.delays_s):
+            raise click.UsageError(f"--delay {delay_s:g}: an adjustable delay can only be shortened below "
+                                   f"{max(motor.delays_s or (0,)):g} s")
+        from dataclasses import replace
+
+        record = replace(motor, delays_s=tuple(sorted(set(motor.delays_s) | {delay_s})))
+    results = simulate(frame, [record], added_mass_kg=ballast_kg or 0.0, deploy_delay_s=wanted,
+                       trajectories=bool(csv_path or plot_path))
+    summary = results.summary(0, record.delays_s)
+    summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
+    if delay_s is not None and frame.recovery is None:
+        summary["chosen_delay_s"] = delay_s
+    warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    written = []
+    if csv_path:
+        written.append(_write_trajectory_csv(results.trajectories[0], csv_path))
+    if plot_path:
+        from .plots import flight_plot
+
+        written.append(flight_plot(results.trajectories[0], summary, f"{frame.name} with {motor.designation}",
+                                   plot_path))
+    if as_json:
+        payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
+                   "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
+        click.echo(json.dumps(payload, indent=2))
+        return
+    from . import render
+
+    console = _console()
+    console.print(render.flight_table(summary, f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
+                                      units))
+    if warnings:
+        console.print(render.warnings_text(warnings), end="")
+    for path in written:
+        console.print(f"Wrote {render.escape(str(path))}")
+    _caution(console)
+
+
+def _write_trajectory_csv(trajectory: dict[str, Any], path: str) -> Any:
+    import io
+
+    from .fsio import write_atomic
+
+    buffer = io.StringIO()
+    names = ["time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2"]
+    buffer.write(",".join(names + ["phase"]) + "\n")
+    for row in range(len(trajectory["time_s"])):
+        values = [repr(float(trajectory[n][row])) for n in names]
+        buffer.write(",".join(values + ["descent" if trajectory["descent"][row] else "ascent"]) + "\n")
+    return write_atomic(path, buffer.getvalue().encode())
+
+
+@main.command()
+@click.option("--mass", "mass_kg", type=_Quantity("mass", "g"), help="Mass under the device; a bare number is g.")
+@click.option("--drag-area", "drag_area_m2", type=float, help="Cd·A of the device in m².")
+@click.option("--cd", "drag_coefficient", type=float, help="Drag coefficient of the device (with --diameter).")
+@click.option("--diameter", "diameter_m", type=_Quantity("length", "m"),
+              help="Device diameter (with --cd); a bare number is m (e.g. 0.6, 24in).")
+@click.option("--height", "height_m", type=_Quantity("length", "m"), help="Height fallen; a bare number is m.")
+@click.option("--fall-time", "fall_time_s", type=click.FloatRange(min=0, min_open=True),
+              help="Observed time to fall --height, in seconds (e.g. read off a launch video).")
+@click.option("--elevation", "elevation_m", type=_Quantity("length", "m"), default=0.0,
+              help="Site elevation for the air density (standard atmosphere); a bare number is m.")
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
+def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient: float | None,
+            diameter_m: float | None, height_m: float | None, fall_time_s: float | None, elevation_m: float,
+            as_json: bool) -> None:
+    """Recovery arithmetic: terminal speed and fall time, or the drag area that explains an observed fall.
+
+    Forward: --mass and --drag-area (or --cd with --diameter) give the terminal
+    speed, and with --height the time to fall it from rest. Inverse: --height
+    and --fall-time give the terminal speed that explains them (the exact
+    quadratic-drag fall, not height / time), and with --mass the drag area.
+    Air density is the standard atmosphere's at --elevation.
+
+    \b
+    Examples:
+      motorlib descent --mass 450g --cd 0.8 --diameter 0.6 --height 300
+      motorlib descent --height 82 --fall-time 9.5 --mass 15g
+    """
+    import math
+
+    from .atmosphere import density_kg_m3
+    from .recovery import drag_area_m2 as area_for, fall_speed_m_s, fall_time_s as time_for
+    from .recovery import terminal_speed_from_fall_m_s, terminal_speed_m_s
+
+    if drag_area_m2 is None and drag_coefficient is not None and diameter_m is not None:
+        drag_area_m2 = drag_coefficient * math.pi * diameter_m**2 / 4.0
+    elif drag_area_m2 is None and (drag_coefficient is not None or diameter_m is not None):
+        raise click.UsageError("--cd and --diameter go together")
+    rho = float(density_kg_m3(elevation_m))
+    result: dict[str, float] = {"density_kg_m3": rho}
+    if fall_time_s is not None:
+        if height_m is None:
+            raise click.UsageError("--fall-time needs --height")
+        try:
+            v_t = float(terminal_speed_from_fall_m_s(height_m, fall_time_s))
+        except ValueError as exc:
+            raise click.UsageError(str(exc).replace("`", "")) from None
+        result.update(terminal_speed_m_s=v_t, fall_time_s=fall_time_s, height_m=height_m,
+                      landing_speed_m_s=float(fall_speed_m_s(fall_time_s, v_t)))
+        if mass_kg is not None:
+            result["drag_area_m2"] = float(area_for(mass_kg, v_t, rho))
+    elif mass_kg is not None and drag_area_m2 is not None:
+        v_t = float(terminal_speed_m_s(mass_kg, drag_area_m2, rho))
+        result.update(terminal_speed_m_s=v_t, drag_area_m2=drag_area_m2)
+        if height_m is not None:
+            t = float(time_for(height_m, v_t))
+            result.update(fall_time_s=t, height_m=height_m, landing_speed_m_s=float(fall_speed_m_s(t, v_t)))
+    else:
+        raise click.UsageError("give --mass with --drag-area (or --cd and --diameter), or --height with --fall-time")
+    if as_json:
+        click.echo(json.dumps(result, indent=2))
+        return
+    console = _console()
+    console.print(f"Air density at {elevation_m:g} m: {rho:.4g} kg/m³")
+    console.print(f"Terminal speed: {result['terminal_speed_m_s']:.3g} m/s")
+    if "fall_time_s" in result:
+        console.print(f"Fall of {result['height_m']:g} m from rest: {result['fall_time_s']:.3g} s, "
+                      f"landing at {result['landing_speed_m_s']:.3g} m/s")
+    if "drag_area_m2" in result:
+        console.print(f"Drag area Cd·A: {result['drag_area_m2']:.4g} m²")
+    _caution(console)

@@ -94,6 +94,9 @@ class FlightSettings:
         Below this height the wind is that at this height [m].
     vary_gravity : bool
         Inverse-square gravity with altitude; False for constant g0.
+    uniform_air : bool
+        Hold density and speed of sound at their pad values at every height
+        (for textbook checks with constant density); False for the standard atmosphere.
     drill_step_s : float
         Adjustable delays can be drilled down in steps of this size [s] (common practice).
     max_time_s, max_steps : float, int
@@ -108,6 +111,7 @@ class FlightSettings:
     wind_exponent: float = 1.0 / 7.0
     wind_floor_m: float = 1.0
     vary_gravity: bool = True
+    uniform_air: bool = False
     drill_step_s: float = 1.0
     max_time_s: float = 4000.0
     max_steps: int = 200_000
@@ -220,6 +224,7 @@ class FlightResults:
     deploy_delay_s: np.ndarray
     landing_time_s: np.ndarray
     landing_speed_m_s: np.ndarray
+    landing_descent_rate_m_s: np.ndarray
     descent_time_s: np.ndarray
     drift_m: np.ndarray
     trajectories: tuple[dict[str, np.ndarray], ...] | None = None
@@ -235,6 +240,67 @@ class FlightResults:
 
     def message(self, i: int) -> str:
         return MESSAGES[int(self.status[i])]
+
+    def chosen_delay_s(self, i: int) -> float:
+        """The delay used for deployment, else the reported delay closest to the optimal one (NaN if none)."""
+        if np.isfinite(self.deploy_delay_s[i]):
+            return float(self.deploy_delay_s[i])
+        delays = self.ejection_delay_s[i]
+        if np.all(np.isnan(delays)) or not np.isfinite(self.optimal_delay_s[i]):
+            return math.nan
+        return float(delays[np.nanargmin(np.abs(delays - self.optimal_delay_s[i]))])
+
+    def summary(self, i: int, listed_delays_s: Sequence[float] | None = None) -> dict[str, object]:
+        """Flight ``i`` as a plain dict of SI figures (the ``fly --json`` layout). Times from ignition.
+
+        ``listed_delays_s`` limits ``ejections`` to the motor's listed delays (and the chosen one),
+        leaving out the drillable values of adjustable motors.
+        """
+        def num(value: float) -> float | None:
+            return float(value) if np.isfinite(value) else None
+
+        chosen = self.chosen_delay_s(i)
+        ejections = []
+        chosen_speed = None
+        for k, delay in enumerate(self.ejection_delay_s[i]):
+            if np.isnan(delay):
+                continue
+            if listed_delays_s is not None and delay not in listed_delays_s and delay != chosen:
+                continue
+            entry = {"delay_s": float(delay), "altitude_m": num(self.ejection_altitude_m[i, k]),
+                     "speed_m_s": num(self.ejection_speed_m_s[i, k]),
+                     "vertical_speed_m_s": num(self.ejection_vertical_speed_m_s[i, k])}
+            ejections.append(entry)
+            if delay == chosen:
+                chosen_speed = entry["speed_m_s"]
+        return {
+            "status": "ok" if self.status[i] == OK else "failed",
+            "message": self.message(i),
+            "liftoff_time_s": num(self.liftoff_time_s[i]),
+            "rail_exit_time_s": num(self.rail_exit_time_s[i]),
+            "rail_exit_speed_m_s": num(self.rail_exit_speed_m_s[i]),
+            "burnout_time_s": num(self.burnout_time_s[i]),
+            "apogee_m": num(self.apogee_m[i]),
+            "time_to_apogee_s": num(self.apogee_time_s[i]),
+            "apogee_downrange_m": num(self.apogee_downrange_m[i]),
+            "optimal_delay_s": num(self.optimal_delay_s[i]),
+            "chosen_delay_s": num(chosen),
+            "chosen_ejection_speed_m_s": chosen_speed,
+            "max_speed_m_s": num(self.max_speed_m_s[i]),
+            "max_mach": num(self.max_mach[i]),
+            "max_acceleration_m_s2": num(self.max_acceleration_m_s2[i]),
+            "max_dynamic_pressure_pa": num(self.max_dynamic_pressure_pa[i]),
+            "liftoff_mass_kg": num(self.liftoff_mass_kg[i]),
+            "liftoff_thrust_to_weight": num(self.liftoff_thrust_to_weight[i]),
+            "average_thrust_to_weight": num(self.average_thrust_to_weight[i]),
+            "ejections": ejections,
+            "deploy_time_s": num(self.deploy_time_s[i]),
+            "deploy_altitude_m": num(self.deploy_altitude_m[i]),
+            "landing_speed_m_s": num(self.landing_speed_m_s[i]),
+            "landing_descent_rate_m_s": num(self.landing_descent_rate_m_s[i]),
+            "descent_time_s": num(self.descent_time_s[i]),
+            "drift_m": num(self.drift_m[i]),
+        }
 
 
 # ----------------------------------------------------------------------------- set-up helpers
@@ -379,6 +445,9 @@ def _make_group(frame: Airframe, s: FlightSettings) -> _Group:
     top = 100_000.0 - site.elevation_m
     heights = np.arange(-100.0, top + 2 * _TABLE_STEP_M, _TABLE_STEP_M)
     _, _, rho, sound = site.air(heights)
+    if s.uniform_air:
+        _, _, rho0, sound0 = site.air(0.0)
+        rho, sound = np.full(heights.size, float(rho0)), np.full(heights.size, float(sound0))
     if s.vary_gravity:
         gravity = STANDARD_GRAVITY_M_S2 * (EARTH_RADIUS_M / (EARTH_RADIUS_M + site.elevation_m + heights)) ** 2
     else:
@@ -485,7 +554,8 @@ _RESULT_FIELDS = ("liftoff_time_s", "rail_exit_time_s", "rail_exit_speed_m_s", "
                   "apogee_time_s", "apogee_downrange_m", "max_speed_m_s", "max_mach", "max_acceleration_m_s2",
                   "max_dynamic_pressure_pa", "liftoff_mass_kg", "liftoff_thrust_to_weight",
                   "average_thrust_to_weight", "deploy_time_s", "deploy_altitude_m", "deploy_delay_s",
-                  "landing_time_s", "landing_speed_m_s", "descent_time_s", "drift_m")
+                  "landing_time_s", "landing_speed_m_s", "landing_descent_rate_m_s", "descent_time_s",
+                  "drift_m")
 
 
 def _empty_results(n: int, k: int, delays: np.ndarray) -> dict[str, np.ndarray]:
@@ -585,7 +655,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         a[name] = np.zeros(n_all)
     apogee = {k: np.full(n_all, np.nan) for k in ("t", "x", "z", "vx")}
     at_deploy = {k: np.full(n_all, np.nan) for k in ("t", "x", "z", "vx", "vz")}
-    landing = {k: np.full(n_all, np.nan) for k in ("t", "x", "speed")}
+    landing = {k: np.full(n_all, np.nan) for k in ("t", "x", "speed", "rate")}
     ej = {k: np.full((n_all, n_delays), np.nan) for k in ("z", "speed", "vz", "x", "vx")}
     maxima = {name: np.zeros(n_all) for name in ("max_speed", "max_mach", "max_acc", "max_q")}
     status = np.zeros(n_all, dtype=np.int64)
@@ -683,7 +753,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         ax1, az1, mach1, q1 = f(t1, x1, z1, vx1, vz1)
         # ---- events inside the step, by cubic Hermite interpolation ----
         dt_step = t1 - t
-        crossing = (vz1 <= 0.0) & (vz > 0.0) & ~a["apogee_found"]
+        crossing = (vz1 <= 0.0) & (vz > 0.0) & ~a["apogee_found"] & ~a["on_rail"]
         if crossing.any():
             c = crossing
             hc = dt_step[c]
@@ -732,8 +802,9 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
             r = a["ref"][c]
             landing["t"][r] = t[c] + tau * hc
             landing["x"][r] = _hermite(x[c], vx[c], x1[c], vx1[c], hc, tau)
-            landing["speed"][r] = np.hypot(_hermite(vx[c], ax[c], vx1[c], ax1[c], hc, tau),
-                                           _hermite(vz[c], az[c], vz1[c], az1[c], hc, tau))
+            vz_land = _hermite(vz[c], az[c], vz1[c], az1[c], hc, tau)
+            landing["speed"][r] = np.hypot(_hermite(vx[c], ax[c], vx1[c], ax1[c], hc, tau), vz_land)
+            landing["rate"][r] = -vz_land
         # ---- running maxima, sampled at step ends (every curve sample is a step end) ----
         np.maximum(a["max_speed"], np.sqrt(vx1 * vx1 + vz1 * vz1), out=a["max_speed"])
         np.maximum(a["max_mach"], mach1, out=a["max_mach"])
@@ -763,6 +834,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     if descent:
         out["landing_time_s"][idx] = landing["t"]
         out["landing_speed_m_s"][idx] = landing["speed"]
+        out["landing_descent_rate_m_s"][idx] = landing["rate"]
         out["drift_m"][idx] = landing["x"]
     else:
         out["rail_exit_time_s"][idx] = rail_exit_t

@@ -109,3 +109,69 @@ def check_details(report: CheckReport) -> Group:
     else:
         parts.append(Text("No findings.", style="green"))
     return Group(*parts)  # type: ignore[arg-type]
+
+
+# ----------------------------------------------------------------------------- flights
+_DISPLAY = {
+    "si": {"length": ("m", 1.0), "speed": ("m/s", 1.0), "acceleration": ("m/s²", 1.0), "mass": ("g", 1e-3),
+           "pressure": ("kPa", 1e3)},
+    "imperial": {"length": ("ft", 0.3048), "speed": ("ft/s", 0.3048), "acceleration": ("ft/s²", 0.3048),
+                 "mass": ("oz", 0.028349523125), "pressure": ("psi", 6894.757293168)},
+}
+
+
+def display(value: object, kind: str, units: str, digits: int = 4) -> str:
+    """An SI value in the display unit of ``kind`` for the ``si`` or ``imperial`` system."""
+    unit, factor = _DISPLAY[units][kind]
+    if value is None:
+        return "-"
+    return f"{float(value) / factor:.{digits}g} {unit}"  # type: ignore[arg-type]
+
+
+def flight_table(summary: dict[str, object], title: str, units: str = "si") -> Table:
+    """The figures of one simulated flight (times from ignition)."""
+    table = Table(title=escape(title), show_header=False, title_justify="left")
+    table.add_column(style="bold")
+    table.add_column()
+    s = summary
+
+    def sec(key: str) -> str:
+        return "-" if s.get(key) is None else f"{float(s[key]):.2f} s"  # type: ignore[arg-type]
+
+    rows = [
+        ("result", str(s["message"])),
+        ("liftoff", f"{sec('liftoff_time_s')}, mass {display(s['liftoff_mass_kg'], 'mass', units)}"),
+        ("thrust-to-weight", f"liftoff {_fmt(s['liftoff_thrust_to_weight'], 3)}, average {_fmt(s['average_thrust_to_weight'], 3)}"),
+        ("rail exit", f"{display(s['rail_exit_speed_m_s'], 'speed', units)} at {sec('rail_exit_time_s')}"),
+        ("burnout", sec("burnout_time_s")),
+        ("apogee", f"{display(s['apogee_m'], 'length', units)} at {sec('time_to_apogee_s')}, "
+                   f"{display(s['apogee_downrange_m'], 'length', units)} downrange"),
+        ("optimal delay", sec("optimal_delay_s")),
+        ("max speed", f"{display(s['max_speed_m_s'], 'speed', units)} (Mach {_fmt(s['max_mach'], 3)})"),
+        ("max acceleration", f"{display(s['max_acceleration_m_s2'], 'acceleration', units)} "
+                             f"({_fmt(None if s['max_acceleration_m_s2'] is None else float(s['max_acceleration_m_s2']) / 9.80665, 3)} g)"),
+        ("max dynamic pressure", display(s["max_dynamic_pressure_pa"], "pressure", units)),
+    ]
+    for ej in s["ejections"]:  # type: ignore[union-attr]
+        mark = "  <- chosen" if ej["delay_s"] == s.get("chosen_delay_s") else ""
+        rows.append((f"ejection at {ej['delay_s']:g} s delay",
+                     f"{display(ej['altitude_m'], 'length', units)}, {display(ej['speed_m_s'], 'speed', units)}{mark}"
+                     if ej["altitude_m"] is not None else "after landing"))
+    if s.get("deploy_time_s") is not None:
+        rows.append(("deployment", f"{sec('deploy_time_s')} at {display(s['deploy_altitude_m'], 'length', units)}"))
+    if s.get("landing_speed_m_s") is not None:
+        rows.append(("landing", f"descending at {display(s['landing_descent_rate_m_s'], 'speed', units)} "
+                                f"({display(s['landing_speed_m_s'], 'speed', units)} over ground) after "
+                                f"{sec('descent_time_s')} of descent, {display(s['drift_m'], 'length', units)} from the pad"))
+    for key, value in rows:
+        table.add_row(key, escape(value))
+    return table
+
+
+def warnings_text(warnings: list[tuple[str, str]]) -> Text:
+    text = Text()
+    for code, message in warnings:
+        text.append("  warning ", style="yellow")
+        text.append(f"{code}: ", style="bold")
+        text.append(message + "\n")
+    return text

@@ -1,0 +1,55 @@
+"""Charts as PNG files (matplotlib, imported only when a plot is asked for). Files are written atomically."""
+
+from __future__ import annotations
+
+import io
+import os
+from pathlib import Path
+
+import numpy as np
+
+from .fsio import write_atomic
+
+__all__ = ["flight_plot"]
+
+
+def _figure():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from matplotlib import pyplot as plt
+
+    return plt
+
+
+def _save(fig, path: str | os.PathLike[str]) -> Path:
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format="png", dpi=110, bbox_inches="tight")
+    return write_atomic(path, buffer.getvalue())
+
+
+def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], title: str,
+                path: str | os.PathLike[str]) -> Path:
+    """Altitude, speed and acceleration against time, with rail exit, burnout, apogee and deployment marked."""
+    plt = _figure()
+    t = trajectory["time_s"]
+    speed = np.hypot(trajectory["vx_m_s"], trajectory["vz_m_s"])
+    accel = np.hypot(trajectory["ax_m_s2"], trajectory["az_m_s2"])
+    fig, axes = plt.subplots(3, 1, sharex=True, figsize=(8, 8))
+    for ax, values, label in ((axes[0], trajectory["altitude_m"], "altitude (m)"), (axes[1], speed, "speed (m/s)"),
+                              (axes[2], accel, "acceleration (m/s²)")):
+        ax.plot(t, values, color="tab:blue")
+        ax.set_ylabel(label)
+        ax.grid(alpha=0.3)
+        for key, name, colour in (("rail_exit_time_s", "rail exit", "tab:green"), ("burnout_time_s", "burnout", "tab:orange"),
+                                  ("time_to_apogee_s", "apogee", "tab:red"), ("deploy_time_s", "deployment", "tab:purple")):
+            value = summary.get(key)
+            if value is not None:
+                ax.axvline(float(value), color=colour, linestyle="--", linewidth=1, label=name)
+    axes[0].legend(loc="upper right", fontsize=8)
+    axes[2].set_xlabel("time from ignition (s)")
+    axes[0].set_title(title)
+    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    out = _save(fig, path)
+    plt.close(fig)
+    return out

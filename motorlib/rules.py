@@ -1,0 +1,80 @@
+"""Launch rules of thumb that turn a simulated flight into warnings and pass/fail reasons.
+
+These are settings, not physics; each default names its source. They never
+decide whether a rocket flies: the range safety officer does.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["LaunchRules", "flight_warnings"]
+
+
+@dataclass(frozen=True)
+class LaunchRules:
+    """Thresholds for flight warnings.
+
+    Attributes
+    ----------
+    min_rail_exit_speed_m_s : float
+        15 m/s (about 50 ft/s): common practice, no published source (check-values.md 5).
+    rail_exit_wind_ratio : float
+        Rail exit speed at least 4 x wind speed: NAR report "Launching Safely in the
+        21st Century" (2005), section 7.4.3, as quoted by a secondary source (C2).
+    min_liftoff_thrust_to_weight : float
+        5: common practice, no published source (NFPA 1127 section 4.9.1 is quoted as a 3:1 minimum, C2).
+    max_delay_error_s : float
+        Ejection within 2 s of apogee: common practice, no published source.
+    max_ejection_speed_m_s : float
+        Deployment above this speed risks a zipper or a torn canopy: 25 m/s, common practice, no published source.
+    max_landing_speed_m_s : float
+        6.5 m/s (about 21 ft/s) under the main device: common practice, no published source
+        (a club wiki gives 3-4.6 m/s as ideal and about 9 m/s as the upper limit, C2).
+    """
+
+    min_rail_exit_speed_m_s: float = 15.0
+    rail_exit_wind_ratio: float = 4.0
+    min_liftoff_thrust_to_weight: float = 5.0
+    max_delay_error_s: float = 2.0
+    max_ejection_speed_m_s: float = 25.0
+    max_landing_speed_m_s: float = 6.5
+
+
+def flight_warnings(flight: dict[str, object], rules: LaunchRules | None = None, *,
+                    wind_speed_m_s: float = 0.0) -> list[tuple[str, str]]:
+    """(code, message) warnings for one flight summary (:meth:`motorlib.flight.FlightResults.summary`)."""
+    r = rules or LaunchRules()
+    out: list[tuple[str, str]] = []
+    if flight["status"] != "ok":
+        return [("flight-failed", str(flight["message"]))]
+    if flight["rail_exit_speed_m_s"] is None or flight["apogee_m"] is None:
+        return [("flight-incomplete", "the flight did not reach apogee")]
+    exit_speed = float(flight["rail_exit_speed_m_s"])
+    if exit_speed < r.min_rail_exit_speed_m_s:
+        out.append(("rail-exit-slow", f"rail exit speed {exit_speed:.1f} m/s is below {r.min_rail_exit_speed_m_s:g} m/s: "
+                                      "the rocket may not fly straight; use a longer rail or a stronger motor"))
+    if wind_speed_m_s > 0 and exit_speed < r.rail_exit_wind_ratio * wind_speed_m_s:
+        out.append(("rail-exit-slow-for-wind", f"rail exit speed {exit_speed:.1f} m/s is less than "
+                                               f"{r.rail_exit_wind_ratio:g} x the wind speed {wind_speed_m_s:.1f} m/s"))
+    ttw = float(flight["liftoff_thrust_to_weight"])
+    if ttw < r.min_liftoff_thrust_to_weight:
+        out.append(("thrust-to-weight-low", f"liftoff thrust-to-weight {ttw:.1f} is below {r.min_liftoff_thrust_to_weight:g}"))
+    chosen = flight.get("chosen_delay_s")
+    optimal = float(flight["optimal_delay_s"])  # type: ignore[arg-type]
+    if chosen is not None and abs(float(chosen) - optimal) > r.max_delay_error_s:
+        when = "before" if float(chosen) < optimal else "after"
+        out.append(("ejection-far-from-apogee", f"the {float(chosen):g} s delay fires {abs(float(chosen) - optimal):.1f} s "
+                                               f"{when} apogee (optimal delay {optimal:.1f} s)"))
+    speed = flight.get("chosen_ejection_speed_m_s")
+    if speed is not None and float(speed) > r.max_ejection_speed_m_s:
+        out.append(("ejection-fast", f"the rocket moves at {float(speed):.0f} m/s at ejection (above "
+                                     f"{r.max_ejection_speed_m_s:g} m/s): risk of damage or a torn canopy"))
+    landing = flight.get("landing_descent_rate_m_s")
+    if landing is not None and float(landing) > r.max_landing_speed_m_s:
+        out.append(("descent-fast", f"descent rate at landing {float(landing):.1f} m/s is above {r.max_landing_speed_m_s:g} m/s: "
+                                    "use a larger parachute"))
+    if flight.get("has_recovery") and flight.get("deploy_time_s") is None:
+        out.append(("no-deployment", "nothing deploys recovery on this flight (plugged motor without electronics, or "
+                                     "the rocket lands first): it would fall ballistically"))
+    return out
