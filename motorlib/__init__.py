@@ -31,6 +31,7 @@ from .errors import (
     MotorlibWarning,
     QuantityError,
     SchemaValidationError,
+    SimulationInputError,
 )
 from .units import parse_quantity
 from .xmlio import read_record, record_from_bytes, record_to_bytes, write_record
@@ -55,6 +56,7 @@ __all__ = [
     "Provenance",
     "QuantityError",
     "SchemaValidationError",
+    "SimulationInputError",
     "__version__",
     "check_file",
     "check_record",

@@ -103,7 +103,7 @@ class FlightSettings:
         Safety limits of one flight.
     """
 
-    burn_steps: int = 60
+    burn_steps: int = 80
     coast_steps: int = 60
     rail_steps: int = 20
     post_apogee_steps: int = 20

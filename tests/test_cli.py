@@ -7,6 +7,7 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
 from click.testing import CliRunner
 
 from motorlib import read_record
@@ -106,7 +107,7 @@ def test_import_of_broken_csv_names_the_line(tmp_path: Path) -> None:
 
 
 def test_every_command_has_help_with_an_example() -> None:
-    for command in ([], ["check"], ["import"]):
+    for command in ([], ["check"], ["import"], ["fly"], ["descent"]):
         code, out = run(*command, "--help")
         assert code == 0 and "Example" in out
 
@@ -115,3 +116,67 @@ def test_python_dash_m_runs_the_same_group() -> None:
     result = subprocess.run([sys.executable, "-m", "motorlib", "--version"], capture_output=True, text=True,
                             check=True)
     assert "motorlib" in result.stdout
+
+
+AIRFRAMES = SAMPLE_DIR / "airframes"
+
+
+def test_fly_prints_the_flight_and_the_caution(tmp_path: Path) -> None:
+    plot, csv_path = tmp_path / "f.png", tmp_path / "f.csv"
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--plot", str(plot),
+                    "--csv", str(csv_path))
+    assert code == 0, out
+    assert "apogee" in out and "range safety officer" in out
+    assert plot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    header = csv_path.read_text().splitlines()[0]
+    assert header.startswith("time_s,x_m,altitude_m")
+
+
+def test_fly_json_has_the_documented_keys() -> None:
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "bramblewick-propulsion_g59-10", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    for key in ("apogee_m", "time_to_apogee_s", "burnout_time_s", "optimal_delay_s", "rail_exit_speed_m_s",
+                "rail_exit_time_s", "max_speed_m_s", "max_mach", "max_acceleration_m_s2", "liftoff_thrust_to_weight",
+                "ejections", "landing_speed_m_s", "descent_time_s", "drift_m", "warnings"):
+        assert key in data, key
+    assert {"delay_s", "altitude_m", "speed_m_s"} <= set(data["ejections"][0])
+    assert data["landing_speed_m_s"] > 0
+
+
+def test_fly_every_bundled_motor_that_fits() -> None:
+    # Done-means of the flight issue: fly works on the bundled airframes with every motor that fits.
+    from motorlib import read_record
+    from motorlib.airframe_file import load_airframe
+
+    flown = 0
+    for frame_path in sorted(AIRFRAMES.glob("*.toml")):
+        frame = load_airframe(frame_path)
+        for path in sorted(SAMPLE_DIR.glob("*.xml")):
+            motor = read_record(path)
+            if abs(motor.diameter_m - frame.mount_diameter_m) > 1e-4 or motor.length_m > frame.mount_length_m:
+                continue
+            code, out = run("fly", str(frame_path), "--motor", str(path), "--json")
+            assert code == 0, (frame_path.name, path.name, out)
+            assert json.loads(out)["status"] in ("ok", "failed")
+            flown += 1
+    assert flown >= 10
+
+
+def test_fly_errors_are_clear() -> None:
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "Z99")
+    assert code == 1 and "no curve file of that name" in out
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "20")
+    assert code == 2 and "can only be shortened" in out
+
+
+def test_descent_forward_and_inverse() -> None:
+    code, out = run("descent", "--mass", "1kg", "--cd", "0.75", "--diameter", "0.9", "--json")
+    assert code == 0 and json.loads(out)["terminal_speed_m_s"] == pytest.approx(5.7928, abs=1e-4)
+    code, out = run("descent", "--height", "82", "--fall-time", "9.5", "--mass", "15g", "--json")
+    data = json.loads(out)
+    assert code == 0 and data["terminal_speed_m_s"] == pytest.approx(9.2, abs=0.1) and data["drag_area_m2"] > 0
+    code, out = run("descent", "--height", "82", "--fall-time", "3")
+    assert code == 2 and "too short" in out
+    code, out = run("descent", "--mass", "1kg")
+    assert code == 2 and "give --mass with --drag-area" in out
