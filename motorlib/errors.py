@@ -16,6 +16,8 @@ working. File errors carry the facts as attributes and build their text as
     +-- DesignationError (ValueError)    a motor label that does not follow the trade's pattern
     +-- QuantityError (ValueError)       a quantity with a missing, unknown or wrong-kind unit
     +-- SimulationInputError (ValueError) an airframe, launch condition or setting we cannot fly
+    +-- CatalogError                     a catalog that cannot be opened or changed as asked
+        +-- MotorNotFoundError (LookupError), DuplicateMotorError
     MotorlibWarning (UserWarning)        suspicious but usable input; outside the error tree
 
 Only the standard library is imported here.
@@ -26,11 +28,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 __all__ = [
+    "CatalogError",
     "CsvFormatError",
     "CurveDataError",
     "CurveError",
     "CurveSyntaxError",
     "DesignationError",
+    "DuplicateMotorError",
+    "MotorNotFoundError",
     "MotorlibError",
     "MotorlibWarning",
     "Problem",
@@ -145,3 +150,15 @@ class SimulationInputError(MotorlibError, ValueError):
     def __init__(self, source: str, field: str, problem: str) -> None:
         self.source, self.field, self.problem = source, field, problem
         super().__init__(f"{source}: {field}: {problem}")
+
+
+class CatalogError(MotorlibError):
+    """A catalog that cannot be opened or changed as asked."""
+
+
+class MotorNotFoundError(CatalogError, LookupError):
+    """No motor (or more than one) matches a reference."""
+
+
+class DuplicateMotorError(CatalogError):
+    """The motor is already in the catalog."""

@@ -151,29 +151,42 @@ class MotorPack:
     @classmethod
     def from_records(cls, records: Sequence[MotorRecord], drill_step_s: float = 1.0) -> MotorPack:
         """Pack motor records (one Python pass to copy samples; the flight loop never iterates motors)."""
-        n = len(records)
-        if n == 0:
+        if len(records) == 0:
             raise ValueError("`records` must not be empty")
-        width = max(r.n_samples for r in records)
-        delay_lists = [_report_delays(r, drill_step_s) for r in records]
+        return cls.from_samples(
+            [(r.time_s, r.thrust_n) for r in records],
+            total_mass_kg=[r.total_mass_kg for r in records],
+            propellant_mass_kg=[r.propellant_mass_kg for r in records],
+            delays_s=[r.delays_s for r in records],
+            delay_adjustable=[r.delay_adjustable for r in records],
+            drill_step_s=drill_step_s,
+        )
+
+    @classmethod
+    def from_samples(cls, samples: Sequence[tuple[np.ndarray, np.ndarray]], *,
+                     total_mass_kg: Sequence[float | None], propellant_mass_kg: Sequence[float | None],
+                     delays_s: Sequence[Sequence[float]], delay_adjustable: Sequence[bool],
+                     drill_step_s: float = 1.0) -> MotorPack:
+        """Pack (time [s], thrust [N]) arrays of valid curves with their masses [kg] and delays [s]."""
+        n = len(samples)
+        if n == 0:
+            raise ValueError("`samples` must not be empty")
+        counts = np.array([t.size for t, _ in samples], dtype=np.int64)
+        width = int(counts.max())
+        delay_lists = [_report_delays(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
         n_delays = max(1, max(len(d) for d in delay_lists))
         time = np.empty((n, width))
         thrust = np.zeros((n, width))
         delays = np.full((n, n_delays), np.nan)
-        counts = np.empty(n, dtype=np.int64)
-        total = np.empty(n)
-        propellant = np.empty(n)
-        has_mass = np.empty(n, dtype=bool)
-        for i, (r, d) in enumerate(zip(records, delay_lists)):
-            k = r.n_samples
-            time[i, :k] = r.time_s
-            time[i, k:] = r.time_s[-1]
-            thrust[i, :k] = r.thrust_n
-            counts[i] = k
+        for i, ((t, f), d) in enumerate(zip(samples, delay_lists)):
+            k = t.size
+            time[i, :k] = t
+            time[i, k:] = t[-1]
+            thrust[i, :k] = f
             delays[i, : len(d)] = d
-            has_mass[i] = r.total_mass_kg is not None and r.propellant_mass_kg is not None
-            total[i] = r.total_mass_kg if has_mass[i] else 1.0
-            propellant[i] = r.propellant_mass_kg if has_mass[i] else 0.0
+        has_mass = np.array([m is not None and p is not None for m, p in zip(total_mass_kg, propellant_mass_kg)])
+        total = np.array([m if ok else 1.0 for m, ok in zip(total_mass_kg, has_mass)], dtype=float)
+        propellant = np.array([p if ok else 0.0 for p, ok in zip(propellant_mass_kg, has_mass)], dtype=float)
         steps = 0.5 * (thrust[:, 1:] + thrust[:, :-1]) * np.diff(time, axis=1)
         cumulative = np.concatenate((np.zeros((n, 1)), np.cumsum(steps, axis=1)), axis=1)
         last_burning = width - 1 - np.argmax((thrust > 0.0)[:, ::-1], axis=1)
@@ -182,9 +195,9 @@ class MotorPack:
                    has_mass)
 
 
-def _report_delays(record: MotorRecord, drill_step_s: float) -> list[float]:
-    listed = sorted(record.delays_s)
-    if not record.delay_adjustable or not listed:
+def _report_delays(delays_s: Sequence[float], adjustable: bool, drill_step_s: float) -> list[float]:
+    listed = sorted(delays_s)
+    if not adjustable or not listed:
         return listed
     drilled = list(np.arange(drill_step_s, listed[-1], drill_step_s))
     return sorted(set(listed) | {round(d, 9) for d in drilled})

@@ -53,3 +53,22 @@ def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], t
     out = _save(fig, path)
     plt.close(fig)
     return out
+
+
+def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) -> Path:
+    """Thrust curves overlaid on one chart, each with its burn window marked."""
+    plt = _figure()
+    fig, ax = plt.subplots(figsize=(8, 4.5))
+    for record in records:
+        line, = ax.plot(record.time_s, record.thrust_n, label=f"{record.designation} ({record.maker})")
+        start, end = record.burn_window_s(threshold)
+        ax.axvspan(start, end, color=line.get_color(), alpha=0.06)
+        ax.axhline(threshold * record.peak_thrust_n, color=line.get_color(), linestyle=":", linewidth=0.8)
+    ax.set_xlabel("time (s)")
+    ax.set_ylabel("thrust (N)")
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8)
+    ax.set_title(f"Thrust curves (shaded: burn window, thrust above {100 * threshold:g} % of peak)")
+    out = _save(fig, path)
+    plt.close(fig)
+    return out

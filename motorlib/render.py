@@ -175,3 +175,58 @@ def warnings_text(warnings: list[tuple[str, str]]) -> Text:
         text.append(f"{code}: ", style="bold")
         text.append(message + "\n")
     return text
+
+
+# ----------------------------------------------------------------------------- catalog
+def catalog_table(rows: list[dict], title: str = "Catalog") -> Table:
+    """One row per motor: id, label, class, impulse, average thrust, burn, diameter, delays, checks.
+
+    Delays marked * are adjustable (the longest is listed); P means no ejection charge.
+    """
+    table = Table(title=escape(title), header_style="bold")
+    table.add_column("id", no_wrap=True, style="dim")
+    table.add_column("motor", overflow="fold", min_width=8)
+    table.add_column("class", no_wrap=True)
+    table.add_column("I N·s", justify="right", no_wrap=True)
+    table.add_column("avg N", justify="right", no_wrap=True)
+    table.add_column("burn s", justify="right", no_wrap=True)
+    table.add_column("Ø mm", justify="right", no_wrap=True)
+    table.add_column("delay s", no_wrap=True)
+    table.add_column("check", no_wrap=True)
+    for r in rows:
+        cls = f"{r['impulse_class']} {r['class_percent']:.0f}%" if r["impulse_class"] else ">O"
+        size = _fmt(r["diameter_m"], 3, 1e3)
+        delays = ",".join(f"{d:g}" for d in r["delays_s"]) + ("*" if r["delay_adjustable"] else "") if r["delays_s"] else "P"
+        checks = Text("errors", style="bold red") if r["n_errors"] else (
+            Text("warn", style="yellow") if r["n_warnings"] else Text("ok", style="green"))
+        table.add_row(r["motor_id"][:6], escape(r["designation"]), cls, _fmt(r["total_impulse_ns"]),
+                      _fmt(r["average_thrust_n"]), _fmt(r["burn_time_s"], 3), size, delays, checks)
+    return table
+
+
+_BARS = " ▁▂▃▄▅▆▇█"
+
+
+def sparkline(time_s, thrust_n, width: int = 60) -> str:
+    """The thrust curve as one line of block characters, sampled evenly over the burn."""
+    import numpy as np
+
+    t = np.linspace(float(time_s[0]), float(time_s[-1]), width)
+    f = np.interp(t, time_s, thrust_n)
+    peak = float(np.max(f)) or 1.0
+    return "".join(_BARS[int(round(v / peak * (len(_BARS) - 1)))] for v in f)
+
+
+def add_results_table(results: list) -> Table:
+    """What ``catalog add`` did with each offered file that was not simply added."""
+    table = Table(title="Catalog add", header_style="bold")
+    table.add_column("file", overflow="fold", ratio=1)
+    table.add_column("result", no_wrap=True)
+    table.add_column("details", overflow="fold", ratio=2)
+    styles = {"added": "green", "duplicate": "cyan", "refused": "bold red", "unreadable": "bold red"}
+    for r in results:
+        if r.status == "added" and not r.near_duplicates:
+            continue
+        status = "added (near-duplicate)" if r.status == "added" else r.status
+        table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(r.message))
+    return table
