@@ -72,3 +72,33 @@ def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) 
     out = _save(fig, path)
     plt.close(fig)
     return out
+
+
+def match_plot(result, path: str | os.PathLike[str]) -> Path:
+    """Apogee of every flown candidate against the target and ceiling bands (pass green, fail red)."""
+    plt = _figure()
+    flown = [c for c in result.candidates if c["apogee_m"] is not None]
+    fig, ax = plt.subplots(figsize=(max(6.0, 0.35 * len(flown) + 2), 4.8))
+    names = [c["designation"] for c in flown]
+    colours = ["tab:green" if c["passes"] else "tab:red" for c in flown]
+    ax.bar(range(len(flown)), [c["apogee_m"] for c in flown], color=colours)
+    target = result.conditions.get("target_m")
+    ceiling = result.conditions.get("ceiling_m")
+    if target:
+        ax.axhline(target, color="tab:blue", linewidth=1.5, label=f"target {target:.0f} m")
+        ax.axhspan(0.95 * target, 1.05 * target, color="tab:blue", alpha=0.12, label="target ± 5 %")
+    if ceiling:
+        ax.axhline(ceiling, color="black", linestyle="--", linewidth=1.2, label=f"ceiling {ceiling:.0f} m")
+        top = max([c["apogee_m"] for c in flown] + [ceiling]) * 1.05
+        ax.axhspan(ceiling, top, color="black", alpha=0.07)
+    ax.set_xticks(range(len(flown)))
+    ax.set_xticklabels(names, rotation=60, ha="right", fontsize=8)
+    ax.set_ylabel("apogee (m above the pad)")
+    ax.set_title(f"{result.airframe['name']}: apogee per motor (green passes every rule)")
+    if target or ceiling:
+        ax.legend(fontsize=8)
+    ax.grid(axis="y", alpha=0.3)
+    fig.text(0.01, -0.06, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    out = _save(fig, path)
+    plt.close(fig)
+    return out

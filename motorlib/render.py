@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from rich import box
 from rich.console import Group
 from rich.markup import escape
 from rich.table import Table
@@ -183,7 +184,7 @@ def catalog_table(rows: list[dict], title: str = "Catalog") -> Table:
 
     Delays marked * are adjustable (the longest is listed); P means no ejection charge.
     """
-    table = Table(title=escape(title), header_style="bold")
+    table = Table(title=escape(title), header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False, collapse_padding=True)
     table.add_column("id", no_wrap=True, style="dim")
     table.add_column("motor", overflow="fold", min_width=8)
     table.add_column("class", no_wrap=True)
@@ -230,3 +231,88 @@ def add_results_table(results: list) -> Table:
         status = "added (near-duplicate)" if r.status == "added" else r.status
         table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(r.message))
     return table
+
+
+# ----------------------------------------------------------------------------- matching
+def _number(value: object, kind: str, units: str, digits: int = 4) -> str:
+    if value is None:
+        return "-"
+    unit, factor = _DISPLAY[units][kind]
+    return f"{float(value) / factor:.{digits}g}"  # type: ignore[arg-type]
+
+
+def _unit(kind: str, units: str) -> str:
+    return _DISPLAY[units][kind][0]
+
+
+def match_table(result, units: str = "si", top: int | None = None, show_rejected: bool = False,
+                ballast: bool = False) -> Table:
+    """The ranking: passing motors first; failing ones show short reason codes (details below the table)."""
+    c_all = result.candidates
+    shown = [c for c in c_all if c["fits"] or show_rejected]
+    if top is not None:
+        shown = shown[:top]
+    target = result.conditions.get("target_m")
+    title = f"{result.airframe['name']}: {sum(c['passes'] for c in c_all)} of {len(c_all)} motors pass"
+    if target:
+        title += f", target {display(target, 'length', units)}"
+    table = Table(title=escape(title), header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False, collapse_padding=True)
+    table.add_column("#", justify="right", no_wrap=True)
+    table.add_column("motor", no_wrap=True)
+    table.add_column(f"apogee {_unit('length', units)}", justify="right", no_wrap=True)
+    table.add_column(f"rail {_unit('speed', units)}", justify="right", no_wrap=True)
+    table.add_column("T/W", justify="right", no_wrap=True)
+    table.add_column("delay s", justify="right", no_wrap=True)
+    table.add_column(f"eject {_unit('speed', units)}", justify="right", no_wrap=True)
+    if ballast:
+        table.add_column(f"+mass {_unit('mass', units)}", justify="right", no_wrap=True)
+    table.add_column("result", overflow="fold", min_width=9)
+    for rank, c in enumerate(shown, 1):
+        if c["apogee_m"] is None:
+            cells = ["-"] * 5
+        else:
+            delay = "-" if c["chosen_delay_s"] is None else (
+                f"{c['chosen_delay_s']:g}{'d' if c['delay_adjusted'] else ''}/{c['optimal_delay_s']:.1f}")
+            cells = [_number(c["apogee_m"], "length", units), _number(c["rail_exit_speed_m_s"], "speed", units, 3),
+                     f"{c['liftoff_thrust_to_weight']:.1f}", delay, _number(c["ejection_speed_m_s"], "speed", units, 2)]
+        if ballast:
+            cells.append(_number(c.get("ballast_kg"), "mass", units, 3))
+        verdict = Text("pass", style="green") if c["passes"] else Text(", ".join(dict.fromkeys(c["reason_codes"])),
+                                                                        style="red")
+        table.add_row(str(rank), escape(c["designation"]), *cells, verdict)
+    return table
+
+
+def match_reasons(result, top: int | None = None, show_rejected: bool = False) -> Text:
+    """Why each shown candidate fails (and what ballast changes), one line per reason."""
+    shown = [c for c in result.candidates if c["fits"] or show_rejected]
+    if top is not None:
+        shown = shown[:top]
+    text = Text()
+    for rank, c in enumerate(shown, 1):
+        for reason in c["reasons"]:
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(reason + "\n", style="red")
+        if c.get("ballast_kg") is not None:
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(f"with {c['ballast_kg'] * 1e3:.0f} g of ballast: apogee {c['ballast_apogee_m']:.0f} m, rail exit "
+                        f"{c['ballast_rail_exit_speed_m_s']:.1f} m/s, T/W {c['ballast_liftoff_thrust_to_weight']:.1f}"
+                        + ("" if not c["ballast_reasons"] else " but " + "; ".join(c["ballast_reasons"])) + "\n",
+                        style="yellow" if c["ballast_reasons"] else "green")
+        elif c.get("ballast_reasons"):
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append("; ".join(c["ballast_reasons"]) + "\n", style="yellow")
+    return text
+
+
+def conditions_text(result) -> Text:
+    c = result.conditions
+    text = Text("Assumptions: ", style="bold")
+    text.append(f"{c['drag']}; {c['atmosphere']}; wind {c['wind']}; rail {c['rail']}; recovery {c['recovery']}. ")
+    text.append(f"Rules: rail exit >= {c['min_rail_exit_speed_m_s']:g} m/s, liftoff T/W >= "
+                f"{c['min_liftoff_thrust_to_weight']:g}, delay within {c['delay_slack_s']:g} s of optimal, ejection "
+                f"<= {c['max_ejection_speed_m_s']:g} m/s, descent <= {c['max_landing_speed_m_s']:g} m/s"
+                + (f", ceiling {c['ceiling_m']:g} m" if c.get("ceiling_m") else "")
+                + (f", classes up to {c['max_class']}" if c.get("max_class") else "") + ". ")
+    text.append("Delay column: chosen/optimal; 'd' = drilled (adjustable motor).", style="dim")
+    return text
