@@ -1,0 +1,109 @@
+"""Benchmark: ranking synthetic catalogs of 1,000 and 5,000 motors, in-process and from a cold process.
+
+Run by hand from the repository root:  python tests/benchmarks/bench_match.py
+
+Prints the in-process time to rank (fit filter, one batched flight, delays, reasons) from an open catalog,
+the wall-clock time of `motorlib match` in a fresh process for the 1,000-motor catalog and for the bundled
+sample catalog (median of several runs), and the heaviest imports of the CLI's match path
+(`python -X importtime`).
+"""
+
+from __future__ import annotations
+
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT))
+
+from motorlib.airframe import Airframe, Launch  # noqa: E402
+from motorlib.catalog import Catalog  # noqa: E402
+from motorlib.matching import MatchSettings, rank  # noqa: E402
+from tests.synthetic import synthetic_motors  # noqa: E402
+
+AIRFRAME_TOML = """name = "Benchmark rocket (synthetic)"
+[airframe]
+mass = "1.2 kg"
+diameter = "54 mm"
+drag_coefficient = 0.5
+mount_diameter = "29 mm"
+mount_length = "300 mm"
+[launch]
+rail_length = "2 m"
+rail_angle = "3 deg"
+wind_speed = "3 m/s"
+[recovery]
+device = "parachute"
+drag_coefficient = 0.8
+diameter = "0.9 m"
+"""
+
+
+def _median_wall(args: list[str], repeats: int = 5) -> float:
+    times = []
+    for _ in range(repeats):
+        start = time.perf_counter()
+        subprocess.run(args, check=True, capture_output=True)
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+def main() -> None:
+    motorlib_cli = [sys.executable, "-m", "motorlib"]
+    with tempfile.TemporaryDirectory() as tmp:
+        airframe_path = Path(tmp) / "rocket.toml"
+        airframe_path.write_text(AIRFRAME_TOML)
+        frame = Airframe("Benchmark rocket (synthetic)", 1.2, 0.054, 0.5, mount_diameter_m=0.029,
+                         mount_length_m=0.3, launch=Launch(rail_length_m=2.0, rail_angle_rad=0.052, wind_speed_m_s=3.0))
+        settings = MatchSettings(target_m=1000.0)
+        print(f"{'motors':>7} {'rank in-process (ms)':>22}")
+        for n in (1000, 5000):
+            root = Path(tmp) / f"cat{n}"
+            catalog = Catalog(root)
+            for motor in synthetic_motors(n, seed=n):
+                catalog.add(motor)
+            rows = catalog.rows()
+            times = []
+            for _ in range(7):
+                start = time.perf_counter()
+                result = rank(frame, rows, catalog.motor_pack, settings)
+                times.append(time.perf_counter() - start)
+            rows_s = statistics.median([_time(lambda: catalog.rows()) for _ in range(5)])
+            print(f"{n:>7} {1e3 * statistics.median(times):>22.1f}   (+ {1e3 * rows_s:.1f} ms to read the rows; "
+                  f"{len(result.passing)} pass)")
+            catalog.close()
+        cold_1000 = _median_wall(motorlib_cli + ["match", str(airframe_path), "--catalog", str(Path(tmp) / "cat1000"),
+                                                 "--target", "1000", "--top", "10"])
+        cold_bundled = _median_wall(motorlib_cli + ["match", str(ROOT / "sample_curves" / "airframes" / "quibble-41.toml"),
+                                                    "--catalog", str(ROOT / "sample_curves"), "--target", "400"])
+        print(f"cold `motorlib match`, 1,000-motor catalog: {cold_1000:.3f} s  (goal 0.6 s)")
+        print(f"cold `motorlib match`, bundled catalog:     {cold_bundled:.3f} s  (goal 0.5 s)")
+        trace = subprocess.run([sys.executable, "-X", "importtime", "-m", "motorlib", "match",
+                                str(ROOT / "sample_curves" / "airframes" / "quibble-41.toml"), "--catalog",
+                                str(ROOT / "sample_curves"), "--target", "400"], capture_output=True, text=True).stderr
+    tops = {}
+    for line in trace.splitlines():
+        if not line.startswith("import time:") or "|" not in line:
+            continue
+        _, cumulative, name = (part.strip() for part in line.split(":", 1)[1].split("|"))
+        if cumulative.isdigit() and not name.startswith(" "):
+            top = name.strip().split(".")[0]
+            tops[top] = max(tops.get(top, 0), int(cumulative))
+    print("heaviest imports on the match path (cumulative, ms):",
+          ", ".join(f"{k} {v / 1000:.0f}" for k, v in sorted(tops.items(), key=lambda kv: -kv[1])[:8]))
+    for heavy in ("pandas", "scipy", "matplotlib"):
+        print(f"  {heavy} imported: {heavy in tops}")
+
+
+def _time(fn) -> float:
+    start = time.perf_counter()
+    fn()
+    return time.perf_counter() - start
+
+
+if __name__ == "__main__":
+    main()
