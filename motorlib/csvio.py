@@ -19,13 +19,13 @@ import numpy as np
 
 from .curve import MotorRecord, Provenance
 from .errors import CsvFormatError, CurveDataError, Problem, QuantityError
-from .units import _canonical_unit, known_units, to_si
+from .units import STANDARD_GRAVITY_M_S2, _canonical_unit, known_units, to_si
 
 __all__ = ["CsvCurve", "CurveMetadata", "read_csv_curve", "record_from_csv"]
 
 DEFAULT_MAX_BYTES: Final = 64 * 1024 * 1024  # a long 10 kHz log is a few MB; refuse what cannot be a log
 _TIME_NAME = re.compile(r"^(t|time|zeit|temps|tiempo)(?![a-z])", re.IGNORECASE)
-_THRUST_NAME = re.compile(r"^(thrust|force|f|load|schub)(?![a-z])", re.IGNORECASE)
+_THRUST_NAME = re.compile(r"^(thrust|force|f|load|schub|weight|mass|counts|raw|adc)(?![a-z])", re.IGNORECASE)
 _UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|[_\s]([A-Za-z/·*.-]+))\s*$")
 
 
@@ -71,19 +71,48 @@ def _is_number(text: str) -> bool:
     return True
 
 
+def _load_unit(token: str) -> str | None:
+    """A thrust column's unit: a force unit, a mass unit as a load cell reports it (force = m·g0), or counts."""
+    force = _canonical_unit("force", token)
+    if force is not None:
+        return force
+    if token.lower() in ("counts", "count", "raw", "adc"):
+        return "counts"
+    mass = _canonical_unit("mass", token)
+    return f"mass:{mass}" if mass is not None else None
+
+
+def _unit_for(kind: str, token: str) -> str | None:
+    return _load_unit(token) if kind == "force" else _canonical_unit(kind, token)
+
+
 def _header_unit(name: str, kind: str, source: str, line: int) -> str | None:
     match = _UNIT_IN_NAME.search(name)
     if not match:
         return None
     token = next(g for g in match.groups() if g is not None).strip()
-    if not token or (match.group(3) and _canonical_unit(kind, token) is None and not match.group(1)):
+    if not token or (match.group(3) and _unit_for(kind, token) is None and not match.group(1)):
         # "time_stamp" or "thrust value": a trailing word, not a unit
         return None
-    unit = _canonical_unit(kind, token)
+    unit = _unit_for(kind, token)
     if unit is None:
+        extra = ", or a mass unit (kg, g) for a load cell, or counts" if kind == "force" else ""
         raise CsvFormatError(source, f"unknown {kind} unit {token!r} in header {name!r}; expected one of "
-                             f"{', '.join(known_units(kind))}", field=f"header {name!r}", line=line)
+                             f"{', '.join(known_units(kind))}{extra}", field=f"header {name!r}", line=line)
     return unit
+
+
+def _thrust_to_newtons(values: np.ndarray, unit: str, scale: float | None, offset: float) -> np.ndarray:
+    if unit == "counts":
+        if scale is None:
+            raise QuantityError("thrust unit", "the thrust column holds raw counts: give the calibration "
+                                "(scale in N per count, and the zero offset in counts)")
+        return (values - offset) * scale
+    if scale is not None:
+        raise QuantityError("scale", f"a calibration scale applies to raw counts, but the column is in {unit}")
+    if unit.startswith("mass:"):
+        return np.array([to_si(v, unit[5:], "mass") for v in values]) * STANDARD_GRAVITY_M_S2
+    return np.array([to_si(v, unit, "force") for v in values])
 
 
 def read_csv_curve(
@@ -91,6 +120,8 @@ def read_csv_curve(
     *,
     time_unit: str | None = None,
     thrust_unit: str | None = None,
+    scale: float | None = None,
+    offset: float = 0.0,
     max_bytes: int = DEFAULT_MAX_BYTES,
 ) -> CsvCurve:
     """Read the time and thrust columns of a CSV file, converted to s and N.
@@ -99,8 +130,11 @@ def read_csv_curve(
     ----------
     path : path-like
     time_unit, thrust_unit : str, optional
-        Units of the columns (``s``/``ms``; ``N``/``lbf``/``kgf``/``gf``...), when the
-        header does not give them or to confirm it.
+        Units of the columns (``s``/``ms``; ``N``/``lbf``/``kgf``/``gf``, or ``kg``/``g`` as a load
+        cell reports a mass, meaning force = m·g0, or ``counts``), when the header does not give
+        them or to confirm it.
+    scale, offset : float, optional
+        Calibration of a raw-count column: force [N] = (counts − offset) · scale.
 
     Raises
     ------
@@ -151,7 +185,7 @@ def read_csv_curve(
     for given, from_header, kind, default in ((time_unit, header_units[0], "time", "s"),
                                               (thrust_unit, header_units[1], "force", "N")):
         if given is not None:
-            canonical = _canonical_unit(kind, given)
+            canonical = _unit_for(kind, given)
             if canonical is None:
                 raise QuantityError(f"{kind} unit", f"unknown unit {given!r}; expected one of "
                                     f"{', '.join(known_units(kind))}")
@@ -159,6 +193,8 @@ def read_csv_curve(
                 raise CsvFormatError(source, f"the header gives {kind} in {from_header} but {canonical} was "
                                      "requested; remove one of them", field="header", line=header_line)
             units.append(canonical)
+        elif kind == "force" and scale is not None and from_header is None:
+            units.append("counts")
         else:
             units.append(from_header or default)
     if not rows:
@@ -184,7 +220,7 @@ def read_csv_curve(
         thrusts.append(values[1])
         lines.append(number)
     time_s = np.array([to_si(t, units[0], "time") for t in times])
-    thrust_n = np.array([to_si(f, units[1], "force") for f in thrusts])
+    thrust_n = _thrust_to_newtons(np.array(thrusts, dtype=float), units[1], scale, offset)
     return CsvCurve(time_s, thrust_n, tuple(lines), units[0], units[1], header)
 
 

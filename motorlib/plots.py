@@ -102,3 +102,27 @@ def match_plot(result, path: str | os.PathLike[str]) -> Path:
     out = _save(fig, path)
     plt.close(fig)
     return out
+
+
+def reduction_plot(reduction, title: str, path: str | os.PathLike[str], burn_threshold: float = 0.05) -> Path:
+    """Raw (tared), filtered and reduced thrust on one chart, with ignition, burnout and burn-time thresholds."""
+    plt = _figure()
+    fig, ax = plt.subplots(figsize=(9, 4.8))
+    ax.plot(reduction.raw_time_s, reduction.raw_thrust_n, color="0.7", linewidth=0.6, label="raw (tared)")
+    ax.plot(reduction.filtered_time_s, reduction.filtered_thrust_n, color="tab:blue", linewidth=1.0,
+            label="filtered" if reduction.cutoff_hz else "resampled (no filter)")
+    ax.plot(reduction.time_s, reduction.thrust_n, "o-", color="tab:red", markersize=3, linewidth=1.0,
+            label=f"reduced ({reduction.time_s.size} points)")
+    ax.axhline(reduction.threshold_n, color="tab:green", linestyle="--", linewidth=0.8, label="ignition/burnout threshold")
+    burn_level = burn_threshold * float(np.max(reduction.thrust_n))
+    ax.axhline(burn_level, color="tab:purple", linestyle=":", linewidth=0.8, label=f"burn-time threshold ({100 * burn_threshold:g} % of peak)")
+    ax.axvline(0.0, color="tab:green", linewidth=0.8)
+    ax.axvline(reduction.burnout_time_s - reduction.ignition_time_s, color="tab:green", linewidth=0.8)
+    ax.set_xlabel("time from ignition (s)")
+    ax.set_ylabel("thrust (N)")
+    ax.set_title(title)
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8)
+    out = _save(fig, path)
+    plt.close(fig)
+    return out
