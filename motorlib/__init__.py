@@ -1,4 +1,4 @@
-"""motorlib: thrust curves, impulse classes, an open curve format and checks for rocket motors.
+"""motorlib: thrust curves, checks, a local catalog, flight simulation and motor matching for rocketry.
 
 The public API is re-exported here; the command line lives in :mod:`motorlib.cli`
 and is never imported by this module.
@@ -8,6 +8,10 @@ from __future__ import annotations
 
 __version__ = "0.1.0"
 
+from .airframe import Airframe, Launch, Recovery
+from .airframe_file import load_airframe
+from .atmosphere import Site
+from .catalog import Catalog, CatalogFilter
 from .checks import CheckSettings, Finding, check_record, metrics
 from .classify import (
     CLASS_LETTERS,
@@ -22,22 +26,32 @@ from .csvio import CurveMetadata, read_csv_curve, record_from_csv
 from .curve import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
 from .curvefiles import CheckReport, check_file, load_curve_file
 from .errors import (
+    CatalogError,
     CsvFormatError,
     CurveDataError,
     CurveError,
     CurveSyntaxError,
     DesignationError,
     MotorlibError,
+    MotorNotFoundError,
     MotorlibWarning,
     QuantityError,
     SchemaValidationError,
     SimulationInputError,
 )
+from .flight import FlightResults, FlightSettings, MotorPack, simulate
+from .matching import MatchResult, MatchSettings, rank
+from .reduction import Reduction, ReductionSettings, reduce_log
+from .rules import LaunchRules
 from .units import parse_quantity
 from .xmlio import read_record, record_from_bytes, record_to_bytes, write_record
 
 __all__ = [
+    "Airframe",
     "CLASS_LETTERS",
+    "Catalog",
+    "CatalogError",
+    "CatalogFilter",
     "CheckReport",
     "CheckSettings",
     "CsvFormatError",
@@ -49,28 +63,44 @@ __all__ = [
     "Designation",
     "DesignationError",
     "Finding",
+    "FlightResults",
+    "FlightSettings",
     "ImpulseClass",
+    "Launch",
+    "LaunchRules",
+    "MatchResult",
+    "MatchSettings",
+    "MotorNotFoundError",
+    "MotorPack",
     "MotorRecord",
     "MotorlibError",
     "MotorlibWarning",
     "Provenance",
     "QuantityError",
+    "Recovery",
+    "Reduction",
+    "ReductionSettings",
     "SchemaValidationError",
     "SimulationInputError",
+    "Site",
     "__version__",
     "check_file",
     "check_record",
     "class_bounds_ns",
     "format_designation",
     "impulse_class_for",
+    "load_airframe",
     "load_curve_file",
     "metrics",
     "parse_designation",
     "parse_quantity",
+    "rank",
     "read_csv_curve",
     "read_record",
     "record_from_bytes",
     "record_from_csv",
     "record_to_bytes",
+    "reduce_log",
+    "simulate",
     "write_record",
 ]

@@ -8,7 +8,9 @@ import sys
 
 import pytest
 
-NUMERIC_MODULES = ["motorlib.units", "motorlib.classify", "motorlib.curve", "motorlib.checks", "motorlib.errors"]
+NUMERIC_MODULES = ["motorlib.units", "motorlib.classify", "motorlib.curve", "motorlib.checks", "motorlib.errors",
+                   "motorlib.atmosphere", "motorlib.airframe", "motorlib.flight", "motorlib.recovery", "motorlib.rules",
+                   "motorlib.matching", "motorlib.reduction"]
 HEAVY = ["lxml", "pandas", "click", "rich", "scipy", "matplotlib"]
 
 
@@ -47,3 +49,18 @@ def test_the_probe_can_see_a_heavy_import() -> None:
 def test_cli_start_up_imports_no_pandas_or_scipy() -> None:
     loaded = {name.split(".")[0] for name in _modules_after_import("import motorlib.cli")}
     assert "pandas" not in loaded and "scipy" not in loaded and "matplotlib" not in loaded
+
+
+def test_match_path_imports_no_pandas_scipy_or_matplotlib() -> None:
+    # The ranking path of `motorlib match` (catalog open, rows, pack, batched flight, reasons).
+    statement = (
+        "from motorlib.catalog import Catalog\n"
+        "from motorlib.airframe_file import load_airframe\n"
+        "from motorlib.matching import MatchSettings, rank\n"
+        "from motorlib.curvefiles import sample_catalog_dir\n"
+        "c = Catalog(sample_catalog_dir(), read_only=True)\n"
+        "rank(load_airframe(sample_catalog_dir() / 'airframes' / 'quibble-41.toml'), c.rows(), c.motor_pack,"
+        " MatchSettings(target_m=400.0))\n"
+    )
+    loaded = {name.split(".")[0] for name in _modules_after_import(statement)}
+    assert not loaded & {"pandas", "scipy", "matplotlib"}
