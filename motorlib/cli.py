@@ -979,12 +979,8 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
             f"noise {first.noise_n:.3g} N, {first.sample_rate_hz:.4g} Hz, "
             + (f"low-pass {first.cutoff_hz:g} Hz" if first.cutoff_hz else "no filter")
             + f", events at {first.threshold_n:.3g} N." + (f" Mean of {len(reductions)} firings." if combine else ""))
-    provenance = replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip())
-    record = MotorRecord(
-        designation=meta.designation or Path(logs[0]).stem, maker=meta.maker, time_s=time_s, thrust_n=thrust_n,
-        diameter_m=meta.diameter_m, length_m=meta.length_m, total_mass_kg=meta.total_mass_kg,
-        propellant_mass_kg=meta.propellant_mass_kg, delays_s=meta.delays_s, delay_adjustable=meta.delay_adjustable,
-        provenance=provenance)
+    meta = replace(meta, provenance=replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip()))
+    record = meta.record(time_s, thrust_n, default_designation=Path(logs[0]).stem)
     log_findings = [f for _, r in reductions for f in r.findings]
     findings = log_findings + check_record(record)
     report = CheckReport(output or logs[0], True, record, tuple(findings), metrics(record))

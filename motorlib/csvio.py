@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import os
 import re
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from typing import Final
 
 import numpy as np
@@ -45,6 +45,15 @@ class CurveMetadata:
     delays_s: tuple[float, ...] = ()
     delay_adjustable: bool = False
     provenance: Provenance = field(default_factory=Provenance)
+
+    def record(self, time_s: np.ndarray, thrust_n: np.ndarray, *, default_designation: str = "") -> MotorRecord:
+        """A :class:`MotorRecord` of these samples with this metadata (raises CurveDataError like it)."""
+        return MotorRecord(
+            designation=self.designation or default_designation, maker=self.maker, time_s=time_s, thrust_n=thrust_n,
+            diameter_m=self.diameter_m, length_m=self.length_m, total_mass_kg=self.total_mass_kg,
+            propellant_mass_kg=self.propellant_mass_kg, delays_s=self.delays_s,
+            delay_adjustable=self.delay_adjustable, provenance=self.provenance,
+        )
 
 
 @dataclass(frozen=True)
@@ -242,15 +251,9 @@ def record_from_csv(
     """
     meta = metadata or CurveMetadata()
     curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit)
-    if not meta.designation:
-        meta = replace(meta, designation=os.path.splitext(os.path.basename(path))[0])
     try:
-        return MotorRecord(
-            designation=meta.designation, maker=meta.maker, time_s=curve.time_s, thrust_n=curve.thrust_n,
-            diameter_m=meta.diameter_m, length_m=meta.length_m, total_mass_kg=meta.total_mass_kg,
-            propellant_mass_kg=meta.propellant_mass_kg, delays_s=meta.delays_s,
-            delay_adjustable=meta.delay_adjustable, provenance=meta.provenance,
-        )
+        return meta.record(curve.time_s, curve.thrust_n,
+                           default_designation=os.path.splitext(os.path.basename(path))[0])
     except CurveDataError as exc:
         located = [Problem(p.code, p.field, p.message, p.index,
                            curve.lines[p.index] if p.index is not None else p.line) for p in exc.problems]
