@@ -6,6 +6,7 @@ Layout::
     <root>/tags.json                                  tag name -> motor ids (the truth for tags)
     <root>/.motorlib/index.sqlite                     metadata, metrics, findings and samples (float64 blobs)
     <root>/.motorlib/lock                             writers hold an exclusive lock on it
+    <root>/READ_ONLY                                  optional marker: open read-only, index in memory
 
 The index is rebuilt or refreshed whenever it is missing, corrupt or stale:
 opening compares every file's size and modification time with the index and
@@ -45,6 +46,7 @@ from .xmlio import record_from_bytes, record_to_bytes
 __all__ = ["AddResult", "Catalog", "CatalogFilter", "motor_id_for", "slug"]
 
 SCHEMA_VERSION = "1"
+READ_ONLY_MARKER = "READ_ONLY"  # a file of this name makes a catalog folder read-only (the bundled samples)
 _INDEX_DIR = ".motorlib"
 _COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
             "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
@@ -131,8 +133,9 @@ class Catalog:
     root : path-like
         The catalog folder; created when ``create`` and it does not exist.
     read_only : bool
-        Never write inside ``root``: the index is built in memory (used for
-        the bundled sample curves).
+        Never write inside ``root``: the index is built in memory. A folder
+        holding a ``READ_ONLY`` file is always opened this way (the bundled
+        sample curves are).
     settings : CheckSettings, optional
         The rules used for findings stored in the index.
 
@@ -147,7 +150,7 @@ class Catalog:
     def __init__(self, root: str | os.PathLike[str], *, read_only: bool = False, create: bool = True,
                  settings: CheckSettings | None = None) -> None:
         self.root = Path(root)
-        self.read_only = read_only
+        self.read_only = read_only or (self.root / READ_ONLY_MARKER).is_file()
         self.settings = settings or CheckSettings()
         self.notices: list[str] = []
         self.problems: list[tuple[str, str]] = []

@@ -245,9 +245,10 @@ def _caution(console: Any) -> None:
 @main.command()
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @click.option("--motor", "motor_ref", required=True,
-              help="A curve file (.xml or .csv), or a file name or designation in --catalog (e.g. F29-8).")
+              help="A curve file (.xml or .csv), or a motor id, handle or designation in the catalog (e.g. F29-8).")
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
-              help="Folder of curve files to find --motor in (default: the bundled sample curves).")
+              help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
+                   "else the bundled sample curves).")
 @click.option("--delay", "delay_s", type=float, help="Ejection delay to use in seconds (default: the listed delay "
                                                       "closest to the optimal one).")
 @click.option("--ballast", "ballast_kg", type=_Quantity("mass", "g"), default=None,
@@ -273,13 +274,18 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     """
     import numpy as np
 
+    from pathlib import Path
+
     from .airframe_file import load_airframe
-    from .curvefiles import find_motor
+    from .curvefiles import load_curve_file
     from .flight import simulate
     from .rules import flight_warnings
 
     frame = load_airframe(airframe_file)
-    motor = find_motor(motor_ref, catalog_dir)
+    if Path(motor_ref).is_file():
+        motor = load_curve_file(motor_ref)
+    else:
+        motor = _open_catalog(_catalog_or_samples(catalog_dir)).get(motor_ref)
     wanted = None if delay_s is None else np.array([delay_s])
     if delay_s is not None and motor.delays_s and not motor.delay_adjustable and delay_s not in motor.delays_s:
         raise click.UsageError(f"--delay {delay_s:g}: {motor.designation} offers {', '.join(f'{d:g}' for d in motor.delays_s)} s")
@@ -429,15 +435,13 @@ def _open_catalog(folder: str | None) -> Any:
     from pathlib import Path
 
     from .catalog import Catalog
-    from .curvefiles import sample_catalog_dir
 
     path = Path(folder or default_catalog_dir())
-    bundled = path.exists() and path.resolve() == sample_catalog_dir().resolve()
-    read_only = bundled or (path.exists() and not os.access(path, os.W_OK))
+    read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker
     catalog = Catalog(path, read_only=read_only)
     err = _err_console()
     for notice in catalog.notices:
-        if not read_only:
+        if not catalog.read_only:
             err.print(f"[dim]note: {notice}[/dim]")
     for where, problem in catalog.problems:
         err.print(f"[yellow]skipped[/yellow] {where}: {problem}", markup=True, highlight=False)
@@ -867,14 +871,18 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
       motorlib match sample_curves/airframes/quibble-41.toml --target 400 --ceiling 600
       motorlib match rocket.toml --target 800ft --max-class G --tag in-stock --ballast --units imperial
     """
+    _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)
+
+
+def _catalog_or_samples(catalog_dir: str | None) -> str:
+    """The catalog asked for, else the user catalog when it exists, else the bundled sample curves."""
     import os
 
     from .curvefiles import sample_catalog_dir
 
-    folder = catalog_dir
-    if folder is None:
-        folder = default_catalog_dir() if os.path.isdir(default_catalog_dir()) else str(sample_catalog_dir())
-    _run_match(airframe_file, _open_catalog(folder), opts)
+    if catalog_dir is not None:
+        return catalog_dir
+    return default_catalog_dir() if os.path.isdir(default_catalog_dir()) else str(sample_catalog_dir())
 
 
 @main.command()

@@ -17,7 +17,7 @@ from .curve import MotorRecord
 from .errors import CurveDataError, CurveError, MotorlibError
 from .xmlio import read_record
 
-__all__ = ["CURVE_SUFFIXES", "CheckReport", "check_file", "find_curve_files", "find_motor", "load_curve_file",
+__all__ = ["CURVE_SUFFIXES", "CheckReport", "check_file", "find_curve_files", "load_curve_file",
            "sample_catalog_dir"]
 
 CURVE_SUFFIXES: Final = (".xml", ".csv")
@@ -62,36 +62,6 @@ def sample_catalog_dir() -> Path:
     except ModuleNotFoundError:
         pass
     return Path(__file__).resolve().parent.parent / "sample_curves"
-
-
-def find_motor(token: str, folder: str | os.PathLike[str] | None = None) -> MotorRecord:
-    """A motor by file path, or by file name or designation among the curves of ``folder``.
-
-    Raises
-    ------
-    CurveError
-        When nothing matches or several curves do (the message lists them).
-    """
-    if Path(token).is_file():
-        return load_curve_file(token)
-    where = Path(folder) if folder is not None else sample_catalog_dir()
-    wanted = token.strip().lower()
-    matches = []
-    for path in sorted(where.rglob("*.xml")):
-        if path.stem.lower() == wanted:
-            return read_record(path)
-        try:
-            record = read_record(path)
-        except (MotorlibError, OSError):
-            continue
-        if record.designation.lower() == wanted or record.computed_designation().lower() == wanted:
-            matches.append((path, record))
-    if len(matches) == 1:
-        return matches[0][1]
-    if not matches:
-        raise CurveError(token, f"no curve file of that name and no motor with that designation in {where}")
-    names = ", ".join(p.name for p, _ in matches)
-    raise CurveError(token, f"several motors match in {where}: {names}; give the file name")
 
 
 @dataclass(frozen=True)

@@ -152,7 +152,8 @@ def test_tags_round_trip_and_survive_reindex(tmp_catalog: Catalog) -> None:
 
 
 def test_read_only_catalog_of_the_bundled_samples() -> None:
-    catalog = Catalog(SAMPLE_DIR, read_only=True)
+    catalog = Catalog(SAMPLE_DIR)  # the READ_ONLY marker file makes it read-only without asking
+    assert catalog.read_only
     assert len(catalog) == 27 and not (SAMPLE_DIR / ".motorlib").exists()
     with pytest.raises(CatalogError, match="read-only"):
         catalog.tag(["G59-10"], "x")
