@@ -52,16 +52,12 @@ def find_curve_files(paths: list[str]) -> list[Path]:
 
 
 def sample_catalog_dir() -> Path:
-    """The bundled demo curves: installed (``motorlib.sample_curves``) or in a source checkout."""
-    from importlib import resources
-
-    try:
-        folder = Path(str(resources.files("motorlib.sample_curves")))
-        if any(folder.glob("*.xml")):
-            return folder
-    except ModuleNotFoundError:
-        pass
-    return Path(__file__).resolve().parent.parent / "sample_curves"
+    """The bundled demo curves: installed beside this module, or at the top of a source checkout."""
+    here = Path(__file__).resolve().parent
+    for candidate in (here / "sample_curves", here.parent / "sample_curves"):
+        if any(candidate.glob("*.xml")):
+            return candidate
+    raise FileNotFoundError("motorlib is installed without its sample curves; reinstall the package")
 
 
 @dataclass(frozen=True)

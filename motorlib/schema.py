@@ -6,7 +6,6 @@ The only module that knows where the schema files live.
 from __future__ import annotations
 
 import functools
-from importlib import resources
 from pathlib import Path
 from typing import Final
 
@@ -21,16 +20,11 @@ MOTOR_RECORD_XSD: Final = "motor-record-1.xsd"
 
 
 def schema_path(name: str = MOTOR_RECORD_XSD) -> Path:
-    """Path of a schema file, installed (``motorlib.data_schema``) or in a source checkout."""
-    try:
-        candidate = Path(str(resources.files("motorlib.data_schema") / name))
+    """Path of a schema file: installed beside this module (``motorlib/data_schema``) or in a source checkout."""
+    here = Path(__file__).resolve().parent
+    for candidate in (here / "data_schema" / name, here.parent / "data_schema" / name):
         if candidate.is_file():
             return candidate
-    except ModuleNotFoundError:
-        pass
-    candidate = Path(__file__).resolve().parent.parent / "data_schema" / name
-    if candidate.is_file():
-        return candidate
     raise FileNotFoundError(f"motorlib is installed without its schema file {name}; reinstall the package")
 
 
