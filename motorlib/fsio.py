@@ -27,6 +27,8 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
     folder = target.parent if str(target.parent) else Path(".")
     fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
     try:
+        # mkstemp creates 0600; give the file the mode a plain open() would (or keep the old file's mode)
+        os.fchmod(fd, _existing_mode(target))
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
             handle.flush()
@@ -45,6 +47,15 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
         raise
     _fsync_folder(folder)
     return target
+
+
+def _existing_mode(target: Path) -> int:
+    try:
+        return os.stat(target).st_mode & 0o777
+    except FileNotFoundError:
+        mask = os.umask(0)
+        os.umask(mask)
+        return 0o666 & ~mask
 
 
 def _fsync_folder(folder: Path) -> None:

@@ -136,3 +136,13 @@ def test_refuses_to_overwrite_when_asked(demo_record: MotorRecord, tmp_path: Pat
     path = write_record(demo_record, tmp_path / "d12.xml")
     with pytest.raises(FileExistsError):
         write_record(demo_record, path, overwrite=False)
+
+
+def test_written_files_get_ordinary_permissions(demo_record: MotorRecord, tmp_path: Path) -> None:
+    mask = os.umask(0)
+    os.umask(mask)
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    assert os.stat(path).st_mode & 0o777 == 0o666 & ~mask  # not mkstemp's 0600
+    os.chmod(path, 0o640)
+    write_record(demo_record, path)
+    assert os.stat(path).st_mode & 0o777 == 0o640  # an overwrite keeps the file's mode
