@@ -15,6 +15,7 @@ RECORD_INVARIANTS = {
     "one_sample.xml": "too-few-samples", "zero_thrust.xml": "no-thrust", "bad_sample_row.xml": "sample-row",
     "propellant_over_total.xml": "propellant-exceeds-total-mass", "negative_diameter.xml": "hardware-not-positive",
     "negative_delay.xml": "delay-not-positive", "repeated_delay.xml": "delay-repeated",
+    "nan_time.xml": "time-not-finite", "blank_designation.xml": "designation-missing",
 }
 CHECK_FINDINGS = {
     "class_mismatch.xml": ("error", "class-mismatch"),

@@ -109,7 +109,8 @@ def test_import_of_broken_csv_names_the_line(tmp_path: Path) -> None:
 def test_every_command_has_help_with_an_example() -> None:
     for command in ([], ["check"], ["import"], ["fly"], ["descent"], ["catalog"], ["catalog", "add"],
                     ["catalog", "list"], ["catalog", "show"], ["catalog", "tag"], ["catalog", "untag"],
-                    ["catalog", "remove"], ["catalog", "export"], ["catalog", "verify"], ["catalog", "reindex"]):
+                    ["catalog", "remove"], ["catalog", "export"], ["catalog", "verify"], ["catalog", "reindex"],
+                    ["match"], ["demo"], ["reduce"]):
         code, out = run(*command, "--help")
         assert code == 0 and "Example" in out
 

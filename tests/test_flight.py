@@ -225,3 +225,22 @@ def test_pack_matches_records() -> None:
     np.testing.assert_allclose(pack.total_impulse_ns, [m.total_impulse_ns for m in motors], rtol=1e-12)
     burnouts = [m.time_s[-1] for m in motors]
     np.testing.assert_allclose(pack.burnout_s, burnouts)
+
+
+def test_descent_from_apogee_follows_the_closed_form_fall() -> None:
+    # Vertical flight, no wind, uniform air, constant g: after deployment at apogee the rocket falls from rest
+    # under quadratic drag, y(t) = (v_t²/g) ln cosh(g t / v_t) (check-values.md 6.1), so it lands after
+    # (v_t/g) arccosh(exp(g h / v_t²)) at v_t tanh(g t / v_t).
+    from motorlib.recovery import fall_speed_m_s, fall_time_s
+
+    chute = Recovery(device="parachute", deploy="apogee", drag_area_m2=0.25)
+    frame = Airframe("drop", 0.4, 0.05, 0.5, launch=Launch(rail_length_m=1.5), recovery=chute)
+    motor = constant_motor(40.0, 1.5, 0.08, delays=())
+    results = simulate(frame, [motor], UNIFORM)
+    rho0 = 1.2249991558877125
+    mass = 0.4 + 0.08 - 1e-9
+    v_t = math.sqrt(2 * mass * G / (rho0 * (0.25 + 0.5 * frame.reference_area_m2)))
+    expected = float(fall_time_s(results.apogee_m[0], v_t))
+    assert results.descent_time_s[0] == pytest.approx(expected, rel=1e-4)
+    assert results.landing_descent_rate_m_s[0] == pytest.approx(float(fall_speed_m_s(expected, v_t)), rel=1e-4)
+    assert abs(results.drift_m[0]) < 1e-9
