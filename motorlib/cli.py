@@ -947,16 +947,14 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
       motorlib reduce f1.csv f2.csv f3.csv --combine --designation F30-6 -o F30-6-mean.xml
     """
     from dataclasses import replace
-
-    from .checks import check_record, metrics
-    from .csvio import read_csv_curve
-    from .curve import MotorRecord
-    from .curvefiles import CheckReport
-    from .errors import CurveDataError
     from pathlib import Path
 
     import numpy as np
 
+    from .checks import check_record, metrics
+    from .csvio import read_csv_curve
+    from .curvefiles import CheckReport
+    from .errors import CurveDataError
     from .reduction import ReductionSettings, combine_reductions, reduce_log
 
     if len(logs) > 1 and not combine and output:
@@ -995,9 +993,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     written = []
     if output:
         if not report.ok and not force:
-            raise click.ClickException(f"{output}: the reduced curve has errors (see above); nothing was written "
-                                       "(use --force to write it anyway)" if as_json else
-                                       _findings_message(report))
+            raise click.ClickException(_findings_message(report))
         from .xmlio import write_record
 
         try:

@@ -211,6 +211,14 @@ class FlightResults:
     ``ejection_delay_s`` (NaN where a motor has fewer delays, or where the
     rocket lands before that delay). ``landing_*`` and ``descent_*`` are NaN
     when the airframe has no recovery device.
+
+    Definitions: ``liftoff_thrust_to_weight`` is the highest thrust in the first
+    0.1 s of the curve over the liftoff weight (m·g0); ``average_thrust_to_weight``
+    the total impulse over the time from the first sample to burnout, over the same
+    weight; ``max_acceleration_m_s2`` the largest magnitude of the trajectory's
+    (kinematic) acceleration; maxima are sampled at step ends, and every curve
+    sample is a step end. ``burnout_time_s`` is where the thrust curve reaches
+    zero for good, and ejection delays count from it.
     """
 
     status: np.ndarray

@@ -3,14 +3,11 @@
 from __future__ import annotations
 
 import json
-import math
 from pathlib import Path
 
-import numpy as np
 import pytest
 from click.testing import CliRunner
 
-from motorlib import read_record
 from motorlib.airframe_file import load_airframe
 from motorlib.catalog import Catalog
 from motorlib.cli import main
