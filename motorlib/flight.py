@@ -688,6 +688,8 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     rail_exit_t = np.full(n_all, np.nan)
     rail_exit_v = np.full(n_all, np.nan)
     history: list[tuple[np.ndarray, ...]] = []
+    apogee_steps: list[tuple[np.ndarray, ...]] = []  # end states of the steps that hold an apogee
+    landing_steps: list[tuple[np.ndarray, ...]] = []
 
     def load_segment(mask: np.ndarray | None) -> None:
         """Coefficients of the current curve segment of the flights in ``mask`` (all when None)."""
@@ -779,19 +781,16 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         ax1, az1, mach1, q1 = f(t1, x1, z1, vx1, vz1)
         # ---- events inside the step, by cubic Hermite interpolation ----
         dt_step = t1 - t
+        # Apogee and landing are located after the loop, all at once (one vectorised root solve instead of
+        # one per step); here the step's end states are only recorded.
         crossing = (vz1 <= 0.0) & (vz > 0.0) & ~a["apogee_found"] & ~a["on_rail"]
         if crossing.any():
             c = crossing
-            hc = dt_step[c]
-            tau = _hermite_root(vz[c], az[c], vz1[c], az1[c], hc)
-            r = a["ref"][c]
-            apogee["t"][r] = t[c] + tau * hc
-            apogee["z"][r] = _hermite(z[c], vz[c], z1[c], vz1[c], hc, tau)
-            apogee["x"][r] = _hermite(x[c], vx[c], x1[c], vx1[c], hc, tau)
-            apogee["vx"][r] = _hermite(vx[c], ax[c], vx1[c], ax1[c], hc, tau)
+            apogee_steps.append(tuple(v[c] for v in (a["ref"], t, dt_step, x, z, vx, vz, ax, az,
+                                                       x1, z1, vx1, vz1, ax1, az1)))
             a["apogee_found"] = a["apogee_found"] | crossing
             if not descent:  # after apogee only the ejection states are wanted: 1/post_apogee_steps of the wait
-                wait = a["stop_after"][c] - apogee["t"][r]
+                wait = a["stop_after"][c] - t1[c]
                 a["coast_h"][c] = np.maximum(a["coast_h"][c], np.where(np.isfinite(wait), wait, 0.0) / s.post_apogee_steps)
         due = a["next_q"] <= t1
         if due.any():
@@ -823,14 +822,8 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         landed = (z1 <= 0.0) & (z > 0.0) & ~a["on_rail"]
         if landed.any():
             c = landed
-            hc = dt_step[c]
-            tau = _hermite_root(z[c], vz[c], z1[c], vz1[c], hc)
-            r = a["ref"][c]
-            landing["t"][r] = t[c] + tau * hc
-            landing["x"][r] = _hermite(x[c], vx[c], x1[c], vx1[c], hc, tau)
-            vz_land = _hermite(vz[c], az[c], vz1[c], az1[c], hc, tau)
-            landing["speed"][r] = np.hypot(_hermite(vx[c], ax[c], vx1[c], ax1[c], hc, tau), vz_land)
-            landing["rate"][r] = -vz_land
+            landing_steps.append(tuple(v[c] for v in (a["ref"], t, dt_step, x, z, vx, vz, ax, az,
+                                                        x1, z1, vx1, vz1, ax1, az1)))
         # ---- running maxima, sampled at step ends (every curve sample is a step end) ----
         np.maximum(a["max_speed"], np.sqrt(vx1 * vx1 + vz1 * vz1), out=a["max_speed"])
         np.maximum(a["max_mach"], mach1, out=a["max_mach"])
@@ -857,6 +850,21 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
                 if isinstance(value, np.ndarray):
                     a[name] = value[keep]
             a["any_rail"] = bool(a["on_rail"].any())
+    if apogee_steps:
+        r, t0_, h_, x0, z0, vx0, vz0, ax0, az0, x1_, z1_, vx1_, vz1_, ax1_, az1_ = map(np.concatenate, zip(*apogee_steps))
+        tau = _hermite_root(vz0, az0, vz1_, az1_, h_)
+        apogee["t"][r] = t0_ + tau * h_
+        apogee["z"][r] = _hermite(z0, vz0, z1_, vz1_, h_, tau)
+        apogee["x"][r] = _hermite(x0, vx0, x1_, vx1_, h_, tau)
+        apogee["vx"][r] = _hermite(vx0, ax0, vx1_, ax1_, h_, tau)
+    if landing_steps:
+        r, t0_, h_, x0, z0, vx0, vz0, ax0, az0, x1_, z1_, vx1_, vz1_, ax1_, az1_ = map(np.concatenate, zip(*landing_steps))
+        tau = _hermite_root(z0, vz0, z1_, vz1_, h_)
+        landing["t"][r] = t0_ + tau * h_
+        landing["x"][r] = _hermite(x0, vx0, x1_, vx1_, h_, tau)
+        vz_land = _hermite(vz0, az0, vz1_, az1_, h_, tau)
+        landing["speed"][r] = np.hypot(_hermite(vx0, ax0, vx1_, ax1_, h_, tau), vz_land)
+        landing["rate"][r] = -vz_land
     if descent:
         out["landing_time_s"][idx] = landing["t"]
         out["landing_speed_m_s"][idx] = landing["speed"]
