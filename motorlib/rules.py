@@ -20,7 +20,7 @@ class LaunchRules:
     min_rail_exit_speed_m_s : float
         15 m/s (about 50 ft/s): common practice, no published source (check-values.md 5).
     rail_exit_wind_ratio : float
-        Rail exit speed at least 4 x wind speed: NAR report "Launching Safely in the
+        Rail exit speed at least 4 x wind speed: the report "Launching Safely in the
         21st Century" (2005), section 7.4.3, as quoted by a secondary source (C2).
     min_liftoff_thrust_to_weight : float
         5: common practice, no published source (NFPA 1127 section 4.9.1 is quoted as a 3:1 minimum, C2).
