@@ -115,8 +115,7 @@ class AddResult:
 
 def parse_class_range(text: str) -> tuple[str, str]:
     """``"D..G"`` or ``"D"`` -> (lowest, highest) class letters."""
-    parts = [p.strip().upper().replace("/", "/") for p in text.split("..")]
-    parts = [p if not p.startswith("1/") else p[:3] + "A" for p in parts]
+    parts = [p.strip().upper() for p in text.split("..")]
     if len(parts) == 1:
         parts = parts * 2
     if len(parts) != 2 or any(p not in CLASS_LETTERS for p in parts):

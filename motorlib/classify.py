@@ -136,14 +136,6 @@ class Designation:
     thrust_code: str = ""
     delay_code: str = ""
 
-    @property
-    def has_ejection_charge(self) -> bool:
-        """True when the label promises an ejection charge (neither plugged nor booster).
-
-        A label without any delay part (``C6``) is treated as having none declared.
-        """
-        return bool(self.delays_s)
-
 
 _NUM = re.compile(r"\d+(?:\.\d+)?")
 _LETTERS = re.compile(r"[A-Za-z]*")

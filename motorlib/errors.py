@@ -17,7 +17,7 @@ working. File errors carry the facts as attributes and build their text as
     +-- QuantityError (ValueError)       a quantity with a missing, unknown or wrong-kind unit
     +-- SimulationInputError (ValueError) an airframe, launch condition or setting we cannot fly
     +-- CatalogError                     a catalog that cannot be opened or changed as asked
-        +-- MotorNotFoundError (LookupError), DuplicateMotorError
+        +-- MotorNotFoundError (LookupError)     (a duplicate add is data: AddResult status "duplicate")
     MotorlibWarning (UserWarning)        suspicious but usable input; outside the error tree
 
 Only the standard library is imported here.
@@ -34,7 +34,6 @@ __all__ = [
     "CurveError",
     "CurveSyntaxError",
     "DesignationError",
-    "DuplicateMotorError",
     "MotorNotFoundError",
     "MotorlibError",
     "MotorlibWarning",
@@ -158,7 +157,3 @@ class CatalogError(MotorlibError):
 
 class MotorNotFoundError(CatalogError, LookupError):
     """No motor (or more than one) matches a reference."""
-
-
-class DuplicateMotorError(CatalogError):
-    """The motor is already in the catalog."""

@@ -24,7 +24,6 @@ __all__ = [
     "POUND_KG",
     "STANDARD_GRAVITY_M_S2",
     "UNITS",
-    "format_quantity",
     "parse_quantity",
     "to_si",
 ]
@@ -208,11 +207,3 @@ def _example(kind: str) -> str:
         "length": "'29 mm'", "mass": "'24 g'", "time": "'1.5 s'", "force": "'12 N'",
         "impulse": "'10 Ns'", "speed": "'3 m/s'", "angle": "'5 deg'", "temperature": "'15 degC'",
     }[kind]
-
-
-def format_quantity(value_si: float, unit: str, kind: str, digits: int = 4) -> str:
-    """Format an SI value in ``unit`` with ``digits`` significant digits, e.g. ``'29 mm'``."""
-    symbol = _canonical_unit(kind, unit)
-    if symbol is None:
-        raise ValueError(f"`unit` {unit!r} is not a {kind} unit")
-    return f"{value_si / UNITS[kind][symbol]:.{digits}g} {symbol}"

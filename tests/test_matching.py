@@ -197,3 +197,19 @@ def test_demo_runs_end_to_end(tmp_path: Path) -> None:
     assert out.exit_code == 0, out.output
     assert "pass" in out.output and "Caution" in out.output and plot.read_bytes()[:4] == b"\x89PNG"
     assert f"Wrote {plot}" in out.output.replace("\n", "")
+
+
+def test_plain_records_rank_like_the_catalog(sample_catalog: Catalog) -> None:
+    from motorlib.flight import MotorPack
+    from motorlib.matching import candidate_rows
+
+    frame = load_airframe(AIRFRAME)
+    rows = sample_catalog.rows()
+    records = [sample_catalog.get(r["motor_id"]) for r in rows]
+    settings = MatchSettings(target_m=400.0, allow_smaller_motors=True)
+    by_records = rank(frame, candidate_rows(records, [r["motor_id"] for r in rows]),
+                      lambda sub: MotorPack.from_records([records[[r["motor_id"] for r in rows].index(x["motor_id"])]
+                                                          for x in sub]), settings)
+    by_catalog = rank(frame, rows, sample_catalog.motor_pack, settings)
+    assert [c["motor_id"] for c in by_records.candidates] == [c["motor_id"] for c in by_catalog.candidates]
+    assert [c["apogee_m"] for c in by_records.candidates] == [c["apogee_m"] for c in by_catalog.candidates]
