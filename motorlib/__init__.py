@@ -1,19 +1,20 @@
 """motorlib: thrust curves, checks, a local catalog, flight simulation and motor matching for rocketry.
 
 The public API is re-exported here; the command line lives in :mod:`motorlib.cli`
-and is never imported by this module.
+and is never imported by this module.  Layout: ``motor/`` (one motor), ``flight/`` (physics), ``matching/``,
+``files/`` (formats), ``catalog/``, ``present/`` (tables, charts), ``cli/``; DEVELOPERS.md describes each module.
 """
 
 from __future__ import annotations
 
 __version__ = "0.1.0"
 
-from .airframe import Airframe, Launch, Recovery
-from .airframe_file import load_airframe
-from .atmosphere import Site
-from .catalog import Catalog, CatalogFilter
-from .checks import CheckSettings, Finding, check_record, metrics
-from .classify import (
+from .flight.airframe import Airframe, Launch, Recovery
+from .files.airframe_toml import load_airframe
+from .flight.atmosphere import Site
+from .catalog.store import Catalog, CatalogFilter
+from .motor.checks import CheckSettings, Finding, check_record, metrics
+from .motor.classes import (
     CLASS_LETTERS,
     Designation,
     ImpulseClass,
@@ -22,9 +23,9 @@ from .classify import (
     impulse_class_for,
     parse_designation,
 )
-from .csvio import CurveMetadata, read_csv_curve, record_from_csv
-from .curve import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
-from .curvefiles import CheckReport, check_file, load_curve_file
+from .files.motor_csv import CurveMetadata, read_csv_curve, record_from_csv
+from .motor.record import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
+from .files.curvefiles import CheckReport, check_file, load_curve_file
 from .errors import (
     CatalogError,
     CsvFormatError,
@@ -39,12 +40,12 @@ from .errors import (
     SchemaValidationError,
     SimulationInputError,
 )
-from .flight import FlightResults, FlightSettings, MotorPack, simulate
-from .matching import MatchResult, MatchSettings, rank
-from .reduction import Reduction, ReductionSettings, reduce_log
-from .rules import LaunchRules
+from .flight.integrate import FlightResults, FlightSettings, MotorPack, simulate
+from .matching.rank import MatchResult, MatchSettings, rank
+from .motor.reduction import Reduction, ReductionSettings, reduce_log
+from .flight.rules import LaunchRules
 from .units import parse_quantity
-from .xmlio import read_record, record_from_bytes, record_to_bytes, write_record
+from .files.motor_xml import read_record, record_from_bytes, record_to_bytes, write_record
 
 __all__ = [
     "Airframe",

@@ -17,8 +17,8 @@ from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 
 from motorlib import MotorRecord
-from motorlib.airframe import Airframe
-from motorlib.atmosphere import EARTH_RADIUS_M
+from motorlib.flight.airframe import Airframe
+from motorlib.flight.atmosphere import EARTH_RADIUS_M
 from motorlib.units import STANDARD_GRAVITY_M_S2 as G0
 
 

@@ -9,8 +9,8 @@ from __future__ import annotations
 import numpy as np
 
 from motorlib import MotorRecord
-from motorlib.airframe import Airframe, Launch
-from motorlib.atmosphere import Site
+from motorlib.flight.airframe import Airframe, Launch
+from motorlib.flight.atmosphere import Site
 from motorlib.units import STANDARD_GRAVITY_M_S2
 
 _SHAPES = {

@@ -8,9 +8,9 @@ import sys
 
 import pytest
 
-NUMERIC_MODULES = ["motorlib.units", "motorlib.classify", "motorlib.curve", "motorlib.checks", "motorlib.errors",
-                   "motorlib.atmosphere", "motorlib.airframe", "motorlib.flight", "motorlib.recovery", "motorlib.rules",
-                   "motorlib.matching", "motorlib.reduction"]
+NUMERIC_MODULES = ["motorlib.units", "motorlib.motor.classes", "motorlib.motor.record", "motorlib.motor.checks", "motorlib.errors",
+                   "motorlib.flight.atmosphere", "motorlib.flight.airframe", "motorlib.flight", "motorlib.flight.descent", "motorlib.flight.rules",
+                   "motorlib.matching", "motorlib.motor.reduction"]
 HEAVY = ["lxml", "pandas", "click", "rich", "scipy", "matplotlib"]
 
 
@@ -43,7 +43,7 @@ def test_numerics_stay_light(module: str) -> None:
 
 def test_the_probe_can_see_a_heavy_import() -> None:
     # Guard against a probe that can never fail: xmlio does import lxml.
-    assert "lxml" in _top_level_modules_of("motorlib.xmlio")
+    assert "lxml" in _top_level_modules_of("motorlib.files.motor_xml")
 
 
 def test_cli_start_up_imports_no_pandas_or_scipy() -> None:
@@ -55,9 +55,9 @@ def test_match_path_imports_no_pandas_scipy_or_matplotlib() -> None:
     # The ranking path of `motorlib match` (catalog open, rows, pack, batched flight, reasons).
     statement = (
         "from motorlib.catalog import Catalog\n"
-        "from motorlib.airframe_file import load_airframe\n"
+        "from motorlib.files.airframe_toml import load_airframe\n"
         "from motorlib.matching import MatchSettings, rank\n"
-        "from motorlib.curvefiles import sample_catalog_dir\n"
+        "from motorlib.files.curvefiles import sample_catalog_dir\n"
         "c = Catalog(sample_catalog_dir(), read_only=True)\n"
         "rank(load_airframe(sample_catalog_dir() / 'airframes' / 'quibble-41.toml'), c.rows(), c.motor_pack,"
         " MatchSettings(target_m=400.0))\n"

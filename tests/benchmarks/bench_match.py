@@ -20,7 +20,7 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from motorlib.airframe import Airframe, Launch  # noqa: E402
+from motorlib.flight.airframe import Airframe, Launch  # noqa: E402
 from motorlib.catalog import Catalog  # noqa: E402
 from motorlib.matching import MatchSettings, rank  # noqa: E402
 from tests.synthetic import synthetic_motors  # noqa: E402

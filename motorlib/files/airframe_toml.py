@@ -1,0 +1,177 @@
+"""Reading airframe files (TOML, documented in ``data_schema/AIRFRAME.md``).
+
+Quantities are a plain SI number or a string with a unit (``"310 g"``,
+``"1.64 in"``, ``"800 ft"``, ``"15 degC"``). Unknown keys are refused so that a
+typo never silently falls back to a default. Errors name the file and the key
+and say what kind of quantity was expected.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import tomllib
+from typing import Any
+
+from ..flight.airframe import Airframe, Launch, Recovery
+from ..flight.atmosphere import Site
+from ..errors import QuantityError, SimulationInputError
+from ..units import parse_quantity
+
+__all__ = ["airframe_from_dict", "load_airframe"]
+
+_SECTIONS = {
+    "": {"name", "airframe", "launch", "recovery"},
+    "airframe": {"mass", "diameter", "drag_coefficient", "drag_table", "mount_diameter", "mount_length"},
+    "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
+    "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
+}
+_PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": 3386.389}
+
+
+def load_airframe(path: str | os.PathLike[str]) -> Airframe:
+    """Read an airframe TOML file.
+
+    Raises
+    ------
+    SimulationInputError
+        Naming the file and the key: a missing key, a wrong unit, a value out of range.
+    """
+    source = str(path)
+    try:
+        with open(path, "rb") as handle:
+            data = tomllib.load(handle)
+    except tomllib.TOMLDecodeError as exc:
+        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
+    except OSError as exc:
+        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
+    return airframe_from_dict(data, source)
+
+
+def _quantity(source: str, table: dict[str, Any], section: str, key: str, kind: str, *,
+              required: bool = False, default: float | None = None) -> float | None:
+    name = f"{section}.{key}"
+    if key not in table:
+        if required:
+            raise SimulationInputError(source, name, f"missing; expected a {kind}")
+        return default
+    value = table[key]
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        raise SimulationInputError(source, name, f"expected a {kind}, got {value!r}")
+    try:
+        return parse_quantity(value, kind, field=name)
+    except QuantityError as exc:
+        raise SimulationInputError(source, name, exc.problem) from None
+
+
+def _pressure(source: str, table: dict[str, Any]) -> float | None:
+    if "pressure" not in table:
+        return None
+    value = table["pressure"]
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        return float(value)
+    text = str(value).strip()
+    for unit, factor in sorted(_PRESSURE_UNITS.items(), key=lambda kv: -len(kv[0])):
+        if text.endswith(unit):
+            try:
+                return float(text[: -len(unit)]) * factor
+            except ValueError:
+                break
+    raise SimulationInputError(source, "launch.pressure", f"expected a pressure such as '1013 hPa' or '101325 Pa', got {value!r}")
+
+
+def _check_keys(source: str, data: dict[str, Any], section: str) -> None:
+    unknown = set(data) - _SECTIONS[section]
+    if unknown:
+        where = f"{section}." if section else ""
+        raise SimulationInputError(source, where + sorted(unknown)[0],
+                                   f"unknown key; expected one of {', '.join(sorted(_SECTIONS[section]))}")
+
+
+def _section(source: str, data: dict[str, Any], name: str, required: bool) -> dict[str, Any] | None:
+    if name not in data:
+        if required:
+            raise SimulationInputError(source, f"[{name}]", "missing section")
+        return None
+    table = data[name]
+    if not isinstance(table, dict):
+        raise SimulationInputError(source, f"[{name}]", "expected a table")
+    _check_keys(source, table, name)
+    return table
+
+
+def airframe_from_dict(data: dict[str, Any], source: str = "airframe") -> Airframe:
+    """Build an :class:`Airframe` from parsed TOML data (see :func:`load_airframe`)."""
+    try:
+        return _airframe_from_dict(data, source)
+    except SimulationInputError as exc:
+        if exc.source == source:
+            raise
+        raise SimulationInputError(source, exc.field, exc.problem) from None
+
+
+def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
+    _check_keys(source, data, "")
+    body = _section(source, data, "airframe", True)
+    launch_t = _section(source, data, "launch", False) or {}
+    recovery_t = _section(source, data, "recovery", False)
+    name = str(data.get("name", os.path.splitext(os.path.basename(source))[0]))
+    drag_table: tuple[tuple[float, float], ...] = ()
+    if "drag_table" in body:
+        raw = body["drag_table"]
+        if not isinstance(raw, list) or not raw or not all(isinstance(r, list) and len(r) == 2 for r in raw):
+            raise SimulationInputError(source, "airframe.drag_table", "expected a list of [mach, cd] pairs")
+        try:
+            drag_table = tuple((float(m), float(c)) for m, c in raw)
+        except (TypeError, ValueError):
+            raise SimulationInputError(source, "airframe.drag_table", "every [mach, cd] entry must be two numbers") from None
+    elif "drag_coefficient" not in body:
+        raise SimulationInputError(source, "airframe.drag_coefficient", "missing; give drag_coefficient or drag_table")
+    cd = body.get("drag_coefficient", 0.5)
+    if isinstance(cd, bool) or not isinstance(cd, (int, float)):
+        raise SimulationInputError(source, "airframe.drag_coefficient", f"expected a number, got {cd!r}")
+    try:
+        site = Site(
+            elevation_m=_quantity(source, launch_t, "launch", "elevation", "length", default=0.0),
+            temperature_k=_quantity(source, launch_t, "launch", "temperature", "temperature"),
+            pressure_pa=_pressure(source, launch_t),
+        )
+    except ValueError as exc:
+        raise SimulationInputError(source, "launch", str(exc).replace("`", "")) from None
+    launch = Launch(
+        rail_length_m=_quantity(source, launch_t, "launch", "rail_length", "length", default=1.0),
+        rail_angle_rad=_quantity(source, launch_t, "launch", "rail_angle", "angle", default=0.0),
+        site=site,
+        wind_speed_m_s=_quantity(source, launch_t, "launch", "wind_speed", "speed", default=0.0),
+    )
+    recovery = None
+    if recovery_t is not None:
+        device = str(recovery_t.get("device", "parachute"))
+        area = 0.0
+        if device != "none":
+            rcd = recovery_t.get("drag_coefficient")
+            if isinstance(rcd, bool) or not isinstance(rcd, (int, float)) or rcd <= 0:
+                raise SimulationInputError(source, "recovery.drag_coefficient", f"expected a positive number, got {rcd!r}")
+            if "area" in recovery_t:
+                surface = recovery_t["area"]
+                if isinstance(surface, bool) or not isinstance(surface, (int, float)):
+                    raise SimulationInputError(source, "recovery.area", f"expected an area in m² (a number), got {surface!r}")
+                area = float(rcd) * float(surface)
+            else:
+                diameter = _quantity(source, recovery_t, "recovery", "diameter", "length", required=True)
+                area = float(rcd) * math.pi * diameter**2 / 4.0
+        recovery = Recovery(
+            device=device, deploy=str(recovery_t.get("deploy", "ejection")), drag_area_m2=area,
+            deploy_altitude_m=_quantity(source, recovery_t, "recovery", "deploy_altitude", "length"),
+        )
+    return Airframe(
+            name=name,
+            mass_kg=_quantity(source, body, "airframe", "mass", "mass", required=True),
+            diameter_m=_quantity(source, body, "airframe", "diameter", "length", required=True),
+            drag_coefficient=float(cd),
+            drag_table=drag_table,
+            mount_diameter_m=_quantity(source, body, "airframe", "mount_diameter", "length"),
+            mount_length_m=_quantity(source, body, "airframe", "mount_length", "length"),
+            launch=launch,
+            recovery=recovery,
+        )

@@ -1,0 +1,247 @@
+"""Reading and writing motor records in motorlib's own XML format (``data_schema/FORMAT.md``).
+
+The only module that knows the element names. Reading is defensive: a size cap,
+no DTD at all (so no entity expansion and no external entities), no network,
+then XSD validation, then the record's own invariants; every error names the
+file, the line and the field. Writing is atomic and exact: floats are written
+with ``repr`` (the shortest text that reads back to the same double) and
+read(write(r)) == r for every record.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import os
+import re
+from pathlib import Path
+from typing import Final
+
+import numpy as np
+from lxml import etree
+
+from . import schema
+from ..motor.record import MotorRecord, Provenance
+from ..errors import CurveDataError, CurveSyntaxError, Problem, SchemaValidationError
+from .fsio import write_atomic
+from ..units import to_si
+
+__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "record_from_bytes", "record_to_bytes", "write_record"]
+
+FORMAT_VERSION: Final = "1.0"
+DEFAULT_MAX_BYTES: Final = 8 * 1024 * 1024  # a 100 000-sample curve is about 3 MB; anything far larger is not a curve
+_NS: Final = schema.MOTOR_RECORD_NAMESPACE
+_Q: Final = "{" + _NS + "}"
+_DECLARATION = re.compile(rb"<!(DOCTYPE|ENTITY)", re.IGNORECASE)
+
+
+def _parser() -> etree.XMLParser:
+    return etree.XMLParser(
+        resolve_entities=False, no_network=True, load_dtd=False, dtd_validation=False,
+        huge_tree=False, remove_blank_text=False,
+    )
+
+
+def read_record(path: str | os.PathLike[str], *, max_bytes: int = DEFAULT_MAX_BYTES) -> MotorRecord:
+    """Read one motor record from an XML file.
+
+    Raises
+    ------
+    CurveSyntaxError
+        Not well-formed, larger than ``max_bytes``, or holding a DTD/entity declaration.
+    SchemaValidationError
+        Not a motor record of format version 1.x.
+    CurveDataError
+        Valid XML whose samples or hardware break a record invariant.
+    OSError
+        The file cannot be read.
+    """
+    source = str(path)
+    size = os.stat(path).st_size
+    if size > max_bytes:
+        raise CurveSyntaxError(source, f"file is {size} bytes, above the {max_bytes}-byte limit for one curve")
+    with open(path, "rb") as handle:
+        data = handle.read(max_bytes + 1)
+    return record_from_bytes(data, source, max_bytes=max_bytes)
+
+
+def record_from_bytes(data: bytes, source: str = "<bytes>", *, max_bytes: int = DEFAULT_MAX_BYTES) -> MotorRecord:
+    """Parse a motor record from the bytes of an XML document (see :func:`read_record`)."""
+    if len(data) > max_bytes:
+        raise CurveSyntaxError(source, f"document is above the {max_bytes}-byte limit for one curve")
+    declaration = _DECLARATION.search(data)
+    if declaration:
+        line = data.count(b"\n", 0, declaration.start()) + 1
+        raise CurveSyntaxError(
+            source, f"<!{declaration.group(1).decode().upper()}> declarations are not allowed in motor records "
+            "(refused for safety: no DTDs, no entities)", line=line)
+    try:
+        root = etree.fromstring(data, _parser())
+    except etree.XMLSyntaxError as exc:
+        line = exc.lineno if exc.lineno else None
+        raise CurveSyntaxError(source, f"not well-formed XML: {exc.msg}", line=line) from exc
+    _check_root(root, source)
+    schema.validate(root.getroottree(), source)
+    return _record_from_tree(root, source)
+
+
+def _check_root(root: etree._Element, source: str) -> None:
+    qname = etree.QName(root)
+    if qname.localname != "motor-record":
+        raise SchemaValidationError(source, f"root element is <{qname.localname}>, expected <motor-record>",
+                                    field="/" + qname.localname, line=root.sourceline)
+    if qname.namespace != _NS:
+        hint = ""
+        match = re.fullmatch(r"urn:x-motorlib:motor-record:(\d+)", qname.namespace or "")
+        if match:
+            hint = f"; it is format version {match.group(1)}, this motorlib reads version 1 (upgrade motorlib)"
+        raise SchemaValidationError(source, f"namespace is {qname.namespace!r}, expected {_NS!r}{hint}",
+                                    field="/motor-record", line=root.sourceline)
+
+
+def _child(parent: etree._Element | None, name: str) -> etree._Element | None:
+    return None if parent is None else parent.find(_Q + name)
+
+
+def _text(parent: etree._Element | None, name: str) -> str | None:
+    element = _child(parent, name)
+    return None if element is None else (element.text or "")
+
+
+def _quantity(parent: etree._Element | None, name: str, kind: str) -> float | None:
+    element = _child(parent, name)
+    if element is None:
+        return None
+    return to_si(float(element.text), element.get("unit"), kind, field=name)
+
+
+def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
+    identity = _child(root, "identity")
+    hardware = _child(root, "hardware")
+    ejection = _child(root, "ejection")
+    provenance_el = _child(root, "provenance")
+    samples = _child(root, "samples")
+    time_s, thrust_n, lines = _parse_samples(samples, source)
+    delays_text = _text(ejection, "delays")
+    delays = tuple(float(v) for v in delays_text.split()) if delays_text else ()
+    adjustable = ejection is not None and ejection.get("adjustable", "false") in ("true", "1")
+    provenance = Provenance()
+    if provenance_el is not None:
+        date_text = provenance_el.get("date")
+        provenance = Provenance(
+            kind=provenance_el.get("kind"),
+            date=_dt.date.fromisoformat(date_text) if date_text else None,
+            notes=_text(provenance_el, "notes") or "",
+        )
+    element_lines = {
+        "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
+        "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
+        "delays_s": _child(ejection, "delays"), "designation": _child(identity, "designation"),
+        "samples": samples, "time_s": samples, "thrust_n": samples,
+    }
+    try:
+        return MotorRecord(
+            designation=_text(identity, "designation") or "",
+            maker=_text(identity, "maker") or "",
+            time_s=time_s,
+            thrust_n=thrust_n,
+            diameter_m=_quantity(hardware, "diameter", "length"),
+            length_m=_quantity(hardware, "length", "length"),
+            total_mass_kg=_quantity(hardware, "total-mass", "mass"),
+            propellant_mass_kg=_quantity(hardware, "propellant-mass", "mass"),
+            delays_s=delays,
+            delay_adjustable=adjustable,
+            provenance=provenance,
+        )
+    except CurveDataError as exc:
+        located = []
+        for p in exc.problems:
+            if p.index is not None:
+                line = lines[p.index]
+            else:
+                element = element_lines.get(p.field)
+                line = element.sourceline if element is not None else None
+            located.append(Problem(p.code, p.field, p.message, p.index, line))
+        raise CurveDataError(source, located) from None
+
+
+def _parse_samples(element: etree._Element, source: str) -> tuple[np.ndarray, np.ndarray, list[int]]:
+    """Rows of the samples block, with the file line of each row."""
+    text = element.text or ""
+    base_line = element.sourceline or 1
+    times: list[float] = []
+    thrusts: list[float] = []
+    lines: list[int] = []
+    for offset, row in enumerate(text.split("\n")):
+        fields = row.split()
+        if not fields:
+            continue
+        line = base_line + offset
+        if len(fields) != 2:
+            raise CurveDataError(source, [Problem(
+                "sample-row", "samples",
+                f"expected two numbers (time in s, thrust in N), got {len(fields)} field(s): {row.strip()!r}",
+                line=line)])
+        try:
+            times.append(float(fields[0]))
+            thrusts.append(float(fields[1]))
+        except ValueError:
+            raise CurveDataError(source, [Problem(
+                "sample-row", "samples", f"expected two numbers (time in s, thrust in N), got {row.strip()!r}",
+                line=line)]) from None
+        lines.append(line)
+    return np.array(times), np.array(thrusts), lines
+
+
+def _exact_text(value_si: float, unit_choices: tuple[tuple[str, float], ...], kind: str) -> tuple[str, str]:
+    """Text and unit that read back to exactly ``value_si``, preferring the trade's unit."""
+    for unit, scale in unit_choices:
+        for candidate in (float(f"{value_si * scale:.12g}"), value_si * scale):
+            text = repr(candidate)
+            if to_si(float(text), unit, kind) == value_si:
+                return text, unit
+    raise AssertionError("unreachable: the SI unit always round-trips")  # pragma: no cover
+
+
+def record_to_bytes(record: MotorRecord) -> bytes:
+    """The XML document of ``record`` (UTF-8)."""
+    root = etree.Element(_Q + "motor-record", nsmap={None: _NS})
+    root.set("format-version", FORMAT_VERSION)
+    identity = etree.SubElement(root, _Q + "identity")
+    if record.maker:
+        etree.SubElement(identity, _Q + "maker").text = record.maker
+    etree.SubElement(identity, _Q + "designation").text = record.designation
+    hardware_fields = (
+        ("diameter", record.diameter_m, (("mm", 1e3), ("m", 1.0)), "length"),
+        ("length", record.length_m, (("mm", 1e3), ("m", 1.0)), "length"),
+        ("total-mass", record.total_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
+        ("propellant-mass", record.propellant_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
+    )
+    if any(value is not None for _, value, _, _ in hardware_fields):
+        hardware = etree.SubElement(root, _Q + "hardware")
+        for name, value, choices, kind in hardware_fields:
+            if value is not None:
+                text, unit = _exact_text(value, choices, kind)
+                element = etree.SubElement(hardware, _Q + name, unit=unit)
+                element.text = text
+    if record.delays_s or record.delay_adjustable:
+        ejection = etree.SubElement(root, _Q + "ejection", adjustable="true" if record.delay_adjustable else "false")
+        if record.delays_s:
+            etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(repr(d) for d in record.delays_s)
+    p = record.provenance
+    provenance = etree.SubElement(root, _Q + "provenance", kind=p.kind)
+    if p.date is not None:
+        provenance.set("date", p.date.isoformat())
+    if p.notes:
+        etree.SubElement(provenance, _Q + "notes").text = p.notes
+    samples = etree.SubElement(root, _Q + "samples")
+    samples.set("time-unit", "s")
+    samples.set("thrust-unit", "N")
+    etree.indent(root, space="  ")  # before the samples text, which indent() must not touch
+    rows = (f"    {float(t)!r} {float(f)!r}" for t, f in zip(record.time_s, record.thrust_n))
+    samples.text = "\n" + "\n".join(rows) + "\n  "
+    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", pretty_print=True)
+
+
+def write_record(record: MotorRecord, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
+    """Write ``record`` to ``path`` atomically (temporary file, fsync, rename)."""
+    return write_atomic(path, record_to_bytes(record), overwrite=overwrite)

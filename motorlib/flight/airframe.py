@@ -1,0 +1,152 @@
+"""The airframe, its launch conditions and its recovery device (records only; no file I/O).
+
+Drag of the airframe: ``D = ½·ρ·v²·Cd·A`` with A = π·d²/4 from the reference
+diameter and Cd constant or interpolated linearly in Mach number from a table
+(held constant beyond its ends). Recovery devices add their own drag area
+``Cd·A`` after deployment.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Final
+
+from .atmosphere import Site
+from ..errors import SimulationInputError
+
+__all__ = ["DEPLOY_MODES", "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
+
+RECOVERY_DEVICES: Final = ("parachute", "streamer", "none")
+DEPLOY_MODES: Final = ("ejection", "apogee", "altitude")
+
+
+def _require(source: str, name: str, ok: bool, problem: str) -> None:
+    if not ok:
+        raise SimulationInputError(source, name, problem)
+
+
+@dataclass(frozen=True)
+class Launch:
+    """Launch rail and weather.
+
+    Attributes
+    ----------
+    rail_length_m : float
+        Travel along the rail before the rocket is free [m].
+    rail_angle_rad : float
+        Rail tilt from vertical, tilted downwind [rad]; 0 to 30 degrees.
+    site : Site
+        Elevation and optional measured temperature and pressure.
+    wind_speed_m_s : float
+        Wind speed at 10 m above the pad [m/s], blowing downrange (+x). Above and
+        below 10 m it follows a power-law profile (see :mod:`motorlib.flight`).
+    """
+
+    rail_length_m: float = 1.0
+    rail_angle_rad: float = 0.0
+    site: Site = field(default_factory=Site)
+    wind_speed_m_s: float = 0.0
+
+    def __post_init__(self) -> None:
+        src = "launch"
+        _require(src, "launch.rail_length", 0.0 < self.rail_length_m <= 30.0, f"must be above 0 and at most 30 m, got {self.rail_length_m!r} m")
+        _require(src, "launch.rail_angle", 0.0 <= self.rail_angle_rad <= math.radians(30.0),
+                 f"must lie between 0 and 30 degrees from vertical, got {math.degrees(self.rail_angle_rad):.4g} deg")
+        _require(src, "launch.wind_speed", 0.0 <= self.wind_speed_m_s <= 40.0,
+                 f"must lie between 0 and 40 m/s, got {self.wind_speed_m_s!r} m/s")
+
+
+@dataclass(frozen=True)
+class Recovery:
+    """A recovery device and when it deploys.
+
+    Attributes
+    ----------
+    device : str
+        ``parachute``, ``streamer`` or ``none``.
+    deploy : str
+        ``ejection`` (the motor's delay charge), ``apogee`` (electronics) or
+        ``altitude`` (electronics, at ``deploy_altitude_m`` on the way down).
+    drag_area_m2 : float
+        Cd·A of the device [m²] (Cd referred to the same area A).
+    deploy_altitude_m : float or None
+        Height above the pad for ``altitude`` deployment [m].
+    """
+
+    device: str = "parachute"
+    deploy: str = "ejection"
+    drag_area_m2: float = 0.0
+    deploy_altitude_m: float | None = None
+
+    def __post_init__(self) -> None:
+        src = "recovery"
+        _require(src, "recovery.device", self.device in RECOVERY_DEVICES, f"must be one of {', '.join(RECOVERY_DEVICES)}, got {self.device!r}")
+        _require(src, "recovery.deploy", self.deploy in DEPLOY_MODES, f"must be one of {', '.join(DEPLOY_MODES)}, got {self.deploy!r}")
+        if self.device != "none":
+            _require(src, "recovery.drag_coefficient", self.drag_area_m2 > 0.0, "a device needs a positive drag area (Cd and diameter or area)")
+        if self.deploy == "altitude":
+            _require(src, "recovery.deploy_altitude", self.deploy_altitude_m is not None and self.deploy_altitude_m > 0.0,
+                     "altitude deployment needs a positive deploy_altitude")
+
+
+@dataclass(frozen=True)
+class Airframe:
+    """A rocket without its motor.
+
+    Attributes
+    ----------
+    name : str
+    mass_kg : float
+        Empty mass, without motor [kg].
+    diameter_m : float
+        Reference diameter for drag [m].
+    drag_coefficient : float
+        Constant Cd, used when ``drag_table`` is empty.
+    drag_table : tuple of (mach, cd)
+        Cd against Mach, Mach strictly increasing; linear between points.
+    mount_diameter_m, mount_length_m : float or None
+        Motor mount diameter and the longest motor that fits [m].
+    launch : Launch
+    recovery : Recovery or None
+    """
+
+    name: str
+    mass_kg: float
+    diameter_m: float
+    drag_coefficient: float = 0.5
+    drag_table: tuple[tuple[float, float], ...] = ()
+    mount_diameter_m: float | None = None
+    mount_length_m: float | None = None
+    launch: Launch = field(default_factory=Launch)
+    recovery: Recovery | None = None
+
+    def __post_init__(self) -> None:
+        src = self.name or "airframe"
+        _require(src, "airframe.mass", 0.0 < self.mass_kg <= 2000.0, f"must be above 0 and at most 2000 kg, got {self.mass_kg!r} kg")
+        _require(src, "airframe.diameter", 0.0 < self.diameter_m <= 2.0, f"must be above 0 and at most 2 m, got {self.diameter_m!r} m")
+        table = tuple((float(m), float(c)) for m, c in self.drag_table)
+        object.__setattr__(self, "drag_table", table)
+        if table:
+            machs = [m for m, _ in table]
+            _require(src, "airframe.drag_table", all(b > a for a, b in zip(machs, machs[1:])) and machs[0] >= 0.0,
+                     "Mach numbers must start at 0 or above and strictly increase")
+            _require(src, "airframe.drag_table", all(0.0 < c < 5.0 for _, c in table), "every Cd must lie between 0 and 5")
+        else:
+            _require(src, "airframe.drag_coefficient", 0.0 < self.drag_coefficient < 5.0,
+                     f"must lie between 0 and 5, got {self.drag_coefficient!r}")
+        for key, value in (("airframe.mount_diameter", self.mount_diameter_m), ("airframe.mount_length", self.mount_length_m)):
+            _require(src, key, value is None or value > 0.0, f"must be above 0, got {value!r}")
+
+    @property
+    def reference_area_m2(self) -> float:
+        """π·d²/4 [m²]."""
+        return math.pi * self.diameter_m**2 / 4.0
+
+    @property
+    def drag_machs(self) -> tuple[float, ...]:
+        return tuple(m for m, _ in self.drag_table) if self.drag_table else (0.0,)
+
+    @property
+    def drag_cds(self) -> tuple[float, ...]:
+        return tuple(c for _, c in self.drag_table) if self.drag_table else (self.drag_coefficient,)

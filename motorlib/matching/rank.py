@@ -1,0 +1,368 @@
+"""Rank candidate motors for an airframe: fit, one batched flight of all, delays, pass/fail reasons, ballast.
+
+Every candidate gets the list of reasons it fails; a failed safety rule is never
+dropped to improve a ranking. The rules are settings (:class:`MatchSettings`);
+each default names its source. With a target altitude the ranking is by
+closeness to it, otherwise by apogee (under the ceiling); passing motors first.
+
+Landing speed under the recovery device is the terminal descent rate at the pad,
+√(2·m·g/(ρ·(Cd·A_device + Cd·A_body))), which the descent approaches well before
+landing (see :mod:`motorlib.recovery`); the ``fly`` command integrates the whole
+descent instead.
+
+numpy only; pandas, scipy and matplotlib are not imported here.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any, Sequence
+
+import numpy as np
+
+from ..flight.airframe import Airframe
+from ..motor.classes import CLASS_LETTERS
+from ..motor.record import MotorRecord
+from ..flight.integrate import OK, FlightResults, FlightSettings, MotorPack, simulate
+from ..flight.rules import LaunchRules
+from ..units import STANDARD_GRAVITY_M_S2
+
+__all__ = ["MatchResult", "MatchSettings", "candidate_rows", "rank"]
+
+
+@dataclass(frozen=True)
+class MatchSettings:
+    """What the ranking asks of a motor.
+
+    Attributes
+    ----------
+    target_m, ceiling_m : float or None
+        Aim altitude, and the field's altitude limit that no motor may exceed [m above the pad].
+    max_class : str or None
+        Highest impulse class allowed (the flyer's certification).
+    rules : LaunchRules
+        Rail exit speed, thrust-to-weight, ejection speed and descent rules (defaults: common practice).
+    delay_slack_s : float
+        How far the chosen delay may be from the optimal one [s]; default 2 s (common practice, no published source).
+    allow_smaller_motors : bool
+        Motors narrower than the mount fit (with an adapter).
+    diameter_tolerance_m : float
+        Diameters within this are equal (0.5 mm).
+    ballast : bool
+        Solve the nose weight that brings each passing motor down to the target.
+    """
+
+    target_m: float | None = None
+    ceiling_m: float | None = None
+    max_class: str | None = None
+    rules: LaunchRules = field(default_factory=LaunchRules)
+    delay_slack_s: float = 2.0
+    allow_smaller_motors: bool = False
+    diameter_tolerance_m: float = 0.0005
+    ballast: bool = False
+
+    def __post_init__(self) -> None:
+        if self.max_class is not None and self.max_class not in CLASS_LETTERS:
+            raise ValueError(f"`max_class` must be one of {', '.join(CLASS_LETTERS)}, got {self.max_class!r}")
+        if self.ballast and self.target_m is None:
+            raise ValueError("ballast needs a target altitude")
+        for name in ("target_m", "ceiling_m"):
+            value = getattr(self, name)
+            if value is not None and not value > 0:
+                raise ValueError(f"`{name}` must be positive, got {value!r}")
+
+
+@dataclass(frozen=True)
+class MatchResult:
+    """The ranking: ``candidates`` (dicts, passing first) plus the conditions that produced it."""
+
+    airframe: dict[str, Any]
+    conditions: dict[str, Any]
+    candidates: list[dict[str, Any]]
+
+    @property
+    def passing(self) -> list[dict[str, Any]]:
+        return [c for c in self.candidates if c["passes"]]
+
+    def as_dict(self) -> dict[str, Any]:
+        return {"airframe": self.airframe, "conditions": self.conditions, "candidates": self.candidates}
+
+
+def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = None) -> list[dict[str, Any]]:
+    """Rows in the catalog's layout for plain records (for ranking records that are not in a catalog)."""
+    rows = []
+    for i, r in enumerate(records):
+        cls = r.impulse_class
+        rows.append({
+            "motor_id": ids[i] if ids else f"record-{i}", "designation": r.designation, "maker": r.maker,
+            "impulse_class": cls.letter if cls else None, "total_impulse_ns": r.total_impulse_ns,
+            "diameter_m": r.diameter_m, "length_m": r.length_m, "total_mass_kg": r.total_mass_kg,
+            "propellant_mass_kg": r.propellant_mass_kg, "delays_s": list(r.delays_s),
+            "delay_adjustable": r.delay_adjustable, "handle": r.designation,
+        })
+    return rows
+
+
+def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> list[str]:
+    reasons = []
+    if s.max_class is not None:
+        cls = row["impulse_class"]
+        if cls is None or CLASS_LETTERS.index(cls) > CLASS_LETTERS.index(s.max_class):
+            reasons.append(f"class {cls or 'above O'} is above the limit {s.max_class}")
+    d, mount = row["diameter_m"], frame.mount_diameter_m
+    if mount is not None:
+        if d is None:
+            reasons.append("does not fit: the motor's diameter is unknown")
+        elif d > mount + s.diameter_tolerance_m:
+            reasons.append(f"does not fit: {d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount")
+        elif d < mount - s.diameter_tolerance_m and not s.allow_smaller_motors:
+            reasons.append(f"does not fit: {d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount (adapters not allowed)")
+    if frame.mount_length_m is not None:
+        if row["length_m"] is None:
+            reasons.append("does not fit: the motor's length is unknown")
+        elif row["length_m"] > frame.mount_length_m + 1e-9:
+            reasons.append(f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes {frame.mount_length_m * 1e3:.4g} mm")
+    if row["total_mass_kg"] is None or row["propellant_mass_kg"] is None:
+        reasons.append("cannot be flown: no total or propellant mass")
+    return reasons
+
+
+def rank(frame: Airframe, rows: Sequence[dict[str, Any]], pack_for: Any, settings: MatchSettings | None = None,
+         flight_settings: FlightSettings | None = None) -> MatchResult:
+    """Rank every candidate for ``frame``.
+
+    Parameters
+    ----------
+    frame : Airframe
+    rows : sequence of dict
+        Candidate metadata in the catalog's row layout (:meth:`Catalog.rows` or :func:`candidate_rows`).
+    pack_for : callable
+        ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index).
+    settings : MatchSettings, optional
+    flight_settings : FlightSettings, optional
+
+    Returns
+    -------
+    MatchResult
+    """
+    s = settings or MatchSettings()
+    fs = flight_settings or FlightSettings()
+    fit_reasons = [_fits(frame, row, s) for row in rows]
+    fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
+    flown: dict[int, dict[str, Any]] = {}
+    if fitting:
+        sub = [rows[i] for i in fitting]
+        pack = pack_for(sub)
+        results = simulate(frame, pack, fs, descent=False)
+        figures = _figures(frame, sub, pack, results, s)
+        if s.ballast:
+            _solve_ballast(frame, sub, pack, figures, s, fs)
+        for k, i in enumerate(fitting):
+            flown[i] = {key: value[k] for key, value in figures.items()}
+    candidates = []
+    for i, row in enumerate(rows):
+        base = {"motor_id": row["motor_id"], "handle": row.get("handle"), "designation": row["designation"],
+                "maker": row["maker"], "impulse_class": row["impulse_class"],
+                "total_impulse_ns": row["total_impulse_ns"], "diameter_m": row["diameter_m"],
+                "length_m": row["length_m"], "fits": not fit_reasons[i]}
+        if i in flown:
+            f = flown[i]
+            base.update({k: v for k, v in f.items() if not k.startswith("_")})
+            base["reasons"] = [text for _, text in f["_reasons"]]
+            base["reason_codes"] = [code for code, _ in f["_reasons"]]
+        else:
+            base.update({k: None for k in _FIGURE_KEYS})
+            base["reasons"] = fit_reasons[i]
+            base["reason_codes"] = ["fit"] * len(fit_reasons[i])
+        base["passes"] = not base["reasons"]
+        candidates.append(base)
+    candidates.sort(key=lambda c: _sort_key(c, s))
+    conditions = _conditions(frame, s)
+    airframe = {"name": frame.name, "mass_kg": frame.mass_kg, "diameter_m": frame.diameter_m,
+                "mount_diameter_m": frame.mount_diameter_m, "mount_length_m": frame.mount_length_m}
+    return MatchResult(airframe, conditions, candidates)
+
+
+_FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_thrust_to_weight", "max_speed_m_s",
+                "max_mach", "burnout_time_s", "optimal_delay_s", "chosen_delay_s", "delay_adjusted",
+                "ejection_altitude_m", "ejection_speed_m_s", "ejection_vertical_speed_m_s", "landing_speed_m_s",
+                "liftoff_mass_kg", "ballast_kg", "ballast_apogee_m", "ballast_rail_exit_speed_m_s",
+                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_reasons")
+
+
+def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
+    apogee = c["apogee_m"]
+    if apogee is None or not math.isfinite(apogee):
+        return (not c["passes"], 2, 0.0, c["designation"])
+    if s.target_m is not None:
+        return (not c["passes"], 0, abs(apogee - s.target_m), c["designation"])
+    return (not c["passes"], 0, -apogee, c["designation"])
+
+
+def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[float]]) -> tuple[np.ndarray, ...]:
+    """For every flight: the reported delay closest to the optimal one and its ejection state (vectorised)."""
+    delays = pack.delays_s
+    optimal = results.optimal_delay_s
+    distance = np.abs(delays - optimal[:, None])
+    distance = np.where(np.isnan(distance), np.inf, distance)
+    col = np.argmin(distance, axis=1)
+    rows = np.arange(delays.shape[0])
+    has = np.isfinite(distance[rows, col])
+    chosen = np.where(has, delays[rows, col], np.nan)
+    altitude = np.where(has, results.ejection_altitude_m[rows, col], np.nan)
+    speed = np.where(has, results.ejection_speed_m_s[rows, col], np.nan)
+    vertical = np.where(has, results.ejection_vertical_speed_m_s[rows, col], np.nan)
+    adjusted = np.array([bool(np.isfinite(c)) and c not in lst for c, lst in zip(chosen, listed)])
+    return chosen, altitude, speed, vertical, adjusted
+
+
+def _landing_speed(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
+    if frame.recovery is None or frame.recovery.device == "none":
+        return np.full(results.n_flights, np.nan)
+    _, _, rho, _ = frame.launch.site.air(0.0)
+    burnt_mass = results.liftoff_mass_kg - pack.propellant_mass_kg
+    body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
+    return np.sqrt(2.0 * burnt_mass * STANDARD_GRAVITY_M_S2 / (float(rho) * (frame.recovery.drag_area_m2 + body)))
+
+
+def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
+             s: MatchSettings) -> dict[str, Any]:
+    chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r["delays_s"] for r in rows])
+    landing = _landing_speed(frame, results, pack)
+    uses_charge = frame.recovery is None or frame.recovery.deploy == "ejection"
+    reasons = [_reasons(results, i, chosen[i], speed[i], landing[i], uses_charge, s, rows[i]) for i in range(len(rows))]
+
+    def col(values: np.ndarray) -> list[float | None]:
+        return [float(v) if np.isfinite(v) else None for v in values]
+
+    return {
+        "apogee_m": col(results.apogee_m), "time_to_apogee_s": col(results.apogee_time_s),
+        "rail_exit_speed_m_s": col(results.rail_exit_speed_m_s),
+        "liftoff_thrust_to_weight": col(results.liftoff_thrust_to_weight),
+        "max_speed_m_s": col(results.max_speed_m_s), "max_mach": col(results.max_mach),
+        "burnout_time_s": col(results.burnout_time_s), "optimal_delay_s": col(results.optimal_delay_s),
+        "chosen_delay_s": col(chosen), "delay_adjusted": [bool(a) for a in adjusted],
+        "ejection_altitude_m": col(altitude), "ejection_speed_m_s": col(speed),
+        "ejection_vertical_speed_m_s": col(vertical), "landing_speed_m_s": col(landing),
+        "liftoff_mass_kg": col(results.liftoff_mass_kg),
+        "ballast_kg": [None] * len(rows), "ballast_apogee_m": [None] * len(rows),
+        "ballast_rail_exit_speed_m_s": [None] * len(rows), "ballast_liftoff_thrust_to_weight": [None] * len(rows),
+        "ballast_chosen_delay_s": [None] * len(rows), "ballast_reasons": [None] * len(rows),
+        "_reasons": reasons, "_status": list(results.status),
+    }
+
+
+def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: float, landing: float,
+             uses_charge: bool, s: MatchSettings, row: dict[str, Any]) -> list[tuple[str, str]]:
+    """(short code, message) for every rule the flight breaks."""
+    r = s.rules
+    if results.status[i] != OK:
+        return [("flight", results.message(i))]
+    out = []
+    exit_speed = results.rail_exit_speed_m_s[i]
+    if exit_speed < r.min_rail_exit_speed_m_s:
+        out.append(("rail", f"rail exit too slow: {exit_speed:.1f} m/s, below {r.min_rail_exit_speed_m_s:g} m/s"))
+    ttw = results.liftoff_thrust_to_weight[i]
+    if ttw < r.min_liftoff_thrust_to_weight:
+        out.append(("T/W", f"thrust-to-weight too low: {ttw:.1f}, below {r.min_liftoff_thrust_to_weight:g}"))
+    apogee = results.apogee_m[i]
+    if s.ceiling_m is not None and apogee > s.ceiling_m:
+        out.append(("ceiling", f"over the ceiling: apogee {apogee:.0f} m above {s.ceiling_m:.0f} m"))
+    if uses_charge:
+        optimal = results.optimal_delay_s[i]
+        if not np.isfinite(chosen):
+            out.append(("no charge", "no ejection charge (plugged or booster) and no electronics deployment in the airframe file"))
+        elif abs(chosen - optimal) > s.delay_slack_s:
+            out.append(("delay", f"no delay within {s.delay_slack_s:g} s of the optimal {optimal:.1f} s "
+                       f"(closest {chosen:g} s)"))
+        if np.isfinite(ejection_speed) and ejection_speed > r.max_ejection_speed_m_s:
+            out.append(("eject", f"ejection too fast: {ejection_speed:.0f} m/s at the {chosen:g} s delay "
+                       f"(limit {r.max_ejection_speed_m_s:g} m/s)"))
+        if np.isfinite(chosen) and not np.isfinite(ejection_speed):
+            out.append(("lands first", f"lands before the {chosen:g} s delay fires"))
+    if np.isfinite(landing) and landing > r.max_landing_speed_m_s:
+        out.append(("descent", f"descent too fast: {landing:.1f} m/s under the device (limit {r.max_landing_speed_m_s:g} m/s)"))
+    return out
+
+
+def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, figures: dict[str, Any],
+                   s: MatchSettings, fs: FlightSettings) -> None:
+    """Added mass that brings each passing motor's apogee to the target, all motors solved together.
+
+    Apogee falls monotonically with added mass. A bracket [0, hi] is found by
+    doubling, then the Illinois variant of regula falsi runs on every motor at
+    once, one batched simulation per iteration, to 0.02 % of the target.
+    The rules are then re-checked with the solved mass.
+    """
+    target = s.target_m
+    n = len(rows)
+    apogee0 = np.array([a if a is not None else np.nan for a in figures["apogee_m"]])
+    candidates = np.array([not reasons for reasons in figures["_reasons"]]) & (apogee0 > target)
+    for i in range(n):
+        if not figures["_reasons"][i] and apogee0[i] <= target:
+            figures["ballast_reasons"][i] = ["cannot reach the target even without ballast"]
+    idx = np.flatnonzero(candidates)
+    if idx.size == 0:
+        return
+    sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
+    liftoff = np.array([figures["liftoff_mass_kg"][i] for i in idx])
+
+    def apogee_with(mass: np.ndarray) -> np.ndarray:
+        return simulate(frame, sub, fs, added_mass_kg=mass, descent=False).apogee_m
+
+    lo, f_lo = np.zeros(idx.size), apogee0[idx] - target
+    hi = 0.25 * liftoff
+    f_hi = np.nan_to_num(apogee_with(hi), nan=-target) - target
+    for _ in range(12):  # widen where the bracket does not hold the root yet
+        short = f_hi > 0
+        if not short.any():
+            break
+        hi = np.where(short, hi * 2.0, hi)
+        f_hi = np.where(short, np.nan_to_num(apogee_with(hi), nan=-target) - target, f_hi)
+    side = np.zeros(idx.size)
+    mass = hi.copy()
+    for _ in range(40):
+        mass = np.where(f_lo != f_hi, (lo * f_hi - hi * f_lo) / (f_hi - f_lo), 0.5 * (lo + hi))
+        f = np.nan_to_num(apogee_with(mass), nan=-target) - target
+        if np.all(np.abs(f) <= 2e-4 * target):
+            break
+        right = f < 0  # too heavy: the root lies between lo and mass
+        hi, f_hi = np.where(right, mass, hi), np.where(right, f, f_hi)
+        lo, f_lo = np.where(right, lo, mass), np.where(right, f_lo, f)
+        # Illinois: halve the stale end's value so that both ends keep moving
+        f_lo = np.where(right & (side == 1), f_lo / 2, f_lo)
+        f_hi = np.where(~right & (side == -1), f_hi / 2, f_hi)
+        side = np.where(right, 1, -1)
+    final = simulate(frame, sub, fs, added_mass_kg=mass, descent=False)
+    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i]["delays_s"] for i in idx])
+    landing = _landing_speed(frame, final, sub)
+    uses_charge = frame.recovery is None or frame.recovery.deploy == "ejection"
+    for k, i in enumerate(idx):
+        figures["ballast_kg"][i] = float(mass[k])
+        figures["ballast_apogee_m"][i] = float(final.apogee_m[k])
+        figures["ballast_rail_exit_speed_m_s"][i] = float(final.rail_exit_speed_m_s[k])
+        figures["ballast_liftoff_thrust_to_weight"][i] = float(final.liftoff_thrust_to_weight[k])
+        figures["ballast_chosen_delay_s"][i] = float(chosen[k]) if np.isfinite(chosen[k]) else None
+        figures["ballast_reasons"][i] = [text for _, text in
+                                         _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i])]
+
+
+def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
+    launch = frame.launch
+    site = launch.site
+    return {
+        "target_m": s.target_m, "ceiling_m": s.ceiling_m, "max_class": s.max_class,
+        "min_rail_exit_speed_m_s": s.rules.min_rail_exit_speed_m_s,
+        "min_liftoff_thrust_to_weight": s.rules.min_liftoff_thrust_to_weight,
+        "delay_slack_s": s.delay_slack_s, "max_ejection_speed_m_s": s.rules.max_ejection_speed_m_s,
+        "max_landing_speed_m_s": s.rules.max_landing_speed_m_s, "allow_smaller_motors": s.allow_smaller_motors,
+        "drag": (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+                 else f"Cd {frame.drag_coefficient:g}") + f" on {frame.diameter_m * 1e3:.4g} mm",
+        "atmosphere": "U.S. Standard Atmosphere 1976" + (f", {site.elevation_m:.0f} m elevation" if site.elevation_m else "")
+                      + (f", {site.temperature_k - 273.15:.1f} degC at the pad" if site.temperature_k else "")
+                      + (f", {site.pressure_pa / 100:.0f} hPa at the pad" if site.pressure_pa else ""),
+        "wind": f"{launch.wind_speed_m_s:g} m/s at 10 m, power law 1/7",
+        "rail": f"{launch.rail_length_m:g} m at {math.degrees(launch.rail_angle_rad):g} deg from vertical",
+        "recovery": (f"{frame.recovery.device}, deployed at {frame.recovery.deploy}" if frame.recovery else "none given"),
+    }

@@ -1,0 +1,353 @@
+"""The motor record: one thrust-time curve with its hardware, ejection and provenance data.
+
+Model
+-----
+Thrust is piecewise linear between the samples and zero outside
+``[time_s[0], time_s[-1]]``. Every integral is therefore exact: the trapezoid
+rule over the samples is the integral of that function (Burden & Faires,
+*Numerical Analysis*, section 4.4: the composite-trapezoid error term vanishes
+for piecewise-linear integrands).
+
+Burn time is the *threshold burn time*: from the moment thrust first rises to a
+threshold fraction of peak thrust to the moment it last falls to it, crossings
+located by linear interpolation. The default threshold, 5 % of peak, is the one
+secondary sources attribute to NFPA 1125 (check-values.md section 3.1, C2).
+Average thrust is the impulse delivered inside that window divided by the burn
+time (same source). Both keep the threshold as a parameter.
+
+Motor mass is assumed to fall from the loaded mass by the propellant mass in
+proportion to the impulse delivered so far: ``m(t) = m0 - mp * I(t) / I_total``.
+
+numpy only (no scipy: the flight path imports this module).
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+from dataclasses import dataclass, field
+from typing import Final
+
+import numpy as np
+
+from .classes import ImpulseClass, impulse_class_for
+from ..errors import CurveDataError, Problem
+from ..units import STANDARD_GRAVITY_M_S2
+
+__all__ = [
+    "DEFAULT_BURN_THRESHOLD",
+    "PROVENANCE_KINDS",
+    "MotorRecord",
+    "Provenance",
+]
+
+DEFAULT_BURN_THRESHOLD: Final = 0.05  # fraction of peak thrust; NFPA 1125 via secondary sources (C2)
+PROVENANCE_KINDS: Final = ("certification-test", "maker-data", "static-test", "demo", "other")
+
+
+@dataclass(frozen=True)
+class Provenance:
+    """Where a curve comes from.
+
+    Attributes
+    ----------
+    kind : str
+        One of :data:`PROVENANCE_KINDS`.
+    date : datetime.date or None
+        Date of the test or of the data sheet.
+    notes : str
+        Free text (test stand, lot number, who measured).
+    """
+
+    kind: str = "other"
+    date: _dt.date | None = None
+    notes: str = ""
+
+    def __post_init__(self) -> None:
+        if self.kind not in PROVENANCE_KINDS:
+            raise CurveDataError(
+                "provenance",
+                [Problem("provenance-kind", "provenance.kind",
+                         f"must be one of {', '.join(PROVENANCE_KINDS)}, got {self.kind!r}")],
+            )
+
+
+def _frozen_array(values: object) -> np.ndarray:
+    array = np.array(values, dtype=float)  # our own copy, frozen below
+    array.flags.writeable = False
+    return array
+
+
+def _positive_or_none(name: str, value: float | None, problems: list[Problem]) -> float | None:
+    if value is None:
+        return None
+    value = float(value)
+    if not (math.isfinite(value) and value > 0.0):
+        problems.append(Problem("hardware-not-positive", name, f"must be a positive finite number, got {value!r}"))
+    return value
+
+
+@dataclass(frozen=True, eq=False)
+class MotorRecord:
+    """Thrust [N] against time [s] for one motor, with its label and hardware.
+
+    Parameters
+    ----------
+    designation : str
+        The label as the maker prints it (``"C6-5"``); not required to parse.
+    time_s, thrust_n : array_like, shape (n_samples,)
+        Sample times [s], strictly increasing and >= 0, and thrusts [N], finite and >= 0.
+    maker : str
+        Maker name ("" if unknown).
+    diameter_m, length_m : float or None
+        Motor case diameter and length [m].
+    total_mass_kg, propellant_mass_kg : float or None
+        Loaded mass and propellant mass [kg]; propellant <= total.
+    delays_s : tuple of float
+        Available ejection delays [s]; empty for plugged and booster motors.
+    delay_adjustable : bool
+        True when the user may shorten the delay (drilling); the listed delays are then the longest.
+    provenance : Provenance
+
+    Raises
+    ------
+    CurveDataError
+        Listing every broken invariant, each with a stable code.
+
+    Notes
+    -----
+    Arrays are copied and frozen; records compare equal when every field and
+    every sample is equal (exactly).
+    """
+
+    designation: str
+    time_s: np.ndarray
+    thrust_n: np.ndarray
+    maker: str = ""
+    diameter_m: float | None = None
+    length_m: float | None = None
+    total_mass_kg: float | None = None
+    propellant_mass_kg: float | None = None
+    delays_s: tuple[float, ...] = ()
+    delay_adjustable: bool = False
+    provenance: Provenance = field(default_factory=Provenance)
+
+    def __post_init__(self) -> None:
+        for name in ("time_s", "thrust_n"):
+            object.__setattr__(self, name, _frozen_array(getattr(self, name)))
+        problems = sample_problems(self.time_s, self.thrust_n)
+        for name in ("diameter_m", "length_m", "total_mass_kg", "propellant_mass_kg"):
+            object.__setattr__(self, name, _positive_or_none(name, getattr(self, name), problems))
+        delays = tuple(float(d) for d in self.delays_s)
+        object.__setattr__(self, "delays_s", delays)
+        for delay in delays:
+            if not (math.isfinite(delay) and delay > 0.0):
+                problems.append(Problem("delay-not-positive", "delays_s",
+                                        f"ejection delays must be positive seconds, got {delay!r}"))
+        if len(set(delays)) != len(delays):
+            problems.append(Problem("delay-repeated", "delays_s", f"a delay is listed twice in {delays}"))
+        if (self.total_mass_kg is not None and self.propellant_mass_kg is not None
+                and self.propellant_mass_kg > self.total_mass_kg):
+            problems.append(Problem(
+                "propellant-exceeds-total-mass", "propellant_mass_kg",
+                f"propellant mass {self.propellant_mass_kg * 1e3:.6g} g exceeds the total (loaded) "
+                f"mass {self.total_mass_kg * 1e3:.6g} g; check the units of both",
+            ))
+        if not isinstance(self.designation, str) or not self.designation.strip():
+            problems.append(Problem("designation-missing", "designation", "a designation (label) is required"))
+        if not isinstance(self.provenance, Provenance):
+            raise TypeError("`provenance` must be a Provenance")
+        if problems:
+            raise CurveDataError(self.designation or "motor record", problems)
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, MotorRecord):
+            return NotImplemented
+        return (
+            self.designation == other.designation and self.maker == other.maker
+            and np.array_equal(self.time_s, other.time_s) and np.array_equal(self.thrust_n, other.thrust_n)
+            and self.diameter_m == other.diameter_m and self.length_m == other.length_m
+            and self.total_mass_kg == other.total_mass_kg and self.propellant_mass_kg == other.propellant_mass_kg
+            and self.delays_s == other.delays_s and self.delay_adjustable == other.delay_adjustable
+            and self.provenance == other.provenance
+        )
+
+    __hash__ = None  # type: ignore[assignment]  # mutable-looking arrays: not hashable
+
+    # ----------------------------------------------------------------- integrals
+    @property
+    def n_samples(self) -> int:
+        return int(self.time_s.size)
+
+    @property
+    def total_impulse_ns(self) -> float:
+        """Total impulse [N·s]: the exact integral of the piecewise-linear curve."""
+        return float(np.trapezoid(self.thrust_n, self.time_s))
+
+    def cumulative_impulse_ns(self) -> np.ndarray:
+        """Impulse delivered up to each sample [N·s], shape (n_samples,), starting at 0."""
+        steps = 0.5 * (self.thrust_n[1:] + self.thrust_n[:-1]) * np.diff(self.time_s)
+        return np.concatenate(([0.0], np.cumsum(steps)))
+
+    def thrust_at_n(self, time_s: np.ndarray | float) -> np.ndarray:
+        """Thrust [N] at any times [s] (linear between samples, 0 outside); vectorised."""
+        return np.interp(time_s, self.time_s, self.thrust_n, left=0.0, right=0.0)
+
+    def impulse_at_ns(self, time_s: np.ndarray | float) -> np.ndarray:
+        """Impulse [N·s] delivered from the start up to each time [s]; vectorised, exact.
+
+        Within a sample interval the thrust is linear, so the partial integral
+        is a trapezoid from the interval start to ``t``.
+        """
+        t = np.clip(np.asarray(time_s, dtype=float), self.time_s[0], self.time_s[-1])
+        cumulative = self.cumulative_impulse_ns()
+        index = np.clip(np.searchsorted(self.time_s, t, side="right") - 1, 0, self.n_samples - 2)
+        t0 = self.time_s[index]
+        partial = 0.5 * (self.thrust_n[index] + np.interp(t, self.time_s, self.thrust_n)) * (t - t0)
+        return cumulative[index] + partial
+
+    def mass_at_kg(self, time_s: np.ndarray | float) -> np.ndarray:
+        """Motor mass [kg] at any times [s], propellant consumed in proportion to impulse.
+
+        Raises
+        ------
+        ValueError
+            When the record lacks its total or propellant mass.
+        """
+        if self.total_mass_kg is None or self.propellant_mass_kg is None:
+            raise ValueError(f"{self.designation}: total and propellant mass are needed for the motor mass")
+        fraction = self.impulse_at_ns(time_s) / self.total_impulse_ns
+        return self.total_mass_kg - self.propellant_mass_kg * fraction
+
+    # ------------------------------------------------------------- peak and burn
+    @property
+    def peak_thrust_n(self) -> float:
+        """Largest sampled thrust [N] (the curve's maximum: it is piecewise linear)."""
+        return float(self.thrust_n.max())
+
+    @property
+    def peak_time_s(self) -> float:
+        """Time [s] of the first sample at peak thrust."""
+        return float(self.time_s[int(np.argmax(self.thrust_n))])
+
+    def burn_window_s(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> tuple[float, float]:
+        """Start and end [s] of the threshold burn window.
+
+        Start: where thrust first reaches ``threshold * peak``; end: where it last
+        falls to it; both by linear interpolation within the crossing interval.
+        A curve that starts (ends) above the threshold starts (ends) at its first
+        (last) sample.
+        """
+        if not 0.0 < threshold < 1.0:
+            raise ValueError(f"`threshold` must lie strictly between 0 and 1, got {threshold!r}")
+        level = threshold * self.peak_thrust_n
+        t, f = self.time_s, self.thrust_n
+        above = np.flatnonzero(f >= level)
+        first, last = int(above[0]), int(above[-1])
+        start = float(t[first]) if first == 0 else _crossing(t[first - 1], f[first - 1], t[first], f[first], level)
+        end = float(t[last]) if last == f.size - 1 else _crossing(t[last], f[last], t[last + 1], f[last + 1], level)
+        return start, end
+
+    def burn_time_s(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> float:
+        """Threshold burn time [s] (see module docstring); default 5 % of peak."""
+        start, end = self.burn_window_s(threshold)
+        return end - start
+
+    def average_thrust_n(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> float:
+        """Average thrust [N]: impulse inside the burn window divided by the burn time."""
+        start, end = self.burn_window_s(threshold)
+        if end <= start:
+            return self.peak_thrust_n  # a single-sample spike: the window has no width
+        impulse = float(np.diff(self.impulse_at_ns(np.array([start, end])))[0])
+        return impulse / (end - start)
+
+    # ---------------------------------------------------------- class and label
+    @property
+    def impulse_class(self) -> ImpulseClass | None:
+        """The total-impulse class with percent-into-class; None above class O."""
+        return impulse_class_for(self.total_impulse_ns)
+
+    def computed_designation(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> str:
+        """Class letter plus average thrust rounded to the nearest newton (``"C6"``).
+
+        Averages below 0.5 N keep one decimal so that they do not print as 0.
+        """
+        cls = self.impulse_class
+        letter = cls.letter if cls is not None else ">O"
+        average = self.average_thrust_n(threshold)
+        text = f"{average:.1f}" if average < 0.5 else str(int(math.floor(average + 0.5)))
+        return letter + text
+
+    # ------------------------------------------------------------------- masses
+    @property
+    def specific_impulse_s(self) -> float | None:
+        """Specific impulse [s]: ``I_total / (m_propellant * g0)``; None without propellant mass.
+
+        Definition as in Sutton & Biblarz, *Rocket Propulsion Elements*, ch. 2.
+        """
+        if self.propellant_mass_kg is None:
+            return None
+        return self.total_impulse_ns / (self.propellant_mass_kg * STANDARD_GRAVITY_M_S2)
+
+    @property
+    def propellant_mass_fraction(self) -> float | None:
+        """Propellant mass over loaded mass (dimensionless); None unless both are known."""
+        if self.propellant_mass_kg is None or self.total_mass_kg is None:
+            return None
+        return self.propellant_mass_kg / self.total_mass_kg
+
+    @property
+    def burnout_mass_kg(self) -> float | None:
+        """Mass of the spent motor [kg]; None unless both masses are known."""
+        if self.propellant_mass_kg is None or self.total_mass_kg is None:
+            return None
+        return self.total_mass_kg - self.propellant_mass_kg
+
+
+def _crossing(t0: float, f0: float, t1: float, f1: float, level: float) -> float:
+    """Time where the segment (t0, f0)-(t1, f1) takes the value ``level``."""
+    if f1 == f0:
+        return float(t0)
+    return float(t0 + (level - f0) * (t1 - t0) / (f1 - f0))
+
+
+MIN_SAMPLES: Final = 2  # fewer cannot describe any curve; check.py warns below a larger count
+
+
+def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
+    """Every broken invariant of a sampled curve, with the first offending sample index.
+
+    Codes: ``shape-mismatch``, ``too-few-samples``, ``time-not-finite``,
+    ``time-negative``, ``time-not-increasing``, ``thrust-not-finite``,
+    ``thrust-negative``, ``no-thrust``.
+    """
+    problems: list[Problem] = []
+    if time_s.ndim != 1 or thrust_n.ndim != 1 or time_s.shape != thrust_n.shape:
+        return [Problem("shape-mismatch", "samples",
+                        f"time and thrust must be 1-D of one length, got shapes {time_s.shape} and {thrust_n.shape}")]
+    if time_s.size < MIN_SAMPLES:
+        return [Problem("too-few-samples", "samples", f"at least {MIN_SAMPLES} samples are needed, got {time_s.size}")]
+
+    def first(mask: np.ndarray) -> int | None:
+        hits = np.flatnonzero(mask)
+        return int(hits[0]) if hits.size else None
+
+    if (i := first(~np.isfinite(time_s))) is not None:
+        problems.append(Problem("time-not-finite", "time_s", f"sample {i + 1}: time is {float(time_s[i])!r}", i))
+    elif (i := first(time_s < 0.0)) is not None:
+        problems.append(Problem("time-negative", "time_s",
+                                f"sample {i + 1}: time {float(time_s[i])!r} s is before ignition (t < 0)", i))
+    if (i := first(~(np.diff(time_s) > 0.0))) is not None and np.all(np.isfinite(time_s)):
+        problems.append(Problem(
+            "time-not-increasing", "time_s",
+            f"sample {i + 2}: time {float(time_s[i + 1])!r} s does not follow {float(time_s[i])!r} s; times must strictly increase",
+            i + 1,
+        ))
+    if (i := first(~np.isfinite(thrust_n))) is not None:
+        problems.append(Problem("thrust-not-finite", "thrust_n", f"sample {i + 1}: thrust is {float(thrust_n[i])!r}", i))
+    elif (i := first(thrust_n < 0.0)) is not None:
+        problems.append(Problem("thrust-negative", "thrust_n",
+                                f"sample {i + 1}: thrust {float(thrust_n[i])!r} N is negative (tare the load cell)", i))
+    elif not np.any(thrust_n > 0.0):
+        problems.append(Problem("no-thrust", "thrust_n", "every thrust sample is zero"))
+    return problems

@@ -1,0 +1,343 @@
+"""Static-test reduction: a raw load-cell log to a clean thrust curve, with the problems found on the way.
+
+Steps (each documented where it is done):
+
+1. Sanity: time must strictly increase (rows named otherwise), at least
+   ``min_samples`` rows.
+2. Baseline (tare): the median of a pre-ignition window, the samples before
+   thrust first exceeds 10 % of the log's range, less a safety margin; its
+   noise level is 1.4826 × the median absolute deviation (a robust σ). With
+   ``detrend`` a post-burnout window gives a second level and the line through
+   both is removed (load-cell drift).
+3. Filter: a zero-phase Butterworth low-pass (``scipy.signal.butter`` +
+   ``sosfiltfilt``) on the log resampled to a uniform grid at its median step.
+   Filtering forward and backward squares the magnitude response, so the
+   design frequency is raised to put the *combined* −3 dB point exactly at the
+   stated cut-off (:func:`lowpass_design_hz`). Default cut-off:
+   100 Hz or a quarter of the sample rate, whichever is lower.
+4. Ignition and burnout: where the filtered thrust first rises above, and
+   last falls below, ``max(event_fraction × peak, 5 σ)`` (defaults 2 % of peak),
+   by linear interpolation. The curve is trimmed to that window and t = 0 is
+   set at ignition.
+5. Point reduction to at most ``max_points``: greedy largest-deviation insertion
+   (a Douglas–Peucker-style refinement). Start from the first, last and peak
+   samples, then repeatedly add the filtered sample farthest (in thrust) from
+   the current piecewise-linear curve. The peak sample is always kept, so peak
+   thrust is exact; the impulse error is reported and warned about above 0.2 %.
+
+Findings (warnings about the log) carry row numbers where rows are involved.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .checks import Finding
+from ..errors import CurveDataError, Problem
+
+__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "lowpass_design_hz", "reduce_log"]
+
+
+@dataclass(frozen=True)
+class ReductionSettings:
+    """Settings of :func:`reduce_log`; defaults are common practice, no published source.
+
+    Attributes
+    ----------
+    cutoff_hz : float or None
+        −3 dB frequency of the zero-phase low-pass; None for the default, 0 for no filter.
+    filter_order : int
+        Butterworth order of one pass (the zero-phase filter is twice as steep).
+    event_fraction : float
+        Ignition/burnout threshold as a fraction of peak thrust (raised to 5 σ of the noise if larger).
+    max_points : int
+        Most points in the reduced curve.
+    detrend : bool
+        Remove a linear drift fitted between the pre-ignition and post-burnout levels.
+    min_samples : int
+        Fewest rows a log may have.
+    impulse_tolerance, peak_tolerance : float
+        Reduction goals checked after the fact (0.2 % and 1 %).
+    """
+
+    cutoff_hz: float | None = None
+    filter_order: int = 4
+    event_fraction: float = 0.02
+    max_points: int = 48
+    detrend: bool = False
+    min_samples: int = 20
+    impulse_tolerance: float = 0.002
+    peak_tolerance: float = 0.01
+
+    def __post_init__(self) -> None:
+        if self.max_points < 8:
+            raise ValueError("`max_points` must be at least 8")
+        if not 0.0 < self.event_fraction < 0.5:
+            raise ValueError("`event_fraction` must lie in (0, 0.5)")
+
+
+@dataclass(frozen=True, eq=False)
+class Reduction:
+    """The result of reducing one log. Times [s] of the trimmed curves start at ignition (0 s).
+
+    ``raw_*`` keep the tared log on its own time axis (ignition at 0 s too), ``filtered_*``
+    the filtered uniform series, ``time_s``/``thrust_n`` the reduced curve.
+    """
+
+    time_s: np.ndarray
+    thrust_n: np.ndarray
+    raw_time_s: np.ndarray
+    raw_thrust_n: np.ndarray
+    filtered_time_s: np.ndarray
+    filtered_thrust_n: np.ndarray
+    baseline_n: float
+    noise_n: float
+    drift_n_per_s: float
+    cutoff_hz: float | None
+    sample_rate_hz: float
+    ignition_time_s: float
+    burnout_time_s: float
+    threshold_n: float
+    filtered_impulse_ns: float
+    impulse_error: float
+    peak_error: float
+    findings: tuple[Finding, ...] = field(default=())
+
+
+def lowpass_design_hz(cutoff_hz: float, order: int, rate_hz: float) -> float:
+    """Design frequency of one digital Butterworth pass so that forward-backward filtering is −3 dB at ``cutoff_hz``.
+
+    scipy's ``butter`` uses the bilinear transform with pre-warping, so one pass has
+    |H|² = 1 / (1 + (tan(πf/fs) / tan(πf_d/fs))^(2n)); the squared response of the
+    forward-backward pass is 1/√2 where (tan(πf_c/fs) / tan(πf_d/fs))^(2n) = √2 − 1.
+    """
+    ratio = (math.sqrt(2.0) - 1.0) ** (1.0 / (2 * order))
+    return rate_hz / math.pi * math.atan(math.tan(math.pi * cutoff_hz / rate_hz) / ratio)
+
+
+def _robust_sigma(values: np.ndarray) -> float:
+    return float(1.4826 * np.median(np.abs(values - np.median(values))))
+
+
+def _rows(lines: np.ndarray, mask: np.ndarray) -> str:
+    hits = lines[mask]
+    if hits.size == 0:
+        return ""
+    if hits.size == 1:
+        return f"row {hits[0]}"
+    return f"rows {hits[0]}-{hits[-1]} ({hits.size} rows)"
+
+
+def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSettings | None = None, *,
+               lines: np.ndarray | None = None, source: str = "log") -> Reduction:
+    """Reduce a raw log (time [s], force [N]) to a thrust curve.
+
+    Parameters
+    ----------
+    time_s, force_n : array, shape (n_rows,)
+    settings : ReductionSettings, optional
+    lines : array of int, optional
+        File line of each row, for messages.
+    source : str
+        Name used in error messages.
+
+    Raises
+    ------
+    CurveDataError
+        Codes ``log-too-short``, ``log-time-backwards``, ``log-no-baseline``, ``log-no-ignition``, with rows.
+    """
+    s = settings or ReductionSettings()
+    t = np.asarray(time_s, dtype=float)
+    f = np.asarray(force_n, dtype=float)
+    rows = np.asarray(lines if lines is not None else np.arange(1, t.size + 1))
+    if t.size < s.min_samples:
+        raise CurveDataError(source, [Problem("log-too-short", "samples",
+                                              f"{t.size} rows; at least {s.min_samples} are needed")])
+    if not (np.all(np.isfinite(t)) and np.all(np.isfinite(f))):
+        bad = ~(np.isfinite(t) & np.isfinite(f))
+        raise CurveDataError(source, [Problem("log-not-finite", "samples", f"non-numeric values at {_rows(rows, bad)}",
+                                              line=int(rows[bad][0]))])
+    backwards = np.diff(t) <= 0.0
+    if backwards.any():
+        where = np.concatenate(([False], backwards))
+        raise CurveDataError(source, [Problem("log-time-backwards", "time_s",
+                                              f"time does not increase at {_rows(rows, where)}", line=int(rows[where][0]))])
+    findings: list[Finding] = []
+    # ---- is there a firing at all? Noise from successive differences, which ignores slow trends ----
+    span = float(np.max(f) - np.min(f))
+    sample_noise = _robust_sigma(np.diff(f)) / math.sqrt(2.0)
+    if span <= 10.0 * sample_noise:
+        raise CurveDataError(source, [Problem("log-no-ignition", "samples",
+                                              f"no ignition found: the readings span {span:.3g}, within 10x the "
+                                              f"sample noise ({sample_noise:.3g})")])
+    # ---- baseline from the pre-ignition window ----
+    first_high = int(np.argmax(f - np.median(f[: max(3, t.size // 50)]) > 0.1 * span))
+    pre_end = int(first_high * 0.8)
+    if pre_end < 5:
+        raise CurveDataError(source, [Problem("log-no-baseline", "samples",
+                                              f"thrust rises at {_rows(rows, np.arange(t.size) == first_high)}, too early "
+                                              "for a pre-ignition baseline: start logging at least a few tenths of a second "
+                                              "before ignition", line=int(rows[first_high]))])
+    baseline = float(np.median(f[:pre_end]))
+    noise = _robust_sigma(f[:pre_end])
+    window_noise = _robust_sigma(np.diff(f[:pre_end])) / math.sqrt(2.0)
+    if noise > 5.0 * window_noise + 1e-9 * span:  # spread far above its sample-to-sample noise: a ramp, not a baseline
+        raise CurveDataError(source, [Problem("log-no-baseline", "samples",
+                                              f"the readings before {_rows(rows, np.arange(t.size) == first_high)} are "
+                                              "not flat: the log seems to start after ignition; start logging at least "
+                                              "a few tenths of a second before ignition", line=int(rows[0]))])
+    tared = f - baseline
+    drift = 0.0
+    last_high = t.size - 1 - int(np.argmax((tared > 0.1 * span)[::-1]))
+    post_start = last_high + max(5, int(0.25 * (t.size - last_high)))
+    if s.detrend:
+        if t.size - post_start < 5:
+            findings.append(Finding("warning", "log-no-post-window",
+                                    "no post-burnout window to measure drift: the log ends too soon after burnout"))
+        else:
+            post = float(np.median(tared[post_start:]))
+            t_pre, t_post = float(np.median(t[:pre_end])), float(np.median(t[post_start:]))
+            drift = post / (t_post - t_pre)
+            tared = tared - drift * (t - t_pre)
+    elif t.size - post_start >= 5:
+        post_level = float(np.median(tared[post_start:]))
+        if abs(post_level) > max(5 * noise, 0.01 * span):
+            findings.append(Finding("warning", "log-drift",
+                                    f"the load cell reads {post_level:.3g} N after burnout against 0 N before ignition; "
+                                    "use the drift correction (detrend)"))
+    peak_raw = float(np.max(tared))
+    if peak_raw <= max(10.0 * noise, 1e-12):
+        raise CurveDataError(source, [Problem("log-no-ignition", "samples",
+                                              f"no ignition found: the largest reading, {peak_raw:.3g} N above the "
+                                              f"baseline, is within 10x the noise ({noise:.3g} N)")])
+    # ---- log problems ----
+    top = float(np.max(f))
+    at_top = np.isclose(f, top, rtol=0.0, atol=max(1e-9 * abs(top), 1e-12))
+    run = _longest_run(at_top)
+    if run >= 3:
+        findings.append(Finding("warning", "log-clipped",
+                                f"{run} consecutive readings sit at the maximum {top:.6g} ({_rows(rows, at_top)}): the "
+                                "sensor or logger was probably at full scale, so peak thrust and impulse are too low"))
+    dips = tared < -(10.0 * noise + 0.05 * peak_raw)
+    if dips.any():
+        findings.append(Finding("warning", "log-negative-spike",
+                                f"readings far below the baseline at {_rows(rows, dips)} (lowest {float(np.min(tared)):.3g} N)"))
+    # ---- uniform grid and filter ----
+    dt = float(np.median(np.diff(t)))
+    rate = 1.0 / dt
+    grid = np.arange(t[0], t[-1] + 0.5 * dt, dt)
+    uniform = np.interp(grid, t, tared)
+    if np.max(np.abs(np.diff(t) - dt)) > 0.01 * dt:
+        findings.append(Finding("note", "log-resampled",
+                                f"time steps vary from {1e3 * float(np.min(np.diff(t))):.3g} to "
+                                f"{1e3 * float(np.max(np.diff(t))):.3g} ms; the log was resampled at {rate:.4g} Hz"))
+    cutoff = s.cutoff_hz if s.cutoff_hz is not None else min(100.0, 0.25 * rate)
+    if cutoff and cutoff > 0:
+        from scipy.signal import butter, sosfiltfilt
+
+        design = lowpass_design_hz(cutoff, s.filter_order, rate) if cutoff < 0.5 * rate else 0.5 * rate
+        if design >= 0.49 * rate:
+            findings.append(Finding("warning", "log-filter-skipped",
+                                    f"the cut-off {cutoff:g} Hz is too close to the Nyquist frequency {0.5 * rate:g} Hz; "
+                                    "the log was not filtered"))
+            filtered = uniform
+            cutoff = None
+        else:
+            sos = butter(s.filter_order, design, btype="low", fs=rate, output="sos")
+            filtered = sosfiltfilt(sos, uniform)
+    else:
+        filtered = uniform
+        cutoff = None
+    if rate < 200.0:
+        findings.append(Finding("note", "log-slow", f"the log samples at {rate:.4g} Hz; fast ignition spikes may be "
+                                                    "missed below about 200 Hz"))
+    # ---- ignition and burnout ----
+    peak = float(np.max(filtered))
+    threshold = max(s.event_fraction * peak, 5.0 * noise)
+    above = np.flatnonzero(filtered >= threshold)
+    i0, i1 = int(above[0]), int(above[-1])
+    t_ign = _cross(grid, filtered, i0 - 1, i0, threshold) if i0 > 0 else float(grid[0])
+    t_out = _cross(grid, filtered, i1, i1 + 1, threshold) if i1 < grid.size - 1 else float(grid[-1])
+    if i1 == grid.size - 1:
+        findings.append(Finding("warning", "log-ends-burning", "the log ends while the motor still burns"))
+    inner = (grid > t_ign) & (grid < t_out)
+    burn_t = np.concatenate(([t_ign], grid[inner], [t_out])) - t_ign
+    burn_f = np.concatenate(([np.interp(t_ign, grid, filtered)], filtered[inner], [np.interp(t_out, grid, filtered)]))
+    burn_f = np.maximum(burn_f, 0.0)  # a filtered curve may ring a little below zero at a steep edge
+    if burn_t.size < 8:
+        raise CurveDataError(source, [Problem("log-too-short", "samples",
+                                              f"only {burn_t.size} samples during the burn at {rate:.3g} Hz; log faster")])
+    keep = _reduce_points(burn_t, burn_f, s.max_points)
+    red_t, red_f = burn_t[keep], burn_f[keep]
+    impulse = float(np.trapezoid(burn_f, burn_t))
+    impulse_error = abs(float(np.trapezoid(red_f, red_t)) / impulse - 1.0)
+    peak_error = abs(float(np.max(red_f)) / float(np.max(burn_f)) - 1.0)
+    if impulse_error > s.impulse_tolerance or peak_error > s.peak_tolerance:
+        findings.append(Finding("warning", "log-reduction-coarse",
+                                f"with {len(keep)} points the reduced curve is off by {100 * impulse_error:.2f} % in "
+                                f"impulse and {100 * peak_error:.2f} % in peak thrust; allow more points"))
+    raw_mask = (t >= t_ign - 0.2 * (t_out - t_ign)) & (t <= t_out + 0.2 * (t_out - t_ign))
+    return Reduction(
+        time_s=red_t, thrust_n=red_f, raw_time_s=t[raw_mask] - t_ign, raw_thrust_n=tared[raw_mask],
+        filtered_time_s=burn_t, filtered_thrust_n=burn_f, baseline_n=baseline, noise_n=noise,
+        drift_n_per_s=drift, cutoff_hz=cutoff, sample_rate_hz=rate, ignition_time_s=t_ign, burnout_time_s=t_out,
+        threshold_n=threshold, filtered_impulse_ns=impulse, impulse_error=impulse_error, peak_error=peak_error,
+        findings=tuple(findings),
+    )
+
+
+def _cross(t: np.ndarray, f: np.ndarray, a: int, b: int, level: float) -> float:
+    if f[b] == f[a]:
+        return float(t[a])
+    return float(t[a] + (level - f[a]) * (t[b] - t[a]) / (f[b] - f[a]))
+
+
+def _longest_run(mask: np.ndarray) -> int:
+    best = current = 0
+    for value in mask:
+        current = current + 1 if value else 0
+        best = max(best, current)
+    return best
+
+
+def _reduce_points(t: np.ndarray, f: np.ndarray, max_points: int) -> np.ndarray:
+    """Indices of at most ``max_points`` samples: greedy largest-deviation insertion, peak always kept."""
+    keep = sorted({0, t.size - 1, int(np.argmax(f))})
+    while len(keep) < min(max_points, t.size):
+        approx = np.interp(t, t[keep], f[keep])
+        error = np.abs(f - approx)
+        error[keep] = -1.0
+        worst = int(np.argmax(error))
+        if error[worst] <= 1e-12 * max(float(np.max(f)), 1.0):
+            break
+        keep = sorted(keep + [worst])
+    return np.array(keep)
+
+
+def combine_reductions(reductions: list[Reduction], max_points: int = 48) -> tuple[np.ndarray, np.ndarray, dict]:
+    """Mean curve of several firings of one motor, and the spread of total impulse and burn time.
+
+    The filtered curves (each from its own ignition) are averaged on a common
+    time grid; a curve counts as 0 N after its own burnout.
+    """
+    if not reductions:
+        raise ValueError("`reductions` must not be empty")
+    end = max(float(r.filtered_time_s[-1]) for r in reductions)
+    step = min(float(np.median(np.diff(r.filtered_time_s))) for r in reductions)
+    grid = np.arange(0.0, end + 0.5 * step, step)
+    mean = np.mean([np.interp(grid, r.filtered_time_s, r.filtered_thrust_n, left=0.0, right=0.0) for r in reductions],
+                   axis=0)
+    keep = _reduce_points(grid, mean, max_points)
+    impulses = np.array([float(np.trapezoid(r.filtered_thrust_n, r.filtered_time_s)) for r in reductions])
+    burns = np.array([r.burnout_time_s - r.ignition_time_s for r in reductions])
+    spread = {
+        "n_firings": len(reductions),
+        "total_impulse_ns": {"mean": float(impulses.mean()), "std": float(impulses.std(ddof=1)) if impulses.size > 1 else 0.0,
+                             "min": float(impulses.min()), "max": float(impulses.max())},
+        "event_burn_time_s": {"mean": float(burns.mean()), "std": float(burns.std(ddof=1)) if burns.size > 1 else 0.0,
+                              "min": float(burns.min()), "max": float(burns.max())},
+    }
+    return grid[keep], mean[keep], spread

@@ -1,0 +1,1 @@
+"""Presentation: rich tables in display units, matplotlib charts (imported lazily); no click."""

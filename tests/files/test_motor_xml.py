@@ -1,0 +1,148 @@
+"""The motor-record XML format: exact round trips, safety, errors that name file, line and field."""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+from lxml import etree
+
+from motorlib import (
+    CurveDataError,
+    CurveSyntaxError,
+    MotorRecord,
+    SchemaValidationError,
+    read_record,
+    record_from_bytes,
+    record_to_bytes,
+    write_record,
+)
+from motorlib.files.schema import schema_path
+
+from ..conftest import full_records
+
+
+@given(full_records())
+@settings(max_examples=150, suppress_health_check=[HealthCheck.too_slow])
+def test_round_trip_is_exact(record: MotorRecord) -> None:
+    data = record_to_bytes(record)
+    again = record_from_bytes(data)
+    assert again == record
+    assert record_to_bytes(again) == data  # byte-stable
+
+
+def test_round_trip_through_a_file(demo_record: MotorRecord, tmp_path: Path) -> None:
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    assert read_record(path) == demo_record
+    assert [p.name for p in tmp_path.iterdir()] == ["d12.xml"]  # no temporary file left
+
+
+def test_awkward_floats_round_trip(tmp_path: Path) -> None:
+    record = MotorRecord("C6", [0.0, 0.1 + 0.2, 1 / 3], [0.0, 1e-300, 5e-324 * 3],
+                         diameter_m=0.1 + 0.2, total_mass_kg=1 / 3, propellant_mass_kg=1e-9)
+    assert record_from_bytes(record_to_bytes(record)) == record
+
+
+def test_written_files_use_mm_and_g_when_exact(demo_record: MotorRecord) -> None:
+    text = record_to_bytes(demo_record).decode()
+    assert '<diameter unit="mm">24.0</diameter>' in text
+    assert '<total-mass unit="g">44.0</total-mass>' in text
+
+
+def test_written_files_validate_against_the_xsd(demo_record: MotorRecord) -> None:
+    # The XSD is checked with lxml directly, independent of our reader.
+    xsd = etree.XMLSchema(etree.parse(str(schema_path())))
+    assert xsd.validate(etree.fromstring(record_to_bytes(demo_record)))
+
+
+def test_sample_files_are_stable_under_rewrite(sample_curve_paths: list[Path]) -> None:
+    for path in sample_curve_paths:
+        assert record_to_bytes(read_record(path)) == path.read_bytes(), path
+
+
+@pytest.mark.parametrize("name", ["billion_laughs.xml", "external_entity.xml"])
+def test_entity_tricks_are_refused(fixture_dir: Path, name: str) -> None:
+    with pytest.raises(CurveSyntaxError, match=r"2: <!DOCTYPE> declarations are not allowed") as info:
+        read_record(fixture_dir / name)
+    assert name in str(info.value)
+
+
+def test_entity_declaration_without_doctype_is_refused() -> None:
+    with pytest.raises(CurveSyntaxError, match="ENTITY"):
+        record_from_bytes(b'<?xml version="1.0"?>\n<!ENTITY x "y">\n<motor-record/>')
+
+
+def test_size_cap(tmp_path: Path, demo_record: MotorRecord) -> None:
+    path = write_record(demo_record, tmp_path / "big.xml")
+    with pytest.raises(CurveSyntaxError, match="byte limit"):
+        read_record(path, max_bytes=100)
+
+
+def test_not_well_formed_names_the_line(fixture_dir: Path) -> None:
+    with pytest.raises(CurveSyntaxError, match=r"not_well_formed.xml:\d+: not well-formed XML") as info:
+        read_record(fixture_dir / "not_well_formed.xml")
+    assert info.value.line == 3
+
+
+@pytest.mark.parametrize(("name", "field", "text"), [
+    ("bad_length_unit.xml", "/motor-record/hardware/diameter", "'in' is not an element of the set"),
+    ("missing_designation.xml", "/motor-record/identity", "designation"),
+    ("unknown_element.xml", "/motor-record/colour", "not expected"),
+    ("wrong_root.xml", "/thrust-table", "expected <motor-record>"),
+    ("future_major_version.xml", "/motor-record", "format version 2"),
+])
+def test_schema_errors_name_line_and_field(fixture_dir: Path, name: str, field: str, text: str) -> None:
+    with pytest.raises(SchemaValidationError, match=text) as info:
+        read_record(fixture_dir / name)
+    assert info.value.field == field
+    assert info.value.line is not None
+    assert str(info.value).startswith(f"{fixture_dir / name}:{info.value.line}: {field}: ")
+
+
+def test_sample_errors_name_the_file_line(fixture_dir: Path) -> None:
+    path = fixture_dir / "bad_time_order.xml"
+    with pytest.raises(CurveDataError) as info:
+        read_record(path)
+    line = next(i for i, row in enumerate(path.read_text().splitlines(), 1) if row.strip() == "0.2 11.0")
+    assert info.value.line == line
+    assert str(info.value).startswith(f"{path}:{line}: time_s: ")
+
+
+def test_hardware_errors_name_the_element_line(fixture_dir: Path) -> None:
+    path = fixture_dir / "negative_diameter.xml"
+    with pytest.raises(CurveDataError, match="diameter_m: must be a positive") as info:
+        read_record(path)
+    assert info.value.line == 4
+
+
+def test_failed_write_leaves_the_old_file(demo_record: MotorRecord, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    before = path.read_bytes()
+
+    def boom(*args: object) -> None:
+        raise OSError("disk full")
+
+    monkeypatch.setattr(os, "replace", boom)
+    other = MotorRecord("E20", [0.0, 1.0, 2.0], [0.0, 20.0, 0.0])
+    with pytest.raises(OSError, match="disk full"):
+        write_record(other, path)
+    assert path.read_bytes() == before
+    assert [p.name for p in tmp_path.iterdir()] == ["d12.xml"]
+
+
+def test_refuses_to_overwrite_when_asked(demo_record: MotorRecord, tmp_path: Path) -> None:
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    with pytest.raises(FileExistsError):
+        write_record(demo_record, path, overwrite=False)
+
+
+def test_written_files_get_ordinary_permissions(demo_record: MotorRecord, tmp_path: Path) -> None:
+    mask = os.umask(0)
+    os.umask(mask)
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    assert os.stat(path).st_mode & 0o777 == 0o666 & ~mask  # not mkstemp's 0600
+    os.chmod(path, 0o640)
+    write_record(demo_record, path)
+    assert os.stat(path).st_mode & 0o777 == 0o640  # an overwrite keeps the file's mode

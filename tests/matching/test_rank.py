@@ -1,0 +1,215 @@
+"""The motor matcher: fit, ranking, reasons, ballast; numbers equal to single flights; units do not matter."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from motorlib.files.airframe_toml import load_airframe
+from motorlib.catalog import Catalog
+from motorlib.cli.main import main
+from motorlib.flight import simulate
+from motorlib.matching import MatchSettings, rank
+from motorlib.flight.rules import LaunchRules
+
+from ..conftest import SAMPLE_DIR
+
+AIRFRAME = SAMPLE_DIR / "airframes" / "quibble-41.toml"
+
+
+@pytest.fixture(scope="module")
+def sample_catalog() -> Catalog:
+    return Catalog(SAMPLE_DIR, read_only=True)
+
+
+def _rank(catalog: Catalog, **kwargs) -> object:
+    frame = load_airframe(kwargs.pop("airframe", AIRFRAME))
+    return rank(frame, catalog.rows(), catalog.motor_pack, MatchSettings(**kwargs))
+
+
+def test_ranking_equals_single_flights(sample_catalog: Catalog) -> None:
+    # Each candidate's figures equal those of flying that motor alone (the `fly` computation), to 1e-9.
+    frame = load_airframe(AIRFRAME)
+    result = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)
+    flown = [c for c in result.candidates if c["apogee_m"] is not None]
+    assert len(flown) >= 10
+    for c in flown:
+        alone = simulate(frame, [sample_catalog.get(c["motor_id"])], descent=False)
+        assert c["apogee_m"] == pytest.approx(alone.apogee_m[0], rel=1e-9)
+        assert c["time_to_apogee_s"] == pytest.approx(alone.apogee_time_s[0], rel=1e-9)
+        assert c["rail_exit_speed_m_s"] == pytest.approx(alone.rail_exit_speed_m_s[0], rel=1e-9)
+        assert c["liftoff_thrust_to_weight"] == pytest.approx(alone.liftoff_thrust_to_weight[0], rel=1e-9)
+        assert c["optimal_delay_s"] == pytest.approx(alone.optimal_delay_s[0], rel=1e-9)
+
+
+def test_ranking_equals_the_fly_command(sample_catalog: Catalog) -> None:
+    runner = CliRunner()
+    out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--json"])
+    candidates = [c for c in json.loads(out.output)["candidates"] if c["apogee_m"] is not None]
+    for c in candidates[:4]:
+        motor_file = SAMPLE_DIR / (c["handle"].split("/")[-1] + ".xml")  # read-only catalogs use file stems
+        fly = json.loads(runner.invoke(main, ["fly", str(AIRFRAME), "--motor", str(motor_file), "--json"]).output)
+        assert fly["apogee_m"] == pytest.approx(c["apogee_m"], rel=1e-9)
+        assert fly["rail_exit_speed_m_s"] == pytest.approx(c["rail_exit_speed_m_s"], rel=1e-9)
+        assert fly["optimal_delay_s"] == pytest.approx(c["optimal_delay_s"], rel=1e-9)
+
+
+def test_passing_first_ordered_by_closeness_to_target(sample_catalog: Catalog) -> None:
+    result = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)
+    passes = [c["passes"] for c in result.candidates]
+    assert passes == sorted(passes, reverse=True)
+    passing = result.passing
+    gaps = [abs(c["apogee_m"] - 400.0) for c in passing]
+    assert gaps == sorted(gaps) and len(passing) >= 2
+    assert all(c["fits"] for c in passing)
+
+
+def test_without_target_ranked_by_apogee_under_the_ceiling(sample_catalog: Catalog) -> None:
+    result = _rank(sample_catalog, ceiling_m=800.0, allow_smaller_motors=True)
+    apogees = [c["apogee_m"] for c in result.passing]
+    assert apogees == sorted(apogees, reverse=True) and max(apogees) <= 800.0
+
+
+def test_just_below_the_rail_exit_rule_fails_with_that_reason(sample_catalog: Catalog) -> None:
+    base = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)  # F29-8 is a 24 mm motor
+    f29 = next(c for c in base.candidates if c["designation"] == "F29-8")
+    assert f29["passes"]
+    speed = f29["rail_exit_speed_m_s"]
+    strict = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True,
+                   rules=LaunchRules(min_rail_exit_speed_m_s=speed + 0.01))
+    failed = next(c for c in strict.candidates if c["designation"] == "F29-8")
+    assert not failed["passes"] and failed["reason_codes"] == ["rail"]
+    assert failed["reasons"][0].startswith("rail exit too slow")
+    lenient = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True,
+                    rules=LaunchRules(min_rail_exit_speed_m_s=speed - 0.01))
+    assert next(c for c in lenient.candidates if c["designation"] == "F29-8")["passes"]
+
+
+def test_over_the_ceiling_fails_even_when_closest_to_the_target(sample_catalog: Catalog) -> None:
+    result = _rank(sample_catalog, target_m=720.0, ceiling_m=650.0, allow_smaller_motors=True)
+    f51 = next(c for c in result.candidates if c["designation"] == "F51-10")  # apogee about 706 m
+    closest = min((c for c in result.candidates if c["apogee_m"]), key=lambda c: abs(c["apogee_m"] - 720.0))
+    assert closest is f51
+    assert not f51["passes"] and "ceiling" in f51["reason_codes"]
+    assert result.candidates.index(f51) > max(result.candidates.index(c) for c in result.passing)
+
+
+def test_fit_filter_and_class_limit(sample_catalog: Catalog) -> None:
+    result = _rank(sample_catalog, target_m=400.0)
+    rejected = [c for c in result.candidates if not c["fits"]]
+    assert all(any(r.startswith("does not fit") for r in c["reasons"]) for c in rejected)
+    assert {c["designation"] for c in rejected} >= {"C6-3,5,7", "M2158-P"}
+    adapters = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)
+    assert any(c["designation"] == "C6-3,5,7" and c["fits"] for c in adapters.candidates)
+    limited = _rank(sample_catalog, target_m=400.0, max_class="F")
+    g59 = next(c for c in limited.candidates if c["designation"] == "G59-10")
+    assert not g59["fits"] and "above the limit F" in g59["reasons"][0]
+
+
+def test_ballast_brings_apogee_to_the_target(sample_catalog: Catalog) -> None:
+    frame = load_airframe(AIRFRAME)
+    result = _rank(sample_catalog, target_m=400.0, ballast=True, allow_smaller_motors=True)
+    solved = [c for c in result.candidates if c["ballast_kg"] is not None]
+    assert solved
+    for c in solved:
+        check = simulate(frame, [sample_catalog.get(c["motor_id"])], added_mass_kg=c["ballast_kg"], descent=False)
+        assert check.apogee_m[0] == pytest.approx(400.0, rel=1e-3)  # re-simulated: within 0.1 % of the target
+        assert c["ballast_rail_exit_speed_m_s"] < c["rail_exit_speed_m_s"]  # heavier: slower off the rail
+    low = [c for c in result.passing if c["apogee_m"] < 400.0]
+    assert low and all(c["ballast_reasons"] == ["cannot reach the target even without ballast"] for c in low)
+
+
+def test_delay_and_ejection_reasons(sample_catalog: Catalog) -> None:
+    result = _rank(sample_catalog, target_m=400.0, delay_slack_s=0.05)
+    codes = {code for c in result.candidates for code in c["reason_codes"]}
+    assert "delay" in codes
+    for c in result.candidates:
+        if c["chosen_delay_s"] is not None and c["optimal_delay_s"] is not None:
+            assert ("delay" in c["reason_codes"]) == (abs(c["chosen_delay_s"] - c["optimal_delay_s"]) > 0.05) or \
+                c["reason_codes"][:1] == ["flight"]
+
+
+def test_settings_are_validated() -> None:
+    with pytest.raises(ValueError, match="ballast needs a target"):
+        MatchSettings(ballast=True)
+    with pytest.raises(ValueError, match="max_class"):
+        MatchSettings(max_class="Z")
+
+
+def test_imperial_and_si_inputs_give_the_same_ranking(tmp_path: Path) -> None:
+    imperial = tmp_path / "imperial.toml"
+    text = AIRFRAME.read_text()
+    for si, imp in (('mass = "310 g"', f'mass = "{0.31 / 0.028349523125:.10f} oz"'),
+                    ('diameter = "41.6 mm"', f'diameter = "{41.6 / 25.4:.10f} in"'),
+                    ('rail_length = "2.4 m"', f'rail_length = "{2.4 / 0.3048:.10f} ft"'),
+                    ('elevation = "120 m"', f'elevation = "{120 / 0.3048:.10f} ft"'),
+                    ('temperature = "15 degC"', 'temperature = "59 degF"'),
+                    ('wind_speed = "3 m/s"', f'wind_speed = "{3 / 0.44704:.10f} mph"')):
+        assert si in text
+        text = text.replace(si, imp)
+    imperial.write_text(text)
+    runner = CliRunner()
+    si = json.loads(runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400",
+                                         "--ceiling", "600", "--json"]).output)
+    imp = json.loads(runner.invoke(main, ["match", str(imperial), "--catalog", str(SAMPLE_DIR), "--target",
+                                          f"{400 / 0.3048:.10f} ft", "--ceiling", f"{600 / 0.3048:.10f}ft", "--json",
+                                          "--units", "imperial"]).output)
+    assert [c["motor_id"] for c in si["candidates"]] == [c["motor_id"] for c in imp["candidates"]]
+    for a, b in zip(si["candidates"], imp["candidates"]):
+        assert a["passes"] == b["passes"]
+        if a["apogee_m"] is not None:
+            assert a["apogee_m"] == pytest.approx(b["apogee_m"], rel=1e-9)
+
+
+def test_match_json_and_text(tmp_path: Path) -> None:
+    runner = CliRunner()
+    out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--json"])
+    data = json.loads(out.output)
+    assert set(data) == {"airframe", "conditions", "candidates"}
+    for key in ("motor_id", "designation", "impulse_class", "apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s",
+                "liftoff_thrust_to_weight", "optimal_delay_s", "chosen_delay_s", "ejection_speed_m_s", "passes",
+                "reasons"):
+        assert key in data["candidates"][0], key
+    assert "range safety officer" in data["conditions"]["caution"]
+    plot = tmp_path / "m.png"
+    out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--top", "5",
+                               "--show-rejected", "--plot", str(plot), "--units", "imperial"])
+    assert out.exit_code == 0 and "Caution" in out.output and "apogee ft" in out.output and plot.exists()
+    out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--csv"])
+    assert out.exit_code == 0 and out.output.splitlines()[0].startswith("motor_id,")
+
+
+def test_match_with_a_tag(tmp_path: Path) -> None:
+    catalog = Catalog(tmp_path / "c")
+    catalog.add_files(sorted(SAMPLE_DIR.glob("*.xml")))
+    catalog.tag(["F29-8", "G59-10"], "in-stock")
+    runner = CliRunner()
+    out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(tmp_path / "c"), "--tag", "in-stock", "--json"])
+    assert sorted(c["designation"] for c in json.loads(out.output)["candidates"]) == ["F29-8", "G59-10"]
+
+
+def test_demo_runs_end_to_end(tmp_path: Path) -> None:
+    plot = tmp_path / "demo.png"
+    out = CliRunner().invoke(main, ["demo", "--plot", str(plot)])
+    assert out.exit_code == 0, out.output
+    assert "pass" in out.output and "Caution" in out.output and plot.read_bytes()[:4] == b"\x89PNG"
+    assert f"Wrote {plot}" in out.output.replace("\n", "")
+
+
+def test_plain_records_rank_like_the_catalog(sample_catalog: Catalog) -> None:
+    from motorlib.flight import MotorPack
+    from motorlib.matching import candidate_rows
+
+    frame = load_airframe(AIRFRAME)
+    rows = sample_catalog.rows()
+    records = [sample_catalog.get(r["motor_id"]) for r in rows]
+    settings = MatchSettings(target_m=400.0, allow_smaller_motors=True)
+    by_records = rank(frame, candidate_rows(records, [r["motor_id"] for r in rows]),
+                      lambda sub: MotorPack.from_records([records[[r["motor_id"] for r in rows].index(x["motor_id"])]
+                                                          for x in sub]), settings)
+    by_catalog = rank(frame, rows, sample_catalog.motor_pack, settings)
+    assert [c["motor_id"] for c in by_records.candidates] == [c["motor_id"] for c in by_catalog.candidates]
+    assert [c["apogee_m"] for c in by_records.candidates] == [c["apogee_m"] for c in by_catalog.candidates]

@@ -1,0 +1,169 @@
+"""The motor record: exact integrals, burn time, average thrust, masses, invariants."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from hypothesis import example, given, settings
+from hypothesis import strategies as st
+from scipy.integrate import cumulative_trapezoid, trapezoid
+from scipy.optimize import brentq
+
+from motorlib import CurveDataError, MotorRecord
+from motorlib.units import STANDARD_GRAVITY_M_S2
+
+from ..conftest import curves
+
+
+# Triangle oracle: check-values.md section 3.3 (D, exact).
+def test_triangle_curve_is_exact(triangle: MotorRecord) -> None:
+    assert triangle.total_impulse_ns == pytest.approx(5.0, rel=1e-15)
+    assert triangle.impulse_class.letter == "B"  # 5.000 N·s is the top of class B
+    assert triangle.peak_thrust_n == 10.0 and triangle.peak_time_s == 0.1
+    start, end = triangle.burn_window_s()
+    assert (start, end) == (pytest.approx(0.005, abs=1e-15), pytest.approx(0.955, abs=1e-15))
+    assert triangle.burn_time_s() == pytest.approx(0.950, abs=1e-14)
+    assert triangle.average_thrust_n() == pytest.approx(5.250, rel=1e-12)  # window impulse 4.9875 / 0.95
+    assert triangle.computed_designation() == "B5"
+
+
+def test_triangle_cumulative_impulse_matches_scipy(triangle: MotorRecord) -> None:
+    # Reference: scipy.integrate.cumulative_trapezoid (check-values.md 3.3 lists [0, 0.5, 5.0]).
+    expected = cumulative_trapezoid(triangle.thrust_n, triangle.time_s, initial=0)
+    np.testing.assert_allclose(triangle.cumulative_impulse_ns(), expected, rtol=1e-15)
+    np.testing.assert_allclose(expected, [0.0, 0.5, 5.0], rtol=1e-15)
+
+
+def test_rectangle_curve_is_exact() -> None:
+    # check-values.md 3.3: 10 N from 0 to 2 s with vertical edges: 20.00 N·s, top of class D; burn 2 s; 10 N.
+    rect = MotorRecord("D10", [0.0, 1e-12, 2.0 - 1e-12, 2.0], [0.0, 10.0, 10.0, 0.0])
+    assert rect.total_impulse_ns == pytest.approx(20.0, rel=1e-11)
+    assert rect.burn_time_s() == pytest.approx(2.0, rel=1e-11)
+    assert rect.average_thrust_n() == pytest.approx(10.0, rel=1e-11)
+    exact = MotorRecord("D10", [0.0, 2.0], [10.0, 10.0])
+    assert exact.total_impulse_ns == 20.0 and exact.impulse_class.letter == "D"
+    bigger = MotorRecord("E10", [0.0, 2.0], [10.0, 10.005])  # adding 0.01 N·s moves it to E
+    assert bigger.impulse_class.letter == "E"
+
+
+def test_threshold_is_a_parameter(triangle: MotorRecord) -> None:
+    # 10 % threshold: start 0.01 s, end 0.91 s (linear crossings of 1 N), burn 0.9 s.
+    assert triangle.burn_time_s(0.10) == pytest.approx(0.9, abs=1e-14)
+    with pytest.raises(ValueError, match="threshold"):
+        triangle.burn_time_s(1.5)
+
+
+@given(curves())
+def test_impulse_matches_scipy_trapezoid(curve: MotorRecord) -> None:
+    # Reference: scipy.integrate.trapezoid, exact for piecewise-linear data (check-values.md section 8).
+    assert curve.total_impulse_ns == pytest.approx(trapezoid(curve.thrust_n, curve.time_s), rel=1e-12, abs=1e-12)
+
+
+@given(curves(), st.floats(0.1, 10.0))
+def test_scaling_thrust_scales_impulse(curve: MotorRecord, factor: float) -> None:
+    scaled = MotorRecord(curve.designation, curve.time_s, factor * curve.thrust_n)
+    assert scaled.total_impulse_ns == pytest.approx(factor * curve.total_impulse_ns, rel=1e-12, abs=1e-9)
+
+
+@given(curves(), st.floats(0.0, 100.0))
+def test_shifting_time_keeps_impulse_and_burn_time(curve: MotorRecord, shift: float) -> None:
+    moved = MotorRecord(curve.designation, curve.time_s + shift, curve.thrust_n)
+    assert moved.total_impulse_ns == pytest.approx(curve.total_impulse_ns, rel=1e-9, abs=1e-9)
+    assert moved.burn_time_s() == pytest.approx(curve.burn_time_s(), rel=1e-6, abs=1e-9)
+
+
+@given(curves(), st.data())
+@example(MotorRecord("x", [0.0, 1.0], [0.0, 1.0]), None)
+def test_inserting_collinear_points_changes_nothing(curve: MotorRecord, data: st.DataObject | None) -> None:
+    i = data.draw(st.integers(0, curve.n_samples - 2)) if data else 0
+    fraction = data.draw(st.floats(0.1, 0.9)) if data else 0.5
+    t_new = curve.time_s[i] + fraction * (curve.time_s[i + 1] - curve.time_s[i])
+    if not curve.time_s[i] < t_new < curve.time_s[i + 1]:
+        return
+    f_new = float(curve.thrust_at_n(t_new))
+    denser = MotorRecord(curve.designation, np.insert(curve.time_s, i + 1, t_new), np.insert(curve.thrust_n, i + 1, f_new))
+    assert denser.total_impulse_ns == pytest.approx(curve.total_impulse_ns, rel=1e-9, abs=1e-9)
+    assert denser.peak_thrust_n == curve.peak_thrust_n
+
+
+@given(curves(), st.lists(st.floats(-1.0, 50.0), min_size=1, max_size=20))
+@settings(max_examples=50)
+def test_impulse_at_matches_dense_integration(curve: MotorRecord, times: list[float]) -> None:
+    t = np.array(times)
+    got = curve.impulse_at_ns(t)
+    for ti, gi in zip(t, got):
+        mask = curve.time_s < ti
+        knots_t = np.concatenate((curve.time_s[mask], [np.clip(ti, curve.time_s[0], curve.time_s[-1])]))
+        knots_f = np.concatenate((curve.thrust_n[mask], [curve.thrust_at_n(ti) if ti <= curve.time_s[-1] else curve.thrust_n[-1]]))
+        expected = trapezoid(knots_f, knots_t) if knots_t.size > 1 else 0.0
+        assert gi == pytest.approx(expected, rel=1e-9, abs=1e-9)
+    assert np.all(np.diff(curve.impulse_at_ns(np.sort(t))) >= -1e-12)  # impulse never decreases
+
+
+def test_thrust_at_interpolates_and_is_zero_outside(demo_record: MotorRecord) -> None:
+    np.testing.assert_allclose(demo_record.thrust_at_n([-1.0, 0.025, 0.1, 2.0]), [0.0, 7.0, 28.0, 0.0])
+
+
+def test_mass_falls_in_proportion_to_impulse(demo_record: MotorRecord) -> None:
+    t = np.array([0.0, demo_record.time_s[-1], 10.0])
+    np.testing.assert_allclose(demo_record.mass_at_kg(t), [0.044, 0.023, 0.023], rtol=1e-14)
+    half = brentq(lambda t: float(demo_record.impulse_at_ns(t)) - demo_record.total_impulse_ns / 2, 0.0, 1.45, xtol=1e-14)
+    assert float(demo_record.mass_at_kg(half)) == pytest.approx(0.044 - 0.021 / 2, rel=1e-9)
+    with pytest.raises(ValueError, match="total and propellant mass"):
+        MotorRecord("x", [0, 1], [1, 0]).mass_at_kg(0.5)
+
+
+def test_specific_impulse_and_mass_fraction(demo_record: MotorRecord) -> None:
+    # Definition: Isp = I / (m_p g0) (Sutton & Biblarz ch. 2; check-values.md 3.2).
+    assert demo_record.specific_impulse_s == pytest.approx(demo_record.total_impulse_ns / (0.021 * STANDARD_GRAVITY_M_S2))
+    assert demo_record.propellant_mass_fraction == pytest.approx(0.021 / 0.044)
+    assert demo_record.burnout_mass_kg == pytest.approx(0.023)
+    bare = MotorRecord("x", [0, 1], [1, 0])
+    assert bare.specific_impulse_s is None and bare.propellant_mass_fraction is None
+
+
+def test_tsiolkovsky_with_a_record_isp() -> None:
+    # Tsiolkovsky: dv = Isp g0 ln(m0/mf); check-values.md 6.2: Isp 200 s, 1.0 -> 0.8 kg gives 437.65814 m/s.
+    impulse = 200.0 * 0.2 * STANDARD_GRAVITY_M_S2
+    record = MotorRecord("x", [0.0, 1.0, 2.0], [0.0, impulse, 0.0], total_mass_kg=1.0, propellant_mass_kg=0.2)
+    dv = record.specific_impulse_s * STANDARD_GRAVITY_M_S2 * np.log(1.0 / record.burnout_mass_kg)
+    assert dv == pytest.approx(437.65814, rel=1e-7)
+
+
+def test_records_are_frozen_and_compare_by_value(demo_record: MotorRecord) -> None:
+    with pytest.raises(ValueError):
+        demo_record.time_s[0] = 1.0
+    with pytest.raises(AttributeError):
+        demo_record.designation = "E"  # type: ignore[misc]
+    twin = MotorRecord(**{f: getattr(demo_record, f) for f in demo_record.__dataclass_fields__})
+    assert twin == demo_record
+    assert MotorRecord("x", [0, 1], [1, 0]) != MotorRecord("x", [0, 1], [1, 0.5])
+
+
+@pytest.mark.parametrize(("kwargs", "code"), [
+    (dict(time_s=[0.0, 0.5, 0.5], thrust_n=[0, 1, 0]), "time-not-increasing"),
+    (dict(time_s=[-0.1, 0.5], thrust_n=[0, 1]), "time-negative"),
+    (dict(time_s=[0.0, np.nan], thrust_n=[0, 1]), "time-not-finite"),
+    (dict(time_s=[0.0, 0.5], thrust_n=[0, -1]), "thrust-negative"),
+    (dict(time_s=[0.0, 0.5], thrust_n=[0, np.inf]), "thrust-not-finite"),
+    (dict(time_s=[0.0], thrust_n=[1.0]), "too-few-samples"),
+    (dict(time_s=[0.0, 1.0], thrust_n=[0.0, 0.0]), "no-thrust"),
+    (dict(time_s=[0.0, 1.0, 2.0], thrust_n=[0.0, 1.0]), "shape-mismatch"),
+    (dict(diameter_m=-0.018), "hardware-not-positive"),
+    (dict(total_mass_kg=0.01, propellant_mass_kg=0.02), "propellant-exceeds-total-mass"),
+    (dict(delays_s=(-3.0,)), "delay-not-positive"),
+    (dict(delays_s=(5.0, 5.0)), "delay-repeated"),
+    (dict(designation=" "), "designation-missing"),
+])
+def test_invariants_raise_with_a_code(kwargs: dict, code: str) -> None:
+    args = dict(designation="C6-5", time_s=[0.0, 0.5, 1.0], thrust_n=[0.0, 10.0, 0.0])
+    args.update(kwargs)
+    with pytest.raises(CurveDataError) as info:
+        MotorRecord(**args)
+    assert code in [p.code for p in info.value.problems]
+
+
+def test_all_problems_are_listed_at_once() -> None:
+    with pytest.raises(CurveDataError, match=r"and 2 more problem") as info:
+        MotorRecord("C6", [0.0, 1.0, 1.0], [0.0, -1.0, 0.0], diameter_m=-1.0)
+    assert [p.code for p in info.value.problems] == ["time-not-increasing", "thrust-negative", "hardware-not-positive"]
