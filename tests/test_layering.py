@@ -1,29 +1,122 @@
-"""The numerics import no lxml, pandas, click or rich; the CLI start-up path imports no pandas or scipy."""
+"""The package layout holds: layers import downward only, the numerics stay light, the CLI starts fast.
+
+Layers, bottom to top (DEVELOPERS.md, "Layout"): errors, units -> motor -> flight -> matching -> files ->
+catalog -> present -> cli.  A module may import its own folder and folders below it, never one above.
+Two kinds of check: a static one that reads every ``import`` statement in the source (including imports inside
+functions, which a runtime probe would miss), and a runtime one in a fresh interpreter that sees what a module
+pulls in transitively.
+"""
 
 from __future__ import annotations
 
+import ast
 import json
 import subprocess
 import sys
+from pathlib import Path
 
 import pytest
 
-NUMERIC_MODULES = ["motorlib.units", "motorlib.motor.classes", "motorlib.motor.record", "motorlib.motor.checks", "motorlib.errors",
-                   "motorlib.flight.atmosphere", "motorlib.flight.airframe", "motorlib.flight", "motorlib.flight.descent", "motorlib.flight.rules",
-                   "motorlib.matching", "motorlib.motor.reduction"]
-HEAVY = ["lxml", "pandas", "click", "rich", "scipy", "matplotlib"]
+PACKAGE = Path(__file__).resolve().parent.parent / "motorlib"
+LAYERS = ["errors", "units", "motor", "flight", "matching", "files", "catalog", "present", "cli"]
+# errors and units are one layer (units raises QuantityError): both sit at rank 0.
+RANK = {name: max(0, i - 1) for i, name in enumerate(LAYERS)}
+
+# Third-party packages each layer must not import (directly or inside a function).
+FORBIDDEN = {
+    "motor": {"lxml", "sqlite3", "pandas", "click", "rich", "matplotlib"},
+    "flight": {"lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
+    "matching": {"lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
+    "files": {"click", "rich", "sqlite3"},
+    "catalog": {"click", "rich"},
+    "present": {"click"},
+    "errors": {"numpy", "lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
+    "units": {"numpy", "lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
+}
+
+
+def _layer_of(path: Path) -> str:
+    rel = path.relative_to(PACKAGE)
+    return rel.parts[0] if len(rel.parts) > 1 else rel.stem
+
+
+def _imports(path: Path) -> list[tuple[int, str]]:
+    """(line, absolute dotted name) of every import in a module, relative imports resolved."""
+    tree = ast.parse(path.read_text(), filename=str(path))
+    package = ["motorlib", *path.relative_to(PACKAGE).parts[:-1]]
+    found: list[tuple[int, str]] = []
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Import):
+            found += [(node.lineno, alias.name) for alias in node.names]
+        elif isinstance(node, ast.ImportFrom):
+            if node.level:
+                base = package[: len(package) - node.level + 1]
+                module = ".".join(base + ([node.module] if node.module else []))
+                if not node.module:  # `from . import x`: each name is a module of that package
+                    found += [(node.lineno, f"{module}.{alias.name}") for alias in node.names]
+                    continue
+            else:
+                module = node.module or ""
+            found.append((node.lineno, module))
+    return found
+
+
+MODULES = sorted(p for p in PACKAGE.rglob("*.py") if p.name != "__main__.py" and p != PACKAGE / "__init__.py")
+
+
+def test_every_module_is_in_a_known_layer() -> None:
+    unknown = {_layer_of(p) for p in MODULES} - set(LAYERS)
+    assert not unknown, f"add these folders to LAYERS (and DEVELOPERS.md): {unknown}"
+
+
+@pytest.mark.parametrize("path", MODULES, ids=lambda p: str(p.relative_to(PACKAGE)))
+def test_imports_point_down_only(path: Path) -> None:
+    layer = _layer_of(path)
+    wrong = []
+    for line, name in _imports(path):
+        parts = name.split(".")
+        if parts[0] == "motorlib":
+            if len(parts) == 1:
+                target = "__init__"
+            else:
+                target = parts[1]
+            if target == "__init__" or target == "__version__":
+                if layer != "cli":  # only the CLI may read the package top (for __version__)
+                    wrong.append(f"line {line}: imports the package top")
+                continue
+            if RANK[target] > RANK[layer]:
+                wrong.append(f"line {line}: {layer} imports {name} (a layer above)")
+        elif parts[0] in FORBIDDEN.get(layer, set()):
+            wrong.append(f"line {line}: {layer} imports {parts[0]}")
+    assert not wrong, wrong
+
+
+def test_only_cli_imports_click_and_only_present_and_cli_import_rich() -> None:
+    for path in MODULES:
+        layer = _layer_of(path)
+        tops = {name.split(".")[0] for _, name in _imports(path)}
+        if layer != "cli":
+            assert "click" not in tops, path
+        if layer not in ("cli", "present"):
+            assert "rich" not in tops, path
+
+
+def test_the_static_probe_sees_imports_inside_functions() -> None:
+    # Guard against a probe that can never fail: the CLI imports matplotlib charts only inside commands.
+    names = {name for path in (PACKAGE / "cli").rglob("*.py") for _, name in _imports(path)}
+    assert "motorlib.present.plots" in names
 
 
 def _modules_after_import(statement: str) -> set[str]:
     code = f"import sys, json\n{statement}\nprint(json.dumps(sorted(sys.modules)))"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
-    return set(json.loads(out))
+    return {name.split(".")[0] for name in json.loads(out)}
 
 
 def _top_level_modules_of(module: str) -> set[str]:
     # Import the module alone, bypassing motorlib/__init__ (which re-exports the I/O modules too).
     code = (
-        "import sys, types, importlib, pathlib, json\n"
+        "import sys, types, importlib, json\n"
         "import importlib.util as u\n"
         "spec = u.find_spec('motorlib')\n"
         "pkg = types.ModuleType('motorlib'); pkg.__path__ = list(spec.submodule_search_locations)\n"
@@ -35,20 +128,19 @@ def _top_level_modules_of(module: str) -> set[str]:
     return {name.split(".")[0] for name in json.loads(out)}
 
 
-@pytest.mark.parametrize("module", NUMERIC_MODULES)
-def test_numerics_stay_light(module: str) -> None:
-    loaded = _top_level_modules_of(module)
-    assert not loaded & set(HEAVY), loaded & set(HEAVY)
+@pytest.mark.parametrize("package", ["motorlib.motor", "motorlib.flight", "motorlib.matching"])
+def test_numerics_stay_light_in_a_fresh_interpreter(package: str) -> None:
+    loaded = _top_level_modules_of(package)
+    assert not loaded & (FORBIDDEN[package.split(".")[1]] | {"scipy"})
 
 
-def test_the_probe_can_see_a_heavy_import() -> None:
-    # Guard against a probe that can never fail: xmlio does import lxml.
+def test_the_runtime_probe_can_see_a_heavy_import() -> None:
     assert "lxml" in _top_level_modules_of("motorlib.files.motor_xml")
 
 
-def test_cli_start_up_imports_no_pandas_or_scipy() -> None:
-    loaded = {name.split(".")[0] for name in _modules_after_import("import motorlib.cli")}
-    assert "pandas" not in loaded and "scipy" not in loaded and "matplotlib" not in loaded
+def test_cli_start_up_imports_no_pandas_scipy_or_matplotlib() -> None:
+    loaded = _modules_after_import("import motorlib.cli.main")
+    assert not loaded & {"pandas", "scipy", "matplotlib"}
 
 
 def test_match_path_imports_no_pandas_scipy_or_matplotlib() -> None:
@@ -62,5 +154,4 @@ def test_match_path_imports_no_pandas_scipy_or_matplotlib() -> None:
         "rank(load_airframe(sample_catalog_dir() / 'airframes' / 'quibble-41.toml'), c.rows(), c.motor_pack,"
         " MatchSettings(target_m=400.0))\n"
     )
-    loaded = {name.split(".")[0] for name in _modules_after_import(statement)}
-    assert not loaded & {"pandas", "scipy", "matplotlib"}
+    assert not _modules_after_import(statement) & {"pandas", "scipy", "matplotlib"}
