@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as dt
+import os
 from pathlib import Path
 
 import numpy as np
@@ -14,6 +15,27 @@ from motorlib import MotorRecord, Provenance
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLE_DIR = ROOT / "sample_curves"
 FIXTURE_DIR = Path(__file__).resolve().parent / "fixtures"
+
+
+@pytest.fixture(scope="session")
+def _chart_cache_dir(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """One private matplotlib cache for the session (its font cache takes seconds to build)."""
+    return tmp_path_factory.mktemp("mplconfig")
+
+
+@pytest.fixture(autouse=True)
+def _hermetic_user_folders(tmp_path_factory: pytest.TempPathFactory, monkeypatch: pytest.MonkeyPatch,
+                           _chart_cache_dir: Path) -> None:
+    """Every test gets its own empty data, config and home folders and no motorlib settings from the caller.
+
+    A catalog or settings file in the real user folders must neither change a test's result nor be written to.
+    """
+    home = tmp_path_factory.mktemp("home")
+    for name in ("HOME", "XDG_DATA_HOME", "XDG_CONFIG_HOME", "XDG_CACHE_HOME", "LOCALAPPDATA", "APPDATA"):
+        monkeypatch.setenv(name, str(home / name.lower()))
+    for name in [n for n in os.environ if n.startswith("MOTORLIB_")] + ["COLUMNS", "LINES", "NO_COLOR", "FORCE_COLOR"]:
+        monkeypatch.delenv(name, raising=False)
+    monkeypatch.setenv("MPLCONFIGDIR", str(_chart_cache_dir))
 
 
 @pytest.fixture
