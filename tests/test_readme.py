@@ -34,3 +34,12 @@ def test_readme_shows_the_safety_caution() -> None:
     text = (ROOT / "README.md").read_text().lower()
     for phrase in ("safety code", "range safety officer", "certification", "estimates"):
         assert phrase in text
+
+
+def test_readme_python_examples_run(monkeypatch) -> None:
+    # The package-layout issue: the README's Python tour must keep working after modules move.
+    blocks = re.findall(r"```python\n(.*?)\n```", (ROOT / "README.md").read_text(), re.S)
+    assert blocks
+    monkeypatch.chdir(ROOT)
+    for block in blocks:
+        exec(compile(block, "README.md", "exec"), {})
