@@ -7,45 +7,128 @@ and is never imported by this module.  Layout: ``motor/`` (one motor), ``flight/
 
 from __future__ import annotations
 
+import importlib as _importlib
+import typing as _typing
+
 __version__ = "0.1.0"
 
-from .flight.airframe import Airframe, Launch, Recovery
-from .files.airframe_toml import load_airframe
-from .flight.atmosphere import Site
-from .catalog.store import Catalog, CatalogFilter
-from .motor.checks import CheckSettings, Finding, check_record, metrics
-from .motor.classes import (
-    CLASS_LETTERS,
-    Designation,
-    ImpulseClass,
-    class_bounds_ns,
-    format_designation,
-    impulse_class_for,
-    parse_designation,
-)
-from .files.motor_csv import CurveMetadata, read_csv_curve, record_from_csv
-from .motor.record import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
-from .files.curvefiles import CheckReport, check_file, load_curve_file
-from .errors import (
-    CatalogError,
-    CsvFormatError,
-    CurveDataError,
-    CurveError,
-    CurveSyntaxError,
-    DesignationError,
-    MotorlibError,
-    MotorNotFoundError,
-    MotorlibWarning,
-    QuantityError,
-    SchemaValidationError,
-    SimulationInputError,
-)
-from .flight.integrate import FlightResults, FlightSettings, MotorPack, simulate
-from .matching.rank import MatchResult, MatchSettings, rank
-from .motor.reduction import Reduction, ReductionSettings, reduce_log
-from .flight.rules import LaunchRules
-from .units import parse_quantity
-from .files.motor_xml import read_record, record_from_bytes, record_to_bytes, write_record
+# Each public name and the module that defines it, imported on first use (PEP 562 module ``__getattr__``), so
+# that ``import motorlib`` and the command line's start-up (``motorlib --version``, ``--help``) load no numpy
+# or lxml; a command imports what it needs when it runs.
+_EXPORTS = {
+    "Airframe": ".flight.airframe",
+    "CLASS_LETTERS": ".motor.classes",
+    "Catalog": ".catalog.store",
+    "CatalogError": ".errors",
+    "CatalogFilter": ".catalog.store",
+    "CheckReport": ".files.curvefiles",
+    "CheckSettings": ".motor.checks",
+    "CsvFormatError": ".errors",
+    "CurveDataError": ".errors",
+    "CurveError": ".errors",
+    "CurveMetadata": ".files.motor_csv",
+    "CurveSyntaxError": ".errors",
+    "DEFAULT_BURN_THRESHOLD": ".motor.record",
+    "Designation": ".motor.classes",
+    "DesignationError": ".errors",
+    "Finding": ".motor.checks",
+    "FlightResults": ".flight.integrate",
+    "FlightSettings": ".flight.integrate",
+    "ImpulseClass": ".motor.classes",
+    "Launch": ".flight.airframe",
+    "LaunchRules": ".flight.rules",
+    "MatchResult": ".matching.rank",
+    "MatchSettings": ".matching.rank",
+    "MotorNotFoundError": ".errors",
+    "MotorPack": ".flight.integrate",
+    "MotorRecord": ".motor.record",
+    "MotorlibError": ".errors",
+    "MotorlibWarning": ".errors",
+    "Provenance": ".motor.record",
+    "QuantityError": ".errors",
+    "Recovery": ".flight.airframe",
+    "Reduction": ".motor.reduction",
+    "ReductionSettings": ".motor.reduction",
+    "SchemaValidationError": ".errors",
+    "SimulationInputError": ".errors",
+    "Site": ".flight.atmosphere",
+    "check_file": ".files.curvefiles",
+    "check_record": ".motor.checks",
+    "class_bounds_ns": ".motor.classes",
+    "format_designation": ".motor.classes",
+    "impulse_class_for": ".motor.classes",
+    "load_airframe": ".files.airframe_toml",
+    "load_curve_file": ".files.curvefiles",
+    "metrics": ".motor.checks",
+    "parse_designation": ".motor.classes",
+    "parse_quantity": ".units",
+    "rank": ".matching.rank",
+    "read_csv_curve": ".files.motor_csv",
+    "read_record": ".files.motor_xml",
+    "record_from_bytes": ".files.motor_xml",
+    "record_from_csv": ".files.motor_csv",
+    "record_to_bytes": ".files.motor_xml",
+    "reduce_log": ".motor.reduction",
+    "simulate": ".flight.integrate",
+    "write_record": ".files.motor_xml",
+}
+# Subpackages reachable as attributes after ``import motorlib``, as when the re-exports were eager.
+_SUBMODULES = frozenset({"catalog", "errors", "files", "flight", "matching", "motor", "units"})
+
+if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
+    from .flight.airframe import Airframe, Launch, Recovery
+    from .files.airframe_toml import load_airframe
+    from .flight.atmosphere import Site
+    from .catalog.store import Catalog, CatalogFilter
+    from .motor.checks import CheckSettings, Finding, check_record, metrics
+    from .motor.classes import (
+        CLASS_LETTERS,
+        Designation,
+        ImpulseClass,
+        class_bounds_ns,
+        format_designation,
+        impulse_class_for,
+        parse_designation,
+    )
+    from .files.motor_csv import CurveMetadata, read_csv_curve, record_from_csv
+    from .motor.record import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
+    from .files.curvefiles import CheckReport, check_file, load_curve_file
+    from .errors import (
+        CatalogError,
+        CsvFormatError,
+        CurveDataError,
+        CurveError,
+        CurveSyntaxError,
+        DesignationError,
+        MotorlibError,
+        MotorNotFoundError,
+        MotorlibWarning,
+        QuantityError,
+        SchemaValidationError,
+        SimulationInputError,
+    )
+    from .flight.integrate import FlightResults, FlightSettings, MotorPack, simulate
+    from .matching.rank import MatchResult, MatchSettings, rank
+    from .motor.reduction import Reduction, ReductionSettings, reduce_log
+    from .flight.rules import LaunchRules
+    from .units import parse_quantity
+    from .files.motor_xml import read_record, record_from_bytes, record_to_bytes, write_record
+
+
+def __getattr__(name: str) -> object:
+    if name in _EXPORTS:
+        value = getattr(_importlib.import_module(_EXPORTS[name], __name__), name)
+    elif name in _SUBMODULES:
+        value = _importlib.import_module(f".{name}", __name__)
+    else:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    globals()[name] = value  # later look-ups bypass __getattr__
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))
+
 
 __all__ = [
     "Airframe",

@@ -1,0 +1,316 @@
+"""``motorlib catalog``: the catalog group (add, list, show, tag, untag, remove, export, verify, reindex)."""
+
+from __future__ import annotations
+
+import json
+import sys
+from typing import Any
+
+import click
+
+from ..errors import QuantityError
+from .group import _Group
+from .options import _catalog_option, _metadata, _metadata_options, _open_catalog, _Quantity
+from .output import _console, _err_console
+
+
+@click.group(cls=_Group)
+def catalog() -> None:
+    """Keep a local catalog of checked thrust curves: add, list, show, tag, export.
+
+    \b
+    Example:
+      motorlib catalog --catalog ./motors add sample_curves/
+      motorlib catalog --catalog ./motors list --class D..G --diameter 29mm
+    """
+
+
+def _range(text: str | None, kind: str, default_unit: str, name: str) -> tuple[float | None, float | None]:
+    if not text:
+        return (None, None)
+    from ..units import parse_quantity
+
+    low, _, high = text.partition("..")
+    try:
+        lo = parse_quantity(low, kind, field=name, default_unit=default_unit) if low.strip() else None
+        hi = parse_quantity(high, kind, field=name, default_unit=default_unit) if high.strip() else None
+    except QuantityError as exc:
+        raise click.BadParameter(exc.problem, param_hint=name) from None
+    if not _ and hi is None:
+        hi = lo
+    return lo, hi
+
+
+def _filter_options(func: Any) -> Any:
+    options = [
+        click.option("--class", "class_range", help="Impulse class or range, e.g. D or D..G."),
+        click.option("--diameter", "diameter", type=_Quantity("length", "mm"), help="Motor diameter; a bare number is mm."),
+        click.option("--maker", help="Part of the maker's name."),
+        click.option("--impulse", help="Total impulse range in N·s, e.g. 40..160 (either end may be left out)."),
+        click.option("--burn", help="Burn time range in s, e.g. 1..3."),
+        click.option("--delay", "delay_s", type=float, help="Only motors offering this ejection delay (s)."),
+        click.option("--search", "text", help="Text to find in designation, maker, notes or handle."),
+        click.option("--tag", help="Only motors with this tag."),
+    ]
+    for option in reversed(options):
+        func = option(func)
+    return func
+
+
+def _filter(opts: dict[str, Any]) -> Any:
+    from ..catalog.store import CatalogFilter, parse_class_range
+
+    try:
+        classes = parse_class_range(opts["class_range"]) if opts.get("class_range") else None
+    except ValueError as exc:
+        raise click.BadParameter(str(exc), param_hint="--class") from None
+    return CatalogFilter(class_range=classes, diameter_m=opts.get("diameter"), maker=opts.get("maker"),
+                         impulse_range_ns=_range(opts.get("impulse"), "impulse", "Ns", "--impulse"),
+                         burn_range_s=_range(opts.get("burn"), "time", "s", "--burn"), delay_s=opts.get("delay_s"),
+                         text=opts.get("text"), tag=opts.get("tag"))
+
+
+@catalog.command("add")
+@_catalog_option
+@click.argument("paths", nargs=-1, required=True, type=click.Path(exists=True))
+@click.option("--force", is_flag=True, help="Add curves even when the checks find errors (the file records them).")
+@_metadata_options
+def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **opts: Any) -> None:
+    """Check and add curve files (XML, or CSV with metadata options) or folders of them.
+
+    Curves with errors are refused unless --force. Exact duplicates are not
+    added again; curves with the same maker and designation as one already in
+    the catalog are added and reported as near-duplicates.
+
+    \b
+    Example:
+      motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" --diameter 24 \\
+          --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 --source-kind static-test
+    """
+    from collections import Counter
+
+    from ..present import tables as render
+    from ..files.curvefiles import find_curve_files
+
+    cat = _open_catalog(catalog_dir)
+    files = find_curve_files(list(paths))
+    console = _console()
+    kwargs = dict(metadata=_metadata(opts), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
+    if len(files) > 20:
+        from rich.progress import Progress
+
+        with Progress(console=_err_console(), transient=True) as progress:
+            task = progress.add_task("adding curves", total=len(files))
+            results = cat.add_files(files, progress=lambda n: progress.advance(task, n), **kwargs)
+    else:
+        results = cat.add_files(files, **kwargs)
+    if any(r.status != "added" or r.near_duplicates for r in results):
+        console.print(render.add_results_table(results))
+    counts = Counter(r.status for r in results)
+    console.print(f"{len(results)} file(s): {counts['added']} added, {counts['duplicate']} already present, "
+                  f"{counts['refused']} refused, {counts['unreadable']} unreadable; the catalog now holds "
+                  f"{len(cat)} motor(s) in {render.escape(str(cat.root))}")
+    if counts["refused"] or counts["unreadable"]:
+        sys.exit(1)
+
+
+@catalog.command("list")
+@_catalog_option
+@_filter_options
+@click.option("--sort", default="total_impulse_ns", show_default=True,
+              help="Column to sort by, e.g. total_impulse_ns, average_thrust_n, burn_time_s, designation, maker.")
+@click.option("--desc", is_flag=True, help="Sort in descending order.")
+@click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
+@click.option("--csv", "as_csv", is_flag=True, help="Print CSV (SI units).")
+def catalog_list(catalog_dir: str | None, sort: str, desc: bool, as_json: bool, as_csv: bool, **opts: Any) -> None:
+    """List the motors in the catalog, filtered and sorted.
+
+    \b
+    Example:
+      motorlib catalog list --class D..G --diameter 29 --delay 6 --sort average_thrust_n
+      motorlib catalog list --tag in-stock --json
+    """
+    from ..catalog.store import SORT_KEYS
+
+    if sort not in SORT_KEYS:
+        raise click.BadParameter(f"expected one of {', '.join(SORT_KEYS)}", param_hint="--sort")
+    cat = _open_catalog(catalog_dir)
+    rows = cat.rows(_filter(opts), sort=sort, descending=desc)
+    if as_json:
+        click.echo(json.dumps(rows, indent=2))
+    elif as_csv:
+        import csv
+        import io
+
+        buffer = io.StringIO()
+        columns = [c for c in rows[0] if c != "findings"] if rows else []
+        writer = csv.DictWriter(buffer, columns, extrasaction="ignore")
+        writer.writeheader()
+        for row in rows:
+            writer.writerow({**row, "delays_s": " ".join(f"{d:g}" for d in row["delays_s"])})
+        click.echo(buffer.getvalue(), nl=False)
+    else:
+        from ..present import tables as render
+
+        _console().print(render.catalog_table(rows, f"{len(rows)} of {len(cat)} motor(s) in {cat.root}"))
+
+
+@catalog.command("show")
+@_catalog_option
+@click.argument("refs", nargs=-1, required=True)
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write the curve(s) to this PNG file.")
+def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str | None) -> None:
+    """Show motors by id, handle or designation: metadata, metrics, findings and the curve.
+
+    Several motors are also compared in one table, and --plot overlays their curves.
+
+    \b
+    Example:
+      motorlib catalog show G59-10 F29-8 --plot compare.png
+    """
+    from ..present import tables as render
+    from ..motor.checks import check_record, metrics
+    from ..files.curvefiles import CheckReport
+
+    cat = _open_catalog(catalog_dir)
+    console = _console()
+    records = []
+    for ref in refs:
+        motor_id = cat.resolve(ref)
+        record = cat.get(motor_id)
+        records.append((motor_id, record))
+        report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0]['handle']}", True, record,
+                             tuple(check_record(record, cat.settings)), metrics(record, cat.settings.burn_threshold))
+        console.print(render.check_details(report))
+        console.print(f"  thrust |{render.sparkline(record.time_s, record.thrust_n)}| {record.peak_thrust_n:.4g} N peak")
+        console.print()
+    if len(records) > 1:
+        console.print(render.catalog_table(cat.rows(_ids(*[i for i, _ in records])), "Comparison"))
+    if plot_path:
+        from ..present.plots import curves_plot
+
+        path = curves_plot([r for _, r in records], plot_path, cat.settings.burn_threshold)
+        console.print(f"Wrote {render.escape(str(path))}")
+
+
+def _ids(*ids: str) -> Any:
+    from ..catalog.store import CatalogFilter
+
+    return CatalogFilter(ids=tuple(ids))
+
+
+@catalog.command("tag")
+@_catalog_option
+@click.argument("refs", nargs=-1, required=True)
+@click.argument("name")
+def catalog_tag(catalog_dir: str | None, refs: tuple[str, ...], name: str) -> None:
+    """Tag motors, e.g. the ones in stock: catalog tag REF... NAME.
+
+    \b
+    Example:
+      motorlib catalog tag G59-10 F29-8 in-stock
+    """
+    cat = _open_catalog(catalog_dir)
+    ids = cat.tag(list(refs), name)
+    _console().print(f"Tagged {len(ids)} motor(s) {name!r}.")
+
+
+@catalog.command("untag")
+@_catalog_option
+@click.argument("refs", nargs=-1, required=True)
+@click.argument("name")
+def catalog_untag(catalog_dir: str | None, refs: tuple[str, ...], name: str) -> None:
+    """Remove a tag from motors: catalog untag REF... NAME.
+
+    \b
+    Example:
+      motorlib catalog untag F29-8 in-stock
+    """
+    cat = _open_catalog(catalog_dir)
+    ids = cat.untag(list(refs), name)
+    _console().print(f"Removed tag {name!r} from {len(ids)} motor(s).")
+
+
+@catalog.command("remove")
+@_catalog_option
+@click.argument("refs", nargs=-1, required=True)
+def catalog_remove(catalog_dir: str | None, refs: tuple[str, ...]) -> None:
+    """Delete motors (their files, index rows and tags).
+
+    \b
+    Example:
+      motorlib catalog remove bramblewick-propulsion-fictional/g59-10
+    """
+    cat = _open_catalog(catalog_dir)
+    for ref in refs:
+        _console().print(f"Removed {cat.remove(ref)}")
+
+
+@catalog.command("export")
+@_catalog_option
+@click.argument("refs", nargs=-1)
+@_filter_options
+@click.option("--to", "folder", required=True, type=click.Path(file_okay=False), help="Folder to write into.")
+@click.option("--format", "fmt", type=click.Choice(["xml", "csv", "json"]), default="xml", show_default=True,
+              help="xml: our format; csv: time_s,thrust_n per motor; json: one file with every motor.")
+def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, fmt: str, **opts: Any) -> None:
+    """Export motors (the REFs given, else those passing the filters) to a folder.
+
+    \b
+    Example:
+      motorlib catalog export --class G --to ./g-motors --format csv
+    """
+    from ..catalog.store import CatalogFilter
+    from ..files.export import export_records
+
+    cat = _open_catalog(catalog_dir)
+    ids = [cat.resolve(r) for r in refs] if refs else [r["motor_id"] for r in cat.rows(_filter(opts))]
+    rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
+    written = export_records([(r["handle"], cat.get(r["motor_id"])) for r in rows], folder, fmt)
+    _console().print(f"Exported {len(rows)} motor(s) to {len(written)} file(s) in {folder}")
+
+
+@catalog.command("verify")
+@_catalog_option
+def catalog_verify(catalog_dir: str | None) -> None:
+    """Re-read every curve file, re-run every check and report problems.
+
+    Exit status 1 when a file is unreadable or a curve has errors.
+
+    \b
+    Example:
+      motorlib catalog verify
+    """
+    from ..present import tables as render
+    from ..files.curvefiles import check_file
+
+    cat = _open_catalog(catalog_dir)
+    reports = [check_file(cat.root / row["path"], cat.settings) for row in cat.rows()]
+    console = _console()
+    bad = [r for r in reports if any(f.severity != "note" for f in r.findings)]
+    for report in bad:
+        console.print(f"[bold]{render.escape(report.source)}[/bold]")
+        console.print(render.findings_text(report, include_notes=False), end="")
+    known = {row["motor_id"] for row in cat.rows()}
+    orphans = {t: [i for i in ids if i not in known] for t, ids in cat.tags().items()}
+    for tag, ids in orphans.items():
+        if ids:
+            console.print(f"[yellow]tag {tag!r} names {len(ids)} motor id(s) no longer in the catalog[/yellow]")
+    n_errors = sum(not r.ok for r in reports) + len(cat.problems)
+    console.print(f"{len(reports)} curve(s) verified: {n_errors} with errors, {len(cat.problems)} file(s) skipped.")
+    if n_errors:
+        sys.exit(1)
+
+
+@catalog.command("reindex")
+@_catalog_option
+def catalog_reindex(catalog_dir: str | None) -> None:
+    """Rebuild the catalog index from the curve files.
+
+    \b
+    Example:
+      motorlib catalog reindex
+    """
+    cat = _open_catalog(catalog_dir)
+    count = cat.reindex()
+    _console().print(f"Re-read {count} file(s); the catalog holds {len(cat)} motor(s).")

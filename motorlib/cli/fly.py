@@ -1,0 +1,122 @@
+"""``motorlib fly``: one flight of an airframe with one motor."""
+
+from __future__ import annotations
+
+import json
+from typing import Any
+
+import click
+
+from .options import _catalog_or_samples, _open_catalog, _Quantity
+from .output import _EPILOG, _caution, _console
+
+
+@click.command()
+@click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
+@click.option("--motor", "motor_ref", required=True,
+              help="A curve file (.xml or .csv), or a motor id, handle or designation in the catalog (e.g. F29-8).")
+@click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
+              help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
+                   "else the bundled sample curves).")
+@click.option("--delay", "delay_s", type=float, help="Ejection delay to use in seconds (default: the listed delay "
+                                                      "closest to the optimal one).")
+@click.option("--ballast", "ballast_kg", type=_Quantity("mass", "g"), default=None,
+              help="Mass added to the airframe; a bare number is g (e.g. 25, 1.2oz).")
+@click.option("--units", type=click.Choice(["si", "imperial"]), default="si", show_default=True,
+              help="Units of the table.")
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
+@click.option("--csv", "csv_path", type=click.Path(dir_okay=False), help="Write the trajectory to this CSV file.")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write altitude, speed and acceleration "
+                                                                           "against time to this PNG file.")
+def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
+        units: str, as_json: bool, csv_path: str | None, plot_path: str | None) -> None:
+    """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
+
+    Prints rail exit speed, apogee, optimal delay, the ejection altitude and
+    speed at each delay, and descent figures when the airframe has recovery,
+    with warnings from launch rules of thumb. Times count from motor ignition.
+
+    \b
+    Example:
+      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8 --plot f29.png
+      motorlib fly my-rocket.toml --motor tests/static-3.xml --delay 6 --json
+    """
+    import numpy as np
+
+    from ..files.airframe_toml import load_airframe
+    from ..flight.integrate import simulate
+    from ..flight.rules import flight_warnings
+
+    frame = load_airframe(airframe_file)
+    motor = _load_motor(motor_ref, catalog_dir)
+    wanted = None if delay_s is None else np.array([delay_s])
+    record = _record_for_delay(motor, delay_s)
+    results = simulate(frame, [record], added_mass_kg=ballast_kg or 0.0, deploy_delay_s=wanted,
+                       trajectories=bool(csv_path or plot_path))
+    summary = results.summary(0, record.delays_s)
+    summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
+    if delay_s is not None and frame.recovery is None:
+        summary["chosen_delay_s"] = delay_s
+    warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    written = []
+    if csv_path:
+        written.append(_write_trajectory_csv(results.trajectories[0], csv_path))
+    if plot_path:
+        from ..present.plots import flight_plot
+
+        written.append(flight_plot(results.trajectories[0], summary, f"{frame.name} with {motor.designation}",
+                                   plot_path))
+    if as_json:
+        payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
+                   "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
+        click.echo(json.dumps(payload, indent=2))
+        return
+    from ..present import tables as render
+
+    console = _console()
+    console.print(render.flight_table(summary, f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
+                                      units))
+    if warnings:
+        console.print(render.warnings_text(warnings), end="")
+    for path in written:
+        console.print(f"Wrote {render.escape(str(path))}")
+    _caution(console)
+
+
+def _load_motor(motor_ref: str, catalog_dir: str | None) -> Any:
+    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog."""
+    from pathlib import Path
+
+    from ..files.curvefiles import load_curve_file
+
+    if Path(motor_ref).is_file():
+        return load_curve_file(motor_ref)
+    return _open_catalog(_catalog_or_samples(catalog_dir)).get(motor_ref)
+
+
+def _record_for_delay(motor: Any, delay_s: float | None) -> Any:
+    """``motor`` to fly with ``--delay``: refuses a delay not on offer; adds a shortened adjustable delay."""
+    if delay_s is not None and motor.delays_s and not motor.delay_adjustable and delay_s not in motor.delays_s:
+        raise click.UsageError(f"--delay {delay_s:g}: {motor.designation} offers {', '.join(f'{d:g}' for d in motor.delays_s)} s")
+    if delay_s is not None and motor.delay_adjustable and delay_s not in motor.delays_s:
+        if not motor.delays_s or delay_s > max(motor.delays_s):
+            raise click.UsageError(f"--delay {delay_s:g}: an adjustable delay can only be shortened below "
+                                   f"{max(motor.delays_s or (0,)):g} s")
+        from dataclasses import replace
+
+        return replace(motor, delays_s=tuple(sorted(set(motor.delays_s) | {delay_s})))
+    return motor
+
+
+def _write_trajectory_csv(trajectory: dict[str, Any], path: str) -> Any:
+    import io
+
+    from ..files.fsio import write_atomic
+
+    buffer = io.StringIO()
+    names = ["time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2"]
+    buffer.write(",".join(names + ["phase"]) + "\n")
+    for row in range(len(trajectory["time_s"])):
+        values = [repr(float(trajectory[n][row])) for n in names]
+        buffer.write(",".join(values + ["descent" if trajectory["descent"][row] else "ascent"]) + "\n")
+    return write_atomic(path, buffer.getvalue().encode())

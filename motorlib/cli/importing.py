@@ -1,0 +1,60 @@
+"""``motorlib import``: convert a CSV thrust curve plus metadata into a motor-record XML file."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import click
+
+from .options import _metadata, _metadata_options
+from .output import _console
+
+
+@click.command("import")
+@click.argument("csv_file", type=click.Path(exists=True, dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False),
+              help="Motor-record XML file to write (atomically).")
+@click.option("--overwrite", is_flag=True, help="Replace OUTPUT if it exists.")
+@click.option("--force", is_flag=True, help="Write the file even when the checks find errors.")
+@_metadata_options
+def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opts: Any) -> None:
+    """Convert a CSV thrust curve plus metadata into a motor-record XML file.
+
+    The CSV holds time and thrust columns; units come from the header
+    (time_ms, "t (s)", thrust_lbf, "Thrust [N]") or --time-unit/--thrust-unit.
+    The curve is checked first; a curve with errors is not written unless --force.
+
+    \b
+    Example:
+      motorlib import stand-03.csv -o F30-6.xml --designation F30-6 --maker "Our team" \\
+          --diameter 24 --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 \\
+          --source-kind static-test --test-date 2026-11-14
+    """
+    from ..present import tables as render
+    from ..motor.checks import check_record, findings_from_problems
+    from ..files.motor_csv import record_from_csv
+    from ..files.curvefiles import CheckReport
+    from ..errors import CurveDataError
+    from ..files.motor_xml import write_record
+
+    console = _console()
+    try:
+        record = record_from_csv(csv_file, _metadata(opts), time_unit=opts["time_unit"],
+                                 thrust_unit=opts["thrust_unit"])
+    except CurveDataError as exc:
+        report = CheckReport(csv_file, True, None, tuple(findings_from_problems(exc)), None)
+        console.print(render.findings_text(report), end="")
+        raise click.ClickException(f"{csv_file}: the curve breaks the record rules above; nothing was written")
+    findings = check_record(record)
+    report = CheckReport(csv_file, True, record, tuple(findings), None)
+    if findings:
+        console.print(render.findings_text(report), end="")
+    if not report.ok and not force:
+        raise click.ClickException(f"{csv_file}: the checks found errors; nothing was written (use --force to "
+                                   "write it anyway)")
+    try:
+        path = write_record(record, output, overwrite=overwrite)
+    except FileExistsError as exc:
+        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, {record.total_impulse_ns:.4g} N·s, "
+                  f"{record.computed_designation()}")

@@ -1,0 +1,123 @@
+"""``motorlib match``: rank every catalog motor for an airframe by apogee, rail exit speed and delay."""
+
+from __future__ import annotations
+
+import json
+from typing import Any
+
+import click
+
+from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity
+from .output import _EPILOG, _console
+
+
+def _match_options(func: Any) -> Any:
+    options = [
+        click.option("--target", "target_m", type=_Quantity("length", "m"),
+                     help="Aim altitude above the pad; a bare number is m (e.g. 250, 800ft)."),
+        click.option("--ceiling", "ceiling_m", type=_Quantity("length", "m"),
+                     help="Never exceed this altitude (the field's limit); a bare number is m."),
+        click.option("--max-class", type=click.Choice(["1/8A", "1/4A", "1/2A", *"ABCDEFGHIJKLMNO"]),
+                     help="Highest impulse class you may fly (your certification)."),
+        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed", "m/s"), default="15 m/s",
+                     show_default=True, help="Minimum rail exit speed (common practice, no published source)."),
+        click.option("--min-thrust-to-weight", type=float, default=5.0, show_default=True,
+                     help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
+        click.option("--delay-slack", type=float, default=2.0, show_default=True,
+                     help="How far, in s, the chosen delay may be from the optimal one."),
+        click.option("--allow-smaller-motors", is_flag=True, help="Narrower motors fit with an adapter."),
+        click.option("--tag", help="Only motors with this catalog tag (e.g. the ones in stock)."),
+        click.option("--top", type=click.IntRange(1), help="Show only the first N candidates."),
+        click.option("--show-rejected", is_flag=True, help="Also list the motors that do not fit."),
+        click.option("--ballast", is_flag=True, help="Solve the nose weight that brings each passing motor to the target."),
+        click.option("--units", type=click.Choice(["si", "imperial"]), default="si", show_default=True,
+                     help="Units of the table."),
+        click.option("--json", "as_json", is_flag=True, help="Print {airframe, conditions, candidates} as JSON (SI)."),
+        click.option("--csv", "as_csv", is_flag=True, help="Print the candidates as CSV (SI)."),
+        click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
+                     help="Write apogee per motor against the target and ceiling to this PNG file."),
+    ]
+    for option in reversed(options):
+        func = option(func)
+    return func
+
+
+def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
+    from ..files.airframe_toml import load_airframe
+    from ..catalog.store import CatalogFilter
+    from ..matching.rank import MatchSettings, rank
+    from ..flight.rules import LaunchRules
+
+    frame = load_airframe(airframe_file)
+    try:
+        settings = MatchSettings(
+            target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
+            rules=LaunchRules(min_rail_exit_speed_m_s=opts["min_rail_exit"],
+                              min_liftoff_thrust_to_weight=opts["min_thrust_to_weight"]),
+            delay_slack_s=opts["delay_slack"], allow_smaller_motors=opts["allow_smaller_motors"],
+            ballast=opts["ballast"])
+    except ValueError as exc:
+        raise click.UsageError(str(exc).replace("`", "")) from None
+    rows = cat.rows(CatalogFilter(tag=opts["tag"]))
+    if not rows:
+        raise click.UsageError(f"no motors in {cat.root}" + (f" with tag {opts['tag']!r}" if opts["tag"] else ""))
+    result = rank(frame, rows, cat.motor_pack, settings)
+    conditions = {**result.conditions, "catalog": str(cat.root), "caution": _EPILOG}
+    written = None
+    if opts["plot_path"]:
+        from ..present.plots import match_plot
+
+        written = match_plot(result, opts["plot_path"])
+    if opts["as_json"]:
+        click.echo(json.dumps({"airframe": result.airframe, "conditions": conditions,
+                               "candidates": result.candidates}, indent=2))
+        return
+    if opts["as_csv"]:
+        import csv
+        import io
+
+        buffer = io.StringIO()
+        columns = [k for k in result.candidates[0] if not isinstance(result.candidates[0][k], list)] + ["reasons"]
+        columns = [c for c in columns if c not in ("reason_codes", "ballast_reasons")]
+        writer = csv.DictWriter(buffer, columns, extrasaction="ignore")
+        writer.writeheader()
+        for c in result.candidates:
+            writer.writerow({**c, "reasons": "; ".join(c["reasons"])})
+        click.echo(buffer.getvalue(), nl=False)
+        return
+    from ..present import tables as render
+
+    console = _console()
+    console.print(render.match_table(result, opts["units"], opts["top"], opts["show_rejected"], opts["ballast"]))
+    console.print(render.match_reasons(result, opts["top"], opts["show_rejected"]), end="")
+    rejected = sum(not c["fits"] for c in result.candidates)
+    if rejected and not opts["show_rejected"]:
+        console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
+    console.print(render.conditions_text(result))
+    console.print(f"Catalog: {render.escape(str(cat.root))}")
+    if written:
+        console.print(f"Wrote {render.escape(str(written))}")
+    console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")
+
+
+@click.command()
+@click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
+@_catalog_option
+@_match_options
+def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
+    """Rank every motor in the catalog for AIRFRAME_FILE by apogee, rail exit speed and delay.
+
+    Motors that fit the mount (and the class limit) are flown together; each
+    gets its apogee, rail exit speed, liftoff thrust-to-weight, optimal delay,
+    the closest available delay and the ejection speed with it, and the
+    reasons it fails any rule. With --target the ranking is by closeness to
+    it; otherwise by apogee under the ceiling. Passing motors come first.
+    Without --catalog (or $MOTORLIB_CATALOG) the user catalog is used when it
+    exists, else the bundled sample curves.
+
+    \b
+    Example:
+      motorlib match sample_curves/airframes/quibble-41.toml --target 400 --ceiling 600
+      motorlib match rocket.toml --target 800ft --max-class G --tag in-stock --ballast --units imperial
+    """
+    _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)

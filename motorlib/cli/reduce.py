@@ -1,0 +1,174 @@
+"""``motorlib reduce``: raw load-cell logs from a test stand to a checked thrust curve."""
+
+from __future__ import annotations
+
+import json
+from typing import Any
+
+import click
+
+from .options import _metadata, _metadata_options
+from .output import _console
+
+
+@click.command()
+@click.argument("logs", nargs=-1, required=True, type=click.Path(exists=True, dir_okay=False))
+@click.option("-o", "--output", type=click.Path(dir_okay=False), help="Motor-record XML file to write (atomically).")
+@click.option("--overwrite", is_flag=True, help="Replace OUTPUT if it exists.")
+@click.option("--force", is_flag=True, help="Write OUTPUT even when the checks find errors.")
+@click.option("--combine", is_flag=True, help="Several firings of one motor: write their mean curve and report the spread.")
+@click.option("--scale", type=float, help="Calibration for a raw-count column: newtons per count.")
+@click.option("--offset", type=float, default=0.0, show_default=True, help="Zero reading of a raw-count column, in counts.")
+@click.option("--cutoff", default=None, metavar="HZ|none",
+              help="-3 dB frequency of the zero-phase low-pass filter (default: 100 Hz or a quarter of the sample rate); "
+                   "'none' disables it.")
+@click.option("--detrend", is_flag=True, help="Remove linear load-cell drift between the pre- and post-burn levels.")
+@click.option("--points", type=click.IntRange(8, 500), default=48, show_default=True,
+              help="Most points in the reduced curve.")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write raw, filtered and reduced curves to this PNG.")
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
+@_metadata_options
+def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bool, combine: bool, scale: float | None,
+           offset: float, cutoff: str | None, detrend: bool, points: int, plot_path: str | None, as_json: bool,
+           **opts: Any) -> None:
+    """Turn raw load-cell logs from a test stand into a checked thrust curve.
+
+    A log is a CSV with a time column and a force column, in any unit the
+    header names (N, lbf, kgf, gf, or kg and g as a load cell reports mass:
+    force = m·g0), or raw counts with --scale and --offset. The baseline is
+    tared from the readings before ignition, the data filtered, ignition and
+    burnout found, and the curve reduced to at most --points points; the
+    result is checked against --designation when given. The provenance kind
+    defaults to static-test.
+
+    \b
+    Example:
+      motorlib reduce firing-1.csv --designation F30-6 --diameter 24 --length 70 \\
+          --total-mass 48g --propellant-mass 22g --delays 6 -o F30-6.xml --plot firing-1.png
+      motorlib reduce f1.csv f2.csv f3.csv --combine --designation F30-6 -o F30-6-mean.xml
+    """
+    from dataclasses import replace
+    from pathlib import Path
+
+    from ..motor.checks import check_record, metrics
+    from ..files.curvefiles import CheckReport
+    from ..motor.reduction import ReductionSettings, combine_reductions
+
+    if len(logs) > 1 and not combine and output:
+        raise click.UsageError("several logs with --output: add --combine to write their mean curve")
+    settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
+    if opts["source_kind"] == "other":
+        opts = {**opts, "source_kind": "static-test"}
+    meta = _metadata(opts)
+    reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
+    if combine:
+        time_s, thrust_n, spread = combine_reductions([r for _, r in reductions], points)
+    else:
+        time_s, thrust_n, spread = reductions[0][1].time_s, reductions[0][1].thrust_n, None
+    first = reductions[0][1]
+    note = _provenance_note(reductions, combine)
+    meta = replace(meta, provenance=replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip()))
+    record = meta.record(time_s, thrust_n, default_designation=Path(logs[0]).stem)
+    log_findings = [f for _, r in reductions for f in r.findings]
+    findings = log_findings + check_record(record)
+    report = CheckReport(output or logs[0], True, record, tuple(findings), metrics(record))
+    written = []
+    if output:
+        written.append(_write_checked(record, report, output, overwrite, force))
+    if plot_path:
+        from ..present.plots import reduction_plot
+
+        written.append(reduction_plot(first, f"{record.designation}: {Path(logs[0]).name}", plot_path))
+    summary = _log_summary(reductions)
+    if as_json:
+        click.echo(json.dumps({"logs": summary, "combined": spread, **report.as_dict(),
+                               "written": [str(p) for p in written]}, indent=2, default=float))
+        return
+    _print_reduction(summary, spread, report, written)
+
+
+def _cutoff_hz(cutoff: str | None) -> float | None:
+    """The ``--cutoff`` frequency in Hz: None for the default, 0.0 for 'none' (no filter)."""
+    try:
+        return None if cutoff is None else (0.0 if cutoff.lower() == "none" else float(cutoff))
+    except ValueError:
+        raise click.BadParameter("expected a frequency in Hz or 'none'", param_hint="--cutoff") from None
+
+
+def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, thrust_unit: str | None,
+                 scale: float | None, offset: float) -> list[tuple[str, Any]]:
+    """Read and reduce every log; pairs of (path, :class:`~motorlib.motor.reduction.Reduction`)."""
+    import numpy as np
+
+    from ..errors import CurveDataError
+    from ..files.motor_csv import read_csv_curve
+    from ..motor.reduction import reduce_log
+
+    reductions = []
+    for path in logs:
+        curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit, scale=scale, offset=offset)
+        try:
+            reductions.append((path, reduce_log(curve.time_s, curve.thrust_n, settings, lines=np.asarray(curve.lines),
+                                                source=path)))
+        except CurveDataError as exc:
+            raise click.ClickException(str(exc)) from None
+    return reductions
+
+
+def _provenance_note(reductions: list[tuple[str, Any]], combine: bool) -> str:
+    """The provenance note naming the logs and how the first one was reduced."""
+    from pathlib import Path
+
+    first = reductions[0][1]
+    return (f"Reduced by motorlib from {', '.join(Path(p).name for p, _ in reductions)}: baseline {first.baseline_n:.4g} N, "
+            f"noise {first.noise_n:.3g} N, {first.sample_rate_hz:.4g} Hz, "
+            + (f"low-pass {first.cutoff_hz:g} Hz" if first.cutoff_hz else "no filter")
+            + f", events at {first.threshold_n:.3g} N." + (f" Mean of {len(reductions)} firings." if combine else ""))
+
+
+def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force: bool) -> Any:
+    """Write ``record`` to ``output`` unless its checks found errors (and not ``force``); the path written."""
+    if not report.ok and not force:
+        raise click.ClickException(_findings_message(report))
+    from ..files.motor_xml import write_record
+
+    try:
+        return write_record(record, output, overwrite=overwrite)
+    except FileExistsError as exc:
+        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+
+
+def _log_summary(reductions: list[tuple[str, Any]]) -> list[dict[str, Any]]:
+    """One JSON-ready dict per log: rate, baseline, noise, filter, events and reduction errors (SI)."""
+    return [{"file": p, "rows": int(r.raw_time_s.size), "sample_rate_hz": r.sample_rate_hz,
+             "baseline_n": r.baseline_n, "noise_n": r.noise_n, "drift_n_per_s": r.drift_n_per_s,
+             "cutoff_hz": r.cutoff_hz, "ignition_time_s": r.ignition_time_s, "burnout_time_s": r.burnout_time_s,
+             "event_threshold_n": r.threshold_n, "points": int(r.time_s.size),
+             "reduction_impulse_error": r.impulse_error, "reduction_peak_error": r.peak_error} for p, r in reductions]
+
+
+def _print_reduction(summary: list[dict[str, Any]], spread: dict[str, Any] | None, report: Any,
+                     written: list[Any]) -> None:
+    """The report for people: one line per log, the spread of several firings, the checks, the files written."""
+    from ..present import tables as render
+
+    console = _console()
+    for entry in summary:
+        console.print(f"[bold]{render.escape(entry['file'])}[/bold]: {entry['sample_rate_hz']:.4g} Hz, baseline "
+                      f"{entry['baseline_n']:.4g} N, noise {entry['noise_n']:.3g} N, "
+                      + (f"low-pass {entry['cutoff_hz']:g} Hz, " if entry["cutoff_hz"] else "no filter, ")
+                      + f"ignition at {entry['ignition_time_s']:.4g} s, burnout at {entry['burnout_time_s']:.4g} s, "
+                      f"{entry['points']} points (impulse within {100 * entry['reduction_impulse_error']:.3f} %)")
+    if spread:
+        ti, bt = spread["total_impulse_ns"], spread["event_burn_time_s"]
+        console.print(f"{spread['n_firings']} firings: total impulse {ti['mean']:.4g} ± {ti['std']:.2g} N·s "
+                      f"({ti['min']:.4g}-{ti['max']:.4g}), burn {bt['mean']:.3g} ± {bt['std']:.2g} s")
+    console.print(render.check_details(report))
+    for path in written:
+        console.print(f"Wrote {render.escape(str(path))}")
+
+
+def _findings_message(report: Any) -> str:
+    errors = [f"{f.code}: {f.message}" for f in report.findings if f.severity == "error"]
+    return (f"{report.source}: the reduced curve has errors ({'; '.join(errors)}); nothing was written "
+            "(use --force to write it anyway)")

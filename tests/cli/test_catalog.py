@@ -1,0 +1,61 @@
+"""``motorlib catalog`` through click's CliRunner: every subcommand end to end, the environment."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from click.testing import CliRunner
+
+from motorlib import read_record
+from motorlib.cli.main import main
+
+from ..conftest import FIXTURE_DIR, SAMPLE_DIR
+from .conftest import run
+
+
+def test_catalog_commands_end_to_end(tmp_path: Path) -> None:
+    cat = str(tmp_path / "motors")
+    code, out = run("catalog", "add", "--catalog", cat, str(SAMPLE_DIR))
+    assert code == 0 and "27 added" in out
+    # a test-stand CSV, then finding it again (the README tour)
+    code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12-5",
+                    "--maker", "Stand team (fictional)", "--diameter", "24", "--length", "70", "--total-mass", "44g",
+                    "--propellant-mass", "21g", "--delays", "5", "--source-kind", "static-test")
+    assert code == 0 and "1 added" in out
+    code, out = run("catalog", "list", "--catalog", cat, "--maker", "stand", "--json")
+    rows = json.loads(out)
+    assert code == 0 and [r["designation"] for r in rows] == ["D12-5"] and rows[0]["provenance_kind"] == "static-test"
+    code, out = run("catalog", "list", "--catalog", cat, "--class", "D..G", "--diameter", "29mm")
+    assert code == 0 and "G59-10" in out and "F29-8" not in out
+    code, out = run("catalog", "list", "--catalog", cat, "--impulse", "100..", "--burn", "..2", "--csv")
+    lines = out.strip().splitlines()
+    assert code == 0 and lines[0].startswith("motor_id,") and len(lines) == 4  # G59-10, G99-14, 235H157-14
+    code, out = run("catalog", "tag", "--catalog", cat, "G59-10", "F51-10", "in-stock")
+    assert code == 0
+    code, out = run("catalog", "list", "--catalog", cat, "--tag", "in-stock", "--json")
+    assert sorted(r["designation"] for r in json.loads(out)) == ["F51-10", "G59-10"]
+    plot = tmp_path / "cmp.png"
+    code, out = run("catalog", "show", "--catalog", cat, "G59-10", "F51-10", "--plot", str(plot))
+    assert code == 0 and "Comparison" in out and plot.exists()
+    for fmt in ("xml", "csv", "json"):
+        code, out = run("catalog", "export", "--catalog", cat, "--tag", "in-stock", "--to", str(tmp_path / fmt),
+                        "--format", fmt)
+        assert code == 0 and "Exported 2 motor(s)" in out
+    assert read_record(next((tmp_path / "xml").glob("*g59*.xml"))).designation == "G59-10"
+    code, out = run("catalog", "verify", "--catalog", cat)
+    assert code == 0 and "28 curve(s) verified: 0 with errors" in out
+    code, out = run("catalog", "reindex", "--catalog", cat)
+    assert code == 0 and "28 motor(s)" in out
+    code, out = run("catalog", "remove", "--catalog", cat, "G59-10")
+    assert code == 0
+    code, out = run("catalog", "show", "--catalog", cat, "G59-10")
+    assert code == 1 and "no motor with that id" in out
+    code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "class_mismatch.xml"))
+    assert code == 1 and "refused" in out
+
+
+def test_catalog_from_the_environment(tmp_path: Path) -> None:
+    result = CliRunner().invoke(main, ["catalog", "add", str(SAMPLE_DIR / "bramblewick-propulsion_g59-10.xml")],
+                                env={"MOTORLIB_CATALOG": str(tmp_path / "env-cat")})
+    assert result.exit_code == 0 and (tmp_path / "env-cat").is_dir()

@@ -1,0 +1,40 @@
+"""``motorlib import`` through click's CliRunner: a checked record is written, or nothing is."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from motorlib import read_record
+
+from ..conftest import FIXTURE_DIR
+from .conftest import run
+
+
+def test_import_writes_a_checked_record(tmp_path: Path) -> None:
+    out_path = tmp_path / "d12.xml"
+    code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "D12-5",
+                    "--maker", "Stand team (fictional)", "--diameter", "24", "--length", "70", "--total-mass", "44",
+                    "--propellant-mass", "21", "--delays", "5", "--source-kind", "static-test",
+                    "--test-date", "2026-11-14")
+    assert code == 0, out
+    record = read_record(out_path)
+    assert record.designation == "D12-5" and record.provenance.kind == "static-test"
+    assert str(record.provenance.date) == "2026-11-14"
+    code, out = run("check", str(out_path))
+    assert code == 0 and "No findings." in out
+    code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "D12-5")
+    assert code == 1 and "--overwrite" in out
+
+
+def test_import_refuses_errors_unless_forced(tmp_path: Path) -> None:
+    out_path = tmp_path / "x.xml"
+    code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "E12-5")
+    assert code == 1 and "nothing was written" in out and not out_path.exists()
+    code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "E12-5",
+                    "--force")
+    assert code == 0 and out_path.exists()
+
+
+def test_import_of_broken_csv_names_the_line(tmp_path: Path) -> None:
+    code, out = run("import", str(FIXTURE_DIR / "ragged_row.csv"), "-o", str(tmp_path / "x.xml"))
+    assert code == 1 and "ragged_row.csv:4" in out
