@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from motorlib.cli.main import default_catalog_dir
+from motorlib.cli.options import default_catalog_dir
 
 
 @pytest.mark.skipif(sys.platform in ("win32", "darwin"), reason="XDG folders are the Linux convention")
