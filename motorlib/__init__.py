@@ -12,7 +12,7 @@ __version__ = "0.1.0"
 from .flight.airframe import Airframe, Launch, Recovery
 from .files.airframe_toml import load_airframe
 from .flight.atmosphere import Site
-from .catalog.store import Catalog, CatalogFilter
+from .catalog import Catalog, CatalogFilter
 from .motor.checks import CheckSettings, Finding, check_record, metrics
 from .motor.classes import (
     CLASS_LETTERS,
