@@ -58,7 +58,7 @@ def _filter_options(func: Any) -> Any:
 
 
 def _filter(opts: dict[str, Any]) -> Any:
-    from ..catalog.store import CatalogFilter, parse_class_range
+    from ..catalog import CatalogFilter, parse_class_range
 
     try:
         classes = parse_class_range(opts["class_range"]) if opts.get("class_range") else None
@@ -130,7 +130,7 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, as_json: bool, 
       motorlib catalog list --class D..G --diameter 29 --delay 6 --sort average_thrust_n
       motorlib catalog list --tag in-stock --json
     """
-    from ..catalog.store import SORT_KEYS
+    from ..catalog.query import SORT_KEYS
 
     if sort not in SORT_KEYS:
         raise click.BadParameter(f"expected one of {', '.join(SORT_KEYS)}", param_hint="--sort")
@@ -194,7 +194,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
 
 
 def _ids(*ids: str) -> Any:
-    from ..catalog.store import CatalogFilter
+    from ..catalog import CatalogFilter
 
     return CatalogFilter(ids=tuple(ids))
 
@@ -260,7 +260,7 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     Example:
       motorlib catalog export --class G --to ./g-motors --format csv
     """
-    from ..catalog.store import CatalogFilter
+    from ..catalog import CatalogFilter
     from ..files.export import export_records
 
     cat = _open_catalog(catalog_dir)

@@ -107,7 +107,7 @@ def _open_catalog(folder: str | None) -> Any:
     import os
     from pathlib import Path
 
-    from ..catalog.store import Catalog
+    from ..catalog import Catalog
 
     path = Path(folder or default_catalog_dir())
     read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker
