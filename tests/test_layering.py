@@ -10,6 +10,7 @@ import pytest
 
 NUMERIC_MODULES = ["motorlib.units", "motorlib.motor.classes", "motorlib.motor.record", "motorlib.motor.checks", "motorlib.errors",
                    "motorlib.flight.atmosphere", "motorlib.flight.airframe", "motorlib.flight", "motorlib.flight.descent", "motorlib.flight.rules",
+                   "motorlib.flight.geometry", "motorlib.flight.drag",
                    "motorlib.matching", "motorlib.motor.reduction"]
 HEAVY = ["lxml", "pandas", "click", "rich", "scipy", "matplotlib"]
 
