@@ -22,9 +22,10 @@ from .motor.classes import (
     format_designation,
     impulse_class_for,
     parse_designation,
+    rounded_impulse_ns,
 )
 from .files.motor_csv import CurveMetadata, read_csv_curve, record_from_csv
-from .motor.record import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
+from .motor.record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord, Provenance
 from .files.curvefiles import CheckReport, check_file, load_curve_file
 from .errors import (
     CatalogError,
@@ -64,6 +65,7 @@ __all__ = [
     "Designation",
     "DesignationError",
     "Finding",
+    "FiringSpread",
     "FlightResults",
     "FlightSettings",
     "ImpulseClass",
@@ -102,6 +104,7 @@ __all__ = [
     "record_from_csv",
     "record_to_bytes",
     "reduce_log",
+    "rounded_impulse_ns",
     "simulate",
     "write_record",
 ]

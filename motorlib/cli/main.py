@@ -15,6 +15,7 @@ import click
 
 from .. import __version__
 from ..errors import MotorlibError, QuantityError
+from ..motor.record import PROVENANCE_KINDS
 
 _EPILOG = ("Predictions are estimates. Follow your national rocketry association's safety code, local law and "
            "the launch site's rules; the range safety officer decides; fly only motors within your certification.")
@@ -79,8 +80,7 @@ def _metadata_options(func: Any) -> Any:
                      help="Available ejection delays in seconds, e.g. 3,5,7."),
         click.option("--plugged", is_flag=True, help="No ejection charge (plugged or booster)."),
         click.option("--adjustable-delay", is_flag=True, help="The user may shorten the delay."),
-        click.option("--source-kind", type=click.Choice(["certification-test", "maker-data", "static-test", "demo",
-                                                         "other"]), default="other", show_default=True,
+        click.option("--source-kind", type=click.Choice(PROVENANCE_KINDS), default="other", show_default=True,
                      help="Where the curve comes from."),
         click.option("--test-date", type=click.DateTime(["%Y-%m-%d"]), help="Date of the test, YYYY-MM-DD."),
         click.option("--notes", default="", help="Free-text provenance notes (stand, lot, operator)."),
@@ -103,7 +103,7 @@ def _metadata(opts: dict[str, Any]) -> Any:
         designation=opts["designation"] or "", maker=opts["maker"], diameter_m=opts["diameter_m"],
         length_m=opts["length_m"], total_mass_kg=opts["total_mass_kg"],
         propellant_mass_kg=opts["propellant_mass_kg"], delays_s=opts["delays_s"],
-        delay_adjustable=opts["adjustable_delay"],
+        delay_adjustable=opts["adjustable_delay"], no_ejection_charge=opts["plugged"],
         provenance=Provenance(kind=opts["source_kind"], date=date, notes=opts["notes"]),
     )
 
@@ -206,7 +206,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     Example:
       motorlib import stand-03.csv -o F30-6.xml --designation F30-6 --maker "Our team" \\
           --diameter 24 --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 \\
-          --source-kind static-test --test-date 2026-11-14
+          --source-kind own-firing --test-date 2026-11-14
     """
     from ..present import tables as render
     from ..motor.checks import check_record, findings_from_problems
@@ -234,8 +234,8 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
         path = write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
         raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
-    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, {record.total_impulse_ns:.4g} N·s, "
-                  f"{record.computed_designation()}")
+    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
+                  f"{render.impulse_text(record.total_impulse_ns)} N·s, {record.computed_designation()}")
 
 
 def _caution(console: Any) -> None:
@@ -530,7 +530,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     \b
     Example:
       motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" --diameter 24 \\
-          --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 --source-kind static-test
+          --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 --source-kind own-firing
     """
     from collections import Counter
 
@@ -938,7 +938,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     tared from the readings before ignition, the data filtered, ignition and
     burnout found, and the curve reduced to at most --points points; the
     result is checked against --designation when given. The provenance kind
-    defaults to static-test.
+    defaults to own-firing.
 
     \b
     Example:
@@ -955,7 +955,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     from ..files.motor_csv import read_csv_curve
     from ..files.curvefiles import CheckReport
     from ..errors import CurveDataError
-    from ..motor.reduction import ReductionSettings, combine_reductions, reduce_log
+    from ..motor.reduction import ReductionSettings, combine_reductions, firing_spread, reduce_log
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
@@ -965,7 +965,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         raise click.BadParameter("expected a frequency in Hz or 'none'", param_hint="--cutoff") from None
     settings = ReductionSettings(cutoff_hz=cutoff_hz, detrend=detrend, max_points=points)
     if opts["source_kind"] == "other":
-        opts = {**opts, "source_kind": "static-test"}
+        opts = {**opts, "source_kind": "own-firing"}
     meta = _metadata(opts)
     reductions = []
     for path in logs:
@@ -987,6 +987,8 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
             + f", events at {first.threshold_n:.3g} N." + (f" Mean of {len(reductions)} firings." if combine else ""))
     meta = replace(meta, provenance=replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip()))
     record = meta.record(time_s, thrust_n, default_designation=Path(logs[0]).stem)
+    if combine:
+        record = replace(record, firing_spread=firing_spread([r for _, r in reductions]))
     log_findings = [f for _, r in reductions for f in r.findings]
     findings = log_findings + check_record(record)
     report = CheckReport(output or logs[0], True, record, tuple(findings), metrics(record))
