@@ -32,6 +32,7 @@ _EXPORTS = {
     "Designation": ".motor.classes",
     "DesignationError": ".errors",
     "Finding": ".motor.checks",
+    "FiringSpread": ".motor.record",
     "FlightResults": ".flight",
     "FlightSettings": ".flight",
     "ImpulseClass": ".motor.classes",
@@ -69,6 +70,7 @@ _EXPORTS = {
     "record_from_csv": ".files.motor_csv",
     "record_to_bytes": ".files.motor_xml",
     "reduce_log": ".motor.reduction",
+    "rounded_impulse_ns": ".motor.classes",
     "simulate": ".flight",
     "write_record": ".files.motor_xml",
 }
@@ -89,9 +91,10 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
         format_designation,
         impulse_class_for,
         parse_designation,
+        rounded_impulse_ns,
     )
     from .files.motor_csv import CurveMetadata, read_csv_curve, record_from_csv
-    from .motor.record import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
+    from .motor.record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord, Provenance
     from .files.curvefiles import CheckReport, check_file, load_curve_file
     from .errors import (
         CatalogError,
@@ -147,6 +150,7 @@ __all__ = [
     "Designation",
     "DesignationError",
     "Finding",
+    "FiringSpread",
     "FlightResults",
     "FlightSettings",
     "ImpulseClass",
@@ -185,6 +189,7 @@ __all__ = [
     "record_from_csv",
     "record_to_bytes",
     "reduce_log",
+    "rounded_impulse_ns",
     "simulate",
     "write_record",
 ]

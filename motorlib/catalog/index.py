@@ -33,12 +33,12 @@ from ..motor.record import MotorRecord
 
 __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
 
-SCHEMA_VERSION = "1"
+SCHEMA_VERSION = "2"  # 2: ejection column, classes at 0.01 N·s, provenance kinds of format 1.1
 INDEX_DIR = ".motorlib"
 COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
            "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
            "diameter_m", "length_m", "total_mass_kg", "propellant_mass_kg", "specific_impulse_s", "delays_s",
-           "delay_adjustable", "provenance_kind", "provenance_date", "notes", "n_samples", "n_errors",
+           "delay_adjustable", "ejection", "provenance_kind", "provenance_date", "notes", "n_samples", "n_errors",
            "n_warnings", "findings")
 
 
@@ -83,7 +83,8 @@ def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSett
         "burn_time_s": m["burn_time_s"], "diameter_m": record.diameter_m, "length_m": record.length_m,
         "total_mass_kg": record.total_mass_kg, "propellant_mass_kg": record.propellant_mass_kg,
         "specific_impulse_s": record.specific_impulse_s, "delays_s": json.dumps(list(record.delays_s)),
-        "delay_adjustable": int(record.delay_adjustable), "provenance_kind": record.provenance.kind,
+        "delay_adjustable": int(record.delay_adjustable), "ejection": record.ejection,
+        "provenance_kind": record.provenance.kind,
         "provenance_date": record.provenance.date.isoformat() if record.provenance.date else None,
         "notes": record.provenance.notes, "n_samples": record.n_samples,
         "n_errors": sum(f.severity == "error" for f in findings),

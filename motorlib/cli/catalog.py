@@ -85,7 +85,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     \b
     Example:
       motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" --diameter 24 \\
-          --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 --source-kind static-test
+          --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 --source-kind own-firing
     """
     from collections import Counter
 

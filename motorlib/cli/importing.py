@@ -28,7 +28,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     Example:
       motorlib import stand-03.csv -o F30-6.xml --designation F30-6 --maker "Our team" \\
           --diameter 24 --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 \\
-          --source-kind static-test --test-date 2026-11-14
+          --source-kind own-firing --test-date 2026-11-14
     """
     from ..present import tables as render
     from ..motor.checks import check_record, findings_from_problems
@@ -56,5 +56,6 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
         path = write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
         raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
-    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, {record.total_impulse_ns:.4g} N·s, "
+    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
+                  f"{render.impulse_text(record.total_impulse_ns)} N·s, "
                   f"{record.computed_designation()}")

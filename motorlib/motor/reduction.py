@@ -36,9 +36,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .checks import Finding
+from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord
 from ..errors import CurveDataError, Problem
 
-__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "lowpass_design_hz", "reduce_log"]
+__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "firing_spread", "lowpass_design_hz", "reduce_log"]
 
 
 @dataclass(frozen=True)
@@ -431,3 +432,27 @@ def combine_reductions(reductions: list[Reduction], max_points: int = 48) -> tup
                               "min": float(burns.min()), "max": float(burns.max())},
     }
     return grid[keep], mean[keep], spread
+
+
+def firing_spread(reductions: list[Reduction], threshold: float = DEFAULT_BURN_THRESHOLD) -> FiringSpread | None:
+    """The measured spread of several firings of one motor, for the record of their mean curve.
+
+    Each firing's total impulse [N·s] is that of its filtered curve (as in
+    :func:`combine_reductions`); its burn time [s] is the threshold burn time of
+    the same curve (``threshold`` of peak, as :meth:`MotorRecord.burn_time_s`),
+    so that the spread describes the figures the record itself reports. The
+    standard deviations are sample ones (n - 1 in the denominator).
+
+    Returns
+    -------
+    FiringSpread or None
+        None for fewer than two firings: one firing has no spread.
+    """
+    if len(reductions) < 2:
+        return None
+    firings = [MotorRecord("firing", r.filtered_time_s, r.filtered_thrust_n) for r in reductions]
+    impulses = np.array([r.filtered_impulse_ns for r in reductions])
+    burns = np.array([f.burn_time_s(threshold) for f in firings])
+    return FiringSpread(n_firings=len(reductions),
+                        total_impulse_mean_ns=float(impulses.mean()), total_impulse_std_ns=float(impulses.std(ddof=1)),
+                        burn_time_mean_s=float(burns.mean()), burn_time_std_s=float(burns.std(ddof=1)))

@@ -14,8 +14,9 @@ from rich.table import Table
 from rich.text import Text
 
 from ..files.curvefiles import CheckReport
+from ..motor.classes import class_impulse_text, impulse_class_for
 
-__all__ = ["SAFETY_CAUTION", "check_details", "check_summary_table", "findings_text"]
+__all__ = ["SAFETY_CAUTION", "check_details", "check_summary_table", "findings_text", "impulse_text"]
 
 SAFETY_CAUTION = (
     "Caution: predictions are estimates. Follow your national rocketry association's safety code, local law "
@@ -30,6 +31,37 @@ def _fmt(value: object, digits: int = 4, scale: float = 1.0, unit: str = "") -> 
         return "-"
     number = float(value) * scale  # type: ignore[arg-type]
     return f"{number:.{digits}g}{(' ' + unit) if unit else ''}"
+
+
+def impulse_text(total_impulse_ns: float, digits: int = 4) -> str:
+    """A total impulse [N·s] to ``digits`` significant figures, or as classified where that would mislead.
+
+    Classes are decided on the impulse rounded to 0.01 N·s (``motor/classes.py``); a shorter
+    figure that reads as another class (160.006 N·s, class H, printed "160") is replaced by the
+    classified figure ("160.01"), so a printed impulse never contradicts the class beside it.
+    """
+    value = float(total_impulse_ns)
+    text = f"{value:.{digits}g}"
+    shown, verdict = impulse_class_for(float(text)), impulse_class_for(value)
+    if (shown.letter if shown else None) != (verdict.letter if verdict else None):
+        text = class_impulse_text(value)
+    return text
+
+
+def _impulse(value: object, digits: int = 4, unit: str = "") -> str:
+    if value is None:
+        return "-"
+    return impulse_text(float(value), digits) + (f" {unit}" if unit else "")  # type: ignore[arg-type]
+
+
+def _delays(m: dict) -> str:
+    """Delays of a record's metrics or a catalog row, in words: listed, no charge, or unknown."""
+    adjustable = " (adjustable)" if m["delay_adjustable"] else ""
+    if m["delays_s"]:
+        return ", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + adjustable
+    if m.get("ejection") == "no-charge":
+        return "none (no ejection charge: plugged or booster)"
+    return "unknown (not given)" + adjustable
 
 
 def _status(report: CheckReport) -> Text:
@@ -56,7 +88,7 @@ def check_summary_table(reports: list[CheckReport]) -> Table:
         cls = f"{m['impulse_class']} {m['class_percent']:.0f}%" if m.get("impulse_class") else "-"
         table.add_row(
             escape(Path(report.source).stem), escape(str(m.get("designation", "-"))), cls,
-            _fmt(m.get("total_impulse_ns")), _fmt(m.get("average_thrust_n")), _fmt(m.get("burn_time_s"), 3),
+            _impulse(m.get("total_impulse_ns")), _fmt(m.get("average_thrust_n")), _fmt(m.get("burn_time_s"), 3),
             _status(report),
         )
     return table
@@ -86,7 +118,7 @@ def check_details(report: CheckReport) -> Group:
         rows = [
             ("label / maker", f"{m['designation']}  ({m['maker'] or 'maker unknown'})"),
             ("computed designation", str(m["computed_designation"])),
-            ("total impulse", _fmt(m["total_impulse_ns"], 5, unit="N·s")),
+            ("total impulse", _impulse(m["total_impulse_ns"], 5, unit="N·s")),
             ("impulse class", f"{m['impulse_class']} ({m['class_percent']:.1f} % into class)"
              if m["impulse_class"] else "above O"),
             ("average thrust", _fmt(m["average_thrust_n"], unit="N")),
@@ -98,8 +130,7 @@ def check_details(report: CheckReport) -> Group:
             ("total / propellant mass", f"{_fmt(m['total_mass_kg'], scale=1e3, unit='g')} / "
                                         f"{_fmt(m['propellant_mass_kg'], scale=1e3, unit='g')}"),
             ("specific impulse", _fmt(m["specific_impulse_s"], unit="s")),
-            ("delays", (", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + (" (adjustable)" if m["delay_adjustable"] else ""))  # type: ignore[union-attr]
-             if m["delays_s"] else "none (plugged or booster)"),
+            ("delays", _delays(m)),
         ]
         for key, value in rows:
             table.add_row(key, escape(value))
@@ -182,7 +213,7 @@ def warnings_text(warnings: list[tuple[str, str]]) -> Text:
 def catalog_table(rows: list[dict], title: str = "Catalog") -> Table:
     """One row per motor: id, label, class, impulse, average thrust, burn, diameter, delays, checks.
 
-    Delays marked * are adjustable (the longest is listed); P means no ejection charge.
+    Delays marked * are adjustable (the longest is listed); P means no ejection charge, ? not known.
     """
     table = Table(title=escape(title), header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False, collapse_padding=True)
     table.add_column("id", no_wrap=True, style="dim")
@@ -197,10 +228,11 @@ def catalog_table(rows: list[dict], title: str = "Catalog") -> Table:
     for r in rows:
         cls = f"{r['impulse_class']} {r['class_percent']:.0f}%" if r["impulse_class"] else ">O"
         size = _fmt(r["diameter_m"], 3, 1e3)
-        delays = ",".join(f"{d:g}" for d in r["delays_s"]) + ("*" if r["delay_adjustable"] else "") if r["delays_s"] else "P"
+        delays = (",".join(f"{d:g}" for d in r["delays_s"]) if r["delays_s"]
+                  else "P" if r.get("ejection") == "no-charge" else "?") + ("*" if r["delay_adjustable"] else "")
         checks = Text("errors", style="bold red") if r["n_errors"] else (
             Text("warn", style="yellow") if r["n_warnings"] else Text("ok", style="green"))
-        table.add_row(r["motor_id"][:6], escape(r["designation"]), cls, _fmt(r["total_impulse_ns"]),
+        table.add_row(r["motor_id"][:6], escape(r["designation"]), cls, _impulse(r["total_impulse_ns"]),
                       _fmt(r["average_thrust_n"]), _fmt(r["burn_time_s"], 3), size, delays, checks)
     return table
 
