@@ -413,7 +413,8 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
         click.echo(json.dumps(finite, indent=2, allow_nan=False))
         return
     console = _console()
-    console.print(f"Air density at the pad ({elevation_m:g} m, standard atmosphere): {result['density_kg_m3']:.4g} kg/m³")
+    console.print(f"Air density at the pad ({elevation_m:g} m, standard atmosphere): "
+                  f"{result['density_kg_m3']:.4g} kg/m³")
     v_t = result["terminal_speed_m_s"]
     console.print(f"Terminal speed at the pad: {v_t:.3g} m/s" if v_t is not None and math.isfinite(v_t)
                   else "Terminal speed: none (no drag)")

@@ -2,7 +2,8 @@
 
 Model
 -----
-Constant density (the closed forms): m·dv/dt = m·g − k·v², k = ½·ρ·(Cd·A). Terminal speed v_t = √(m·g/k) = √(2·m·g/(ρ·Cd·A)).
+Constant density (the closed forms): m·dv/dt = m·g − k·v², k = ½·ρ·(Cd·A).
+Terminal speed v_t = √(m·g/k) = √(2·m·g/(ρ·Cd·A)).
 From rest: v(t) = v_t·tanh(g·t/v_t) and the distance fallen
 y(t) = (v_t²/g)·ln cosh(g·t/v_t), so the time to fall a height h is
 t = (v_t/g)·arccosh(exp(g·h/v_t²)) (textbook closed form; check-values.md 6.1).
