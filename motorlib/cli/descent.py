@@ -20,64 +20,75 @@ from .output import _caution, _console
 @click.option("--fall-time", "fall_time_s", type=click.FloatRange(min=0, min_open=True),
               help="Observed time to fall --height, in seconds (e.g. read off a launch video).")
 @click.option("--elevation", "elevation_m", type=_Quantity("length", "m"), default=0.0,
-              help="Site elevation for the air density (standard atmosphere); a bare number is m.")
-@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
+              help="Pad elevation; the fall goes through the standard atmosphere above it. A bare number is m.")
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units; null for no value).")
 def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient: float | None,
             diameter_m: float | None, height_m: float | None, fall_time_s: float | None, elevation_m: float,
             as_json: bool) -> None:
     """Recovery arithmetic: terminal speed and fall time, or the drag area that explains an observed fall.
 
     Forward: --mass and --drag-area (or --cd with --diameter) give the terminal
-    speed, and with --height the time to fall it from rest. Inverse: --height
-    and --fall-time give the terminal speed that explains them (the exact
-    quadratic-drag fall, not height / time), and with --mass the drag area.
-    Air density is the standard atmosphere's at --elevation.
+    speed at the pad, and with --height the time to fall it from rest and the
+    landing speed. Inverse: --height and --fall-time give the terminal speed
+    that explains them, and with --mass the drag area. Falls go through the
+    standard atmosphere from the pad at --elevation (air thins with height, so
+    a long fall is quicker than in pad air); the quadratic-drag fall is
+    integrated, not estimated as height / time.
 
     \b
     Examples:
       motorlib descent --mass 450g --cd 0.8 --diameter 0.6 --height 300
       motorlib descent --height 82 --fall-time 9.5 --mass 15g
     """
+    # --- issue 10 (defect 6): falls integrate through the atmosphere; JSON carries null, never Infinity/NaN ---
     import math
 
-    from ..flight.atmosphere import density_kg_m3
-    from ..flight.descent import drag_area_m2 as area_for, fall_speed_m_s, fall_time_s as time_for
-    from ..flight.descent import terminal_speed_from_fall_m_s, terminal_speed_m_s
+    from ..flight.atmosphere import Site
+    from ..flight.descent import drag_area_from_fall_m2, fall_through_air, pad_terminal_speed_m_s
 
     if drag_area_m2 is None and drag_coefficient is not None and diameter_m is not None:
         drag_area_m2 = drag_coefficient * math.pi * diameter_m**2 / 4.0
     elif drag_area_m2 is None and (drag_coefficient is not None or diameter_m is not None):
         raise click.UsageError("--cd and --diameter go together")
-    rho = float(density_kg_m3(elevation_m))
-    result: dict[str, float] = {"density_kg_m3": rho}
-    if fall_time_s is not None:
-        if height_m is None:
-            raise click.UsageError("--fall-time needs --height")
-        try:
-            v_t = float(terminal_speed_from_fall_m_s(height_m, fall_time_s))
-        except ValueError as exc:
-            raise click.UsageError(str(exc).replace("`", "")) from None
-        result.update(terminal_speed_m_s=v_t, fall_time_s=fall_time_s, height_m=height_m,
-                      landing_speed_m_s=float(fall_speed_m_s(fall_time_s, v_t)))
-        if mass_kg is not None:
-            result["drag_area_m2"] = float(area_for(mass_kg, v_t, rho))
-    elif mass_kg is not None and drag_area_m2 is not None:
-        v_t = float(terminal_speed_m_s(mass_kg, drag_area_m2, rho))
-        result.update(terminal_speed_m_s=v_t, drag_area_m2=drag_area_m2)
-        if height_m is not None:
-            t = float(time_for(height_m, v_t))
-            result.update(fall_time_s=t, height_m=height_m, landing_speed_m_s=float(fall_speed_m_s(t, v_t)))
-    else:
-        raise click.UsageError("give --mass with --drag-area (or --cd and --diameter), or --height with --fall-time")
+    try:
+        site = Site(elevation_m=elevation_m)
+        result: dict[str, float | None] = {"elevation_m": elevation_m, "density_kg_m3": float(site.air(0.0)[2])}
+        if fall_time_s is not None:
+            if height_m is None:
+                raise click.UsageError("--fall-time needs --height")
+            mass = 1.0 if mass_kg is None else mass_kg  # without a mass: the speeds only (they need none)
+            area = float(drag_area_from_fall_m2(height_m, fall_time_s, mass, site))
+            fall = fall_through_air(height_m, mass, area, site)
+            result.update(terminal_speed_m_s=float(fall.terminal_speed_m_s), fall_time_s=fall_time_s,
+                          height_m=height_m, landing_speed_m_s=float(fall.landing_speed_m_s))
+            if mass_kg is not None:
+                result["drag_area_m2"] = area
+        elif mass_kg is not None and drag_area_m2 is not None:
+            result.update(terminal_speed_m_s=float(pad_terminal_speed_m_s(mass_kg, drag_area_m2, site)),
+                          drag_area_m2=drag_area_m2)
+            if height_m is not None:
+                fall = fall_through_air(height_m, mass_kg, drag_area_m2, site)
+                result.update(fall_time_s=float(fall.time_s), height_m=height_m,
+                              landing_speed_m_s=float(fall.landing_speed_m_s))
+        else:
+            raise click.UsageError("give --mass with --drag-area (or --cd and --diameter), or --height with "
+                                   "--fall-time")
+    except ValueError as exc:
+        raise click.UsageError(str(exc).replace("`", "")) from None
     if as_json:
-        click.echo(json.dumps(result, indent=2))
+        finite = {k: (v if v is None or math.isfinite(v) else None) for k, v in result.items()}
+        click.echo(json.dumps(finite, indent=2, allow_nan=False))
         return
     console = _console()
-    console.print(f"Air density at {elevation_m:g} m: {rho:.4g} kg/m³")
-    console.print(f"Terminal speed: {result['terminal_speed_m_s']:.3g} m/s")
+    console.print(f"Air density at the pad ({elevation_m:g} m, standard atmosphere): "
+                  f"{result['density_kg_m3']:.4g} kg/m³")
+    v_t = result["terminal_speed_m_s"]
+    console.print(f"Terminal speed at the pad: {v_t:.3g} m/s" if v_t is not None and math.isfinite(v_t)
+                  else "Terminal speed: none (no drag)")
     if "fall_time_s" in result:
-        console.print(f"Fall of {result['height_m']:g} m from rest: {result['fall_time_s']:.3g} s, "
-                      f"landing at {result['landing_speed_m_s']:.3g} m/s")
+        console.print(f"Fall of {result['height_m']:g} m from rest through the atmosphere: "
+                      f"{result['fall_time_s']:.4g} s, landing at {result['landing_speed_m_s']:.3g} m/s")
     if "drag_area_m2" in result:
         console.print(f"Drag area Cd·A: {result['drag_area_m2']:.4g} m²")
     _caution(console)
+    # --- end of issue 10 (defect 6) ---

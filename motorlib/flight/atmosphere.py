@@ -16,12 +16,22 @@ Constants: g0 = 9.80665 m/s², R* = 8314.32 J/(kmol·K), M0 = 28.9644 kg/kmol,
 r0 = 6 356 766 m, γ = 1.4, β = 1.458e-6 kg/(m·s·K^½), S = 110.4 K
 (check-values.md section 1.1).
 
-Launch sites (:class:`Site`): a measured temperature shifts the whole profile by
-the constant offset ΔT = T_site − T_std(elevation); a measured pressure scales it
-by p_site / p_std(elevation), keeping the standard pressure ratio with height.
-Density and speed of sound follow from the shifted T and p. This is the usual
-"off-standard day" approximation; it does not re-integrate the hydrostatic
-equation with the shifted temperature.
+Launch sites (:class:`Site`): a measured temperature shifts the temperature
+profile by the constant offset ΔT = T_site − T_std(elevation), T(H) = T_std(H) + ΔT;
+the pressure at the pad is the measured one (or the standard pressure at the
+pad elevation), and the pressure at every other height follows from the
+hydrostatic equation with the ideal-gas law, integrated up and down from the
+pad through that warmer or colder column:
+
+    dp/dZ = −p·g(Z)/(R·T),  g(Z) = g0·(r0/(r0 + Z))².
+
+Since dH = (g(Z)/g0)·dZ, this is dp/dH = −p·g0/(R·T) in geopotential height,
+which the 1976 model integrates layer by layer; with the shifted temperature
+each layer still has a closed form, T = Tb + ΔT + L·(H − Hb) and
+ln(p/pb) = −(g0/(R·L))·ln(T/(Tb + ΔT)) (isothermal: −g0·(H − Hb)/(R·(Tb + ΔT))).
+With ΔT = 0 and no measured pressure the site reproduces the standard
+atmosphere (to rounding, about 1e-14 relative). Density and speed of sound
+follow from the site's T and p; viscosity is not adjusted.
 
 numpy only.
 """
@@ -173,15 +183,60 @@ class Site:
         return self.temperature_k - float(temperature_k(self.elevation_m))
 
     @property
-    def pressure_scale(self) -> float:
-        """Factor applied to the standard pressure at every height."""
+    def pad_pressure_pa(self) -> float:
+        """Pressure at the pad [Pa]: the measured one, else the standard one at the pad elevation."""
         if self.pressure_pa is None:
-            return 1.0
-        return self.pressure_pa / float(pressure_pa(self.elevation_m))
+            return float(pressure_pa(self.elevation_m))
+        return self.pressure_pa
 
     def air(self, height_m: np.ndarray | float) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        """Temperature [K], pressure [Pa], density [kg/m³], speed of sound [m/s] at heights above the pad [m]."""
+        """Temperature [K], pressure [Pa], density [kg/m³], speed of sound [m/s] at heights above the pad [m].
+
+        Parameters
+        ----------
+        height_m : float or array_like
+            Heights above the pad [m], any shape (negative below the pad).
+
+        Returns
+        -------
+        temperature_k, pressure_pa, density_kg_m3, speed_of_sound_m_s : np.ndarray
+            Each of the shape of ``height_m``.
+
+        Notes
+        -----
+        T = T_std + ΔT at every height; p integrates dp/dZ = −p·g(Z)/(R·T) from the pad
+        pressure (module docstring), exactly per layer in geopotential height.
+
+        >>> t, p, rho, a = Site(elevation_m=3000.0, temperature_k=303.15).air([0.0, 6000.0])
+        >>> [round(float(x), 4) for x in rho]
+        [0.8058, 0.449]
+        """
         altitude = self.elevation_m + np.asarray(height_m, dtype=float)
-        t = temperature_k(altitude) + self.temperature_offset_k
-        p = pressure_pa(altitude) * self.pressure_scale
+        offset = self.temperature_offset_k
+        t = temperature_k(altitude) + offset
+        log_p = _log_pressure_ratio(geopotential_altitude_m(altitude), offset) - _log_pressure_ratio(
+            geopotential_altitude_m(self.elevation_m), offset)
+        p = self.pad_pressure_pa * np.exp(log_p)
         return t, p, p / (GAS_CONSTANT_J_KG_K * t), np.sqrt(GAMMA * GAS_CONSTANT_J_KG_K * t)
+
+
+def _log_pressure_ratio(h: np.ndarray, offset_k: float) -> np.ndarray:
+    """ln(p(H)/p(0)) in the column T = T_std(H) + offset_k [K]; H geopotential [m], any shape.
+
+    The hydrostatic integral −∫ g0/(R·T) dH, in closed form per layer and summed over the layers below.
+    """
+    tb = _BASE_T_K + offset_k  # shifted layer-base temperatures
+    widths = np.diff(_BASE_H_M)
+    full = _layer_integral(widths, tb[:-1], _LAPSE_K_M[:-1])  # each whole layer, bottom to top
+    below = np.concatenate(([0.0], np.cumsum(full)))  # integral from H = 0 to each layer base
+    i = _layer(h)
+    return -(below[i] + _layer_integral(h - _BASE_H_M[i], tb[i], _LAPSE_K_M[i]))
+
+
+def _layer_integral(dh: np.ndarray, tb: np.ndarray, lapse: np.ndarray) -> np.ndarray:
+    """∫ g0/(R·T) dH over dh [m] above a layer base at tb [K] with lapse [K/m] (dh may be negative)."""
+    isothermal = lapse == 0.0
+    safe_lapse = np.where(isothermal, 1.0, lapse)
+    # log1p keeps thin slices exact; L·dh/tb > −1 for every height the model is used at (T stays positive)
+    graded = (_HYDROSTATIC / safe_lapse) * np.log1p(safe_lapse * dh / tb)
+    return np.where(isothermal, _HYDROSTATIC * dh / tb, graded)

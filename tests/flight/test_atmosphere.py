@@ -2,12 +2,20 @@
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import pytest
 from fluids.atmosphere import ATMOSPHERE_1976
+from scipy.integrate import quad
 
+from motorlib import MotorRecord
 from motorlib.flight import atmosphere as atm
+from motorlib.flight import simulate
+from motorlib.flight.airframe import Airframe, Launch
 from motorlib.flight.atmosphere import Site
+
+from ..reference_flight import reference_flight
 
 R0 = 6_356_766.0
 
@@ -89,7 +97,115 @@ def test_site_offsets() -> None:
     t2, p2, rho2, a2 = hot.air(np.array([0.0, 1000.0]))
     assert t2[0] == pytest.approx(float(t) + 20.0) and p2[0] == pytest.approx(84_000.0)
     assert t2[1] - float(atm.temperature_k(2500.0)) == pytest.approx(20.0)  # constant offset with height
-    assert p2[1] / p2[0] == pytest.approx(float(atm.pressure_pa(2500.0) / atm.pressure_pa(1500.0)))
     assert rho2[0] == pytest.approx(84_000.0 / (atm.GAS_CONSTANT_J_KG_K * t2[0]))
     with pytest.raises(ValueError, match="temperature_k"):
         Site(temperature_k=500.0)
+
+
+# ---- issue 10, defect 5: an off-standard day is hydrostatic --------------------------------------------------
+# The reference below is written independently of motorlib.flight.atmosphere: its own constants and its own
+# standard temperature (check-values.md 1.1 and 1.2), and scipy quadrature of the hydrostatic equation in
+# GEOMETRIC height with inverse-square gravity, d ln p / dZ = -g(Z) / (R T(Z)), g(Z) = g0 (r0 / (r0 + Z))^2.
+G0_REF = 9.80665  # m/s^2, check-values.md 1.1
+R_REF = 8314.32 / 28.9644  # J/(kg K), USSA 1976 R*/M0
+GAMMA_REF = 1.4
+R0_REF = 6_356_766.0  # m
+LAYERS_REF = [(0.0, 288.15, -6.5e-3), (11_000.0, 216.65, 0.0), (20_000.0, 216.65, 1.0e-3),
+              (32_000.0, 228.65, 2.8e-3)]  # (Hb m, Tb K, lapse K/m), check-values.md 1.2
+
+
+def _t_std_ref(z: float) -> float:
+    h = R0_REF * z / (R0_REF + z)
+    hb, tb, lapse = [layer for layer in LAYERS_REF if layer[0] <= h][-1] if h >= 0 else LAYERS_REF[0]
+    return tb + lapse * (h - hb)
+
+
+def _p_std_ref(z: float) -> float:
+    """Standard pressure by quadrature from sea level (the 1976 model is this integral)."""
+    return 101_325.0 * math.exp(_log_ratio_ref(0.0, z, 0.0))
+
+
+def _log_ratio_ref(z_from: float, z_to: float, offset_k: float) -> float:
+    """ln(p(z_to) / p(z_from)) for the column T(Z) = T_std(Z) + offset, by adaptive quadrature."""
+    def integrand(z: float) -> float:
+        return -G0_REF * (R0_REF / (R0_REF + z)) ** 2 / (R_REF * (_t_std_ref(z) + offset_k))
+
+    lo, hi = sorted((z_from, z_to))
+    kinks = [R0_REF * hb / (R0_REF - hb) for hb, _, _ in LAYERS_REF if lo < R0_REF * hb / (R0_REF - hb) < hi]
+    value, error = quad(integrand, lo, hi, points=kinks or None, epsabs=1e-14, epsrel=1e-13, limit=200)
+    assert error < 1e-12
+    return value if z_to >= z_from else -value
+
+
+HOT_SITE = Site(elevation_m=3000.0, temperature_k=303.15)  # a 3,000 m site at 30 °C (issue 10)
+HOT_HEIGHTS = [-100.0, 0.0, 500.0, 3000.0, 6000.0, 7900.0, 8100.0, 12_000.0, 20_000.0]  # crosses 11 km (H)
+
+
+@pytest.mark.parametrize("elevation", [-500.0, 0.0, 1500.0, 4321.0, 8000.0])
+def test_standard_day_site_reproduces_the_standard_atmosphere(elevation: float) -> None:
+    heights = np.array([-400.0, 0.0, 1.0, 333.0, 2500.0, 9000.0, 15_000.0, 30_000.0, 60_000.0])
+    for site in (Site(elevation_m=elevation),
+                 Site(elevation_m=elevation, temperature_k=float(atm.temperature_k(elevation)))):
+        t, p, rho, a = site.air(heights)
+        z = elevation + heights
+        np.testing.assert_allclose(t, atm.temperature_k(z), rtol=1e-12)
+        np.testing.assert_allclose(p, atm.pressure_pa(z), rtol=1e-9)
+        np.testing.assert_allclose(rho, atm.density_kg_m3(z), rtol=1e-9)
+        np.testing.assert_allclose(a, atm.speed_of_sound_m_s(z), rtol=1e-12)
+
+
+def test_reference_quadrature_reproduces_the_published_standard() -> None:
+    # the test's own hydrostatic integral, checked on check-values.md 1.3 (H = 3000 m and 15000 m)
+    assert _p_std_ref(R0_REF * 3000.0 / (R0_REF - 3000.0)) == pytest.approx(70_108.54, abs=5e-3)
+    assert _p_std_ref(R0_REF * 15_000.0 / (R0_REF - 15_000.0)) == pytest.approx(12_044.57, abs=5e-3)
+
+
+@pytest.mark.parametrize("height", HOT_HEIGHTS)
+def test_hot_day_is_hydrostatic(height: float) -> None:
+    z_pad = HOT_SITE.elevation_m
+    offset = 303.15 - _t_std_ref(z_pad)
+    p_pad = _p_std_ref(z_pad)  # no measured pressure: the standard pressure at the pad elevation
+    z = z_pad + height
+    t_ref = _t_std_ref(z) + offset
+    p_ref = p_pad * math.exp(_log_ratio_ref(z_pad, z, offset))
+    t, p, rho, a = (float(v) for v in HOT_SITE.air(height))
+    assert t == pytest.approx(t_ref, rel=1e-12)
+    assert p == pytest.approx(p_ref, rel=1e-9)
+    assert rho == pytest.approx(p_ref / (R_REF * t_ref), rel=1e-9)
+    # a survived mutation: "speed of sound ignores the site temperature offset"
+    assert a == pytest.approx(math.sqrt(GAMMA_REF * R_REF * t_ref), rel=1e-12)
+
+
+def test_measured_pad_pressure_starts_the_hydrostatic_column() -> None:
+    site = Site(elevation_m=1200.0, temperature_k=280.0, pressure_pa=86_500.0)
+    offset = 280.0 - _t_std_ref(1200.0)
+    heights = np.array([-50.0, 0.0, 2000.0, 11_000.0])
+    _, p, rho, _ = site.air(heights)
+    for h, p_i, rho_i in zip(heights, p, rho):
+        p_ref = 86_500.0 * math.exp(_log_ratio_ref(1200.0, 1200.0 + h, offset))
+        assert p_i == pytest.approx(p_ref, rel=1e-9)
+        assert rho_i == pytest.approx(p_ref / (R_REF * (_t_std_ref(1200.0 + h) + offset)), rel=1e-9)
+
+
+def test_hot_day_density_aloft_is_not_the_shifted_standard_ratio() -> None:
+    # The old model kept the standard pressure ratio and only shifted T: 6 km above a 3,000 m, 30 °C pad its
+    # density came out 9.5 % low (issue 10), i.e. the hydrostatic column is 10.6 % denser there.
+    z = 9000.0
+    offset = 303.15 - _t_std_ref(3000.0)
+    old = _p_std_ref(z) / (R_REF * (_t_std_ref(z) + offset))
+    _, _, rho, _ = HOT_SITE.air(6000.0)
+    assert 1.0 - old / float(rho) == pytest.approx(0.0955, abs=5e-4)
+
+
+def test_site_elevation_reaches_the_gravity_of_a_flight() -> None:
+    # A survived mutation: "gravity table ignores site elevation". In vacuum only gravity acts after burnout, so a
+    # flight from an 8,000 m pad must agree with the solve_ivp reference, whose gravity includes the elevation
+    # (and coast about 0.25 % higher than from sea level).
+    high = Launch(rail_length_m=1.0, site=Site(elevation_m=8000.0))
+    frame = Airframe("vacuum", 0.4, 1e-6, 0.5, launch=high)
+    motor = MotorRecord("test", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9,
+                        delays_s=(3.0,))
+    apogee = float(simulate(frame, [motor], descent=False).apogee_m[0])
+    assert apogee == pytest.approx(reference_flight(frame, motor)["apogee_m"], rel=1e-6)
+    sea = simulate(Airframe("vacuum", 0.4, 1e-6, 0.5), [motor], descent=False).apogee_m[0]
+    assert apogee / sea - 1.0 > 2e-3
