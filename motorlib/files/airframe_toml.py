@@ -1,7 +1,9 @@
 """Reading airframe files (TOML, documented in ``data_schema/AIRFRAME.md``).
 
 Quantities are a plain SI number or a string with a unit (``"310 g"``,
-``"1.64 in"``, ``"800 ft"``, ``"15 degC"``). Unknown keys are refused so that a
+``"1.64 in"``, ``"800 ft"``, ``"15 degC"``, ``"78 in2"``); each parsed value is a
+:class:`~motorlib.units.Quantity` that remembers the text, so that reports can
+echo the file's own numbers. Unknown keys are refused so that a
 typo never silently falls back to a default. Errors name the file and the key
 and say what kind of quantity was expected.
 """
@@ -59,7 +61,7 @@ def _quantity(source: str, table: dict[str, Any], section: str, key: str, kind: 
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
         raise SimulationInputError(source, name, f"expected a {kind}, got {value!r}")
     try:
-        return parse_quantity(value, kind, field=name)
+        return parse_quantity(value, kind, field=name, keep_text=True)  # messages echo the file's own words
     except QuantityError as exc:
         raise SimulationInputError(source, name, exc.problem) from None
 
@@ -153,10 +155,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             if isinstance(rcd, bool) or not isinstance(rcd, (int, float)) or rcd <= 0:
                 raise SimulationInputError(source, "recovery.drag_coefficient", f"expected a positive number, got {rcd!r}")
             if "area" in recovery_t:
-                surface = recovery_t["area"]
-                if isinstance(surface, bool) or not isinstance(surface, (int, float)):
-                    raise SimulationInputError(source, "recovery.area", f"expected an area in m² (a number), got {surface!r}")
-                area = float(rcd) * float(surface)
+                area = float(rcd) * _quantity(source, recovery_t, "recovery", "area", "area")
             else:
                 diameter = _quantity(source, recovery_t, "recovery", "diameter", "length", required=True)
                 area = float(rcd) * math.pi * diameter**2 / 4.0
