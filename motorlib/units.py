@@ -16,13 +16,15 @@ from .errors import QuantityError
 
 __all__ = [
     "FOOT_M",
-    "Quantity",
     "GRAM_KG",
     "INCH_M",
+    "INCH_OF_MERCURY_PA",
     "KILOGRAM_FORCE_N",
     "OUNCE_KG",
     "POUND_FORCE_N",
     "POUND_KG",
+    "PSI_PA",
+    "Quantity",
     "STANDARD_GRAVITY_M_S2",
     "UNITS",
     "format_unit",
@@ -39,6 +41,8 @@ GRAM_KG: Final = 1e-3
 POUND_FORCE_N: Final = POUND_KG * STANDARD_GRAVITY_M_S2  # 4.4482216152605 N, lb x g0 by definition
 KILOGRAM_FORCE_N: Final = STANDARD_GRAVITY_M_S2  # 1 kgf = 1 kg x g0 by definition
 MILE_M: Final = 1609.344  # exact, 5280 ft
+PSI_PA: Final = POUND_FORCE_N / INCH_M**2  # pound-force per square inch, 6894.757... Pa by definition
+INCH_OF_MERCURY_PA: Final = 3386.389  # conventional inch of mercury (NIST SP 811, appendix B.8)
 
 # kind -> unit symbol -> factor to the SI unit of that kind (value_si = value * factor).
 # Aliases are listed separately so that every factor is written once.

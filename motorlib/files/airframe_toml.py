@@ -18,7 +18,7 @@ from typing import Any
 from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
 from ..errors import QuantityError, SimulationInputError
-from ..units import parse_quantity
+from ..units import INCH_OF_MERCURY_PA, parse_quantity
 
 __all__ = ["airframe_from_dict", "load_airframe"]
 
@@ -28,7 +28,7 @@ _SECTIONS = {
     "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
     "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
 }
-_PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": 3386.389}
+_PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
 def load_airframe(path: str | os.PathLike[str]) -> Airframe:
