@@ -188,7 +188,8 @@ _FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_
                 "max_mach", "burnout_time_s", "optimal_delay_s", "chosen_delay_s", "delay_adjusted",
                 "ejection_altitude_m", "ejection_speed_m_s", "ejection_vertical_speed_m_s", "landing_speed_m_s",
                 "liftoff_mass_kg", "ballast_kg", "ballast_apogee_m", "ballast_rail_exit_speed_m_s",
-                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_reasons")
+                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_optimal_delay_s",
+                "ballast_ejection_speed_m_s", "ballast_landing_speed_m_s", "ballast_reasons", "ballast_reason_codes")
 
 
 def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
@@ -248,7 +249,9 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
         "liftoff_mass_kg": col(results.liftoff_mass_kg),
         "ballast_kg": [None] * len(rows), "ballast_apogee_m": [None] * len(rows),
         "ballast_rail_exit_speed_m_s": [None] * len(rows), "ballast_liftoff_thrust_to_weight": [None] * len(rows),
-        "ballast_chosen_delay_s": [None] * len(rows), "ballast_reasons": [None] * len(rows),
+        "ballast_chosen_delay_s": [None] * len(rows), "ballast_optimal_delay_s": [None] * len(rows),
+        "ballast_ejection_speed_m_s": [None] * len(rows), "ballast_landing_speed_m_s": [None] * len(rows),
+        "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
         "_reasons": reasons, "_status": list(results.status),
     }
 
@@ -302,6 +305,7 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
     for i in range(n):
         if not figures["_reasons"][i] and apogee0[i] <= target:
             figures["ballast_reasons"][i] = ["cannot reach the target even without ballast"]
+            figures["ballast_reason_codes"][i] = ["short"]
     idx = np.flatnonzero(candidates)
     if idx.size == 0:
         return
@@ -344,8 +348,12 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         figures["ballast_rail_exit_speed_m_s"][i] = float(final.rail_exit_speed_m_s[k])
         figures["ballast_liftoff_thrust_to_weight"][i] = float(final.liftoff_thrust_to_weight[k])
         figures["ballast_chosen_delay_s"][i] = float(chosen[k]) if np.isfinite(chosen[k]) else None
-        figures["ballast_reasons"][i] = [text for _, text in
-                                         _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i])]
+        figures["ballast_optimal_delay_s"][i] = float(final.optimal_delay_s[k])
+        figures["ballast_ejection_speed_m_s"][i] = float(speed[k]) if np.isfinite(speed[k]) else None
+        figures["ballast_landing_speed_m_s"][i] = float(landing[k]) if np.isfinite(landing[k]) else None
+        broken = _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i])
+        figures["ballast_reasons"][i] = [text for _, text in broken]
+        figures["ballast_reason_codes"][i] = [code for code, _ in broken]
 
 
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:

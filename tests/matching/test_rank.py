@@ -177,7 +177,7 @@ def test_match_json_and_text(tmp_path: Path) -> None:
     plot = tmp_path / "m.png"
     out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--top", "5",
                                "--show-rejected", "--plot", str(plot), "--units", "imperial"])
-    assert out.exit_code == 0 and "Caution" in out.output and "apogee ft" in out.output and plot.exists()
+    assert out.exit_code == 0 and "Caution" in out.output and "ft/s" in out.output and plot.exists()
     out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--csv"])
     assert out.exit_code == 0 and out.output.splitlines()[0].startswith("motor_id,")
 

@@ -25,7 +25,7 @@ def test_systems_and_their_names() -> None:
     (METRIC, 120.0, "speed", "120.0 m/s"), (IMPERIAL, 288.15, "temperature", "59 °F"),
     (METRIC, 0.029, "motor_size", "29.0 mm"), (IMPERIAL, 0.029, "motor_size", "29.0 mm"),
     (IMPERIAL, 160.0, "impulse", "160.0 N·s"), (IMPERIAL, 6894.757293168361, "pressure", "1.00 psi"),
-    (IMPERIAL, 0.1806448, "area", "1.94 ft²"),
+    (IMPERIAL, 0.1806448, "area", "1.94 ft²"), (IMPERIAL, 0.0180645, "area", "28.0 in²"),
 ])
 def test_quantities_for_people(units: DisplayUnits, value: float, kind: str, expected: str) -> None:
     assert units.quantity(value, kind) == expected
