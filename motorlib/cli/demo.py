@@ -22,8 +22,7 @@ def demo(plot_path: str, units: str | None) -> None:
 
     \b
     Example:
-      motorlib demo --plot demo.png
-      motorlib demo --units imperial
+      motorlib demo --units imperial --plot demo.png
     """
     from ..files.curvefiles import sample_catalog_dir
 

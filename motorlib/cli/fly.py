@@ -39,9 +39,10 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     \b
     Example:
-      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8 --plot f29.png
-      motorlib fly my-rocket.toml --motor static-3.xml --delay 6s --units imperial
-      motorlib fly my-rocket.toml --motor G59-10 --ballast 25g --csv g59.csv --json
+      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8 \\
+          --plot f29.png
+      motorlib fly my-rocket.toml --motor static-3.xml --delay 8s --units imperial
+      motorlib fly my-rocket.toml --motor G59-10 --ballast 25g --csv g59.csv
     """
     import numpy as np
 

@@ -43,7 +43,7 @@ def main(units: str | None) -> None:
     \b
     Examples:
       motorlib demo                   # rank the bundled motors for a demo rocket
-      motorlib new-airframe my-rocket.toml        # start an airframe file
+      motorlib new-airframe rocket.toml      # start an airframe file to edit
       motorlib match my-rocket.toml --target 300 --ceiling 450
       motorlib --units imperial match my-rocket.toml --target 1000ft
       motorlib check sample_curves/             # check every bundled curve

@@ -120,7 +120,9 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
 
     \b
     Example:
-      motorlib match sample_curves/airframes/quibble-41.toml --target 400 --ceiling 600
-      motorlib match my-rocket.toml --target 1300ft --max-class G --ballast --units imperial
+      motorlib match sample_curves/airframes/quibble-41.toml --target 400 \\
+          --ceiling 600
+      motorlib match my-rocket.toml --target 1300ft --max-class G --ballast \\
+          --allow-smaller-motors --units imperial
     """
     _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)

@@ -21,8 +21,8 @@ def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
 
     \b
     Example:
-      motorlib new-airframe my-rocket.toml
-      motorlib new-airframe my-rocket.toml --units imperial --overwrite
+      motorlib new-airframe rocket.toml
+      motorlib new-airframe rocket.toml --units imperial --overwrite
     """
     from pathlib import Path
 
