@@ -279,7 +279,7 @@ CATALOG_SORT = {"id": "motor_id", "motor": "designation", "maker": "maker", "cla
 def _maker_tag(maker: str) -> str:
     """A short form of a maker's name that tells motors with the same designation apart."""
     word = (maker or "unknown").split()[0]
-    return word[:10]
+    return word[:12]
 
 
 def _motor_names(rows: list[dict[str, Any]], with_maker_column: bool) -> list[str]:
