@@ -128,26 +128,44 @@ def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> list[str]:
     return reasons
 
 
-def rank(frame: Airframe, rows: Sequence[dict[str, Any]], pack_for: Any, settings: MatchSettings | None = None,
+def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettings | None = None,
          flight_settings: FlightSettings | None = None) -> MatchResult:
     """Rank every candidate for ``frame``.
+
+    The common case is one call, ``rank(airframe, catalog, settings)``; a motor record or a list of them
+    works in place of the catalog.
 
     Parameters
     ----------
     frame : Airframe
-    rows : sequence of dict
-        Candidate metadata in the catalog's row layout (:meth:`Catalog.rows` or :func:`candidate_rows`).
-    pack_for : callable
-        ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index).
+    rows : Catalog, MotorRecord, sequence of MotorRecord, or sequence of dict
+        The candidates: a catalog (all its motors), records, or metadata in the catalog's row layout
+        (:meth:`Catalog.rows` or :func:`candidate_rows`), which then needs ``pack_for``.
+    pack_for : callable, optional
+        ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index); not
+        needed for a catalog or records. A :class:`MatchSettings` here is taken as ``settings``.
     settings : MatchSettings, optional
     flight_settings : FlightSettings, optional
 
     Returns
     -------
     MatchResult
+
+    Examples
+    --------
+    >>> import motorlib
+    >>> from motorlib.files.curvefiles import sample_catalog_dir
+    >>> frame = motorlib.load_airframe(sample_catalog_dir() / "airframes" / "quibble-41.toml")
+    >>> catalog = motorlib.Catalog(sample_catalog_dir(), read_only=True)
+    >>> result = motorlib.rank(frame, catalog, motorlib.MatchSettings(target_m=400.0))
+    >>> len(result.candidates), result.candidates[0]["passes"]
+    (27, True)
     """
+    if isinstance(pack_for, MatchSettings):  # rank(airframe, catalog, settings)
+        settings, pack_for = pack_for, None
     s = settings or MatchSettings()
     fs = flight_settings or FlightSettings()
+    rows, pack_for = _candidates(rows, pack_for, fs.drill_step_s)
     fit_reasons = [_fits(frame, row, s) for row in rows]
     fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
     flown: dict[int, dict[str, Any]] = {}
@@ -182,6 +200,23 @@ def rank(frame: Airframe, rows: Sequence[dict[str, Any]], pack_for: Any, setting
     airframe = {"name": frame.name, "mass_kg": frame.mass_kg, "diameter_m": frame.diameter_m,
                 "mount_diameter_m": frame.mount_diameter_m, "mount_length_m": frame.mount_length_m}
     return MatchResult(airframe, conditions, candidates)
+
+
+def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[dict[str, Any]], Any]:
+    """Rows and a pack function for whatever :func:`rank` was given (a catalog, records or rows)."""
+    if hasattr(rows, "rows") and hasattr(rows, "motor_pack"):  # a Catalog (duck-typed: catalog/ is a layer above)
+        return rows.rows(), pack_for or rows.motor_pack
+    if isinstance(rows, MotorRecord):
+        rows = [rows]
+    rows = list(rows)
+    if rows and all(isinstance(r, MotorRecord) for r in rows):
+        records = rows
+        by_id = {f"record-{i}": r for i, r in enumerate(records)}
+        return candidate_rows(records), pack_for or (
+            lambda sub: MotorPack.from_records([by_id[r["motor_id"]] for r in sub], drill_step_s))
+    if pack_for is None:
+        raise TypeError("`pack_for` is needed when `rows` are catalog rows (or pass a Catalog or motor records)")
+    return rows, pack_for
 
 
 _FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_thrust_to_weight", "max_speed_m_s",
