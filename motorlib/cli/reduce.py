@@ -123,11 +123,14 @@ def _provenance_note(reductions: list[tuple[str, Any]], combine: bool) -> str:
     """The provenance note naming the logs and how the first one was reduced."""
     from pathlib import Path
 
-    first = reductions[0][1]
-    return (f"Reduced by motorlib from {', '.join(Path(p).name for p, _ in reductions)}: baseline {first.baseline_n:.4g} N, "
-            f"noise {first.noise_n:.3g} N, {first.sample_rate_hz:.4g} Hz, "
-            + (f"low-pass {first.cutoff_hz:g} Hz" if first.cutoff_hz else "no filter")
-            + f", events at {first.threshold_n:.3g} N." + (f" Mean of {len(reductions)} firings." if combine else ""))
+    from ..present.display import DisplayUnits
+
+    first, u = reductions[0][1], DisplayUnits()
+    return (f"Reduced by motorlib from {', '.join(Path(p).name for p, _ in reductions)}: baseline "
+            f"{u.precise(first.baseline_n, 'force')}, noise {u.precise(first.noise_n, 'force', 2)}, "
+            f"{u.plain(first.sample_rate_hz)} Hz, "
+            + (f"low-pass {u.plain(first.cutoff_hz)} Hz" if first.cutoff_hz else "no filter")
+            + f", events at {u.precise(first.threshold_n, 'force', 2)}." + (f" Mean of {len(reductions)} firings." if combine else ""))
 
 
 def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force: bool) -> Any:

@@ -240,6 +240,15 @@ class DisplayUnits:
             text = format_number((math.ceil(v * scale) if above else math.floor(v * scale)) / scale, base + 3)
         return (f"{text} {unit}".rstrip() if with_unit else text), limit_text
 
+    @classmethod
+    def plain(cls, value: float) -> str:
+        """A bare number with the digits it needs and no exponent: 100, 6.5, 0.025, 12,345.
+
+        >>> DisplayUnits.plain(12345.0), DisplayUnits.plain(0.0312345)
+        ('12,345', '0.0312')
+        """
+        return format_number(value, cls._digits(value))
+
     def limit(self, value_si: float, kind: str) -> str:
         """A rule's limit with its unit, as the user gave it or with the digits it needs (15 m/s, 49.2 ft/s)."""
         text = getattr(value_si, "text", None)

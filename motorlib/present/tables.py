@@ -356,13 +356,18 @@ def add_results_table(results: list) -> Table:
     table = _table("Catalog add")
     table.add_column("file", no_wrap=True, overflow="ellipsis", min_width=10, max_width=40)
     table.add_column("result", no_wrap=True)
-    table.add_column("details", ratio=2)
+    table.add_column("details", ratio=2, overflow="fold")
     styles = {"added": "green", "duplicate": "cyan", "refused": "bold red", "unreadable": "bold red"}
     for r in results:
         if r.status == "added" and not r.near_duplicates:
             continue
         status = "near-dup" if r.status == "added" else r.status
-        table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(r.message))
+        message, source = r.message, str(r.source)
+        if message.startswith(source):  # the file is in the first column already
+            rest = message[len(source):].lstrip(":")
+            line, sep, after = rest.partition(":")
+            message = f"line {line}:{after}" if sep and line.isdigit() else rest.strip()
+        table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(message))
     return table  # the details column wraps at spaces: it holds sentences
 
 
@@ -521,9 +526,9 @@ def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
     text = Text()
     for entry in summary:
         text.append(escape(entry["file"]), style="bold")
-        text.append(f": {entry['sample_rate_hz']:,.0f} Hz, baseline {u.precise(entry['baseline_n'], 'force')}, "
+        text.append(f": {u.plain(entry['sample_rate_hz'])} Hz, baseline {u.precise(entry['baseline_n'], 'force')}, "
                     f"noise {u.precise(entry['noise_n'], 'force', 2)}, "
-                    + (f"low-pass {entry['cutoff_hz']:,.4g} Hz, " if entry["cutoff_hz"] else "no filter, ")
+                    + (f"low-pass {u.plain(entry['cutoff_hz'])} Hz, " if entry["cutoff_hz"] else "no filter, ")
                     + f"ignition at {u.quantity(entry['ignition_time_s'], 'time', 3)}, burnout at "
                       f"{u.quantity(entry['burnout_time_s'], 'time', 3)}, {entry['points']} points (impulse within "
                       f"{100 * entry['reduction_impulse_error']:.3f} %)\n")
