@@ -18,9 +18,9 @@ __version__ = "0.1.0"
 _EXPORTS = {
     "Airframe": ".flight.airframe",
     "CLASS_LETTERS": ".motor.classes",
-    "Catalog": ".catalog.store",
+    "Catalog": ".catalog",
     "CatalogError": ".errors",
-    "CatalogFilter": ".catalog.store",
+    "CatalogFilter": ".catalog",
     "CheckReport": ".files.curvefiles",
     "CheckSettings": ".motor.checks",
     "CsvFormatError": ".errors",
@@ -32,15 +32,16 @@ _EXPORTS = {
     "Designation": ".motor.classes",
     "DesignationError": ".errors",
     "Finding": ".motor.checks",
-    "FlightResults": ".flight.integrate",
-    "FlightSettings": ".flight.integrate",
+    "FiringSpread": ".motor.record",
+    "FlightResults": ".flight",
+    "FlightSettings": ".flight",
     "ImpulseClass": ".motor.classes",
     "Launch": ".flight.airframe",
     "LaunchRules": ".flight.rules",
     "MatchResult": ".matching.rank",
     "MatchSettings": ".matching.rank",
     "MotorNotFoundError": ".errors",
-    "MotorPack": ".flight.integrate",
+    "MotorPack": ".flight",
     "MotorRecord": ".motor.record",
     "MotorlibError": ".errors",
     "MotorlibWarning": ".errors",
@@ -69,7 +70,8 @@ _EXPORTS = {
     "record_from_csv": ".files.motor_csv",
     "record_to_bytes": ".files.motor_xml",
     "reduce_log": ".motor.reduction",
-    "simulate": ".flight.integrate",
+    "rounded_impulse_ns": ".motor.classes",
+    "simulate": ".flight",
     "write_record": ".files.motor_xml",
 }
 # Subpackages reachable as attributes after ``import motorlib``, as when the re-exports were eager.
@@ -79,7 +81,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
     from .flight.airframe import Airframe, Launch, Recovery
     from .files.airframe_toml import load_airframe
     from .flight.atmosphere import Site
-    from .catalog.store import Catalog, CatalogFilter
+    from .catalog import Catalog, CatalogFilter
     from .motor.checks import CheckSettings, Finding, check_record, metrics
     from .motor.classes import (
         CLASS_LETTERS,
@@ -89,9 +91,10 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
         format_designation,
         impulse_class_for,
         parse_designation,
+        rounded_impulse_ns,
     )
     from .files.motor_csv import CurveMetadata, read_csv_curve, record_from_csv
-    from .motor.record import DEFAULT_BURN_THRESHOLD, MotorRecord, Provenance
+    from .motor.record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord, Provenance
     from .files.curvefiles import CheckReport, check_file, load_curve_file
     from .errors import (
         CatalogError,
@@ -107,7 +110,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
         SchemaValidationError,
         SimulationInputError,
     )
-    from .flight.integrate import FlightResults, FlightSettings, MotorPack, simulate
+    from .flight import FlightResults, FlightSettings, MotorPack, simulate
     from .matching.rank import MatchResult, MatchSettings, rank
     from .motor.reduction import Reduction, ReductionSettings, reduce_log
     from .flight.rules import LaunchRules
@@ -147,6 +150,7 @@ __all__ = [
     "Designation",
     "DesignationError",
     "Finding",
+    "FiringSpread",
     "FlightResults",
     "FlightSettings",
     "ImpulseClass",
@@ -185,6 +189,7 @@ __all__ = [
     "record_from_csv",
     "record_to_bytes",
     "reduce_log",
+    "rounded_impulse_ns",
     "simulate",
     "write_record",
 ]

@@ -10,7 +10,8 @@ import numpy as np
 import pytest
 from hypothesis import strategies as st
 
-from motorlib import MotorRecord, Provenance
+from motorlib import FiringSpread, MotorRecord, Provenance
+from motorlib.motor.record import PROVENANCE_KINDS
 
 ROOT = Path(__file__).resolve().parent.parent
 SAMPLE_DIR = ROOT / "sample_curves"
@@ -99,6 +100,8 @@ def full_records(draw: st.DrawFn) -> MotorRecord:
     if draw(st.booleans()):
         propellant = draw(st.floats(1e-7, total, **_finite)) if total is not None else draw(positive)
     delays = draw(st.lists(st.floats(0.01, 30.0, **_finite), max_size=4, unique=True))
+    adjustable = draw(st.booleans())
+    no_charge = not delays and not adjustable and draw(st.booleans())
     return MotorRecord(
         designation=draw(_xml_text),
         maker=draw(st.one_of(st.just(""), _xml_text)),
@@ -106,10 +109,21 @@ def full_records(draw: st.DrawFn) -> MotorRecord:
         diameter_m=draw(st.one_of(st.none(), positive)),
         length_m=draw(st.one_of(st.none(), positive)),
         total_mass_kg=total, propellant_mass_kg=propellant,
-        delays_s=tuple(delays), delay_adjustable=draw(st.booleans()),
+        delays_s=tuple(delays), delay_adjustable=adjustable, no_ejection_charge=no_charge,
+        firing_spread=draw(st.one_of(st.none(), firing_spreads())),
         provenance=Provenance(
-            draw(st.sampled_from(["certification-test", "maker-data", "static-test", "demo", "other"])),
+            draw(st.sampled_from(PROVENANCE_KINDS)),
             draw(st.one_of(st.none(), st.dates(dt.date(1950, 1, 1), dt.date(2100, 1, 1)))),
             draw(st.one_of(st.just(""), _xml_text)),
         ),
     )
+
+
+@st.composite
+def firing_spreads(draw: st.DrawFn) -> FiringSpread:
+    """Random valid spreads of several firings."""
+    positive = st.floats(1e-6, 1e5, **_finite)
+    spread = st.floats(0.0, 1e4, **_finite)
+    return FiringSpread(n_firings=draw(st.integers(2, 1000)), total_impulse_mean_ns=draw(positive),
+                        total_impulse_std_ns=draw(spread), burn_time_mean_s=draw(positive),
+                        burn_time_std_s=draw(spread))

@@ -120,7 +120,7 @@ def main() -> None:
             designation=label, maker=maker, time_s=time_s, thrust_n=thrust_n,
             diameter_m=dia / 1000, length_m=length / 1000, total_mass_kg=total_kg,
             propellant_mass_kg=propellant_kg, delays_s=tuple(float(d) for d in delays),
-            delay_adjustable=adjustable,
+            delay_adjustable=adjustable, no_ejection_charge=style in ("booster", "plugged"),
             provenance=Provenance("demo", DATE, f"{NOTE} Shape: {shape}."),
         )
         path = OUT / f"{_slug(maker.split('(')[0])}_{_slug(label)}.xml"

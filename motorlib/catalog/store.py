@@ -20,73 +20,42 @@ A motor's id is the first 16 hex digits of the SHA-256 of its file (files are
 always written in canonical form, so equal records have equal ids). Its handle
 is its path without ``.xml`` (``bramblewick-propulsion/g59-10``), with a ``-2``,
 ``-3`` suffix where one maker and designation have several curves.
+
+This module owns the files, the writer lock, adding, removing and looking
+motors up; :class:`Catalog` delegates the index to :mod:`.index`, queries to
+:mod:`.query` and tags to :mod:`.tags`.
 """
 
 from __future__ import annotations
 
 import contextlib
 import hashlib
-import json
 import os
 import re
-import sqlite3
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any, Callable, Iterator, Sequence
 
 import numpy as np
 
-from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems, metrics
-from ..motor.classes import CLASS_LETTERS
-from ..motor.record import MotorRecord
 from ..errors import CatalogError, CurveDataError, MotorlibError, MotorNotFoundError
 from ..files.fsio import slug, write_atomic
 from ..files.motor_xml import record_from_bytes, record_to_bytes
+from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
+from ..motor.record import MotorRecord
+from . import query as _query
+from .index import INDEX_DIR, CatalogIndex
+from .query import CatalogFilter
+from .tags import TagFile, check_tag_name
 
-__all__ = ["AddResult", "Catalog", "CatalogFilter", "motor_id_for"]
+__all__ = ["AddResult", "Catalog", "motor_id_for"]
 
-SCHEMA_VERSION = "1"
 READ_ONLY_MARKER = "READ_ONLY"  # a file of this name makes a catalog folder read-only (the bundled samples)
-_INDEX_DIR = ".motorlib"
-_COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
-            "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
-            "diameter_m", "length_m", "total_mass_kg", "propellant_mass_kg", "specific_impulse_s", "delays_s",
-            "delay_adjustable", "provenance_kind", "provenance_date", "notes", "n_samples", "n_errors",
-            "n_warnings", "findings")
-SORT_KEYS = tuple(c for c in _COLUMNS if c not in ("findings", "notes", "delays_s", "path"))
 
 
 def motor_id_for(data: bytes) -> str:
     """The id of a catalog file: the first 16 hex digits of its SHA-256."""
     return hashlib.sha256(data).hexdigest()[:16]
-
-
-@dataclass(frozen=True)
-class CatalogFilter:
-    """Which motors a query returns; every criterion is optional and they combine with AND.
-
-    Lengths in m, impulses in N·s, times in s (SI, like the rest of the library).
-    """
-
-    class_range: tuple[str, str] | None = None
-    diameter_m: float | None = None
-    diameter_tolerance_m: float = 0.0005
-    max_diameter_m: float | None = None
-    max_length_m: float | None = None
-    maker: str | None = None
-    impulse_range_ns: tuple[float | None, float | None] = (None, None)
-    burn_range_s: tuple[float | None, float | None] = (None, None)
-    delay_s: float | None = None
-    text: str | None = None
-    tag: str | None = None
-    ids: tuple[str, ...] | None = None
-    hide_errors: bool = False
-
-    def __post_init__(self) -> None:
-        if self.class_range is not None:
-            for letter in self.class_range:
-                if letter not in CLASS_LETTERS:
-                    raise ValueError(f"class {letter!r} is not one of {', '.join(CLASS_LETTERS)}")
 
 
 @dataclass(frozen=True)
@@ -105,17 +74,6 @@ class AddResult:
     message: str = ""
     near_duplicates: tuple[str, ...] = ()
     findings: tuple[Finding, ...] = ()
-
-
-def parse_class_range(text: str) -> tuple[str, str]:
-    """``"D..G"`` or ``"D"`` -> (lowest, highest) class letters."""
-    parts = [p.strip().upper() for p in text.split("..")]
-    if len(parts) == 1:
-        parts = parts * 2
-    if len(parts) != 2 or any(p not in CLASS_LETTERS for p in parts):
-        raise ValueError(f"class range {text!r}: expected a class such as D or a range such as D..G")
-    low, high = sorted(parts, key=CLASS_LETTERS.index)
-    return low, high
 
 
 class Catalog:
@@ -153,74 +111,24 @@ class Catalog:
             self.root.mkdir(parents=True)
         if not self.root.is_dir():
             raise CatalogError(f"{self.root}: not a folder")
-        self._db = self._connect()
+        self._index = CatalogIndex(self.root, read_only=self.read_only, settings=self.settings, lock=self._lock,
+                                   notices=self.notices)
+        self._db = self._index.db  # lookups below read it; the index module owns its schema
+        self._tags = TagFile(self.root, self._db)
         self.refresh(report=True)
         self.refresh_tags()
 
-    # ------------------------------------------------------------------ index plumbing
+    # ------------------------------------------------------------------ plumbing
     @property
     def index_path(self) -> Path:
-        return self.root / _INDEX_DIR / "index.sqlite"
-
-    def _connect(self) -> sqlite3.Connection:
-        if self.read_only:
-            db = sqlite3.connect(":memory:", isolation_level=None)
-            self._create_schema(db)
-            self.notices.append(f"{self.root}: read-only catalog, index kept in memory")
-            return db
-        (self.root / _INDEX_DIR).mkdir(exist_ok=True)
-        existed = self.index_path.exists()
-        try:
-            db = self._open_db()
-            version = db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone()
-            if version is None or version[0] != SCHEMA_VERSION:
-                raise sqlite3.DatabaseError("schema version mismatch")
-            db.execute("SELECT count(*) FROM motors").fetchone()
-            return db
-        except sqlite3.DatabaseError as exc:
-            with contextlib.suppress(NameError):
-                db.close()
-            if existed:
-                with self._lock():
-                    aside = self.index_path.with_suffix(".corrupt")
-                    if self.index_path.exists():
-                        os.replace(self.index_path, aside)
-                    for extra in ("-wal", "-shm"):
-                        with contextlib.suppress(FileNotFoundError):
-                            os.unlink(str(self.index_path) + extra)
-                self.notices.append(f"{self.index_path}: index unusable ({exc}); moved aside and rebuilt from the files")
-            else:
-                self.notices.append(f"{self.root}: building the catalog index")
-            db = self._open_db()
-            with db:
-                self._create_schema(db)
-            return db
-
-    def _open_db(self) -> sqlite3.Connection:
-        db = sqlite3.connect(self.index_path, timeout=60.0, isolation_level=None)
-        db.execute("PRAGMA busy_timeout = 60000")
-        db.execute("PRAGMA journal_mode = WAL")
-        db.execute("PRAGMA synchronous = NORMAL")
-        return db
-
-    @staticmethod
-    def _create_schema(db: sqlite3.Connection) -> None:
-        db.execute("CREATE TABLE IF NOT EXISTS meta (key TEXT PRIMARY KEY, value TEXT)")
-        db.execute("CREATE TABLE IF NOT EXISTS files (path TEXT PRIMARY KEY, size INTEGER, mtime_ns INTEGER, "
-                   "sha256 TEXT, motor_id TEXT, error TEXT)")
-        cols = ", ".join(f"{c} {'TEXT PRIMARY KEY' if c == 'motor_id' else ''}" for c in _COLUMNS)
-        db.execute(f"CREATE TABLE IF NOT EXISTS motors ({cols}, time_blob BLOB, thrust_blob BLOB)")
-        db.execute("CREATE INDEX IF NOT EXISTS motors_class ON motors (class_index)")
-        db.execute("CREATE INDEX IF NOT EXISTS motors_name ON motors (maker, designation)")
-        db.execute("CREATE TABLE IF NOT EXISTS tags (motor_id TEXT, tag TEXT, PRIMARY KEY (motor_id, tag))")
-        db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
+        return self._index.path
 
     @contextlib.contextmanager
     def _lock(self) -> Iterator[None]:
         """An exclusive lock between writer processes (fcntl where available)."""
         if self.read_only:
             raise CatalogError(f"{self.root}: the catalog is read-only")
-        path = self.root / _INDEX_DIR / "lock"
+        path = self.root / INDEX_DIR / "lock"
         path.parent.mkdir(exist_ok=True)
         with open(path, "a+b") as handle:
             try:
@@ -235,7 +143,7 @@ class Catalog:
                 fcntl.flock(handle.fileno(), fcntl.LOCK_UN)
 
     def close(self) -> None:
-        self._db.close()
+        self._index.close()
 
     def __enter__(self) -> Catalog:
         return self
@@ -243,19 +151,7 @@ class Catalog:
     def __exit__(self, *exc: object) -> None:
         self.close()
 
-    # ------------------------------------------------------------------ refresh from the files
-    def _scan(self) -> dict[str, tuple[int, int]]:
-        found: dict[str, tuple[int, int]] = {}
-        root = str(self.root)
-        for folder, dirs, files in os.walk(root):
-            dirs[:] = [d for d in dirs if not d.startswith(".")]
-            for name in files:
-                if name.endswith(".xml") and not name.startswith("."):
-                    full = os.path.join(folder, name)
-                    st = os.stat(full)
-                    found[os.path.relpath(full, root).replace(os.sep, "/")] = (st.st_size, st.st_mtime_ns)
-        return found
-
+    # ------------------------------------------------------------------ the index
     def refresh(self, *, report: bool = False) -> int:
         """Bring the index in step with the files; returns how many files were (re)read.
 
@@ -264,90 +160,15 @@ class Catalog:
         rebuilt; with ``report`` a notice says what changed.
         """
         self.problems = []
-        on_disk = self._scan()
-        known = {row[0]: row[1:] for row in self._db.execute("SELECT path, size, mtime_ns, sha256, error FROM files")}
-        removed = [p for p in known if p not in on_disk]
-        changed = [p for p, stat in on_disk.items() if p not in known or tuple(known[p][:2]) != stat]
-        for path, row in known.items():  # files that failed before stay reported, without re-reading
-            if path in on_disk and path not in changed and row[3]:
-                self.problems.append((str(self.root / path), row[3]))
-        if not removed and not changed:
-            return 0
-        self._db.execute("BEGIN IMMEDIATE")
-        try:
-            for path in removed:
-                self._db.execute("DELETE FROM motors WHERE path = ?", (path,))
-                self._db.execute("DELETE FROM files WHERE path = ?", (path,))
-            for path in changed:
-                self._index_file(path, on_disk[path], known.get(path))
-            self._db.execute("COMMIT")
-        except BaseException:
-            self._db.execute("ROLLBACK")
-            raise
-        if report and known:
-            self.notices.append(f"{self.root}: index refreshed ({len(changed)} file(s) read, {len(removed)} removed)")
-        return len(changed)
-
-    def _index_file(self, path: str, stat: tuple[int, int], old: tuple | None) -> None:
-        full = self.root / path
-        try:
-            data = full.read_bytes()
-        except OSError as exc:
-            self.problems.append((str(full), exc.strerror or str(exc)))
-            return
-        digest = hashlib.sha256(data).hexdigest()
-        if old is not None and old[2] == digest and not old[3]:
-            self._db.execute("UPDATE files SET size = ?, mtime_ns = ? WHERE path = ?", (*stat, path))
-            return
-        motor_id = digest[:16]
-        self._db.execute("DELETE FROM motors WHERE path = ?", (path,))
-        try:
-            record = record_from_bytes(data, str(full))
-        except MotorlibError as exc:
-            self._db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, str(exc)))
-            self.problems.append((str(full), str(exc)))
-            return
-        twin = self._db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
-        if twin is not None:
-            message = f"an exact copy of {twin[0]}; skipped"
-            self._db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, message))
-            self.problems.append((str(full), message))
-            return
-        self._db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
-        self._insert_motor(motor_id, path, record)
-
-    def _insert_motor(self, motor_id: str, path: str, record: MotorRecord) -> None:
-        m = metrics(record, self.settings.burn_threshold)
-        findings = check_record(record, self.settings)
-        cls = m["impulse_class"]
-        row = {
-            "motor_id": motor_id, "handle": path[:-4], "path": path, "maker": record.maker,
-            "designation": record.designation, "computed_designation": m["computed_designation"],
-            "impulse_class": cls, "class_index": CLASS_LETTERS.index(cls) if cls else len(CLASS_LETTERS),
-            "class_percent": m["class_percent"], "total_impulse_ns": m["total_impulse_ns"],
-            "average_thrust_n": m["average_thrust_n"], "peak_thrust_n": m["peak_thrust_n"],
-            "burn_time_s": m["burn_time_s"], "diameter_m": record.diameter_m, "length_m": record.length_m,
-            "total_mass_kg": record.total_mass_kg, "propellant_mass_kg": record.propellant_mass_kg,
-            "specific_impulse_s": record.specific_impulse_s, "delays_s": json.dumps(list(record.delays_s)),
-            "delay_adjustable": int(record.delay_adjustable), "provenance_kind": record.provenance.kind,
-            "provenance_date": record.provenance.date.isoformat() if record.provenance.date else None,
-            "notes": record.provenance.notes, "n_samples": record.n_samples,
-            "n_errors": sum(f.severity == "error" for f in findings),
-            "n_warnings": sum(f.severity == "warning" for f in findings),
-            "findings": json.dumps([f.as_dict() for f in findings]),
-        }
-        values = [row[c] for c in _COLUMNS] + [record.time_s.astype("<f8").tobytes(),
-                                               record.thrust_n.astype("<f8").tobytes()]
-        marks = ", ".join("?" * len(values))
-        self._db.execute(f"INSERT OR REPLACE INTO motors VALUES ({marks})", values)
+        n_read, n_removed, had_files = self._index.refresh(self.problems)
+        if report and had_files and (n_read or n_removed):
+            self.notices.append(f"{self.root}: index refreshed ({n_read} file(s) read, {n_removed} removed)")
+        return n_read
 
     def reindex(self) -> int:
         """Rebuild the whole index from the files (tags come back from tags.json)."""
         with self._lock():
-            self._db.execute("BEGIN IMMEDIATE")
-            self._db.execute("DELETE FROM motors")
-            self._db.execute("DELETE FROM files")
-            self._db.execute("COMMIT")
+            self._index.clear()
         self.problems.clear()
         return self.refresh()
 
@@ -383,16 +204,7 @@ class Catalog:
             (record.maker, record.designation)))
         path = self._free_path(record)
         write_atomic(self.root / path, data, overwrite=False)
-        st = os.stat(self.root / path)
-        self._db.execute("BEGIN IMMEDIATE")
-        try:
-            self._db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)",
-                             (path, st.st_size, st.st_mtime_ns, hashlib.sha256(data).hexdigest(), motor_id))
-            self._insert_motor(motor_id, path, record)
-            self._db.execute("COMMIT")
-        except BaseException:
-            self._db.execute("ROLLBACK")
-            raise
+        self._index.insert_file(path, data, motor_id, record)
         message = f"same maker and designation as {', '.join(near)}" if near else ""
         return AddResult(source, "added", motor_id, path[:-4], message, near, findings)
 
@@ -440,11 +252,8 @@ class Catalog:
             path, handle = self._db.execute("SELECT path, handle FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
             with contextlib.suppress(FileNotFoundError):
                 os.unlink(self.root / path)
-            self._db.execute("BEGIN IMMEDIATE")
-            self._db.execute("DELETE FROM motors WHERE motor_id = ?", (motor_id,))
-            self._db.execute("DELETE FROM files WHERE path = ?", (path,))
-            self._db.execute("COMMIT")
-            self._write_tags({t: ids - {motor_id} for t, ids in self._read_tags().items()})
+            self._index.delete_motor(motor_id, path)
+            self._tags.forget(motor_id)
         return handle
 
     # ------------------------------------------------------------------ lookup
@@ -478,158 +287,48 @@ class Catalog:
         return record_from_bytes((self.root / path).read_bytes(), str(self.root / path))
 
     def __len__(self) -> int:
-        return int(self._db.execute("SELECT count(*) FROM motors").fetchone()[0])
+        return self._index.n_motors()
 
+    # ------------------------------------------------------------------ queries (see .query)
     def rows(self, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
              descending: bool = False) -> list[dict[str, Any]]:
         """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort``."""
-        if sort not in SORT_KEYS:
-            raise ValueError(f"`sort` must be one of {', '.join(SORT_KEYS)}, got {sort!r}")
-        f = where or CatalogFilter()
-        clauses, args = [], []
-        if f.class_range:
-            clauses.append("class_index BETWEEN ? AND ?")
-            args += [CLASS_LETTERS.index(f.class_range[0]), CLASS_LETTERS.index(f.class_range[1])]
-        if f.diameter_m is not None:
-            clauses.append("abs(diameter_m - ?) <= ?")
-            args += [f.diameter_m, f.diameter_tolerance_m]
-        if f.max_diameter_m is not None:
-            clauses.append("diameter_m <= ?")
-            args.append(f.max_diameter_m + f.diameter_tolerance_m)
-        if f.max_length_m is not None:
-            clauses.append("length_m <= ?")
-            args.append(f.max_length_m)
-        if f.maker:
-            clauses.append("lower(maker) LIKE ?")
-            args.append(f"%{f.maker.lower()}%")
-        for column, (low, high) in (("total_impulse_ns", f.impulse_range_ns), ("burn_time_s", f.burn_range_s)):
-            if low is not None:
-                clauses.append(f"{column} >= ?")
-                args.append(low)
-            if high is not None:
-                clauses.append(f"{column} <= ?")
-                args.append(high)
-        if f.text:
-            clauses.append("(lower(designation) LIKE ? OR lower(maker) LIKE ? OR lower(notes) LIKE ? OR handle LIKE ?)")
-            args += [f"%{f.text.lower()}%"] * 4
-        if f.tag:
-            clauses.append("motor_id IN (SELECT motor_id FROM tags WHERE tag = ?)")
-            args.append(f.tag)
-        if f.ids is not None:
-            clauses.append(f"motor_id IN ({', '.join('?' * len(f.ids))})")
-            args += list(f.ids)
-        if f.hide_errors:
-            clauses.append("n_errors = 0")
-        sql = f"SELECT {', '.join(_COLUMNS)} FROM motors"
-        if clauses:
-            sql += " WHERE " + " AND ".join(clauses)
-        sql += f" ORDER BY {sort} {'DESC' if descending else 'ASC'}, motor_id"
-        out = []
-        for values in self._db.execute(sql, args):
-            row = dict(zip(_COLUMNS, values))
-            row["delays_s"] = json.loads(row["delays_s"])
-            row["delay_adjustable"] = bool(row["delay_adjustable"])
-            row["findings"] = json.loads(row["findings"])
-            if f.delay_s is not None and not _offers_delay(row, f.delay_s):
-                continue
-            out.append(row)
-        return out
+        return _query.select_rows(self._db, where, sort=sort, descending=descending)
 
     def query(self, where: CatalogFilter | None = None, **kwargs: Any) -> Any:
         """The rows of :meth:`rows` as a pandas DataFrame (pandas is imported only here)."""
-        import pandas as pd
-
-        return pd.DataFrame(self.rows(where, **kwargs), columns=list(_COLUMNS)).set_index("motor_id")
+        return _query.query(self._db, where, **kwargs)
 
     def samples(self, ids: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
         """Time [s] and thrust [N] arrays of the given motors, straight from the index (no XML parsing)."""
-        out: dict[str, tuple[np.ndarray, np.ndarray]] = {}
-        wanted = list(ids)
-        for start in range(0, len(wanted), 900):  # SQLite's limit on bound parameters
-            chunk = wanted[start:start + 900]
-            sql = f"SELECT motor_id, time_blob, thrust_blob FROM motors WHERE motor_id IN ({', '.join('?' * len(chunk))})"
-            for motor_id, t, f in self._db.execute(sql, chunk):
-                out[motor_id] = (np.frombuffer(t, dtype="<f8"), np.frombuffer(f, dtype="<f8"))
-        return out
+        return _query.load_samples(self._db, ids)
 
     def motor_pack(self, rows: Sequence[dict[str, Any]], drill_step_s: float = 1.0) -> Any:
         """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :meth:`rows`), built from the index."""
-        from ..flight.integrate import MotorPack
+        return _query.motor_pack(self._db, rows, drill_step_s)
 
-        data = self.samples([r["motor_id"] for r in rows])
-        return MotorPack.from_samples(
-            [data[r["motor_id"]] for r in rows],
-            total_mass_kg=[r["total_mass_kg"] for r in rows],
-            propellant_mass_kg=[r["propellant_mass_kg"] for r in rows],
-            delays_s=[tuple(r["delays_s"]) for r in rows],
-            delay_adjustable=[r["delay_adjustable"] for r in rows],
-            drill_step_s=drill_step_s,
-        )
-
-    # ------------------------------------------------------------------ tags
-    def _tags_path(self) -> Path:
-        return self.root / "tags.json"
-
-    def _read_tags(self) -> dict[str, set[str]]:
-        path = self._tags_path()
-        if not path.exists():
-            return {}
-        try:
-            data = json.loads(path.read_text(encoding="utf-8"))
-            return {str(k): set(map(str, v)) for k, v in data.items()}
-        except (ValueError, AttributeError, TypeError) as exc:
-            raise CatalogError(f"{path}: not a valid tags file ({exc}); expected an object of tag -> list of ids") from exc
-
-    def _write_tags(self, tags: dict[str, set[str]]) -> None:
-        clean = {k: sorted(v) for k, v in sorted(tags.items()) if v}
-        write_atomic(self._tags_path(), (json.dumps(clean, indent=2) + "\n").encode())
-        self._sync_tags(clean)
-
-    def _sync_tags(self, tags: dict[str, Sequence[str]] | None = None) -> None:
-        tags = tags if tags is not None else {k: sorted(v) for k, v in self._read_tags().items()}
-        self._db.execute("BEGIN IMMEDIATE")
-        self._db.execute("DELETE FROM tags")
-        self._db.executemany("INSERT OR IGNORE INTO tags VALUES (?, ?)",
-                             [(i, t) for t, ids in tags.items() for i in ids])
-        self._db.execute("COMMIT")
-
+    # ------------------------------------------------------------------ tags (see .tags)
     def tag(self, refs: Sequence[str], name: str) -> list[str]:
         """Attach tag ``name`` (e.g. ``in-stock``) to motors; returns their ids."""
-        if not re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9_.-]{0,40}", name):
-            raise CatalogError(f"tag {name!r}: use letters, digits, '-', '_' or '.', at most 41 characters")
+        check_tag_name(name)
         ids = [self.resolve(r) for r in refs]
         with self._lock():
-            tags = self._read_tags()
-            tags.setdefault(name, set()).update(ids)
-            self._write_tags(tags)
+            self._tags.attach(name, ids)
         return ids
 
     def untag(self, refs: Sequence[str], name: str) -> list[str]:
+        """Remove tag ``name`` from motors; returns their ids."""
         ids = [self.resolve(r) for r in refs]
         with self._lock():
-            tags = self._read_tags()
-            tags[name] = tags.get(name, set()) - set(ids)
-            self._write_tags(tags)
+            self._tags.detach(name, ids)
         return ids
 
     def tags(self) -> dict[str, list[str]]:
         """Tag name -> motor ids (as stored in tags.json)."""
-        return {k: sorted(v) for k, v in self._read_tags().items()}
+        return self._tags.as_lists()
 
     def refresh_tags(self) -> None:
         """Load tags.json into the index when it changed since the index last saw it (checked on open)."""
         if self.read_only:
             return
-        path = self._tags_path()
-        stamp = f"{path.stat().st_size}:{path.stat().st_mtime_ns}" if path.exists() else "none"
-        seen = self._db.execute("SELECT value FROM meta WHERE key = 'tags'").fetchone()
-        if seen is None or seen[0] != stamp:
-            self._sync_tags()
-            self._db.execute("INSERT OR REPLACE INTO meta VALUES ('tags', ?)", (stamp,))
-
-
-def _offers_delay(row: dict[str, Any], delay_s: float) -> bool:
-    delays = row["delays_s"]
-    if any(abs(d - delay_s) < 1e-9 for d in delays):
-        return True
-    return bool(row["delay_adjustable"]) and bool(delays) and delay_s <= max(delays)
+        self._tags.refresh()

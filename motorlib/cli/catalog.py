@@ -61,7 +61,7 @@ def _filter_options(func: Any) -> Any:
 
 
 def _filter(opts: dict[str, Any]) -> Any:
-    from ..catalog.store import CatalogFilter, parse_class_range
+    from ..catalog import CatalogFilter, parse_class_range
 
     try:
         classes = parse_class_range(opts["class_range"]) if opts.get("class_range") else None
@@ -103,7 +103,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     Example:
       motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" \\
           --diameter 24mm --length 70mm --total-mass 48g --propellant-mass 22g \\
-          --delays 4,6,8 --source-kind static-test
+          --delays 4,6,8 --source-kind own-firing
     """
     from collections import Counter
 
@@ -145,7 +145,7 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
       motorlib catalog list --class D..G --diameter 29mm --delay 6s --sort thrust
       motorlib catalog list --tag in-stock --json
     """
-    from ..catalog.store import SORT_KEYS
+    from ..catalog.query import SORT_KEYS
     from ..present.tables import CATALOG_SORT
 
     key = CATALOG_SORT.get(sort.lower(), sort)
@@ -197,7 +197,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
         records.append((motor_id, record))
         report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0]['handle']}", True, record,
                              tuple(check_record(record, cat.settings)), metrics(record, cat.settings.burn_threshold))
-        console.print(render.check_details(report, shown, record.provenance))
+        console.print(render.check_details(report, shown, record))
         console.print(f"  thrust |{render.sparkline(record.time_s, record.thrust_n, min(60, console.width - 24))}| "
                       f"{shown.precise(record.peak_thrust_n, 'force')} peak")
         console.print()
@@ -212,7 +212,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
 
 
 def _ids(*ids: str) -> Any:
-    from ..catalog.store import CatalogFilter
+    from ..catalog import CatalogFilter
 
     return CatalogFilter(ids=tuple(ids))
 
@@ -278,7 +278,7 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     Example:
       motorlib catalog export --class G --to ./g-motors --format csv
     """
-    from ..catalog.store import CatalogFilter
+    from ..catalog import CatalogFilter
     from ..files.export import export_records
 
     cat = _open_catalog(catalog_dir)

@@ -28,7 +28,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     Example:
       motorlib import stand-03.csv -o F30-6.xml --designation F30-6 \\
           --maker "Our team" --diameter 24mm --length 70mm --total-mass 48g \\
-          --propellant-mass 22g --delays 4,6,8 --source-kind static-test \\
+          --propellant-mass 22g --delays 4,6,8 --source-kind own-firing \\
           --test-date 2026-11-14
     """
     from ..present import tables as render
@@ -58,4 +58,5 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     except FileExistsError as exc:
         raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
     console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
-                  f"{render.DisplayUnits().precise(record.total_impulse_ns, 'impulse')}, {record.computed_designation()}")
+                  f"{render.impulse_text(record.total_impulse_ns)} N·s, "
+                  f"{record.computed_designation()}")

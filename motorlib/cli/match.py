@@ -45,7 +45,7 @@ def _match_options(func: Any) -> Any:
 
 def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     from ..files.airframe_toml import load_airframe
-    from ..catalog.store import CatalogFilter
+    from ..catalog import CatalogFilter
     from ..matching.rank import MatchSettings, rank
     from ..flight.rules import LaunchRules
 

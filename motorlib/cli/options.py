@@ -137,6 +137,11 @@ def _delays(ctx: click.Context, param: click.Parameter, value: str | None) -> tu
     return delays
 
 
+# The provenance kinds of motor.record.PROVENANCE_KINDS, spelled out so that the CLI's start-up imports no numpy
+# (tests/cli/test_importing.py checks that both lists agree).
+SOURCE_KINDS = ("approval-firing", "maker-published", "own-firing", "demo", "other")
+
+
 def _metadata_options(func: Any) -> Any:
     """Options describing a motor whose curve file (CSV) does not."""
     options = [
@@ -155,8 +160,7 @@ def _metadata_options(func: Any) -> Any:
                      help="Available ejection delays in seconds, e.g. 3,5,7."),
         click.option("--plugged", is_flag=True, help="No ejection charge (plugged or booster)."),
         click.option("--adjustable-delay", is_flag=True, help="The user may shorten the delay."),
-        click.option("--source-kind", type=click.Choice(["certification-test", "maker-data", "static-test", "demo",
-                                                         "other"]), default="other", show_default=True,
+        click.option("--source-kind", type=click.Choice(SOURCE_KINDS), default="other", show_default=True,
                      help="Where the curve comes from."),
         click.option("--test-date", type=click.DateTime(["%Y-%m-%d"]), help="Date of the test, YYYY-MM-DD."),
         click.option("--notes", default="", help="Free-text provenance notes (stand, lot, operator)."),
@@ -179,7 +183,7 @@ def _metadata(opts: dict[str, Any]) -> Any:
         designation=opts["designation"] or "", maker=opts["maker"], diameter_m=opts["diameter_m"],
         length_m=opts["length_m"], total_mass_kg=opts["total_mass_kg"],
         propellant_mass_kg=opts["propellant_mass_kg"], delays_s=opts["delays_s"],
-        delay_adjustable=opts["adjustable_delay"],
+        delay_adjustable=opts["adjustable_delay"], no_ejection_charge=opts["plugged"],
         provenance=Provenance(kind=opts["source_kind"], date=date, notes=opts["notes"]),
     )
 
@@ -201,7 +205,7 @@ def _open_catalog(folder: str | None) -> Any:
     import os
     from pathlib import Path
 
-    from ..catalog.store import Catalog
+    from ..catalog import Catalog
 
     path = Path(folder or default_catalog_dir())
     read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker

@@ -40,7 +40,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     tared from the readings before ignition, the data filtered, ignition and
     burnout found, and the curve reduced to at most --points points; the
     result is checked against --designation when given. The provenance kind
-    defaults to static-test.
+    defaults to own-firing.
 
     \b
     Example:
@@ -55,13 +55,13 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     from ..motor.checks import check_record, metrics
     from ..files.curvefiles import CheckReport
-    from ..motor.reduction import ReductionSettings, combine_reductions
+    from ..motor.reduction import ReductionSettings, combine_reductions, firing_spread
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
     settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
     if opts["source_kind"] == "other":
-        opts = {**opts, "source_kind": "static-test"}
+        opts = {**opts, "source_kind": "own-firing"}
     meta = _metadata(opts)
     reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
     if combine:
@@ -72,6 +72,8 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     note = _provenance_note(reductions, combine)
     meta = replace(meta, provenance=replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip()))
     record = meta.record(time_s, thrust_n, default_designation=Path(logs[0]).stem)
+    if combine:
+        record = replace(record, firing_spread=firing_spread([r for _, r in reductions]))
     log_findings = [f for _, r in reductions for f in r.findings]
     findings = log_findings + check_record(record)
     report = CheckReport(output or logs[0], True, record, tuple(findings), metrics(record))
@@ -161,7 +163,7 @@ def _print_reduction(summary: list[dict[str, Any]], spread: dict[str, Any] | Non
 
     console = _console()
     console.print(render.reduction_text(summary, spread, units), end="")
-    console.print(render.check_details(report, units))
+    console.print(render.check_details(report, units, report.record))
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
 

@@ -17,16 +17,22 @@ from typing import Any
 
 from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
+from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
 
 __all__ = ["airframe_from_dict", "airframe_template", "load_airframe"]
 
 _SECTIONS = {
-    "": {"name", "airframe", "launch", "recovery"},
+    "": {"name", "airframe", "launch", "recovery", "geometry"},
     "airframe": {"mass", "diameter", "drag_coefficient", "drag_table", "mount_diameter", "mount_length"},
     "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
     "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
+    "geometry": {"cg", "motor_offset", "nose", "body", "fins", "transition", "finish", "launch_guide"},
+    "geometry.nose": {"shape", "length", "exponent"},
+    "geometry.body": {"length"},
+    "geometry.fins": {"count", "root_chord", "tip_chord", "span", "sweep", "thickness", "offset", "profile"},
+    "geometry.transition": {"fore_diameter", "aft_diameter", "length", "position"},
 }
 _PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
@@ -82,11 +88,11 @@ def _pressure(source: str, table: dict[str, Any]) -> float | None:
     raise SimulationInputError(source, "launch.pressure", f"expected a pressure such as '1013 hPa' or '101325 Pa', got {value!r}")
 
 
-def _check_keys(source: str, data: dict[str, Any], section: str) -> None:
+def _check_keys(source: str, data: dict[str, Any], section: str, where: str | None = None) -> None:
     unknown = set(data) - _SECTIONS[section]
     if unknown:
-        where = f"{section}." if section else ""
-        raise SimulationInputError(source, where + sorted(unknown)[0],
+        where = where if where is not None else section
+        raise SimulationInputError(source, (f"{where}." if where else "") + sorted(unknown)[0],
                                    f"unknown key; expected one of {', '.join(sorted(_SECTIONS[section]))}")
 
 
@@ -100,6 +106,94 @@ def _section(source: str, data: dict[str, Any], name: str, required: bool) -> di
         raise SimulationInputError(source, f"[{name}]", "expected a table")
     _check_keys(source, table, name)
     return table
+
+
+def _text(source: str, table: dict[str, Any], section: str, key: str, default: str | None = None) -> str:
+    if key not in table:
+        if default is None:
+            raise SimulationInputError(source, f"{section}.{key}", "missing; expected a name (a string)")
+        return default
+    value = table[key]
+    if not isinstance(value, str):
+        raise SimulationInputError(source, f"{section}.{key}", f"expected a name (a string), got {value!r}")
+    return value
+
+
+def _subtable(source: str, table: dict[str, Any], key: str, required: bool) -> dict[str, Any] | None:
+    name = f"geometry.{key}"
+    if key not in table:
+        if required:
+            raise SimulationInputError(source, f"[{name}]", "missing section")
+        return None
+    sub = table[key]
+    if not isinstance(sub, dict):
+        raise SimulationInputError(source, f"[{name}]", "expected a table")
+    _check_keys(source, sub, name)
+    return sub
+
+
+def _finish(source: str, table: dict[str, Any]) -> Finish:
+    value = table.get("finish", "paint")
+    if isinstance(value, str) and value.strip() in FINISHES:
+        return Finish.preset(value.strip())
+    if isinstance(value, bool) or not isinstance(value, (int, float, str)):
+        raise SimulationInputError(source, "geometry.finish", f"expected a length or one of {', '.join(FINISHES)}, got {value!r}")
+    try:
+        return Finish(parse_quantity(value, "length", field="geometry.finish"))
+    except QuantityError:
+        raise SimulationInputError(source, "geometry.finish",
+                                   f"expected a roughness height (a length) or one of {', '.join(FINISHES)}, got {value!r}") from None
+
+
+def _geometry(source: str, table: dict[str, Any]) -> Geometry:
+    """The optional ``[geometry]`` section (see data_schema/AIRFRAME.md)."""
+    if not isinstance(table, dict):
+        raise SimulationInputError(source, "[geometry]", "expected a table")
+    _check_keys(source, table, "geometry")
+    nose_t = _subtable(source, table, "nose", True)
+    body_t = _subtable(source, table, "body", True)
+    fins_t = _subtable(source, table, "fins", False)
+    exponent = nose_t.get("exponent")
+    if exponent is not None and (isinstance(exponent, bool) or not isinstance(exponent, (int, float))):
+        raise SimulationInputError(source, "geometry.nose.exponent", f"expected a number, got {exponent!r}")
+    nose = Nose(_text(source, nose_t, "geometry.nose", "shape"),
+                _quantity(source, nose_t, "geometry.nose", "length", "length", required=True),
+                None if exponent is None else float(exponent))
+    body = Body(_quantity(source, body_t, "geometry.body", "length", "length", required=True))
+    fins = None
+    if fins_t is not None:
+        count = fins_t.get("count")
+        if isinstance(count, bool) or not isinstance(count, int):
+            raise SimulationInputError(source, "geometry.fins.count", f"expected a whole number, got {count!r}")
+        sec = "geometry.fins"
+        fins = Fins(
+            count=count,
+            root_chord_m=_quantity(source, fins_t, sec, "root_chord", "length", required=True),
+            tip_chord_m=_quantity(source, fins_t, sec, "tip_chord", "length", required=True),
+            span_m=_quantity(source, fins_t, sec, "span", "length", required=True),
+            sweep_m=_quantity(source, fins_t, sec, "sweep", "length", required=True),
+            thickness_m=_quantity(source, fins_t, sec, "thickness", "length", required=True),
+            offset_m=_quantity(source, fins_t, sec, "offset", "length", default=0.0),
+            profile=_text(source, fins_t, sec, "profile", "rounded"),
+        )
+    raw = table.get("transition", [])
+    if not isinstance(raw, list) or not all(isinstance(t, dict) for t in raw):
+        raise SimulationInputError(source, "[[geometry.transition]]", "expected an array of tables")
+    transitions = []
+    for i, tr in enumerate(raw, start=1):
+        sec = f"geometry.transition[{i}]"
+        _check_keys(source, tr, "geometry.transition", sec)
+        try:
+            transitions.append(Transition(*(_quantity(source, tr, sec, key, "length", required=True)
+                                            for key in ("fore_diameter", "aft_diameter", "length", "position"))))
+        except SimulationInputError as exc:
+            raise SimulationInputError(source, exc.field.replace("geometry.transition", sec, 1), exc.problem) from None
+    return Geometry(
+        cg_m=_quantity(source, table, "geometry", "cg", "length", required=True),
+        nose=nose, body=body, fins=fins, transitions=tuple(transitions), finish=_finish(source, table),
+        motor_offset_m=_quantity(source, table, "geometry", "motor_offset", "length", default=0.0),
+        launch_guide=_text(source, table, "geometry", "launch_guide", "auto"),
+    )
 
 
 def airframe_from_dict(data: dict[str, Any], source: str = "airframe") -> Airframe:
@@ -163,6 +257,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             device=device, deploy=str(recovery_t.get("deploy", "ejection")), drag_area_m2=area,
             deploy_altitude_m=_quantity(source, recovery_t, "recovery", "deploy_altitude", "length"),
         )
+    geometry = _geometry(source, data["geometry"]) if "geometry" in data else None
     return Airframe(
             name=name,
             mass_kg=_quantity(source, body, "airframe", "mass", "mass", required=True),
@@ -173,6 +268,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             mount_length_m=_quantity(source, body, "airframe", "mount_length", "length"),
             launch=launch,
             recovery=recovery,
+            geometry=geometry,
         )
 
 

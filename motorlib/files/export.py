@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import json
 import os
 from pathlib import Path
@@ -21,6 +22,8 @@ def record_as_dict(record: MotorRecord) -> dict[str, object]:
     data["provenance"] = {"kind": record.provenance.kind,
                           "date": record.provenance.date.isoformat() if record.provenance.date else None,
                           "notes": record.provenance.notes}
+    spread = record.firing_spread
+    data["firing_spread"] = dataclasses.asdict(spread) if spread is not None else None
     data["samples"] = {"time_s": record.time_s.tolist(), "thrust_n": record.thrust_n.tolist()}
     return data
 

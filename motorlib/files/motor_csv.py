@@ -33,7 +33,8 @@ _UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|[_\s]([A-Za-z/·*.-]+))
 class CurveMetadata:
     """What a CSV file does not say about its motor (all optional but the label).
 
-    Lengths in m, masses in kg, delays in s: SI, like the record.
+    Lengths in m, masses in kg, delays in s: SI, like the record. No delays and
+    ``no_ejection_charge`` False mean the delays are unknown, not that the motor is plugged.
     """
 
     designation: str = ""
@@ -45,6 +46,7 @@ class CurveMetadata:
     delays_s: tuple[float, ...] = ()
     delay_adjustable: bool = False
     provenance: Provenance = field(default_factory=Provenance)
+    no_ejection_charge: bool = False
 
     def record(self, time_s: np.ndarray, thrust_n: np.ndarray, *, default_designation: str = "") -> MotorRecord:
         """A :class:`MotorRecord` of these samples with this metadata (raises CurveDataError like it)."""
@@ -53,6 +55,7 @@ class CurveMetadata:
             diameter_m=self.diameter_m, length_m=self.length_m, total_mass_kg=self.total_mass_kg,
             propellant_mass_kg=self.propellant_mass_kg, delays_s=self.delays_s,
             delay_adjustable=self.delay_adjustable, provenance=self.provenance,
+            no_ejection_charge=self.no_ejection_charge,
         )
 
 

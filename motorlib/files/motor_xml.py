@@ -8,6 +8,15 @@ delays are written to ten significant digits (far finer than any test stand;
 arithmetic noise such as 0.0009999999999998899 becomes 0.001), hardware values
 with the shortest text that reads back to the same double, and
 write(read(write(r))) == write(r) for every record.
+
+Versions: files of format 1.0 and 1.1 (and any later 1.x the schema accepts)
+are read; new files always declare 1.1. What changed in 1.1 (FORMAT.md):
+
+* an absent ``ejection`` element means "no ejection charge" in a 1.0 file and
+  "delays not known" from 1.1 on; 1.1 says "no charge" as ``charge="none"``;
+* provenance kinds have new names; the 1.0 names are read and mapped
+  (:data:`~motorlib.motor.record.FORMER_PROVENANCE_KINDS`);
+* an optional ``firing-spread`` element.
 """
 
 from __future__ import annotations
@@ -22,14 +31,14 @@ import numpy as np
 from lxml import etree
 
 from . import schema
-from ..motor.record import MotorRecord, Provenance
+from ..motor.record import FORMER_PROVENANCE_KINDS, FiringSpread, MotorRecord, Provenance
 from ..errors import CurveDataError, CurveSyntaxError, Problem, SchemaValidationError
 from .fsio import write_atomic
 from ..units import to_si
 
 __all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "record_from_bytes", "record_to_bytes", "write_record"]
 
-FORMAT_VERSION: Final = "1.0"
+FORMAT_VERSION: Final = "1.1"  # written always, whichever 1.1 features a record uses (FORMAT.md)
 DEFAULT_MAX_BYTES: Final = 8 * 1024 * 1024  # a 100 000-sample curve is about 3 MB; anything far larger is not a curve
 _NS: Final = schema.MOTOR_RECORD_NAMESPACE
 _Q: Final = "{" + _NS + "}"
@@ -116,28 +125,58 @@ def _quantity(parent: etree._Element | None, name: str, kind: str) -> float | No
     return to_si(float(element.text), element.get("unit"), kind, field=name)
 
 
+def _minor_version(root: etree._Element) -> int:
+    """The minor version of a validated root (its ``format-version`` matches ``1.[0-9]+``)."""
+    return int(root.get("format-version").split(".")[1])
+
+
+def _firing_spread(element: etree._Element | None) -> FiringSpread | None:
+    if element is None:
+        return None
+    # The schema fixed the units (N.s and s): the numbers are SI already.
+    return FiringSpread(
+        n_firings=int(element.get("firings")),
+        total_impulse_mean_ns=float(_text(element, "total-impulse-mean")),
+        total_impulse_std_ns=float(_text(element, "total-impulse-standard-deviation")),
+        burn_time_mean_s=float(_text(element, "burn-time-mean")),
+        burn_time_std_s=float(_text(element, "burn-time-standard-deviation")),
+    )
+
+
 def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
     identity = _child(root, "identity")
     hardware = _child(root, "hardware")
     ejection = _child(root, "ejection")
     provenance_el = _child(root, "provenance")
+    spread_el = _child(root, "firing-spread")
     samples = _child(root, "samples")
     time_s, thrust_n, lines = _parse_samples(samples, source)
     delays_text = _text(ejection, "delays")
     delays = tuple(float(v) for v in delays_text.split()) if delays_text else ()
     adjustable = ejection is not None and ejection.get("adjustable", "false") in ("true", "1")
+    if ejection is None:
+        no_charge = _minor_version(root) == 0  # 1.0: an absent <ejection> meant "no ejection charge"
+    else:
+        no_charge = ejection.get("charge") == "none"
     provenance = Provenance()
     if provenance_el is not None:
         date_text = provenance_el.get("date")
+        kind = provenance_el.get("kind")
         provenance = Provenance(
-            kind=provenance_el.get("kind"),
+            kind=FORMER_PROVENANCE_KINDS.get(kind, kind),
             date=_dt.date.fromisoformat(date_text) if date_text else None,
             notes=_text(provenance_el, "notes") or "",
         )
+    try:
+        spread = _firing_spread(spread_el)
+    except CurveDataError as exc:
+        raise CurveDataError(source, [Problem(p.code, p.field, p.message, line=spread_el.sourceline)
+                                      for p in exc.problems]) from None
     element_lines = {
         "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
         "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
-        "delays_s": _child(ejection, "delays"), "designation": _child(identity, "designation"),
+        "delays_s": _child(ejection, "delays") if _child(ejection, "delays") is not None else ejection,
+        "delay_adjustable": ejection, "designation": _child(identity, "designation"),
         "samples": samples, "time_s": samples, "thrust_n": samples,
     }
     try:
@@ -152,7 +191,9 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
             propellant_mass_kg=_quantity(hardware, "propellant-mass", "mass"),
             delays_s=delays,
             delay_adjustable=adjustable,
+            no_ejection_charge=no_charge,
             provenance=provenance,
+            firing_spread=spread,
         )
     except CurveDataError as exc:
         located = []
@@ -241,7 +282,10 @@ def record_to_bytes(record: MotorRecord) -> bytes:
                 text, unit = _exact_text(value, choices, kind)
                 element = etree.SubElement(hardware, _Q + name, unit=unit)
                 element.text = text
-    if record.delays_s or record.delay_adjustable:
+    # Ejection, a tri-state: delays listed, charge="none", or no element at all (not known, from 1.1 on).
+    if record.no_ejection_charge:
+        etree.SubElement(root, _Q + "ejection", charge="none")
+    elif record.delays_s or record.delay_adjustable:
         ejection = etree.SubElement(root, _Q + "ejection", adjustable="true" if record.delay_adjustable else "false")
         if record.delays_s:
             etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(_short(d) for d in record.delays_s)
@@ -251,6 +295,14 @@ def record_to_bytes(record: MotorRecord) -> bytes:
         provenance.set("date", p.date.isoformat())
     if p.notes:
         etree.SubElement(provenance, _Q + "notes").text = p.notes
+    if record.firing_spread is not None:
+        f = record.firing_spread
+        spread = etree.SubElement(root, _Q + "firing-spread", firings=str(f.n_firings))
+        for name, value, unit in (("total-impulse-mean", f.total_impulse_mean_ns, "N.s"),
+                                  ("total-impulse-standard-deviation", f.total_impulse_std_ns, "N.s"),
+                                  ("burn-time-mean", f.burn_time_mean_s, "s"),
+                                  ("burn-time-standard-deviation", f.burn_time_std_s, "s")):
+            etree.SubElement(spread, _Q + name, unit=unit).text = _short(value)
     samples = etree.SubElement(root, _Q + "samples")
     samples.set("time-unit", "s")
     samples.set("thrust-unit", "N")

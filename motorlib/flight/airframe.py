@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from typing import Final
 
 from .atmosphere import Site
+from .geometry import Geometry, check_diameters
 from ..errors import SimulationInputError
 
 __all__ = ["DEPLOY_MODES", "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
@@ -109,6 +110,10 @@ class Airframe:
         Motor mount diameter and the longest motor that fits [m].
     launch : Launch
     recovery : Recovery or None
+    geometry : Geometry or None
+        The outside shape and the empty airframe's balance point, for the centre of pressure,
+        the stability margin and a drag estimate (:mod:`motorlib.flight.geometry`,
+        :mod:`motorlib.flight.drag`); its nose base diameter is ``diameter_m``.
     """
 
     name: str
@@ -120,6 +125,7 @@ class Airframe:
     mount_length_m: float | None = None
     launch: Launch = field(default_factory=Launch)
     recovery: Recovery | None = None
+    geometry: Geometry | None = None
 
     def __post_init__(self) -> None:
         src = self.name or "airframe"
@@ -137,6 +143,11 @@ class Airframe:
                      f"must lie between 0 and 5, got {self.drag_coefficient!r}")
         for key, value in (("airframe.mount_diameter", self.mount_diameter_m), ("airframe.mount_length", self.mount_length_m)):
             _require(src, key, value is None or value > 0.0, f"must be above 0, got {value!r}")
+        if self.geometry is not None:
+            try:
+                check_diameters(self.geometry, self.diameter_m)
+            except SimulationInputError as exc:
+                raise SimulationInputError(src, exc.field, exc.problem) from None
 
     @property
     def reference_area_m2(self) -> float:

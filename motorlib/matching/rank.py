@@ -99,7 +99,7 @@ def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = N
             "impulse_class": cls.letter if cls else None, "total_impulse_ns": r.total_impulse_ns,
             "diameter_m": r.diameter_m, "length_m": r.length_m, "total_mass_kg": r.total_mass_kg,
             "propellant_mass_kg": r.propellant_mass_kg, "delays_s": list(r.delays_s),
-            "delay_adjustable": r.delay_adjustable, "handle": r.designation,
+            "delay_adjustable": r.delay_adjustable, "ejection": r.ejection, "handle": r.designation,
         })
     return rows
 
@@ -309,7 +309,10 @@ def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: floa
         out.append(("ceiling", f"over the ceiling: apogee {apogee:.0f} m above {s.ceiling_m:.0f} m"))
     if uses_charge:
         optimal = results.optimal_delay_s[i]
-        if not np.isfinite(chosen):
+        if not np.isfinite(chosen) and row.get("ejection") == "unknown":
+            out.append(("delays unknown", "the motor's ejection delays are not given (add them to its record) and "
+                                          "the airframe file has no electronics deployment"))
+        elif not np.isfinite(chosen):
             out.append(("no charge", "no ejection charge (plugged or booster) and no electronics deployment in the airframe file"))
         elif abs(chosen - optimal) > s.delay_slack_s:
             out.append(("delay", f"no delay within {s.delay_slack_s:g} s of the optimal {optimal:.1f} s "

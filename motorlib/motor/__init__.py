@@ -6,22 +6,46 @@ numpy only (scipy.signal is imported inside the reduction's filter); no file for
 from .checks import CheckSettings, Finding, check_record, findings_from_problems, metrics
 from .classes import (
     CLASS_LETTERS,
+    CLASS_RESOLUTION_NS,
+    FRACTIONAL_CLASS_RESOLUTION_NS,
     Designation,
     ImpulseClass,
     class_bounds_ns,
+    class_impulse_text,
     format_designation,
     impulse_class_for,
     parse_designation,
+    rounded_impulse_ns,
 )
-from .record import DEFAULT_BURN_THRESHOLD, PROVENANCE_KINDS, MotorRecord, Provenance
-from .reduction import Reduction, ReductionSettings, combine_reductions, lowpass_design_hz, reduce_log
+from .record import (
+    DEFAULT_BURN_THRESHOLD,
+    EJECTION_STATES,
+    FORMER_PROVENANCE_KINDS,
+    PROVENANCE_KINDS,
+    FiringSpread,
+    MotorRecord,
+    Provenance,
+)
+from .reduction import (
+    Reduction,
+    ReductionSettings,
+    combine_reductions,
+    firing_spread,
+    lowpass_design_hz,
+    reduce_log,
+)
 
 __all__ = [
     "CLASS_LETTERS",
+    "CLASS_RESOLUTION_NS",
     "CheckSettings",
     "DEFAULT_BURN_THRESHOLD",
     "Designation",
+    "EJECTION_STATES",
+    "FORMER_PROVENANCE_KINDS",
+    "FRACTIONAL_CLASS_RESOLUTION_NS",
     "Finding",
+    "FiringSpread",
     "ImpulseClass",
     "MotorRecord",
     "PROVENANCE_KINDS",
@@ -30,12 +54,15 @@ __all__ = [
     "ReductionSettings",
     "check_record",
     "class_bounds_ns",
+    "class_impulse_text",
     "combine_reductions",
     "findings_from_problems",
+    "firing_spread",
     "format_designation",
     "impulse_class_for",
     "lowpass_design_hz",
     "metrics",
     "parse_designation",
     "reduce_log",
+    "rounded_impulse_ns",
 ]

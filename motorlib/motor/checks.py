@@ -14,13 +14,13 @@ Codes (stable; tests trigger every one):
 code                       severity  meaning
 =========================  ========  ==================================================
 (record invariants)        error     see :func:`motorlib.curve.sample_problems` and MotorRecord
-class-mismatch             error     computed impulse class differs from the labelled one
+class-mismatch             error     computed impulse class (at 0.01 N·s) differs from the labelled one
 average-thrust-mismatch    error     labelled average thrust off by more than the tolerance
 likely-unit-mix-up         warning   impulse would match the label after a lbf/kgf/gf/ms factor
 total-impulse-mismatch     warning   leading impulse in the label (``120G40``) off by > tolerance
 designation-unreadable     warning   label does not parse, so it cannot be checked
-delays-differ-from-label   warning   listed delays are not the labelled ones
-beyond-class-o             warning   impulse above 40 960 N·s, outside the class table
+delays-differ-from-label   warning   a labelled delay is not among the listed ones, or charge/no charge disagree
+beyond-class-o             warning   impulse above 40 960.00 N·s, outside the class table
 few-samples                warning   too few samples to describe the curve's shape
 start-not-near-zero        warning   first sample well above zero thrust
 end-not-near-zero          warning   last sample well above zero thrust (curve cut off)
@@ -38,7 +38,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Final
 
-from .classes import class_bounds_ns, parse_designation
+from .classes import (
+    Designation,
+    class_bounds_ns,
+    class_impulse_text,
+    impulse_class_for,
+    parse_designation,
+    rounded_impulse_ns,
+)
 from .record import DEFAULT_BURN_THRESHOLD, MotorRecord
 from ..errors import CurveDataError, DesignationError
 from ..units import KILOGRAM_FORCE_N, POUND_FORCE_N
@@ -159,6 +166,7 @@ def metrics(record: MotorRecord, threshold: float = DEFAULT_BURN_THRESHOLD) -> d
         "propellant_mass_kg": record.propellant_mass_kg,
         "delays_s": list(record.delays_s),
         "delay_adjustable": record.delay_adjustable,
+        "ejection": record.ejection,
     }
 
 
@@ -211,10 +219,11 @@ def _shape_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
 def _label_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
     out: list[Finding] = []
     impulse = record.total_impulse_ns
+    shown = f"{class_impulse_text(impulse)} N·s"  # the figure that was classified (classes.py)
     computed = record.impulse_class
     if computed is None:
         out.append(Finding("warning", "beyond-class-o",
-                           f"total impulse {impulse:.6g} N·s is above class O (40 960 N·s), outside the standard "
+                           f"total impulse {shown} is above class O (40 960.00 N·s), outside the standard "
                            "class table and the FAA Class 2 limit", "samples"))
     try:
         label = parse_designation(record.designation)
@@ -223,13 +232,14 @@ def _label_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
                            f"{exc}; the label cannot be checked against the curve", "designation"))
         return out
     lower, upper = class_bounds_ns(label.impulse_class)
-    if not lower < impulse <= upper:
+    if computed is None or computed.letter != label.impulse_class:
         have = computed.letter if computed else "beyond O"
         out.append(Finding("error", "class-mismatch",
                            f"labelled class {label.impulse_class} needs {lower:g} < I <= {upper:g} N·s, but the "
-                           f"curve's total impulse is {impulse:.6g} N·s (class {have})", "designation"))
+                           f"curve's total impulse is {shown} (class {have})", "designation"))
         for factor, cause in _UNIT_MIX_UPS:
-            if lower < impulse * factor <= upper:
+            fixed = impulse_class_for(impulse * factor)
+            if fixed is not None and fixed.letter == label.impulse_class:
                 out.append(Finding("warning", "likely-unit-mix-up",
                                    f"the impulse would fit class {label.impulse_class} if multiplied by "
                                    f"{factor:.6g}: {cause}?", "samples"))
@@ -245,20 +255,37 @@ def _label_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
         out.append(Finding("warning", "total-impulse-mismatch",
                            f"labelled total impulse {label.total_impulse_ns:g} N·s differs from the curve's "
                            f"{impulse:.6g} N·s by more than {100 * s.total_impulse_tolerance:.0f} %", "designation"))
-    if label.delays_s and record.delays_s and set(label.delays_s) != set(record.delays_s):
-        out.append(Finding("warning", "delays-differ-from-label",
-                           f"the label gives delays {_seconds(label.delays_s)} but the record lists "
-                           f"{_seconds(record.delays_s)}", "delays_s"))
+    out += _delay_findings(record, label)
+    return out
+
+
+def _delay_findings(record: MotorRecord, label: Designation) -> list[Finding]:
+    """A record lists the delays of a motor *type*; a label carrying any one of them is consistent.
+
+    An adjustable delay can be shortened, so any labelled delay up to the longest listed one is
+    consistent. Unknown delays (not given) are never called plugged and cannot disagree with a label.
+    """
+    if label.delays_s and record.delays_s:
+        offered = set(record.delays_s)
+        longest = max(record.delays_s)
+        missing = [d for d in label.delays_s
+                   if d not in offered and not (record.delay_adjustable and d <= longest)]
+        if missing:
+            offer = (f"is adjustable up to {longest:g} s" if record.delay_adjustable
+                     else f"lists {_seconds(record.delays_s)}")
+            return [Finding("warning", "delays-differ-from-label",
+                            f"the label gives the delay {_seconds(tuple(missing))} but the record {offer}",
+                            "delays_s")]
     elif (label.plugged or label.booster) and record.delays_s:
         kind = "plugged" if label.plugged else "a booster"
-        out.append(Finding("warning", "delays-differ-from-label",
-                           f"the label marks the motor {kind} (no ejection charge) but the record lists delays "
-                           f"{_seconds(record.delays_s)}", "delays_s"))
-    elif label.delays_s and not record.delays_s:
-        out.append(Finding("warning", "delays-differ-from-label",
-                           f"the label gives delays {_seconds(label.delays_s)} but the record lists none "
-                           "(plugged)", "delays_s"))
-    return out
+        return [Finding("warning", "delays-differ-from-label",
+                        f"the label marks the motor {kind} (no ejection charge) but the record lists delays "
+                        f"{_seconds(record.delays_s)}", "delays_s")]
+    elif label.delays_s and record.no_ejection_charge:
+        return [Finding("warning", "delays-differ-from-label",
+                        f"the label gives delays {_seconds(label.delays_s)} but the record says the motor has "
+                        "no ejection charge", "delays_s")]
+    return []
 
 
 def _mass_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
@@ -276,7 +303,7 @@ def _mass_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
         out.append(Finding("note", "hardware-incomplete",
                            f"no {', '.join(missing)}: the motor cannot be fitted to a mount or flown", "hardware"))
     triggers = []
-    if record.total_impulse_ns > HIGH_POWER_IMPULSE_NS:
+    if rounded_impulse_ns(record.total_impulse_ns) > HIGH_POWER_IMPULSE_NS:  # compared as the class is
         triggers.append(f"total impulse above {HIGH_POWER_IMPULSE_NS:g} N·s")
     if record.average_thrust_n(s.burn_threshold) > HIGH_POWER_AVERAGE_THRUST_N:
         triggers.append(f"average thrust above {HIGH_POWER_AVERAGE_THRUST_N:g} N")

@@ -10,10 +10,21 @@ inclusive, the lower exclusive, as the published class lists write them
 1127 and reproduced by the national associations' codes; see
 ``shared/reference/check-values.md`` section 2.1.
 
-Boundary decision (tested): impulses are compared *exactly* in N·s, not rounded
-to 0.01 first, so 2.50 N·s is A and 2.5000001 N·s is B. Above O (40 960 N·s,
-also the FAA Class 2 ceiling) no class is assigned: :func:`impulse_class_for`
-returns None and callers report it.
+Boundary decision (tested; issue 14): the published class lists state their
+ranges to 0.01 N·s (A = 1.26-2.50, B = 2.51-5.00, G = 80.01-160.00), so an
+impulse is first rounded to that resolution, :data:`CLASS_RESOLUTION_NS`, and
+the rounded figure is compared with the bounds: 2.504 N·s is A, 2.506 N·s is B,
+and a curve scaled to exactly 160 N·s whose trapezoid sum lands one ulp above is
+G, not H. Two bounds below class A cannot be written at 0.01 N·s (1/8A-1/4A at
+0.3125, 1/4A-1/2A at 0.625 N·s; both would sit on a rounding tie, where one ulp
+decides); an impulse that rounds below 1.25 N·s is therefore rounded to
+:data:`FRACTIONAL_CLASS_RESOLUTION_NS` (0.0001 N·s) instead, which writes both
+bounds exactly. Rounding is Python's ``round``: correct rounding of the binary
+value, ties to even. The rounded figure (:func:`rounded_impulse_ns`, printed by
+:func:`class_impulse_text`) is the one to print beside a class, so the figure
+never contradicts the verdict. A positive impulse that rounds to 0 is 1/8A.
+Above O (40 960.00 N·s, also the FAA Class 2 ceiling) no class is assigned:
+:func:`impulse_class_for` returns None and callers report it.
 
 Designation grammar (parsed by :func:`parse_designation`)::
 
@@ -33,12 +44,16 @@ from ..errors import DesignationError
 
 __all__ = [
     "CLASS_LETTERS",
+    "CLASS_RESOLUTION_NS",
     "Designation",
+    "FRACTIONAL_CLASS_RESOLUTION_NS",
     "ImpulseClass",
     "class_bounds_ns",
+    "class_impulse_text",
     "format_designation",
     "impulse_class_for",
     "parse_designation",
+    "rounded_impulse_ns",
 ]
 
 _A_UPPER_NS: Final = 2.5  # top of class A; every other bound is this times a power of two
@@ -46,6 +61,13 @@ CLASS_LETTERS: Final[tuple[str, ...]] = (
     "1/8A", "1/4A", "1/2A", "A", "B", "C", "D", "E", "F", "G", "H", "I", "J", "K", "L", "M", "N", "O",
 )
 _A_INDEX: Final = CLASS_LETTERS.index("A")
+# Published class lists give their ranges to two decimals of a newton-second (check-values.md 2.1, C2).
+CLASS_RESOLUTION_NS: Final = 0.01
+# Below 1.25 N·s the bounds 0.3125 and 0.625 N·s need four decimals; no published list was seen that
+# states them at a coarser resolution (check-values.md 2.1: 1/4A's bounds are derived, D).
+FRACTIONAL_CLASS_RESOLUTION_NS: Final = 0.0001
+_DECIMALS: Final = 2  # decimals of CLASS_RESOLUTION_NS
+_FRACTIONAL_DECIMALS: Final = 4  # decimals of FRACTIONAL_CLASS_RESOLUTION_NS
 
 
 @dataclass(frozen=True)
@@ -59,8 +81,9 @@ class ImpulseClass:
     lower_ns, upper_ns : float
         Exclusive lower and inclusive upper bound [N·s] (1/8A has lower 0).
     percent : float
-        How far the impulse lies from the lower to the upper bound, in percent
-        (a 7.5 N·s motor is "50 % C"): ``100 * (I - lower) / (upper - lower)``.
+        How far the impulse, rounded as :func:`rounded_impulse_ns` does, lies
+        from the lower to the upper bound, in percent (a 7.5 N·s motor is "50 % C"):
+        ``100 * (I - lower) / (upper - lower)``.
     """
 
     letter: str
@@ -86,20 +109,58 @@ def class_bounds_ns(letter: str) -> tuple[float, float]:
     return lower, upper
 
 
+def _class_decimals(total_impulse_ns: float) -> int:
+    coarse = round(float(total_impulse_ns), _DECIMALS)
+    return _DECIMALS if coarse >= _A_UPPER_NS / 2.0 else _FRACTIONAL_DECIMALS
+
+
+def rounded_impulse_ns(total_impulse_ns: float) -> float:
+    """A total impulse [N·s] at the resolution of the class table: 0.01 N·s, 0.0001 N·s below 1.25 N·s.
+
+    This is the figure :func:`impulse_class_for` classifies (see the module docstring); print it
+    beside a class with :func:`class_impulse_text`.
+
+    >>> rounded_impulse_ns(160.00000000000003)
+    160.0
+    >>> rounded_impulse_ns(2.506)
+    2.51
+    >>> rounded_impulse_ns(0.62500000000001)
+    0.625
+    """
+    return round(float(total_impulse_ns), _class_decimals(total_impulse_ns))
+
+
+def class_impulse_text(total_impulse_ns: float) -> str:
+    """The classified figure of a total impulse [N·s] as text, at its resolution (no unit).
+
+    >>> class_impulse_text(160.00000000000003)
+    '160.00'
+    >>> class_impulse_text(0.3125)
+    '0.3125'
+    """
+    return f"{rounded_impulse_ns(total_impulse_ns):.{_class_decimals(total_impulse_ns)}f}"
+
+
 def impulse_class_for(total_impulse_ns: float) -> ImpulseClass | None:
-    """Classify a total impulse [N·s]; None above class O (> 40 960 N·s) or for I <= 0.
+    """Classify a total impulse [N·s] as the class lists do; None above class O (> 40 960.00 N·s) or for I <= 0.
+
+    The impulse is rounded first (:func:`rounded_impulse_ns`; module docstring),
+    and ``percent`` is computed from the rounded figure.
 
     >>> impulse_class_for(10.0).letter
     'C'
     >>> impulse_class_for(10.01).letter
     'D'
+    >>> impulse_class_for(10.004).letter
+    'C'
     """
     if not total_impulse_ns > 0.0:  # also rejects NaN
         return None
+    shown = rounded_impulse_ns(total_impulse_ns)
     for letter in CLASS_LETTERS:
         lower, upper = class_bounds_ns(letter)
-        if total_impulse_ns <= upper:
-            percent = 100.0 * (total_impulse_ns - lower) / (upper - lower)
+        if shown <= upper:
+            percent = 100.0 * (shown - lower) / (upper - lower)
             return ImpulseClass(letter, lower, upper, percent)
     return None
 

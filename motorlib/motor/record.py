@@ -15,6 +15,10 @@ secondary sources attribute to NFPA 1125 (check-values.md section 3.1, C2).
 Average thrust is the impulse delivered inside that window divided by the burn
 time (same source). Both keep the threshold as a parameter.
 
+Ejection is a tri-state (issue 14): delays listed (``delays_s`` not empty), no
+ejection charge at all (``no_ejection_charge``: plugged or booster), or unknown
+(neither: the delays were not given). :attr:`MotorRecord.ejection` names the state.
+
 Motor mass is assumed to fall from the loaded mass by the propellant mass in
 proportion to the impulse delivered so far: ``m(t) = m0 - mp * I(t) / I_total``.
 
@@ -36,13 +40,29 @@ from ..units import STANDARD_GRAVITY_M_S2
 
 __all__ = [
     "DEFAULT_BURN_THRESHOLD",
-    "PROVENANCE_KINDS",
+    "EJECTION_STATES",
+    "FORMER_PROVENANCE_KINDS",
+    "FiringSpread",
     "MotorRecord",
+    "PROVENANCE_KINDS",
     "Provenance",
 ]
 
 DEFAULT_BURN_THRESHOLD: Final = 0.05  # fraction of peak thrust; NFPA 1125 via secondary sources (C2)
-PROVENANCE_KINDS: Final = ("certification-test", "maker-data", "static-test", "demo", "other")
+# Where a curve comes from, in our own words (format 1.1; data_schema/FORMAT.md has the table):
+#   approval-firing   fired by a body that tests motors for approval before sale, as that body published it
+#   maker-published   published by the motor's maker (data sheet, instructions, maker's own files)
+#   own-firing        fired on a test stand by the record's author or their team (motorlib reduce)
+#   demo              invented for demonstration; never for a real flight
+#   other             anything else, or not known
+PROVENANCE_KINDS: Final = ("approval-firing", "maker-published", "own-firing", "demo", "other")
+# Names used up to format 1.0; files that carry them are read with the new name.
+FORMER_PROVENANCE_KINDS: Final = {
+    "certification-test": "approval-firing",
+    "maker-data": "maker-published",
+    "static-test": "own-firing",
+}
+EJECTION_STATES: Final = ("delays", "no-charge", "unknown")  # values of MotorRecord.ejection
 
 
 @dataclass(frozen=True)
@@ -65,11 +85,74 @@ class Provenance:
 
     def __post_init__(self) -> None:
         if self.kind not in PROVENANCE_KINDS:
+            hint = (f" ({self.kind!r} is now called {FORMER_PROVENANCE_KINDS[self.kind]!r})"
+                    if self.kind in FORMER_PROVENANCE_KINDS else "")
             raise CurveDataError(
                 "provenance",
                 [Problem("provenance-kind", "provenance.kind",
-                         f"must be one of {', '.join(PROVENANCE_KINDS)}, got {self.kind!r}")],
+                         f"must be one of {', '.join(PROVENANCE_KINDS)}, got {self.kind!r}{hint}")],
             )
+
+
+@dataclass(frozen=True)
+class FiringSpread:
+    """The measured spread of several firings of one motor (issue 12: it feeds the dispersion runs).
+
+    Attributes
+    ----------
+    n_firings : int
+        Number of firings, at least 2.
+    total_impulse_mean_ns, total_impulse_std_ns : float
+        Mean [N·s] (above 0) and sample standard deviation [N·s] (n - 1 in the
+        denominator, at least 0) of the firings' total impulses.
+    burn_time_mean_s, burn_time_std_s : float
+        Mean [s] (above 0) and sample standard deviation [s] (at least 0) of the
+        firings' burn times, each measured as :meth:`MotorRecord.burn_time_s`
+        measures it (5 % of peak by default).
+
+    Raises
+    ------
+    CurveDataError
+        Code ``firing-spread-invalid``, field ``firing_spread``.
+
+    Examples
+    --------
+    >>> FiringSpread(3, 49.0, 0.98, 1.6, 0.04).total_impulse_relative_std
+    0.02
+    """
+
+    n_firings: int
+    total_impulse_mean_ns: float
+    total_impulse_std_ns: float
+    burn_time_mean_s: float
+    burn_time_std_s: float
+
+    def __post_init__(self) -> None:
+        problems = []
+        if isinstance(self.n_firings, bool) or not isinstance(self.n_firings, (int, np.integer)) or self.n_firings < 2:
+            problems.append(f"a spread needs at least 2 firings, got {self.n_firings!r}")
+        else:
+            object.__setattr__(self, "n_firings", int(self.n_firings))
+        for name, strictly in (("total_impulse_mean_ns", True), ("total_impulse_std_ns", False),
+                               ("burn_time_mean_s", True), ("burn_time_std_s", False)):
+            value = float(getattr(self, name))
+            object.__setattr__(self, name, value)
+            if not (math.isfinite(value) and (value > 0.0 if strictly else value >= 0.0)):
+                problems.append(f"{name} must be a finite number {'above' if strictly else 'at least'} 0, "
+                                f"got {value!r}")
+        if problems:
+            raise CurveDataError("firing spread",
+                                 [Problem("firing-spread-invalid", "firing_spread", p) for p in problems])
+
+    @property
+    def total_impulse_relative_std(self) -> float:
+        """Standard deviation of total impulse over its mean (dimensionless)."""
+        return self.total_impulse_std_ns / self.total_impulse_mean_ns
+
+    @property
+    def burn_time_relative_std(self) -> float:
+        """Standard deviation of burn time over its mean (dimensionless)."""
+        return self.burn_time_std_s / self.burn_time_mean_s
 
 
 def _frozen_array(values: object) -> np.ndarray:
@@ -104,10 +187,16 @@ class MotorRecord:
     total_mass_kg, propellant_mass_kg : float or None
         Loaded mass and propellant mass [kg]; propellant <= total.
     delays_s : tuple of float
-        Available ejection delays [s]; empty for plugged and booster motors.
+        Available ejection delays [s] of the motor type; a label carrying any one of them is
+        consistent (``E16-6`` with 4, 6, 8). Empty when there is no charge or the delays are unknown.
     delay_adjustable : bool
         True when the user may shorten the delay (drilling); the listed delays are then the longest.
+    no_ejection_charge : bool
+        True when the motor has no ejection charge at all (plugged or booster). With no delays and
+        False, the delays are *unknown* (not given), which is not the same as plugged.
     provenance : Provenance
+    firing_spread : FiringSpread or None
+        The measured spread of several firings of this motor, when known.
 
     Raises
     ------
@@ -131,6 +220,8 @@ class MotorRecord:
     delays_s: tuple[float, ...] = ()
     delay_adjustable: bool = False
     provenance: Provenance = field(default_factory=Provenance)
+    no_ejection_charge: bool = False
+    firing_spread: FiringSpread | None = None
 
     def __post_init__(self) -> None:
         for name in ("time_s", "thrust_n"):
@@ -146,6 +237,14 @@ class MotorRecord:
                                         f"ejection delays must be positive seconds, got {delay!r}"))
         if len(set(delays)) != len(delays):
             problems.append(Problem("delay-repeated", "delays_s", f"a delay is listed twice in {delays}"))
+        object.__setattr__(self, "no_ejection_charge", bool(self.no_ejection_charge))
+        object.__setattr__(self, "delay_adjustable", bool(self.delay_adjustable))
+        if self.no_ejection_charge and delays:
+            problems.append(Problem("no-charge-with-delays", "delays_s",
+                                    f"a motor without an ejection charge cannot list delays {delays}"))
+        elif self.no_ejection_charge and self.delay_adjustable:
+            problems.append(Problem("no-charge-with-delays", "delay_adjustable",
+                                    "a motor without an ejection charge has no delay to adjust"))
         if (self.total_mass_kg is not None and self.propellant_mass_kg is not None
                 and self.propellant_mass_kg > self.total_mass_kg):
             problems.append(Problem(
@@ -157,6 +256,8 @@ class MotorRecord:
             problems.append(Problem("designation-missing", "designation", "a designation (label) is required"))
         if not isinstance(self.provenance, Provenance):
             raise TypeError("`provenance` must be a Provenance")
+        if self.firing_spread is not None and not isinstance(self.firing_spread, FiringSpread):
+            raise TypeError("`firing_spread` must be a FiringSpread or None")
         if problems:
             raise CurveDataError(self.designation or "motor record", problems)
 
@@ -169,10 +270,18 @@ class MotorRecord:
             and self.diameter_m == other.diameter_m and self.length_m == other.length_m
             and self.total_mass_kg == other.total_mass_kg and self.propellant_mass_kg == other.propellant_mass_kg
             and self.delays_s == other.delays_s and self.delay_adjustable == other.delay_adjustable
-            and self.provenance == other.provenance
+            and self.no_ejection_charge == other.no_ejection_charge
+            and self.provenance == other.provenance and self.firing_spread == other.firing_spread
         )
 
     __hash__ = None  # type: ignore[assignment]  # mutable-looking arrays: not hashable
+
+    @property
+    def ejection(self) -> str:
+        """``"delays"`` (delays listed), ``"no-charge"`` (plugged or booster) or ``"unknown"`` (not given)."""
+        if self.delays_s:
+            return "delays"
+        return "no-charge" if self.no_ejection_charge else "unknown"
 
     # ----------------------------------------------------------------- integrals
     @property
@@ -268,15 +377,19 @@ class MotorRecord:
         return impulse_class_for(self.total_impulse_ns)
 
     def computed_designation(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> str:
-        """Class letter plus average thrust rounded to the nearest newton (``"C6"``).
+        """Class letter plus average thrust as a label prints it (``"C6"``, ``"A1.4"``, ``"H124"``).
 
-        Averages below 0.5 N keep one decimal so that they do not print as 0.
+        The class comes from the impulse at 0.01 N·s (:func:`~motorlib.motor.classes.impulse_class_for`).
+        Average thrust is printed as labels print it, in whole newtons (common practice, no
+        published source), from 5 N up, where a whole newton is within 10 % of the average: half the
+        20 % label tolerance of :class:`~motorlib.motor.checks.CheckSettings`. Below 5 N a whole
+        newton can be off by more than that tolerance (1.36 N would print as 1, 26 % low), so the
+        figure keeps two significant figures (``A1.4``, ``1/4A0.36``; within 5 %). Either way a
+        record labelled with its computed designation passes its own label check.
         """
         cls = self.impulse_class
         letter = cls.letter if cls is not None else ">O"
-        average = self.average_thrust_n(threshold)
-        text = f"{average:.1f}" if average < 0.5 else str(int(math.floor(average + 0.5)))
-        return letter + text
+        return letter + _label_thrust_text(self.average_thrust_n(threshold))
 
     # ------------------------------------------------------------------- masses
     @property
@@ -302,6 +415,20 @@ class MotorRecord:
         if self.propellant_mass_kg is None or self.total_mass_kg is None:
             return None
         return self.total_mass_kg - self.propellant_mass_kg
+
+
+_WHOLE_NEWTONS_FROM_N: Final = 5.0  # from here up a whole newton is within 0.5 / 5 = 10 % of the average
+
+
+def _label_thrust_text(average_n: float) -> str:
+    """Average thrust [N] as a label prints it: whole newtons from 5 N, else two significant figures."""
+    if not (math.isfinite(average_n) and average_n > 0.0):
+        return f"{average_n:g}"
+    if average_n >= _WHOLE_NEWTONS_FROM_N:
+        return str(int(math.floor(average_n + 0.5)))
+    decimals = 1 - math.floor(math.log10(average_n))  # two significant figures
+    text = f"{average_n:.{decimals}f}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
 
 
 def _crossing(t0: float, f0: float, t1: float, f1: float, level: float) -> float:

@@ -36,9 +36,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .checks import Finding
+from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord
 from ..errors import CurveDataError, Problem
 
-__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "lowpass_design_hz", "reduce_log"]
+__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "firing_spread", "lowpass_design_hz", "reduce_log"]
 
 
 @dataclass(frozen=True)
@@ -135,6 +136,9 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
                lines: np.ndarray | None = None, source: str = "log") -> Reduction:
     """Reduce a raw log (time [s], force [N]) to a thrust curve.
 
+    Each step of the module docstring is one helper below, called in order;
+    findings are collected in the order the steps run.
+
     Parameters
     ----------
     time_s, force_n : array, shape (n_rows,)
@@ -153,9 +157,35 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     t = np.asarray(time_s, dtype=float)
     f = np.asarray(force_n, dtype=float)
     rows = np.asarray(lines if lines is not None else np.arange(1, t.size + 1))
-    if t.size < s.min_samples:
+    _check_rows(t, f, rows, s.min_samples, source)
+    span = _firing_span(f, source)
+    baseline, noise, pre_end = _tare(t, f, rows, span, source)
+    tared, drift, findings = _correct_drift(t, f - baseline, span, noise, pre_end, s.detrend)
+    peak_raw = _raw_peak(tared, noise, source)
+    findings += _log_problems(f, tared, rows, noise, peak_raw)
+    grid, uniform, rate, resample_findings = _resample(t, tared)
+    filtered, cutoff, filter_findings = _lowpass(uniform, rate, s.cutoff_hz, s.filter_order)
+    findings += resample_findings + filter_findings + _rate_findings(rate)
+    t_ign, t_out, threshold, event_findings = _find_events(grid, filtered, noise, s.event_fraction)
+    findings += event_findings
+    burn_t, burn_f = _trim(grid, filtered, t_ign, t_out, rate, source)
+    red_t, red_f, impulse, impulse_error, peak_error, reduce_findings = _reduce_curve(burn_t, burn_f, s)
+    findings += reduce_findings
+    raw_mask = (t >= t_ign - 0.2 * (t_out - t_ign)) & (t <= t_out + 0.2 * (t_out - t_ign))
+    return Reduction(
+        time_s=red_t, thrust_n=red_f, raw_time_s=t[raw_mask] - t_ign, raw_thrust_n=tared[raw_mask],
+        filtered_time_s=burn_t, filtered_thrust_n=burn_f, baseline_n=baseline, noise_n=noise,
+        drift_n_per_s=drift, cutoff_hz=cutoff, sample_rate_hz=rate, ignition_time_s=t_ign, burnout_time_s=t_out,
+        threshold_n=threshold, filtered_impulse_ns=impulse, impulse_error=impulse_error, peak_error=peak_error,
+        findings=tuple(findings),
+    )
+
+
+def _check_rows(t: np.ndarray, f: np.ndarray, rows: np.ndarray, min_samples: int, source: str) -> None:
+    """Step 1: enough rows, all finite, time strictly increasing; raise CurveDataError naming the rows otherwise."""
+    if t.size < min_samples:
         raise CurveDataError(source, [Problem("log-too-short", "samples",
-                                              f"{t.size} rows; at least {s.min_samples} are needed")])
+                                              f"{t.size} rows; at least {min_samples} are needed")])
     if not (np.all(np.isfinite(t)) and np.all(np.isfinite(f))):
         bad = ~(np.isfinite(t) & np.isfinite(f))
         raise CurveDataError(source, [Problem("log-not-finite", "samples", f"non-numeric values at {_rows(rows, bad)}",
@@ -165,15 +195,28 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
         where = np.concatenate(([False], backwards))
         raise CurveDataError(source, [Problem("log-time-backwards", "time_s",
                                               f"time does not increase at {_rows(rows, where)}", line=int(rows[where][0]))])
-    findings: list[Finding] = []
-    # ---- is there a firing at all? Noise from successive differences, which ignores slow trends ----
+
+
+def _firing_span(f: np.ndarray, source: str) -> float:
+    """The range of the readings [N]; raise ``log-no-ignition`` when it is within 10x the sample noise.
+
+    The noise comes from successive differences, which ignore slow trends.
+    """
     span = float(np.max(f) - np.min(f))
     sample_noise = _robust_sigma(np.diff(f)) / math.sqrt(2.0)
     if span <= 10.0 * sample_noise:
         raise CurveDataError(source, [Problem("log-no-ignition", "samples",
                                               f"no ignition found: the readings span {span:.3g}, within 10x the "
                                               f"sample noise ({sample_noise:.3g})")])
-    # ---- baseline from the pre-ignition window ----
+    return span
+
+
+def _tare(t: np.ndarray, f: np.ndarray, rows: np.ndarray, span: float, source: str) -> tuple[float, float, int]:
+    """Step 2: baseline [N] and noise σ [N] of the pre-ignition window, and the window's end (exclusive index).
+
+    Raises ``log-no-baseline`` when thrust rises too early for a window, or the
+    window is not flat (the log seems to start after ignition).
+    """
     first_high = int(np.argmax(f - np.median(f[: max(3, t.size // 50)]) > 0.1 * span))
     pre_end = int(first_high * 0.8)
     if pre_end < 5:
@@ -189,11 +232,23 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
                                               f"the readings before {_rows(rows, np.arange(t.size) == first_high)} are "
                                               "not flat: the log seems to start after ignition; start logging at least "
                                               "a few tenths of a second before ignition", line=int(rows[0]))])
-    tared = f - baseline
+    return baseline, noise, pre_end
+
+
+def _correct_drift(t: np.ndarray, tared: np.ndarray, span: float, noise: float, pre_end: int,
+                   detrend: bool) -> tuple[np.ndarray, float, list[Finding]]:
+    """Step 2, drift: the tared log, the drift removed [N/s] (0 without ``detrend``) and findings.
+
+    The post-burnout window starts a quarter of the remaining rows (at least 5)
+    after thrust last exceeds 10 % of the span. With ``detrend`` the line
+    through the pre- and post-window medians is removed; without it, a
+    post-burnout level well away from 0 N is reported as ``log-drift``.
+    """
+    findings: list[Finding] = []
     drift = 0.0
     last_high = t.size - 1 - int(np.argmax((tared > 0.1 * span)[::-1]))
     post_start = last_high + max(5, int(0.25 * (t.size - last_high)))
-    if s.detrend:
+    if detrend:
         if t.size - post_start < 5:
             findings.append(Finding("warning", "log-no-post-window",
                                     "no post-burnout window to measure drift: the log ends too soon after burnout"))
@@ -208,12 +263,22 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
             findings.append(Finding("warning", "log-drift",
                                     f"the load cell reads {post_level:.3g} N after burnout against 0 N before ignition; "
                                     "use the drift correction (detrend)"))
+    return tared, drift, findings
+
+
+def _raw_peak(tared: np.ndarray, noise: float, source: str) -> float:
+    """The largest tared reading [N]; raise ``log-no-ignition`` when it is within 10x the baseline noise."""
     peak_raw = float(np.max(tared))
     if peak_raw <= max(10.0 * noise, 1e-12):
         raise CurveDataError(source, [Problem("log-no-ignition", "samples",
                                               f"no ignition found: the largest reading, {peak_raw:.3g} N above the "
                                               f"baseline, is within 10x the noise ({noise:.3g} N)")])
-    # ---- log problems ----
+    return peak_raw
+
+
+def _log_problems(f: np.ndarray, tared: np.ndarray, rows: np.ndarray, noise: float, peak_raw: float) -> list[Finding]:
+    """Clipping (3+ consecutive readings at the maximum) and dips far below the baseline, with their rows."""
+    findings: list[Finding] = []
     top = float(np.max(f))
     at_top = np.isclose(f, top, rtol=0.0, atol=max(1e-9 * abs(top), 1e-12))
     run = _longest_run(at_top)
@@ -225,44 +290,70 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     if dips.any():
         findings.append(Finding("warning", "log-negative-spike",
                                 f"readings far below the baseline at {_rows(rows, dips)} (lowest {float(np.min(tared)):.3g} N)"))
-    # ---- uniform grid and filter ----
+    return findings
+
+
+def _resample(t: np.ndarray, tared: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, list[Finding]]:
+    """Step 3, grid: the log interpolated onto a uniform grid at its median step; returns grid, values, rate [Hz]."""
     dt = float(np.median(np.diff(t)))
     rate = 1.0 / dt
     grid = np.arange(t[0], t[-1] + 0.5 * dt, dt)
     uniform = np.interp(grid, t, tared)
+    findings: list[Finding] = []
     if np.max(np.abs(np.diff(t) - dt)) > 0.01 * dt:
         findings.append(Finding("note", "log-resampled",
                                 f"time steps vary from {1e3 * float(np.min(np.diff(t))):.3g} to "
                                 f"{1e3 * float(np.max(np.diff(t))):.3g} ms; the log was resampled at {rate:.4g} Hz"))
-    cutoff = s.cutoff_hz if s.cutoff_hz is not None else min(100.0, 0.25 * rate)
-    if cutoff and cutoff > 0:
-        from scipy.signal import butter, sosfiltfilt
+    return grid, uniform, rate, findings
 
-        design = lowpass_design_hz(cutoff, s.filter_order, rate) if cutoff < 0.5 * rate else 0.5 * rate
-        if design >= 0.49 * rate:
-            findings.append(Finding("warning", "log-filter-skipped",
-                                    f"the cut-off {cutoff:g} Hz is too close to the Nyquist frequency {0.5 * rate:g} Hz; "
-                                    "the log was not filtered"))
-            filtered = uniform
-            cutoff = None
-        else:
-            sos = butter(s.filter_order, design, btype="low", fs=rate, output="sos")
-            filtered = sosfiltfilt(sos, uniform)
-    else:
-        filtered = uniform
-        cutoff = None
+
+def _lowpass(uniform: np.ndarray, rate: float, cutoff_hz: float | None,
+             order: int) -> tuple[np.ndarray, float | None, list[Finding]]:
+    """Step 3, filter: the zero-phase Butterworth low-pass; returns the series, the cut-off used (None: unfiltered).
+
+    ``cutoff_hz`` None means the default, min(100 Hz, rate / 4); 0 means no filter.
+    A cut-off too close to Nyquist leaves the log unfiltered, with a warning.
+    """
+    cutoff = cutoff_hz if cutoff_hz is not None else min(100.0, 0.25 * rate)
+    if not (cutoff and cutoff > 0):
+        return uniform, None, []
+    from scipy.signal import butter, sosfiltfilt
+
+    design = lowpass_design_hz(cutoff, order, rate) if cutoff < 0.5 * rate else 0.5 * rate
+    if design >= 0.49 * rate:
+        return uniform, None, [Finding("warning", "log-filter-skipped",
+                                       f"the cut-off {cutoff:g} Hz is too close to the Nyquist frequency "
+                                       f"{0.5 * rate:g} Hz; the log was not filtered")]
+    sos = butter(order, design, btype="low", fs=rate, output="sos")
+    return sosfiltfilt(sos, uniform), cutoff, []
+
+
+def _rate_findings(rate: float) -> list[Finding]:
+    """A note when the log samples below 200 Hz."""
     if rate < 200.0:
-        findings.append(Finding("note", "log-slow", f"the log samples at {rate:.4g} Hz; fast ignition spikes may be "
-                                                    "missed below about 200 Hz"))
-    # ---- ignition and burnout ----
+        return [Finding("note", "log-slow", f"the log samples at {rate:.4g} Hz; fast ignition spikes may be "
+                                            "missed below about 200 Hz")]
+    return []
+
+
+def _find_events(grid: np.ndarray, filtered: np.ndarray, noise: float,
+                 event_fraction: float) -> tuple[float, float, float, list[Finding]]:
+    """Step 4: ignition and burnout times [s] where the filtered thrust crosses the threshold [N], interpolated."""
     peak = float(np.max(filtered))
-    threshold = max(s.event_fraction * peak, 5.0 * noise)
+    threshold = max(event_fraction * peak, 5.0 * noise)
     above = np.flatnonzero(filtered >= threshold)
     i0, i1 = int(above[0]), int(above[-1])
     t_ign = _cross(grid, filtered, i0 - 1, i0, threshold) if i0 > 0 else float(grid[0])
     t_out = _cross(grid, filtered, i1, i1 + 1, threshold) if i1 < grid.size - 1 else float(grid[-1])
+    findings: list[Finding] = []
     if i1 == grid.size - 1:
         findings.append(Finding("warning", "log-ends-burning", "the log ends while the motor still burns"))
+    return t_ign, t_out, threshold, findings
+
+
+def _trim(grid: np.ndarray, filtered: np.ndarray, t_ign: float, t_out: float, rate: float,
+          source: str) -> tuple[np.ndarray, np.ndarray]:
+    """Step 4, trim: the filtered burn from ignition to burnout, t = 0 s at ignition, thrust clipped at 0 N."""
     inner = (grid > t_ign) & (grid < t_out)
     burn_t = np.concatenate(([t_ign], grid[inner], [t_out])) - t_ign
     burn_f = np.concatenate(([np.interp(t_ign, grid, filtered)], filtered[inner], [np.interp(t_out, grid, filtered)]))
@@ -270,23 +361,23 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     if burn_t.size < 8:
         raise CurveDataError(source, [Problem("log-too-short", "samples",
                                               f"only {burn_t.size} samples during the burn at {rate:.3g} Hz; log faster")])
+    return burn_t, burn_f
+
+
+def _reduce_curve(burn_t: np.ndarray, burn_f: np.ndarray,
+                  s: ReductionSettings) -> tuple[np.ndarray, np.ndarray, float, float, float, list[Finding]]:
+    """Step 5: the reduced curve, the filtered impulse [N·s] and the relative impulse and peak errors."""
     keep = _reduce_points(burn_t, burn_f, s.max_points)
     red_t, red_f = burn_t[keep], burn_f[keep]
     impulse = float(np.trapezoid(burn_f, burn_t))
     impulse_error = abs(float(np.trapezoid(red_f, red_t)) / impulse - 1.0)
     peak_error = abs(float(np.max(red_f)) / float(np.max(burn_f)) - 1.0)
+    findings: list[Finding] = []
     if impulse_error > s.impulse_tolerance or peak_error > s.peak_tolerance:
         findings.append(Finding("warning", "log-reduction-coarse",
                                 f"with {len(keep)} points the reduced curve is off by {100 * impulse_error:.2f} % in "
                                 f"impulse and {100 * peak_error:.2f} % in peak thrust; allow more points"))
-    raw_mask = (t >= t_ign - 0.2 * (t_out - t_ign)) & (t <= t_out + 0.2 * (t_out - t_ign))
-    return Reduction(
-        time_s=red_t, thrust_n=red_f, raw_time_s=t[raw_mask] - t_ign, raw_thrust_n=tared[raw_mask],
-        filtered_time_s=burn_t, filtered_thrust_n=burn_f, baseline_n=baseline, noise_n=noise,
-        drift_n_per_s=drift, cutoff_hz=cutoff, sample_rate_hz=rate, ignition_time_s=t_ign, burnout_time_s=t_out,
-        threshold_n=threshold, filtered_impulse_ns=impulse, impulse_error=impulse_error, peak_error=peak_error,
-        findings=tuple(findings),
-    )
+    return red_t, red_f, impulse, impulse_error, peak_error, findings
 
 
 def _cross(t: np.ndarray, f: np.ndarray, a: int, b: int, level: float) -> float:
@@ -341,3 +432,27 @@ def combine_reductions(reductions: list[Reduction], max_points: int = 48) -> tup
                               "min": float(burns.min()), "max": float(burns.max())},
     }
     return grid[keep], mean[keep], spread
+
+
+def firing_spread(reductions: list[Reduction], threshold: float = DEFAULT_BURN_THRESHOLD) -> FiringSpread | None:
+    """The measured spread of several firings of one motor, for the record of their mean curve.
+
+    Each firing's total impulse [N·s] is that of its filtered curve (as in
+    :func:`combine_reductions`); its burn time [s] is the threshold burn time of
+    the same curve (``threshold`` of peak, as :meth:`MotorRecord.burn_time_s`),
+    so that the spread describes the figures the record itself reports. The
+    standard deviations are sample ones (n - 1 in the denominator).
+
+    Returns
+    -------
+    FiringSpread or None
+        None for fewer than two firings: one firing has no spread.
+    """
+    if len(reductions) < 2:
+        return None
+    firings = [MotorRecord("firing", r.filtered_time_s, r.filtered_thrust_n) for r in reductions]
+    impulses = np.array([r.filtered_impulse_ns for r in reductions])
+    burns = np.array([f.burn_time_s(threshold) for f in firings])
+    return FiringSpread(n_firings=len(reductions),
+                        total_impulse_mean_ns=float(impulses.mean()), total_impulse_std_ns=float(impulses.std(ddof=1)),
+                        burn_time_mean_s=float(burns.mean()), burn_time_std_s=float(burns.std(ddof=1)))

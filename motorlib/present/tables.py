@@ -22,10 +22,12 @@ from rich.table import Table
 from rich.text import Text
 
 from ..files.curvefiles import CheckReport
+from ..motor.classes import class_impulse_text, impulse_class_for
 from .display import DisplayUnits
 from .messages import reason_text, short_code, warning_message
 
-__all__ = ["SAFETY_CAUTION", "WIDE", "check_details", "check_summary_table", "findings_text", "escape"]
+__all__ = ["SAFETY_CAUTION", "WIDE", "catalog_table", "check_details", "check_summary_table", "escape", "findings_text",
+           "flight_table", "impulse_text", "match_table"]
 
 SAFETY_CAUTION = (
     "Caution: predictions are estimates. Follow your national rocketry association's safety code, local law "
@@ -83,9 +85,48 @@ def _cls(impulse_class: str | None, class_percent: float | None) -> str:
     return f"{impulse_class} {class_percent:.0f}%" if impulse_class else ">O"
 
 
-def _delays(delays_s: Iterable[float], adjustable: bool) -> str:
+def _delays(delays_s: Iterable[float], adjustable: bool, ejection: str | None = None) -> str:
+    """Delays for a table cell: ``4,6,8``; ``*`` adjustable; ``P`` no ejection charge; ``?`` not known."""
     delays = list(delays_s)
-    return ",".join(f"{d:g}" for d in delays) + ("*" if adjustable else "") if delays else "P"
+    return (",".join(f"{d:g}" for d in delays) if delays
+            else "P" if ejection == "no-charge" else "?") + ("*" if adjustable else "")
+
+
+def _delays_words(m: dict[str, Any]) -> str:
+    """Delays of a record's metrics or a catalog row, in words: listed, no charge, or unknown."""
+    adjustable = " (adjustable)" if m["delay_adjustable"] else ""
+    if m["delays_s"]:
+        return ", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + adjustable
+    if m.get("ejection") == "no-charge":
+        return "none (no ejection charge: plugged or booster)"
+    return "unknown (not given)" + adjustable
+
+
+def impulse_text(total_impulse_ns: float, digits: int = 4) -> str:
+    """A total impulse [N·s] to ``digits`` significant figures, or as classified where that would mislead.
+
+    Classes are decided on the impulse rounded to 0.01 N·s (``motor/classes.py``); a shorter
+    figure that reads as another class (160.006 N·s, class H, printed "160") is replaced by the
+    classified figure ("160.01"), so a printed impulse never contradicts the class beside it.
+    """
+    value = float(total_impulse_ns)
+    text = f"{value:.{digits}g}"
+    return _as_classified(value, text)
+
+
+def _as_classified(value: float, text: str) -> str:
+    """``text`` (a shown impulse), or the classified figure when ``text`` would read as another class."""
+    shown, verdict = impulse_class_for(float(text.replace(",", ""))), impulse_class_for(value)
+    if (shown.letter if shown else None) != (verdict.letter if verdict else None):
+        return class_impulse_text(value)
+    return text
+
+
+def _impulse(u: DisplayUnits, value: float | None, decimals: int | None = None) -> str:
+    """An impulse cell (fixed decimals, thousands separators) that never contradicts the class beside it."""
+    if value is None:
+        return "-"
+    return _as_classified(float(value), u.number(value, "impulse", decimals))
 
 
 # ----------------------------------------------------------------------------- checks
@@ -121,7 +162,7 @@ def check_summary_table(reports: list[CheckReport], units: DisplayUnits = _METRI
         table.add_row(
             escape(Path(report.source).stem), escape(str(m.get("designation", "-"))),
             _cls(m["impulse_class"], m["class_percent"]) if m else "-",
-            units.number(m.get("total_impulse_ns"), "impulse", d_impulse),
+            _impulse(units, m.get("total_impulse_ns"), d_impulse),
             units.number(m.get("average_thrust_n"), "force", d_thrust), units.number(m.get("burn_time_s"), "time"),
             _status(report),
         )
@@ -141,8 +182,8 @@ def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
     return text
 
 
-def check_details(report: CheckReport, units: DisplayUnits = _METRIC, provenance: Any = None) -> Group:
-    """Metrics and findings of one file; with ``provenance`` (a record's) also where the curve comes from."""
+def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: Any = None) -> Group:
+    """Metrics and findings of one file; with its ``record`` also where the curve comes from (provenance)."""
     parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
     m = report.metrics
     if m:
@@ -154,7 +195,7 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, provenance
         rows = [
             ("label / maker", f"{m['designation']}  ({m['maker'] or 'maker unknown'})"),
             ("computed designation", str(m["computed_designation"])),
-            ("total impulse", u.precise(m["total_impulse_ns"], "impulse", 4)),
+            ("total impulse", f"{_impulse(u, m['total_impulse_ns'], u.column_decimals([m['total_impulse_ns']], 'impulse', significant=4))} N·s"),
             ("impulse class", f"{m['impulse_class']} ({m['class_percent']:.1f} % into class)"
              if m["impulse_class"] else "above O"),
             ("average thrust", u.precise(m["average_thrust_n"], "force")),
@@ -168,11 +209,10 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, provenance
             ("total / propellant mass", f"{u.quantity(m['total_mass_kg'], 'mass', d_mass, mass_unit)} / "
                                         f"{u.quantity(m['propellant_mass_kg'], 'mass', d_mass, mass_unit)}"),
             ("specific impulse", u.quantity(m["specific_impulse_s"], "time", 0)),
-            ("delays", (", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + (" (adjustable)" if m["delay_adjustable"] else ""))
-             if m["delays_s"] else "none (plugged or booster)"),
+            ("delays", _delays_words(m)),
         ]
-        if provenance is not None:
-            rows += _provenance_rows(provenance)
+        if record is not None:
+            rows += _provenance_rows(record)
         for key, value in rows:
             table.add_row(key, escape(value))
         parts.append(table)
@@ -184,14 +224,16 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, provenance
     return Group(*parts)  # type: ignore[arg-type]
 
 
-def _provenance_rows(provenance: Any) -> list[tuple[str, str]]:
-    """Where a curve comes from: kind, date and notes (and any further facts the record carries)."""
-    rows = [("source", str(provenance.kind)), ("test date", provenance.date.isoformat() if provenance.date else "not given")]
-    for name in ("firings", "logs"):  # a newer record may name its firings or source logs
-        value = getattr(provenance, name, None)
-        if value:
-            rows.append((name, ", ".join(map(str, value)) if isinstance(value, (list, tuple)) else str(value)))
-    rows.append(("notes", provenance.notes or "none"))
+def _provenance_rows(record: Any) -> list[tuple[str, str]]:
+    """Where a curve comes from: kind, date, notes, and the spread of the firings it was made from."""
+    p = record.provenance
+    rows = [("source", str(p.kind)), ("test date", p.date.isoformat() if p.date else "not given"),
+            ("notes", p.notes or "none")]
+    spread = getattr(record, "firing_spread", None)
+    if spread is not None:
+        rows.append(("firings", f"{spread.n_firings}: total impulse {spread.total_impulse_mean_ns:,.1f} ± "
+                                f"{spread.total_impulse_std_ns:,.1f} N·s, burn {spread.burn_time_mean_s:.2f} ± "
+                                f"{spread.burn_time_std_s:.2f} s"))
     return rows
 
 
@@ -295,7 +337,7 @@ def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: Dis
                   width: int = 80) -> Table:
     """One row per motor; headers are the names ``catalog list --sort`` takes.
 
-    Delays marked * are adjustable (the longest is listed); P means no ejection charge. From :data:`WIDE`
+    Delays marked * are adjustable (the longest is listed); P means no ejection charge, ? not known. From :data:`WIDE`
     columns on, maker, length and loaded mass are added.
     """
     wide = width >= WIDE
@@ -327,13 +369,13 @@ def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: Dis
         cells: list[Any] = [r["motor_id"][:6], escape(name)]
         if wide:
             cells.append(escape(r["maker"] or "-"))
-        cells += [_cls(r["impulse_class"], r["class_percent"]), u.number(r["total_impulse_ns"], "impulse", d_impulse),
+        cells += [_cls(r["impulse_class"], r["class_percent"]), _impulse(u, r["total_impulse_ns"], d_impulse),
                   u.number(r["average_thrust_n"], "force", d_thrust), u.number(r["burn_time_s"], "time"),
                   u.number(r["diameter_m"], "motor_size", d_dia)]
         if wide:
             cells += [u.number(r["length_m"], "motor_size", d_length),
                       u.number(r["total_mass_kg"], "mass", d_mass, unit=mass_unit)]
-        cells += [_delays(r["delays_s"], r["delay_adjustable"]), checks]
+        cells += [_delays(r["delays_s"], r["delay_adjustable"], r.get("ejection")), checks]
         table.add_row(*cells)
     return _lock_widths(table, "maker", width)
 

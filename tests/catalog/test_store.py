@@ -1,4 +1,4 @@
-"""The local catalog: files as truth, a self-healing index, duplicates, tags, concurrency and crashes."""
+"""The catalog store: adding, duplicates, refusals, safe paths, read-only folders, concurrency and crashes."""
 
 from __future__ import annotations
 
@@ -10,24 +10,15 @@ import textwrap
 import time
 from pathlib import Path
 
-import numpy as np
 import pytest
 
 from motorlib import MotorRecord, read_record, record_to_bytes, write_record
-from motorlib.catalog.store import Catalog, CatalogFilter, motor_id_for, parse_class_range
+from motorlib.catalog import Catalog, CatalogFilter, motor_id_for
 from motorlib.files.fsio import slug
 from motorlib.errors import CatalogError, MotorNotFoundError
-from motorlib.flight import MotorPack, simulate
 
 from ..conftest import FIXTURE_DIR, ROOT, SAMPLE_DIR
 from ..synthetic import synthetic_motors
-
-
-@pytest.fixture
-def tmp_catalog(tmp_path: Path) -> Catalog:
-    catalog = Catalog(tmp_path / "catalog")
-    catalog.add_files(sorted(SAMPLE_DIR.glob("*.xml")))
-    return catalog
 
 
 def _write_synthetic(folder: Path, n: int, seed: int) -> list[Path]:
@@ -49,24 +40,6 @@ def test_add_list_get(tmp_catalog: Catalog) -> None:
     assert tmp_catalog.resolve(motor_id[:6]) == motor_id
     assert tmp_catalog.resolve("bramblewick-propulsion-fictional/g59-10") == motor_id
     assert motor_id == motor_id_for(record_to_bytes(record))
-
-
-def test_filters_and_sorting(tmp_catalog: Catalog) -> None:
-    f = CatalogFilter(impulse_range_ns=(40.0, 160.0), burn_range_s=(1.0, 2.0), maker="bramble")
-    rows = tmp_catalog.rows(f, sort="average_thrust_n", descending=True)
-    thrusts = [r["average_thrust_n"] for r in rows]
-    assert thrusts == sorted(thrusts, reverse=True) and len(rows) == 4
-    assert all(40 <= r["total_impulse_ns"] <= 160 and 1 <= r["burn_time_s"] <= 2 for r in rows)
-    delays = tmp_catalog.rows(CatalogFilter(delay_s=6.0))
-    # listed 6 s, or adjustable with a longest delay of 6 s or more
-    assert {r["designation"] for r in delays} >= {"B5-2,4,6", "E9-4,6,8", "G59-10"}
-    assert "C6-3,5,7" not in {r["designation"] for r in delays}
-    assert tmp_catalog.rows(CatalogFilter(text="boost-sustain"))  # notes are searched
-    assert parse_class_range("d..g") == ("D", "G") and parse_class_range("1/2a") == ("1/2A", "1/2A")
-    with pytest.raises(ValueError, match="class range"):
-        parse_class_range("Q..Z")
-    frame = tmp_catalog.query(CatalogFilter(class_range=("M", "M")))
-    assert list(frame["designation"]) == ["M2158-P", "M2578-P"]
 
 
 def test_duplicates_and_near_duplicates(tmp_catalog: Catalog) -> None:
@@ -103,71 +76,12 @@ def test_paths_never_escape_the_catalog(tmp_path: Path) -> None:
     assert slug("../../x") == "x" and slug("...") == "unknown"
 
 
-def test_index_follows_changes_behind_its_back(tmp_catalog: Catalog) -> None:
-    root = tmp_catalog.root
-    tmp_catalog.close()
-    extra = MotorRecord("D10-3", [0.0, 0.1, 1.6, 1.7], [0.0, 12.0, 10.0, 0.0], maker="Hand Copied (fictional)")
-    (root / "hand").mkdir()
-    write_record(extra, root / "hand" / "d10.xml")
-    victim = next(root.glob("marmalade*/*.xml"))
-    victim.unlink()
-    changed = next(root.glob("teakettle*/c6*.xml"))
-    record = read_record(changed)
-    write_record(MotorRecord(**{**{f: getattr(record, f) for f in record.__dataclass_fields__}, "maker": "Renamed Co"}),
-                 changed)
-    (root / "broken.xml").write_text("<motor-record")
-    reopened = Catalog(root)
-    assert len(reopened) == 27  # +1 new, -1 removed, broken one skipped
-    assert any("refreshed" in n for n in reopened.notices)
-    assert [Path(p).name for p, _ in reopened.problems] == ["broken.xml"]
-    assert reopened.rows(CatalogFilter(maker="renamed"))[0]["designation"] == "C6-3,5,7"
-    assert reopened.resolve("D10-3")
-    again = Catalog(root)
-    assert not any("refreshed" in n for n in again.notices)  # nothing changed: no file re-read
-
-
-def test_corrupt_index_is_rebuilt(tmp_catalog: Catalog) -> None:
-    root = tmp_catalog.root
-    tmp_catalog.tag(["G59-10"], "in-stock")
-    tmp_catalog.close()
-    index = root / ".motorlib" / "index.sqlite"
-    for extra in ("-wal", "-shm"):
-        Path(str(index) + extra).unlink(missing_ok=True)
-    index.write_bytes(b"this is not a database" * 100)
-    reopened = Catalog(root)
-    assert len(reopened) == 27
-    assert any("moved aside and rebuilt" in n for n in reopened.notices)
-    assert [r["designation"] for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]  # tags survive
-
-
-def test_tags_round_trip_and_survive_reindex(tmp_catalog: Catalog) -> None:
-    tmp_catalog.tag(["G59-10", "F29-8"], "in-stock")
-    tmp_catalog.untag(["F29-8"], "in-stock")
-    assert tmp_catalog.reindex() == 27
-    assert [r["designation"] for r in tmp_catalog.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
-    assert list(tmp_catalog.tags()) == ["in-stock"]
-    with pytest.raises(CatalogError, match="tag"):
-        tmp_catalog.tag(["G59-10"], "bad tag!")
-    tmp_catalog.remove("G59-10")
-    assert tmp_catalog.tags() == {} and len(tmp_catalog) == 26
-
-
 def test_read_only_catalog_of_the_bundled_samples() -> None:
     catalog = Catalog(SAMPLE_DIR)  # the READ_ONLY marker file makes it read-only without asking
     assert catalog.read_only
     assert len(catalog) == 27 and not (SAMPLE_DIR / ".motorlib").exists()
     with pytest.raises(CatalogError, match="read-only"):
         catalog.tag(["G59-10"], "x")
-
-
-def test_pack_from_the_index_flies_like_the_records(tmp_catalog: Catalog) -> None:
-    rows = tmp_catalog.rows(CatalogFilter(diameter_m=0.029))
-    pack = tmp_catalog.motor_pack(rows)
-    records = [tmp_catalog.get(r["motor_id"]) for r in rows]
-    frames, _ = __import__("tests.synthetic", fromlist=["x"]).synthetic_flights(1)
-    a = simulate(frames[0], pack, descent=False)
-    b = simulate(frames[0], MotorPack.from_records(records), descent=False)
-    np.testing.assert_array_equal(a.apogee_m, b.apogee_m)
 
 
 _ADDER = textwrap.dedent("""

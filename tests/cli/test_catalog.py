@@ -21,11 +21,11 @@ def test_catalog_commands_end_to_end(tmp_path: Path) -> None:
     # a test-stand CSV, then finding it again (the README tour)
     code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12-5",
                     "--maker", "Stand team (fictional)", "--diameter", "24mm", "--length", "70mm", "--total-mass", "44g",
-                    "--propellant-mass", "21g", "--delays", "5", "--source-kind", "static-test")
+                    "--propellant-mass", "21g", "--delays", "5", "--source-kind", "own-firing")
     assert code == 0 and "1 added" in out
     code, out = run("catalog", "list", "--catalog", cat, "--maker", "stand", "--json")
     rows = json.loads(out)
-    assert code == 0 and [r["designation"] for r in rows] == ["D12-5"] and rows[0]["provenance_kind"] == "static-test"
+    assert code == 0 and [r["designation"] for r in rows] == ["D12-5"] and rows[0]["provenance_kind"] == "own-firing"
     code, out = run("catalog", "list", "--catalog", cat, "--class", "D..G", "--diameter", "29mm")
     assert code == 0 and "G59-10" in out and "F29-8" not in out
     code, out = run("catalog", "list", "--catalog", cat, "--impulse", "100..", "--burn", "..2", "--csv")
@@ -59,3 +59,28 @@ def test_catalog_from_the_environment(tmp_path: Path) -> None:
     result = CliRunner().invoke(main, ["catalog", "add", str(SAMPLE_DIR / "bramblewick-propulsion_g59-10.xml")],
                                 env={"MOTORLIB_CATALOG": str(tmp_path / "env-cat")})
     assert result.exit_code == 0 and (tmp_path / "env-cat").is_dir()
+
+
+def _delay_cell(out: str, designation: str) -> str:
+    line = next(row for row in out.splitlines() if designation in row)
+    return line.split()[-2]  # the column before the check verdict
+
+
+def test_a_csv_added_without_delays_shows_unknown_not_plugged(tmp_path: Path) -> None:
+    # Issue 14: a CSV added without --delays showed as plugged.
+    cat = str(tmp_path / "motors")
+    common = ["--diameter", "24mm", "--length", "70mm", "--total-mass", "44g", "--propellant-mass", "21g"]
+    code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12",
+                    "--maker", "Unknown delays (fictional)", *common)
+    assert code == 0, out
+    code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12-P",
+                    "--maker", "Plugged (fictional)", *common, "--plugged")
+    assert code == 0, out
+    code, out = run("catalog", "list", "--catalog", cat, "--json")
+    ejection = {r["designation"]: r["ejection"] for r in json.loads(out)}
+    assert ejection == {"D12": "unknown", "D12-P": "no-charge"}
+    code, out = run("catalog", "list", "--catalog", cat)
+    assert code == 0
+    assert _delay_cell(out, "D12 ") == "?" and _delay_cell(out, "D12-P") == "P"
+    code, out = run("check", str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12")
+    assert "unknown (not given)" in out and "plugged" not in out

@@ -14,11 +14,11 @@ def test_import_writes_a_checked_record(tmp_path: Path) -> None:
     out_path = tmp_path / "d12.xml"
     code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "D12-5",
                     "--maker", "Stand team (fictional)", "--diameter", "24mm", "--length", "70mm", "--total-mass", "44g",
-                    "--propellant-mass", "21g", "--delays", "5", "--source-kind", "static-test",
+                    "--propellant-mass", "21g", "--delays", "5", "--source-kind", "own-firing",
                     "--test-date", "2026-11-14")
     assert code == 0, out
     record = read_record(out_path)
-    assert record.designation == "D12-5" and record.provenance.kind == "static-test"
+    assert record.designation == "D12-5" and record.provenance.kind == "own-firing"
     assert str(record.provenance.date) == "2026-11-14"
     code, out = run("check", str(out_path))
     assert code == 0 and "No findings." in out
@@ -38,3 +38,20 @@ def test_import_refuses_errors_unless_forced(tmp_path: Path) -> None:
 def test_import_of_broken_csv_names_the_line(tmp_path: Path) -> None:
     code, out = run("import", str(FIXTURE_DIR / "ragged_row.csv"), "-o", str(tmp_path / "x.xml"))
     assert code == 1 and "ragged_row.csv:4" in out
+
+
+def test_source_kinds_are_our_own_words(tmp_path: Path) -> None:
+    from motorlib.motor.record import PROVENANCE_KINDS
+
+    code, out = run("import", "--help")
+    assert code == 0 and all(kind in out for kind in PROVENANCE_KINDS)
+    code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(tmp_path / "x.xml"), "--designation",
+                    "D12-5", "--source-kind", "static-test")
+    assert code == 2 and "own-firing" in out
+
+
+def test_cli_source_kinds_match_the_records() -> None:
+    from motorlib.cli.options import SOURCE_KINDS
+    from motorlib.motor.record import PROVENANCE_KINDS
+
+    assert tuple(SOURCE_KINDS) == tuple(PROVENANCE_KINDS)

@@ -19,7 +19,9 @@ from motorlib import (
     record_to_bytes,
     write_record,
 )
+from motorlib.files.motor_xml import FORMAT_VERSION
 from motorlib.files.schema import schema_path
+from motorlib.motor.record import FORMER_PROVENANCE_KINDS, PROVENANCE_KINDS
 
 from ..conftest import full_records
 
@@ -37,6 +39,14 @@ def test_round_trip_keeps_ten_digits_and_is_byte_stable(record: MotorRecord) -> 
     assert (again.diameter_m, again.total_mass_kg) == (record.diameter_m, record.total_mass_kg)
     assert record_to_bytes(again) == data  # byte-stable
     assert record_from_bytes(data) == again
+
+
+@given(full_records())
+@settings(max_examples=60, suppress_health_check=[HealthCheck.too_slow])
+def test_every_written_record_validates_against_the_xsd(record: MotorRecord) -> None:
+    # Checked with lxml directly, independent of our reader: 1.1 items included.
+    xsd = etree.XMLSchema(etree.parse(str(schema_path())))
+    assert xsd.validate(etree.fromstring(record_to_bytes(record))), xsd.error_log
 
 
 def test_round_trip_through_a_file(demo_record: MotorRecord, tmp_path: Path) -> None:
@@ -168,3 +178,107 @@ def test_written_files_get_ordinary_permissions(demo_record: MotorRecord, tmp_pa
     os.chmod(path, 0o640)
     write_record(demo_record, path)
     assert os.stat(path).st_mode & 0o777 == 0o640  # an overwrite keeps the file's mode
+
+
+# ------------------------------------------------------------------------------------ format 1.1
+def test_new_files_declare_version_1_1(demo_record: MotorRecord) -> None:
+    assert FORMAT_VERSION == "1.1"
+    assert b'format-version="1.1"' in record_to_bytes(demo_record)
+
+
+def test_provenance_kinds_are_our_own_words() -> None:
+    assert PROVENANCE_KINDS == ("approval-firing", "maker-published", "own-firing", "demo", "other")
+    assert FORMER_PROVENANCE_KINDS == {"certification-test": "approval-firing", "maker-data": "maker-published",
+                                       "static-test": "own-firing"}
+
+
+@pytest.mark.parametrize(("old", "new"), [("certification-test", "approval-firing"),
+                                          ("maker-data", "maker-published"), ("static-test", "own-firing")])
+def test_former_provenance_kinds_are_read_and_written_in_the_new_words(fixture_dir: Path, old: str, new: str) -> None:
+    data = (fixture_dir / "v1_0_own_stand_kind.xml").read_bytes().replace(b'"static-test"', f'"{old}"'.encode())
+    record = record_from_bytes(data)
+    assert record.provenance.kind == new
+    assert f'kind="{new}"'.encode() in record_to_bytes(record) and old.encode() not in record_to_bytes(record)
+
+
+@pytest.mark.parametrize("kind", PROVENANCE_KINDS)
+def test_each_provenance_kind_round_trips(demo_record: MotorRecord, kind: str) -> None:
+    from dataclasses import replace
+
+    record = replace(demo_record, provenance=replace(demo_record.provenance, kind=kind))
+    assert record_from_bytes(record_to_bytes(record)).provenance.kind == kind
+
+
+def test_an_unknown_provenance_kind_is_a_schema_error(fixture_dir: Path) -> None:
+    with pytest.raises(SchemaValidationError, match="rumour") as info:
+        read_record(fixture_dir / "bad_provenance_kind.xml")
+    assert info.value.field == "/motor-record/provenance"
+
+
+def test_a_1_0_file_without_ejection_still_means_no_charge(fixture_dir: Path) -> None:
+    # The 1.0 meaning (FORMAT.md): an absent <ejection> is a motor without an ejection charge.
+    record = read_record(fixture_dir / "v1_0_no_ejection.xml")
+    assert record.ejection == "no-charge" and record.no_ejection_charge and record.delays_s == ()
+    assert b'<ejection charge="none"/>' in record_to_bytes(record)  # said explicitly from 1.1 on
+
+
+def test_a_1_0_ejection_without_delays_means_delays_not_given(fixture_dir: Path) -> None:
+    record = read_record(fixture_dir / "v1_0_ejection_without_delays.xml")
+    assert record.ejection == "unknown" and record.delay_adjustable
+
+
+def test_a_1_0_file_keeps_its_values(fixture_dir: Path) -> None:
+    old = read_record(fixture_dir / "sound_d12.xml")
+    assert old.delays_s == (5.0,) and old.ejection == "delays" and old.firing_spread is None
+    assert record_from_bytes(record_to_bytes(old)) == old
+
+
+def test_a_1_1_file_says_no_charge_explicitly(fixture_dir: Path) -> None:
+    record = read_record(fixture_dir / "v1_1_no_charge.xml")
+    assert record.ejection == "no-charge"
+    assert record_from_bytes(record_to_bytes(record)) == record
+
+
+def test_a_1_1_file_without_ejection_has_unknown_delays(fixture_dir: Path) -> None:
+    record = read_record(fixture_dir / "v1_1_unknown_delays.xml")
+    assert record.ejection == "unknown" and not record.no_ejection_charge
+    data = record_to_bytes(record)
+    assert b"<ejection" not in data
+    assert record_from_bytes(data).ejection == "unknown"
+
+
+def test_no_charge_with_delays_is_refused_with_its_line(fixture_dir: Path) -> None:
+    with pytest.raises(CurveDataError, match="without an ejection charge cannot list delays") as info:
+        read_record(fixture_dir / "no_charge_with_delays.xml")
+    assert info.value.line == 5
+
+
+def test_the_firing_spread_is_read_and_round_trips(fixture_dir: Path) -> None:
+    record = read_record(fixture_dir / "v1_1_firing_spread.xml")
+    spread = record.firing_spread
+    assert (spread.n_firings, spread.total_impulse_mean_ns, spread.total_impulse_std_ns) == (3, 16.6, 0.33)
+    assert (spread.burn_time_mean_s, spread.burn_time_std_s) == (1.43, 0.029)
+    assert record.provenance.kind == "own-firing"
+    data = record_to_bytes(record)
+    assert record_from_bytes(data) == record
+    assert b'<firing-spread firings="3">' in data
+
+
+def test_a_spread_of_one_firing_is_refused_with_its_line(fixture_dir: Path) -> None:
+    with pytest.raises(CurveDataError, match="firing_spread") as info:
+        read_record(fixture_dir / "single_firing_spread.xml")
+    assert info.value.line == 7
+
+
+@pytest.mark.parametrize("name", ["v1_1_no_charge.xml", "v1_1_unknown_delays.xml", "v1_1_firing_spread.xml",
+                                  "v1_0_no_ejection.xml", "v1_0_ejection_without_delays.xml",
+                                  "v1_0_own_stand_kind.xml", "sound_d12.xml"])
+def test_written_1_1_files_validate_against_the_xsd(fixture_dir: Path, name: str) -> None:
+    xsd = etree.XMLSchema(etree.parse(str(schema_path())))
+    assert xsd.validate(etree.fromstring((fixture_dir / name).read_bytes()))
+    assert xsd.validate(etree.fromstring(record_to_bytes(read_record(fixture_dir / name))))
+
+
+def test_a_later_minor_version_is_read_like_1_1(fixture_dir: Path) -> None:
+    data = (fixture_dir / "v1_1_unknown_delays.xml").read_bytes().replace(b'"1.1"', b'"1.7"')
+    assert record_from_bytes(data).ejection == "unknown"

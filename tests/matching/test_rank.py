@@ -9,7 +9,7 @@ import pytest
 from click.testing import CliRunner
 
 from motorlib.files.airframe_toml import load_airframe
-from motorlib.catalog import Catalog
+from motorlib.catalog import Catalog, CatalogFilter
 from motorlib.cli.main import main
 from motorlib.flight import simulate
 from motorlib.matching import MatchSettings, rank
@@ -229,3 +229,24 @@ def test_one_call_rank_for_the_common_case(sample_catalog: Catalog) -> None:
     assert len(single.candidates) == 1 and single.candidates[0]["apogee_m"] == pytest.approx(
         next(c["apogee_m"] for c in full.candidates if c["designation"] == "F29-8"), rel=1e-12)
     assert [c["designation"] for c in motorlib.rank(frame, [record, record], settings).candidates] == ["F29-8"] * 2
+
+
+def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> None:
+    # Issue 14: a motor whose delays were not given is not a motor without an ejection charge.
+    from dataclasses import replace
+
+    from motorlib.flight import MotorPack
+    from motorlib.matching import candidate_rows
+
+    frame = load_airframe(AIRFRAME)
+    base = sample_catalog.get(sample_catalog.rows(CatalogFilter(text="F29-8"))[0]["motor_id"])
+    plugged = replace(base, delays_s=(), delay_adjustable=False, no_ejection_charge=True)
+    records = [plugged, replace(plugged, no_ejection_charge=False)]  # record-0 plugged, record-1 delays unknown
+
+    def pack_for(sub: list[dict]) -> MotorPack:
+        return MotorPack.from_records([records[int(x["motor_id"].split("-")[1])] for x in sub])
+
+    result = rank(frame, candidate_rows(records), pack_for, MatchSettings(target_m=400.0, allow_smaller_motors=True))
+    reasons = {c["motor_id"]: dict(zip(c["reason_codes"], c["reasons"])) for c in result.candidates}
+    assert "plugged" in reasons["record-0"]["no charge"]
+    assert "delays unknown" in reasons["record-1"] and "plugged" not in reasons["record-1"]["delays unknown"]

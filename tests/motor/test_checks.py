@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from motorlib import CheckSettings, CurveMetadata, MotorRecord, check_file, check_record
@@ -16,6 +17,7 @@ RECORD_INVARIANTS = {
     "propellant_over_total.xml": "propellant-exceeds-total-mass", "negative_diameter.xml": "hardware-not-positive",
     "negative_delay.xml": "delay-not-positive", "repeated_delay.xml": "delay-repeated",
     "nan_time.xml": "time-not-finite", "blank_designation.xml": "designation-missing",
+    "no_charge_with_delays.xml": "no-charge-with-delays", "single_firing_spread.xml": "firing-spread-invalid",
 }
 CHECK_FINDINGS = {
     "class_mismatch.xml": ("error", "class-mismatch"),
@@ -33,7 +35,7 @@ CHECK_FINDINGS = {
     "high_power.xml": ("note", "high-power"),
 }
 UNREADABLE = ["not_well_formed.xml", "billion_laughs.xml", "external_entity.xml", "wrong_root.xml",
-              "future_major_version.xml", "missing_designation.xml", "bad_length_unit.xml", "unknown_element.xml",
+              "bad_provenance_kind.xml", "future_major_version.xml", "missing_designation.xml", "bad_length_unit.xml", "unknown_element.xml",
               "ragged_row.csv", "not_a_number.csv"]
 
 
@@ -125,3 +127,73 @@ def test_sample_motors_pass_and_hp_motors_get_the_note(sample_curve_paths: list[
         high_power = report.record.total_impulse_ns > 160.0 or report.record.average_thrust_n() > 80.0
         assert ("high-power" in [f.code for f in report.findings]) == (
             high_power or report.record.propellant_mass_kg > 0.0625)
+
+
+# ------------------------------------------------------------------ issue 14: labels and delay lists
+def _e16(designation: str, **kwargs: object) -> MotorRecord:
+    # 40 N·s over 2.5 s: class E, about 16 N.
+    return MotorRecord(designation, [0.0, 1e-3, 2.5, 2.5 + 1e-3], [0.0, 16.0, 16.0, 0.0], **kwargs)
+
+
+def _delay_findings(record: MotorRecord) -> list[str]:
+    return [f.message for f in check_record(record) if f.code == "delays-differ-from-label"]
+
+
+@pytest.mark.parametrize("label", ["E16-4", "E16-6", "E16-8", "E16-4,6,8", "E16-6,8", "E16"])
+def test_a_label_with_any_listed_delay_is_consistent(label: str) -> None:
+    # Issue 14: E16-6 with delays 4, 6, 8 always warned delays-differ-from-label.
+    assert _delay_findings(_e16(label, delays_s=(4.0, 6.0, 8.0))) == []
+
+
+@pytest.mark.parametrize("label", ["E16-5", "E16-4,5", "E16-10"])
+def test_a_label_delay_the_record_does_not_offer_warns(label: str) -> None:
+    (message,) = _delay_findings(_e16(label, delays_s=(4.0, 6.0, 8.0)))
+    assert "4, 6, 8 s" in message
+
+
+def test_an_adjustable_delay_covers_every_shorter_label_delay() -> None:
+    assert _delay_findings(_e16("E16-6", delays_s=(10.0,), delay_adjustable=True)) == []
+    assert _delay_findings(_e16("E16-12", delays_s=(10.0,), delay_adjustable=True)) != []
+
+
+def test_unknown_delays_are_not_called_plugged() -> None:
+    # Issue 14: "delays not given" differs from "no ejection charge".
+    assert _delay_findings(_e16("E16-6")) == []
+    assert _delay_findings(_e16("E16-P")) == []
+    (message,) = _delay_findings(_e16("E16-6", no_ejection_charge=True))
+    assert "no ejection charge" in message
+    assert _delay_findings(_e16("E16-P", no_ejection_charge=True)) == []
+    assert _delay_findings(_e16("E16-0", no_ejection_charge=True)) == []
+    (message,) = _delay_findings(_e16("E16-P", delays_s=(6.0,)))
+    assert "plugged" in message
+
+
+def test_metrics_carry_the_ejection_state() -> None:
+    from motorlib.motor.checks import metrics
+
+    assert metrics(_e16("E16"))["ejection"] == "unknown"
+    assert metrics(_e16("E16-P", no_ejection_charge=True))["ejection"] == "no-charge"
+    assert metrics(_e16("E16-6", delays_s=(6.0,)))["ejection"] == "delays"
+
+
+# ------------------------------------------------------------------ issue 14: class at the boundary
+def _at_160_ns(designation: str) -> MotorRecord:
+    time_s = 2.0 * np.array([0.0, 0.05, 0.1, 0.15, 0.25, 0.5, 0.8, 1.1, 1.3, 1.4, 1.45])  # average below 80 N
+    shape = 3.0 * np.array([0.0, 14.0, 28.0, 24.0, 13.0, 11.0, 10.6, 10.2, 9.0, 4.0, 0.0])
+    record = MotorRecord(designation, time_s, shape * 160.0 / MotorRecord("x", time_s, shape).total_impulse_ns)
+    assert record.total_impulse_ns > 160.0  # one ulp above: the premise of the regression
+    return record
+
+
+def test_a_g_labelled_curve_of_160_ns_passes() -> None:
+    codes = [f.code for f in check_record(_at_160_ns("G56"))]
+    assert "class-mismatch" not in codes and "high-power" not in codes
+
+
+def test_the_class_message_never_contradicts_its_figure() -> None:
+    # Labelled H, the curve delivers 160.00 N·s: the message must say G beside a figure that is G.
+    (finding,) = [f for f in check_record(_at_160_ns("H56")) if f.code == "class-mismatch"]
+    assert "160.00 N·s (class G)" in finding.message
+    record = MotorRecord("G80", [0.0, 1e-3, 2.0, 2.0 + 1e-3], [0.0, 80.006, 80.006, 0.0])  # 160.01 N·s
+    (finding,) = [f for f in check_record(record) if f.code == "class-mismatch"]
+    assert "160.01 N·s (class H)" in finding.message

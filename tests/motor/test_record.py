@@ -9,7 +9,7 @@ from hypothesis import strategies as st
 from scipy.integrate import cumulative_trapezoid, trapezoid
 from scipy.optimize import brentq
 
-from motorlib import CurveDataError, MotorRecord
+from motorlib import CheckSettings, CurveDataError, FiringSpread, MotorRecord, check_record
 from motorlib.units import STANDARD_GRAVITY_M_S2
 
 from ..conftest import curves
@@ -154,6 +154,8 @@ def test_records_are_frozen_and_compare_by_value(demo_record: MotorRecord) -> No
     (dict(delays_s=(-3.0,)), "delay-not-positive"),
     (dict(delays_s=(5.0, 5.0)), "delay-repeated"),
     (dict(designation=" "), "designation-missing"),
+    (dict(delays_s=(5.0,), no_ejection_charge=True), "no-charge-with-delays"),
+    (dict(delay_adjustable=True, no_ejection_charge=True), "no-charge-with-delays"),
 ])
 def test_invariants_raise_with_a_code(kwargs: dict, code: str) -> None:
     args = dict(designation="C6-5", time_s=[0.0, 0.5, 1.0], thrust_n=[0.0, 10.0, 0.0])
@@ -167,3 +169,90 @@ def test_all_problems_are_listed_at_once() -> None:
     with pytest.raises(CurveDataError, match=r"and 2 more problem") as info:
         MotorRecord("C6", [0.0, 1.0, 1.0], [0.0, -1.0, 0.0], diameter_m=-1.0)
     assert [p.code for p in info.value.problems] == ["time-not-increasing", "thrust-negative", "hardware-not-positive"]
+
+
+# --------------------------------------------------------------- issue 14: ejection delays, a tri-state
+def test_delays_not_given_are_unknown_not_plugged() -> None:
+    record = MotorRecord("E16", [0.0, 1.0, 2.0], [0.0, 32.0, 0.0])
+    assert record.ejection == "unknown" and not record.no_ejection_charge
+
+
+def test_the_three_ejection_states() -> None:
+    args = dict(designation="E16", time_s=[0.0, 1.0, 2.0], thrust_n=[0.0, 32.0, 0.0])
+    assert MotorRecord(**args, delays_s=(4.0, 6.0, 8.0)).ejection == "delays"
+    assert MotorRecord(**args, no_ejection_charge=True).ejection == "no-charge"
+    assert MotorRecord(**args, delay_adjustable=True).ejection == "unknown"  # drillable, delay not given
+    assert MotorRecord(**args, no_ejection_charge=True) != MotorRecord(**args)
+
+
+# --------------------------------------------------- issue 14: computed designation at the trade's precision
+def _flat(designation: str, average_n: float, burn_s: float = 1.0) -> MotorRecord:
+    # A trapezoid whose 5 % window holds almost all of the impulse; average thrust close to ``average_n``.
+    return MotorRecord(designation, [0.0, 1e-4, burn_s - 1e-4, burn_s], [0.0, average_n, average_n, 0.0])
+
+
+def test_a_small_motor_keeps_a_decimal_and_passes_its_own_check() -> None:
+    # Issue 14: a 1.36 N motor became "1/2A1", 26 % off its own average thrust.
+    record = _flat("x", 1.36)
+    label = record.computed_designation()
+    assert label == "A1.4"
+    relabelled = MotorRecord(label, record.time_s, record.thrust_n)
+    codes = {f.code for f in check_record(relabelled)}
+    assert not codes & {"class-mismatch", "average-thrust-mismatch"}
+
+
+@pytest.mark.parametrize(("average_n", "text"), [
+    (0.052, "0.052"), (0.36, "0.36"), (1.36, "1.4"), (3.04, "3"), (4.44, "4.4"), (4.96, "5"), (5.4, "5"),
+    (9.44, "9"), (12.4, "12"), (124.6, "125"),
+])
+def test_average_thrust_is_printed_in_whole_newtons_from_five_newtons(average_n: float, text: str) -> None:
+    label = _flat("x", average_n).computed_designation()
+    assert label.endswith(text) and not label[-len(text) - 1].isdigit() and label[-len(text) - 1] != "."
+
+
+@given(curves(min_samples=3))
+@settings(max_examples=200)
+def test_the_computed_designation_passes_the_label_checks(curve: MotorRecord) -> None:
+    label = curve.computed_designation()
+    if label.startswith(">O"):
+        return
+    relabelled = MotorRecord(label, curve.time_s, curve.thrust_n)
+    codes = {f.code for f in check_record(relabelled, CheckSettings())}
+    assert not codes & {"class-mismatch", "average-thrust-mismatch", "designation-unreadable"}, (label, codes)
+
+
+def test_a_curve_at_exactly_160_ns_is_class_g() -> None:
+    # Issue 14: scaled to 160 N·s, the trapezoid sum lands one ulp above and the curve was called H.
+    time_s = 2.0 * np.array([0.0, 0.05, 0.1, 0.15, 0.25, 0.5, 0.8, 1.1, 1.3, 1.4, 1.45])  # average below 80 N
+    shape = 3.0 * np.array([0.0, 14.0, 28.0, 24.0, 13.0, 11.0, 10.6, 10.2, 9.0, 4.0, 0.0])
+    thrust_n = shape * 160.0 / MotorRecord("x", time_s, shape).total_impulse_ns
+    record = MotorRecord("G110", time_s, thrust_n)
+    assert record.total_impulse_ns > 160.0  # the premise: one ulp above
+    assert record.impulse_class.letter == "G"
+    assert record.computed_designation().startswith("G")
+    codes = {f.code for f in check_record(record)}
+    assert "class-mismatch" not in codes and "high-power" not in codes
+
+
+# ---------------------------------------------------------- issue 12: the measured spread of several firings
+def test_firing_spread_is_an_optional_field() -> None:
+    spread = FiringSpread(n_firings=3, total_impulse_mean_ns=49.0, total_impulse_std_ns=0.98,
+                          burn_time_mean_s=1.6, burn_time_std_s=0.04)
+    record = MotorRecord("F30", [0.0, 1.0, 2.0], [0.0, 49.0, 0.0], firing_spread=spread)
+    assert record.firing_spread == spread
+    assert MotorRecord("F30", [0.0, 1.0, 2.0], [0.0, 49.0, 0.0]).firing_spread is None
+    assert spread.total_impulse_relative_std == pytest.approx(0.02)
+    assert spread.burn_time_relative_std == pytest.approx(0.025)
+    assert record != MotorRecord("F30", [0.0, 1.0, 2.0], [0.0, 49.0, 0.0])
+
+
+@pytest.mark.parametrize("kwargs", [
+    dict(n_firings=1), dict(total_impulse_mean_ns=0.0), dict(total_impulse_std_ns=-0.1),
+    dict(burn_time_mean_s=float("nan")), dict(burn_time_std_s=float("inf")),
+])
+def test_firing_spread_invariants(kwargs: dict) -> None:
+    args = dict(n_firings=3, total_impulse_mean_ns=49.0, total_impulse_std_ns=0.98, burn_time_mean_s=1.6,
+                burn_time_std_s=0.04)
+    args.update(kwargs)
+    with pytest.raises(CurveDataError, match="firing_spread"):
+        FiringSpread(**args)

@@ -14,7 +14,13 @@ from scipy.signal import butter, sosfreqz
 from motorlib import CurveDataError, MotorRecord, check_file, read_record
 from motorlib.catalog import Catalog
 from motorlib.cli.main import main
-from motorlib.motor.reduction import ReductionSettings, combine_reductions, lowpass_design_hz, reduce_log
+from motorlib.motor.reduction import (
+    ReductionSettings,
+    combine_reductions,
+    firing_spread,
+    lowpass_design_hz,
+    reduce_log,
+)
 
 from ..conftest import SAMPLE_DIR
 
@@ -147,6 +153,25 @@ def test_combined_firings_give_mean_and_spread() -> None:
     assert ti["min"] < ti["mean"] < ti["max"] and ti["std"] == pytest.approx(0.02 * known.total_impulse_ns, rel=0.15)
 
 
+def test_the_spread_of_several_firings_becomes_a_record_field() -> None:
+    # Issue 12: a team's own firings feed the Monte Carlo; the spread is kept in the record.
+    known = read_record(SAMPLE_DIR / SAMPLES[0])
+    reductions = []
+    for k, (gain, stretch) in enumerate(((0.98, 1.0), (1.0, 1.03), (1.02, 0.97))):
+        t, f = synthetic_log(known, 2000.0, noise_n=0.2, seed=k)
+        reductions.append(reduce_log(t * stretch, gain * f))
+    spread = firing_spread(reductions)
+    _, _, summary = combine_reductions(reductions)
+    assert spread.n_firings == 3
+    assert spread.total_impulse_mean_ns == pytest.approx(summary["total_impulse_ns"]["mean"], rel=1e-12)
+    assert spread.total_impulse_std_ns == pytest.approx(summary["total_impulse_ns"]["std"], rel=1e-12)
+    burns = [MotorRecord("firing", r.filtered_time_s, r.filtered_thrust_n).burn_time_s() for r in reductions]
+    assert spread.burn_time_mean_s == pytest.approx(np.mean(burns), rel=1e-12)
+    assert spread.burn_time_std_s == pytest.approx(np.std(burns, ddof=1), rel=1e-12)
+    assert spread.burn_time_relative_std == pytest.approx(0.03, rel=0.25)
+    assert firing_spread(reductions[:1]) is None  # one firing has no spread
+
+
 def _write_log(path: Path, t: np.ndarray, f: np.ndarray, unit: str = "lbf", factor: float = 4.4482216152605) -> Path:
     with open(path, "w") as handle:
         handle.write(f"# stand log\ntime_ms,force_{unit}\n")
@@ -168,7 +193,8 @@ def test_reduce_command_makes_a_catalog_ready_file(tmp_path: Path) -> None:
     assert result.exit_code == 0, result.output
     assert check_file(out).ok and plot.exists()
     record = read_record(out)
-    assert record.provenance.kind == "static-test" and "Reduced by motorlib" in record.provenance.notes
+    assert record.provenance.kind == "own-firing" and "Reduced by motorlib" in record.provenance.notes
+    assert record.firing_spread is None
     assert record.total_impulse_ns == pytest.approx(known.total_impulse_ns, rel=0.01)
     catalog = Catalog(tmp_path / "cat")
     assert catalog.add_files([out])[0].status == "added"
@@ -202,3 +228,18 @@ def test_reduce_command_refuses_a_label_it_does_not_honour(tmp_path: Path) -> No
     bad.write_text("time_s,force_n\n" + "".join(f"{i / 100},{1.0}\n" for i in range(30)) + "0.1,5\n")
     result = CliRunner().invoke(main, ["reduce", str(bad)])
     assert result.exit_code == 1 and "time does not increase at row 32" in result.output
+
+
+def test_reduce_combine_writes_the_firing_spread(tmp_path: Path) -> None:
+    known = read_record(SAMPLE_DIR / SAMPLES[0])
+    logs = []
+    for k, gain in enumerate((0.98, 1.0, 1.02)):
+        t, f = synthetic_log(known, 2000.0, noise_n=0.3, seed=k)
+        logs.append(str(_write_log(tmp_path / f"firing-{k + 1}.csv", t, gain * f)))
+    out = tmp_path / "G59-10-mean.xml"
+    result = CliRunner().invoke(main, ["reduce", *logs, "--combine", "--designation", "G59-10", "--delays", "10",
+                                       "-o", str(out)])
+    assert result.exit_code == 0, result.output
+    spread = read_record(out).firing_spread
+    assert spread.n_firings == 3
+    assert spread.total_impulse_relative_std == pytest.approx(0.02, rel=0.2)

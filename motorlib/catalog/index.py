@@ -1,0 +1,278 @@
+"""The catalog's SQLite index: a cache of every curve file's metadata, metrics, findings and samples.
+
+The index lives in ``<root>/.motorlib/index.sqlite`` (in memory for a
+read-only catalog) and can always be rebuilt from the files. Opening checks
+the schema version and that the tables can be read; an unusable index is
+moved aside to ``index.corrupt`` and rebuilt. :meth:`CatalogIndex.refresh`
+compares every file's size and modification time with the ``files`` table and
+parses only what changed; a content hash confirms a change before any parsing.
+
+Tables::
+
+    meta    key -> value        schema version; the size:mtime stamp of tags.json last loaded
+    files   path, size, mtime_ns, sha256, motor_id, error   one row per curve file seen
+    motors  COLUMNS, time_blob, thrust_blob                 one row per motor (samples as float64 blobs)
+    tags    motor_id, tag                                   a copy of tags.json, for queries
+"""
+
+from __future__ import annotations
+
+import contextlib
+import hashlib
+import json
+import os
+import sqlite3
+from pathlib import Path
+from typing import Callable, ContextManager, Iterator
+
+from ..errors import MotorlibError
+from ..files.motor_xml import record_from_bytes
+from ..motor.checks import CheckSettings, check_record, metrics
+from ..motor.classes import CLASS_LETTERS
+from ..motor.record import MotorRecord
+
+__all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
+
+SCHEMA_VERSION = "2"  # 2: ejection column, classes at 0.01 N·s, provenance kinds of format 1.1
+INDEX_DIR = ".motorlib"
+COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
+           "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
+           "diameter_m", "length_m", "total_mass_kg", "propellant_mass_kg", "specific_impulse_s", "delays_s",
+           "delay_adjustable", "ejection", "provenance_kind", "provenance_date", "notes", "n_samples", "n_errors",
+           "n_warnings", "findings")
+
+
+def create_schema(db: sqlite3.Connection) -> None:
+    """Create the tables (if missing) and stamp the schema version."""
+    db.execute("CREATE TABLE IF NOT EXISTS meta (key TEXT PRIMARY KEY, value TEXT)")
+    db.execute("CREATE TABLE IF NOT EXISTS files (path TEXT PRIMARY KEY, size INTEGER, mtime_ns INTEGER, "
+               "sha256 TEXT, motor_id TEXT, error TEXT)")
+    cols = ", ".join(f"{c} {'TEXT PRIMARY KEY' if c == 'motor_id' else ''}" for c in COLUMNS)
+    db.execute(f"CREATE TABLE IF NOT EXISTS motors ({cols}, time_blob BLOB, thrust_blob BLOB)")
+    db.execute("CREATE INDEX IF NOT EXISTS motors_class ON motors (class_index)")
+    db.execute("CREATE INDEX IF NOT EXISTS motors_name ON motors (maker, designation)")
+    db.execute("CREATE TABLE IF NOT EXISTS tags (motor_id TEXT, tag TEXT, PRIMARY KEY (motor_id, tag))")
+    db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
+
+
+def scan_files(root: Path) -> dict[str, tuple[int, int]]:
+    """Every curve file under ``root`` (hidden files and folders skipped): relative path -> (size, mtime_ns)."""
+    found: dict[str, tuple[int, int]] = {}
+    top = str(root)
+    for folder, dirs, files in os.walk(top):
+        dirs[:] = [d for d in dirs if not d.startswith(".")]
+        for name in files:
+            if name.endswith(".xml") and not name.startswith("."):
+                full = os.path.join(folder, name)
+                st = os.stat(full)
+                found[os.path.relpath(full, top).replace(os.sep, "/")] = (st.st_size, st.st_mtime_ns)
+    return found
+
+
+def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSettings) -> list[object]:
+    """The values of one ``motors`` row: :data:`COLUMNS`, then the time and thrust blobs (little-endian float64)."""
+    m = metrics(record, settings.burn_threshold)
+    findings = check_record(record, settings)
+    cls = m["impulse_class"]
+    row = {
+        "motor_id": motor_id, "handle": path[:-4], "path": path, "maker": record.maker,
+        "designation": record.designation, "computed_designation": m["computed_designation"],
+        "impulse_class": cls, "class_index": CLASS_LETTERS.index(cls) if cls else len(CLASS_LETTERS),
+        "class_percent": m["class_percent"], "total_impulse_ns": m["total_impulse_ns"],
+        "average_thrust_n": m["average_thrust_n"], "peak_thrust_n": m["peak_thrust_n"],
+        "burn_time_s": m["burn_time_s"], "diameter_m": record.diameter_m, "length_m": record.length_m,
+        "total_mass_kg": record.total_mass_kg, "propellant_mass_kg": record.propellant_mass_kg,
+        "specific_impulse_s": record.specific_impulse_s, "delays_s": json.dumps(list(record.delays_s)),
+        "delay_adjustable": int(record.delay_adjustable), "ejection": record.ejection,
+        "provenance_kind": record.provenance.kind,
+        "provenance_date": record.provenance.date.isoformat() if record.provenance.date else None,
+        "notes": record.provenance.notes, "n_samples": record.n_samples,
+        "n_errors": sum(f.severity == "error" for f in findings),
+        "n_warnings": sum(f.severity == "warning" for f in findings),
+        "findings": json.dumps([f.as_dict() for f in findings]),
+    }
+    return [row[c] for c in COLUMNS] + [record.time_s.astype("<f8").tobytes(), record.thrust_n.astype("<f8").tobytes()]
+
+
+class CatalogIndex:
+    """The SQLite index of the catalog folder ``root``.
+
+    Parameters
+    ----------
+    root : Path
+        The catalog folder.
+    read_only : bool
+        Keep the index in memory and never write inside ``root``.
+    settings : CheckSettings
+        The rules used for the findings stored per motor.
+    lock : callable
+        Returns the catalog's writer lock (a context manager); held while a corrupt index is moved aside.
+    notices : list of str
+        Opening appends what it did (built, rebuilt after corruption, kept in memory).
+
+    Attributes
+    ----------
+    db : sqlite3.Connection
+        In autocommit mode; writers open their own ``BEGIN IMMEDIATE`` transactions.
+    """
+
+    def __init__(self, root: Path, *, read_only: bool, settings: CheckSettings,
+                 lock: Callable[[], ContextManager[None]], notices: list[str]) -> None:
+        self.root = root
+        self.settings = settings
+        self._lock = lock
+        self.db = self._connect(read_only, notices)
+
+    @property
+    def path(self) -> Path:
+        return self.root / INDEX_DIR / "index.sqlite"
+
+    def close(self) -> None:
+        self.db.close()
+
+    # ------------------------------------------------------------------ opening
+    def _connect(self, read_only: bool, notices: list[str]) -> sqlite3.Connection:
+        if read_only:
+            db = sqlite3.connect(":memory:", isolation_level=None)
+            create_schema(db)
+            notices.append(f"{self.root}: read-only catalog, index kept in memory")
+            return db
+        (self.root / INDEX_DIR).mkdir(exist_ok=True)
+        existed = self.path.exists()
+        try:
+            db = self._open_file()
+            version = db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone()
+            if version is None or version[0] != SCHEMA_VERSION:
+                raise sqlite3.DatabaseError("schema version mismatch")
+            db.execute("SELECT count(*) FROM motors").fetchone()
+            return db
+        except sqlite3.DatabaseError as exc:
+            with contextlib.suppress(NameError):
+                db.close()
+            if existed:
+                self._move_aside()
+                notices.append(f"{self.path}: index unusable ({exc}); moved aside and rebuilt from the files")
+            else:
+                notices.append(f"{self.root}: building the catalog index")
+            db = self._open_file()
+            with db:
+                create_schema(db)
+            return db
+
+    def _open_file(self) -> sqlite3.Connection:
+        db = sqlite3.connect(self.path, timeout=60.0, isolation_level=None)
+        db.execute("PRAGMA busy_timeout = 60000")
+        db.execute("PRAGMA journal_mode = WAL")
+        db.execute("PRAGMA synchronous = NORMAL")
+        return db
+
+    def _move_aside(self) -> None:
+        """Rename an unusable index to ``index.corrupt`` and drop its WAL files, under the writer lock."""
+        with self._lock():
+            aside = self.path.with_suffix(".corrupt")
+            if self.path.exists():
+                os.replace(self.path, aside)
+            for extra in ("-wal", "-shm"):
+                with contextlib.suppress(FileNotFoundError):
+                    os.unlink(str(self.path) + extra)
+
+    @contextlib.contextmanager
+    def _transaction(self) -> Iterator[None]:
+        self.db.execute("BEGIN IMMEDIATE")
+        try:
+            yield
+            self.db.execute("COMMIT")
+        except BaseException:
+            self.db.execute("ROLLBACK")
+            raise
+
+    # ------------------------------------------------------------------ refresh from the files
+    def refresh(self, problems: list[tuple[str, str]]) -> tuple[int, int, bool]:
+        """Bring the index in step with the files.
+
+        Files that failed before, and files that fail now, are appended to
+        ``problems`` as (full path, reason).
+
+        Returns
+        -------
+        n_read, n_removed : int
+            Files (re)read and files gone since the last refresh.
+        had_files : bool
+            Whether the index knew any file before (False for a new index).
+        """
+        on_disk = scan_files(self.root)
+        known = {row[0]: row[1:] for row in self.db.execute("SELECT path, size, mtime_ns, sha256, error FROM files")}
+        removed = [p for p in known if p not in on_disk]
+        changed = [p for p, stat in on_disk.items() if p not in known or tuple(known[p][:2]) != stat]
+        for path, row in known.items():  # files that failed before stay reported, without re-reading
+            if path in on_disk and path not in changed and row[3]:
+                problems.append((str(self.root / path), row[3]))
+        if not removed and not changed:
+            return 0, 0, bool(known)
+        with self._transaction():
+            for path in removed:
+                self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
+                self.db.execute("DELETE FROM files WHERE path = ?", (path,))
+            for path in changed:
+                self._index_file(path, on_disk[path], known.get(path), problems)
+        return len(changed), len(removed), bool(known)
+
+    def _index_file(self, path: str, stat: tuple[int, int], old: tuple | None,
+                    problems: list[tuple[str, str]]) -> None:
+        full = self.root / path
+        try:
+            data = full.read_bytes()
+        except OSError as exc:
+            problems.append((str(full), exc.strerror or str(exc)))
+            return
+        digest = hashlib.sha256(data).hexdigest()
+        if old is not None and old[2] == digest and not old[3]:  # touched, not changed
+            self.db.execute("UPDATE files SET size = ?, mtime_ns = ? WHERE path = ?", (*stat, path))
+            return
+        motor_id = digest[:16]
+        self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
+        try:
+            record = record_from_bytes(data, str(full))
+        except MotorlibError as exc:
+            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, str(exc)))
+            problems.append((str(full), str(exc)))
+            return
+        twin = self.db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
+        if twin is not None:
+            message = f"an exact copy of {twin[0]}; skipped"
+            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, message))
+            problems.append((str(full), message))
+            return
+        self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
+        self._insert_motor(motor_id, path, record)
+
+    def _insert_motor(self, motor_id: str, path: str, record: MotorRecord) -> None:
+        values = motor_row(motor_id, path, record, self.settings)
+        marks = ", ".join("?" * len(values))
+        self.db.execute(f"INSERT OR REPLACE INTO motors VALUES ({marks})", values)
+
+    def clear(self) -> None:
+        """Forget every file and motor (tags stay); the next :meth:`refresh` reads everything again."""
+        self.db.execute("BEGIN IMMEDIATE")
+        self.db.execute("DELETE FROM motors")
+        self.db.execute("DELETE FROM files")
+        self.db.execute("COMMIT")
+
+    # ------------------------------------------------------------------ rows written by the store
+    def insert_file(self, path: str, data: bytes, motor_id: str, record: MotorRecord) -> None:
+        """Index a file the store has just written (``data`` are its bytes), in one transaction."""
+        st = os.stat(self.root / path)
+        with self._transaction():
+            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)",
+                            (path, st.st_size, st.st_mtime_ns, hashlib.sha256(data).hexdigest(), motor_id))
+            self._insert_motor(motor_id, path, record)
+
+    def delete_motor(self, motor_id: str, path: str) -> None:
+        """Drop a motor and its file row (the store has deleted the file)."""
+        self.db.execute("BEGIN IMMEDIATE")
+        self.db.execute("DELETE FROM motors WHERE motor_id = ?", (motor_id,))
+        self.db.execute("DELETE FROM files WHERE path = ?", (path,))
+        self.db.execute("COMMIT")
+
+    def n_motors(self) -> int:
+        return int(self.db.execute("SELECT count(*) FROM motors").fetchone()[0])

@@ -1,0 +1,172 @@
+"""Catalog queries: filters, sorted rows, a pandas DataFrame, and samples for the batched flight.
+
+Everything here reads the index (:mod:`.index`) and never parses a curve
+file: rows come from the ``motors`` table, samples from its float64 blobs.
+pandas is imported only inside :func:`query`, so the matcher's path
+(rows, samples, motor pack) never loads it.
+"""
+
+from __future__ import annotations
+
+import json
+import sqlite3
+from dataclasses import dataclass
+from typing import Any, Sequence
+
+import numpy as np
+
+from ..motor.classes import CLASS_LETTERS
+from .index import COLUMNS
+
+__all__ = ["SORT_KEYS", "CatalogFilter", "load_samples", "motor_pack", "parse_class_range", "query", "select_rows"]
+
+SORT_KEYS = tuple(c for c in COLUMNS if c not in ("findings", "notes", "delays_s", "path"))
+_MAX_BOUND_PARAMETERS = 900  # below SQLite's default limit on bound parameters per statement (999)
+
+
+@dataclass(frozen=True)
+class CatalogFilter:
+    """Which motors a query returns; every criterion is optional and they combine with AND.
+
+    Lengths in m, impulses in N·s, times in s (SI, like the rest of the library).
+    """
+
+    class_range: tuple[str, str] | None = None
+    diameter_m: float | None = None
+    diameter_tolerance_m: float = 0.0005
+    max_diameter_m: float | None = None
+    max_length_m: float | None = None
+    maker: str | None = None
+    impulse_range_ns: tuple[float | None, float | None] = (None, None)
+    burn_range_s: tuple[float | None, float | None] = (None, None)
+    delay_s: float | None = None
+    text: str | None = None
+    tag: str | None = None
+    ids: tuple[str, ...] | None = None
+    hide_errors: bool = False
+
+    def __post_init__(self) -> None:
+        if self.class_range is not None:
+            for letter in self.class_range:
+                if letter not in CLASS_LETTERS:
+                    raise ValueError(f"class {letter!r} is not one of {', '.join(CLASS_LETTERS)}")
+
+
+def parse_class_range(text: str) -> tuple[str, str]:
+    """``"D..G"`` or ``"D"`` -> (lowest, highest) class letters.
+
+    >>> parse_class_range("g..d")
+    ('D', 'G')
+    """
+    parts = [p.strip().upper() for p in text.split("..")]
+    if len(parts) == 1:
+        parts = parts * 2
+    if len(parts) != 2 or any(p not in CLASS_LETTERS for p in parts):
+        raise ValueError(f"class range {text!r}: expected a class such as D or a range such as D..G")
+    low, high = sorted(parts, key=CLASS_LETTERS.index)
+    return low, high
+
+
+def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
+    """SQL conditions and their arguments for every criterion of ``f`` except ``delay_s`` (checked per row)."""
+    clauses: list[str] = []
+    args: list[Any] = []
+    if f.class_range:
+        clauses.append("class_index BETWEEN ? AND ?")
+        args += [CLASS_LETTERS.index(f.class_range[0]), CLASS_LETTERS.index(f.class_range[1])]
+    if f.diameter_m is not None:
+        clauses.append("abs(diameter_m - ?) <= ?")
+        args += [f.diameter_m, f.diameter_tolerance_m]
+    if f.max_diameter_m is not None:
+        clauses.append("diameter_m <= ?")
+        args.append(f.max_diameter_m + f.diameter_tolerance_m)
+    if f.max_length_m is not None:
+        clauses.append("length_m <= ?")
+        args.append(f.max_length_m)
+    if f.maker:
+        clauses.append("lower(maker) LIKE ?")
+        args.append(f"%{f.maker.lower()}%")
+    for column, (low, high) in (("total_impulse_ns", f.impulse_range_ns), ("burn_time_s", f.burn_range_s)):
+        if low is not None:
+            clauses.append(f"{column} >= ?")
+            args.append(low)
+        if high is not None:
+            clauses.append(f"{column} <= ?")
+            args.append(high)
+    if f.text:
+        clauses.append("(lower(designation) LIKE ? OR lower(maker) LIKE ? OR lower(notes) LIKE ? OR handle LIKE ?)")
+        args += [f"%{f.text.lower()}%"] * 4
+    if f.tag:
+        clauses.append("motor_id IN (SELECT motor_id FROM tags WHERE tag = ?)")
+        args.append(f.tag)
+    if f.ids is not None:
+        clauses.append(f"motor_id IN ({', '.join('?' * len(f.ids))})")
+        args += list(f.ids)
+    if f.hide_errors:
+        clauses.append("n_errors = 0")
+    return clauses, args
+
+
+def _offers_delay(row: dict[str, Any], delay_s: float) -> bool:
+    """A listed delay of ``delay_s``, or an adjustable delay whose longest setting reaches it."""
+    delays = row["delays_s"]
+    if any(abs(d - delay_s) < 1e-9 for d in delays):
+        return True
+    return bool(row["delay_adjustable"]) and bool(delays) and delay_s <= max(delays)
+
+
+def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
+                descending: bool = False) -> list[dict[str, Any]]:
+    """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort`` then id."""
+    if sort not in SORT_KEYS:
+        raise ValueError(f"`sort` must be one of {', '.join(SORT_KEYS)}, got {sort!r}")
+    f = where or CatalogFilter()
+    clauses, args = _where(f)
+    sql = f"SELECT {', '.join(COLUMNS)} FROM motors"
+    if clauses:
+        sql += " WHERE " + " AND ".join(clauses)
+    sql += f" ORDER BY {sort} {'DESC' if descending else 'ASC'}, motor_id"
+    out = []
+    for values in db.execute(sql, args):
+        row = dict(zip(COLUMNS, values))
+        row["delays_s"] = json.loads(row["delays_s"])
+        row["delay_adjustable"] = bool(row["delay_adjustable"])
+        row["findings"] = json.loads(row["findings"])
+        if f.delay_s is not None and not _offers_delay(row, f.delay_s):
+            continue
+        out.append(row)
+    return out
+
+
+def query(db: sqlite3.Connection, where: CatalogFilter | None = None, **kwargs: Any) -> Any:
+    """The rows of :func:`select_rows` as a pandas DataFrame indexed by motor id (pandas is imported only here)."""
+    import pandas as pd
+
+    return pd.DataFrame(select_rows(db, where, **kwargs), columns=list(COLUMNS)).set_index("motor_id")
+
+
+def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """Time [s] and thrust [N] arrays of the given motors, straight from the index blobs (no XML parsing)."""
+    out: dict[str, tuple[np.ndarray, np.ndarray]] = {}
+    wanted = list(ids)
+    for start in range(0, len(wanted), _MAX_BOUND_PARAMETERS):
+        chunk = wanted[start:start + _MAX_BOUND_PARAMETERS]
+        sql = f"SELECT motor_id, time_blob, thrust_blob FROM motors WHERE motor_id IN ({', '.join('?' * len(chunk))})"
+        for motor_id, t, f in db.execute(sql, chunk):
+            out[motor_id] = (np.frombuffer(t, dtype="<f8"), np.frombuffer(f, dtype="<f8"))
+    return out
+
+
+def motor_pack(db: sqlite3.Connection, rows: Sequence[dict[str, Any]], drill_step_s: float = 1.0) -> Any:
+    """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index."""
+    from ..flight import MotorPack
+
+    data = load_samples(db, [r["motor_id"] for r in rows])
+    return MotorPack.from_samples(
+        [data[r["motor_id"]] for r in rows],
+        total_mass_kg=[r["total_mass_kg"] for r in rows],
+        propellant_mass_kg=[r["propellant_mass_kg"] for r in rows],
+        delays_s=[tuple(r["delays_s"]) for r in rows],
+        delay_adjustable=[r["delay_adjustable"] for r in rows],
+        drill_step_s=drill_step_s,
+    )

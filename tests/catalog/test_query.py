@@ -1,0 +1,37 @@
+"""Catalog queries: filters, sorting, class ranges, the DataFrame, and a motor pack built from the index."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from motorlib.catalog import Catalog, CatalogFilter, parse_class_range
+from motorlib.flight import MotorPack, simulate
+
+
+def test_filters_and_sorting(tmp_catalog: Catalog) -> None:
+    f = CatalogFilter(impulse_range_ns=(40.0, 160.0), burn_range_s=(1.0, 2.0), maker="bramble")
+    rows = tmp_catalog.rows(f, sort="average_thrust_n", descending=True)
+    thrusts = [r["average_thrust_n"] for r in rows]
+    assert thrusts == sorted(thrusts, reverse=True) and len(rows) == 4
+    assert all(40 <= r["total_impulse_ns"] <= 160 and 1 <= r["burn_time_s"] <= 2 for r in rows)
+    delays = tmp_catalog.rows(CatalogFilter(delay_s=6.0))
+    # listed 6 s, or adjustable with a longest delay of 6 s or more
+    assert {r["designation"] for r in delays} >= {"B5-2,4,6", "E9-4,6,8", "G59-10"}
+    assert "C6-3,5,7" not in {r["designation"] for r in delays}
+    assert tmp_catalog.rows(CatalogFilter(text="boost-sustain"))  # notes are searched
+    assert parse_class_range("d..g") == ("D", "G") and parse_class_range("1/2a") == ("1/2A", "1/2A")
+    with pytest.raises(ValueError, match="class range"):
+        parse_class_range("Q..Z")
+    frame = tmp_catalog.query(CatalogFilter(class_range=("M", "M")))
+    assert list(frame["designation"]) == ["M2158-P", "M2578-P"]
+
+
+def test_pack_from_the_index_flies_like_the_records(tmp_catalog: Catalog) -> None:
+    rows = tmp_catalog.rows(CatalogFilter(diameter_m=0.029))
+    pack = tmp_catalog.motor_pack(rows)
+    records = [tmp_catalog.get(r["motor_id"]) for r in rows]
+    frames, _ = __import__("tests.synthetic", fromlist=["x"]).synthetic_flights(1)
+    a = simulate(frames[0], pack, descent=False)
+    b = simulate(frames[0], MotorPack.from_records(records), descent=False)
+    np.testing.assert_array_equal(a.apogee_m, b.apogee_m)

@@ -1,0 +1,20 @@
+"""Catalog tags: tags.json round trips, survives a reindex, and loses removed motors."""
+
+from __future__ import annotations
+
+import pytest
+
+from motorlib.catalog import Catalog, CatalogFilter
+from motorlib.errors import CatalogError
+
+
+def test_tags_round_trip_and_survive_reindex(tmp_catalog: Catalog) -> None:
+    tmp_catalog.tag(["G59-10", "F29-8"], "in-stock")
+    tmp_catalog.untag(["F29-8"], "in-stock")
+    assert tmp_catalog.reindex() == 27
+    assert [r["designation"] for r in tmp_catalog.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
+    assert list(tmp_catalog.tags()) == ["in-stock"]
+    with pytest.raises(CatalogError, match="tag"):
+        tmp_catalog.tag(["G59-10"], "bad tag!")
+    tmp_catalog.remove("G59-10")
+    assert tmp_catalog.tags() == {} and len(tmp_catalog) == 26
