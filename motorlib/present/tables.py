@@ -192,10 +192,15 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: An
         masses = [m["total_mass_kg"], m["propellant_mass_kg"]]
         mass_unit = u.column_unit(masses, "mass")
         d_mass = u.column_decimals(masses, "mass", mass_unit)
+        impulse = _impulse(u, m["total_impulse_ns"], u.column_decimals([m["total_impulse_ns"]], "impulse", significant=4))
+
+        def size(key: str) -> str:  # 29 mm, 10.5 mm
+            return u.quantity(m[key], "motor_size", u.exact_decimals([m[key]], "motor_size", 1))
+
         rows = [
             ("label / maker", f"{m['designation']}  ({m['maker'] or 'maker unknown'})"),
             ("computed designation", str(m["computed_designation"])),
-            ("total impulse", f"{_impulse(u, m['total_impulse_ns'], u.column_decimals([m['total_impulse_ns']], 'impulse', significant=4))} N·s"),
+            ("total impulse", f"{impulse} N·s"),
             ("impulse class", f"{m['impulse_class']} ({m['class_percent']:.1f} % into class)"
              if m["impulse_class"] else "above O"),
             ("average thrust", u.precise(m["average_thrust_n"], "force")),
@@ -204,8 +209,7 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: An
                           f"{u.number(m['burn_end_s'], 'time')} s, thrust above {100 * float(m['burn_threshold']):g} % "
                           "of peak)"),
             ("samples", str(m["n_samples"])),
-            ("diameter x length", f"{u.quantity(m['diameter_m'], 'motor_size', u.exact_decimals([m['diameter_m']], 'motor_size', 1))} x "
-                                  f"{u.quantity(m['length_m'], 'motor_size', u.exact_decimals([m['length_m']], 'motor_size', 1))}"),
+            ("diameter x length", f"{size('diameter_m')} x {size('length_m')}"),
             ("total / propellant mass", f"{u.quantity(m['total_mass_kg'], 'mass', d_mass, mass_unit)} / "
                                         f"{u.quantity(m['propellant_mass_kg'], 'mass', d_mass, mass_unit)}"),
             ("specific impulse", u.quantity(m["specific_impulse_s"], "time", 0)),
