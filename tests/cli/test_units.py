@@ -219,3 +219,15 @@ def test_progress_bars_only_on_a_terminal_and_for_long_work(monkeypatch: pytest.
     with catalog_cli._progress("work", 500) as advance:
         assert advance is not None
         advance(500)
+
+
+def test_flight_warnings_follow_the_units_and_never_round_a_failure_away() -> None:
+    from motorlib.flight.rules import LaunchRules
+    from motorlib.present.messages import warning_message
+
+    summary = {"landing_descent_rate_m_s": 6.52, "rail_exit_speed_m_s": 14.96}
+    assert warning_message("descent-fast", "", summary, LaunchRules(), DisplayUnits(), 0.0).startswith(
+        "descent rate at landing 6.52 m/s is above 6.5 m/s")
+    assert warning_message("rail-exit-slow", "", summary, LaunchRules(), DisplayUnits("imperial"), 0.0).startswith(
+        "rail exit speed 49.1 ft/s is below 49.2 ft/s")
+    assert warning_message("new-code", "library words", summary, LaunchRules(), DisplayUnits(), 0.0) == "library words"
