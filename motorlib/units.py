@@ -18,12 +18,16 @@ __all__ = [
     "FOOT_M",
     "GRAM_KG",
     "INCH_M",
+    "INCH_OF_MERCURY_PA",
     "KILOGRAM_FORCE_N",
     "OUNCE_KG",
     "POUND_FORCE_N",
     "POUND_KG",
+    "PSI_PA",
+    "Quantity",
     "STANDARD_GRAVITY_M_S2",
     "UNITS",
+    "format_unit",
     "parse_quantity",
     "to_si",
 ]
@@ -37,6 +41,8 @@ GRAM_KG: Final = 1e-3
 POUND_FORCE_N: Final = POUND_KG * STANDARD_GRAVITY_M_S2  # 4.4482216152605 N, lb x g0 by definition
 KILOGRAM_FORCE_N: Final = STANDARD_GRAVITY_M_S2  # 1 kgf = 1 kg x g0 by definition
 MILE_M: Final = 1609.344  # exact, 5280 ft
+PSI_PA: Final = POUND_FORCE_N / INCH_M**2  # pound-force per square inch, 6894.757... Pa by definition
+INCH_OF_MERCURY_PA: Final = 3386.389  # conventional inch of mercury (NIST SP 811, appendix B.8)
 
 # kind -> unit symbol -> factor to the SI unit of that kind (value_si = value * factor).
 # Aliases are listed separately so that every factor is written once.
@@ -54,6 +60,7 @@ UNITS: Final[dict[str, dict[str, float]]] = {
     "impulse": {"Ns": 1.0, "lbfs": POUND_FORCE_N},
     "speed": {"m/s": 1.0, "ft/s": FOOT_M, "km/h": 1000.0 / 3600.0, "mph": MILE_M / 3600.0},
     "angle": {"rad": 1.0, "deg": 3.141592653589793 / 180.0},
+    "area": {"m²": 1.0, "cm²": 1e-4, "mm²": 1e-6, "in²": INCH_M**2, "ft²": FOOT_M**2},
 }
 
 _ALIASES: Final[dict[str, str]] = {
@@ -67,6 +74,8 @@ _ALIASES: Final[dict[str, str]] = {
     "lbf*s": "lbfs", "lbf.s": "lbfs", "lbf-s": "lbfs", "lbf·s": "lbfs", "lb-s": "lbfs",
     "m/sec": "m/s", "fps": "ft/s", "kph": "km/h", "kmh": "km/h",
     "degree": "deg", "degrees": "deg", "°": "deg",
+    "m2": "m²", "m^2": "m²", "sqm": "m²", "cm2": "cm²", "cm^2": "cm²", "mm2": "mm²", "mm^2": "mm²",
+    "in2": "in²", "in^2": "in²", "sqin": "in²", "ft2": "ft²", "ft^2": "ft²", "sqft": "ft²",
 }
 
 # Temperatures are affine, not factors: handled apart from UNITS.
@@ -76,6 +85,41 @@ _TEMPERATURE_ALIASES: Final = {"c": "degC", "°c": "degC", "degc": "degC", "f": 
 
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 _QUANTITY_RE: Final = re.compile(rf"^\s*(?P<number>{_NUMBER})\s*(?P<unit>.*?)\s*$")
+
+
+_PRETTY: Final = {"degC": "°C", "degF": "°F", "Ns": "N·s", "lbfs": "lbf·s"}
+
+
+def format_unit(symbol: str) -> str:
+    """The symbol as people write it: ``degC`` -> ``°C``, ``Ns`` -> ``N·s``; others unchanged.
+
+    >>> format_unit("Ns")
+    'N·s'
+    """
+    return _PRETTY.get(symbol, symbol)
+
+
+class Quantity(float):
+    """A value in SI that remembers how it was given, so that messages can echo the user's own words.
+
+    A float in every other respect (arithmetic on it gives plain floats). ``text`` is the number as it was
+    typed with the unit's symbol, e.g. ``"2300 ft"`` for ``"2300ft"``; a bare number gets the unit it was
+    taken in.
+
+    >>> q = parse_quantity("2300ft", "length", keep_text=True)
+    >>> round(float(q), 2), q.text
+    (701.04, '2300 ft')
+    """
+
+    text: str
+
+    def __new__(cls, value_si: float, text: str) -> Quantity:
+        obj = super().__new__(cls, value_si)
+        obj.text = text
+        return obj
+
+    def __reduce__(self) -> tuple[type, tuple[float, str]]:
+        return (Quantity, (float(self), self.text))
 
 
 def _canonical_unit(kind: str, unit: str) -> str | None:
@@ -145,6 +189,7 @@ def parse_quantity(
     *,
     field: str = "value",
     default_unit: str | None = None,
+    keep_text: bool = False,
 ) -> float:
     """Parse a quantity such as ``"13mm"``, ``"0.85 oz"`` or ``"15 degC"`` into SI.
 
@@ -154,16 +199,18 @@ def parse_quantity(
         A number followed by an optional unit. A plain number (or a bare
         int/float) is taken in ``default_unit``, or in SI when that is None.
     kind : str
-        One of ``length, mass, time, force, impulse, speed, angle, temperature``.
+        One of ``length, mass, time, force, impulse, speed, angle, temperature, area``.
     field : str
         Name used in error messages (an option or key name).
     default_unit : str, optional
         Unit of a plain number, e.g. ``"mm"`` for a ``--diameter`` option.
+    keep_text : bool
+        Return a :class:`Quantity` that also carries the text as given (number and unit), for echoing it.
 
     Returns
     -------
     float
-        The value in the SI unit of ``kind`` (m, kg, s, N, N·s, m/s, rad, K).
+        The value in the SI unit of ``kind`` (m, kg, s, N, N·s, m/s, rad, K, m²).
 
     Raises
     ------
@@ -178,24 +225,25 @@ def parse_quantity(
     if isinstance(text, bool):
         raise QuantityError(field, f"expected a {kind}, got {text!r}")
     if isinstance(text, (int, float)):
-        number, unit = float(text), ""
+        number, unit, typed = float(text), "", f"{float(text):g}"
     else:
         match = _QUANTITY_RE.match(str(text))
         if match is None:
             raise QuantityError(field, f"expected a {kind} such as {_example(kind)}, got {text!r}")
-        number, unit = float(match["number"]), match["unit"]
+        number, unit, typed = float(match["number"]), match["unit"], match["number"]
     if not unit:
-        if default_unit is None:
-            return to_si(number, _si_unit(kind), kind, field=field)
-        return to_si(number, default_unit, kind, field=field)
-    if _canonical_unit(kind, unit) is None:
+        unit = default_unit or _si_unit(kind)
+    elif _canonical_unit(kind, unit) is None:
         other = _unit_kind_of(unit)
         if other is not None:
             raise QuantityError(field, f"expected a {kind}, got {text!r} (a {other})")
         raise QuantityError(
             field, f"unknown {kind} unit {unit!r} in {text!r}; expected one of {', '.join(known_units(kind))}"
         )
-    return to_si(number, unit, kind, field=field)
+    value = to_si(number, unit, kind, field=field)
+    if keep_text:
+        return Quantity(value, f"{typed} {format_unit(_canonical_unit(kind, unit) or unit)}")
+    return value
 
 
 def _si_unit(kind: str) -> str:
@@ -206,4 +254,5 @@ def _example(kind: str) -> str:
     return {
         "length": "'29 mm'", "mass": "'24 g'", "time": "'1.5 s'", "force": "'12 N'",
         "impulse": "'10 Ns'", "speed": "'3 m/s'", "angle": "'5 deg'", "temperature": "'15 degC'",
+        "area": "'0.05 m2'",
     }[kind]

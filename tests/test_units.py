@@ -21,9 +21,11 @@ PINT_NAMES = {
     ("impulse", "Ns"): "newton * second", ("impulse", "lbfs"): "force_pound * second",
     ("speed", "ft/s"): "foot / second", ("speed", "mph"): "mile / hour", ("speed", "km/h"): "kilometer / hour",
     ("speed", "m/s"): "meter / second", ("angle", "deg"): "degree", ("angle", "rad"): "radian",
+    ("area", "m²"): "meter ** 2", ("area", "cm²"): "centimeter ** 2", ("area", "mm²"): "millimeter ** 2",
+    ("area", "in²"): "inch ** 2", ("area", "ft²"): "foot ** 2",
 }
 SI = {"length": "meter", "mass": "kilogram", "time": "second", "force": "newton", "impulse": "newton * second",
-      "speed": "meter / second", "angle": "radian"}
+      "speed": "meter / second", "angle": "radian", "area": "meter ** 2"}
 
 
 @pytest.mark.parametrize(("kind", "unit"), [(k, u) for k, table in UNITS.items() for u in table])
@@ -69,3 +71,19 @@ def test_unknown_unit_lists_the_accepted_ones() -> None:
         parse_quantity("heavy", "mass", field="total_mass")
     with pytest.raises(ValueError):  # QuantityError is a ValueError
         parse_quantity(True, "mass")
+
+
+@pytest.mark.parametrize(("text", "expected_m2"), [("280 in2", 280 * 0.0254**2), ("280 in²", 280 * 0.0254**2),
+                                                   ("1.9 sq ft", 1.9 * 0.3048**2), ("0.05", 0.05), ("500 cm^2", 0.05)])
+def test_areas_take_square_units_or_a_bare_si_number(text: str, expected_m2: float) -> None:
+    # Issue 14: drag area in m² or in².
+    assert parse_quantity(text, "area") == pytest.approx(expected_m2, rel=1e-12)
+
+
+def test_a_quantity_can_keep_the_text_it_was_given_as() -> None:
+    # Issue 14: messages echo the user's own numbers (2300 ft, not 701.04 m).
+    given = parse_quantity("2300ft", "length", keep_text=True)
+    assert given == pytest.approx(701.04) and given.text == "2300 ft"
+    assert parse_quantity("9.5", "time", keep_text=True).text == "9.5 s"
+    assert parse_quantity("15degC", "temperature", keep_text=True).text == "15 °C"
+    assert type(given * 2) is float  # arithmetic forgets the text

@@ -4,13 +4,14 @@ from __future__ import annotations
 
 import json
 import sys
-from typing import Any
+from contextlib import contextmanager
+from typing import Any, Callable, Iterator
 
 import click
 
 from ..errors import QuantityError
 from .group import _Group
-from .options import _catalog_option, _metadata, _metadata_options, _open_catalog, _Quantity
+from .options import _catalog_option, _metadata, _metadata_options, _open_catalog, _Quantity, _units_option, display_units
 from .output import _console, _err_console
 
 
@@ -20,8 +21,8 @@ def catalog() -> None:
 
     \b
     Example:
-      motorlib catalog --catalog ./motors add sample_curves/
-      motorlib catalog --catalog ./motors list --class D..G --diameter 29mm
+      motorlib catalog add --catalog ./motors sample_curves/
+      motorlib catalog list --catalog ./motors --class D..G --diameter 29mm
     """
 
 
@@ -44,11 +45,13 @@ def _range(text: str | None, kind: str, default_unit: str, name: str) -> tuple[f
 def _filter_options(func: Any) -> Any:
     options = [
         click.option("--class", "class_range", help="Impulse class or range, e.g. D or D..G."),
-        click.option("--diameter", "diameter", type=_Quantity("length", "mm"), help="Motor diameter; a bare number is mm."),
+        click.option("--diameter", "diameter", type=_Quantity("length", bare=False, example="29mm"),
+                     help="Motor diameter with a unit, e.g. 29mm."),
         click.option("--maker", help="Part of the maker's name."),
         click.option("--impulse", help="Total impulse range in N·s, e.g. 40..160 (either end may be left out)."),
         click.option("--burn", help="Burn time range in s, e.g. 1..3."),
-        click.option("--delay", "delay_s", type=float, help="Only motors offering this ejection delay (s)."),
+        click.option("--delay", "delay_s", type=_Quantity("time"),
+                     help="Only motors offering this ejection delay, e.g. 6s; a bare number is s."),
         click.option("--search", "text", help="Text to find in designation, maker, notes or handle."),
         click.option("--tag", help="Only motors with this tag."),
     ]
@@ -70,6 +73,20 @@ def _filter(opts: dict[str, Any]) -> Any:
                          text=opts.get("text"), tag=opts.get("tag"))
 
 
+@contextmanager
+def _progress(what: str, total: int) -> Iterator[Callable[[int], None] | None]:
+    """A progress bar on the terminal (stderr) for long work; None when not a terminal or for few items."""
+    err = _err_console()
+    if total <= 20 or not err.is_terminal:
+        yield None
+        return
+    from rich.progress import Progress
+
+    with Progress(console=err, transient=True) as progress:
+        task = progress.add_task(what, total=total)
+        yield lambda n: progress.advance(task, n)
+
+
 @catalog.command("add")
 @_catalog_option
 @click.argument("paths", nargs=-1, required=True, type=click.Path(exists=True))
@@ -84,8 +101,9 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
 
     \b
     Example:
-      motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" --diameter 24 \\
-          --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 --source-kind own-firing
+      motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" \\
+          --diameter 24mm --length 70mm --total-mass 48g --propellant-mass 22g \\
+          --delays 4,6,8 --source-kind own-firing
     """
     from collections import Counter
 
@@ -96,14 +114,8 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     files = find_curve_files(list(paths))
     console = _console()
     kwargs = dict(metadata=_metadata(opts), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
-    if len(files) > 20:
-        from rich.progress import Progress
-
-        with Progress(console=_err_console(), transient=True) as progress:
-            task = progress.add_task("adding curves", total=len(files))
-            results = cat.add_files(files, progress=lambda n: progress.advance(task, n), **kwargs)
-    else:
-        results = cat.add_files(files, **kwargs)
+    with _progress("adding curves", len(files)) as advance:
+        results = cat.add_files(files, progress=advance, **kwargs) if advance else cat.add_files(files, **kwargs)
     if any(r.status != "added" or r.near_duplicates for r in results):
         console.print(render.add_results_table(results))
     counts = Counter(r.status for r in results)
@@ -117,50 +129,53 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
 @catalog.command("list")
 @_catalog_option
 @_filter_options
-@click.option("--sort", default="total_impulse_ns", show_default=True,
-              help="Column to sort by, e.g. total_impulse_ns, average_thrust_n, burn_time_s, designation, maker.")
+@click.option("--sort", default="impulse", show_default=True,
+              help="Column to sort by, as named in the table header: motor, maker, class, impulse, thrust, burn, "
+                   "dia, length, mass, check (or a JSON key such as total_impulse_ns).")
 @click.option("--desc", is_flag=True, help="Sort in descending order.")
+@_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units).")
-@click.option("--csv", "as_csv", is_flag=True, help="Print CSV (SI units).")
-def catalog_list(catalog_dir: str | None, sort: str, desc: bool, as_json: bool, as_csv: bool, **opts: Any) -> None:
+@click.option("--csv", "as_csv", is_flag=True, help="Print CSV in the display units (named in each column header).")
+def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | None, as_json: bool, as_csv: bool,
+                 **opts: Any) -> None:
     """List the motors in the catalog, filtered and sorted.
 
     \b
     Example:
-      motorlib catalog list --class D..G --diameter 29 --delay 6 --sort average_thrust_n
+      motorlib catalog list --class D..G --diameter 29mm --delay 6s --sort thrust
       motorlib catalog list --tag in-stock --json
     """
     from ..catalog.query import SORT_KEYS
+    from ..present.tables import CATALOG_SORT
 
-    if sort not in SORT_KEYS:
-        raise click.BadParameter(f"expected one of {', '.join(SORT_KEYS)}", param_hint="--sort")
+    key = CATALOG_SORT.get(sort.lower(), sort)
+    if key not in SORT_KEYS:
+        raise click.BadParameter(f"expected one of {', '.join(CATALOG_SORT)}", param_hint="--sort")
+    shown = display_units(units)
     cat = _open_catalog(catalog_dir)
-    rows = cat.rows(_filter(opts), sort=sort, descending=desc)
+    rows = cat.rows(_filter(opts), sort=key, descending=desc)
     if as_json:
         click.echo(json.dumps(rows, indent=2))
     elif as_csv:
-        import csv
-        import io
+        from ..present.csvout import rows_csv
 
-        buffer = io.StringIO()
         columns = [c for c in rows[0] if c != "findings"] if rows else []
-        writer = csv.DictWriter(buffer, columns, extrasaction="ignore")
-        writer.writeheader()
-        for row in rows:
-            writer.writerow({**row, "delays_s": " ".join(f"{d:g}" for d in row["delays_s"])})
-        click.echo(buffer.getvalue(), nl=False)
+        click.echo(rows_csv(rows, columns, shown), nl=False)
     else:
         from ..present import tables as render
 
-        _console().print(render.catalog_table(rows, f"{len(rows)} of {len(cat)} motor(s) in {cat.root}"))
+        console = _console()
+        console.print(render.catalog_table(rows, f"{len(rows)} of {len(cat)} motor(s) in {cat.root}", shown,
+                                           console.width))
 
 
 @catalog.command("show")
 @_catalog_option
 @click.argument("refs", nargs=-1, required=True)
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write the curve(s) to this PNG file.")
-def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str | None) -> None:
-    """Show motors by id, handle or designation: metadata, metrics, findings and the curve.
+@_units_option
+def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str | None, units: str | None) -> None:
+    """Show motors by id, handle or designation: metadata, provenance, metrics, findings and the curve.
 
     Several motors are also compared in one table, and --plot overlays their curves.
 
@@ -172,6 +187,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
     from ..motor.checks import check_record, metrics
     from ..files.curvefiles import CheckReport
 
+    shown = display_units(units)
     cat = _open_catalog(catalog_dir)
     console = _console()
     records = []
@@ -181,11 +197,13 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
         records.append((motor_id, record))
         report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0]['handle']}", True, record,
                              tuple(check_record(record, cat.settings)), metrics(record, cat.settings.burn_threshold))
-        console.print(render.check_details(report))
-        console.print(f"  thrust |{render.sparkline(record.time_s, record.thrust_n)}| {record.peak_thrust_n:.4g} N peak")
+        console.print(render.check_details(report, shown, record))
+        console.print(f"  thrust |{render.sparkline(record.time_s, record.thrust_n, min(60, console.width - 24))}| "
+                      f"{shown.precise(record.peak_thrust_n, 'force')} peak")
         console.print()
     if len(records) > 1:
-        console.print(render.catalog_table(cat.rows(_ids(*[i for i, _ in records])), "Comparison"))
+        console.print(render.catalog_table(cat.rows(_ids(*[i for i, _ in records])), "Comparison", shown,
+                                           console.width))
     if plot_path:
         from ..present.plots import curves_plot
 
@@ -266,7 +284,18 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     cat = _open_catalog(catalog_dir)
     ids = [cat.resolve(r) for r in refs] if refs else [r["motor_id"] for r in cat.rows(_filter(opts))]
     rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
-    written = export_records([(r["handle"], cat.get(r["motor_id"])) for r in rows], folder, fmt)
+    written, items = [], []
+    with _progress("exporting curves", len(rows)) as advance:
+        for r in rows:
+            item = (r["handle"], cat.get(r["motor_id"]))
+            if fmt == "json":  # one file with every motor, written at the end
+                items.append(item)
+            else:
+                written += export_records([item], folder, fmt)
+            if advance:
+                advance(1)
+    if fmt == "json" or not rows:
+        written += export_records(items, folder, fmt)
     _console().print(f"Exported {len(rows)} motor(s) to {len(written)} file(s) in {folder}")
 
 

@@ -8,7 +8,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options
+from .options import _metadata, _metadata_options, _units_option, display_units
 from .output import _console
 
 
@@ -21,9 +21,10 @@ from .output import _console
               help="Burn time starts and ends where thrust crosses this percentage of peak thrust.")
 @click.option("--thrust-tolerance", type=click.FloatRange(1.0, 100.0), default=20.0, show_default=True,
               help="Allowed difference, in percent, between labelled and computed average thrust.")
+@_units_option
 @_metadata_options
 def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_threshold: float,
-          thrust_tolerance: float, **opts: Any) -> None:
+          thrust_tolerance: float, units: str | None, **opts: Any) -> None:
     """Check thrust-curve files (our XML, or CSV with metadata options) and their labels.
 
     PATHS are files or folders (searched for .xml and .csv). For each curve it
@@ -35,7 +36,8 @@ def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_thre
     \b
     Example:
       motorlib check sample_curves/
-      motorlib check test3.csv --designation G40-7 --diameter 29mm --total-mass 120g --propellant-mass 60g
+      motorlib check test3.csv --designation G40-7 --diameter 29mm \\
+          --total-mass 120g --propellant-mass 60g
     """
     from ..motor.checks import CheckSettings
     from ..files.curvefiles import check_file, find_curve_files
@@ -53,11 +55,12 @@ def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_thre
         from ..present import tables as render
 
         console = _console()
+        shown = display_units(units)
         if details or (details is None and len(reports) == 1):
             for report in reports:
-                console.print(render.check_details(report))
+                console.print(render.check_details(report, shown))
         else:
-            console.print(render.check_summary_table(reports))
+            console.print(render.check_summary_table(reports, shown, console.width))
             for report in reports:
                 if any(f.severity != "note" for f in report.findings):
                     console.print(f"[bold]{render.escape(report.source)}[/bold]")

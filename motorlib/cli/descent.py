@@ -6,25 +6,29 @@ import json
 
 import click
 
-from .options import _Quantity
+from .options import _Quantity, _units_option, display_units
 from .output import _caution, _console
 
 
 @click.command()
-@click.option("--mass", "mass_kg", type=_Quantity("mass", "g"), help="Mass under the device; a bare number is g.")
-@click.option("--drag-area", "drag_area_m2", type=float, help="Cd·A of the device in m².")
-@click.option("--cd", "drag_coefficient", type=float, help="Drag coefficient of the device (with --diameter).")
-@click.option("--diameter", "diameter_m", type=_Quantity("length", "m"),
-              help="Device diameter (with --cd); a bare number is m (e.g. 0.6, 24in).")
-@click.option("--height", "height_m", type=_Quantity("length", "m"), help="Height fallen; a bare number is m.")
-@click.option("--fall-time", "fall_time_s", type=click.FloatRange(min=0, min_open=True),
-              help="Observed time to fall --height, in seconds (e.g. read off a launch video).")
-@click.option("--elevation", "elevation_m", type=_Quantity("length", "m"), default=0.0,
-              help="Pad elevation; the fall goes through the standard atmosphere above it. A bare number is m.")
-@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units; null for no value).")
+@click.option("--mass", "mass_kg", type=_Quantity("mass", bare=False, example="450g"),
+              help="Mass under the device, with a unit (e.g. 450g, 1.2kg, 16oz).")
+@click.option("--drag-area", "drag_area_m2", type=_Quantity("area"),
+              help="Cd·A of the device, e.g. 0.18m2 or 280in2; a bare number is m².")
+@click.option("--cd", "drag_coefficient", type=click.FloatRange(min=0, min_open=True),
+              help="Drag coefficient of the device (with --diameter).")
+@click.option("--diameter", "diameter_m", type=_Quantity("length"),
+              help="Device diameter (with --cd), e.g. 0.6m or 24in; a bare number is m.")
+@click.option("--height", "height_m", type=_Quantity("length"), help="Height fallen, e.g. 300m or 1000ft; a bare number is m.")
+@click.option("--fall-time", "fall_time_s", type=_Quantity("time"),
+              help="Observed time to fall --height, e.g. 9.5s (read off a launch video); a bare number is s.")
+@click.option("--elevation", "elevation_m", type=_Quantity("length"), default=None,
+              help="Site elevation for the air density (standard atmosphere), e.g. 120m or 4000ft; default 0.")
+@_units_option
+@click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
 def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient: float | None,
-            diameter_m: float | None, height_m: float | None, fall_time_s: float | None, elevation_m: float,
-            as_json: bool) -> None:
+            diameter_m: float | None, height_m: float | None, fall_time_s: float | None, elevation_m: float | None,
+            units: str | None, as_json: bool) -> None:
     """Recovery arithmetic: terminal speed and fall time, or the drag area that explains an observed fall.
 
     Forward: --mass and --drag-area (or --cd with --diameter) give the terminal
@@ -37,8 +41,9 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
 
     \b
     Examples:
-      motorlib descent --mass 450g --cd 0.8 --diameter 0.6 --height 300
-      motorlib descent --height 82 --fall-time 9.5 --mass 15g
+      motorlib descent --mass 450g --cd 0.8 --diameter 0.6m --height 300m
+      motorlib descent --height 82m --fall-time 9.5s --mass 15g
+      motorlib descent --mass 1lb --drag-area 280in2 --units imperial
     """
     # --- issue 10 (defect 6): falls integrate through the atmosphere; JSON carries null, never Infinity/NaN ---
     import math
@@ -46,6 +51,10 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
     from ..flight.atmosphere import Site
     from ..flight.descent import drag_area_from_fall_m2, fall_through_air, pad_terminal_speed_m_s
 
+    if fall_time_s is not None and not fall_time_s > 0:
+        raise click.BadParameter("must be above 0 s", param_hint="--fall-time")
+    if elevation_m is None:
+        elevation_m = 0.0
     if drag_area_m2 is None and drag_coefficient is not None and diameter_m is not None:
         drag_area_m2 = drag_coefficient * math.pi * diameter_m**2 / 4.0
     elif drag_area_m2 is None and (drag_coefficient is not None or diameter_m is not None):
@@ -79,16 +88,10 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
         finite = {k: (v if v is None or math.isfinite(v) else None) for k, v in result.items()}
         click.echo(json.dumps(finite, indent=2, allow_nan=False))
         return
+    from ..present.tables import descent_text
+
     console = _console()
-    console.print(f"Air density at the pad ({elevation_m:g} m, standard atmosphere): "
-                  f"{result['density_kg_m3']:.4g} kg/m³")
-    v_t = result["terminal_speed_m_s"]
-    console.print(f"Terminal speed at the pad: {v_t:.3g} m/s" if v_t is not None and math.isfinite(v_t)
-                  else "Terminal speed: none (no drag)")
-    if "fall_time_s" in result:
-        console.print(f"Fall of {result['height_m']:g} m from rest through the atmosphere: "
-                      f"{result['fall_time_s']:.4g} s, landing at {result['landing_speed_m_s']:.3g} m/s")
-    if "drag_area_m2" in result:
-        console.print(f"Drag area Cd·A: {result['drag_area_m2']:.4g} m²")
+    console.print(descent_text(result, display_units(units), elevation_m=elevation_m, height_m=height_m,
+                               fall_time_s=fall_time_s, drag_area_m2=drag_area_m2), end="")
     _caution(console)
     # --- end of issue 10 (defect 6) ---

@@ -7,7 +7,7 @@ from typing import Any
 
 import click
 
-from .options import _catalog_or_samples, _open_catalog, _Quantity
+from .options import _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
 from .output import _EPILOG, _caution, _console
 
 
@@ -18,18 +18,19 @@ from .output import _EPILOG, _caution, _console
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
                    "else the bundled sample curves).")
-@click.option("--delay", "delay_s", type=float, help="Ejection delay to use in seconds (default: the listed delay "
-                                                      "closest to the optimal one).")
-@click.option("--ballast", "ballast_kg", type=_Quantity("mass", "g"), default=None,
-              help="Mass added to the airframe; a bare number is g (e.g. 25, 1.2oz).")
-@click.option("--units", type=click.Choice(["si", "imperial"]), default="si", show_default=True,
-              help="Units of the table.")
+@click.option("--delay", "delay_s", type=_Quantity("time"),
+              help="Ejection delay to use, e.g. 6s; a bare number is s (default: the listed delay closest to the "
+                   "optimal one).")
+@click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g"), default=None,
+              help="Mass added to the airframe, with a unit (e.g. 25g, 1.2oz).")
+@_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
-@click.option("--csv", "csv_path", type=click.Path(dir_okay=False), help="Write the trajectory to this CSV file.")
+@click.option("--csv", "csv_path", type=click.Path(dir_okay=False),
+              help="Write the trajectory to this CSV file, in the display units (named in each column header).")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write altitude, speed and acceleration "
                                                                            "against time to this PNG file.")
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
-        units: str, as_json: bool, csv_path: str | None, plot_path: str | None) -> None:
+        units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None) -> None:
     """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
 
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
@@ -38,15 +39,19 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     \b
     Example:
-      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8 --plot f29.png
-      motorlib fly my-rocket.toml --motor tests/static-3.xml --delay 6 --json
+      motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8 \\
+          --plot f29.png
+      motorlib fly my-rocket.toml --motor static-3.xml --delay 8s --units imperial
+      motorlib fly my-rocket.toml --motor G59-10 --ballast 25g --csv g59.csv
     """
     import numpy as np
 
     from ..files.airframe_toml import load_airframe
     from ..flight.integrate import simulate
-    from ..flight.rules import flight_warnings
+    from ..flight.rules import LaunchRules, flight_warnings
 
+    shown = display_units(units)
+    delay_s = None if delay_s is None else float(delay_s)
     frame = load_airframe(airframe_file)
     motor = _load_motor(motor_ref, catalog_dir)
     wanted = None if delay_s is None else np.array([delay_s])
@@ -60,12 +65,12 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
     written = []
     if csv_path:
-        written.append(_write_trajectory_csv(results.trajectories[0], csv_path))
+        written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))
     if plot_path:
         from ..present.plots import flight_plot
 
         written.append(flight_plot(results.trajectories[0], summary, f"{frame.name} with {motor.designation}",
-                                   plot_path))
+                                   plot_path, shown))
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
@@ -75,9 +80,10 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     console = _console()
     console.print(render.flight_table(summary, f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
-                                      units))
+                                      shown))
     if warnings:
-        console.print(render.warnings_text(warnings), end="")
+        console.print(render.warnings_text(warnings, summary, LaunchRules(), shown, frame.launch.wind_speed_m_s),
+                      end="")
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)
@@ -108,15 +114,11 @@ def _record_for_delay(motor: Any, delay_s: float | None) -> Any:
     return motor
 
 
-def _write_trajectory_csv(trajectory: dict[str, Any], path: str) -> Any:
-    import io
-
+def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any) -> Any:
     from ..files.fsio import write_atomic
+    from ..present.csvout import rows_csv
 
-    buffer = io.StringIO()
     names = ["time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2"]
-    buffer.write(",".join(names + ["phase"]) + "\n")
-    for row in range(len(trajectory["time_s"])):
-        values = [repr(float(trajectory[n][row])) for n in names]
-        buffer.write(",".join(values + ["descent" if trajectory["descent"][row] else "ascent"]) + "\n")
-    return write_atomic(path, buffer.getvalue().encode())
+    rows = [{**{n: float(trajectory[n][row]) for n in names},
+             "phase": "descent" if trajectory["descent"][row] else "ascent"} for row in range(len(trajectory["time_s"]))]
+    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode())

@@ -26,9 +26,10 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
 
     \b
     Example:
-      motorlib import stand-03.csv -o F30-6.xml --designation F30-6 --maker "Our team" \\
-          --diameter 24 --length 70 --total-mass 48g --propellant-mass 22g --delays 4,6,8 \\
-          --source-kind own-firing --test-date 2026-11-14
+      motorlib import stand-03.csv -o F30-6.xml --designation F30-6 \\
+          --maker "Our team" --diameter 24mm --length 70mm --total-mass 48g \\
+          --propellant-mass 22g --delays 4,6,8 --source-kind own-firing \\
+          --test-date 2026-11-14
     """
     from ..present import tables as render
     from ..motor.checks import check_record, findings_from_problems

@@ -2,7 +2,8 @@
 
 ``cli/`` is the only package that imports click. This module holds the group :func:`main` (the console-script
 entry point) with its version option and safety epilog, and registers the commands, one module each:
-``check``, ``import`` (:mod:`.importing`), ``fly``, ``descent``, ``catalog``, ``match``, ``demo`` and ``reduce``.
+``check``, ``import`` (:mod:`.importing`), ``fly``, ``descent``, ``catalog``, ``match``, ``demo``, ``reduce`` and
+``new-airframe``.
 Shared option types and catalog lookup live in :mod:`.options`, consoles and the caution in :mod:`.output`.
 Library errors reach the terminal in one place, :class:`.group._Group`, as ``Error: path:line: field: problem``
 with exit 1. Command modules import only click and the standard library at start-up; each command imports
@@ -22,25 +23,35 @@ from .fly import fly
 from .group import _Group
 from .importing import import_curve
 from .match import match
+from .new_airframe import new_airframe
+from .options import _units_option
 from .output import _EPILOG
 from .reduce import reduce
 
 
 @click.group(cls=_Group, epilog=_EPILOG, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="motorlib")
-def main() -> None:
+@_units_option
+def main(units: str | None) -> None:
     """motorlib: thrust-curve catalog, checks and flight tools for rocket flyers.
+
+    Quantities take units (800ft, 29mm, 25g, 9.5s); a bare number is the SI
+    unit, and options for motor sizes and small masses ask for a unit. Set
+    the display units once with --units, $MOTORLIB_UNITS or 'units =
+    "imperial"' in the user config file (e.g. ~/.config/motorlib/config.toml).
 
     \b
     Examples:
-      motorlib demo                            rank the bundled motors for a demo rocket
+      motorlib demo                   # rank the bundled motors for a demo rocket
+      motorlib new-airframe rocket.toml      # start an airframe file to edit
       motorlib match my-rocket.toml --target 300 --ceiling 450
-      motorlib check sample_curves/            check every bundled curve
+      motorlib --units imperial match my-rocket.toml --target 1000ft
+      motorlib check sample_curves/             # check every bundled curve
       motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8
-      motorlib check stand.csv --designation F30-6 --diameter 24 --json
-      motorlib import stand.csv -o F30.xml --designation F30-6 --maker "Our team"
+      motorlib check stand.csv --designation F30-6 --diameter 24mm --json
+      motorlib import stand.csv -o F30.xml --designation F30-6
     """
 
 
-for _command in (check, import_curve, fly, descent, catalog, match, demo, reduce):
+for _command in (check, import_curve, fly, descent, catalog, match, demo, reduce, new_airframe):
     main.add_command(_command)

@@ -7,33 +7,34 @@ from typing import Any
 
 import click
 
-from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity
+from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
 from .output import _EPILOG, _console
 
 
 def _match_options(func: Any) -> Any:
     options = [
-        click.option("--target", "target_m", type=_Quantity("length", "m"),
-                     help="Aim altitude above the pad; a bare number is m (e.g. 250, 800ft)."),
-        click.option("--ceiling", "ceiling_m", type=_Quantity("length", "m"),
-                     help="Never exceed this altitude (the field's limit); a bare number is m."),
+        click.option("--target", "target_m", type=_Quantity("length"),
+                     help="Aim altitude above the pad, e.g. 250m or 800ft; a bare number is m."),
+        click.option("--ceiling", "ceiling_m", type=_Quantity("length"),
+                     help="Never exceed this altitude (the field's limit), e.g. 600m or 2000ft; a bare number is m."),
         click.option("--max-class", type=click.Choice(["1/8A", "1/4A", "1/2A", *"ABCDEFGHIJKLMNO"]),
                      help="Highest impulse class you may fly (your certification)."),
-        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed", "m/s"), default="15 m/s",
-                     show_default=True, help="Minimum rail exit speed (common practice, no published source)."),
+        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed"), default=None,
+                     help="Minimum rail exit speed, e.g. 15m/s or 50ft/s (default 15 m/s: common practice, "
+                          "no published source)."),
         click.option("--min-thrust-to-weight", type=float, default=5.0, show_default=True,
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
-        click.option("--delay-slack", type=float, default=2.0, show_default=True,
-                     help="How far, in s, the chosen delay may be from the optimal one."),
+        click.option("--delay-slack", type=_Quantity("time"), default=None,
+                     help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
         click.option("--allow-smaller-motors", is_flag=True, help="Narrower motors fit with an adapter."),
         click.option("--tag", help="Only motors with this catalog tag (e.g. the ones in stock)."),
         click.option("--top", type=click.IntRange(1), help="Show only the first N candidates."),
         click.option("--show-rejected", is_flag=True, help="Also list the motors that do not fit."),
         click.option("--ballast", is_flag=True, help="Solve the nose weight that brings each passing motor to the target."),
-        click.option("--units", type=click.Choice(["si", "imperial"]), default="si", show_default=True,
-                     help="Units of the table."),
+        _units_option,
         click.option("--json", "as_json", is_flag=True, help="Print {airframe, conditions, candidates} as JSON (SI)."),
-        click.option("--csv", "as_csv", is_flag=True, help="Print the candidates as CSV (SI)."),
+        click.option("--csv", "as_csv", is_flag=True,
+                     help="Print the candidates as CSV, in the display units (named in each column header)."),
         click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
     ]
@@ -48,14 +49,16 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     from ..matching.rank import MatchSettings, rank
     from ..flight.rules import LaunchRules
 
+    units = display_units(opts.get("units"))
     frame = load_airframe(airframe_file)
+    rules = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
+    if opts["min_rail_exit"] is not None:
+        rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
+    slack = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
     try:
-        settings = MatchSettings(
-            target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
-            rules=LaunchRules(min_rail_exit_speed_m_s=opts["min_rail_exit"],
-                              min_liftoff_thrust_to_weight=opts["min_thrust_to_weight"]),
-            delay_slack_s=opts["delay_slack"], allow_smaller_motors=opts["allow_smaller_motors"],
-            ballast=opts["ballast"])
+        settings = MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
+                                 rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
+                                 ballast=opts["ballast"], **slack)
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
     rows = cat.rows(CatalogFilter(tag=opts["tag"]))
@@ -67,33 +70,33 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     if opts["plot_path"]:
         from ..present.plots import match_plot
 
-        written = match_plot(result, opts["plot_path"])
+        written = match_plot(result, opts["plot_path"], units)
     if opts["as_json"]:
         click.echo(json.dumps({"airframe": result.airframe, "conditions": conditions,
                                "candidates": result.candidates}, indent=2))
         return
     if opts["as_csv"]:
-        import csv
-        import io
+        from ..present.csvout import rows_csv
+        from ..present.messages import reason_text
 
-        buffer = io.StringIO()
-        columns = [k for k in result.candidates[0] if not isinstance(result.candidates[0][k], list)] + ["reasons"]
-        columns = [c for c in columns if c not in ("reason_codes", "ballast_reasons")]
-        writer = csv.DictWriter(buffer, columns, extrasaction="ignore")
-        writer.writeheader()
-        for c in result.candidates:
-            writer.writerow({**c, "reasons": "; ".join(c["reasons"])})
-        click.echo(buffer.getvalue(), nl=False)
+        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes")
+        columns = [k for k in result.candidates[0] if k not in skip] + ["reasons"]
+        rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, result.conditions, units)
+                                           for code, text in zip(c["reason_codes"], c["reasons"]))}
+                for c in result.candidates]
+        click.echo(rows_csv(rows, columns, units), nl=False)
         return
     from ..present import tables as render
 
     console = _console()
-    console.print(render.match_table(result, opts["units"], opts["top"], opts["show_rejected"], opts["ballast"]))
-    console.print(render.match_reasons(result, opts["top"], opts["show_rejected"]), end="")
+    console.print(render.match_table(result, units, opts["top"], opts["show_rejected"], opts["ballast"],
+                                     console.width))
+    console.print(render.match_legend(result, opts["top"], opts["show_rejected"]))
+    console.print(render.match_reasons(result, units, opts["top"], opts["show_rejected"]), end="")
     rejected = sum(not c["fits"] for c in result.candidates)
     if rejected and not opts["show_rejected"]:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
-    console.print(render.conditions_text(result))
+    console.print(render.conditions_text(result, units, frame))
     console.print(f"Catalog: {render.escape(str(cat.root))}")
     if written:
         console.print(f"Wrote {render.escape(str(written))}")
@@ -117,7 +120,9 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
 
     \b
     Example:
-      motorlib match sample_curves/airframes/quibble-41.toml --target 400 --ceiling 600
-      motorlib match rocket.toml --target 800ft --max-class G --tag in-stock --ballast --units imperial
+      motorlib match sample_curves/airframes/quibble-41.toml --target 400 \\
+          --ceiling 600
+      motorlib match my-rocket.toml --target 1300ft --max-class G --ballast \\
+          --allow-smaller-motors --units imperial
     """
     _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)

@@ -13,10 +13,17 @@ from .output import _err_console
 
 
 class _Quantity(click.ParamType):
-    """A click type for quantities such as ``29mm`` or ``0.85 oz``; bare numbers take ``default_unit``."""
+    """A click type for quantities such as ``29mm``, ``0.85 oz`` or ``9.5s``.
 
-    def __init__(self, kind: str, default_unit: str) -> None:
-        self.kind, self.default_unit = kind, default_unit
+    Bare numbers follow one rule on the command line and in airframe files: a bare number is the SI unit
+    (m, kg, s, m/s, m²). Where the everyday unit is not the SI one (motor sizes in mm, small masses in g) a
+    bare number would mislead (``--ballast 25`` would be 25 kg), so those options pass ``bare=False`` and
+    refuse it, asking for a unit. The value keeps the text it was given as (a
+    :class:`~motorlib.units.Quantity`), so that reports echo the user's own numbers.
+    """
+
+    def __init__(self, kind: str, bare: bool = True, example: str = "") -> None:
+        self.kind, self.bare, self.example = kind, bare, example
         self.name = f"{kind}"
 
     def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> float:
@@ -24,11 +31,98 @@ class _Quantity(click.ParamType):
             return value
         from ..units import parse_quantity
 
+        name = param.name if param else "value"
+        text = str(value).strip()
+        if not self.bare and _is_bare_number(text):
+            self.fail(f"{text!r} has no unit; give one, e.g. {self.example or _UNIT_EXAMPLES[self.kind]} "
+                      "(a bare number would mean the SI unit here)", param, ctx)
         try:
-            return parse_quantity(value, self.kind, field=param.name if param else "value",
-                                  default_unit=self.default_unit)
+            return parse_quantity(value, self.kind, field=name, keep_text=True)
         except QuantityError as exc:
             self.fail(exc.problem, param, ctx)
+
+
+_UNIT_EXAMPLES = {"length": "24mm or 0.95in", "mass": "25g or 0.9oz", "time": "6s", "speed": "15m/s",
+                  "area": "0.05m2 or 78in2"}
+
+
+def _is_bare_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+_UNITS_HELP = ("Display units, metric or imperial (default: $MOTORLIB_UNITS, else 'units' in the user config "
+               "file, else metric). JSON stays SI.")
+
+
+def _units_option(func: Any) -> Any:
+    """``--units metric|imperial`` on a command; resolved by :func:`display_units`."""
+    return click.option("--units", "units", type=click.Choice(["metric", "imperial", "si"], case_sensitive=False),
+                        default=None, metavar="metric|imperial", help=_UNITS_HELP)(func)
+
+
+def config_file() -> Any:
+    """The user config file in the platform's config folder, e.g. ``~/.config/motorlib/config.toml`` on Linux.
+
+    It may hold ``units = "imperial"`` (or ``"metric"``). Only the command line reads it; the library reads no
+    configuration.
+    """
+    import os
+    from pathlib import Path
+
+    if sys.platform == "win32":
+        base = os.environ.get("APPDATA") or os.path.expanduser("~\\AppData\\Roaming")
+    elif sys.platform == "darwin":
+        base = os.path.expanduser("~/Library/Application Support")
+    else:
+        base = os.environ.get("XDG_CONFIG_HOME") or os.path.expanduser("~/.config")
+    return Path(base) / "motorlib" / "config.toml"
+
+
+_CONFIG_KEYS = ("units",)
+
+
+def _config() -> dict[str, Any]:
+    """The user config file's settings ({} when there is none); a broken file is a usage error naming it."""
+    import tomllib
+
+    path = config_file()
+    try:
+        with open(path, "rb") as handle:
+            data = tomllib.load(handle)
+    except FileNotFoundError:
+        return {}
+    except (OSError, tomllib.TOMLDecodeError) as exc:
+        raise click.UsageError(f"{path}: cannot read the config file: {exc}") from None
+    unknown = sorted(set(data) - set(_CONFIG_KEYS))
+    if unknown:
+        raise click.UsageError(f"{path}: {unknown[0]}: unknown key; expected one of {', '.join(_CONFIG_KEYS)}")
+    return data
+
+
+def display_units(value: str | None = None) -> Any:
+    """The display units in force: this command's ``--units``, else the group's ``motorlib --units``, else
+    ``$MOTORLIB_UNITS``, else ``units`` in :func:`config_file`, else metric."""
+    import os
+
+    from ..present.display import DisplayUnits
+
+    ctx = click.get_current_context(silent=True)
+    while value is None and ctx is not None:
+        value = ctx.params.get("units")
+        ctx = ctx.parent
+    source = "--units"
+    if value is None and os.environ.get("MOTORLIB_UNITS"):
+        value, source = os.environ["MOTORLIB_UNITS"], "MOTORLIB_UNITS"
+    if value is None:
+        value, source = _config().get("units"), f"{config_file()}: units"
+    try:
+        return DisplayUnits(value or "metric")
+    except ValueError as exc:
+        raise click.UsageError(f"{source}: {exc}") from None
 
 
 def _delays(ctx: click.Context, param: click.Parameter, value: str | None) -> tuple[float, ...]:
@@ -54,14 +148,14 @@ def _metadata_options(func: Any) -> Any:
         click.option("--designation", help="Label as printed on the motor, e.g. C6-5 or 1/2A3-2T. "
                                            "CSV only; default: the file name."),
         click.option("--maker", default="", help="Maker name (CSV only)."),
-        click.option("--diameter", "diameter_m", type=_Quantity("length", "mm"),
-                     help="Case diameter; a bare number is mm (e.g. 18, 0.5in)."),
-        click.option("--length", "length_m", type=_Quantity("length", "mm"),
-                     help="Case length; a bare number is mm (e.g. 70, 2.75in)."),
-        click.option("--total-mass", "total_mass_kg", type=_Quantity("mass", "g"),
-                     help="Loaded motor mass; a bare number is g (e.g. 24, 0.85oz)."),
-        click.option("--propellant-mass", "propellant_mass_kg", type=_Quantity("mass", "g"),
-                     help="Propellant mass; a bare number is g (e.g. 12.5)."),
+        click.option("--diameter", "diameter_m", type=_Quantity("length", bare=False, example="24mm"),
+                     help="Case diameter with a unit, e.g. 18mm or 0.5in."),
+        click.option("--length", "length_m", type=_Quantity("length", bare=False, example="70mm"),
+                     help="Case length with a unit, e.g. 70mm or 2.75in."),
+        click.option("--total-mass", "total_mass_kg", type=_Quantity("mass", bare=False, example="24g"),
+                     help="Loaded motor mass with a unit, e.g. 24g or 0.85oz."),
+        click.option("--propellant-mass", "propellant_mass_kg", type=_Quantity("mass", bare=False, example="12.5g"),
+                     help="Propellant mass with a unit, e.g. 12.5g."),
         click.option("--delays", "delays_s", callback=_delays, metavar="S[,S...]",
                      help="Available ejection delays in seconds, e.g. 3,5,7."),
         click.option("--plugged", is_flag=True, help="No ejection charge (plugged or booster)."),

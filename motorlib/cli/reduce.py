@@ -7,7 +7,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options
+from .options import _metadata, _metadata_options, _units_option, display_units
 from .output import _console
 
 
@@ -26,11 +26,12 @@ from .output import _console
 @click.option("--points", type=click.IntRange(8, 500), default=48, show_default=True,
               help="Most points in the reduced curve.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write raw, filtered and reduced curves to this PNG.")
+@_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
 @_metadata_options
 def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bool, combine: bool, scale: float | None,
-           offset: float, cutoff: str | None, detrend: bool, points: int, plot_path: str | None, as_json: bool,
-           **opts: Any) -> None:
+           offset: float, cutoff: str | None, detrend: bool, points: int, plot_path: str | None, units: str | None,
+           as_json: bool, **opts: Any) -> None:
     """Turn raw load-cell logs from a test stand into a checked thrust curve.
 
     A log is a CSV with a time column and a force column, in any unit the
@@ -43,9 +44,11 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     \b
     Example:
-      motorlib reduce firing-1.csv --designation F30-6 --diameter 24 --length 70 \\
-          --total-mass 48g --propellant-mass 22g --delays 6 -o F30-6.xml --plot firing-1.png
-      motorlib reduce f1.csv f2.csv f3.csv --combine --designation F30-6 -o F30-6-mean.xml
+      motorlib reduce firing-1.csv --designation F30-6 --diameter 24mm \\
+          --length 70mm --total-mass 48g --propellant-mass 22g --delays 6 \\
+          -o F30-6.xml --plot firing-1.png
+      motorlib reduce f1.csv f2.csv f3.csv --combine --designation F30-6 \\
+          -o F30-6-mean.xml
     """
     from dataclasses import replace
     from pathlib import Path
@@ -86,13 +89,14 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         click.echo(json.dumps({"logs": summary, "combined": spread, **report.as_dict(),
                                "written": [str(p) for p in written]}, indent=2, default=float))
         return
-    _print_reduction(summary, spread, report, written)
+    _print_reduction(summary, spread, report, written, display_units(units))
 
 
 def _cutoff_hz(cutoff: str | None) -> float | None:
     """The ``--cutoff`` frequency in Hz: None for the default, 0.0 for 'none' (no filter)."""
     try:
-        return None if cutoff is None else (0.0 if cutoff.lower() == "none" else float(cutoff))
+        text = None if cutoff is None else cutoff.strip().lower().removesuffix("hz").strip()
+        return None if text is None else (0.0 if text == "none" else float(text))
     except ValueError:
         raise click.BadParameter("expected a frequency in Hz or 'none'", param_hint="--cutoff") from None
 
@@ -121,11 +125,14 @@ def _provenance_note(reductions: list[tuple[str, Any]], combine: bool) -> str:
     """The provenance note naming the logs and how the first one was reduced."""
     from pathlib import Path
 
-    first = reductions[0][1]
-    return (f"Reduced by motorlib from {', '.join(Path(p).name for p, _ in reductions)}: baseline {first.baseline_n:.4g} N, "
-            f"noise {first.noise_n:.3g} N, {first.sample_rate_hz:.4g} Hz, "
-            + (f"low-pass {first.cutoff_hz:g} Hz" if first.cutoff_hz else "no filter")
-            + f", events at {first.threshold_n:.3g} N." + (f" Mean of {len(reductions)} firings." if combine else ""))
+    from ..present.display import DisplayUnits
+
+    first, u = reductions[0][1], DisplayUnits()
+    return (f"Reduced by motorlib from {', '.join(Path(p).name for p, _ in reductions)}: baseline "
+            f"{u.precise(first.baseline_n, 'force')}, noise {u.precise(first.noise_n, 'force', 2)}, "
+            f"{u.plain(first.sample_rate_hz)} Hz, "
+            + (f"low-pass {u.plain(first.cutoff_hz)} Hz" if first.cutoff_hz else "no filter")
+            + f", events at {u.precise(first.threshold_n, 'force', 2)}." + (f" Mean of {len(reductions)} firings." if combine else ""))
 
 
 def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force: bool) -> Any:
@@ -150,22 +157,13 @@ def _log_summary(reductions: list[tuple[str, Any]]) -> list[dict[str, Any]]:
 
 
 def _print_reduction(summary: list[dict[str, Any]], spread: dict[str, Any] | None, report: Any,
-                     written: list[Any]) -> None:
+                     written: list[Any], units: Any) -> None:
     """The report for people: one line per log, the spread of several firings, the checks, the files written."""
     from ..present import tables as render
 
     console = _console()
-    for entry in summary:
-        console.print(f"[bold]{render.escape(entry['file'])}[/bold]: {entry['sample_rate_hz']:.4g} Hz, baseline "
-                      f"{entry['baseline_n']:.4g} N, noise {entry['noise_n']:.3g} N, "
-                      + (f"low-pass {entry['cutoff_hz']:g} Hz, " if entry["cutoff_hz"] else "no filter, ")
-                      + f"ignition at {entry['ignition_time_s']:.4g} s, burnout at {entry['burnout_time_s']:.4g} s, "
-                      f"{entry['points']} points (impulse within {100 * entry['reduction_impulse_error']:.3f} %)")
-    if spread:
-        ti, bt = spread["total_impulse_ns"], spread["event_burn_time_s"]
-        console.print(f"{spread['n_firings']} firings: total impulse {ti['mean']:.4g} ± {ti['std']:.2g} N·s "
-                      f"({ti['min']:.4g}-{ti['max']:.4g}), burn {bt['mean']:.3g} ± {bt['std']:.2g} s")
-    console.print(render.check_details(report))
+    console.print(render.reduction_text(summary, spread, units), end="")
+    console.print(render.check_details(report, units, report.record))
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
 

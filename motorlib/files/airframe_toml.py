@@ -1,7 +1,9 @@
 """Reading airframe files (TOML, documented in ``data_schema/AIRFRAME.md``).
 
 Quantities are a plain SI number or a string with a unit (``"310 g"``,
-``"1.64 in"``, ``"800 ft"``, ``"15 degC"``). Unknown keys are refused so that a
+``"1.64 in"``, ``"800 ft"``, ``"15 degC"``, ``"78 in2"``); each parsed value is a
+:class:`~motorlib.units.Quantity` that remembers the text, so that reports can
+echo the file's own numbers. Unknown keys are refused so that a
 typo never silently falls back to a default. Errors name the file and the key
 and say what kind of quantity was expected.
 """
@@ -17,9 +19,9 @@ from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
 from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition
 from ..errors import QuantityError, SimulationInputError
-from ..units import parse_quantity
+from ..units import INCH_OF_MERCURY_PA, parse_quantity
 
-__all__ = ["airframe_from_dict", "load_airframe"]
+__all__ = ["airframe_from_dict", "airframe_template", "load_airframe"]
 
 _SECTIONS = {
     "": {"name", "airframe", "launch", "recovery", "geometry"},
@@ -32,7 +34,7 @@ _SECTIONS = {
     "geometry.fins": {"count", "root_chord", "tip_chord", "span", "sweep", "thickness", "offset", "profile"},
     "geometry.transition": {"fore_diameter", "aft_diameter", "length", "position"},
 }
-_PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": 3386.389}
+_PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
 def load_airframe(path: str | os.PathLike[str]) -> Airframe:
@@ -65,7 +67,7 @@ def _quantity(source: str, table: dict[str, Any], section: str, key: str, kind: 
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
         raise SimulationInputError(source, name, f"expected a {kind}, got {value!r}")
     try:
-        return parse_quantity(value, kind, field=name)
+        return parse_quantity(value, kind, field=name, keep_text=True)  # messages echo the file's own words
     except QuantityError as exc:
         raise SimulationInputError(source, name, exc.problem) from None
 
@@ -247,10 +249,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             if isinstance(rcd, bool) or not isinstance(rcd, (int, float)) or rcd <= 0:
                 raise SimulationInputError(source, "recovery.drag_coefficient", f"expected a positive number, got {rcd!r}")
             if "area" in recovery_t:
-                surface = recovery_t["area"]
-                if isinstance(surface, bool) or not isinstance(surface, (int, float)):
-                    raise SimulationInputError(source, "recovery.area", f"expected an area in m² (a number), got {surface!r}")
-                area = float(rcd) * float(surface)
+                area = float(rcd) * _quantity(source, recovery_t, "recovery", "area", "area")
             else:
                 diameter = _quantity(source, recovery_t, "recovery", "diameter", "length", required=True)
                 area = float(rcd) * math.pi * diameter**2 / 4.0
@@ -271,3 +270,54 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             recovery=recovery,
             geometry=geometry,
         )
+
+
+_TEMPLATE = """\
+# Airframe file for motorlib ({system} example values): the rocket without its motor, where it flies and
+# how it comes back. Replace every value with your own. Each quantity takes a unit ("310 g", "1.64 in",
+# "800 ft", "15 degC"); a bare number means the SI unit (m, kg, s, m/s, m²). Keys are described in
+# data_schema/AIRFRAME.md; a key motorlib does not know is refused, so a typo never passes silently.
+# Try it: motorlib fly {file} --motor F29-8      or      motorlib match {file} --target {target}
+
+name = "My rocket"              # shown in reports
+
+[airframe]
+mass = "{mass}"                 # empty: without the motor (weigh it)
+diameter = "{diameter}"         # body tube outside diameter: the drag reference
+drag_coefficient = 0.55         # constant Cd on that area; 0.45-0.75 is typical for a sport model
+# drag_table = [[0.0, 0.5], [0.8, 0.52], [1.05, 0.78], [2.0, 0.55]]   # or Cd against Mach, instead
+mount_diameter = "29 mm"        # motor mount tube: only motors of this size are matched
+mount_length = "{mount_length}"         # the longest motor that fits
+
+[launch]
+rail_length = "{rail}"          # travel along the rail or rod before the rocket is free
+rail_angle = "5 deg"            # tilt from vertical, away from the crowd and downwind; 0 to 30 deg
+elevation = "{elevation}"       # the pad above sea level (air density)
+# temperature = "{temperature}" # measured at the pad; default: the standard atmosphere
+# pressure = "1013 hPa"         # station pressure at the pad; default: the standard atmosphere
+wind_speed = "{wind}"           # at 10 m above the pad; stronger winds need a faster rail exit
+
+[recovery]                      # leave this section out for a rocket without recovery
+device = "parachute"            # parachute | streamer | none
+deploy = "ejection"             # ejection (the motor's delay) | apogee | altitude (electronics)
+drag_coefficient = 0.8          # Cd of the device on the area below (about 0.8 for a round canopy)
+diameter = "{chute}"            # canopy diameter; or for a streamer: area = "0.05 m2"
+# deploy_altitude = "{deploy}"  # with deploy = "altitude": height above the pad on the way down
+"""
+
+_TEMPLATE_VALUES = {
+    "metric": dict(target="400m", mass="310 g", diameter="41.6 mm", mount_length="200 mm", rail="1.5 m",
+                   elevation="100 m", temperature="15 degC", wind="3 m/s", chute="0.6 m", deploy="150 m"),
+    "imperial": dict(target="1300ft", mass="11 oz", diameter="1.64 in", mount_length="7.9 in", rail="6 ft",
+                     elevation="330 ft", temperature="59 degF", wind="7 mph", chute="24 in", deploy="500 ft"),
+}
+
+
+def airframe_template(system: str = "metric", file: str = "my-rocket.toml") -> str:
+    """A commented airframe file to start from, with example values in ``metric`` or ``imperial`` units.
+
+    It loads as it is (:func:`load_airframe`), so a new user can fly it at once and then edit it.
+    """
+    if system not in _TEMPLATE_VALUES:
+        raise ValueError(f"`system` must be metric or imperial, got {system!r}")
+    return _TEMPLATE.format(system=system, file=file, **_TEMPLATE_VALUES[system])

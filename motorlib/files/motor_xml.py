@@ -3,9 +3,11 @@
 The only module that knows the element names. Reading is defensive: a size cap,
 no DTD at all (so no entity expansion and no external entities), no network,
 then XSD validation, then the record's own invariants; every error names the
-file, the line and the field. Writing is atomic and exact: floats are written
-with ``repr`` (the shortest text that reads back to the same double) and
-read(write(r)) == r for every record.
+file, the line and the field. Writing is atomic and byte-stable: samples and
+delays are written to ten significant digits (far finer than any test stand;
+arithmetic noise such as 0.0009999999999998899 becomes 0.001), hardware values
+with the shortest text that reads back to the same double, and
+write(read(write(r))) == write(r) for every record.
 
 Versions: files of format 1.0 and 1.1 (and any later 1.x the schema accepts)
 are read; new files always declare 1.1. What changed in 1.1 (FORMAT.md):
@@ -233,6 +235,22 @@ def _parse_samples(element: etree._Element, source: str) -> tuple[np.ndarray, np
     return np.array(times), np.array(thrusts), lines
 
 
+_DIGITS: Final = 10  # significant digits of samples and delays: a load cell resolves about 5
+
+
+def _short(value: float) -> str:
+    """``value`` to ten significant digits, as the shortest text that reads back to that rounded double."""
+    return repr(float(f"{float(value):.{_DIGITS}g}"))
+
+
+def _sample_rows(time_s: np.ndarray, thrust_n: np.ndarray) -> list[str]:
+    """The sample rows; times keep full precision where ten digits would merge two of them."""
+    times = [_short(t) for t in time_s]
+    if any(float(b) <= float(a) for a, b in zip(times, times[1:])):
+        times = [repr(float(t)) for t in time_s]
+    return [f"    {t} {_short(f)}" for t, f in zip(times, thrust_n)]
+
+
 def _exact_text(value_si: float, unit_choices: tuple[tuple[str, float], ...], kind: str) -> tuple[str, str]:
     """Text and unit that read back to exactly ``value_si``, preferring the trade's unit."""
     for unit, scale in unit_choices:
@@ -270,7 +288,7 @@ def record_to_bytes(record: MotorRecord) -> bytes:
     elif record.delays_s or record.delay_adjustable:
         ejection = etree.SubElement(root, _Q + "ejection", adjustable="true" if record.delay_adjustable else "false")
         if record.delays_s:
-            etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(repr(d) for d in record.delays_s)
+            etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(_short(d) for d in record.delays_s)
     p = record.provenance
     provenance = etree.SubElement(root, _Q + "provenance", kind=p.kind)
     if p.date is not None:
@@ -284,13 +302,12 @@ def record_to_bytes(record: MotorRecord) -> bytes:
                                   ("total-impulse-standard-deviation", f.total_impulse_std_ns, "N.s"),
                                   ("burn-time-mean", f.burn_time_mean_s, "s"),
                                   ("burn-time-standard-deviation", f.burn_time_std_s, "s")):
-            etree.SubElement(spread, _Q + name, unit=unit).text = repr(value)
+            etree.SubElement(spread, _Q + name, unit=unit).text = _short(value)
     samples = etree.SubElement(root, _Q + "samples")
     samples.set("time-unit", "s")
     samples.set("thrust-unit", "N")
     etree.indent(root, space="  ")  # before the samples text, which indent() must not touch
-    rows = (f"    {float(t)!r} {float(f)!r}" for t, f in zip(record.time_s, record.thrust_n))
-    samples.text = "\n" + "\n".join(rows) + "\n  "
+    samples.text = "\n" + "\n".join(_sample_rows(record.time_s, record.thrust_n)) + "\n  "
     return etree.tostring(root, xml_declaration=True, encoding="UTF-8", pretty_print=True)
 
 

@@ -149,8 +149,10 @@ class MotorPack:
         return int(self.n_samples.size)
 
     @classmethod
-    def from_records(cls, records: Sequence[MotorRecord], drill_step_s: float = 1.0) -> MotorPack:
-        """Pack motor records (one Python pass to copy samples; the flight loop never iterates motors)."""
+    def from_records(cls, records: Sequence[MotorRecord] | MotorRecord, drill_step_s: float = 1.0) -> MotorPack:
+        """Pack motor records, or one record (one Python pass to copy samples; the flight loop never iterates motors)."""
+        if isinstance(records, MotorRecord):
+            records = [records]
         if len(records) == 0:
             raise ValueError("`records` must not be empty")
         return cls.from_samples(
@@ -261,6 +263,32 @@ class FlightResults:
 
     def message(self, i: int) -> str:
         return MESSAGES[int(self.status[i])]
+
+    def __repr__(self) -> str:
+        """A one-line summary (the arrays themselves are attributes; :meth:`to_frame` tabulates them)."""
+        ok = int(np.count_nonzero(self.status == OK))
+        apogee = self.apogee_m[np.isfinite(self.apogee_m)]
+        span = (f"apogee_m {float(apogee.min()):.6g}" + (f"..{float(apogee.max()):.6g}" if apogee.size > 1 else "")
+                if apogee.size else "no apogee")
+        return (f"FlightResults({self.n_flights} flights, {ok} ok; {span}; "
+                f"trajectories {'kept' if self.trajectories is not None else 'not kept'})")
+
+    def to_frame(self, index: Sequence[object] | None = None) -> "pandas.DataFrame":  # noqa: F821
+        """One row per flight with every per-flight figure (SI, as the attribute names say).
+
+        pandas is imported only here. ``index`` labels the rows (e.g. the motors' designations); by default
+        rows are numbered like the flights. Ejection states (one column per delay) stay on the object.
+        """
+        import pandas as pd  # a lazy bridge: importing motorlib.flight never loads pandas
+
+        columns: dict[str, object] = {"status": [int(v) for v in self.status],
+                                      "message": [self.message(i) for i in range(self.n_flights)]}
+        for name in self.__dataclass_fields__:
+            value = getattr(self, name)
+            if name != "status" and isinstance(value, np.ndarray) and value.ndim == 1:
+                columns[name] = value
+        columns["optimal_delay_s"] = self.optimal_delay_s
+        return pd.DataFrame(columns, index=list(index) if index is not None else None)
 
     def chosen_delay_s(self, i: int) -> float:
         """The delay used for deployment, else the reported delay closest to the optimal one (NaN if none)."""
@@ -516,7 +544,7 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, z, vx, vz):
 
 def simulate(
     airframe: Airframe | Sequence[Airframe],
-    motors: Sequence[MotorRecord] | MotorPack,
+    motors: Sequence[MotorRecord] | MotorRecord | MotorPack,
     settings: FlightSettings | None = None,
     *,
     added_mass_kg: np.ndarray | float | None = None,
@@ -532,7 +560,7 @@ def simulate(
         One airframe for all motors, or one per motor. Flights that share a
         launch site, drag table and recovery device are integrated together;
         mass, diameter, constant Cd, rail and wind may differ per flight.
-    motors : sequence of MotorRecord, or MotorPack
+    motors : sequence of MotorRecord, one MotorRecord, or MotorPack
     settings : FlightSettings, optional
     added_mass_kg : float or array, shape (n,), optional
         Ballast added to the airframe [kg].
@@ -555,6 +583,8 @@ def simulate(
         When the inputs cannot be flown at all (mismatched lengths, negative ballast).
     """
     s = settings or FlightSettings()
+    if isinstance(motors, MotorRecord):
+        motors = [motors]
     pack = motors if isinstance(motors, MotorPack) else MotorPack.from_records(list(motors), s.drill_step_s)
     n = pack.n_motors
     frames = [airframe] * n if isinstance(airframe, Airframe) else list(airframe)

@@ -128,26 +128,44 @@ def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> list[str]:
     return reasons
 
 
-def rank(frame: Airframe, rows: Sequence[dict[str, Any]], pack_for: Any, settings: MatchSettings | None = None,
+def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettings | None = None,
          flight_settings: FlightSettings | None = None) -> MatchResult:
     """Rank every candidate for ``frame``.
+
+    The common case is one call, ``rank(airframe, catalog, settings)``; a motor record or a list of them
+    works in place of the catalog.
 
     Parameters
     ----------
     frame : Airframe
-    rows : sequence of dict
-        Candidate metadata in the catalog's row layout (:meth:`Catalog.rows` or :func:`candidate_rows`).
-    pack_for : callable
-        ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index).
+    rows : Catalog, MotorRecord, sequence of MotorRecord, or sequence of dict
+        The candidates: a catalog (all its motors), records, or metadata in the catalog's row layout
+        (:meth:`Catalog.rows` or :func:`candidate_rows`), which then needs ``pack_for``.
+    pack_for : callable, optional
+        ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index); not
+        needed for a catalog or records. A :class:`MatchSettings` here is taken as ``settings``.
     settings : MatchSettings, optional
     flight_settings : FlightSettings, optional
 
     Returns
     -------
     MatchResult
+
+    Examples
+    --------
+    >>> import motorlib
+    >>> from motorlib.files.curvefiles import sample_catalog_dir
+    >>> frame = motorlib.load_airframe(sample_catalog_dir() / "airframes" / "quibble-41.toml")
+    >>> catalog = motorlib.Catalog(sample_catalog_dir(), read_only=True)
+    >>> result = motorlib.rank(frame, catalog, motorlib.MatchSettings(target_m=400.0))
+    >>> len(result.candidates), result.candidates[0]["passes"]
+    (27, True)
     """
+    if isinstance(pack_for, MatchSettings):  # rank(airframe, catalog, settings)
+        settings, pack_for = pack_for, None
     s = settings or MatchSettings()
     fs = flight_settings or FlightSettings()
+    rows, pack_for = _candidates(rows, pack_for, fs.drill_step_s)
     fit_reasons = [_fits(frame, row, s) for row in rows]
     fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
     flown: dict[int, dict[str, Any]] = {}
@@ -184,11 +202,29 @@ def rank(frame: Airframe, rows: Sequence[dict[str, Any]], pack_for: Any, setting
     return MatchResult(airframe, conditions, candidates)
 
 
+def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[dict[str, Any]], Any]:
+    """Rows and a pack function for whatever :func:`rank` was given (a catalog, records or rows)."""
+    if hasattr(rows, "rows") and hasattr(rows, "motor_pack"):  # a Catalog (duck-typed: catalog/ is a layer above)
+        return rows.rows(), pack_for or rows.motor_pack
+    if isinstance(rows, MotorRecord):
+        rows = [rows]
+    rows = list(rows)
+    if rows and all(isinstance(r, MotorRecord) for r in rows):
+        records = rows
+        by_id = {f"record-{i}": r for i, r in enumerate(records)}
+        return candidate_rows(records), pack_for or (
+            lambda sub: MotorPack.from_records([by_id[r["motor_id"]] for r in sub], drill_step_s))
+    if pack_for is None:
+        raise TypeError("`pack_for` is needed when `rows` are catalog rows (or pass a Catalog or motor records)")
+    return rows, pack_for
+
+
 _FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_thrust_to_weight", "max_speed_m_s",
                 "max_mach", "burnout_time_s", "optimal_delay_s", "chosen_delay_s", "delay_adjusted",
                 "ejection_altitude_m", "ejection_speed_m_s", "ejection_vertical_speed_m_s", "landing_speed_m_s",
                 "liftoff_mass_kg", "ballast_kg", "ballast_apogee_m", "ballast_rail_exit_speed_m_s",
-                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_reasons")
+                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_optimal_delay_s",
+                "ballast_ejection_speed_m_s", "ballast_landing_speed_m_s", "ballast_reasons", "ballast_reason_codes")
 
 
 def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
@@ -248,7 +284,9 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
         "liftoff_mass_kg": col(results.liftoff_mass_kg),
         "ballast_kg": [None] * len(rows), "ballast_apogee_m": [None] * len(rows),
         "ballast_rail_exit_speed_m_s": [None] * len(rows), "ballast_liftoff_thrust_to_weight": [None] * len(rows),
-        "ballast_chosen_delay_s": [None] * len(rows), "ballast_reasons": [None] * len(rows),
+        "ballast_chosen_delay_s": [None] * len(rows), "ballast_optimal_delay_s": [None] * len(rows),
+        "ballast_ejection_speed_m_s": [None] * len(rows), "ballast_landing_speed_m_s": [None] * len(rows),
+        "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
         "_reasons": reasons, "_status": list(results.status),
     }
 
@@ -305,6 +343,7 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
     for i in range(n):
         if not figures["_reasons"][i] and apogee0[i] <= target:
             figures["ballast_reasons"][i] = ["cannot reach the target even without ballast"]
+            figures["ballast_reason_codes"][i] = ["short"]
     idx = np.flatnonzero(candidates)
     if idx.size == 0:
         return
@@ -347,8 +386,12 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         figures["ballast_rail_exit_speed_m_s"][i] = float(final.rail_exit_speed_m_s[k])
         figures["ballast_liftoff_thrust_to_weight"][i] = float(final.liftoff_thrust_to_weight[k])
         figures["ballast_chosen_delay_s"][i] = float(chosen[k]) if np.isfinite(chosen[k]) else None
-        figures["ballast_reasons"][i] = [text for _, text in
-                                         _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i])]
+        figures["ballast_optimal_delay_s"][i] = float(final.optimal_delay_s[k])
+        figures["ballast_ejection_speed_m_s"][i] = float(speed[k]) if np.isfinite(speed[k]) else None
+        figures["ballast_landing_speed_m_s"][i] = float(landing[k]) if np.isfinite(landing[k]) else None
+        broken = _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i])
+        figures["ballast_reasons"][i] = [text for _, text in broken]
+        figures["ballast_reason_codes"][i] = [code for code, _ in broken]
 
 
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:

@@ -9,8 +9,11 @@ from pathlib import Path
 import numpy as np
 
 from ..files.fsio import write_atomic
+from .display import DisplayUnits
 
-__all__ = ["flight_plot"]
+__all__ = ["curves_plot", "flight_plot", "match_plot", "reduction_plot"]
+
+_METRIC = DisplayUnits()
 
 
 def _figure():
@@ -29,17 +32,19 @@ def _save(fig, path: str | os.PathLike[str]) -> Path:
 
 
 def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], title: str,
-                path: str | os.PathLike[str]) -> Path:
+                path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
     """Altitude, speed and acceleration against time, with rail exit, burnout, apogee and deployment marked."""
     plt = _figure()
     t = trajectory["time_s"]
     speed = np.hypot(trajectory["vx_m_s"], trajectory["vz_m_s"])
     accel = np.hypot(trajectory["ax_m_s2"], trajectory["az_m_s2"])
     fig, axes = plt.subplots(3, 1, sharex=True, figsize=(8, 8))
-    for ax, values, label in ((axes[0], trajectory["altitude_m"], "altitude (m)"), (axes[1], speed, "speed (m/s)"),
-                              (axes[2], accel, "acceleration (m/s²)")):
-        ax.plot(t, values, color="tab:blue")
-        ax.set_ylabel(label)
+    panels = ((axes[0], trajectory["altitude_m"], "altitude", "length"), (axes[1], speed, "speed", "speed"),
+              (axes[2], accel, "acceleration", "acceleration"))
+    for ax, values, label, kind in panels:
+        unit = units.unit(kind)
+        ax.plot(t, np.asarray(values) * units.convert(1.0, kind, unit), color="tab:blue")  # linear kinds only
+        ax.set_ylabel(f"{label} ({unit})")
         ax.grid(alpha=0.3)
         for key, name, colour in (("rail_exit_time_s", "rail exit", "tab:green"), ("burnout_time_s", "burnout", "tab:orange"),
                                   ("time_to_apogee_s", "apogee", "tab:red"), ("deploy_time_s", "deployment", "tab:purple")):
@@ -74,26 +79,32 @@ def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) 
     return out
 
 
-def match_plot(result, path: str | os.PathLike[str]) -> Path:
-    """Apogee of every flown candidate against the target and ceiling bands (pass green, fail red)."""
+def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
+    """Apogee of every flown candidate against the target and ceiling bands (pass green, fail red).
+
+    Target and ceiling are labelled as the user gave them; the axis is in the display unit of length.
+    """
     plt = _figure()
     flown = [c for c in result.candidates if c["apogee_m"] is not None]
     fig, ax = plt.subplots(figsize=(max(6.0, 0.35 * len(flown) + 2), 4.8))
+    unit = units.unit("length")
+    scale = units.convert(1.0, "length", unit)
     names = [c["designation"] for c in flown]
     colours = ["tab:green" if c["passes"] else "tab:red" for c in flown]
-    ax.bar(range(len(flown)), [c["apogee_m"] for c in flown], color=colours)
+    ax.bar(range(len(flown)), [c["apogee_m"] * scale for c in flown], color=colours)
     target = result.conditions.get("target_m")
     ceiling = result.conditions.get("ceiling_m")
     if target:
-        ax.axhline(target, color="tab:blue", linewidth=1.5, label=f"target {target:.0f} m")
-        ax.axhspan(0.95 * target, 1.05 * target, color="tab:blue", alpha=0.12, label="target ± 5 %")
+        ax.axhline(target * scale, color="tab:blue", linewidth=1.5, label=f"target {units.given(target, 'length')}")
+        ax.axhspan(0.95 * target * scale, 1.05 * target * scale, color="tab:blue", alpha=0.12, label="target ± 5 %")
     if ceiling:
-        ax.axhline(ceiling, color="black", linestyle="--", linewidth=1.2, label=f"ceiling {ceiling:.0f} m")
-        top = max([c["apogee_m"] for c in flown] + [ceiling]) * 1.05
-        ax.axhspan(ceiling, top, color="black", alpha=0.07)
+        ax.axhline(ceiling * scale, color="black", linestyle="--", linewidth=1.2,
+                   label=f"ceiling {units.given(ceiling, 'length')}")
+        top = max([c["apogee_m"] for c in flown] + [ceiling]) * 1.05 * scale
+        ax.axhspan(ceiling * scale, top, color="black", alpha=0.07)
     ax.set_xticks(range(len(flown)))
     ax.set_xticklabels(names, rotation=60, ha="right", fontsize=8)
-    ax.set_ylabel("apogee (m above the pad)")
+    ax.set_ylabel(f"apogee ({unit} above the pad)")
     ax.set_title(f"{result.airframe['name']}: apogee per motor (green passes every rule)")
     if target or ceiling:
         ax.legend(fontsize=8)

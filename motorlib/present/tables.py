@@ -1,11 +1,21 @@
-"""Rich renderings of library results, in display units (mm, g, N, N·s, s).
+"""Rich renderings of library results in display units (:mod:`.display`), in one table style.
 
-No click here, and no arithmetic beyond unit conversion for display.
+Every table uses :func:`_table` (a rule under the header, no outer border, narrow padding) and puts the unit
+on a second header line, so that everything fits 80 columns; cells never wrap mid-word (long verdicts are
+short codes with a legend below the table). Wider terminals get extra columns (maker, length, loaded mass).
+Messages that carry quantities are written here from the library's figures, so they follow the display
+units and echo the user's own numbers; a reason code this module does not know keeps the library's text.
+
+No click here, and no arithmetic beyond unit conversion for display. This module is longer than ~500 lines
+would suggest because it holds every command's screen; each function renders one of them.
 """
 
 from __future__ import annotations
 
+import math
+
 from pathlib import Path
+from typing import Any, Iterable
 
 from rich import box
 from rich.console import Group
@@ -15,22 +25,83 @@ from rich.text import Text
 
 from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
+from .display import DisplayUnits
+from .messages import reason_text, short_code, warning_message
 
-__all__ = ["SAFETY_CAUTION", "check_details", "check_summary_table", "findings_text", "impulse_text"]
+__all__ = ["SAFETY_CAUTION", "WIDE", "catalog_table", "check_details", "check_summary_table", "escape", "findings_text",
+           "flight_table", "impulse_text", "match_table"]
 
 SAFETY_CAUTION = (
     "Caution: predictions are estimates. Follow your national rocketry association's safety code, local law "
     "and the launch site's rules; the range safety officer decides; fly only motors within your certification."
 )
+WIDE = 110  # from this terminal width on, tables add their extra columns
 
 _SEVERITY_STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan", "unreadable": "bold red"}
+_METRIC = DisplayUnits()
 
 
-def _fmt(value: object, digits: int = 4, scale: float = 1.0, unit: str = "") -> str:
-    if value is None:
-        return "-"
-    number = float(value) * scale  # type: ignore[arg-type]
-    return f"{number:.{digits}g}{(' ' + unit) if unit else ''}"
+def _table(title: str | None = None, **kwargs: Any) -> Table:
+    """The one table style of every command."""
+    return Table(title=escape(title) if title else None, title_justify="left", title_style="bold",
+                 header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False, collapse_padding=True, **kwargs)
+
+
+def _lock_widths(table: Table, flexible: str | None = None, width: int | None = None) -> Table:
+    """Give every column but ``flexible`` the width of its widest cell, so that rich never cuts or wraps it.
+
+    Only the flexible column (a file or maker name) gives way on a narrow terminal of ``width`` columns, and it
+    is cut with an ellipsis.
+    """
+    from rich.cells import cell_len
+
+    others = 0
+    for column in table.columns:
+        cells = [str(column.header)] + [c.plain if isinstance(c, Text) else str(c) for c in column._cells]
+        widest = max(cell_len(line) for cell in cells for line in cell.split("\n"))
+        if column.header == flexible:
+            column.max_width = widest
+            continue
+        column.min_width = widest
+        others += widest + 2  # the cell's padding and the column divider
+    for column in table.columns:
+        if column.header == flexible and width is not None:
+            room = width - others - 3  # the flexible column's own padding and the table's edges
+            column.max_width = max(column.min_width or 8, min(column.max_width or width, room))
+    return table
+
+
+def _facts() -> Table:
+    """A two-column list of facts (name, value), for one flight or one motor."""
+    table = Table(show_header=False, box=None, pad_edge=False)
+    table.add_column(style="bold", no_wrap=True)
+    table.add_column()
+    return table
+
+
+def _right(table: Table, header: str, **kwargs: Any) -> None:
+    table.add_column(header, justify="right", no_wrap=True, **kwargs)
+
+
+def _cls(impulse_class: str | None, class_percent: float | None) -> str:
+    return f"{impulse_class} {class_percent:.0f}%" if impulse_class else ">O"
+
+
+def _delays(delays_s: Iterable[float], adjustable: bool, ejection: str | None = None) -> str:
+    """Delays for a table cell: ``4,6,8``; ``*`` adjustable; ``P`` no ejection charge; ``?`` not known."""
+    delays = list(delays_s)
+    return (",".join(f"{d:g}" for d in delays) if delays
+            else "P" if ejection == "no-charge" else "?") + ("*" if adjustable else "")
+
+
+def _delays_words(m: dict[str, Any]) -> str:
+    """Delays of a record's metrics or a catalog row, in words: listed, no charge, or unknown."""
+    adjustable = " (adjustable)" if m["delay_adjustable"] else ""
+    if m["delays_s"]:
+        return ", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + adjustable
+    if m.get("ejection") == "no-charge":
+        return "none (no ejection charge: plugged or booster)"
+    return "unknown (not given)" + adjustable
 
 
 def impulse_text(total_impulse_ns: float, digits: int = 4) -> str:
@@ -42,28 +113,25 @@ def impulse_text(total_impulse_ns: float, digits: int = 4) -> str:
     """
     value = float(total_impulse_ns)
     text = f"{value:.{digits}g}"
-    shown, verdict = impulse_class_for(float(text)), impulse_class_for(value)
+    return _as_classified(value, text)
+
+
+def _as_classified(value: float, text: str) -> str:
+    """``text`` (a shown impulse), or the classified figure when ``text`` would read as another class."""
+    shown, verdict = impulse_class_for(float(text.replace(",", ""))), impulse_class_for(value)
     if (shown.letter if shown else None) != (verdict.letter if verdict else None):
-        text = class_impulse_text(value)
+        return class_impulse_text(value)
     return text
 
 
-def _impulse(value: object, digits: int = 4, unit: str = "") -> str:
+def _impulse(u: DisplayUnits, value: float | None, decimals: int | None = None) -> str:
+    """An impulse cell (fixed decimals, thousands separators) that never contradicts the class beside it."""
     if value is None:
         return "-"
-    return impulse_text(float(value), digits) + (f" {unit}" if unit else "")  # type: ignore[arg-type]
+    return _as_classified(float(value), u.number(value, "impulse", decimals))
 
 
-def _delays(m: dict) -> str:
-    """Delays of a record's metrics or a catalog row, in words: listed, no charge, or unknown."""
-    adjustable = " (adjustable)" if m["delay_adjustable"] else ""
-    if m["delays_s"]:
-        return ", ".join(f"{d:g}" for d in m["delays_s"]) + " s" + adjustable
-    if m.get("ejection") == "no-charge":
-        return "none (no ejection charge: plugged or booster)"
-    return "unknown (not given)" + adjustable
-
-
+# ----------------------------------------------------------------------------- checks
 def _status(report: CheckReport) -> Text:
     if not report.readable:
         return Text("unreadable", style="bold red")
@@ -74,24 +142,33 @@ def _status(report: CheckReport) -> Text:
     return Text("sound", style="green")
 
 
-def check_summary_table(reports: list[CheckReport]) -> Table:
-    """One row per checked file; ``--details`` shows the rest (peak, masses, delays)."""
-    table = Table(title="Curve check", header_style="bold")
-    table.add_column("file", overflow="fold", ratio=1)
-    for name in ("label", "class"):
-        table.add_column(name, no_wrap=True)
-    for name in ("impulse N·s", "avg N", "burn s"):
-        table.add_column(name, justify="right", no_wrap=True)
+def check_summary_table(reports: list[CheckReport], units: DisplayUnits = _METRIC, width: int = 80) -> Table:
+    """One row per checked file; ``--details`` shows the rest (peak, masses, delays).
+
+    A long file name is cut with an ellipsis rather than wrapped (the label column names the motor and the
+    findings below the table give the full path).
+    """
+    table = _table("Curve check")
+    table.add_column("file", no_wrap=True, overflow="ellipsis", min_width=10)
+    table.add_column("label", no_wrap=True)
+    table.add_column("class", no_wrap=True)
+    metrics = [r.metrics or {} for r in reports]
+    impulses = [m.get("total_impulse_ns") for m in metrics]
+    thrusts = [m.get("average_thrust_n") for m in metrics]
+    d_impulse, d_thrust = units.column_decimals(impulses, "impulse"), units.column_decimals(thrusts, "force")
+    _right(table, units.header("impulse", units.unit("impulse")))
+    _right(table, units.header("thrust", units.unit("force")))
+    _right(table, units.header("burn", "s"))
     table.add_column("result", no_wrap=True)
-    for report in reports:
-        m = report.metrics or {}
-        cls = f"{m['impulse_class']} {m['class_percent']:.0f}%" if m.get("impulse_class") else "-"
+    for report, m in zip(reports, metrics):
         table.add_row(
-            escape(Path(report.source).stem), escape(str(m.get("designation", "-"))), cls,
-            _impulse(m.get("total_impulse_ns")), _fmt(m.get("average_thrust_n")), _fmt(m.get("burn_time_s"), 3),
+            escape(Path(report.source).stem), escape(str(m.get("designation", "-"))),
+            _cls(m["impulse_class"], m["class_percent"]) if m else "-",
+            _impulse(units, m.get("total_impulse_ns"), d_impulse),
+            units.number(m.get("average_thrust_n"), "force", d_thrust), units.number(m.get("burn_time_s"), "time"),
             _status(report),
         )
-    return table
+    return _lock_widths(table, "file", width)
 
 
 def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
@@ -107,31 +184,41 @@ def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
     return text
 
 
-def check_details(report: CheckReport) -> Group:
-    """Metrics table and findings of one file."""
+def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: Any = None) -> Group:
+    """Metrics and findings of one file; with its ``record`` also where the curve comes from (provenance)."""
     parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
     m = report.metrics
     if m:
-        table = Table(show_header=False, box=None, pad_edge=False)
-        table.add_column(style="bold")
-        table.add_column()
+        table = _facts()
+        u = units
+        masses = [m["total_mass_kg"], m["propellant_mass_kg"]]
+        mass_unit = u.column_unit(masses, "mass")
+        d_mass = u.column_decimals(masses, "mass", mass_unit)
+        impulse = _impulse(u, m["total_impulse_ns"], u.column_decimals([m["total_impulse_ns"]], "impulse", significant=4))
+
+        def size(key: str) -> str:  # 29 mm, 10.5 mm
+            return u.quantity(m[key], "motor_size", u.exact_decimals([m[key]], "motor_size", 1))
+
         rows = [
             ("label / maker", f"{m['designation']}  ({m['maker'] or 'maker unknown'})"),
             ("computed designation", str(m["computed_designation"])),
-            ("total impulse", _impulse(m["total_impulse_ns"], 5, unit="N·s")),
+            ("total impulse", f"{impulse} N·s"),
             ("impulse class", f"{m['impulse_class']} ({m['class_percent']:.1f} % into class)"
              if m["impulse_class"] else "above O"),
-            ("average thrust", _fmt(m["average_thrust_n"], unit="N")),
-            ("peak thrust", f"{_fmt(m['peak_thrust_n'], unit='N')} at {_fmt(m['peak_time_s'], unit='s')}"),
-            ("burn time", f"{_fmt(m['burn_time_s'], unit='s')} ({_fmt(m['burn_start_s'])}-{_fmt(m['burn_end_s'])} s, "
-                          f"thrust above {100 * float(m['burn_threshold']):g} % of peak)"),
+            ("average thrust", u.precise(m["average_thrust_n"], "force")),
+            ("peak thrust", f"{u.precise(m['peak_thrust_n'], 'force')} at {u.quantity(m['peak_time_s'], 'time')}"),
+            ("burn time", f"{u.quantity(m['burn_time_s'], 'time')} ({u.number(m['burn_start_s'], 'time')}-"
+                          f"{u.number(m['burn_end_s'], 'time')} s, thrust above {100 * float(m['burn_threshold']):g} % "
+                          "of peak)"),
             ("samples", str(m["n_samples"])),
-            ("diameter x length", f"{_fmt(m['diameter_m'], scale=1e3, unit='mm')} x {_fmt(m['length_m'], scale=1e3, unit='mm')}"),
-            ("total / propellant mass", f"{_fmt(m['total_mass_kg'], scale=1e3, unit='g')} / "
-                                        f"{_fmt(m['propellant_mass_kg'], scale=1e3, unit='g')}"),
-            ("specific impulse", _fmt(m["specific_impulse_s"], unit="s")),
-            ("delays", _delays(m)),
+            ("diameter x length", f"{size('diameter_m')} x {size('length_m')}"),
+            ("total / propellant mass", f"{u.quantity(m['total_mass_kg'], 'mass', d_mass, mass_unit)} / "
+                                        f"{u.quantity(m['propellant_mass_kg'], 'mass', d_mass, mass_unit)}"),
+            ("specific impulse", u.quantity(m["specific_impulse_s"], "time", 0)),
+            ("delays", _delays_words(m)),
         ]
+        if record is not None:
+            rows += _provenance_rows(record)
         for key, value in rows:
             table.add_row(key, escape(value))
         parts.append(table)
@@ -143,104 +230,172 @@ def check_details(report: CheckReport) -> Group:
     return Group(*parts)  # type: ignore[arg-type]
 
 
+def _provenance_rows(record: Any) -> list[tuple[str, str]]:
+    """Where a curve comes from: kind, date, notes, and the spread of the firings it was made from."""
+    p = record.provenance
+    rows = [("source", str(p.kind)), ("test date", p.date.isoformat() if p.date else "not given"),
+            ("notes", p.notes or "none")]
+    spread = getattr(record, "firing_spread", None)
+    if spread is not None:
+        rows.append(("firings", f"{spread.n_firings}: total impulse {spread.total_impulse_mean_ns:,.1f} ± "
+                                f"{spread.total_impulse_std_ns:,.1f} N·s, burn {spread.burn_time_mean_s:.2f} ± "
+                                f"{spread.burn_time_std_s:.2f} s"))
+    return rows
+
+
 # ----------------------------------------------------------------------------- flights
-_DISPLAY = {
-    "si": {"length": ("m", 1.0), "speed": ("m/s", 1.0), "acceleration": ("m/s²", 1.0), "mass": ("g", 1e-3),
-           "pressure": ("kPa", 1e3)},
-    "imperial": {"length": ("ft", 0.3048), "speed": ("ft/s", 0.3048), "acceleration": ("ft/s²", 0.3048),
-                 "mass": ("oz", 0.028349523125), "pressure": ("psi", 6894.757293168)},
-}
-
-
-def display(value: object, kind: str, units: str, digits: int = 4) -> str:
-    """An SI value in the display unit of ``kind`` for the ``si`` or ``imperial`` system."""
-    unit, factor = _DISPLAY[units][kind]
-    if value is None:
-        return "-"
-    return f"{float(value) / factor:.{digits}g} {unit}"  # type: ignore[arg-type]
-
-
-def flight_table(summary: dict[str, object], title: str, units: str = "si") -> Table:
-    """The figures of one simulated flight (times from ignition)."""
-    table = Table(title=escape(title), show_header=False, title_justify="left")
-    table.add_column(style="bold")
-    table.add_column()
-    s = summary
+def flight_table(summary: dict[str, Any], title: str, units: DisplayUnits = _METRIC) -> Group:
+    """The figures of one simulated flight (times from ignition), under a title line."""
+    table = _facts()
+    s, u = summary, units
 
     def sec(key: str) -> str:
-        return "-" if s.get(key) is None else f"{float(s[key]):.2f} s"  # type: ignore[arg-type]
+        return u.quantity(s.get(key), "time")
 
+    accel = s.get("max_acceleration_m_s2")
     rows = [
         ("result", str(s["message"])),
-        ("liftoff", f"{sec('liftoff_time_s')}, mass {display(s['liftoff_mass_kg'], 'mass', units)}"),
-        ("thrust-to-weight", f"liftoff {_fmt(s['liftoff_thrust_to_weight'], 3)}, average {_fmt(s['average_thrust_to_weight'], 3)}"),
-        ("rail exit", f"{display(s['rail_exit_speed_m_s'], 'speed', units)} at {sec('rail_exit_time_s')}"),
+        ("liftoff", f"{sec('liftoff_time_s')}, mass {u.quantity(s['liftoff_mass_kg'], 'mass')}"),
+        ("thrust-to-weight", f"liftoff {u.number(s['liftoff_thrust_to_weight'], 'ratio')}, "
+                             f"average {u.number(s['average_thrust_to_weight'], 'ratio')}"),
+        ("rail exit", f"{u.quantity(s['rail_exit_speed_m_s'], 'speed')} at {sec('rail_exit_time_s')}"),
         ("burnout", sec("burnout_time_s")),
-        ("apogee", f"{display(s['apogee_m'], 'length', units)} at {sec('time_to_apogee_s')}, "
-                   f"{display(s['apogee_downrange_m'], 'length', units)} downrange"),
+        ("apogee", f"{u.quantity(s['apogee_m'], 'length')} at {sec('time_to_apogee_s')}, "
+                   f"{u.quantity(s['apogee_downrange_m'], 'length')} downrange"),
         ("optimal delay", sec("optimal_delay_s")),
-        ("max speed", f"{display(s['max_speed_m_s'], 'speed', units)} (Mach {_fmt(s['max_mach'], 3)})"),
-        ("max acceleration", f"{display(s['max_acceleration_m_s2'], 'acceleration', units)} "
-                             f"({_fmt(None if s['max_acceleration_m_s2'] is None else float(s['max_acceleration_m_s2']) / 9.80665, 3)} g)"),
-        ("max dynamic pressure", display(s["max_dynamic_pressure_pa"], "pressure", units)),
+        ("max speed", f"{u.quantity(s['max_speed_m_s'], 'speed')} (Mach {u.number(s['max_mach'], 'ratio', 2)})"),
+        ("max acceleration", f"{u.quantity(accel, 'acceleration')} "
+                             f"({u.quantity(accel, 'acceleration', unit='g0').replace('g0', 'g')})"),
+        ("max dynamic pressure", u.quantity(s["max_dynamic_pressure_pa"], "pressure")),
     ]
-    for ej in s["ejections"]:  # type: ignore[union-attr]
+    for ej in s["ejections"]:
         mark = "  <- chosen" if ej["delay_s"] == s.get("chosen_delay_s") else ""
         rows.append((f"ejection at {ej['delay_s']:g} s delay",
-                     f"{display(ej['altitude_m'], 'length', units)}, {display(ej['speed_m_s'], 'speed', units)}{mark}"
+                     f"{u.quantity(ej['altitude_m'], 'length')}, {u.quantity(ej['speed_m_s'], 'speed')}{mark}"
                      if ej["altitude_m"] is not None else "after landing"))
     if s.get("deploy_time_s") is not None:
-        rows.append(("deployment", f"{sec('deploy_time_s')} at {display(s['deploy_altitude_m'], 'length', units)}"))
+        rows.append(("deployment", f"{sec('deploy_time_s')} at {u.quantity(s['deploy_altitude_m'], 'length')}"))
     if s.get("landing_speed_m_s") is not None:
-        rows.append(("landing", f"descending at {display(s['landing_descent_rate_m_s'], 'speed', units)} "
-                                f"({display(s['landing_speed_m_s'], 'speed', units)} over ground) after "
-                                f"{sec('descent_time_s')} of descent, {display(s['drift_m'], 'length', units)} from the pad"))
+        rows.append(("landing", f"descending at {u.quantity(s['landing_descent_rate_m_s'], 'speed')} "
+                                f"({u.quantity(s['landing_speed_m_s'], 'speed')} over ground) after "
+                                f"{sec('descent_time_s')} of descent, {u.quantity(s['drift_m'], 'length')} from the pad"))
     for key, value in rows:
         table.add_row(key, escape(value))
-    return table
+    return Group(Text(title, style="bold"), table)
 
 
-def warnings_text(warnings: list[tuple[str, str]]) -> Text:
+def warnings_text(warnings: list[tuple[str, str]], summary: dict[str, Any] | None = None, rules: Any = None,
+                  units: DisplayUnits = _METRIC, wind_speed_m_s: float = 0.0) -> Text:
+    """Flight warnings, one a line; with the summary and rules their figures follow the display units."""
     text = Text()
     for code, message in warnings:
+        if summary is not None and rules is not None:
+            message = warning_message(code, message, summary, rules, units, wind_speed_m_s)
         text.append("  warning ", style="yellow")
         text.append(f"{code}: ", style="bold")
         text.append(message + "\n")
     return text
 
 
-# ----------------------------------------------------------------------------- catalog
-def catalog_table(rows: list[dict], title: str = "Catalog") -> Table:
-    """One row per motor: id, label, class, impulse, average thrust, burn, diameter, delays, checks.
+def descent_text(result: dict[str, float], units: DisplayUnits = _METRIC, *, elevation_m: float = 0.0,
+                 height_m: float | None = None, fall_time_s: float | None = None,
+                 drag_area_m2: float | None = None) -> Text:
+    """The ``descent`` figures; values the user gave are echoed as typed."""
+    u = units
+    text = Text()
+    text.append(f"Air density at the pad ({u.given(elevation_m, 'length')}, standard atmosphere): "
+                f"{u.quantity(result['density_kg_m3'], 'density')}\n")
+    v_t = result.get("terminal_speed_m_s")
+    if v_t is None or not math.isfinite(v_t):
+        text.append("Terminal speed: none (no drag)\n")
+    else:
+        text.append(f"Terminal speed: {u.quantity(v_t, 'speed')}\n")
+    if "fall_time_s" in result:
+        fall = u.given(fall_time_s, "time") if fall_time_s is not None else u.quantity(result["fall_time_s"], "time", 1)
+        text.append(f"Fall of {u.given(height_m if height_m is not None else result['height_m'], 'length')} from rest "
+                    "through the atmosphere: "
+                    f"{fall}, landing at {u.quantity(result['landing_speed_m_s'], 'speed')}\n")
+    if "drag_area_m2" in result:
+        area = result["drag_area_m2"]
+        shown = u.given(drag_area_m2, "area") if drag_area_m2 is not None and getattr(drag_area_m2, "text", None) \
+            else u.precise(area, "area")
+        text.append(f"Drag area Cd·A: {shown}\n")
+    return text
 
-    Delays marked * are adjustable (the longest is listed); P means no ejection charge, ? not known.
-    """
-    table = Table(title=escape(title), header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False, collapse_padding=True)
-    table.add_column("id", no_wrap=True, style="dim")
-    table.add_column("motor", overflow="fold", min_width=8)
-    table.add_column("class", no_wrap=True)
-    table.add_column("I N·s", justify="right", no_wrap=True)
-    table.add_column("avg N", justify="right", no_wrap=True)
-    table.add_column("burn s", justify="right", no_wrap=True)
-    table.add_column("Ø mm", justify="right", no_wrap=True)
-    table.add_column("delay s", no_wrap=True)
-    table.add_column("check", no_wrap=True)
+
+# ----------------------------------------------------------------------------- catalog
+# Header name (what --sort takes) -> catalog row key.
+CATALOG_SORT = {"id": "motor_id", "motor": "designation", "maker": "maker", "class": "total_impulse_ns",
+                "impulse": "total_impulse_ns", "thrust": "average_thrust_n", "burn": "burn_time_s",
+                "dia": "diameter_m", "length": "length_m", "mass": "total_mass_kg", "check": "n_errors"}
+
+
+def _maker_tag(maker: str) -> str:
+    """A short form of a maker's name that tells motors with the same designation apart."""
+    word = (maker or "unknown").split()[0]
+    return word[:12]
+
+
+def _motor_names(rows: list[dict[str, Any]], with_maker_column: bool) -> list[str]:
+    """Designations, with a maker tag where the same designation comes from several makers."""
+    makers: dict[str, set[str]] = {}
     for r in rows:
-        cls = f"{r['impulse_class']} {r['class_percent']:.0f}%" if r["impulse_class"] else ">O"
-        size = _fmt(r["diameter_m"], 3, 1e3)
-        delays = (",".join(f"{d:g}" for d in r["delays_s"]) if r["delays_s"]
-                  else "P" if r.get("ejection") == "no-charge" else "?") + ("*" if r["delay_adjustable"] else "")
+        makers.setdefault(r["designation"], set()).add(r.get("maker") or "")
+    return [r["designation"] if with_maker_column or len(makers[r["designation"]]) < 2
+            else f"{r['designation']} {_maker_tag(r.get('maker') or '')}" for r in rows]
+
+
+def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: DisplayUnits = _METRIC,
+                  width: int = 80) -> Table:
+    """One row per motor; headers are the names ``catalog list --sort`` takes.
+
+    Delays marked * are adjustable (the longest is listed); P means no ejection charge, ? not known. From :data:`WIDE`
+    columns on, maker, length and loaded mass are added.
+    """
+    wide = width >= WIDE
+    u = units
+    table = _table(title)
+    table.add_column("id", no_wrap=True, style="dim")
+    table.add_column("motor", no_wrap=True)
+    if wide:
+        table.add_column("maker", no_wrap=True, overflow="ellipsis", min_width=8)
+    table.add_column("class", no_wrap=True)
+    d_impulse = u.column_decimals([r["total_impulse_ns"] for r in rows], "impulse")
+    d_thrust = u.column_decimals([r["average_thrust_n"] for r in rows], "force")
+    _right(table, u.header("impulse", u.unit("impulse")))
+    _right(table, u.header("thrust", u.unit("force")))
+    _right(table, u.header("burn", "s"))
+    _right(table, u.header("dia", u.unit("motor_size")))
+    mass_unit = u.column_unit([r["total_mass_kg"] for r in rows], "mass")
+    d_dia = u.exact_decimals([r["diameter_m"] for r in rows], "motor_size", 1)
+    d_length = u.exact_decimals([r["length_m"] for r in rows], "motor_size", 1)
+    d_mass = u.column_decimals([r["total_mass_kg"] for r in rows], "mass", mass_unit)
+    if wide:
+        _right(table, u.header("length", u.unit("motor_size")))
+        _right(table, u.header("mass", mass_unit))
+    table.add_column(u.header("delays", "s"), no_wrap=True)
+    table.add_column("check", no_wrap=True)
+    for r, name in zip(rows, _motor_names(rows, wide)):
         checks = Text("errors", style="bold red") if r["n_errors"] else (
             Text("warn", style="yellow") if r["n_warnings"] else Text("ok", style="green"))
-        table.add_row(r["motor_id"][:6], escape(r["designation"]), cls, _impulse(r["total_impulse_ns"]),
-                      _fmt(r["average_thrust_n"]), _fmt(r["burn_time_s"], 3), size, delays, checks)
-    return table
+        cells: list[Any] = [r["motor_id"][:6], escape(name)]
+        if wide:
+            cells.append(escape(r["maker"] or "-"))
+        cells += [_cls(r["impulse_class"], r["class_percent"]), _impulse(u, r["total_impulse_ns"], d_impulse),
+                  u.number(r["average_thrust_n"], "force", d_thrust), u.number(r["burn_time_s"], "time"),
+                  u.number(r["diameter_m"], "motor_size", d_dia)]
+        if wide:
+            cells += [u.number(r["length_m"], "motor_size", d_length),
+                      u.number(r["total_mass_kg"], "mass", d_mass, unit=mass_unit)]
+        cells += [_delays(r["delays_s"], r["delay_adjustable"], r.get("ejection")), checks]
+        table.add_row(*cells)
+    return _lock_widths(table, "maker", width)
 
 
 _BARS = " ▁▂▃▄▅▆▇█"
 
 
-def sparkline(time_s, thrust_n, width: int = 60) -> str:
+def sparkline(time_s: Any, thrust_n: Any, width: int = 60) -> str:
     """The thrust curve as one line of block characters, sampled evenly over the burn."""
     import numpy as np
 
@@ -252,99 +407,190 @@ def sparkline(time_s, thrust_n, width: int = 60) -> str:
 
 def add_results_table(results: list) -> Table:
     """What ``catalog add`` did with each offered file that was not simply added."""
-    table = Table(title="Catalog add", header_style="bold")
-    table.add_column("file", overflow="fold", ratio=1)
+    table = _table("Catalog add")
+    table.add_column("file", no_wrap=True, overflow="ellipsis", min_width=10, max_width=40)
     table.add_column("result", no_wrap=True)
-    table.add_column("details", overflow="fold", ratio=2)
+    table.add_column("details", ratio=2, overflow="fold")
     styles = {"added": "green", "duplicate": "cyan", "refused": "bold red", "unreadable": "bold red"}
     for r in results:
         if r.status == "added" and not r.near_duplicates:
             continue
-        status = "added (near-duplicate)" if r.status == "added" else r.status
-        table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(r.message))
-    return table
+        status = "near-dup" if r.status == "added" else r.status
+        message, source = r.message, str(r.source)
+        if message.startswith(source):  # the file is in the first column already
+            rest = message[len(source):].lstrip(":")
+            line, sep, after = rest.partition(":")
+            message = f"line {line}:{after}" if sep and line.isdigit() else rest.strip()
+        table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(message))
+    return table  # the details column wraps at spaces: it holds sentences
 
 
 # ----------------------------------------------------------------------------- matching
-def _number(value: object, kind: str, units: str, digits: int = 4) -> str:
-    if value is None:
-        return "-"
-    unit, factor = _DISPLAY[units][kind]
-    return f"{float(value) / factor:.{digits}g}"  # type: ignore[arg-type]
+def _shown(result: Any, top: int | None, show_rejected: bool) -> list[dict[str, Any]]:
+    shown = [c for c in result.candidates if c["fits"] or show_rejected]
+    return shown if top is None else shown[:top]
 
 
-def _unit(kind: str, units: str) -> str:
-    return _DISPLAY[units][kind][0]
+def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
+                ballast: bool = False, width: int = 80) -> Table:
+    """The ranking: passing motors first; failing ones show one-letter reason codes (see :func:`match_legend`).
 
-
-def match_table(result, units: str = "si", top: int | None = None, show_rejected: bool = False,
-                ballast: bool = False) -> Table:
-    """The ranking: passing motors first; failing ones show short reason codes (details below the table)."""
-    c_all = result.candidates
-    shown = [c for c in c_all if c["fits"] or show_rejected]
-    if top is not None:
-        shown = shown[:top]
-    target = result.conditions.get("target_m")
+    A figure that breaks a rule is rounded so that it never reads as within the limit. From :data:`WIDE`
+    columns on, the maker and the loaded mass are added.
+    """
+    u, c_all = units, result.candidates
+    shown = _shown(result, top, show_rejected)
+    cond = result.conditions
+    wide = width >= WIDE
+    target = cond.get("target_m")
     title = f"{result.airframe['name']}: {sum(c['passes'] for c in c_all)} of {len(c_all)} motors pass"
     if target:
-        title += f", target {display(target, 'length', units)}"
-    table = Table(title=escape(title), header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False, collapse_padding=True)
-    table.add_column("#", justify="right", no_wrap=True)
+        title += f", target {u.given(target, 'length')}"
+    table = _table(title)
+    _right(table, "#")
     table.add_column("motor", no_wrap=True)
-    table.add_column(f"apogee {_unit('length', units)}", justify="right", no_wrap=True)
-    table.add_column(f"rail {_unit('speed', units)}", justify="right", no_wrap=True)
-    table.add_column("T/W", justify="right", no_wrap=True)
-    table.add_column("delay s", justify="right", no_wrap=True)
-    table.add_column(f"eject {_unit('speed', units)}", justify="right", no_wrap=True)
+    if wide:
+        table.add_column("maker", no_wrap=True, overflow="ellipsis", min_width=8)
+    for name, kind in (("apogee", "length"), ("rail", "speed")):
+        _right(table, u.header(name, u.unit(kind)))
+    _right(table, "T/W")
+    _right(table, u.header("delay", "s"))
+    _right(table, u.header("eject", u.unit("speed")))
+    mass_unit = u.column_unit([c.get("liftoff_mass_kg") for c in shown], "mass")
+    if wide:
+        _right(table, u.header("loaded", mass_unit))
+    ballast_unit = u.column_unit([c.get("ballast_kg") for c in shown], "mass")
     if ballast:
-        table.add_column(f"+mass {_unit('mass', units)}", justify="right", no_wrap=True)
-    table.add_column("result", overflow="fold", min_width=9)
-    for rank, c in enumerate(shown, 1):
+        _right(table, u.header("+mass", ballast_unit))
+    table.add_column("result", no_wrap=True)
+    for rank, (c, name) in enumerate(zip(shown, _motor_names(shown, wide)), 1):
+        codes = set(c["reason_codes"])
         if c["apogee_m"] is None:
             cells = ["-"] * 5
         else:
             delay = "-" if c["chosen_delay_s"] is None else (
                 f"{c['chosen_delay_s']:g}{'d' if c['delay_adjusted'] else ''}/{c['optimal_delay_s']:.1f}")
-            cells = [_number(c["apogee_m"], "length", units), _number(c["rail_exit_speed_m_s"], "speed", units, 3),
-                     f"{c['liftoff_thrust_to_weight']:.1f}", delay, _number(c["ejection_speed_m_s"], "speed", units, 2)]
+            cells = [
+                _cell(u, c["apogee_m"], cond.get("ceiling_m"), "length", True, "ceiling" in codes),
+                _cell(u, c["rail_exit_speed_m_s"], cond["min_rail_exit_speed_m_s"], "speed", False, "rail" in codes),
+                _cell(u, c["liftoff_thrust_to_weight"], cond["min_liftoff_thrust_to_weight"], "ratio", False,
+                      "T/W" in codes),
+                delay,
+                _cell(u, c["ejection_speed_m_s"], cond["max_ejection_speed_m_s"], "speed", True, "eject" in codes),
+            ]
+        row: list[Any] = [str(rank), escape(name)]
+        if wide:
+            row.append(escape(c.get("maker") or "-"))
+        row += cells
+        if wide:
+            row.append(u.number(c.get("liftoff_mass_kg"), "mass", unit=mass_unit))
         if ballast:
-            cells.append(_number(c.get("ballast_kg"), "mass", units, 3))
-        verdict = Text("pass", style="green") if c["passes"] else Text(", ".join(dict.fromkeys(c["reason_codes"])),
-                                                                        style="red")
-        table.add_row(str(rank), escape(c["designation"]), *cells, verdict)
-    return table
+            row.append(u.number(c.get("ballast_kg"), "mass", unit=ballast_unit))
+        if c["passes"]:
+            verdict = Text("pass", style="green")
+        else:
+            letters = dict.fromkeys(short_code(code, text)[0] for code, text in zip(c["reason_codes"], c["reasons"]))
+            verdict = Text(" ".join(letters), style="red")
+        table.add_row(*row, verdict)
+    return _lock_widths(table, "maker", width)
 
 
-def match_reasons(result, top: int | None = None, show_rejected: bool = False) -> Text:
-    """Why each shown candidate fails (and what ballast changes), one line per reason."""
-    shown = [c for c in result.candidates if c["fits"] or show_rejected]
-    if top is not None:
-        shown = shown[:top]
+def _cell(u: DisplayUnits, value: float | None, limit: float | None, kind: str, above: bool, failing: bool) -> str:
+    if value is None:
+        return "-"
+    if failing and limit is not None:
+        return u.beyond(value, limit, kind, above=above, with_unit=False)[0]
+    return u.number(value, kind)
+
+
+def match_legend(result: Any, top: int | None = None, show_rejected: bool = False) -> Text:
+    """What the one-letter codes in the result column mean (only the codes shown)."""
+    used: dict[str, str] = {}
+    for c in _shown(result, top, show_rejected):
+        for code, text in zip(c["reason_codes"], c["reasons"]):
+            letter, meaning = short_code(code, text)
+            used.setdefault(letter, meaning)
     text = Text()
-    for rank, c in enumerate(shown, 1):
-        for reason in c["reasons"]:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
-            text.append(reason + "\n", style="red")
-        if c.get("ballast_kg") is not None:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
-            text.append(f"with {c['ballast_kg'] * 1e3:.0f} g of ballast: apogee {c['ballast_apogee_m']:.0f} m, rail exit "
-                        f"{c['ballast_rail_exit_speed_m_s']:.1f} m/s, T/W {c['ballast_liftoff_thrust_to_weight']:.1f}"
-                        + ("" if not c["ballast_reasons"] else " but " + "; ".join(c["ballast_reasons"])) + "\n",
-                        style="yellow" if c["ballast_reasons"] else "green")
-        elif c.get("ballast_reasons"):
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
-            text.append("; ".join(c["ballast_reasons"]) + "\n", style="yellow")
+    if used:
+        text.append("Result codes: ", style="bold")
+        text.append("; ".join(f"{letter} {meaning}" for letter, meaning in used.items()) + ".", style="dim")
     return text
 
 
-def conditions_text(result) -> Text:
-    c = result.conditions
+def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = None,
+                  show_rejected: bool = False) -> Text:
+    """Why each shown candidate fails (and what ballast changes), one line per reason."""
+    u, cond = units, result.conditions
+    text = Text()
+    for rank, c in enumerate(_shown(result, top, show_rejected), 1):
+        for code, message in zip(c["reason_codes"], c["reasons"]):
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(reason_text(code, message, c, cond, u) + "\n", style="red")
+        ballast_reasons = c.get("ballast_reasons") or []
+        codes = c.get("ballast_reason_codes") or [""] * len(ballast_reasons)
+        later = [reason_text(code, message, c, cond, u, "ballast_") for code, message in zip(codes, ballast_reasons)]
+        if c.get("ballast_kg") is not None:
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(f"with {u.quantity(c['ballast_kg'], 'mass')} of ballast: apogee "
+                        f"{u.quantity(c['ballast_apogee_m'], 'length')}, rail exit "
+                        f"{u.quantity(c['ballast_rail_exit_speed_m_s'], 'speed')}, T/W "
+                        f"{u.number(c['ballast_liftoff_thrust_to_weight'], 'ratio')}"
+                        + ("" if not later else " but " + "; ".join(later)) + "\n",
+                        style="yellow" if later else "green")
+        elif later:
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append("; ".join(later) + "\n", style="yellow")
+    return text
+
+
+def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = None) -> Text:
+    """The assumptions and rules behind a ranking, echoing the airframe file's and the options' own numbers."""
+    c, u = result.conditions, units
     text = Text("Assumptions: ", style="bold")
-    text.append(f"{c['drag']}; {c['atmosphere']}; wind {c['wind']}; rail {c['rail']}; recovery {c['recovery']}. ")
-    text.append(f"Rules: rail exit >= {c['min_rail_exit_speed_m_s']:g} m/s, liftoff T/W >= "
-                f"{c['min_liftoff_thrust_to_weight']:g}, delay within {c['delay_slack_s']:g} s of optimal, ejection "
-                f"<= {c['max_ejection_speed_m_s']:g} m/s, descent <= {c['max_landing_speed_m_s']:g} m/s"
-                + (f", ceiling {c['ceiling_m']:g} m" if c.get("ceiling_m") else "")
+    if frame is not None:
+        launch, site = frame.launch, frame.launch.site
+        drag = (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+                else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
+        air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
+                                                 if site.elevation_m else "")
+        if site.temperature_k is not None:
+            air += f", {u.given(site.temperature_k, 'temperature')} at the pad"
+        if site.pressure_pa is not None:
+            air += f", {u.given(site.pressure_pa, 'air_pressure')} at the pad"
+        wind = f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7"
+        rail = f"{u.given(launch.rail_length_m, 'length')} at {u.given(launch.rail_angle_rad, 'angle')} from vertical"
+        text.append(f"{drag}; {air}; wind {wind}; rail {rail}; recovery {c['recovery']}. ")
+    else:
+        text.append(f"{c['drag']}; {c['atmosphere']}; wind {c['wind']}; rail {c['rail']}; recovery {c['recovery']}. ")
+    text.append(f"Rules: rail exit >= {u.limit(c['min_rail_exit_speed_m_s'], 'speed')}, liftoff T/W >= "
+                f"{u.limit(c['min_liftoff_thrust_to_weight'], 'ratio')}, delay within {u.limit(c['delay_slack_s'], 'time')} "
+                f"of optimal, ejection <= {u.limit(c['max_ejection_speed_m_s'], 'speed')}, descent <= "
+                f"{u.limit(c['max_landing_speed_m_s'], 'speed')}"
+                + (f", ceiling {u.given(c['ceiling_m'], 'length')}" if c.get("ceiling_m") else "")
                 + (f", classes up to {c['max_class']}" if c.get("max_class") else "") + ". ")
     text.append("Delay column: chosen/optimal; 'd' = drilled (adjustable motor).", style="dim")
+    return text
+
+
+# ----------------------------------------------------------------------------- static tests
+def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
+                   units: DisplayUnits = _METRIC) -> Text:
+    """One line per reduced log and the spread of several firings (thrust in N, as the label states it)."""
+    u = units
+    text = Text()
+    for entry in summary:
+        text.append(escape(entry["file"]), style="bold")
+        text.append(f": {u.plain(entry['sample_rate_hz'])} Hz, baseline {u.precise(entry['baseline_n'], 'force')}, "
+                    f"noise {u.precise(entry['noise_n'], 'force', 2)}, "
+                    + (f"low-pass {u.plain(entry['cutoff_hz'])} Hz, " if entry["cutoff_hz"] else "no filter, ")
+                    + f"ignition at {u.quantity(entry['ignition_time_s'], 'time', 3)}, burnout at "
+                      f"{u.quantity(entry['burnout_time_s'], 'time', 3)}, {entry['points']} points (impulse within "
+                      f"{100 * entry['reduction_impulse_error']:.3f} %)\n")
+    if spread:
+        ti, bt = spread["total_impulse_ns"], spread["event_burn_time_s"]
+        d = u.column_decimals([ti["mean"], ti["min"]], "impulse")
+        text.append(f"{spread['n_firings']} firings: total impulse {u.number(ti['mean'], 'impulse', d)} ± "
+                    f"{u.number(ti['std'], 'impulse', d)} N·s ({u.number(ti['min'], 'impulse', d)}-"
+                    f"{u.number(ti['max'], 'impulse', d)}), burn {u.number(bt['mean'], 'time')} ± "
+                    f"{u.number(bt['std'], 'time')} s\n")
     return text

@@ -20,7 +20,7 @@ def test_catalog_commands_end_to_end(tmp_path: Path) -> None:
     assert code == 0 and "27 added" in out
     # a test-stand CSV, then finding it again (the README tour)
     code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12-5",
-                    "--maker", "Stand team (fictional)", "--diameter", "24", "--length", "70", "--total-mass", "44g",
+                    "--maker", "Stand team (fictional)", "--diameter", "24mm", "--length", "70mm", "--total-mass", "44g",
                     "--propellant-mass", "21g", "--delays", "5", "--source-kind", "own-firing")
     assert code == 0 and "1 added" in out
     code, out = run("catalog", "list", "--catalog", cat, "--maker", "stand", "--json")
@@ -69,7 +69,7 @@ def _delay_cell(out: str, designation: str) -> str:
 def test_a_csv_added_without_delays_shows_unknown_not_plugged(tmp_path: Path) -> None:
     # Issue 14: a CSV added without --delays showed as plugged.
     cat = str(tmp_path / "motors")
-    common = ["--diameter", "24", "--length", "70", "--total-mass", "44g", "--propellant-mass", "21g"]
+    common = ["--diameter", "24mm", "--length", "70mm", "--total-mass", "44g", "--propellant-mass", "21g"]
     code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12",
                     "--maker", "Unknown delays (fictional)", *common)
     assert code == 0, out

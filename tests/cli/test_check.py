@@ -46,7 +46,7 @@ def test_single_file_shows_details() -> None:
 
 def test_check_csv_with_metadata_options() -> None:
     code, out = run("check", "--json", str(FIXTURE_DIR / "unit_mix_up_lbf.csv"), "--designation", "D12-5",
-                    "--thrust-unit", "lbf", "--diameter", "24", "--length", "70mm", "--total-mass", "44g",
+                    "--thrust-unit", "lbf", "--diameter", "24mm", "--length", "70mm", "--total-mass", "44g",
                     "--propellant-mass", "0.74 oz", "--delays", "5")
     obj = json.loads(out)[0]
     assert code == 0, out

@@ -13,8 +13,8 @@ from .conftest import run
 def test_import_writes_a_checked_record(tmp_path: Path) -> None:
     out_path = tmp_path / "d12.xml"
     code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "D12-5",
-                    "--maker", "Stand team (fictional)", "--diameter", "24", "--length", "70", "--total-mass", "44",
-                    "--propellant-mass", "21", "--delays", "5", "--source-kind", "own-firing",
+                    "--maker", "Stand team (fictional)", "--diameter", "24mm", "--length", "70mm", "--total-mass", "44g",
+                    "--propellant-mass", "21g", "--delays", "5", "--source-kind", "own-firing",
                     "--test-date", "2026-11-14")
     assert code == 0, out
     record = read_record(out_path)

@@ -85,3 +85,13 @@ def test_bundled_airframes_load() -> None:
     for name in names:
         frame = load_airframe(SAMPLE_DIR / "airframes" / f"{name}.toml")
         assert "(demo)" in frame.name and frame.mount_diameter_m is not None
+
+
+def test_recovery_area_takes_a_unit_and_values_remember_their_text(tmp_path: Path) -> None:
+    # Issue 14: drag area in m² or in²; reports echo the file's own numbers ("800 ft", not 243.84 m).
+    text = BASE.replace('diameter = "0.6 m"', 'area = "78 in2"')
+    frame = load_airframe(_write(tmp_path, text))
+    assert frame.recovery.drag_area_m2 == pytest.approx(0.8 * 78 * 0.0254**2)
+    assert frame.launch.site.elevation_m.text == "800 ft" and frame.launch.rail_length_m.text == "1.5 m"
+    bare = load_airframe(_write(tmp_path, text.replace('area = "78 in2"', "area = 0.05")))
+    assert bare.recovery.drag_area_m2 == pytest.approx(0.8 * 0.05)

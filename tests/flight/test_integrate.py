@@ -244,3 +244,22 @@ def test_descent_from_apogee_follows_the_closed_form_fall() -> None:
     assert results.descent_time_s[0] == pytest.approx(expected, rel=1e-4)
     assert results.landing_descent_rate_m_s[0] == pytest.approx(float(fall_speed_m_s(expected, v_t)), rel=1e-4)
     assert abs(results.drift_m[0]) < 1e-9
+
+
+def test_results_have_a_short_repr_and_a_data_frame() -> None:
+    # Issue 14: pd.DataFrame(results) raised and the repr dumped every trajectory array.
+    motors = [constant_motor(50.0, 1.0, 0.1), constant_motor(80.0, 1.0, 0.1)]
+    results = simulate(vacuum_frame(0.4), motors, FLAT, trajectories=True)
+    text = repr(results)
+    assert text.startswith("FlightResults(2 flights, 2 ok") and "apogee_m" in text and len(text) < 300
+    frame = results.to_frame(index=["A", "B"])
+    assert list(frame.index) == ["A", "B"] and frame.loc["B", "apogee_m"] == results.apogee_m[1]
+    assert {"status", "message", "optimal_delay_s", "rail_exit_speed_m_s"} <= set(frame.columns)
+    assert frame.loc["A", "message"] == "flight completed"
+
+
+def test_a_single_record_is_accepted_where_a_list_is_expected() -> None:
+    motor = constant_motor(50.0, 1.0, 0.1)
+    one = simulate(vacuum_frame(0.4), motor, FLAT)
+    assert one.n_flights == 1 and one.apogee_m[0] == simulate(vacuum_frame(0.4), [motor], FLAT).apogee_m[0]
+    assert MotorPack.from_records(motor).n_motors == 1

@@ -177,7 +177,7 @@ def test_match_json_and_text(tmp_path: Path) -> None:
     plot = tmp_path / "m.png"
     out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--top", "5",
                                "--show-rejected", "--plot", str(plot), "--units", "imperial"])
-    assert out.exit_code == 0 and "Caution" in out.output and "apogee ft" in out.output and plot.exists()
+    assert out.exit_code == 0 and "Caution" in out.output and "ft/s" in out.output and plot.exists()
     out = runner.invoke(main, ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--csv"])
     assert out.exit_code == 0 and out.output.splitlines()[0].startswith("motor_id,")
 
@@ -213,6 +213,22 @@ def test_plain_records_rank_like_the_catalog(sample_catalog: Catalog) -> None:
     by_catalog = rank(frame, rows, sample_catalog.motor_pack, settings)
     assert [c["motor_id"] for c in by_records.candidates] == [c["motor_id"] for c in by_catalog.candidates]
     assert [c["apogee_m"] for c in by_records.candidates] == [c["apogee_m"] for c in by_catalog.candidates]
+
+
+def test_one_call_rank_for_the_common_case(sample_catalog: Catalog) -> None:
+    # Issue 14: motorlib.rank(airframe, catalog, settings) without rows or a pack function.
+    import motorlib
+
+    frame = load_airframe(AIRFRAME)
+    settings = MatchSettings(target_m=400.0, allow_smaller_motors=True)
+    easy = motorlib.rank(frame, sample_catalog, settings)
+    full = rank(frame, sample_catalog.rows(), sample_catalog.motor_pack, settings)
+    assert [c["motor_id"] for c in easy.candidates] == [c["motor_id"] for c in full.candidates]
+    record = sample_catalog.get("F29-8")
+    single = motorlib.rank(frame, record, settings)
+    assert len(single.candidates) == 1 and single.candidates[0]["apogee_m"] == pytest.approx(
+        next(c["apogee_m"] for c in full.candidates if c["designation"] == "F29-8"), rel=1e-12)
+    assert [c["designation"] for c in motorlib.rank(frame, [record, record], settings).candidates] == ["F29-8"] * 2
 
 
 def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> None:

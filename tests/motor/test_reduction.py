@@ -188,7 +188,7 @@ def test_reduce_command_makes_a_catalog_ready_file(tmp_path: Path) -> None:
     out = tmp_path / "G59-10.xml"
     plot = tmp_path / "firing.png"
     result = CliRunner().invoke(main, ["reduce", str(log), "--designation", "G59-10", "--maker", "Stand team (fictional)",
-                                       "--diameter", "29", "--length", "124", "--total-mass", "150g",
+                                       "--diameter", "29mm", "--length", "124mm", "--total-mass", "150g",
                                        "--propellant-mass", "62g", "--delays", "10", "-o", str(out), "--plot", str(plot)])
     assert result.exit_code == 0, result.output
     assert check_file(out).ok and plot.exists()

@@ -1,0 +1,40 @@
+"""``motorlib new-airframe``: write a commented airframe file to start from."""
+
+from __future__ import annotations
+
+import click
+
+from .options import _units_option, display_units
+from .output import _console
+
+
+@click.command("new-airframe")
+@click.argument("path", type=click.Path(dir_okay=False))
+@click.option("--overwrite", is_flag=True, help="Replace PATH if it exists.")
+@_units_option
+def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
+    """Write a commented airframe file (TOML) to PATH, to edit and then fly or match.
+
+    Every key is explained in the file; the example values are a 41.6 mm
+    sport model, in metric or imperial units (--units). An existing file is
+    never replaced without --overwrite.
+
+    \b
+    Example:
+      motorlib new-airframe rocket.toml
+      motorlib new-airframe rocket.toml --units imperial --overwrite
+    """
+    from pathlib import Path
+
+    from ..files.airframe_toml import airframe_template
+    from ..files.fsio import write_atomic
+
+    text = airframe_template(display_units(units).system, Path(path).name)
+    try:
+        written = write_atomic(path, text.encode(), overwrite=overwrite)
+    except FileExistsError as exc:
+        raise click.ClickException(f"{exc}; use --overwrite to replace it") from None
+    from rich.markup import escape
+
+    _console().print(f"Wrote {escape(str(written))}: edit the values, then try "
+                     f"'motorlib fly {escape(str(written))} --motor F29-8'.")

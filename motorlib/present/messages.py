@@ -1,0 +1,78 @@
+"""Messages that carry quantities, written in display units from the library's figures.
+
+The library states reasons and warnings in SI text (its JSON keeps that text); the commands show them again
+from the same figures in the user's display units, echoing the user's own limits, and with rounding that never
+makes a failing figure read as within its limit. A code this module does not know keeps the library's text.
+No rich here, so the CSV output can use the same words.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from .display import DisplayUnits
+
+__all__ = ["REASON_CODES", "reason_text", "short_code", "warning_message"]
+
+# Library reason code (and for "fit"/"flight" the start of its text) -> (short code, legend).
+REASON_CODES = {
+    "rail": ("R", "rail exit too slow"), "T/W": ("T", "thrust-to-weight too low"), "ceiling": ("C", "over the ceiling"),
+    "delay": ("D", "no delay near the optimal one"), "eject": ("E", "ejection too fast"),
+    "lands first": ("L", "lands before the delay fires"), "descent": ("S", "descends too fast under the device"),
+    "no charge": ("P", "plugged: no ejection charge and no electronics"),
+    "delays unknown": ("W", "ejection delays not given"),
+    "flight:thrust never": ("N", "no liftoff"), "flight:the rocket stops": ("K", "stuck on the rail"),
+    "flight": ("X", "flight not completed"), "fit:class": ("A", "above your class limit"),
+    "fit:cannot be flown": ("U", "masses unknown"), "fit": ("M", "does not fit the mount"),
+}
+
+
+def short_code(code: str, text: str) -> tuple[str, str]:
+    """The one-letter code shown in the match table's result column, and its meaning for the legend."""
+    for key, value in REASON_CODES.items():
+        base, _, start = key.partition(":")
+        if base == code and (not start or text.startswith(start)):
+            return value
+    return ("?", code)
+
+
+def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits,
+                prefix: str = "") -> str:
+    """One failed rule in display units, from the candidate's figures (``prefix``: ``ballast_`` after ballast)."""
+    get = lambda key: c.get(prefix + key)  # noqa: E731
+    if code == "rail" and get("rail_exit_speed_m_s") is not None:
+        v, lim = u.beyond(get("rail_exit_speed_m_s"), cond["min_rail_exit_speed_m_s"], "speed", above=False)
+        return f"rail exit too slow: {v}, below {lim}"
+    if code == "T/W" and get("liftoff_thrust_to_weight") is not None:
+        v, lim = u.beyond(get("liftoff_thrust_to_weight"), cond["min_liftoff_thrust_to_weight"], "ratio", above=False)
+        return f"thrust-to-weight too low: {v}, below {lim}"
+    if code == "ceiling" and get("apogee_m") is not None and cond.get("ceiling_m"):
+        v, lim = u.beyond(get("apogee_m"), cond["ceiling_m"], "length", above=True)
+        return f"over the ceiling: apogee {v} above {lim}"
+    if code == "eject" and get("ejection_speed_m_s") is not None:
+        v, lim = u.beyond(get("ejection_speed_m_s"), cond["max_ejection_speed_m_s"], "speed", above=True, decimals=0)
+        return f"ejection too fast: {v} at the {get('chosen_delay_s'):g} s delay (limit {lim})"
+    if code == "descent" and get("landing_speed_m_s") is not None:
+        v, lim = u.beyond(get("landing_speed_m_s"), cond["max_landing_speed_m_s"], "speed", above=True)
+        return f"descent too fast: {v} under the device (limit {lim})"
+    return message
+
+
+def warning_message(code: str, message: str, s: dict[str, Any], rules: Any, u: DisplayUnits, wind: float) -> str:
+    """One flight warning (:func:`motorlib.flight.rules.flight_warnings`) in display units."""
+    if code == "rail-exit-slow":
+        v, lim = u.beyond(s["rail_exit_speed_m_s"], rules.min_rail_exit_speed_m_s, "speed", above=False)
+        return f"rail exit speed {v} is below {lim}: the rocket may not fly straight; use a longer rail or a stronger motor"
+    if code == "rail-exit-slow-for-wind":
+        return (f"rail exit speed {u.quantity(s['rail_exit_speed_m_s'], 'speed')} is less than "
+                f"{rules.rail_exit_wind_ratio:g} x the wind speed {u.given(wind, 'speed')}")
+    if code == "thrust-to-weight-low":
+        v, lim = u.beyond(s["liftoff_thrust_to_weight"], rules.min_liftoff_thrust_to_weight, "ratio", above=False)
+        return f"liftoff thrust-to-weight {v} is below {lim}"
+    if code == "ejection-fast":
+        v, lim = u.beyond(s["chosen_ejection_speed_m_s"], rules.max_ejection_speed_m_s, "speed", above=True, decimals=0)
+        return f"the rocket moves at {v} at ejection (above {lim}): risk of damage or a torn canopy"
+    if code == "descent-fast":
+        v, lim = u.beyond(s["landing_descent_rate_m_s"], rules.max_landing_speed_m_s, "speed", above=True)
+        return f"descent rate at landing {v} is above {lim}: use a larger parachute"
+    return message

@@ -1,0 +1,73 @@
+"""Display units (issue 14): one module converts and formats every quantity a command shows."""
+
+from __future__ import annotations
+
+import pytest
+from hypothesis import example, given, strategies as st
+
+from motorlib.present.display import DisplayUnits, format_number, normalise_system
+from motorlib.units import parse_quantity
+
+METRIC, IMPERIAL = DisplayUnits("metric"), DisplayUnits("imperial")
+
+
+def test_systems_and_their_names() -> None:
+    assert normalise_system("si") == normalise_system("Metric") == "metric"
+    assert DisplayUnits("IMPERIAL").system == "imperial"
+    with pytest.raises(ValueError, match="metric or imperial"):
+        DisplayUnits("cubits")
+
+
+@pytest.mark.parametrize(("units", "value", "kind", "expected"), [
+    (METRIC, 1024.4, "length", "1,024 m"), (IMPERIAL, 701.04, "length", "2,300 ft"),
+    (METRIC, 13.48, "mass", "13.48 kg"), (METRIC, 0.3773, "mass", "377 g"),
+    (IMPERIAL, 0.3773, "mass", "13.3 oz"), (IMPERIAL, 13.48, "mass", "29.72 lb"),
+    (METRIC, 120.0, "speed", "120.0 m/s"), (IMPERIAL, 288.15, "temperature", "59 °F"),
+    (METRIC, 0.029, "motor_size", "29.0 mm"), (IMPERIAL, 0.029, "motor_size", "29.0 mm"),
+    (IMPERIAL, 160.0, "impulse", "160.0 N·s"), (IMPERIAL, 6894.757293168361, "pressure", "1.00 psi"),
+    (IMPERIAL, 0.1806448, "area", "1.94 ft²"), (IMPERIAL, 0.0180645, "area", "28.0 in²"),
+])
+def test_quantities_for_people(units: DisplayUnits, value: float, kind: str, expected: str) -> None:
+    assert units.quantity(value, kind) == expected
+
+
+def test_no_scientific_notation_and_thousands_separators() -> None:
+    # Issue 14: "1.2e+02 m/s" and "mass 1.348e+04 g" must not appear.
+    assert format_number(120.0, 1) == "120.0" and format_number(13480.0, 0) == "13,480"
+    assert "e" not in METRIC.quantity(1e-7, "speed") and "e" not in METRIC.quantity(1.2e9, "length")
+    assert METRIC.number(None, "length") == METRIC.number(float("nan"), "length") == "-"
+
+
+def test_a_column_keeps_one_unit_and_enough_decimals() -> None:
+    assert METRIC.column_unit([0.2, 13.5], "mass") == "kg" and METRIC.column_unit([0.2, 0.9], "mass") == "g"
+    assert METRIC.column_decimals([0.625, 9732.0], "impulse") == 2  # 0.62, 9,732.00: no small motor shows 0.6
+    assert METRIC.column_decimals([35.0, 9732.0], "impulse") == 1
+
+
+def test_the_users_own_numbers_are_echoed() -> None:
+    typed = parse_quantity("2300ft", "length", keep_text=True)
+    assert METRIC.given(typed, "length") == "2300 ft" and IMPERIAL.limit(typed, "length") == "2300 ft"
+    assert METRIC.given(701.04, "length") == "701 m"
+    assert IMPERIAL.limit(15.0, "speed") == "49.2 ft/s" and METRIC.limit(6.5, "speed") == "6.5 m/s"
+
+
+@pytest.mark.parametrize(("value", "limit", "above", "expected"), [
+    (6.52, 6.5, True, ("6.52 m/s", "6.5 m/s")), (6.5000001, 6.5, True, ("6.5001 m/s", "6.5 m/s")),
+    (14.96, 15.0, False, ("14.96 m/s", "15 m/s")), (14.2, 15.0, False, ("14.2 m/s", "15 m/s")),
+])
+def test_rounding_never_hides_a_failure(value: float, limit: float, above: bool, expected: tuple[str, str]) -> None:
+    # Issue 14: "6.5 m/s (limit 6.5 m/s)" for 6.52 m/s must not appear.
+    assert METRIC.beyond(value, limit, "speed", above=above) == expected
+
+
+def _number(text: str) -> float:
+    return float(text.split()[0].replace(",", ""))
+
+
+@given(st.floats(0.1, 5000.0), st.floats(1e-9, 0.5), st.booleans(), st.sampled_from([METRIC, IMPERIAL]))
+@example(15.0, 0.0003, False, IMPERIAL)
+def test_a_failing_value_always_reads_beyond_its_limit(limit: float, gap: float, above: bool,
+                                                       units: DisplayUnits) -> None:
+    value = limit * (1 + gap) if above else limit * (1 - gap)
+    shown, limit_shown = units.beyond(value, limit, "speed", above=above)
+    assert _number(shown) > _number(limit_shown) if above else _number(shown) < _number(limit_shown)
