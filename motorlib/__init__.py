@@ -40,7 +40,9 @@ from .errors import (
     SchemaValidationError,
     SimulationInputError,
 )
-from .flight.integrate import FlightResults, FlightSettings, MotorPack, simulate
+from .flight.integrate import FlightSettings, simulate
+from .flight.pack import MotorPack
+from .flight.results import FlightResults
 from .matching.rank import MatchResult, MatchSettings, rank
 from .motor.reduction import Reduction, ReductionSettings, reduce_log
 from .flight.rules import LaunchRules

@@ -554,7 +554,7 @@ class Catalog:
 
     def motor_pack(self, rows: Sequence[dict[str, Any]], drill_step_s: float = 1.0) -> Any:
         """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :meth:`rows`), built from the index."""
-        from ..flight.integrate import MotorPack
+        from ..flight.pack import MotorPack
 
         data = self.samples([r["motor_id"] for r in rows])
         return MotorPack.from_samples(
