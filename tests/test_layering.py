@@ -38,7 +38,7 @@ FORBIDDEN = {
 # The only places a layer may import a package it otherwise must not: inside one function that exists to hand
 # results to that package (``FlightResults.to_frame`` builds a pandas DataFrame when called). The runtime probes
 # below still require that importing the layer never loads it.
-LAZY_BRIDGES = {("flight/integrate.py", "pandas")}
+LAZY_BRIDGES = {("flight/results.py", "pandas")}
 
 
 def _layer_of(path: Path) -> str:

@@ -1,8 +1,43 @@
-"""The flight physics, numpy only: atmosphere, airframe records, the batched integrator, descent, launch rules."""
+"""The flight physics, numpy only: atmosphere, airframe records, the batched integrator, descent, launch rules.
+
+Model
+-----
+State per flight: downrange x, altitude z above the pad, and their speeds
+(m, m/s); time is motor time, 0 at ignition. Forces:
+
+* thrust along the body axis; the motor record gives thrust (linear between
+  samples) and mass (propellant consumed in proportion to impulse delivered);
+* gravity g(Z) = g0·(r0/(r0+Z))² at geometric altitude Z (or constant g0);
+* drag D = ½·ρ·|v_rel|²·(Cd·A + Cd·A of a deployed device) against the
+  air-relative velocity v_rel = v − wind; Cd constant or linear in Mach;
+* air from the U.S. Standard Atmosphere 1976 with the site's offsets
+  (:mod:`motorlib.flight.atmosphere`), read from a 5 m table of ρ and a;
+* wind blowing downrange, w(z) = w10·(max(z, z_floor)/10 m)^(1/7), the usual
+  power-law profile (common practice, no published source).
+
+Phases: the rocket waits on the pad until thrust exceeds the weight component
+along the rail (solved exactly on the curve, so the pad wait is not
+integrated); on the rail it moves only along the rail (no friction); after
+rail exit the body axis follows v_rel (a stable rocket weathercocks into the
+wind); after deployment the device's drag area is added.
+
+Modules
+-------
+* ``airframe``, ``atmosphere``: the rocket, launch and recovery records; the air;
+* ``pack``: motors as flat arrays (:class:`MotorPack`);
+* ``dynamics``: air, gravity and wind tables on a height grid, and the accelerations;
+* ``events``: the liftoff solve, and Hermite location of apogee, landing, ejection and deployment;
+* ``integrate``: :class:`FlightSettings`, :func:`simulate` and the batched RK4 loop;
+* ``recovery_phase``: where each descent under the device starts, and its step size;
+* ``results``: status codes, ``MESSAGES`` and :class:`FlightResults`;
+* ``descent``: closed-form fall under quadratic drag; ``rules``: launch rules of thumb.
+"""
 
 from .airframe import Airframe, Launch, Recovery
 from .atmosphere import Site
-from .integrate import MESSAGES, NO_LIFTOFF, NO_MASS, OK, STUCK_ON_RAIL, FlightResults, FlightSettings, MotorPack, simulate
+from .integrate import FlightSettings, simulate
+from .pack import MotorPack
+from .results import MESSAGES, NO_LIFTOFF, NO_MASS, OK, STUCK_ON_RAIL, FlightResults
 from .rules import LaunchRules, flight_warnings
 
 __all__ = [

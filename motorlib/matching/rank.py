@@ -24,7 +24,9 @@ import numpy as np
 from ..flight.airframe import Airframe
 from ..motor.classes import CLASS_LETTERS
 from ..motor.record import MotorRecord
-from ..flight.integrate import OK, FlightResults, FlightSettings, MotorPack, simulate
+from ..flight.integrate import FlightSettings, simulate
+from ..flight.pack import MotorPack
+from ..flight.results import OK, FlightResults
 from ..flight.rules import LaunchRules
 from ..units import STANDARD_GRAVITY_M_S2
 

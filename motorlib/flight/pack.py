@@ -1,0 +1,102 @@
+"""Motors as flat arrays: thrust curves, impulse and masses of n motors padded to one width.
+
+The batched integrator reads only these arrays, so the flight loop never iterates
+motors (see :mod:`motorlib.flight.integrate`). numpy only.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Final, Sequence
+
+import numpy as np
+
+from ..motor.record import MotorRecord
+
+__all__ = ["MotorPack"]
+
+_TINY: Final = 1e-12  # floor on curve time spans [s]: guards a division by a zero-length segment
+
+
+@dataclass(frozen=True, eq=False)
+class MotorPack:
+    """Thrust curves and masses of n motors packed into padded arrays.
+
+    Arrays of shape (n, n_samples_max) are padded with the last time and zero
+    thrust; ``delays_s`` has shape (n, n_delays_max), padded with NaN, and holds
+    every delay an ejection state is reported for (listed delays, plus the
+    drillable ones of adjustable motors).
+    """
+
+    time_s: np.ndarray
+    thrust_n: np.ndarray
+    cumulative_ns: np.ndarray
+    n_samples: np.ndarray
+    total_impulse_ns: np.ndarray
+    total_mass_kg: np.ndarray
+    propellant_mass_kg: np.ndarray
+    burnout_s: np.ndarray
+    delays_s: np.ndarray
+    has_mass: np.ndarray
+
+    @property
+    def n_motors(self) -> int:
+        return int(self.n_samples.size)
+
+    @classmethod
+    def from_records(cls, records: Sequence[MotorRecord] | MotorRecord, drill_step_s: float = 1.0) -> MotorPack:
+        """Pack motor records, or one record (one Python pass to copy samples; the flight loop never iterates motors)."""
+        if isinstance(records, MotorRecord):
+            records = [records]
+        if len(records) == 0:
+            raise ValueError("`records` must not be empty")
+        return cls.from_samples(
+            [(r.time_s, r.thrust_n) for r in records],
+            total_mass_kg=[r.total_mass_kg for r in records],
+            propellant_mass_kg=[r.propellant_mass_kg for r in records],
+            delays_s=[r.delays_s for r in records],
+            delay_adjustable=[r.delay_adjustable for r in records],
+            drill_step_s=drill_step_s,
+        )
+
+    @classmethod
+    def from_samples(cls, samples: Sequence[tuple[np.ndarray, np.ndarray]], *,
+                     total_mass_kg: Sequence[float | None], propellant_mass_kg: Sequence[float | None],
+                     delays_s: Sequence[Sequence[float]], delay_adjustable: Sequence[bool],
+                     drill_step_s: float = 1.0) -> MotorPack:
+        """Pack (time [s], thrust [N]) arrays of valid curves with their masses [kg] and delays [s]."""
+        n = len(samples)
+        if n == 0:
+            raise ValueError("`samples` must not be empty")
+        counts = np.array([t.size for t, _ in samples], dtype=np.int64)
+        width = int(counts.max())
+        delay_lists = [_report_delays(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
+        n_delays = max(1, max(len(d) for d in delay_lists))
+        time = np.empty((n, width))
+        thrust = np.zeros((n, width))
+        delays = np.full((n, n_delays), np.nan)
+        for i, ((t, f), d) in enumerate(zip(samples, delay_lists)):
+            k = t.size
+            time[i, :k] = t
+            time[i, k:] = t[-1]
+            thrust[i, :k] = f
+            delays[i, : len(d)] = d
+        has_mass = np.array([m is not None and p is not None for m, p in zip(total_mass_kg, propellant_mass_kg)])
+        total = np.array([m if ok else 1.0 for m, ok in zip(total_mass_kg, has_mass)], dtype=float)
+        propellant = np.array([p if ok else 0.0 for p, ok in zip(propellant_mass_kg, has_mass)], dtype=float)
+        steps = 0.5 * (thrust[:, 1:] + thrust[:, :-1]) * np.diff(time, axis=1)
+        cumulative = np.concatenate((np.zeros((n, 1)), np.cumsum(steps, axis=1)), axis=1)
+        last_burning = width - 1 - np.argmax((thrust > 0.0)[:, ::-1], axis=1)
+        burnout = time[np.arange(n), np.minimum(last_burning + 1, counts - 1)]
+        return cls(time, thrust, cumulative, counts, cumulative[:, -1].copy(), total, propellant, burnout, delays,
+                   has_mass)
+
+
+def _report_delays(delays_s: Sequence[float], adjustable: bool, drill_step_s: float) -> list[float]:
+    """Delays [s] to report an ejection state for: the listed ones, and for an adjustable motor every
+    multiple of ``drill_step_s`` below the longest."""
+    listed = sorted(delays_s)
+    if not adjustable or not listed:
+        return listed
+    drilled = list(np.arange(drill_step_s, listed[-1], drill_step_s))
+    return sorted(set(listed) | {round(d, 9) for d in drilled})
