@@ -2,8 +2,8 @@
 
 ``cli/`` is the only package that imports click. This module holds the group :func:`main` (the console-script
 entry point) with its version option and safety epilog, and registers the commands, one module each:
-``check``, ``import`` (:mod:`.importing`), ``fly``, ``descent``, ``catalog``, ``match``, ``demo``, ``reduce`` and
-``new-airframe``.
+``check``, ``import`` (:mod:`.importing`), ``fly``, ``airframe``, ``descent``, ``catalog``, ``match``, ``demo``,
+``reduce`` and ``new-airframe``.
 Shared option types and catalog lookup live in :mod:`.options`, consoles and the caution in :mod:`.output`.
 Library errors reach the terminal in one place, :class:`.group._Group`, as ``Error: path:line: field: problem``
 with exit 1. Command modules import only click and the standard library at start-up; each command imports
@@ -15,6 +15,7 @@ from __future__ import annotations
 import click
 
 from .. import __version__
+from .airframe import airframe
 from .catalog import catalog
 from .check import check
 from .demo import demo
@@ -48,10 +49,11 @@ def main(units: str | None) -> None:
       motorlib --units imperial match my-rocket.toml --target 1000ft
       motorlib check sample_curves/             # check every bundled curve
       motorlib fly sample_curves/airframes/quibble-41.toml --motor F29-8
+      motorlib airframe sample_curves/airframes/quibble-41.toml --motor F29-8
       motorlib check stand.csv --designation F30-6 --diameter 24mm --json
       motorlib import stand.csv -o F30.xml --designation F30-6
     """
 
 
-for _command in (check, import_curve, fly, descent, catalog, match, demo, reduce, new_airframe):
+for _command in (check, import_curve, fly, airframe, descent, catalog, match, demo, reduce, new_airframe):
     main.add_command(_command)

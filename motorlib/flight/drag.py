@@ -70,6 +70,7 @@ __all__ = [
     "base_drag_coefficient",
     "drag_breakdown",
     "drag_components",
+    "drag_conditions_for",
     "drag_curves",
     "drag_table_for",
     "friction_coefficient",
@@ -445,4 +446,17 @@ def drag_table_for(airframe: Airframe, *, max_mach: float = 3.0, mach_step: floa
     if airframe.geometry is None:
         raise ValueError(f"`airframe` {airframe.name!r} has no geometry")
     return drag_curves(airframe.geometry, airframe.diameter_m, max_mach=max_mach, mach_step=mach_step,
-                       altitude_m=airframe.launch.site.elevation_m, exhaust_diameter_m=airframe.mount_diameter_m)
+                       **drag_conditions_for(airframe))
+
+
+def drag_conditions_for(airframe: Airframe) -> dict[str, float | None]:
+    """The conditions :func:`drag_table_for` estimates an airframe's drag at, as keyword arguments.
+
+    ``altitude_m``: the pad elevation [m] (the Reynolds number's altitude); ``exhaust_diameter_m``:
+    the motor mount diameter [m] (the base area the exhaust fills while burning), or None.
+
+    >>> from motorlib.flight.airframe import Airframe
+    >>> drag_conditions_for(Airframe("a", 0.3, 0.04, mount_diameter_m=0.029))
+    {'altitude_m': 0.0, 'exhaust_diameter_m': 0.029}
+    """
+    return {"altitude_m": airframe.launch.site.elevation_m, "exhaust_diameter_m": airframe.mount_diameter_m}

@@ -1,4 +1,4 @@
-"""Airframe shape: centre of pressure by Barrowman's method, centre of gravity with a motor, stability margin.
+"""Airframe shape and its centre of pressure by Barrowman's method.
 
 Model
 -----
@@ -35,12 +35,7 @@ Mach 0.8 and held above (:data:`MAX_CORRECTED_MACH`); the method is not valid su
 Coordinates: x [m] from the nose tip, positive aft. The body's aft end is at
 nose length + body length; transitions lie inside that length.
 
-Centre of gravity: the airframe's measured balance point without motor, the motor case at its
-own centre of mass (by default the middle of the motor) and the propellant centred in the motor,
-motor aft end = body aft end + ``motor_offset_m``. Margin = (x_CP − x_CG)/d calibers.
-
-One module over 500 lines on purpose: the shape records and the two calculations that read them
-(Barrowman CP, CG with a motor) make one unit, the stability margin; about half is docstrings.
+The centre of gravity with a motor and the stability margin live in :mod:`.stability`.
 
 numpy only.
 """
@@ -49,14 +44,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Final
+from typing import Final
 
 import numpy as np
 
 from ..errors import SimulationInputError
-
-if TYPE_CHECKING:  # only for annotations: airframe.py imports this module
-    from .airframe import Airframe
 
 __all__ = [
     "FIN_PROFILES",
@@ -70,18 +62,12 @@ __all__ = [
     "Geometry",
     "Nose",
     "NormalForce",
-    "Stability",
     "Transition",
     "center_of_pressure_m",
-    "cg_m",
-    "cg_with_motor_m",
     "check_diameters",
     "diameter_at_m",
     "normal_force_components",
     "outline_m",
-    "stability_for",
-    "stability_margin_cal",
-    "stability_margins",
 ]
 
 NOSE_SHAPES: Final = ("conical", "ogive", "parabolic", "elliptical", "power")
@@ -508,144 +494,3 @@ def center_of_pressure_m(geometry: Geometry, diameter_m: float, mach: np.ndarray
     total = sum(p.cn_alpha for p in parts)
     moment = sum(p.cn_alpha * p.cp_m for p in parts)
     return np.asarray(moment / total, dtype=float)
-
-
-def _motor_place(geometry: Geometry, motor_length_m: np.ndarray, case_cg_from_aft_m: np.ndarray | None
-                 ) -> tuple[np.ndarray, np.ndarray]:
-    aft = geometry.length_m + geometry.motor_offset_m
-    centre = aft - motor_length_m / 2.0
-    case = centre if case_cg_from_aft_m is None else aft - np.asarray(case_cg_from_aft_m, dtype=float)
-    return case, centre
-
-
-def cg_m(geometry: Geometry, airframe_mass_kg: float, motor_case_mass_kg: np.ndarray | float,
-         motor_propellant_mass_kg: np.ndarray | float, motor_length_m: np.ndarray | float, *,
-         case_cg_from_aft_m: np.ndarray | float | None = None) -> np.ndarray:
-    """Centre of gravity from the nose tip [m] of the airframe with a motor holding some propellant.
-
-    Parameters
-    ----------
-    geometry : Geometry
-        Gives the airframe's own CG, the body's aft end and the motor offset.
-    airframe_mass_kg : float
-        Empty airframe mass [kg] (its balance point is ``geometry.cg_m``).
-    motor_case_mass_kg, motor_propellant_mass_kg, motor_length_m : float or ndarray
-        Motor case (hardware) mass [kg], propellant mass present [kg] and motor length [m];
-        shape (n_motors,) or broadcastable.
-    case_cg_from_aft_m : float or ndarray, optional
-        Case centre of mass ahead of the motor's aft end [m]; default half the motor length.
-
-    Returns
-    -------
-    ndarray
-        x_CG [m], shape (n_motors,) (broadcast shape of the inputs).
-
-    Notes
-    -----
-    x_CG = (m_a·x_a + m_c·x_c + m_p·x_p)/(m_a + m_c + m_p); motor aft end at body aft end +
-    ``motor_offset_m``; propellant centred in the motor (a core-burning grain burns evenly along
-    its length, so its centre stays put).
-
-    >>> g = Geometry(0.5, Nose("ogive", 0.2), Body(0.8))
-    >>> round(float(cg_m(g, 1.0, 0.0, 1.0, 0.2)), 6)   # 1 kg at 0.5 m, 1 kg at 0.9 m
-    0.7
-    """
-    length = np.asarray(motor_length_m, dtype=float)
-    case_x, prop_x = _motor_place(geometry, length, case_cg_from_aft_m)
-    case_kg = np.asarray(motor_case_mass_kg, dtype=float)
-    prop_kg = np.asarray(motor_propellant_mass_kg, dtype=float)
-    moment = airframe_mass_kg * geometry.cg_m + case_kg * case_x + prop_kg * prop_x
-    return moment / (airframe_mass_kg + case_kg + prop_kg)
-
-
-def cg_with_motor_m(geometry: Geometry, airframe_mass_kg: float, motor_total_mass_kg: np.ndarray | float,
-                    motor_propellant_mass_kg: np.ndarray | float, motor_length_m: np.ndarray | float, *,
-                    case_cg_from_aft_m: np.ndarray | float | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """CG from the nose tip [m] at liftoff (full motor) and at burnout (empty case).
-
-    Parameters as :func:`cg_m`, with the motor's loaded mass ``motor_total_mass_kg`` [kg];
-    arrays of shape (n_motors,) give one CG per motor (vectorised: k motors together equal k
-    single calls).
-
-    Returns
-    -------
-    cg_liftoff_m, cg_burnout_m : ndarray
-        Shape (n_motors,).
-
-    Raises
-    ------
-    ValueError
-        If a propellant mass exceeds its motor's total mass.
-    """
-    total = np.asarray(motor_total_mass_kg, dtype=float)
-    prop = np.asarray(motor_propellant_mass_kg, dtype=float)
-    if np.any(prop > total) or np.any(prop < 0.0):
-        raise ValueError("`motor_propellant_mass_kg` must lie between 0 and `motor_total_mass_kg`")
-    case = total - prop
-    liftoff = cg_m(geometry, airframe_mass_kg, case, prop, motor_length_m, case_cg_from_aft_m=case_cg_from_aft_m)
-    burnout = cg_m(geometry, airframe_mass_kg, case, 0.0 * prop, motor_length_m, case_cg_from_aft_m=case_cg_from_aft_m)
-    return liftoff, burnout
-
-
-def stability_margin_cal(cp_m: np.ndarray | float, cg_m: np.ndarray | float, diameter_m: float) -> np.ndarray:
-    """Static margin (x_CP − x_CG)/d in calibers; positive when the CP is behind the CG (stable).
-
-    >>> round(float(stability_margin_cal(0.9, 0.8, 0.05)), 12)
-    2.0
-    """
-    return (np.asarray(cp_m, dtype=float) - np.asarray(cg_m, dtype=float)) / diameter_m
-
-
-@dataclass(frozen=True, eq=False)
-class Stability:
-    """CP, CG and margins of one airframe with each of n motors; arrays have shape (n_motors,).
-
-    The margin over the powered flight is smallest at liftoff or at burnout: the CG moves
-    monotonically as the (fixed-position) propellant burns, and the subsonic CP here is fixed
-    for a given Mach.
-    """
-
-    cp_m: np.ndarray
-    cg_liftoff_m: np.ndarray
-    cg_burnout_m: np.ndarray
-    margin_liftoff_cal: np.ndarray
-    margin_burnout_cal: np.ndarray
-
-    @property
-    def min_margin_cal(self) -> np.ndarray:
-        return np.minimum(self.margin_liftoff_cal, self.margin_burnout_cal)
-
-
-def stability_margins(geometry: Geometry, diameter_m: float, airframe_mass_kg: float,
-                      motor_total_mass_kg: np.ndarray | float, motor_propellant_mass_kg: np.ndarray | float,
-                      motor_length_m: np.ndarray | float, *, mach: np.ndarray | float = 0.0,
-                      case_cg_from_aft_m: np.ndarray | float | None = None) -> Stability:
-    """CP, liftoff and burnout CG and margins [calibers] for each motor.
-
-    Parameters as :func:`cg_with_motor_m` and :func:`center_of_pressure_m`; ``mach`` may be a
-    scalar or shape (n_motors,) (e.g. each motor's Mach at rail exit).
-
-    >>> g = Geometry(0.45, Nose("ogive", 0.15), Body(0.6), Fins(3, 0.1, 0.05, 0.05, 0.05, 0.003))
-    >>> s = stability_margins(g, 0.04, 0.2, [0.05, 0.2], [0.02, 0.1], [0.1, 0.2])
-    >>> bool(s.margin_liftoff_cal[0] > s.margin_liftoff_cal[1])   # the heavier motor costs margin
-    True
-    """
-    cg0, cg1 = cg_with_motor_m(geometry, airframe_mass_kg, motor_total_mass_kg, motor_propellant_mass_kg,
-                               motor_length_m, case_cg_from_aft_m=case_cg_from_aft_m)
-    cp = np.broadcast_to(center_of_pressure_m(geometry, diameter_m, mach), np.broadcast(cg0, np.asarray(mach)).shape).copy()
-    return Stability(cp, cg0, cg1, stability_margin_cal(cp, cg0, diameter_m), stability_margin_cal(cp, cg1, diameter_m))
-
-
-def stability_for(airframe: Airframe, motor_total_mass_kg: np.ndarray | float, motor_propellant_mass_kg: np.ndarray | float,
-                  motor_length_m: np.ndarray | float, *, mach: np.ndarray | float = 0.0) -> Stability:
-    """:func:`stability_margins` for an :class:`~motorlib.flight.airframe.Airframe` with a geometry.
-
-    Raises
-    ------
-    ValueError
-        If the airframe has no ``geometry``.
-    """
-    if airframe.geometry is None:
-        raise ValueError(f"`airframe` {airframe.name!r} has no geometry")
-    return stability_margins(airframe.geometry, airframe.diameter_m, airframe.mass_kg, motor_total_mass_kg,
-                             motor_propellant_mass_kg, motor_length_m, mach=mach)

@@ -11,7 +11,7 @@ import numpy as np
 from ..files.fsio import write_atomic
 from .display import DisplayUnits
 
-__all__ = ["curves_plot", "flight_plot", "match_plot", "reduction_plot"]
+__all__ = ["airframe_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot"]
 
 _METRIC = DisplayUnits()
 
@@ -25,10 +25,10 @@ def _figure():
     return plt
 
 
-def _save(fig, path: str | os.PathLike[str]) -> Path:
+def _save(fig, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
     buffer = io.BytesIO()
     fig.savefig(buffer, format="png", dpi=110, bbox_inches="tight")
-    return write_atomic(path, buffer.getvalue())
+    return write_atomic(path, buffer.getvalue(), overwrite=overwrite)
 
 
 def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], title: str,
@@ -136,4 +136,135 @@ def reduction_plot(reduction, title: str, path: str | os.PathLike[str], burn_thr
     ax.legend(fontsize=8)
     out = _save(fig, path)
     plt.close(fig)
+    return out
+
+
+# Grey levels (0 black, 1 white) that stay apart when printed in greyscale; line styles carry the rest.
+_INK, _MID, _LIGHT, _FILL = "0.1", "0.45", "0.65", "0.88"
+# Our own position markers: CG a diamond (filled at liftoff, hollow at burnout, a cross without motor), CP a
+# downward triangle; each carries a text label, so the figure reads without a legend.
+_CG_MARKS = {"no motor": ("X", _MID, _MID), "liftoff": ("D", _INK, _INK), "burnout": ("D", "white", _INK)}
+_CP_MARK = ("v", _LIGHT, _INK)
+
+
+def _fins_polygons(geometry, diameter_m: float) -> list[np.ndarray]:
+    """Each fin's outline in the side view, (x, y) in m, fins projected onto the drawing plane."""
+    from ..flight.geometry import diameter_at_m
+
+    fins = geometry.fins
+    if fins is None:
+        return []
+    x_le = geometry.fin_root_leading_edge_m
+    root_r = float(diameter_at_m(geometry, diameter_m, x_le + fins.root_chord_m / 2.0)) / 2.0
+    shapes = []
+    for k in range(fins.count):
+        lean = np.sin(np.pi / 2.0 + 2.0 * np.pi * k / fins.count)  # first fin straight up
+        if abs(lean) < 0.05:  # edge-on to the viewer: a line along the body, not drawn
+            continue
+        inner, outer = root_r * lean, (root_r + fins.span_m) * lean
+        shapes.append(np.array([(x_le, inner), (x_le + fins.root_chord_m, inner),
+                                (x_le + fins.sweep_m + fins.tip_chord_m, outer), (x_le + fins.sweep_m, outer)]))
+    return shapes
+
+
+def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
+    """The rocket's side profile to scale with its CG and CP marked, and the estimated Cd against Mach.
+
+    ``summary`` is :func:`motorlib.flight.summary.airframe_summary`. CG and CP carry our own markers and text
+    labels; the palette is grey levels with distinct line styles, so the chart survives greyscale printing.
+
+    Raises
+    ------
+    FileExistsError
+        When ``path`` exists and ``overwrite`` is False.
+    """
+    from ..flight.drag import drag_table_for
+    from ..flight.geometry import outline_m
+
+    plt = _figure()
+    g = airframe.geometry
+    mm = 1e3
+    x, r = outline_m(g, airframe.diameter_m)
+    fig, (ax, ax_cd) = plt.subplots(2, 1, figsize=(10, 7.5), gridspec_kw={"height_ratios": [1.0, 1.3]})
+
+    fins = _fins_polygons(g, airframe.diameter_m)
+    for shape in fins:
+        ax.fill(shape[:, 0] * mm, shape[:, 1] * mm, facecolor=_LIGHT, edgecolor=_INK, linewidth=1.0, zorder=1)
+    ax.fill_between(x * mm, -r * mm, r * mm, facecolor=_FILL, edgecolor=_INK, linewidth=1.2, zorder=2)
+    ax.plot([x[-1] * mm] * 2, [-r[-1] * mm, r[-1] * mm], color=_INK, linewidth=1.2, zorder=2)
+    ax.axhline(0.0, color=_MID, linewidth=0.6, linestyle=(0, (8, 3, 2, 3)), zorder=3)
+    motor = summary.get("motor")
+    if motor and motor.get("length_m") and motor.get("diameter_m"):
+        aft = g.length_m + g.motor_offset_m
+        ax.add_patch(plt.Rectangle(((aft - motor["length_m"]) * mm, -motor["diameter_m"] / 2 * mm), motor["length_m"] * mm,
+                                   motor["diameter_m"] * mm, facecolor="none", edgecolor=_MID, hatch="////",
+                                   linewidth=0.8, zorder=3))
+
+    reach = max([float(np.max(r))] + [float(np.max(np.abs(shape[:, 1]))) for shape in fins])  # body or fin tip
+    marks: list[tuple[float, str, tuple[str, str, str]]] = [(summary["cg_empty_m"], "CG, no motor", _CG_MARKS["no motor"])]
+    stab = summary.get("stability")
+    if stab and stab.get("cg_liftoff_m") is not None:
+        marks += [(stab["cg_liftoff_m"], "CG liftoff", _CG_MARKS["liftoff"]),
+                  (stab["cg_burnout_m"], "CG burnout", _CG_MARKS["burnout"])]
+    # labels: the CGs in one row above the rocket, spread apart along it and joined to their markers by
+    # thin leaders; the CP below
+    y_row = reach * 1.6 * mm
+    gap = 0.13 * g.length_m
+    marks.sort(key=lambda m: m[0])
+    spots: list[float] = []
+    for position, *_ in marks:
+        spots.append(position if not spots else max(position, spots[-1] + gap))
+    shift = (sum(m[0] for m in marks) - sum(spots)) / len(spots)  # keep the row centred on its markers
+    for (position, label, (marker, face, edge)), spot in zip(marks, spots):
+        ax.plot([position * mm], [0.0], marker=marker, markersize=9, markerfacecolor=face, markeredgecolor=edge,
+                linestyle="none", zorder=5)
+        ax.annotate(f"{label}\n{position * mm:.0f} mm", xy=(position * mm, 0.0), xytext=((spot + shift) * mm, y_row),
+                    ha="center", va="bottom", fontsize=8, color=_INK, zorder=6,
+                    arrowprops={"arrowstyle": "-", "color": edge, "linewidth": 0.7, "linestyle": ":",
+                                "shrinkA": 0, "shrinkB": 6})
+    marker, face, edge = _CP_MARK
+    cp = summary["cp_m"]
+    ax.plot([cp * mm], [0.0], marker=marker, markersize=10, markerfacecolor=face, markeredgecolor=edge,
+            linestyle="none", zorder=5)
+    ax.annotate(f"CP (subsonic)\n{cp * mm:.0f} mm", xy=(cp * mm, 0.0), xytext=(cp * mm, -y_row), ha="center",
+                va="top", fontsize=8, color=_INK, zorder=6,
+                arrowprops={"arrowstyle": "-", "color": edge, "linewidth": 0.7, "linestyle": ":", "shrinkA": 0,
+                            "shrinkB": 2})
+
+    ax.set_xlim(-0.03 * g.length_m * mm, (g.length_m + max(g.motor_offset_m, 0.0) + 0.03 * g.length_m) * mm)
+    ax.set_ylim(-y_row - reach * 1.2 * mm, y_row + reach * 1.2 * mm)
+    ax.set_aspect("equal")
+    ax.set_xlabel("distance from the nose tip (mm)")
+    ax.set_ylabel("mm")
+    margin = stab.get("min_margin_cal") if stab else summary["margin_empty_cal"]
+    what = f"with {motor['designation']}, smallest powered margin" if stab else "margin without motor"
+    ax.set_title(f"{summary['airframe']}: side profile to scale; {what} "
+                 + ("unknown" if margin is None else f"{margin:.2f} cal"), fontsize=10)
+
+    mach, powered, coasting = drag_table_for(airframe)
+    ax_cd.plot(mach, powered, color=_INK, linewidth=1.8, linestyle="-", label="estimate, motor burning")
+    ax_cd.plot(mach, coasting, color=_MID, linewidth=1.8, linestyle="--", label="estimate, coasting")
+    given = summary["drag_given"]
+    if given["drag_table"]:
+        table = np.array(given["drag_table"])
+        # held constant beyond the table's ends, as the flight uses it
+        ax_cd.plot(np.concatenate(([0.0], table[:, 0], [mach[-1]])),
+                   np.concatenate(([table[0, 1]], table[:, 1], [table[-1, 1]])), color=_LIGHT, linewidth=1.4,
+                   linestyle=":", label="given in the airframe file")
+        ax_cd.plot(table[:, 0], table[:, 1], color=_LIGHT, linestyle="none", marker="s", markersize=3)
+    else:
+        ax_cd.axhline(given["drag_coefficient"], color=_LIGHT, linewidth=1.4, linestyle=":",
+                      label=f"given in the airframe file (Cd {given['drag_coefficient']:g})")
+    ax_cd.set_xlabel("Mach number")
+    ax_cd.set_ylabel("Cd (on the reference area)")
+    ax_cd.set_xlim(0.0, float(mach[-1]))
+    ax_cd.set_ylim(bottom=0.0)
+    ax_cd.grid(alpha=0.3, color=_MID)
+    ax_cd.legend(fontsize=8, loc="upper right")
+    fig.tight_layout()
+    fig.text(0.01, 0.002, "Predictions are estimates; the range safety officer decides.", fontsize=7, color=_MID)
+    try:
+        out = _save(fig, path, overwrite=overwrite)
+    finally:
+        plt.close(fig)
     return out

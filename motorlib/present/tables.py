@@ -28,8 +28,8 @@ from ..motor.classes import class_impulse_text, impulse_class_for
 from .display import DisplayUnits
 from .messages import reason_text, short_code, warning_message
 
-__all__ = ["SAFETY_CAUTION", "WIDE", "catalog_table", "check_details", "check_summary_table", "escape", "findings_text",
-           "flight_table", "impulse_text", "match_table"]
+__all__ = ["SAFETY_CAUTION", "WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
+           "findings_text", "flight_table", "impulse_text", "match_table"]
 
 SAFETY_CAUTION = (
     "Caution: predictions are estimates. Follow your national rocketry association's safety code, local law "
@@ -594,3 +594,126 @@ def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
                     f"{u.number(ti['max'], 'impulse', d)}), burn {u.number(bt['mean'], 'time')} ± "
                     f"{u.number(bt['std'], 'time')} s\n")
     return text
+
+
+# ----------------------------------------------------------------------------- airframe
+def _fmt(value: object, digits: int = 4, scale: float = 1.0, unit: str = "") -> str:
+    """``value·scale`` to about ``digits`` significant figures, in fixed notation with thousands separators."""
+    if value is None:
+        return "-"
+    number = float(value) * scale  # type: ignore[arg-type]
+    if not math.isfinite(number):
+        return "-"
+    decimals = 0 if number == 0 else max(0, digits - 1 - math.floor(math.log10(abs(number))))
+    return f"{number:,.{decimals}f}{(' ' + unit) if unit else ''}"
+
+
+def _mm(value: object, digits: int = 4) -> str:
+    return _fmt(value, digits, 1e3, "mm")
+
+
+def _cal(value: object) -> str:
+    return "-" if value is None else f"{float(value):.2f} cal"  # type: ignore[arg-type]
+
+
+def _shape_rows(s: dict) -> list[tuple[str, str]]:
+    g = s["geometry"]
+    nose = g["nose"]
+    shape = nose["shape"] + (f" (exponent {nose['exponent']:g})" if nose["exponent"] is not None else "")
+    rows = [("diameter", _mm(s["diameter_m"])),
+            ("length", f"{_mm(g['length_m'])}: nose {_mm(nose['length_m'])} {shape}, body {_mm(g['body_length_m'])}")]
+    f = g["fins"]
+    rows.append(("fins", "none" if f is None else (
+        f"{f['count']} x root {_mm(f['root_chord_m'], 3)}, tip {_mm(f['tip_chord_m'], 3)}, span {_mm(f['span_m'], 3)}, "
+        f"sweep {_mm(f['sweep_m'], 3)}, {_mm(f['thickness_m'], 2)} thick, {f['profile']}; root leading edge at "
+        f"{_mm(f['root_leading_edge_m'])}")))
+    for i, t in enumerate(g["transitions"], 1):
+        kind = "shoulder" if t["aft_diameter_m"] > t["fore_diameter_m"] else "boattail"
+        rows.append((f"transition {i}", f"{kind} {_mm(t['fore_diameter_m'], 3)} to {_mm(t['aft_diameter_m'], 3)} over "
+                                        f"{_mm(t['length_m'], 3)}, from {_mm(t['position_m'])}"))
+    finish = g["finish"]
+    rows.append(("finish", f"{finish['name'] or 'roughness'} ({finish['roughness_m'] * 1e6:.3g} µm), launch guide "
+                           f"{g['launch_guide']}"))
+    rows.append(("empty airframe", f"{_fmt(s['mass_kg'], 4, 1e3, 'g')}, CG at {_mm(s['cg_empty_m'])}"))
+    rows.append(("CP (subsonic)", _mm(s["cp_m"])))
+    rows.append(("margin, no motor", _cal(s["margin_empty_cal"])))
+    return rows
+
+
+def _heading(text: str) -> Text:
+    return Text(text, style="bold")
+
+
+def _plain_table(*columns: str) -> Table:
+    table = Table(header_style="bold", box=box.SIMPLE_HEAD, pad_edge=False)
+    for name in columns:
+        table.add_column(name, justify="right" if name and name not in ("part", "component") else "left", no_wrap=True)
+    return table
+
+
+def airframe_report(summary: dict) -> Group:
+    """The derived airframe (``motorlib airframe``): shape, CP, CG and margins, drag build-up, Cd(Mach).
+
+    ``summary`` is :func:`motorlib.flight.summary.airframe_summary`; positions from the nose tip. Fits 80
+    columns.
+    """
+    s = summary
+    parts: list[object] = [_heading(escape(f"{s['airframe']}: derived airframe (positions from the nose tip)"))]
+    shape = Table(show_header=False, box=box.SIMPLE, pad_edge=False)
+    shape.add_column(style="bold", no_wrap=True)
+    shape.add_column(overflow="fold")
+    for key, value in _shape_rows(s):
+        shape.add_row(key, escape(value))
+    parts.append(shape)
+
+    parts.append(_heading("Normal force by part (Barrowman, subsonic)"))
+    forces = _plain_table("part", "CN_α (1/rad)", "CP (mm)")
+    for p in s["normal_force"]:
+        forces.add_row(escape(p["part"]), f"{p['cn_alpha']:.3f}", _fmt(p["cp_m"], 4, 1e3))
+    parts.append(forces)
+
+    motor, stab = s["motor"], s["stability"]
+    if motor is not None:
+        parts.append(_heading(escape(f"Stability with {motor['designation']}"
+                                     + (f" ({motor['maker']})" if motor["maker"] else ""))))
+        table = _plain_table("", "CG (mm)", "CP (mm)", "margin")
+        table.add_row("no motor", _fmt(s["cg_empty_m"], 4, 1e3), _fmt(s["cp_m"], 4, 1e3), _cal(s["margin_empty_cal"]))
+        table.add_row("liftoff", _fmt(stab["cg_liftoff_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),
+                      _cal(stab["margin_liftoff_cal"]))
+        table.add_row("burnout", _fmt(stab["cg_burnout_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),
+                      _cal(stab["margin_burnout_cal"]))
+        table.add_row(Text("smallest, powered", style="bold"), "", "", Text(_cal(stab["min_margin_cal"]), style="bold"))
+        parts.append(table)
+        note = Text()
+        weight = s["nose_weight_for_stability_kg"]
+        if weight is not None:
+            note.append(f"  Nose weight for {s['required_margin_cal']:g} cal: {weight * 1e3:.0f} g at "
+                        f"{s['nose_weight_position_m'] * 1e3:.0f} mm from the tip.\n", style="yellow")
+        for w in s["warnings"]:
+            note.append("  warning ", style="yellow")
+            note.append(f"{w['code']}: ", style="bold")
+            note.append(w["message"] + "\n")
+        if note:
+            parts.append(note)
+
+    drag = s["drag"]
+    build = _plain_table("component", "Cd")
+    for name, value in drag["components"].items():
+        build.add_row(escape(name), f"{value:.4f}")
+    build.add_row(Text("total, powered", style="bold"), Text(f"{drag['cd_powered']:.4f}", style="bold"))
+    build.add_row(Text("total, coasting", style="bold"), Text(f"{drag['cd_coasting']:.4f}", style="bold"))
+    curve = _plain_table("Mach", "powered", "coasting")
+    for row in s["drag_table"]:
+        curve.add_row(f"{row['mach']:g}", f"{row['cd_powered']:.3f}", f"{row['cd_coasting']:.3f}")
+    side = Table.grid(padding=(0, 6))
+    side.add_column()
+    side.add_column()
+    side.add_row(_heading(f"Drag build-up at Mach {drag['mach']:g}"), _heading("Estimated Cd against Mach"))
+    side.add_row(build, curve)
+    parts.append(side)
+    given = s["drag_given"]
+    what = "a Cd table" if given["drag_table"] else f"Cd {given['drag_coefficient']:g}"
+    parts.append(Text(f"Cd on the reference area (π·d²/4). The airframe file gives {what}: "
+                      f"{given['cd_at_mach']:.3f} at Mach {drag['mach']:g}, beside the estimate "
+                      f"{drag['cd_coasting']:.3f} coasting.", style="dim"))
+    return Group(*parts)

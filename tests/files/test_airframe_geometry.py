@@ -10,7 +10,8 @@ from motorlib import SimulationInputError
 from motorlib.files.airframe_toml import load_airframe
 from motorlib.flight.airframe import Airframe
 from motorlib.flight.drag import drag_table_for
-from motorlib.flight.geometry import FINISHES, center_of_pressure_m, stability_for
+from motorlib.flight.geometry import FINISHES, center_of_pressure_m
+from motorlib.flight.stability import stability_for
 
 from ..conftest import SAMPLE_DIR
 

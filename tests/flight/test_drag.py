@@ -183,7 +183,7 @@ def geometries(draw: st.DrawFn) -> tuple[Geometry, float]:
     d = draw(st.floats(0.01, 0.3))
     nose_l = d * draw(st.floats(0.5, 8.0))
     body_l = d * draw(st.floats(3.0, 30.0))
-    root = draw(st.floats(0.3, 3.0)) * d
+    root = draw(st.floats(0.3, 2.9)) * d  # below the shortest body: a root as long as the body rounds ahead of the nose base
     fins = Fins(draw(st.integers(2, 8)), root, root * draw(st.floats(0.0, 1.0)), d * draw(st.floats(0.2, 3.0)),
                 root * draw(st.floats(0.0, 1.5)), min(d * 0.1, root * 0.2), 0.0,
                 draw(st.sampled_from(["square", "rounded", "airfoil"])))

@@ -1,4 +1,4 @@
-"""Barrowman centre of pressure, CG with a motor and stability margin (issue 11).
+"""Barrowman centre of pressure and the shape records (issue 11); CG and margins are in test_stability.py.
 
 Hand-worked checks use the equations of J. S. Barrowman, *The Practical Calculation of the
 Aerodynamic Characteristics of Slender Finned Vehicles*, M.S. thesis, Catholic University of
@@ -24,13 +24,9 @@ from motorlib.flight.geometry import (
     Nose,
     Transition,
     center_of_pressure_m,
-    cg_m,
-    cg_with_motor_m,
     check_diameters,
     diameter_at_m,
     normal_force_components,
-    stability_margin_cal,
-    stability_margins,
 )
 
 
@@ -145,50 +141,6 @@ def test_fin_compressibility_follows_the_finite_wing_formula() -> None:
     assert cps.shape == (2,) and cps[1] > cps[0]  # fins gain slope with Mach, the CP moves aft
 
 
-def _demo() -> Geometry:
-    return Geometry(0.58, Nose("ogive", 0.16), Body(0.74), Fins(3, 0.09, 0.04, 0.05, 0.06, 0.003))
-
-
-def test_cg_with_motor_by_hand() -> None:
-    g = _demo()
-    # airframe 0.31 kg at 0.58 m; 0.1 kg motor (0.04 kg propellant), 0.1 m long, aft end at 0.90 m
-    liftoff, burnout = cg_with_motor_m(g, 0.31, 0.1, 0.04, 0.1)
-    assert float(liftoff) == pytest.approx((0.31 * 0.58 + 0.1 * 0.85) / 0.41, rel=1e-12)
-    assert float(burnout) == pytest.approx((0.31 * 0.58 + 0.06 * 0.85) / 0.37, rel=1e-12)
-    # a case whose hardware sits near the nozzle, and a motor sticking out 20 mm
-    shifted = Geometry(0.58, g.nose, g.body, g.fins, motor_offset_m=0.02)
-    x = float(cg_m(shifted, 0.31, 0.06, 0.04, 0.1, case_cg_from_aft_m=0.03))
-    assert x == pytest.approx((0.31 * 0.58 + 0.06 * 0.89 + 0.04 * 0.87) / 0.41, rel=1e-12)
-
-
-def test_heavier_motor_moves_cg_aft_and_costs_margin() -> None:
-    g, d = _demo(), 0.0416
-    total = np.array([0.09, 0.16, 0.24, 0.40])
-    stab = stability_margins(g, d, 0.31, total, 0.45 * total, np.full(4, 0.15))
-    assert np.all(np.diff(stab.cg_liftoff_m) > 0) and np.all(np.diff(stab.margin_liftoff_cal) < 0)
-    assert np.all(stab.cg_burnout_m < stab.cg_liftoff_m)  # the propellant sits aft of the CG
-    assert np.array_equal(stab.min_margin_cal, stab.margin_liftoff_cal)
-    assert stab.cp_m.shape == (4,) and np.all(stab.cp_m == stab.cp_m[0])
-    expected = (float(center_of_pressure_m(g, d)) - stab.cg_liftoff_m) / d
-    np.testing.assert_allclose(stab.margin_liftoff_cal, expected, rtol=1e-12)
-    assert float(stability_margin_cal(0.70, 0.65, 0.05)) == pytest.approx(1.0)
-
-
-def test_vectorised_cg_equals_single_calls() -> None:
-    # the vectorisation contract: k motors together give the numbers of k single calls
-    g = _demo()
-    total, prop, length = np.array([0.05, 0.2, 0.3]), np.array([0.02, 0.1, 0.16]), np.array([0.07, 0.15, 0.2])
-    together = cg_with_motor_m(g, 0.31, total, prop, length)
-    for i in range(3):
-        single = cg_with_motor_m(g, 0.31, total[i], prop[i], length[i])
-        assert float(single[0]) == together[0][i] and float(single[1]) == together[1][i]
-
-
-def test_propellant_heavier_than_motor_is_refused() -> None:
-    with pytest.raises(ValueError, match="motor_propellant_mass_kg"):
-        cg_with_motor_m(_demo(), 0.31, 0.1, 0.2, 0.1)
-
-
 @given(st.floats(0.02, 0.12), st.floats(0.0, 0.3))
 @example(0.02, 0.3)
 def test_wider_fins_move_the_cp_aft(span_m: float, extra_m: float) -> None:
@@ -197,14 +149,6 @@ def test_wider_fins_move_the_cp_aft(span_m: float, extra_m: float) -> None:
         g = Geometry(0.4, Nose("ogive", 0.15), Body(0.6), Fins(3, 0.08, 0.04, span, 0.04, 0.002))
         return float(center_of_pressure_m(g, 0.04))
     assert cp(span_m + extra_m) >= cp(span_m)
-
-
-@given(st.floats(0.0, 5.0), st.floats(0.0, 1.0), st.floats(0.02, 0.8))
-def test_cg_lies_between_airframe_and_motor(motor_kg: float, prop_share: float, length_m: float) -> None:
-    g = _demo()
-    x = float(cg_with_motor_m(g, 0.31, motor_kg, prop_share * motor_kg, length_m)[0])
-    centre = g.length_m - length_m / 2
-    assert min(g.cg_m, centre) - 1e-12 <= x <= max(g.cg_m, centre) + 1e-12
 
 
 @pytest.mark.parametrize(("make", "message"), [
