@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import sys
 from typing import Any
 
@@ -11,7 +10,7 @@ import click
 from ..errors import QuantityError
 from .group import _Group
 from .options import _catalog_option, _metadata, _metadata_options, _open_catalog, _Quantity
-from .output import _console, _err_console
+from .output import _console, _err_console, _json_text
 
 
 @click.group(cls=_Group)
@@ -137,7 +136,7 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, as_json: bool, 
     cat = _open_catalog(catalog_dir)
     rows = cat.rows(_filter(opts), sort=sort, descending=desc)
     if as_json:
-        click.echo(json.dumps(rows, indent=2))
+        click.echo(_json_text(rows))
     elif as_csv:
         import csv
         import io
