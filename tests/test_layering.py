@@ -176,3 +176,19 @@ def test_match_path_imports_no_pandas_scipy_or_matplotlib() -> None:
         " MatchSettings(target_m=400.0))\n"
     )
     assert not _modules_after_import(statement) & {"pandas", "scipy", "matplotlib"}
+
+
+def _modules_imported_by_command(args: list[str]) -> set[str]:
+    """Top-level names of every module a fresh ``python -m motorlib ARGS`` imports (``-X importtime``)."""
+    run = subprocess.run([sys.executable, "-X", "importtime", "-m", "motorlib", *args], capture_output=True,
+                         text=True, check=True, cwd=PACKAGE.parent)
+    return {line.rsplit("|", 1)[1].strip().split(".")[0] for line in run.stderr.splitlines()
+            if line.startswith("import time:") and "|" in line}
+
+
+@pytest.mark.parametrize("args", [["--version"], ["--help"], ["match", "--help"]])
+def test_version_and_help_import_no_numpy(args: list[str]) -> None:
+    # Issue 16: the command line answers --version and --help at once, without loading the numerics.
+    imported = _modules_imported_by_command(args)
+    assert {"motorlib", "click"} <= imported  # the probe sees what the command imports
+    assert not imported & {"numpy", "scipy", "pandas", "matplotlib", "lxml"}

@@ -23,17 +23,17 @@ import json
 import os
 import sqlite3
 from pathlib import Path
-from typing import Callable, ContextManager, Iterator
+from typing import Callable, ContextManager, Iterator, Sequence
 
 from ..errors import MotorlibError
 from ..files.motor_xml import record_from_bytes
-from ..motor.checks import CheckSettings, check_record, metrics
+from ..motor.checks import CheckSettings, Finding, check_record, metrics
 from ..motor.classes import CLASS_LETTERS
 from ..motor.record import MotorRecord
 
 __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
 
-SCHEMA_VERSION = "2"  # 2: ejection column, classes at 0.01 N·s, provenance kinds of format 1.1
+SCHEMA_VERSION = "3"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name lookup and on path
 INDEX_DIR = ".motorlib"
 COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
            "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
@@ -50,29 +50,45 @@ def create_schema(db: sqlite3.Connection) -> None:
     cols = ", ".join(f"{c} {'TEXT PRIMARY KEY' if c == 'motor_id' else ''}" for c in COLUMNS)
     db.execute(f"CREATE TABLE IF NOT EXISTS motors ({cols}, time_blob BLOB, thrust_blob BLOB)")
     db.execute("CREATE INDEX IF NOT EXISTS motors_class ON motors (class_index)")
-    db.execute("CREATE INDEX IF NOT EXISTS motors_name ON motors (maker, designation)")
+    # the store's near-duplicate lookup compares names case-insensitively; without this index it scans every row
+    db.execute("CREATE INDEX IF NOT EXISTS motors_lower_name ON motors (lower(maker), lower(designation))")
+    db.execute("CREATE INDEX IF NOT EXISTS motors_path ON motors (path)")  # refresh deletes and replaces by path
     db.execute("CREATE TABLE IF NOT EXISTS tags (motor_id TEXT, tag TEXT, PRIMARY KEY (motor_id, tag))")
     db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
 
 
 def scan_files(root: Path) -> dict[str, tuple[int, int]]:
-    """Every curve file under ``root`` (hidden files and folders skipped): relative path -> (size, mtime_ns)."""
+    """Every curve file under ``root`` (hidden files and folders skipped): relative path -> (size, mtime_ns).
+
+    Symbolic links to folders are not followed; links to files are (as ``os.walk`` does).
+    """
     found: dict[str, tuple[int, int]] = {}
-    top = str(root)
-    for folder, dirs, files in os.walk(top):
-        dirs[:] = [d for d in dirs if not d.startswith(".")]
-        for name in files:
-            if name.endswith(".xml") and not name.startswith("."):
-                full = os.path.join(folder, name)
-                st = os.stat(full)
-                found[os.path.relpath(full, top).replace(os.sep, "/")] = (st.st_size, st.st_mtime_ns)
+    pending = [(str(root), "")]  # (folder, its path relative to root with a trailing "/")
+    while pending:
+        folder, prefix = pending.pop()
+        with os.scandir(folder) as entries:
+            for entry in entries:
+                name = entry.name
+                if name.startswith("."):
+                    continue
+                if entry.is_dir():
+                    if not entry.is_symlink():
+                        pending.append((entry.path, f"{prefix}{name}/"))
+                elif name.endswith(".xml"):
+                    st = entry.stat()
+                    found[prefix + name] = (st.st_size, st.st_mtime_ns)
     return found
 
 
-def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSettings) -> list[object]:
-    """The values of one ``motors`` row: :data:`COLUMNS`, then the time and thrust blobs (little-endian float64)."""
+def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSettings,
+              findings: Sequence[Finding] | None = None) -> list[object]:
+    """The values of one ``motors`` row: :data:`COLUMNS`, then the time and thrust blobs (little-endian float64).
+
+    ``findings`` are ``check_record(record, settings)`` when the caller has them already.
+    """
     m = metrics(record, settings.burn_threshold)
-    findings = check_record(record, settings)
+    if findings is None:
+        findings = check_record(record, settings)
     cls = m["impulse_class"]
     row = {
         "motor_id": motor_id, "handle": path[:-4], "path": path, "maker": record.maker,
@@ -177,7 +193,8 @@ class CatalogIndex:
                     os.unlink(str(self.path) + extra)
 
     @contextlib.contextmanager
-    def _transaction(self) -> Iterator[None]:
+    def transaction(self) -> Iterator[None]:
+        """One write transaction (``BEGIN IMMEDIATE``), committed on success and rolled back on any exception."""
         self.db.execute("BEGIN IMMEDIATE")
         try:
             yield
@@ -209,7 +226,7 @@ class CatalogIndex:
                 problems.append((str(self.root / path), row[3]))
         if not removed and not changed:
             return 0, 0, bool(known)
-        with self._transaction():
+        with self.transaction():
             for path in removed:
                 self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
                 self.db.execute("DELETE FROM files WHERE path = ?", (path,))
@@ -246,8 +263,9 @@ class CatalogIndex:
         self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
         self._insert_motor(motor_id, path, record)
 
-    def _insert_motor(self, motor_id: str, path: str, record: MotorRecord) -> None:
-        values = motor_row(motor_id, path, record, self.settings)
+    def _insert_motor(self, motor_id: str, path: str, record: MotorRecord,
+                      findings: Sequence[Finding] | None = None) -> None:
+        values = motor_row(motor_id, path, record, self.settings, findings)
         marks = ", ".join("?" * len(values))
         self.db.execute(f"INSERT OR REPLACE INTO motors VALUES ({marks})", values)
 
@@ -259,13 +277,17 @@ class CatalogIndex:
         self.db.execute("COMMIT")
 
     # ------------------------------------------------------------------ rows written by the store
-    def insert_file(self, path: str, data: bytes, motor_id: str, record: MotorRecord) -> None:
-        """Index a file the store has just written (``data`` are its bytes), in one transaction."""
-        st = os.stat(self.root / path)
-        with self._transaction():
-            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)",
-                            (path, st.st_size, st.st_mtime_ns, hashlib.sha256(data).hexdigest(), motor_id))
-            self._insert_motor(motor_id, path, record)
+    def insert_file(self, path: str, stat: tuple[int, int], sha256: str, record: MotorRecord,
+                    findings: Sequence[Finding]) -> None:
+        """Index a file the store is writing, inside the store's :meth:`transaction`.
+
+        ``stat`` is its (size, mtime_ns), ``sha256`` the hex digest of its bytes
+        and ``findings`` its checks: the store has them already, so nothing is
+        read, hashed or checked again.
+        """
+        motor_id = sha256[:16]
+        self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, sha256, motor_id))
+        self._insert_motor(motor_id, path, record, findings)
 
     def delete_motor(self, motor_id: str, path: str) -> None:
         """Drop a motor and its file row (the store has deleted the file)."""

@@ -12,9 +12,23 @@ The index is rebuilt or refreshed whenever it is missing, corrupt or stale:
 opening compares every file's size and modification time with the index and
 parses only what changed (a content hash confirms a change), so a current index
 opens without parsing any curve. Unreadable or invalid files are reported by
-name and skipped. Every write goes to a temporary file that is fsynced and
-renamed; a writer killed at any moment leaves each curve either fully present or
-absent, and the next open brings the index back in step.
+name and skipped. Every write goes to a temporary file that is flushed to disk
+before it gets its name; a writer killed at any moment (or a machine crashing)
+leaves each curve either fully present or absent, and the next open brings the
+index back in step.
+
+Adding is done in batches of up to :data:`BATCH_SIZE` curves, each one durable
+unit: the new files are staged in ``.motorlib/staging``
+(:class:`~motorlib.files.fsio.NewFileBatch`) while their rows go into one open
+index transaction; at the end of the batch the disk is flushed, the files are
+linked to their names, the disk is flushed again, and only then does the index
+transaction commit. So the guarantees of a per-file fsync still hold at two
+flushes per batch: a curve's name never appears before its bytes are on disk; the
+committed index never lists a file a crash could lose; a writer killed mid-batch
+leaves its batch's curves absent (their staged copies are removed by the next
+writer), the files of earlier batches complete and indexed, and at worst files
+linked but not yet indexed, which the next open indexes like any file added
+behind the catalog's back.
 
 A motor's id is the first 16 hex digits of the SHA-256 of its file (files are
 always written in canonical form, so equal records have equal ids). Its handle
@@ -39,7 +53,7 @@ from typing import Any, Callable, Iterator, Sequence
 import numpy as np
 
 from ..errors import CatalogError, CurveDataError, MotorlibError, MotorNotFoundError
-from ..files.fsio import slug, write_atomic
+from ..files.fsio import NewFileBatch, slug
 from ..files.motor_xml import record_from_bytes, record_to_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
 from ..motor.record import MotorRecord
@@ -51,6 +65,12 @@ from .tags import TagFile, check_tag_name
 __all__ = ["AddResult", "Catalog", "motor_id_for"]
 
 READ_ONLY_MARKER = "READ_ONLY"  # a file of this name makes a catalog folder read-only (the bundled samples)
+# Curves per durable batch when adding files: two disk flushes and one index commit each. Large enough that
+# the flushes cost little per curve (about 0.3 s for 5,000 curves on the reference machine), small enough that
+# a writer killed mid-add loses little work (about a second of it).
+BATCH_SIZE = 500
+# Handles with the same maker and designation as a new curve; the index has an index on exactly these expressions
+_SAME_NAME_SQL = "SELECT handle FROM motors WHERE lower(maker) = lower(?) AND lower(designation) = lower(?)"
 
 
 def motor_id_for(data: bytes) -> str:
@@ -105,6 +125,7 @@ class Catalog:
         self.settings = settings or CheckSettings()
         self.notices: list[str] = []
         self.problems: list[tuple[str, str]] = []
+        self._safe_folders: set[str] = set()  # maker folders checked (and created) in the current batch
         if not self.root.exists():
             if read_only or not create:
                 raise CatalogError(f"{self.root}: no such catalog folder")
@@ -181,9 +202,23 @@ class Catalog:
         """
         with self._lock():
             self.refresh()  # another process may have added files since we opened
-            return self._add_locked(record, source or record.designation, force)
+            with self._batch() as batch:
+                return self._add_locked(record, source or record.designation, force, batch)
 
-    def _add_locked(self, record: MotorRecord, source: str, force: bool) -> AddResult:
+    @contextlib.contextmanager
+    def _batch(self) -> Iterator[NewFileBatch]:
+        """One durable batch of new curve files and their index rows (see the module docstring); lock held."""
+        batch = NewFileBatch(self.root / INDEX_DIR / "staging")
+        batch.clear_staging()  # left by a writer killed mid-batch; we hold the lock, so nobody else is staging
+        self._safe_folders = set()
+        try:
+            with self._index.transaction():
+                yield batch
+                batch.commit()  # the files are on disk under their names before the index commits
+        finally:
+            batch.discard()  # after an error: drop the staged files that never got their names
+
+    def _add_locked(self, record: MotorRecord, source: str, force: bool, batch: NewFileBatch) -> AddResult:
         findings = tuple(check_record(record, self.settings))
         errors = [f for f in findings if f.severity == "error"]
         if errors and not force:
@@ -194,55 +229,66 @@ class Catalog:
             notes = f"{record.provenance.notes} {note}".strip()
             record = replace(record, provenance=replace(record.provenance, notes=notes))
         data = record_to_bytes(record)
-        motor_id = motor_id_for(data)
+        sha256 = hashlib.sha256(data).hexdigest()
+        motor_id = sha256[:16]  # motor_id_for(data), without hashing the bytes twice
+        # the open transaction shows the rows of this batch too, so duplicates within a batch are caught
         twin = self._db.execute("SELECT handle FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
         if twin is not None:
             return AddResult(source, "duplicate", motor_id, twin[0], f"already in the catalog as {twin[0]}",
                              findings=findings)
-        near = tuple(h for (h,) in self._db.execute(
-            "SELECT handle FROM motors WHERE lower(maker) = lower(?) AND lower(designation) = lower(?)",
-            (record.maker, record.designation)))
-        path = self._free_path(record)
-        write_atomic(self.root / path, data, overwrite=False)
-        self._index.insert_file(path, data, motor_id, record)
+        near = tuple(h for (h,) in self._db.execute(_SAME_NAME_SQL, (record.maker, record.designation)))
+        path = self._free_path(record, batch)
+        st = batch.write(self.root / path, data)
+        self._index.insert_file(path, (st.st_size, st.st_mtime_ns), sha256, record, findings)
         message = f"same maker and designation as {', '.join(near)}" if near else ""
         return AddResult(source, "added", motor_id, path[:-4], message, near, findings)
 
-    def _free_path(self, record: MotorRecord) -> str:
+    def _free_path(self, record: MotorRecord, batch: NewFileBatch) -> str:
+        """A file name for ``record`` taken neither on disk nor by the batch; creates its maker folder."""
         folder = slug(record.maker or "unknown-maker")
         stem = slug(record.designation)
+        if folder not in self._safe_folders:
+            # slugs cannot contain separators; belt and braces against a maker folder linked elsewhere
+            full = (self.root / folder).resolve()
+            if self.root.resolve() not in full.parents:
+                raise CatalogError(f"{folder}/{stem}.xml: would leave the catalog folder")
+            full.mkdir(exist_ok=True)
+            self._safe_folders.add(folder)
         candidate = f"{folder}/{stem}.xml"
         n = 1
-        while (self.root / candidate).exists():
+        while (self.root / candidate) in batch or (self.root / candidate).exists():
             n += 1
             candidate = f"{folder}/{stem}-{n}.xml"
-        full = (self.root / candidate).resolve()
-        if self.root.resolve() not in full.parents:  # slugs cannot contain separators; belt and braces
-            raise CatalogError(f"{candidate}: would leave the catalog folder")
-        full.parent.mkdir(parents=True, exist_ok=True)
         return candidate
 
     def add_files(self, paths: Sequence[str | os.PathLike[str]], *, metadata: Any = None, force: bool = False,
                   progress: Callable[[int], None] | None = None, time_unit: str | None = None,
                   thrust_unit: str | None = None) -> list[AddResult]:
-        """Add curve files (XML, or CSV with ``metadata``); bad files are reported, never fatal."""
+        """Add curve files (XML, or CSV with ``metadata``); bad files are reported, never fatal.
+
+        Files are added in durable batches of :data:`BATCH_SIZE` (see the module
+        docstring); ``progress(1)`` is called after each file is handled.
+        """
         from ..files.curvefiles import load_curve_file
 
+        paths = list(paths)
         results = []
         with self._lock():
             self.refresh()  # once: while we hold the lock nobody else writes
-            for path in paths:
-                try:
-                    record = load_curve_file(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit)
-                except CurveDataError as exc:
-                    results.append(AddResult(str(path), "refused", message=str(exc),
-                                             findings=tuple(findings_from_problems(exc))))
-                except (MotorlibError, OSError) as exc:
-                    results.append(AddResult(str(path), "unreadable", message=str(exc)))
-                else:
-                    results.append(self._add_locked(record, str(path), force))
-                if progress is not None:
-                    progress(1)
+            for start in range(0, len(paths), BATCH_SIZE):
+                with self._batch() as batch:
+                    for path in paths[start:start + BATCH_SIZE]:
+                        try:
+                            record = load_curve_file(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit)
+                        except CurveDataError as exc:
+                            results.append(AddResult(str(path), "refused", message=str(exc),
+                                                     findings=tuple(findings_from_problems(exc))))
+                        except (MotorlibError, OSError) as exc:
+                            results.append(AddResult(str(path), "unreadable", message=str(exc)))
+                        else:
+                            results.append(self._add_locked(record, str(path), force, batch))
+                        if progress is not None:
+                            progress(1)
         return results
 
     def remove(self, ref: str) -> str:

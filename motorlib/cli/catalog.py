@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import sys
 from contextlib import contextmanager
 from typing import Any, Callable, Iterator
@@ -12,7 +11,7 @@ import click
 from ..errors import QuantityError
 from .group import _Group
 from .options import _catalog_option, _metadata, _metadata_options, _open_catalog, _Quantity, _units_option, display_units
-from .output import _console, _err_console
+from .output import _console, _err_console, _json_text
 
 
 @click.group(cls=_Group)
@@ -155,7 +154,7 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
     cat = _open_catalog(catalog_dir)
     rows = cat.rows(_filter(opts), sort=key, descending=desc)
     if as_json:
-        click.echo(json.dumps(rows, indent=2))
+        click.echo(_json_text(rows))
     elif as_csv:
         from ..present.csvout import rows_csv
 

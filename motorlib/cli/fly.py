@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 import click
 
 from .options import _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
-from .output import _EPILOG, _caution, _console
+from .output import _EPILOG, _caution, _console, _json_text
 
 
 @click.command()
@@ -74,7 +73,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
-        click.echo(json.dumps(payload, indent=2))
+        click.echo(_json_text(payload))
         return
     from ..present import tables as render
 

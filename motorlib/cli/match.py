@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 import click
 
 from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
-from .output import _EPILOG, _console
+from .output import _EPILOG, _console, _json_text
 
 
 def _match_options(func: Any) -> Any:
@@ -72,8 +71,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
         written = match_plot(result, opts["plot_path"], units)
     if opts["as_json"]:
-        click.echo(json.dumps({"airframe": result.airframe, "conditions": conditions,
-                               "candidates": result.candidates}, indent=2))
+        click.echo(_json_text({"airframe": result.airframe, "conditions": conditions, "candidates": result.candidates}))
         return
     if opts["as_csv"]:
         from ..present.csvout import rows_csv

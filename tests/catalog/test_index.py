@@ -43,3 +43,20 @@ def test_corrupt_index_is_rebuilt(tmp_catalog: Catalog) -> None:
     assert len(reopened) == 27
     assert any("moved aside and rebuilt" in n for n in reopened.notices)
     assert [r["designation"] for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]  # tags survive
+
+
+def test_scan_finds_curve_files_below_the_root_and_skips_hidden_and_linked_folders(tmp_path: Path) -> None:
+    from motorlib.catalog.index import scan_files
+
+    for name in ("a/one.xml", "a/b/two.xml", "top.xml", ".motorlib/staging/x.xml", "a/.hidden.xml", "a/notes.txt",
+                 ".hidden/three.xml"):
+        (tmp_path / name).parent.mkdir(parents=True, exist_ok=True)
+        (tmp_path / name).write_bytes(b"12345")
+    outside = tmp_path.parent / f"{tmp_path.name}-outside"
+    outside.mkdir()
+    (outside / "far.xml").write_bytes(b"1")
+    (tmp_path / "linked").symlink_to(outside, target_is_directory=True)
+    found = scan_files(tmp_path)
+    assert sorted(found) == ["a/b/two.xml", "a/one.xml", "top.xml"]
+    st = (tmp_path / "a" / "one.xml").stat()
+    assert found["a/one.xml"] == (5, st.st_mtime_ns)

@@ -13,7 +13,7 @@ from pathlib import Path
 import pytest
 
 from motorlib import MotorRecord, read_record, record_to_bytes, write_record
-from motorlib.catalog import Catalog, CatalogFilter, motor_id_for
+from motorlib.catalog import Catalog, CatalogFilter, motor_id_for, store
 from motorlib.files.fsio import slug
 from motorlib.errors import CatalogError, MotorNotFoundError
 
@@ -128,3 +128,91 @@ def test_killed_import_leaves_whole_curves_and_a_consistent_index(tmp_path: Path
     results = catalog.add_files(paths)
     assert sum(r.status == "duplicate" for r in results) == len(written)
     assert len(catalog) == 400
+
+
+def _variant(record: MotorRecord, factor: float) -> MotorRecord:
+    """The same maker and designation with another curve (a near duplicate)."""
+    return MotorRecord(**{**{f: getattr(record, f) for f in record.__dataclass_fields__},
+                          "thrust_n": record.thrust_n * factor})
+
+
+def test_batched_add_catches_duplicates_within_a_batch_and_indexes_what_it_wrote(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # Issue 16: adding in durable batches (one flush and one index commit per batch) changes no outcome.
+    monkeypatch.setattr(store, "BATCH_SIZE", 4)
+    paths = _write_synthetic(tmp_path / "in", 9, seed=3)
+    first = read_record(paths[0])
+    paths.insert(2, write_record(first, tmp_path / "in" / "again.xml"))  # same batch as paths[0]
+    paths.insert(3, write_record(_variant(first, 1.01), tmp_path / "in" / "near.xml"))
+    paths.append(FIXTURE_DIR / "bad_time_order.xml")
+    ticks = []
+    catalog = Catalog(tmp_path / "c")
+    results = catalog.add_files(paths, progress=ticks.append)
+    assert ticks == [1] * len(paths)
+    assert [r.status for r in results].count("added") == 10
+    assert results[2].status == "duplicate" and results[2].handle == results[0].handle
+    assert results[3].near_duplicates == (results[0].handle,) and results[3].handle == results[0].handle + "-2"
+    assert results[-1].status == "refused"
+    assert len(catalog) == 10 and len(list(catalog.root.rglob("*.xml"))) == 10
+    assert not list((catalog.root / ".motorlib" / "staging").iterdir())
+    catalog.close()
+    reopened = Catalog(tmp_path / "c")  # sizes and times stored while staging match the files: nothing re-read
+    assert reopened.refresh() == 0 and not reopened.problems
+    assert {r["motor_id"] for r in reopened.rows()} == {r.motor_id for r in results if r.status == "added"}
+
+
+def test_a_failed_batch_leaves_neither_files_nor_rows(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setattr(store, "BATCH_SIZE", 3)
+    paths = _write_synthetic(tmp_path / "in", 5, seed=4)
+    calls = []
+
+    def fail_on_the_fifth(record: MotorRecord) -> bytes:
+        calls.append(record)
+        if len(calls) == 5:
+            raise OSError(28, "No space left on device")
+        return record_to_bytes(record)
+
+    monkeypatch.setattr(store, "record_to_bytes", fail_on_the_fifth)
+    catalog = Catalog(tmp_path / "c")
+    with pytest.raises(OSError, match="No space"):
+        catalog.add_files(paths)
+    assert len(catalog) == 3 and len(list(catalog.root.rglob("*.xml"))) == 3  # the first batch only
+    assert not list((catalog.root / ".motorlib" / "staging").iterdir())
+    assert Catalog(tmp_path / "c").refresh() == 0
+
+
+def test_the_duplicate_name_lookup_uses_an_index(tmp_catalog: Catalog) -> None:
+    # Issue 16: it ran once per added curve and scanned the whole table, so adding grew faster than linearly.
+    plan = tmp_catalog._db.execute("EXPLAIN QUERY PLAN " + store._SAME_NAME_SQL, ("a", "b")).fetchall()
+    assert "USING INDEX motors_lower_name" in plan[0][-1]
+
+
+_BATCH_ADDER = textwrap.dedent("""
+    import sys
+    sys.path.insert(0, {root!r})
+    from motorlib.catalog import Catalog, store
+    store.BATCH_SIZE = 25
+    Catalog(sys.argv[1]).add_files(sys.argv[2:])  # one call: batches of 25 files
+""")
+
+
+def test_killed_batched_import_leaves_whole_curves_and_the_next_writer_cleans_up(tmp_path: Path) -> None:
+    root = tmp_path / "crash"
+    Catalog(root).close()
+    paths = _write_synthetic(tmp_path / "in", 400, seed=8)
+    proc = subprocess.Popen([sys.executable, "-c", _BATCH_ADDER.format(root=str(ROOT)), str(root), *map(str, paths)])
+    deadline = time.time() + 60
+    while time.time() < deadline and len(list(root.rglob("*.xml"))) < 60:
+        time.sleep(0.02)
+    os.kill(proc.pid, signal.SIGKILL)
+    proc.wait()
+    written = sorted(root.rglob("*.xml"))
+    assert 0 < len(written) < 400
+    for path in written:
+        read_record(path)  # every curve file is complete and valid
+    catalog = Catalog(root)
+    assert len(catalog) == len(written) and not catalog.problems
+    results = catalog.add_files(paths)
+    assert sum(r.status == "duplicate" for r in results) == len(written)
+    assert len(catalog) == 400
+    assert not list((root / ".motorlib" / "staging").iterdir())  # staged files of the killed batch are gone

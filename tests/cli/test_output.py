@@ -1,0 +1,34 @@
+"""CLI output helpers: JSON is indented for a terminal and compact for a pipe (issue 16)."""
+
+from __future__ import annotations
+
+import io
+import json
+
+import pytest
+
+from motorlib.cli.output import _json_text
+
+from .conftest import AIRFRAMES, run
+
+
+class _Terminal(io.StringIO):
+    def isatty(self) -> bool:
+        return True
+
+
+def test_json_is_indented_only_for_a_terminal(monkeypatch: pytest.MonkeyPatch) -> None:
+    data = {"apogee_m": 412.5, "reasons": ["a", "b"]}
+    monkeypatch.setattr("sys.stdout", io.StringIO())
+    piped = _json_text(data)
+    monkeypatch.setattr("sys.stdout", _Terminal())
+    shown = _json_text(data)
+    assert "\n" not in piped and shown.count("\n") >= 4
+    assert json.loads(piped) == json.loads(shown) == data
+
+
+@pytest.mark.parametrize("command", [["fly", "--motor", "F29-8"], ["match", "--target", "400"]])
+def test_json_to_a_pipe_is_one_line(command: list[str]) -> None:
+    code, out = run(command[0], str(AIRFRAMES / "quibble-41.toml"), *command[1:], "--json")
+    assert code == 0, out
+    assert out.count("\n") == 1 and json.loads(out)
