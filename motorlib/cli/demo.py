@@ -27,7 +27,8 @@ def demo(plot_path: str) -> None:
     airframe = sample_catalog_dir() / "airframes" / "quibble-41.toml"
     opts = dict(target_m=400.0, ceiling_m=600.0, max_class=None, min_rail_exit=15.0, min_thrust_to_weight=5.0,
                 delay_slack=2.0, allow_smaller_motors=True, tag=None, top=None, show_rejected=False, ballast=True,
-                units="si", as_json=False, as_csv=False, plot_path=plot_path)
+                units="si", as_json=False, as_csv=False, plot_path=plot_path, report_path=None,
+                overwrite=False)
     _console().print(f"Demo: airframe {airframe.name}, bundled sample catalog, target 400 m, ceiling 600 m, "
                      "24 and 29 mm motors (adapters allowed), with ballast.")
     _run_match(str(airframe), _open_catalog(str(sample_catalog_dir())), opts)

@@ -36,6 +36,9 @@ def _match_options(func: Any) -> Any:
         click.option("--csv", "as_csv", is_flag=True, help="Print the candidates as CSV (SI)."),
         click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
+        click.option("--report", "report_path", type=click.Path(dir_okay=False),
+                     help="Write a printable ranking report (one self-contained HTML file, at most two pages)."),
+        click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists."),
     ]
     for option in reversed(options):
         func = option(func)
@@ -49,6 +52,10 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     from ..flight.rules import LaunchRules
 
     frame = load_airframe(airframe_file)
+    if opts.get("report_path"):
+        from .output import _write_report
+
+        _write_report(None, opts["report_path"], opts["overwrite"], [airframe_file], check_only=True)
     try:
         settings = MatchSettings(
             target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
@@ -63,11 +70,19 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         raise click.UsageError(f"no motors in {cat.root}" + (f" with tag {opts['tag']!r}" if opts["tag"] else ""))
     result = rank(frame, rows, cat.motor_pack, settings)
     conditions = {**result.conditions, "catalog": str(cat.root), "caution": _EPILOG}
-    written = None
+    written = []
     if opts["plot_path"]:
         from ..present.plots import match_plot
 
-        written = match_plot(result, opts["plot_path"])
+        written.append(match_plot(result, opts["plot_path"]))
+    if opts.get("report_path"):
+        from .fly import _command_line
+        from .output import _write_report
+        from ..present.report_content import match_report
+
+        report = match_report(result, inputs=[airframe_file], command=_command_line(), catalog=str(cat.root),
+                              units=opts["units"])
+        written.append(_write_report(report, opts["report_path"], opts["overwrite"], [airframe_file]))
     if opts["as_json"]:
         click.echo(json.dumps({"airframe": result.airframe, "conditions": conditions,
                                "candidates": result.candidates}, indent=2))
@@ -95,8 +110,8 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
     console.print(render.conditions_text(result))
     console.print(f"Catalog: {render.escape(str(cat.root))}")
-    if written:
-        console.print(f"Wrote {render.escape(str(written))}")
+    for path in written:
+        console.print(f"Wrote {render.escape(str(path))}")
     console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")
 
 
@@ -119,5 +134,6 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     Example:
       motorlib match sample_curves/airframes/quibble-41.toml --target 400 --ceiling 600
       motorlib match rocket.toml --target 800ft --max-class G --tag in-stock --ballast --units imperial
+      motorlib match rocket.toml --target 300 --ceiling 450 --report motors.html
     """
     _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)

@@ -28,7 +28,7 @@ from .flightcard import FlightCard
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE, VERDICT_MARKS
 
 __all__ = ["CAUTIONS", "ChartBlock", "Facts", "FlyReport", "MatchReport", "Notes", "ReduceReport", "TableBlock",
-           "Trace", "file_sha256", "render_html", "write_report"]
+           "Trace", "check_report_target", "file_sha256", "render_html", "write_report"]
 
 CAUTIONS = (
     "Every figure here is a prediction from a simplified model: an estimate, not a promise.",
@@ -359,6 +359,13 @@ def write_report(report: FlyReport | MatchReport | ReduceReport, path: str | os.
     """
     from ..files.fsio import write_atomic
 
+    check_report_target(path, overwrite=overwrite, inputs=inputs)
+    return write_atomic(Path(path), render_html(report).encode("utf-8"), overwrite=overwrite)
+
+
+def check_report_target(path: str | os.PathLike[str], *, overwrite: bool = False,
+                        inputs: Sequence[str | os.PathLike[str]] = ()) -> None:
+    """Raise before any work is done if the report could not be written to ``path`` (see :func:`write_report`)."""
     target = Path(path)
     for source in inputs:
         try:
@@ -367,5 +374,6 @@ def write_report(report: FlyReport | MatchReport | ReduceReport, path: str | os.
             same = False
         if same or target.resolve() == Path(source).resolve():
             raise ValueError(f"{target}: is an input of this report; choose another file name")
-    return write_atomic(target, render_html(report).encode("utf-8"), overwrite=overwrite)
+    if target.exists() and not overwrite:
+        raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
 

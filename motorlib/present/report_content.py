@@ -285,7 +285,8 @@ def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
                  if ej["delay_s"] == summary.get("chosen_delay_s") and summary.get("burnout_time_s") is not None]
         deploy = summary.get("deploy_time_s")
         if deploy is not None and any(abs(float(deploy) - f) < 1e-6 for f in fired):
-            rows[-1] = (rows[-1][0] + ": opens the device",) + rows[-1][1:]  # ejection and deployment are one event
+            k = next(i for i, row in enumerate(rows) if row[0].endswith("(chosen)"))
+            rows[k] = (rows[k][0] + ", opens the device",) + rows[k][1:]  # ejection and deployment are one event
         elif deploy is not None:
             rows.append(("recovery device opens", quantity(summary["deploy_time_s"], "time"),
                          quantity(summary.get("deploy_altitude_m"), "length", u), "-"))

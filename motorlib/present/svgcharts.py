@@ -399,8 +399,13 @@ class SvgChart:
             if top_text:
                 out += (f'<text x="{cx:.1f}" y="{top - 4:.1f}" text-anchor="middle" fill="{INK}" '
                         f'font-size="{9.5 if n > 14 else 10.5}">{escape(top_text)}</text>')
-            if inside_text:
-                out += (f'<text transform="translate({cx + 3.5:.1f},{base - 5:.1f}) rotate(-90)" fill="{INK}" '
+            if inside_text and len(inside_text) == 1:  # a lone mark reads upright
+                out += (f'<text x="{cx:.1f}" y="{base - 6:.1f}" text-anchor="middle" fill="{PAPER}" font-size="13" '
+                        f'font-weight="700">{escape(inside_text)}</text>')
+            elif inside_text:
+                # inside the bar when it is tall enough, else above its value label, reading upwards
+                start = base - 5 if base - top > 6.2 * len(inside_text) + 12 else top - (18 if top_text else 4)
+                out += (f'<text transform="translate({cx + 3.5:.1f},{start:.1f}) rotate(-90)" fill="{INK}" '
                         f'font-size="10" font-weight="700" paint-order="stroke" stroke="{PAPER}" stroke-width="3">'
                         f"{escape(inside_text)}</text>")
             return out
