@@ -278,7 +278,9 @@ def _card(card: FlightCard) -> str:
         warns = "".join(f"<li>{escape(m)}</li>" for _, m in phase.warnings)
         phases.append(f'<div class="phase {phase.verdict}"><h3><span>{escape(phase.title)}</span>{_mark(phase.verdict)}'
                       f'</h3><dl>{figures}</dl>{f"<ul class=warn>{warns}</ul>" if warns else ""}</div>')
-    result = f'<p class="result">{_mark(card.verdict)} {escape(card.result)}</p>'
+    looks = sum(p.verdict in ("caution", "fail") for p in card.phases)
+    tally = f"; {looks} phase{'s' if looks != 1 else ''} to look at" if looks else "; every checked figure within its rule"
+    result = f'<p class="result">{_mark(card.verdict)} {escape(card.result + (tally if card.completed else ""))}</p>'
     return (f'<section><h2>Flight card: phase by phase</h2>{result}<div class="card">{"".join(phases)}</div>'
             "</section>")
 

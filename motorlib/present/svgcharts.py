@@ -290,7 +290,7 @@ class SvgChart:
         return "".join(p for p in parts if p)
 
     def _axes(self) -> str:
-        out = [f'<rect x="{self._left}" y="{self._top}" width="{self._right - self._left:.1f}" '
+        out = [f'<rect class="frame" x="{self._left}" y="{self._top}" width="{self._right - self._left:.1f}" '
                f'height="{self._bottom - self._top:.1f}" fill="none" stroke="{RULE}"/>']
         y_ticks = nice_ticks(*self.y_range)
         step = (y_ticks[1] - y_ticks[0]) if len(y_ticks) > 1 else 1.0
