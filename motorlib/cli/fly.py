@@ -92,11 +92,12 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         return
     from ..present import tables as render
 
+    from ..present.flightcard import flight_card
+
     console = _console()
-    console.print(render.flight_table(summary, f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
-                                      units))
-    if warnings:
-        console.print(render.warnings_text(warnings), end="")
+    card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
+                       units=units, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    console.print(render.flight_card_table(card))
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)

@@ -207,7 +207,9 @@ def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -
     if east is not None and north is not None:
         where = f"{quantity((float(east) ** 2 + float(north) ** 2) ** 0.5, 'length', u)} from the pad"
     else:
-        where = f"{quantity(s.get('apogee_downrange_m'), 'length', u)} downwind of the pad"
+        downrange = s.get("apogee_downrange_m")
+        where = "-" if downrange is None else (
+            f"{quantity(abs(float(downrange)), 'length', u)} {'downwind' if float(downrange) >= 0 else 'upwind'} of the pad")
     figures = [
         CardFigure("apogee", f"{quantity(s.get('apogee_m'), 'length', u)} at {_seconds(s.get('time_to_apogee_s'))}"),
         CardFigure("apogee position", where),

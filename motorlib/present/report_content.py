@@ -42,11 +42,15 @@ _LINE_STYLES = [(INK, "solid"), (BLUE, "dashed"), (ORANGE, "solid"), (INK, "dott
 
 def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -> Trace:
     """The trace block: motorlib's version, the command and the SHA-256 of every input file that exists."""
-    from .. import __version__
+    from importlib import metadata
 
+    try:  # the installed distribution's version (present/ does not import the package top)
+        version = metadata.version("motorlib")
+    except metadata.PackageNotFoundError:
+        version = "unknown (not installed)"
     files = tuple((str(p), file_sha256(p)) for p in inputs if Path(p).is_file())
     when = made_at if made_at is not None else _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
-    return Trace(__version__, command, files, when)
+    return Trace(version, command, files, when)
 
 
 # ----------------------------------------------------------------------------- charts

@@ -160,44 +160,33 @@ def display(value: object, kind: str, units: str, digits: int = 4) -> str:
     return f"{float(value) / factor:.{digits}g} {unit}"  # type: ignore[arg-type]
 
 
-def flight_table(summary: dict[str, object], title: str, units: str = "si") -> Table:
-    """The figures of one simulated flight (times from ignition)."""
-    table = Table(title=escape(title), show_header=False, title_justify="left")
-    table.add_column(style="bold")
-    table.add_column()
-    s = summary
+def flight_card_table(card) -> Group:
+    """The flight card (:func:`motorlib.present.flightcard.flight_card`): phase by phase, each figure with its
+    verdict mark (✓ within the rule, ! a rule of thumb broken, ✗ failed, · no rule) and the rule it was checked
+    against; a phase's warnings follow its figures."""
+    from .palette import VERDICT_MARKS
 
-    def sec(key: str) -> str:
-        return "-" if s.get(key) is None else f"{float(s[key]):.2f} s"  # type: ignore[arg-type]
-
-    rows = [
-        ("result", str(s["message"])),
-        ("liftoff", f"{sec('liftoff_time_s')}, mass {display(s['liftoff_mass_kg'], 'mass', units)}"),
-        ("thrust-to-weight", f"liftoff {_fmt(s['liftoff_thrust_to_weight'], 3)}, average {_fmt(s['average_thrust_to_weight'], 3)}"),
-        ("rail exit", f"{display(s['rail_exit_speed_m_s'], 'speed', units)} at {sec('rail_exit_time_s')}"),
-        ("burnout", sec("burnout_time_s")),
-        ("apogee", f"{display(s['apogee_m'], 'length', units)} at {sec('time_to_apogee_s')}, "
-                   f"{display(s['apogee_downrange_m'], 'length', units)} downrange"),
-        ("optimal delay", sec("optimal_delay_s")),
-        ("max speed", f"{display(s['max_speed_m_s'], 'speed', units)} (Mach {_fmt(s['max_mach'], 3)})"),
-        ("max acceleration", f"{display(s['max_acceleration_m_s2'], 'acceleration', units)} "
-                             f"({_fmt(None if s['max_acceleration_m_s2'] is None else float(s['max_acceleration_m_s2']) / 9.80665, 3)} g)"),
-        ("max dynamic pressure", display(s["max_dynamic_pressure_pa"], "pressure", units)),
-    ]
-    for ej in s["ejections"]:  # type: ignore[union-attr]
-        mark = "  <- chosen" if ej["delay_s"] == s.get("chosen_delay_s") else ""
-        rows.append((f"ejection at {ej['delay_s']:g} s delay",
-                     f"{display(ej['altitude_m'], 'length', units)}, {display(ej['speed_m_s'], 'speed', units)}{mark}"
-                     if ej["altitude_m"] is not None else "after landing"))
-    if s.get("deploy_time_s") is not None:
-        rows.append(("deployment", f"{sec('deploy_time_s')} at {display(s['deploy_altitude_m'], 'length', units)}"))
-    if s.get("landing_speed_m_s") is not None:
-        rows.append(("landing", f"descending at {display(s['landing_descent_rate_m_s'], 'speed', units)} "
-                                f"({display(s['landing_speed_m_s'], 'speed', units)} over ground) after "
-                                f"{sec('descent_time_s')} of descent, {display(s['drift_m'], 'length', units)} from the pad"))
-    for key, value in rows:
-        table.add_row(key, escape(value))
-    return table
+    styles = {"ok": "bold blue", "caution": "bold yellow", "fail": "bold red", "info": "dim"}
+    parts: list[object] = [Text.assemble((escape(card.title), "bold"), "  ",
+                                         (VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result)]
+    label_width = max((len(f.label) + 3 for p in card.phases for f in p.figures), default=10)
+    for phase in card.phases:
+        parts.append(Text.assemble((VERDICT_MARKS[phase.verdict][0], styles[phase.verdict]), " ",
+                                   (phase.title, "bold underline")))
+        table = Table(show_header=False, box=None, pad_edge=False, collapse_padding=True)
+        table.add_column(no_wrap=True, min_width=label_width)
+        table.add_column(overflow="fold")
+        table.add_column(style="dim", no_wrap=True)
+        for figure in phase.figures:
+            mark = "" if figure.verdict == "info" else VERDICT_MARKS[figure.verdict][0]
+            table.add_row(Text(f"  {mark or ' '} ", style=styles[figure.verdict]) + Text(figure.label),
+                          escape(figure.value), escape(figure.rule) if figure.verdict != "info" else "")
+        for code, message in phase.warnings:
+            table.add_row(Text("    warning", style="yellow"), Text(f"{code}: {message}"), "")
+        parts.append(table)
+    if card.general_warnings:
+        parts.append(warnings_text(list(card.general_warnings)))
+    return Group(*parts)  # type: ignore[arg-type]
 
 
 def warnings_text(warnings: list[tuple[str, str]]) -> Text:
