@@ -75,8 +75,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if plot_path:
         from ..present.plots import flight_plot
 
-        written.append(flight_plot(results.trajectories[0], summary, f"{frame.name} with {motor.designation}",
-                                   plot_path))
+        written.append(flight_plot(results.trajectories[0], {**summary, "wind_speed_m_s": frame.launch.wind_speed_m_s},
+                                   f"{frame.name} with {motor.designation}", plot_path))
     if report_path:
         from .output import _write_report
         from ..present.report_content import fly_report
