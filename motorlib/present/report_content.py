@@ -122,7 +122,7 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
                                   f"{float(summary['burnout_time_s']):.2f} s. Events: "
                                   + ", ".join(f"{n} at {s:.1f} s" for n, s in events) + "."),
                      x_label="time from ignition (s)", y_label="altitude above the pad (m)", x_range=(0.0, end),
-                     y_range=(0.0, apogee * 1.18), y2_label="speed (m/s)", y2_range=(0.0, float(vv and max(vv)) * 1.1 or 1.0),
+                     y_range=(0.0, apogee * 1.18), y2_label="speed (m/s)", y2_range=(0.0, max(vv, default=0.0) * 1.1 or 1.0),
                      width=520, height=320, key=key)
     burnout = float(summary["burnout_time_s"])
     deploy = next((s for n, s in events if n not in ("rail exit", "burnout", "apogee")), None)
@@ -269,13 +269,12 @@ def _mm(value: Any) -> str:
 
 
 def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
-    rows, marks = [], []
+    rows: list[tuple[str, str, str, str]] = []
     if summary.get("deployments"):
         for e in summary["deployments"]:
             rows.append((str(e.get("name") or e.get("event") or e.get("device") or "deployment"),
                          quantity(e.get("time_s"), "time"), quantity(e.get("altitude_m"), "length", u),
                          quantity(e.get("speed_m_s"), "speed", u)))
-            marks.append("info")
     else:
         for ej in summary.get("ejections") or []:
             chosen = ej["delay_s"] == summary.get("chosen_delay_s")
@@ -284,7 +283,6 @@ def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
                              float(summary["burnout_time_s"]) + ej["delay_s"], "time"),
                          "after landing" if ej.get("altitude_m") is None else quantity(ej["altitude_m"], "length", u),
                          quantity(ej.get("speed_m_s"), "speed", u)))
-            marks.append("info")
         fired = [float(summary["burnout_time_s"]) + ej["delay_s"] for ej in summary.get("ejections") or []
                  if ej["delay_s"] == summary.get("chosen_delay_s") and summary.get("burnout_time_s") is not None]
         deploy = summary.get("deploy_time_s")
@@ -294,7 +292,6 @@ def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
         elif deploy is not None:
             rows.append(("recovery device opens", quantity(summary["deploy_time_s"], "time"),
                          quantity(summary.get("deploy_altitude_m"), "length", u), "-"))
-            marks.append("info")
     if not rows:
         return None
     from ..flight.rules import LaunchRules
