@@ -61,6 +61,7 @@ class TableBlock:
     numeric: tuple[bool, ...] = ()
     marks: tuple[str, ...] = ()
     note: str = ""
+    nowrap: tuple[bool, ...] = ()  # columns never broken inside a cell (motor names); numeric ones never are
 
 
 @dataclass(frozen=True)
@@ -178,6 +179,7 @@ table {{ border-collapse: collapse; width: 100%; font-size: .88em; }}
 th, td {{ text-align: left; padding: 2px 5px; border-bottom: 1px solid var(--rule); vertical-align: top; }}
 th {{ border-bottom: 1.5px solid var(--ink); font-weight: 600; }}
 td.num, th.num {{ text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }}
+td.keep, th.keep {{ white-space: nowrap; }}
 .scroll {{ overflow-x: auto; max-width: 100%; }}
 .sr {{ position: absolute; width: 1px; height: 1px; overflow: hidden; clip: rect(0 0 0 0); }}
 .mark {{ font-weight: 700; display: inline-block; min-width: 1.3em; text-align: center; border-radius: 2px; }}
@@ -216,7 +218,7 @@ ul.notes.warning li::marker {{ content: "! "; font-weight: 700; }}
   .card {{ grid-template-columns: repeat(3, 1fr); }}
   .scroll {{ overflow: visible; }}
   svg.chart {{ max-height: 62mm; }}
-  figure.wide svg.chart {{ max-height: 70mm; }}
+  figure.wide svg.chart {{ max-height: 92mm; }}
   .sign div {{ padding-top: 14pt; }}
 }}
 """
@@ -239,12 +241,14 @@ def _table(block: TableBlock | None) -> str:
     if block is None:
         return ""
     numeric = block.numeric or (False,) * len(block.columns)
-    head = "".join(f'<th{" class=num" if n else ""} scope="col">{escape(c)}</th>' for c, n in zip(block.columns, numeric))
+    keep = block.nowrap or (False,) * len(block.columns)
+    classes = [" class=num" if n else " class=keep" if k else "" for n, k in zip(numeric, keep)]
+    head = "".join(f'<th{c} scope="col">{escape(name)}</th>' for name, c in zip(block.columns, classes))
     if block.marks:
         head = '<th scope="col"><span class="sr">mark</span></th>' + head
     body = []
     for i, row in enumerate(block.rows):
-        cells = "".join(f'<td{" class=num" if n else ""}>{escape(c)}</td>' for c, n in zip(row, numeric))
+        cells = "".join(f"<td{c}>{escape(text)}</td>" for text, c in zip(row, classes))
         if block.marks:
             cells = f"<td>{_mark(block.marks[i])}</td>" + cells
         body.append(f"<tr>{cells}</tr>")

@@ -376,7 +376,7 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
     rows, marks = [], []
     for rank, cand in enumerate(shown, 1):
         delay = "-" if cand["chosen_delay_s"] is None else (
-            f"{cand['chosen_delay_s']:g}{' drilled' if cand['delay_adjusted'] else ''} / {cand['optimal_delay_s']:.1f}")
+            f"{cand['chosen_delay_s']:g}{' drilled' if cand['delay_adjusted'] else ''}/{cand['optimal_delay_s']:.1f}")
         rows.append((str(rank), cand["designation"], quantity(cand["apogee_m"], "length", u),
                      quantity(cand["rail_exit_speed_m_s"], "speed", u),
                      "-" if cand["liftoff_thrust_to_weight"] is None else f"{cand['liftoff_thrust_to_weight']:.1f}",
@@ -386,9 +386,11 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
     n_pass = sum(cand["passes"] for cand in result.candidates)
     ranking = TableBlock(
         f"Ranking: {n_pass} of {len(result.candidates)} motors pass",
-        ("#", "motor", "apogee", "rail exit", "T/W", "delay chosen / optimal (s)", "ejection speed", "verdict and reasons"),
+        ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
         tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
-        f"{len(result.candidates) - len(shown)} motor(s) do not fit the mount or the class limit and are not listed.")
+        f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
+        f"{len(result.candidates) - len(shown)} motor(s) do not fit the mount or the class limit and are not listed.",
+        nowrap=(False, True, False, False, False, False, False, False))
     conditions = Facts("Conditions and rules", (
         ("airframe", f"{result.airframe['name']}, {quantity(result.airframe['mass_kg'], 'mass', u)} empty"),
         ("target", "-" if not c.get("target_m") else quantity(c["target_m"], "length", u)),
