@@ -6,7 +6,7 @@ series and of one firing) is loaded once; the measurements are then checked one 
 * the page loads with no console error and asks for nothing but itself over the network;
 * printed on A4 and on Letter paper it has at most two pages (``/Type /Page`` objects in the PDF);
 * at 390 px and 1280 px wide nothing overflows horizontally;
-* every chart has a text alternative (``role="img"`` with an ``aria-label``, or a ``<title>``);
+* every chart has a text alternative (a flight that never leaves the rail still has its thrust curve) (``role="img"`` with an ``aria-label``, or a ``<title>``);
 * every chart has data ink in its plot area in a screenshot, and the measure itself sees an empty chart as
   empty (a control page).
 
@@ -38,7 +38,7 @@ AIRFRAME = SAMPLE_DIR / "airframes" / "quibble-41.toml"
 A4_IN = (8.27, 11.69)
 LETTER_IN = (8.5, 11.0)
 MIN_INK_FRACTION = 0.004  # of the plot area: a drawn curve or bars; axes and grid alone give none
-REPORTS = ["fly", "fly-3d", "match", "series", "single"]
+REPORTS = ["fly", "fly-3d", "fly-failed", "match", "series", "single"]
 
 
 def _pages(pdf: bytes) -> int:
@@ -116,6 +116,7 @@ def report_files(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Path]:
     logs = _write_logs(folder)
     commands = {
         "fly": ["fly", str(AIRFRAME), "--motor", str(SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml")],
+        "fly-failed": ["fly", str(AIRFRAME), "--motor", str(SAMPLE_DIR / "teakettle-thrust-co_1-2a3-2-4.xml")],
         "match": ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--ceiling", "600",
                   "--allow-smaller-motors"],
         "series": ["reduce", *map(str, logs), "--combine", "--designation", "G59-10", "--diameter", "29",
