@@ -279,7 +279,7 @@ class SvgChart:
                  f'<rect width="{self.width}" height="{self.height}" fill="{PAPER}"/>']
         parts += [self._draw(item) for item in self._back]
         parts.append(self._axes())
-        parts.append(f'<g class="plot">')
+        parts.append('<g class="plot">')
         parts += [self._draw(item) for item in self._body]
         parts += [self._draw(item) for item in self._front]
         parts.append("</g>")
