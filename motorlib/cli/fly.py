@@ -7,7 +7,7 @@ from typing import Any
 import click
 
 from .options import _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
-from .output import _EPILOG, _caution, _console, _json_text
+from .output import _EPILOG, _caution, _card_units, _console, _json_text
 
 
 @click.command()
@@ -26,10 +26,15 @@ from .output import _EPILOG, _caution, _console, _json_text
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False),
               help="Write the trajectory to this CSV file, in the display units (named in each column header).")
-@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write altitude, speed and acceleration "
-                                                                           "against time to this PNG file.")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
+              help="Write the flight chart (altitude by phase with its events, beside the side view with the wind) "
+                   "to this PNG file.")
+@click.option("--report", "report_path", type=click.Path(dir_okay=False),
+              help="Write a printable pre-flight report (one self-contained HTML file, at most two pages).")
+@click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists.")
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
-        units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None) -> None:
+        units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None, report_path: str | None,
+        overwrite: bool) -> None:
     """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
 
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
@@ -42,6 +47,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
           --plot f29.png
       motorlib fly my-rocket.toml --motor static-3.xml --delay 8s --units imperial
       motorlib fly my-rocket.toml --motor G59-10 --ballast 25g --csv g59.csv
+      motorlib fly my-rocket.toml --motor G59-10 --report preflight.html
     """
     import numpy as np
 
@@ -52,11 +58,16 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
     frame = load_airframe(airframe_file)
-    motor = _load_motor(motor_ref, catalog_dir)
+    motor, motor_file = _load_motor(motor_ref, catalog_dir)
+    if report_path:
+        from .output import _write_report
+
+        _write_report(None, report_path, overwrite, [airframe_file] + ([motor_file] if motor_file else []),
+                      check_only=True)
     wanted = None if delay_s is None else np.array([delay_s])
     record = _record_for_delay(motor, delay_s)
     results = simulate(frame, [record], added_mass_kg=ballast_kg or 0.0, deploy_delay_s=wanted,
-                       trajectories=bool(csv_path or plot_path))
+                       trajectories=bool(csv_path or plot_path or report_path))
     summary = results.summary(0, record.delays_s)
     summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
     if delay_s is not None and frame.recovery is None:
@@ -68,8 +79,16 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if plot_path:
         from ..present.plots import flight_plot
 
-        written.append(flight_plot(results.trajectories[0], summary, f"{frame.name} with {motor.designation}",
-                                   plot_path, shown))
+        written.append(flight_plot(results.trajectories[0], {**summary, "wind_speed_m_s": frame.launch.wind_speed_m_s},
+                                   f"{frame.name} with {motor.designation}", plot_path, shown))
+    if report_path:
+        from .output import _write_report
+        from ..present.report_content import fly_report
+
+        inputs = [airframe_file] + ([motor_file] if motor_file else [])
+        report = fly_report(frame, motor, summary, warnings, results.trajectories[0], inputs=inputs,
+                            command=_command_line(), units=_card_units(shown))
+        written.append(_write_report(report, report_path, overwrite, inputs))
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
@@ -77,26 +96,37 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         return
     from ..present import tables as render
 
+    from ..present.flightcard import flight_card
+
     console = _console()
-    console.print(render.flight_table(summary, f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
-                                      shown))
-    if warnings:
-        console.print(render.warnings_text(warnings, summary, LaunchRules(), shown, frame.launch.wind_speed_m_s),
-                      end="")
+    card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
+                       units=_card_units(shown), wind_speed_m_s=frame.launch.wind_speed_m_s)
+    console.print(render.flight_card_table(card))
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)
 
 
-def _load_motor(motor_ref: str, catalog_dir: str | None) -> Any:
-    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog."""
+def _load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:
+    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file."""
     from pathlib import Path
 
     from ..files.curvefiles import load_curve_file
 
     if Path(motor_ref).is_file():
-        return load_curve_file(motor_ref)
-    return _open_catalog(_catalog_or_samples(catalog_dir)).get(motor_ref)
+        return load_curve_file(motor_ref), motor_ref
+    catalog = _open_catalog(_catalog_or_samples(catalog_dir))
+    motor_id = catalog.resolve(motor_ref)
+    path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
+    return catalog.get(motor_id), (str(Path(catalog.root) / path) if path else None)
+
+
+def _command_line() -> str:
+    """The command as typed (for the report's trace)."""
+    import shlex
+    import sys
+
+    return "motorlib " + " ".join(shlex.quote(a) for a in sys.argv[1:])
 
 
 def _record_for_delay(motor: Any, delay_s: float | None) -> Any:

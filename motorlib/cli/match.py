@@ -7,7 +7,7 @@ from typing import Any
 import click
 
 from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
-from .output import _EPILOG, _console, _json_text
+from .output import _EPILOG, _card_units, _console, _json_text
 
 
 def _match_options(func: Any) -> Any:
@@ -36,6 +36,9 @@ def _match_options(func: Any) -> Any:
                      help="Print the candidates as CSV, in the display units (named in each column header)."),
         click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
+        click.option("--report", "report_path", type=click.Path(dir_okay=False),
+                     help="Write a printable ranking report (one self-contained HTML file, at most two pages)."),
+        click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists."),
     ]
     for option in reversed(options):
         func = option(func)
@@ -50,6 +53,10 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
     units = display_units(opts.get("units"))
     frame = load_airframe(airframe_file)
+    if opts.get("report_path"):
+        from .output import _write_report
+
+        _write_report(None, opts["report_path"], opts["overwrite"], [airframe_file], check_only=True)
     rules = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
     if opts["min_rail_exit"] is not None:
         rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
@@ -65,11 +72,19 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         raise click.UsageError(f"no motors in {cat.root}" + (f" with tag {opts['tag']!r}" if opts["tag"] else ""))
     result = rank(frame, rows, cat.motor_pack, settings)
     conditions = {**result.conditions, "catalog": str(cat.root), "caution": _EPILOG}
-    written = None
+    written = []
     if opts["plot_path"]:
         from ..present.plots import match_plot
 
-        written = match_plot(result, opts["plot_path"], units)
+        written.append(match_plot(result, opts["plot_path"], units))
+    if opts.get("report_path"):
+        from .fly import _command_line
+        from .output import _write_report
+        from ..present.report_content import match_report
+
+        report = match_report(result, inputs=[airframe_file], command=_command_line(), catalog=str(cat.root),
+                              units=_card_units(units))
+        written.append(_write_report(report, opts["report_path"], opts["overwrite"], [airframe_file]))
     if opts["as_json"]:
         click.echo(_json_text({"airframe": result.airframe, "conditions": conditions, "candidates": result.candidates}))
         return
@@ -96,8 +111,8 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
     console.print(render.conditions_text(result, units, frame))
     console.print(f"Catalog: {render.escape(str(cat.root))}")
-    if written:
-        console.print(f"Wrote {render.escape(str(written))}")
+    for path in written:
+        console.print(f"Wrote {render.escape(str(path))}")
     console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")
 
 
@@ -122,5 +137,7 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
           --ceiling 600
       motorlib match my-rocket.toml --target 1300ft --max-class G --ballast \\
           --allow-smaller-motors --units imperial
+      motorlib match my-rocket.toml --target 300 --ceiling 450 \\
+          --report motors.html
     """
     _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)

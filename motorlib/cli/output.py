@@ -33,3 +33,29 @@ def _json_text(data: Any) -> str:
 
 def _caution(console: Any) -> None:
     console.print(f"[dim]{_EPILOG}[/dim]")
+
+
+def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *, check_only: bool = False) -> Any:
+    """Write an HTML report: never over an existing file without ``--overwrite``, never over an input.
+
+    With ``check_only`` nothing is written: a command calls it first, so that a refused report path stops it
+    before it writes anything else.
+    """
+    import click
+
+    from ..present.report import check_report_target, write_report
+
+    try:
+        if check_only:
+            return check_report_target(path, overwrite=overwrite, inputs=inputs)
+        return write_report(report, path, overwrite=overwrite, inputs=inputs)
+    except FileExistsError as exc:
+        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+    except ValueError as exc:
+        raise click.ClickException(str(exc)) from exc
+
+
+def _card_units(units: Any) -> str:
+    """The system name the flight card and the reports take ("si" or "imperial") from the display setting."""
+    system = getattr(units, "system", units)
+    return "imperial" if system == "imperial" else "si"

@@ -14,7 +14,7 @@ from .output import _console
 @click.command()
 @click.argument("logs", nargs=-1, required=True, type=click.Path(exists=True, dir_okay=False))
 @click.option("-o", "--output", type=click.Path(dir_okay=False), help="Motor-record XML file to write (atomically).")
-@click.option("--overwrite", is_flag=True, help="Replace OUTPUT if it exists.")
+@click.option("--overwrite", is_flag=True, help="Replace OUTPUT (and the --report file) if it exists.")
 @click.option("--force", is_flag=True, help="Write OUTPUT even when the checks find errors.")
 @click.option("--combine", is_flag=True, help="Several firings of one motor: write their mean curve and report the spread.")
 @click.option("--scale", type=float, help="Calibration for a raw-count column: newtons per count.")
@@ -26,11 +26,15 @@ from .output import _console
 @click.option("--points", type=click.IntRange(8, 500), default=48, show_default=True,
               help="Most points in the reduced curve.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write raw, filtered and reduced curves to this PNG.")
+@click.option("--report", "report_path", type=click.Path(dir_okay=False),
+              help="Write a printable report of the test series (firings, overlay, mean and spread, label check) "
+                   "as one self-contained HTML file.")
 @_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
 @_metadata_options
 def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bool, combine: bool, scale: float | None,
-           offset: float, cutoff: str | None, detrend: bool, points: int, plot_path: str | None, units: str | None,
+           offset: float, cutoff: str | None, detrend: bool, points: int, plot_path: str | None, report_path: str | None,
+           units: str | None,
            as_json: bool, **opts: Any) -> None:
     """Turn raw load-cell logs from a test stand into a checked thrust curve.
 
@@ -48,7 +52,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
           --length 70mm --total-mass 48g --propellant-mass 22g --delays 6 \\
           -o F30-6.xml --plot firing-1.png
       motorlib reduce f1.csv f2.csv f3.csv --combine --designation F30-6 \\
-          -o F30-6-mean.xml
+          -o F30-6-mean.xml --report series.html
     """
     from dataclasses import replace
     from pathlib import Path
@@ -60,6 +64,10 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
     settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
+    if report_path:
+        from .output import _write_report
+
+        _write_report(None, report_path, overwrite, list(logs) + ([output] if output else []), check_only=True)
     if opts["source_kind"] == "other":
         opts = {**opts, "source_kind": "own-firing"}
     meta = _metadata(opts)
@@ -84,6 +92,14 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         from ..present.plots import reduction_plot
 
         written.append(reduction_plot(first, f"{record.designation}: {Path(logs[0]).name}", plot_path))
+    if report_path:
+        from .fly import _command_line
+        from .output import _write_report
+        from ..present.report_content import reduce_report
+
+        inputs = list(logs) + ([output] if output else [])
+        report_doc = reduce_report(reductions, record, report, spread, inputs=list(logs), command=_command_line())
+        written.append(_write_report(report_doc, report_path, overwrite, inputs))
     summary = _log_summary(reductions)
     if as_json:
         click.echo(json.dumps({"logs": summary, "combined": spread, **report.as_dict(),

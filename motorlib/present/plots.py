@@ -1,4 +1,9 @@
-"""Charts as PNG files (matplotlib, imported only when a plot is asked for). Files are written atomically."""
+"""Charts as PNG files (matplotlib, imported only when a plot is asked for), in motorlib's own look.
+
+Colours, line styles, hatching and event shapes come from :mod:`.palette` (three inks of different lightness,
+so a grayscale print or a colour-blind reader loses nothing); every line, band and shaded region has a legend
+entry. Files are written atomically.
+"""
 
 from __future__ import annotations
 
@@ -10,9 +15,13 @@ import numpy as np
 
 from ..files.fsio import write_atomic
 from .display import DisplayUnits
+from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE
 
 __all__ = ["airframe_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot"]
 
+_MARKERS = {"rail exit": "^", "burnout": "s", "apogee": "o", "deployment": "D", "ejection": "D", "landing": "v"}
+_CYCLE = [(INK, "-"), (BLUE, "--"), (ORANGE, "-"), (INK, ":"), (BLUE, "-."), (ORANGE, "--"), (MUTED, "-")]
+_CAUTION = "Predictions are estimates; the range safety officer decides."
 _METRIC = DisplayUnits()
 
 
@@ -22,6 +31,9 @@ def _figure():
     matplotlib.use("Agg")
     from matplotlib import pyplot as plt
 
+    plt.rcParams.update({"axes.edgecolor": MUTED, "axes.labelcolor": INK, "xtick.color": MUTED, "ytick.color": MUTED,
+                         "axes.spines.top": False, "axes.spines.right": False, "grid.color": RULE,
+                         "hatch.linewidth": 0.8, "font.size": 9})
     return plt
 
 
@@ -31,109 +43,199 @@ def _save(fig, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
     return write_atomic(path, buffer.getvalue(), overwrite=overwrite)
 
 
+def _event_times(summary: dict[str, object]) -> list[tuple[str, float]]:
+    out = []
+    for name, key in (("rail exit", "rail_exit_time_s"), ("burnout", "burnout_time_s"), ("apogee", "time_to_apogee_s"),
+                      ("deployment", "deploy_time_s")):
+        if summary.get(key) is not None:
+            out.append((name, float(summary[key])))  # type: ignore[arg-type]
+    for event in summary.get("deployments") or []:  # type: ignore[union-attr]
+        out.append((str(event.get("name") or "deployment"), float(event["time_s"])))
+    return sorted(out, key=lambda e: e[1])
+
+
 def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], title: str,
                 path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
-    """Altitude, speed and acceleration against time, with rail exit, burnout, apogee and deployment marked."""
+    """The flight in two panels side by side: altitude against time with the phases as labelled bands and the
+    events marked on the curve (speed dashed on its own scale), and the path seen from the side with the wind."""
     plt = _figure()
-    t = trajectory["time_s"]
-    speed = np.hypot(trajectory["vx_m_s"], trajectory["vz_m_s"])
-    accel = np.hypot(trajectory["ax_m_s2"], trajectory["az_m_s2"])
-    fig, axes = plt.subplots(3, 1, sharex=True, figsize=(8, 8))
-    panels = ((axes[0], trajectory["altitude_m"], "altitude", "length"), (axes[1], speed, "speed", "speed"),
-              (axes[2], accel, "acceleration", "acceleration"))
-    for ax, values, label, kind in panels:
-        unit = units.unit(kind)
-        ax.plot(t, np.asarray(values) * units.convert(1.0, kind, unit), color="tab:blue")  # linear kinds only
-        ax.set_ylabel(f"{label} ({unit})")
-        ax.grid(alpha=0.3)
-        for key, name, colour in (("rail_exit_time_s", "rail exit", "tab:green"), ("burnout_time_s", "burnout", "tab:orange"),
-                                  ("time_to_apogee_s", "apogee", "tab:red"), ("deploy_time_s", "deployment", "tab:purple")):
-            value = summary.get(key)
-            if value is not None:
-                ax.axvline(float(value), color=colour, linestyle="--", linewidth=1, label=name)
-    axes[0].legend(loc="upper right", fontsize=8)
-    axes[2].set_xlabel("time from ignition (s)")
-    axes[0].set_title(title)
-    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    t = np.asarray(trajectory["time_s"], dtype=float)
+    z = np.asarray(trajectory["altitude_m"], dtype=float)
+    speed = np.sqrt(sum(np.square(trajectory[k]) for k in ("vx_m_s", "vy_m_s", "vz_m_s") if k in trajectory))
+    x = np.asarray(trajectory["x_m"], dtype=float) if "x_m" in trajectory else np.hypot(trajectory["east_m"],
+                                                                                      trajectory["north_m"])
+    lu, su = units.unit("length"), units.unit("speed")
+    z, x, speed = z * units.convert(1.0, "length", lu), x * units.convert(1.0, "length", lu), speed * units.convert(1.0, "speed", su)
+    descent = np.asarray(trajectory.get("descent", np.zeros(t.size, dtype=bool)), dtype=bool)
+    fig, (ax, side) = plt.subplots(1, 2, figsize=(11, 4.6), gridspec_kw={"width_ratios": [1.5, 1]})
+    events = _event_times(summary)
+    burnout = float(summary["burnout_time_s"]) if summary.get("burnout_time_s") is not None else t[-1]  # type: ignore[arg-type]
+    deploy = next((s for n, s in events if n not in ("rail exit", "burnout", "apogee")), None)
+    apogee_t = float(summary.get("time_to_apogee_s") or t[-1])  # type: ignore[arg-type]
+    # up to a little past the first deployment: the descent is long and is shown in the side view
+    end = min(float(t[-1]), max([apogee_t * 1.3] + [s + 0.15 * apogee_t for _, s in events if s < 3 * apogee_t]))
+    ax.axvspan(0, burnout, color=ORANGE_TINT, label="boost: motor burning")
+    if deploy is not None:
+        ax.axvspan(deploy, end, facecolor=BLUE_TINT, hatch="..", edgecolor=BLUE, linewidth=0, label="under recovery device")
+    top = float(z.max()) * 1.2 or 1.0
+    for x0, x1, name in ((0, burnout, "boost"), (burnout, deploy or end, "coast"), (deploy, end, "recovery")):
+        if x0 is not None and x1 - x0 > 0.06 * end:
+            ax.text((x0 + x1) / 2, top * 0.96, name, ha="center", va="top", fontsize=9, fontweight="bold", color=INK)
+    ax.plot(t, z, color=INK, linewidth=2.2, label="altitude (left scale)")
+    ax.set_ylim(0, top)
+    ax.set_xlim(0, end)
+    ax.set_xlabel("time from ignition (s)")
+    ax.set_ylabel(f"altitude above the pad ({lu})")
+    ax.grid(axis="y")
+    ax2 = ax.twinx()
+    ax2.plot(t, speed, color=BLUE, linestyle="--", linewidth=1.4, label="speed (right scale)")
+    ax2.set_ylabel(f"speed ({su})", color=BLUE)
+    ax2.set_ylim(0, float(speed.max()) * 1.1 or 1.0)
+    ax2.spines["right"].set_visible(True)
+    for k, (name, when) in enumerate(events):
+        height = float(np.interp(when, t, z))
+        ax.plot([when], [height], marker=_MARKERS.get(name, "D"), markersize=7, markerfacecolor="white",
+                markeredgecolor=INK, markeredgewidth=1.4, linestyle="none", zorder=5)
+        ax.annotate(f"{name} {when:.1f} s", (when, height), xytext=(8, 8 + 11 * (k % 2)), textcoords="offset points",
+                    fontsize=8, color=INK, bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.8})
+    handles, labels = ax.get_legend_handles_labels()
+    h2, l2 = ax2.get_legend_handles_labels()
+    from matplotlib.lines import Line2D
+
+    marks = [Line2D([], [], marker=_MARKERS[n], markerfacecolor="white", markeredgecolor=INK, linestyle="none",
+                    label=n) for n in ("rail exit", "burnout", "apogee", "deployment")]
+    ax.legend(handles + h2 + marks, labels + l2 + [m.get_label() for m in marks], fontsize=7.5, loc="upper center",
+              bbox_to_anchor=(0.5, -0.14), ncol=4, frameon=False)
+    ax.set_title(f"{title}: altitude by phase (descent: see the side view)", loc="left", fontsize=10, color=INK)
+    side.plot(x[~descent], z[~descent], color=INK, linewidth=2.2, label="climb")
+    if descent.any():
+        side.plot(x[descent], z[descent], color=BLUE, linestyle="--", linewidth=1.6, label="descent")
+    side.plot([0], [0], marker="^", color=INK, markerfacecolor="white", markersize=8, linestyle="none", label="pad")
+    i_top = int(np.argmax(z))
+    side.plot([x[i_top]], [z[i_top]], marker="o", color=INK, markerfacecolor="white", linestyle="none", label="apogee")
+    side.plot([x[-1]], [z[-1]], marker="v", color=INK, markerfacecolor="white", markersize=8, linestyle="none",
+              label=f"landing, {abs(x[-1]):.0f} {lu} away")
+    wind = summary.get("wind_speed_m_s")
+    span = max(float(x.max() - min(x.min(), 0.0)), 1.0)
+    side.annotate("", xy=(float(x.min()) + 0.35 * span, top * 0.93), xytext=(float(x.min()), top * 0.93),
+                  arrowprops={"arrowstyle": "-|>", "color": BLUE, "linewidth": 2})
+    side.text(float(x.min()), top * 0.97, "wind" + (f" {units.quantity(float(wind), 'speed')}" if wind else "") + ", blowing this way",
+              color=BLUE, fontsize=8, va="bottom")
+    side.set_ylim(0, top)
+    side.set_xlabel(f"distance along the wind from the pad ({lu}; + downwind)")
+    side.set_ylabel(f"altitude ({lu})")
+    side.grid(True)
+    side.legend(fontsize=7.5, loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=3, frameon=False)
+    side.set_title("Side view, with the wind", loc="left", fontsize=10, color=INK)
+    fig.tight_layout()
+    fig.text(0.01, -0.1, _CAUTION, fontsize=7, color=MUTED)
     out = _save(fig, path)
     plt.close(fig)
     return out
 
 
 def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) -> Path:
-    """Thrust curves overlaid on one chart, each with its burn window marked."""
+    """Thrust curves overlaid on one chart, each with its burn window; every line and band is in the legend."""
     plt = _figure()
     fig, ax = plt.subplots(figsize=(8, 4.5))
-    for record in records:
-        line, = ax.plot(record.time_s, record.thrust_n, label=f"{record.designation} ({record.maker})")
+    for k, record in enumerate(records):
+        colour, style = _CYCLE[k % len(_CYCLE)]
+        ax.plot(record.time_s, record.thrust_n, color=colour, linestyle=style, linewidth=1.8,
+                label=f"{record.designation} ({record.maker or 'maker unknown'})")
         start, end = record.burn_window_s(threshold)
-        ax.axvspan(start, end, color=line.get_color(), alpha=0.06)
-        ax.axhline(threshold * record.peak_thrust_n, color=line.get_color(), linestyle=":", linewidth=0.8)
+        ax.axvspan(start, end, color=colour, alpha=0.07, label=f"{record.designation}: burn window")
+        ax.axhline(threshold * record.peak_thrust_n, color=colour, linestyle=":", linewidth=0.8,
+                   label=f"{record.designation}: {100 * threshold:g} % of peak")
     ax.set_xlabel("time (s)")
     ax.set_ylabel("thrust (N)")
-    ax.grid(alpha=0.3)
-    ax.legend(fontsize=8)
-    ax.set_title(f"Thrust curves (shaded: burn window, thrust above {100 * threshold:g} % of peak)")
+    ax.grid(True)
+    ax.legend(fontsize=7.5, ncol=2 if len(records) > 2 else 1)
+    ax.set_title(f"Thrust curves (burn window: thrust above {100 * threshold:g} % of peak)", loc="left", fontsize=10)
     out = _save(fig, path)
     plt.close(fig)
     return out
 
 
 def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
-    """Apogee of every flown candidate against the target and ceiling bands (pass green, fail red).
-
-    Target and ceiling are labelled as the user gave them; the axis is in the display unit of length.
-    """
+    """Apogee per flown motor in rank order: passing bars plain blue with a tick, failing bars hatched orange with a
+    cross and their reason; values on the bars; target, tolerance band, ceiling and the region above it explained."""
     plt = _figure()
+    from matplotlib.patches import Patch
+
     flown = [c for c in result.candidates if c["apogee_m"] is not None]
-    fig, ax = plt.subplots(figsize=(max(6.0, 0.35 * len(flown) + 2), 4.8))
+    fig, ax = plt.subplots(figsize=(max(6.5, 0.45 * len(flown) + 2.5), 5.0))
     unit = units.unit("length")
     scale = units.convert(1.0, "length", unit)
-    names = [c["designation"] for c in flown]
-    colours = ["tab:green" if c["passes"] else "tab:red" for c in flown]
-    ax.bar(range(len(flown)), [c["apogee_m"] * scale for c in flown], color=colours)
+    flown = [{**c, "apogee_m": c["apogee_m"] * scale} for c in flown]  # shown in the display unit from here on
     target = result.conditions.get("target_m")
     ceiling = result.conditions.get("ceiling_m")
+    target_at = target * scale if target else None  # where the lines go on the axis (display unit)
+    ceiling_at = ceiling * scale if ceiling else None
+    apogees = [c["apogee_m"] for c in flown]
+    top = max(apogees + [ceiling_at or 0.0, (target_at or 0.0) * 1.05, 1.0]) * 1.15
+    handles = []
     if target:
-        ax.axhline(target * scale, color="tab:blue", linewidth=1.5, label=f"target {units.given(target, 'length')}")
-        ax.axhspan(0.95 * target * scale, 1.05 * target * scale, color="tab:blue", alpha=0.12, label="target ± 5 %")
+        ax.axhspan(0.95 * target_at, 1.05 * target_at, color=BLUE_TINT, zorder=0)
+        handles.append(Patch(facecolor=BLUE_TINT, label="within 5 % of the target"))
     if ceiling:
-        ax.axhline(ceiling * scale, color="black", linestyle="--", linewidth=1.2,
-                   label=f"ceiling {units.given(ceiling, 'length')}")
-        top = max([c["apogee_m"] for c in flown] + [ceiling]) * 1.05 * scale
-        ax.axhspan(ceiling * scale, top, color="black", alpha=0.07)
+        ax.axhspan(ceiling_at, top, facecolor=ORANGE_TINT, hatch="xx", edgecolor=RULE, linewidth=0, zorder=0)
+        handles.append(Patch(facecolor=ORANGE_TINT, hatch="xx", edgecolor=RULE, label="above the ceiling: not allowed"))
+    for i, c in enumerate(flown):
+        passes = c["passes"]
+        ax.bar(i, c["apogee_m"], color=BLUE if passes else ORANGE, hatch=None if passes else "///", edgecolor=INK,
+               linewidth=0.8, zorder=2)
+        ax.text(i, c["apogee_m"] + top * 0.01, f"{c['apogee_m']:.0f}", ha="center", va="bottom", fontsize=7.5, color=INK)
+        mark = "✓" if passes else "✗ " + ", ".join(dict.fromkeys(c["reason_codes"]))
+        tall = c["apogee_m"] > top * (0.012 * len(mark) + 0.04)
+        ax.text(i, (top * 0.015) if tall else c["apogee_m"] + top * 0.06, mark, ha="center", va="bottom",
+                rotation=0 if passes else 90, fontsize=8, fontweight="bold", color="white" if passes else INK,
+                zorder=3, bbox=None if passes else {"boxstyle": "square,pad=0.1", "fc": "white", "ec": "none", "alpha": 0.75})
+    if target:
+        ax.axhline(target_at, color=INK, linewidth=1.6, zorder=1)
+        handles.append(plt.Line2D([], [], color=INK, linewidth=1.6, label=f"target {units.given(target, 'length')}"))
+    if ceiling:
+        ax.axhline(ceiling_at, color=INK, linestyle=":", linewidth=2.0, zorder=1)
+        handles.append(plt.Line2D([], [], color=INK, linestyle=":", linewidth=2.0, label=f"ceiling {units.given(ceiling, 'length')}"))
+    handles += [Patch(facecolor=BLUE, edgecolor=INK, label="passes every rule (✓)"),
+                Patch(facecolor=ORANGE, hatch="///", edgecolor=INK, label="fails a rule (✗ and its reason)")]
     ax.set_xticks(range(len(flown)))
-    ax.set_xticklabels(names, rotation=60, ha="right", fontsize=8)
-    ax.set_ylabel(f"apogee ({unit} above the pad)")
-    ax.set_title(f"{result.airframe['name']}: apogee per motor (green passes every rule)")
-    if target or ceiling:
-        ax.legend(fontsize=8)
-    ax.grid(axis="y", alpha=0.3)
-    fig.text(0.01, -0.06, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    ax.set_xticklabels([c["designation"] for c in flown], rotation=55, ha="right", fontsize=8)
+    ax.set_ylim(0, top)
+    ax.set_xlim(-0.6, len(flown) - 0.4)
+    ax.set_ylabel(f"apogee above the pad ({unit})")
+    order = "closeness to the target" if target else "apogee"
+    ax.set_title(f"{result.airframe['name']}: apogee per motor, in rank order (passing first, then by {order})",
+                 loc="left", fontsize=10)
+    ax.legend(handles=handles, fontsize=7.5, loc="upper left", framealpha=0.95)
+    ax.grid(axis="y")
+    fig.text(0.01, -0.06, f"Numbers: apogee in {unit}. Reasons: rail = rail exit too slow, T/W = thrust-to-weight, delay, "
+                          "eject = ejection speed, descent, ceiling. " + _CAUTION, fontsize=7, color=MUTED)
     out = _save(fig, path)
     plt.close(fig)
     return out
 
 
 def reduction_plot(reduction, title: str, path: str | os.PathLike[str], burn_threshold: float = 0.05) -> Path:
-    """Raw (tared), filtered and reduced thrust on one chart, with ignition, burnout and burn-time thresholds."""
+    """Raw (tared), filtered and reduced thrust on one chart, with the ignition/burnout threshold, the burn-time
+    threshold and the burn between ignition and burnout; every line and shaded region is in the legend."""
     plt = _figure()
     fig, ax = plt.subplots(figsize=(9, 4.8))
-    ax.plot(reduction.raw_time_s, reduction.raw_thrust_n, color="0.7", linewidth=0.6, label="raw (tared)")
-    ax.plot(reduction.filtered_time_s, reduction.filtered_thrust_n, color="tab:blue", linewidth=1.0,
+    ignition, burnout = 0.0, reduction.burnout_time_s - reduction.ignition_time_s
+    ax.axvspan(ignition, burnout, color=ORANGE_TINT, zorder=0, label="between ignition and burnout")
+    ax.plot(reduction.raw_time_s, reduction.raw_thrust_n, color=MUTED, linewidth=0.6, label="raw log (tared)")
+    ax.plot(reduction.filtered_time_s, reduction.filtered_thrust_n, color=INK, linewidth=1.4,
             label="filtered" if reduction.cutoff_hz else "resampled (no filter)")
-    ax.plot(reduction.time_s, reduction.thrust_n, "o-", color="tab:red", markersize=3, linewidth=1.0,
-            label=f"reduced ({reduction.time_s.size} points)")
-    ax.axhline(reduction.threshold_n, color="tab:green", linestyle="--", linewidth=0.8, label="ignition/burnout threshold")
+    ax.plot(reduction.time_s, reduction.thrust_n, "o--", color=BLUE, markersize=3, linewidth=1.0,
+            label=f"reduced curve ({reduction.time_s.size} points)")
+    ax.axhline(reduction.threshold_n, color=INK, linestyle=":", linewidth=1.0, label="ignition and burnout threshold")
     burn_level = burn_threshold * float(np.max(reduction.thrust_n))
-    ax.axhline(burn_level, color="tab:purple", linestyle=":", linewidth=0.8, label=f"burn-time threshold ({100 * burn_threshold:g} % of peak)")
-    ax.axvline(0.0, color="tab:green", linewidth=0.8)
-    ax.axvline(reduction.burnout_time_s - reduction.ignition_time_s, color="tab:green", linewidth=0.8)
+    ax.axhline(burn_level, color=ORANGE, linestyle="-.", linewidth=1.2,
+               label=f"burn-time threshold ({100 * burn_threshold:g} % of peak)")
     ax.set_xlabel("time from ignition (s)")
     ax.set_ylabel("thrust (N)")
-    ax.set_title(title)
-    ax.grid(alpha=0.3)
-    ax.legend(fontsize=8)
+    ax.set_title(title, loc="left", fontsize=10)
+    ax.grid(True)
+    ax.legend(fontsize=7.5)
     out = _save(fig, path)
     plt.close(fig)
     return out

@@ -284,6 +284,51 @@ def flight_table(summary: dict[str, Any], title: str, units: DisplayUnits = _MET
     return Group(Text(title, style="bold"), table)
 
 
+_DISPLAY = {
+    "si": {"length": ("m", 1.0), "speed": ("m/s", 1.0), "acceleration": ("m/s²", 1.0), "mass": ("g", 1e-3),
+           "pressure": ("kPa", 1e3)},
+    "imperial": {"length": ("ft", 0.3048), "speed": ("ft/s", 0.3048), "acceleration": ("ft/s²", 0.3048),
+                 "mass": ("oz", 0.028349523125), "pressure": ("psi", 6894.757293168)},
+}
+
+
+def display(value: object, kind: str, units: str, digits: int = 4) -> str:
+    """An SI value in the display unit of ``kind`` for the ``si`` or ``imperial`` system."""
+    unit, factor = _DISPLAY[units][kind]
+    if value is None:
+        return "-"
+    return f"{float(value) / factor:.{digits}g} {unit}"  # type: ignore[arg-type]
+
+
+def flight_card_table(card) -> Group:
+    """The flight card (:func:`motorlib.present.flightcard.flight_card`): phase by phase, each figure with its
+    verdict mark (✓ within the rule, ! a rule of thumb broken, ✗ failed, · no rule) and the rule it was checked
+    against; a phase's warnings follow its figures."""
+    from .palette import VERDICT_MARKS
+
+    styles = {"ok": "bold blue", "caution": "bold yellow", "fail": "bold red", "info": "dim"}
+    parts: list[object] = [Text.assemble((escape(card.title), "bold"), "  ",
+                                         (VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result)]
+    label_width = max((len(f.label) + 3 for p in card.phases for f in p.figures), default=10)
+    for phase in card.phases:
+        parts.append(Text.assemble((VERDICT_MARKS[phase.verdict][0], styles[phase.verdict]), " ",
+                                   (phase.title, "bold underline")))
+        table = Table(show_header=False, box=None, pad_edge=False, collapse_padding=True)
+        table.add_column(no_wrap=True, min_width=label_width)
+        table.add_column(overflow="fold")
+        table.add_column(style="dim", no_wrap=True)
+        for figure in phase.figures:
+            mark = "" if figure.verdict == "info" else VERDICT_MARKS[figure.verdict][0]
+            table.add_row(Text(f"  {mark or ' '} ", style=styles[figure.verdict]) + Text(figure.label),
+                          escape(figure.value), escape(figure.rule) if figure.verdict != "info" else "")
+        for code, message in phase.warnings:
+            table.add_row(Text("    warning", style="yellow"), Text(f"{code}: {message}"), "")
+        parts.append(table)
+    if card.general_warnings:
+        parts.append(warnings_text(list(card.general_warnings)))
+    return Group(*parts)  # type: ignore[arg-type]
+
+
 def warnings_text(warnings: list[tuple[str, str]], summary: dict[str, Any] | None = None, rules: Any = None,
                   units: DisplayUnits = _METRIC, wind_speed_m_s: float = 0.0) -> Text:
     """Flight warnings, one a line; with the summary and rules their figures follow the display units."""

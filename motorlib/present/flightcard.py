@@ -1,0 +1,295 @@
+"""The flight card: one simulated flight told phase by phase, each phase with a few figures and a verdict mark.
+
+Phases, in flight order: **pad and rail** (mass, thrust-to-weight, rail exit speed, stability margin when the
+airframe has a shape), **boost** (burnout, top speed, Mach, acceleration, dynamic pressure), **coast** (apogee,
+its time and place, the delay against the optimal one), **each recovery event** (ejection or deployment, its
+height and speed), **landing** (descent rate, ground speed, distance and bearing from the pad).
+
+A verdict is a mark that reads without colour (:data:`~.palette.VERDICT_MARKS`): ``ok`` (within the rule of
+thumb), ``caution`` (a rule of thumb is broken: the warning is shown in the phase), ``fail`` (the flight
+failed, or the rocket is unstable) and ``info`` (no rule applies). Figures come from the ``fly --json`` summary
+(:meth:`motorlib.flight.FlightResults.summary`), optional ``stability``, ``deployments`` and ``landing``
+entries (the 3-D flight and stability keys) included; a phase whose data are absent is left out.
+
+Plain data only (no rich, no HTML): :func:`.tables.flight_card_table` and :mod:`.report` render it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any, Final, Sequence
+
+from ..units import FOOT_M, OUNCE_KG, POUND_KG, STANDARD_GRAVITY_M_S2
+
+__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "quantity"]
+
+_ORDER: Final = {"info": 0, "ok": 1, "caution": 2, "fail": 3}
+
+# kind -> (metric unit, factor, decimals), (imperial unit, factor, decimals); factor = SI value of one unit
+_UNITS: Final = {
+    "length": (("m", 1.0, 0), ("ft", FOOT_M, 0)),
+    "speed": (("m/s", 1.0, 1), ("ft/s", FOOT_M, 1)),
+    "acceleration": (("m/s²", 1.0, 1), ("ft/s²", FOOT_M, 0)),
+    "mass": (("g", 1e-3, 0), ("oz", OUNCE_KG, 1)),
+    "big_mass": (("kg", 1.0, 2), ("lb", POUND_KG, 2)),
+    "pressure": (("kPa", 1e3, 1), ("psi", 6894.757293168, 2)),  # psi: lbf per square inch
+    "time": (("s", 1.0, 2), ("s", 1.0, 2)),
+}
+
+# Which phase a warning code belongs to; codes not listed go to the card's general warnings.
+_PHASE_OF_WARNING: Final = {
+    "rail-exit-slow": "pad", "rail-exit-slow-for-wind": "pad", "thrust-to-weight-low": "pad",
+    "unstable": "pad", "stability-low": "pad", "over-stable": "pad", "stability-unknown": "pad",
+    "ejection-far-from-apogee": "coast", "ejection-fast": "recovery", "no-deployment": "recovery",
+    "deployment-fast": "recovery", "descent-fast": "landing",
+}
+_FAILING_WARNINGS: Final = {"unstable", "flight-failed", "flight-incomplete"}
+
+
+def quantity(value: Any, kind: str, units: str = "si") -> str:
+    """An SI value shown in the ``si`` or ``imperial`` system, with its unit; "-" for None.
+
+    >>> quantity(497.87, "length"), quantity(0.3773, "mass", "imperial"), quantity(2.0, "mass")
+    ('498 m', '13.3 oz', '2.00 kg')
+    """
+    if value is None:
+        return "-"
+    number = float(value)
+    if kind == "mass" and abs(number) >= (1.0 if units != "imperial" else POUND_KG):
+        kind = "big_mass"
+    unit, factor, decimals = _UNITS[kind][1 if units == "imperial" else 0]
+    text = f"{number / factor:,.{decimals}f}"
+    if text.startswith("-") and not text.strip("-0.,"):
+        text = text[1:]
+    return f"{text} {unit}"
+
+
+@dataclass(frozen=True)
+class CardFigure:
+    """One figure of a phase: a name, its value as shown, and its verdict against a rule of thumb."""
+
+    label: str
+    value: str
+    verdict: str = "info"
+    rule: str = ""  # the rule it was checked against, e.g. ">= 15 m/s"
+
+
+@dataclass(frozen=True)
+class Phase:
+    """One phase of the flight: ``key`` (pad, boost, coast, recovery, landing), a title, figures and warnings."""
+
+    key: str
+    title: str
+    figures: tuple[CardFigure, ...]
+    warnings: tuple[tuple[str, str], ...] = ()
+
+    @property
+    def verdict(self) -> str:
+        marks = [f.verdict for f in self.figures]
+        marks += ["fail" if code in _FAILING_WARNINGS else "caution" for code, _ in self.warnings]
+        return max(marks, key=_ORDER.__getitem__, default="info")
+
+
+@dataclass(frozen=True)
+class FlightCard:
+    """The whole card: a title, the result line, the phases in flight order and warnings of no one phase."""
+
+    title: str
+    result: str
+    completed: bool
+    phases: tuple[Phase, ...]
+    general_warnings: tuple[tuple[str, str], ...] = ()
+
+    @property
+    def verdict(self) -> str:
+        marks = [p.verdict for p in self.phases] + ["caution" for _ in self.general_warnings]
+        if not self.completed:
+            marks.append("fail")
+        return max(marks, key=_ORDER.__getitem__, default="info")
+
+
+def _check(value: Any, limit: float, above: bool) -> str:
+    if value is None:
+        return "info"
+    return "ok" if (float(value) >= limit if above else float(value) <= limit) else "caution"
+
+
+def _seconds(value: Any) -> str:
+    return quantity(value, "time")
+
+
+def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *, title: str, units: str = "si",
+                rules: Any = None, wind_speed_m_s: float = 0.0) -> FlightCard:
+    """The flight card of one flight summary.
+
+    Parameters
+    ----------
+    summary : dict
+        ``fly --json`` figures (SI); optional keys ``stability`` (``margin_rail_exit_cal``,
+        ``min_margin_cal``, ...), ``deployments`` (list of events with ``time_s``, ``altitude_m``,
+        ``speed_m_s`` and a ``name`` or ``event``) and ``landing`` (``speed_m_s``, ``distance_m``,
+        ``bearing_deg``, ...) are used when present.
+    warnings : sequence of (code, message)
+        From :func:`motorlib.flight.rules.flight_warnings` (and stability warnings); each lands in its phase.
+    title : str
+    units : str
+        ``si`` or ``imperial``.
+    rules : LaunchRules, optional
+        The thresholds the figures are marked against (defaults: :class:`~motorlib.flight.rules.LaunchRules`).
+    wind_speed_m_s : float
+        Wind at 10 m [m/s], for the rail-exit-to-wind rule.
+    """
+    from ..flight.rules import LaunchRules
+
+    r = rules or LaunchRules()
+    s = summary
+    by_phase: dict[str, list[tuple[str, str]]] = {}
+    general: list[tuple[str, str]] = []
+    for code, message in warnings:
+        phase = _PHASE_OF_WARNING.get(code)
+        (by_phase.setdefault(phase, []) if phase else general).append((code, message))
+    completed = s.get("status") == "ok"
+    if not completed or s.get("apogee_m") is None:
+        return FlightCard(title, str(s.get("message", "flight failed")), False, (), tuple(general))
+    u = units
+    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])), _boost(s, u),
+              _coast(s, r, u, by_phase.get("coast", []))]
+    phases += _recovery(s, r, u, by_phase.get("recovery", []))
+    landing = _landing(s, r, u, by_phase.get("landing", []))
+    if landing is not None:
+        phases.append(landing)
+    elif by_phase.get("landing"):
+        general += by_phase["landing"]
+    return FlightCard(title, str(s["message"]), True, tuple(phases), tuple(general))
+
+
+def _pad(s: dict[str, Any], r: Any, u: str, wind: float, warnings: list[tuple[str, str]]) -> Phase:
+    exit_speed = s.get("rail_exit_speed_m_s")
+    need = max(r.min_rail_exit_speed_m_s, r.rail_exit_wind_ratio * wind)
+    figures = [
+        CardFigure("liftoff mass", quantity(s.get("liftoff_mass_kg"), "mass", u)),
+        CardFigure("thrust-to-weight", "-" if s.get("liftoff_thrust_to_weight") is None
+                   else f"{float(s['liftoff_thrust_to_weight']):.1f} at liftoff",
+                   _check(s.get("liftoff_thrust_to_weight"), r.min_liftoff_thrust_to_weight, True),
+                   f">= {r.min_liftoff_thrust_to_weight:g}"),
+        CardFigure("rail exit", f"{quantity(exit_speed, 'speed', u)} at {_seconds(s.get('rail_exit_time_s'))}",
+                   _check(exit_speed, need, True), f">= {quantity(need, 'speed', u)}"),
+    ]
+    stability = s.get("stability")
+    if stability:
+        margin = stability.get("margin_rail_exit_cal")
+        if margin is None:
+            margin = stability.get("min_margin_cal")
+        low = stability.get("min_margin_cal")
+        verdict = "info" if low is None else ("fail" if low < 0 else "caution" if low < 1.0 or low > 3.0 else "ok")
+        figures.append(CardFigure("stability", "unknown" if margin is None else
+                                  f"{margin:.2f} cal" + ("" if low is None else f" (least {low:.2f})"),
+                                  verdict, "1 to 3 cal"))
+    return Phase("pad", "Pad and rail", tuple(figures), tuple(warnings))
+
+
+def _boost(s: dict[str, Any], u: str) -> Phase:
+    accel = s.get("max_acceleration_m_s2")
+    mach = s.get("max_mach")
+    figures = (
+        CardFigure("burnout", _seconds(s.get("burnout_time_s"))),
+        CardFigure("top speed", quantity(s.get("max_speed_m_s"), "speed", u)
+                   + ("" if mach is None else f" (Mach {float(mach):.2f})")),
+        CardFigure("peak acceleration", quantity(accel, "acceleration", u)
+                   + ("" if accel is None else f" ({float(accel) / STANDARD_GRAVITY_M_S2:.1f} g)")),
+        CardFigure("dynamic pressure", quantity(s.get("max_dynamic_pressure_pa"), "pressure", u)),
+    )
+    return Phase("boost", "Boost", figures)
+
+
+def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> Phase:
+    east, north = s.get("apogee_east_m"), s.get("apogee_north_m")
+    if east is not None and north is not None:
+        where = f"{quantity((float(east) ** 2 + float(north) ** 2) ** 0.5, 'length', u)} from the pad"
+    else:
+        downrange = s.get("apogee_downrange_m")
+        where = "-" if downrange is None else (
+            f"{quantity(abs(float(downrange)), 'length', u)} {'downwind' if float(downrange) >= 0 else 'upwind'} of the pad")
+    figures = [
+        CardFigure("apogee", f"{quantity(s.get('apogee_m'), 'length', u)} at {_seconds(s.get('time_to_apogee_s'))}"),
+        CardFigure("apogee position", where),
+        CardFigure("optimal delay", _seconds(s.get("optimal_delay_s"))),
+    ]
+    chosen, optimal = s.get("chosen_delay_s"), s.get("optimal_delay_s")
+    if chosen is not None and optimal is not None:
+        off = float(chosen) - float(optimal)
+        figures.append(CardFigure("chosen delay", f"{float(chosen):g} s ({abs(off):.1f} s {'early' if off < 0 else 'late'})",
+                                  "ok" if abs(off) <= r.max_delay_error_s else "caution",
+                                  f"within {r.max_delay_error_s:g} s"))
+    return Phase("coast", "Coast to apogee", tuple(figures), tuple(warnings))
+
+
+def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> list[Phase]:
+    """One phase per recovery event: the 3-D model's ``deployments`` list, else today's ejection and deployment."""
+    events: list[tuple[str, list[CardFigure]]] = []
+    if s.get("deployments"):
+        for event in s["deployments"]:
+            name = str(event.get("name") or event.get("event") or event.get("device") or "deployment")
+            speed = event.get("speed_m_s")
+            figures = [CardFigure("time", _seconds(event.get("time_s"))),
+                       CardFigure("height", quantity(event.get("altitude_m"), "length", u)),
+                       CardFigure("speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
+                                  f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")]
+            events.append((name, figures))
+    else:
+        chosen = s.get("chosen_delay_s")
+        deploy_time = s.get("deploy_time_s")
+        folded = False  # the deployment is the chosen ejection (deploy = "ejection"): one event, not two
+        for ej in s.get("ejections") or []:
+            if ej["delay_s"] != chosen:
+                continue
+            speed = ej.get("speed_m_s")
+            if ej.get("altitude_m") is None:
+                events.append((f"ejection ({ej['delay_s']:g} s delay)", [CardFigure("fires", "after landing", "caution")]))
+                continue
+            fired_s = None if s.get("burnout_time_s") is None else float(s["burnout_time_s"]) + float(ej["delay_s"])
+            folded = deploy_time is not None and fired_s is not None and abs(float(deploy_time) - fired_s) < 1e-6
+            events.append((f"ejection, {ej['delay_s']:g} s delay" + (" opens the device" if folded else ""), [
+                CardFigure("time", _seconds(fired_s)),
+                CardFigure("height", quantity(ej.get("altitude_m"), "length", u)),
+                CardFigure("speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
+                           f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")]))
+        if deploy_time is not None and not folded:
+            events.append(("device opens", [CardFigure("time", _seconds(s.get("deploy_time_s"))),
+                                                CardFigure("height", quantity(s.get("deploy_altitude_m"), "length", u))]))
+    if not events and not warnings:
+        return []
+    if not events:
+        return [Phase("recovery", "Recovery", (), tuple(warnings))]
+    phases = []
+    for k, (name, figures) in enumerate(events):
+        phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(warnings) if k == 0 else ()))
+    return phases
+
+
+def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> Phase | None:
+    landing = s.get("landing")
+    figures: list[CardFigure] = []
+    if isinstance(landing, dict):
+        speed = landing.get("speed_m_s")
+        figures.append(CardFigure("touchdown speed", quantity(speed, "speed", u),
+                                  _check(speed, r.max_landing_speed_m_s, False),
+                                  f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"))
+        if landing.get("time_s") is not None:
+            figures.append(CardFigure("lands at", _seconds(landing.get("time_s"))))
+        if landing.get("distance_m") is not None:
+            bearing = landing.get("bearing_deg")
+            figures.append(CardFigure("from the pad", quantity(landing["distance_m"], "length", u)
+                                      + ("" if bearing is None else f", bearing {float(bearing):03.0f}°")))
+    elif s.get("landing_speed_m_s") is not None:
+        rate = s.get("landing_descent_rate_m_s")
+        figures += [
+            CardFigure("descent rate", quantity(rate, "speed", u), _check(rate, r.max_landing_speed_m_s, False),
+                       f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"),
+            CardFigure("speed over ground", quantity(s.get("landing_speed_m_s"), "speed", u)),
+            CardFigure("descent time", _seconds(s.get("descent_time_s"))),
+            CardFigure("from the pad", f"{quantity(s.get('drift_m'), 'length', u)} downwind"),
+        ]
+    if not figures:
+        return None
+    return Phase("landing", "Landing", tuple(figures), tuple(warnings))

@@ -1,0 +1,249 @@
+"""The charts of the reports, as inline SVG (:mod:`.svgcharts`) in the palette of :mod:`.palette`.
+
+* :func:`thrust_chart`: the motor's curve with its burn window and average thrust.
+* :func:`flight_chart`: altitude and speed against time, the phases as labelled bands, the events marked on the
+  curve (up to a little past the first deployment; the descent is in the side view).
+* :func:`side_chart`: the path seen from the side along the wind, with pad, apogee, landing and the wind.
+* :func:`match_chart`: apogee per motor in rank order; pass/fail told by fill, hatching, a tick or a cross and
+  the reason, not by hue alone; target band, ceiling and the region above it in the legend.
+* :func:`overlay_chart`, :func:`mean_chart`: firings of a test series, and their mean with its spread.
+
+Each returns a :class:`~.report.ChartBlock` whose SVG has a ``<title>``, a ``<desc>`` and an ``aria-label`` that
+states the chart's key figures.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any, Sequence
+
+import numpy as np
+
+from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TINT, RULE
+from .report import ChartBlock
+from .svgcharts import SvgChart, thin
+
+__all__ = ["flight_chart", "match_chart", "mean_chart", "overlay_chart", "side_chart", "thrust_chart"]
+
+_LINE_STYLES = [(INK, "solid"), (BLUE, "dashed"), (ORANGE, "solid"), (INK, "dotted"), (BLUE, "dashdot"),
+                (ORANGE, "dashed"), (MUTED, "solid"), (BLUE, "dotted")]
+
+
+def thrust_chart(motor: Any, key: str = "thrust") -> ChartBlock:
+    """The motor's thrust curve with its average thrust and burn window."""
+    t, f = np.asarray(motor.time_s, dtype=float), np.asarray(motor.thrust_n, dtype=float)
+    start, end = motor.burn_window_s()
+    average = motor.average_thrust_n()
+    chart = SvgChart(title=f"Thrust curve: {motor.designation}",
+                     description=(f"Thrust against time for {motor.designation}: peak {motor.peak_thrust_n:.0f} N at "
+                                  f"{motor.peak_time_s:.2f} s, average {average:.0f} N over a {end - start:.2f} s burn, "
+                                  f"total impulse {motor.total_impulse_ns:.1f} N·s."),
+                     x_label="time from ignition (s)", y_label="thrust (N)", x_range=(0.0, float(t[-1]) * 1.05 or 1.0),
+                     y_range=(0.0, float(f.max()) * 1.15 or 1.0), width=460, height=260, key=key)
+    chart.band_x(start, end, "burn window (above 5 % of peak)", fill=ORANGE_TINT)
+    chart.line(t, f, "thrust", colour=INK, width=2.2, points=t.size <= 60)
+    chart.hline(average, f"average over the burn, {average:.1f} N", colour=BLUE, dash="dashed")
+    return ChartBlock(chart.render(), f"{motor.n_samples} samples; total impulse {motor.total_impulse_ns:.1f} N·s.",
+                      wide=False)
+
+
+def _events(summary: dict[str, Any]) -> list[tuple[str, float]]:
+    """(event name, time from ignition) of the flight's marked events, in time order."""
+    out = []
+    for name, key in (("rail exit", "rail_exit_time_s"), ("burnout", "burnout_time_s"), ("apogee", "time_to_apogee_s")):
+        if summary.get(key) is not None:
+            out.append((name, float(summary[key])))
+    if summary.get("deployments"):
+        for event in summary["deployments"]:
+            if event.get("time_s") is not None:
+                out.append((str(event.get("name") or event.get("event") or "deployment"), float(event["time_s"])))
+    elif summary.get("deploy_time_s") is not None:
+        out.append(("deployment", float(summary["deploy_time_s"])))
+    return sorted(out, key=lambda e: e[1])
+
+
+def _interp(trajectory: dict[str, np.ndarray], key: str, time_s: float) -> float:
+    return float(np.interp(time_s, trajectory["time_s"], trajectory[key]))
+
+
+def _downrange(trajectory: dict[str, np.ndarray]) -> np.ndarray:
+    if "x_m" in trajectory:
+        return np.asarray(trajectory["x_m"], dtype=float)
+    return np.hypot(trajectory["east_m"], trajectory["north_m"])  # 3-D: distance from the pad
+
+
+def _speed(trajectory: dict[str, np.ndarray]) -> np.ndarray:
+    parts = [trajectory[k] for k in ("vx_m_s", "vy_m_s", "vz_m_s", "v_east_m_s", "v_north_m_s", "v_up_m_s")
+             if k in trajectory]
+    return np.sqrt(np.sum(np.square(parts), axis=0))
+
+
+def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key: str = "flight") -> ChartBlock:
+    """Altitude and speed against time up to just past deployment, phases as bands, events marked on the curve."""
+    t = np.asarray(trajectory["time_s"], dtype=float)
+    z = np.asarray(trajectory["altitude_m"], dtype=float)
+    v = _speed(trajectory)
+    events = _events(summary)
+    apogee_t = float(summary["time_to_apogee_s"])
+    end = max([apogee_t * 1.3] + [e[1] + 0.15 * apogee_t for e in events if e[1] < 3 * apogee_t])
+    end = min(end, float(t[-1]))
+    shown = t <= end
+    tt, zz = thin(t[shown], z[shown])
+    tv, vv = thin(t[shown], v[shown])
+    apogee = float(summary["apogee_m"])
+    chart = SvgChart(title="Altitude and speed through the flight",
+                     description=(f"Altitude rises to {apogee:.0f} m at {apogee_t:.1f} s; top speed "
+                                  f"{float(summary['max_speed_m_s']):.0f} m/s near burnout at "
+                                  f"{float(summary['burnout_time_s']):.2f} s. Events: "
+                                  + ", ".join(f"{n} at {s:.1f} s" for n, s in events) + "."),
+                     x_label="time from ignition (s)", y_label="altitude above the pad (m)", x_range=(0.0, end),
+                     y_range=(0.0, apogee * 1.18), y2_label="speed (m/s)", y2_range=(0.0, max(vv, default=0.0) * 1.1 or 1.0),
+                     width=520, height=320, key=key)
+    burnout = float(summary["burnout_time_s"])
+    deploy = next((s for n, s in events if n not in ("rail exit", "burnout", "apogee")), None)
+    chart.band_x(0.0, burnout, "boost: motor burning", fill=ORANGE_TINT, caption="boost")
+    coast_end = deploy if deploy is not None else end
+    chart.band_x(burnout, coast_end, "coast: unpowered climb", fill="#ffffff", caption="coast", legend=False)
+    if deploy is not None:
+        chart.band_x(deploy, end, "under recovery device", fill=BLUE_TINT, hatch="dots", caption="recovery")
+    chart.line(tt, zz, "altitude (left scale)", colour=INK, width=2.4)
+    chart.line(tv, vv, "speed (right scale)", colour=BLUE, dash="dashed", width=1.6, axis="y2")
+    last_x, lift = -1e9, 0.0
+    for name, when in events:
+        shape = EVENT_MARKS.get(name, ("diamond", name))[0]
+        lift = lift + 14.0 if when - last_x < 0.12 * end else 0.0  # stack labels of events close in time
+        last_x = when
+        height = _interp(trajectory, "altitude_m", when)
+        text = {"apogee": f"apogee {apogee:.0f} m, {when:.1f} s", "burnout": f"burnout {when:.2f} s",
+                "rail exit": f"off the rail {float(summary['rail_exit_speed_m_s']):.1f} m/s"}.get(
+                    name, f"{name} {when:.1f} s")
+        below = name in ("rail exit",)
+        chart.mark(when, height, shape, text, dy=14 if below else -8 - lift,
+                   anchor="start" if when < 0.6 * end else "end", dx=7 if when < 0.6 * end else -7)
+    chart.legend_entry("events: ▲ rail exit, ■ burnout, ● apogee, ◆ deployment", kind="mark", shape="circle")
+    return ChartBlock(chart.render(), "Bands: orange boost, white coast, dotted blue under the recovery device. "
+                                      "The descent to the ground is in the side view.")
+
+
+def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_m_s: float,
+               key: str = "side") -> ChartBlock:
+    """The path seen from the side, along the wind: ascent solid, descent dashed, with pad, apogee and landing."""
+    x = _downrange(trajectory)
+    z = np.asarray(trajectory["altitude_m"], dtype=float)
+    descent = np.asarray(trajectory.get("descent", np.zeros(z.size, dtype=bool)), dtype=bool)
+    lo, hi = float(min(x.min(), 0.0)), float(max(x.max(), 0.0))
+    pad = 0.12 * max(hi - lo, 0.25 * float(z.max()), 1.0)
+    chart = SvgChart(title="Side view of the path, with the wind",
+                     description=(f"The rocket climbs to {float(summary['apogee_m']):.0f} m and lands "
+                                  f"{abs(float(x[-1])):.0f} m {'downwind' if x[-1] >= 0 else 'upwind'} of the pad; "
+                                  f"wind {wind_m_s:g} m/s at 10 m, blowing to the right."),
+                     x_label="distance along the wind from the pad (m; + downwind)", y_label="altitude (m)",
+                     x_range=(lo - pad, hi + pad), y_range=(0.0, float(z.max()) * 1.18), width=520, height=320, key=key)
+    up = ~descent
+    xa, za = thin(x[up], z[up])
+    chart.line(xa, za, "climb", colour=INK, width=2.4)
+    if descent.any():
+        xd, zd = thin(x[descent], z[descent])
+        chart.line(xd, zd, "descent", colour=BLUE, dash="dashed", width=1.8)
+    chart.mark(0.0, 0.0, "triangle-up", "pad", dy=-8, label=None)
+    i_top = int(np.argmax(z))
+    chart.mark(float(x[i_top]), float(z[i_top]), "circle", f"apogee {float(z[i_top]):.0f} m", dy=-9,
+               anchor="middle", dx=0)
+    if z[-1] <= max(1.0, 0.01 * float(z.max())):
+        chart.mark(float(x[-1]), float(z[-1]), "triangle-down", f"lands {abs(float(x[-1])):.0f} m away",
+                   anchor="end" if x[-1] > 0 else "start", dx=-8 if x[-1] > 0 else 8, dy=-10)
+    if wind_m_s > 0:
+        chart.arrow((lo + hi) / 2, float(z.max()) * 1.1, 60.0, f"wind {wind_m_s:g} m/s, blowing this way")
+    chart.legend_entry("▲ pad, ● apogee, ▼ landing", kind="mark", shape="triangle-up")
+    return ChartBlock(chart.render(), "Scales differ: the horizontal axis is stretched to show the drift.", wide=False)
+
+
+def match_chart(result: Any, key: str = "match") -> ChartBlock | None:
+    """Apogee of every flown candidate in rank order: plain blue bars with a tick pass, hatched orange bars with a
+    cross and the reason fail; the target, its tolerance band, the ceiling and the region above it explained."""
+    flown = [c for c in result.candidates if c["apogee_m"] is not None]
+    if not flown:
+        return None
+    target = result.conditions.get("target_m")
+    ceiling = result.conditions.get("ceiling_m")
+    top = max([c["apogee_m"] for c in flown] + [ceiling or 0.0, (target or 0.0) * 1.05]) * 1.12
+    order = "by closeness to the target" if target else "by apogee"
+    chart = SvgChart(title=f"Apogee per motor, in rank order (passing first, then {order})",
+                     description=(f"{sum(c['passes'] for c in flown)} of {len(flown)} flown motors pass every rule. "
+                                  + (f"Target {target:.0f} m. " if target else "") + (f"Ceiling {ceiling:.0f} m. " if ceiling else "")
+                                  + "; ".join(f"{c['designation']} {c['apogee_m']:.0f} m {'pass' if c['passes'] else 'fail: ' + ', '.join(dict.fromkeys(c['reason_codes']))}"
+                                              for c in flown[:12]) + ("; ..." if len(flown) > 12 else ".")),
+                     x_label="motor", y_label="apogee above the pad (m)", x_range=(-0.5, len(flown) - 0.5),
+                     y_range=(0.0, top), width=max(640, 34 * len(flown) + 110), height=400, key=key,
+                     x_categories=[c["designation"] for c in flown])
+    if target:
+        chart.band_y(0.95 * target, 1.05 * target, "within 5 % of the target", fill=BLUE_TINT)
+    if ceiling:
+        chart.band_y(ceiling, top, "above the ceiling: not allowed", fill=ORANGE_TINT, hatch="cross")
+    for i, c in enumerate(flown):
+        codes = ", ".join(dict.fromkeys(c["reason_codes"]))
+        if c["passes"]:
+            chart.bar(i, c["apogee_m"], fill=BLUE, top_text=f"{c['apogee_m']:.0f}", inside_text="✓")
+        else:
+            chart.bar(i, c["apogee_m"], fill=ORANGE, hatch="diagonal", top_text=f"{c['apogee_m']:.0f}",
+                      inside_text=f"✗ {codes}")
+    if target:
+        chart.hline(target, f"target {target:.0f} m", colour=INK, dash="solid", width=1.8)
+    if ceiling:
+        chart.hline(ceiling, f"ceiling {ceiling:.0f} m", colour=INK, dash="dotted", width=2.0)
+    chart.legend_entry("passes every rule (✓)", kind="fill", fill=BLUE)
+    chart.legend_entry("fails a rule (✗ and its reason)", kind="fill", fill=ORANGE, hatch="diagonal")
+    return ChartBlock(chart.render(), "Numbers above the bars are apogees in m. Reason marks: rail = rail exit too slow, "
+                                      "T/W = thrust-to-weight, delay, eject = ejection speed, descent, ceiling.")
+
+
+def overlay_chart(reductions: Sequence[tuple[str, Any]], key: str = "overlay") -> ChartBlock:
+    """Every firing's filtered curve from its own ignition, each in its own colour and dash; one firing adds its
+    raw log, reduced points and thresholds."""
+    end = max(float(r.filtered_time_s[-1]) for _, r in reductions)
+    peak = max(float(np.max(r.filtered_thrust_n)) for _, r in reductions)
+    single = len(reductions) == 1
+    chart = SvgChart(title="Firings overlaid" if not single else "Raw, filtered and reduced thrust",
+                     description=(f"{len(reductions)} firing(s) from ignition: "
+                                  + "; ".join(f"{Path(p).name} peak {float(np.max(r.filtered_thrust_n)):.0f} N, burnout "
+                                              f"{r.burnout_time_s - r.ignition_time_s:.2f} s" for p, r in reductions) + "."),
+                     x_label="time from ignition (s)", y_label="thrust (N)", x_range=(min(0.0, *(float(r.raw_time_s[0]) for _, r in reductions)) if single else 0.0, end * 1.04),
+                     y_range=(min(0.0, min(float(np.min(r.raw_thrust_n)) for _, r in reductions)) if single else 0.0, peak * 1.15),
+                     width=520, height=300, key=key)
+    if single:
+        path, r = reductions[0]
+        xs, ys = thin(r.raw_time_s, r.raw_thrust_n, 600)
+        chart.line(xs, ys, "raw log (tared)", colour=MUTED, width=0.8)
+        chart.line(*thin(r.filtered_time_s, r.filtered_thrust_n), "filtered" if r.cutoff_hz else "resampled",
+                   colour=INK, width=1.8)
+        chart.line(r.time_s, r.thrust_n, f"reduced curve ({r.time_s.size} points)", colour=ORANGE, width=1.4, points=True)
+        chart.hline(r.threshold_n, "ignition and burnout threshold", colour=BLUE, dash="dotted")
+        chart.vline(0.0, None, colour=BLUE, dash="dotted")
+        chart.vline(r.burnout_time_s - r.ignition_time_s, None, colour=BLUE, dash="dotted")
+    else:
+        for k, (path, r) in enumerate(reductions):
+            colour, dash = _LINE_STYLES[k % len(_LINE_STYLES)]
+            chart.line(*thin(r.filtered_time_s, r.filtered_thrust_n), Path(path).name, colour=colour, dash=dash, width=1.6)
+    return ChartBlock(chart.render(), "Each firing starts at its own ignition.", wide=False)
+
+
+def mean_chart(reductions: Sequence[tuple[str, Any]], record: Any, key: str = "mean") -> ChartBlock:
+    """The mean curve with ±1 standard deviation and the lowest-to-highest envelope of the firings."""
+    end = max(float(r.filtered_time_s[-1]) for _, r in reductions)
+    step = min(float(np.median(np.diff(r.filtered_time_s))) for _, r in reductions)
+    grid = np.linspace(0.0, end, min(400, max(50, int(end / step))))
+    curves = np.array([np.interp(grid, r.filtered_time_s, r.filtered_thrust_n, left=0.0, right=0.0) for _, r in reductions])
+    mean, std = curves.mean(axis=0), curves.std(axis=0, ddof=1)
+    chart = SvgChart(title=f"Mean of {len(reductions)} firings, with their spread",
+                     description=(f"Mean thrust curve of {len(reductions)} firings of {record.designation}, peak "
+                                  f"{float(mean.max()):.0f} N; the largest spread between firings is "
+                                  f"{float((curves.max(axis=0) - curves.min(axis=0)).max()):.0f} N."),
+                     x_label="time from ignition (s)", y_label="thrust (N)", x_range=(0.0, end * 1.04),
+                     y_range=(0.0, float(curves.max()) * 1.15), width=520, height=300, key=key)
+    chart.spread(grid, curves.min(axis=0), curves.max(axis=0), "lowest to highest firing", fill=RULE)
+    chart.spread(grid, np.maximum(mean - std, 0.0), mean + std, "mean ± 1 standard deviation", fill=BLUE_TINT,
+                 hatch="dots")
+    chart.line(grid, mean, "mean curve", colour=INK, width=2.2)
+    chart.line(record.time_s, record.thrust_n, f"written record ({record.n_samples} points)", colour=ORANGE,
+               dash="dashed", width=1.4, points=True)
+    return ChartBlock(chart.render(), "A firing counts as 0 N after its own burnout.", wide=False)

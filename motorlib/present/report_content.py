@@ -1,0 +1,288 @@
+"""What goes into each report: library results turned into the section records of :mod:`.report`.
+
+* :func:`fly_report`: rocket, motor and where its curve came from, delay, conditions, the flight card, the
+  flight chart (altitude and speed against time, phases as labelled bands, events marked on the curve), the
+  side view of the path with the wind, the thrust curve, stability and recovery events when the summary has
+  them, landing, warnings, assumptions; the cautions and the signature line are added by the layout.
+* :func:`match_report`: the ranking with a mark and reasons per motor, the apogee chart, the conditions.
+* :func:`reduce_report`: the firings table, their overlay, the mean curve with its spread, the label check.
+
+Every figure is formatted here for people (units in the labels); the charts come from :mod:`.report_charts`.
+No physics is done here.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+from pathlib import Path
+from typing import Any, Sequence
+
+import numpy as np
+
+from .flightcard import FlightCard, flight_card, quantity
+from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
+                     file_sha256)
+from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
+
+__all__ = ["fly_report", "match_report", "reduce_report", "trace_for"]
+
+_PROVENANCE_WORDS = {
+    "approval-firing": "fired for approval by a testing body, as that body published it",
+    "maker-published": "published by the motor's maker",
+    "own-firing": "fired on a test stand by the record's author or their team",
+    "demo": "invented for demonstration: never use it for a real flight",
+    "other": "source not stated",
+}
+
+
+def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -> Trace:
+    """The trace block: motorlib's version, the command and the SHA-256 of every input file that exists."""
+    from importlib import metadata
+
+    try:  # the installed distribution's version (present/ does not import the package top)
+        version = metadata.version("motorlib")
+    except metadata.PackageNotFoundError:
+        version = "unknown (not installed)"
+    files = tuple((str(p), file_sha256(p)) for p in inputs if Path(p).is_file())
+    when = made_at if made_at is not None else _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    return Trace(version, command, files, when)
+
+
+# ----------------------------------------------------------------------------- fly
+def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
+               trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
+               made_at: str | None = None) -> FlyReport:
+    """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory)."""
+    u = units
+    launch = frame.launch
+    card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.wind_speed_m_s)
+    rocket = Facts("Rocket", (
+        ("name", frame.name),
+        ("empty mass", quantity(frame.mass_kg, "mass", u)),
+        ("diameter", f"{frame.diameter_m * 1e3:.1f} mm"),
+        ("drag", f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+         else f"Cd {frame.drag_coefficient:g}"),
+        ("motor mount", "-" if frame.mount_diameter_m is None else f"{frame.mount_diameter_m * 1e3:.0f} mm"
+         + ("" if frame.mount_length_m is None else f", up to {frame.mount_length_m * 1e3:.0f} mm long")),
+        ("recovery", "none given" if frame.recovery is None else
+         f"{frame.recovery.device}, deployed at {frame.recovery.deploy}, Cd·A {frame.recovery.drag_area_m2:.3g} m²"),
+    ))
+    prov = motor.provenance
+    cls = motor.impulse_class
+    motor_facts = Facts("Motor", (
+        ("label", f"{motor.designation} ({motor.maker or 'maker unknown'})"),
+        ("class", "-" if cls is None else f"{cls.letter} ({cls.percent:.0f} % into the class)"),
+        ("total impulse", f"{motor.total_impulse_ns:.1f} N·s"),
+        ("masses", f"{quantity(motor.total_mass_kg, 'mass', u)} loaded, "
+                   f"{quantity(motor.propellant_mass_kg, 'mass', u)} propellant"),
+        ("curve from", f"{prov.kind}: {_PROVENANCE_WORDS.get(prov.kind, prov.kind)}"
+         + (f", {prov.date.isoformat()}" if prov.date else "")),
+    ) + ((("notes", prov.notes[:90] + ("..." if len(prov.notes) > 90 else "")),) if prov.notes else ()))
+    chosen, optimal = summary.get("chosen_delay_s"), summary.get("optimal_delay_s")
+    offered = (", ".join(f"{d:g}" for d in motor.delays_s) + " s" if motor.delays_s else
+               "none (no ejection charge)" if motor.ejection == "no-charge" else "not given")
+    delay = Facts("Delay", (
+        ("offered", offered + (" (adjustable)" if motor.delay_adjustable else "")),
+        ("chosen", "-" if chosen is None else f"{float(chosen):g} s"),
+        ("optimal", "-" if optimal is None else f"{float(optimal):.1f} s (burnout to apogee)"),
+        ("deployment", "motor's delay charge" if frame.recovery is None or frame.recovery.deploy == "ejection"
+         else f"electronics ({frame.recovery.deploy})"),
+    ))
+    site = launch.site
+    conditions = Facts("Conditions", (
+        ("rail", f"{quantity(launch.rail_length_m, 'length', u) if u == 'imperial' else f'{launch.rail_length_m:g} m'}"
+                 f", {math.degrees(launch.rail_angle_rad):g}° from vertical, tilted downwind"),
+        ("wind", f"{quantity(launch.wind_speed_m_s, 'speed', u)} at 10 m, stronger aloft (power law)"),
+        ("site", f"{quantity(site.elevation_m, 'length', u)} above sea level"),
+        ("air", ("standard" if site.temperature_k is None else f"{site.temperature_k - 273.15:.1f} °C")
+         + ("" if site.pressure_pa is None else f", {site.pressure_pa / 100:.0f} hPa") + " at the pad"),
+    ))
+    flight = side = None
+    if trajectory is not None and summary.get("apogee_m") is not None:
+        flight = flight_chart(trajectory, summary)
+        side = side_chart(trajectory, summary, launch.wind_speed_m_s)
+    stability = None
+    st = summary.get("stability")
+    if st:
+        rows = [("centre of pressure", _mm(st.get("cp_m")) + " from the nose tip"),
+                ("centre of gravity", f"{_mm(st.get('cg_liftoff_m'))} at liftoff, {_mm(st.get('cg_burnout_m'))} at burnout")]
+        for label, k in (("margin at liftoff", "margin_liftoff_cal"), ("margin off the rail", "margin_rail_exit_cal"),
+                         ("margin at burnout", "margin_burnout_cal"), ("least margin", "min_margin_cal")):
+            if st.get(k) is not None:
+                rows.append((label, f"{float(st[k]):.2f} calibers"))
+        stability = Facts("Stability", tuple(rows), "Margin in body diameters of CP behind CG; 1 to 3 is the usual range.")
+    recovery = _recovery_table(summary, u)
+    landing = _landing_facts(summary, u)
+    notes = [m for _, m in warnings]
+    assumptions = Notes("Assumptions", (
+        "Drag from the airframe's Cd; the motor burns as its curve says; propellant mass falls with impulse delivered.",
+        "Standard atmosphere shifted to the pad's measured air; wind grows with height by a power law.",
+        "Recovery device fully open the moment it deploys; no gusts, no weathercocking beyond the model's.",
+        "Times count from motor ignition; altitudes are above the pad.",
+    ))
+    return FlyReport(
+        title=f"{frame.name} with {motor.designation}", subtitle=f"Pre-flight prediction: {summary.get('message', '')}",
+        rocket=rocket, motor=motor_facts, delay=delay, conditions=conditions, card=card,
+        thrust_chart=thrust_chart(motor), trace=trace_for(inputs, command, made_at), flight_chart=flight,
+        side_chart=side, stability=stability, recovery=recovery, landing=landing,
+        warnings=Notes("Warnings", tuple(notes), "warning") if notes else Notes("Warnings", ("None from the rules of thumb.",)),
+        assumptions=assumptions)
+
+
+def _mm(value: Any) -> str:
+    return "-" if value is None else f"{float(value) * 1e3:.0f} mm"
+
+
+def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
+    rows: list[tuple[str, str, str, str]] = []
+    if summary.get("deployments"):
+        for e in summary["deployments"]:
+            rows.append((str(e.get("name") or e.get("event") or e.get("device") or "deployment"),
+                         quantity(e.get("time_s"), "time"), quantity(e.get("altitude_m"), "length", u),
+                         quantity(e.get("speed_m_s"), "speed", u)))
+    else:
+        for ej in summary.get("ejections") or []:
+            chosen = ej["delay_s"] == summary.get("chosen_delay_s")
+            rows.append((f"ejection, {ej['delay_s']:g} s delay" + (" (chosen)" if chosen else ""),
+                         "-" if ej.get("altitude_m") is None else quantity(
+                             float(summary["burnout_time_s"]) + ej["delay_s"], "time"),
+                         "after landing" if ej.get("altitude_m") is None else quantity(ej["altitude_m"], "length", u),
+                         quantity(ej.get("speed_m_s"), "speed", u)))
+        fired = [float(summary["burnout_time_s"]) + ej["delay_s"] for ej in summary.get("ejections") or []
+                 if ej["delay_s"] == summary.get("chosen_delay_s") and summary.get("burnout_time_s") is not None]
+        deploy = summary.get("deploy_time_s")
+        if deploy is not None and any(abs(float(deploy) - f) < 1e-6 for f in fired):
+            k = next(i for i, row in enumerate(rows) if row[0].endswith("(chosen)"))
+            rows[k] = (rows[k][0] + ", opens the device",) + rows[k][1:]  # ejection and deployment are one event
+        elif deploy is not None:
+            rows.append(("recovery device opens", quantity(summary["deploy_time_s"], "time"),
+                         quantity(summary.get("deploy_altitude_m"), "length", u), "-"))
+    if not rows:
+        return None
+    from ..flight.rules import LaunchRules
+
+    limit = LaunchRules().max_ejection_speed_m_s
+    marks = ["info" if row[3] == "-" else ("ok" if _speed_ok(row[3], limit, u) else "caution") for row in rows]
+    return TableBlock("Recovery events", ("event", "time", "height", "speed"), tuple(rows), (False, True, True, True),
+                      tuple(marks), f"Speed at each event against {quantity(limit, 'speed', u)} (common practice).")
+
+
+def _speed_ok(text: str, limit_m_s: float, u: str) -> bool:
+    number = float(text.split()[0].replace(",", ""))
+    return number * (0.3048 if u == "imperial" else 1.0) <= limit_m_s
+
+
+def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
+    landing = summary.get("landing")
+    if isinstance(landing, dict):
+        rows = [("touchdown speed", quantity(landing.get("speed_m_s"), "speed", u)),
+                ("lands at", quantity(landing.get("time_s"), "time")),
+                ("distance from the pad", quantity(landing.get("distance_m"), "length", u))]
+        if landing.get("bearing_deg") is not None:
+            rows.append(("bearing from the pad", f"{float(landing['bearing_deg']):03.0f}° (0° north, 90° east)"))
+        return Facts("Landing", tuple(rows))
+    if summary.get("landing_speed_m_s") is None:
+        return None
+    return Facts("Landing", (
+        ("descent rate", quantity(summary.get("landing_descent_rate_m_s"), "speed", u)),
+        ("speed over ground", quantity(summary.get("landing_speed_m_s"), "speed", u)),
+        ("descent time", quantity(summary.get("descent_time_s"), "time")),
+        ("distance from the pad", quantity(summary.get("drift_m"), "length", u) + " downwind"),
+        ("bearing", "downwind (the model flies in the plane of the wind)"),
+    ))
+
+
+# ----------------------------------------------------------------------------- match
+def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
+                 made_at: str | None = None) -> MatchReport:
+    """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions."""
+    u = units
+    c = result.conditions
+    shown = [cand for cand in result.candidates if cand["fits"]]
+    rows, marks = [], []
+    for rank, cand in enumerate(shown, 1):
+        delay = "-" if cand["chosen_delay_s"] is None else (
+            f"{cand['chosen_delay_s']:g}{' drilled' if cand['delay_adjusted'] else ''}/{cand['optimal_delay_s']:.1f}")
+        rows.append((str(rank), cand["designation"], quantity(cand["apogee_m"], "length", u),
+                     quantity(cand["rail_exit_speed_m_s"], "speed", u),
+                     "-" if cand["liftoff_thrust_to_weight"] is None else f"{cand['liftoff_thrust_to_weight']:.1f}",
+                     delay, quantity(cand["ejection_speed_m_s"], "speed", u),
+                     "passes" if cand["passes"] else "; ".join(cand["reasons"])))
+        marks.append("ok" if cand["passes"] else "fail")
+    n_pass = sum(cand["passes"] for cand in result.candidates)
+    ranking = TableBlock(
+        f"Ranking: {n_pass} of {len(result.candidates)} motors pass",
+        ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
+        tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
+        f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
+        f"{len(result.candidates) - len(shown)} motor(s) do not fit the mount or the class limit and are not listed.",
+        nowrap=(False, True, False, False, False, False, False, False))
+    conditions = Facts("Conditions and rules", (
+        ("airframe", f"{result.airframe['name']}, {quantity(result.airframe['mass_kg'], 'mass', u)} empty"),
+        ("target", "-" if not c.get("target_m") else quantity(c["target_m"], "length", u)),
+        ("ceiling", "-" if not c.get("ceiling_m") else quantity(c["ceiling_m"], "length", u)),
+        ("class limit", c.get("max_class") or "none"),
+        ("rail exit", f">= {quantity(c['min_rail_exit_speed_m_s'], 'speed', u)}"),
+        ("thrust-to-weight", f">= {c['min_liftoff_thrust_to_weight']:g} at liftoff"),
+        ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
+        ("ejection speed", f"<= {quantity(c['max_ejection_speed_m_s'], 'speed', u)}"),
+        ("descent rate", f"<= {quantity(c['max_landing_speed_m_s'], 'speed', u)}"),
+        ("catalog", catalog),
+    ))
+    assumptions = Notes("Assumptions", (f"Drag: {c['drag']}.", f"Atmosphere: {c['atmosphere']}.", f"Wind: {c['wind']}.",
+                                        f"Rail: {c['rail']}.", f"Recovery: {c['recovery']}.",
+                                        "Landing speed is the terminal descent rate under the device at the pad."))
+    return MatchReport(title=f"Motors for {result.airframe['name']}",
+                       subtitle="Every motor that fits, flown with the same airframe and conditions",
+                       ranking=ranking, chart=match_chart(result), conditions=conditions,
+                       trace=trace_for(inputs, command, made_at), assumptions=assumptions)
+
+
+# ----------------------------------------------------------------------------- reduce
+def reduce_report(reductions: Sequence[tuple[str, Any]], record: Any, check: Any, spread: dict[str, Any] | None, *,
+                  inputs: Sequence[str], command: str, made_at: str | None = None) -> ReduceReport:
+    """The test-series report: the firings, their overlay, the mean and its spread, the label check."""
+    rows = []
+    for path, r in reductions:
+        impulse = float(np.trapezoid(r.filtered_thrust_n, r.filtered_time_s))
+        rows.append((Path(path).name, f"{r.sample_rate_hz:.0f}", f"{r.baseline_n:.2f}", f"{r.noise_n:.2f}",
+                     f"{r.cutoff_hz:g} Hz" if r.cutoff_hz else "none", f"{r.burnout_time_s - r.ignition_time_s:.2f}",
+                     f"{impulse:.1f}", f"{float(np.max(r.filtered_thrust_n)):.1f}", str(r.time_s.size),
+                     f"{100 * r.impulse_error:.2f}"))
+    firings = TableBlock(f"Firings ({len(reductions)})",
+                         ("log", "rate Hz", "baseline N", "noise N", "low-pass", "burn s", "impulse N·s", "peak N",
+                          "points", "impulse kept %"),
+                         tuple(rows), (False, True, True, True, False, True, True, True, True, True),
+                         note="Burn from the ignition to the burnout event; impulse of the filtered curve; "
+                              "'impulse kept' is the reduced curve's error against it.")
+    spread_facts = None
+    if spread:
+        ti, bt = spread["total_impulse_ns"], spread["event_burn_time_s"]
+        spread_facts = Facts("Spread between firings", (
+            ("firings", str(spread["n_firings"])),
+            ("total impulse", f"{ti['mean']:.1f} ± {ti['std']:.1f} N·s ({ti['min']:.1f} to {ti['max']:.1f})"),
+            ("burn time", f"{bt['mean']:.2f} ± {bt['std']:.2f} s ({bt['min']:.2f} to {bt['max']:.2f})"),
+            ("impulse spread", f"{100 * ti['std'] / ti['mean']:.1f} % of the mean" if ti["mean"] else "-"),
+        ), "± is one sample standard deviation.")
+    m = check.metrics or {}
+    label = Facts("Label check", (
+        ("label", f"{record.designation} ({record.maker or 'maker not given'})"),
+        ("from the curve", str(m.get("computed_designation", "-"))),
+        ("class", "-" if not m.get("impulse_class") else f"{m['impulse_class']} ({m['class_percent']:.0f} % into the class)"),
+        ("total impulse", f"{record.total_impulse_ns:.1f} N·s"),
+        ("average thrust", f"{record.average_thrust_n():.1f} N over {record.burn_time_s():.2f} s"),
+        ("result", "no errors" if check.ok else "errors: the curve contradicts its label or an invariant"),
+    ))
+    findings = tuple((f.severity, f.code, f.message) for f in check.findings)
+    marks = tuple({"error": "fail", "warning": "caution"}.get(f.severity, "info") for f in check.findings)
+    label_check = TableBlock("Findings", ("severity", "check", "finding"), findings, (), marks) if findings else None
+    mean = mean_chart(reductions, record) if len(reductions) > 1 else None
+    return ReduceReport(
+        title=f"Test-stand series: {record.designation}", subtitle=f"{len(reductions)} log(s) reduced to one curve",
+        firings=firings, overlay=overlay_chart(reductions), trace=trace_for(inputs, command, made_at),
+        mean_chart=mean, spread=spread_facts, label_check=label_check, label_facts=label,
+        assumptions=Notes("How the logs were reduced", (
+            "Baseline tared from the readings before ignition; noise is the robust spread of that baseline.",
+            "Zero-phase low-pass filter; ignition and burnout where thrust crosses the event threshold.",
+            "The reduced curve keeps the points that hold the filtered impulse and peak.")))

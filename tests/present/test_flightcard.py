@@ -1,0 +1,87 @@
+"""The flight card (issue 15): phases in flight order, verdicts that follow the rules, absent data leave phases out."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import pytest
+
+from motorlib.flight.rules import LaunchRules, flight_warnings
+from motorlib.present.flightcard import flight_card, quantity
+
+
+def _summary(**changes: Any) -> dict[str, Any]:
+    base = {
+        "status": "ok", "message": "flight completed", "liftoff_time_s": 0.01, "rail_exit_time_s": 0.3,
+        "rail_exit_speed_m_s": 18.9, "burnout_time_s": 1.79, "apogee_m": 497.9, "time_to_apogee_s": 9.95,
+        "apogee_downrange_m": -34.7, "optimal_delay_s": 8.16, "chosen_delay_s": 8.0, "chosen_ejection_speed_m_s": 2.8,
+        "max_speed_m_s": 115.1, "max_mach": 0.34, "max_acceleration_m_s2": 78.5, "max_dynamic_pressure_pa": 7970.0,
+        "liftoff_mass_kg": 0.3773, "liftoff_thrust_to_weight": 8.37, "average_thrust_to_weight": 7.86,
+        "ejections": [{"delay_s": 8.0, "altitude_m": 497.7, "speed_m_s": 2.8, "vertical_speed_m_s": 1.6}],
+        "deploy_time_s": 9.79, "deploy_altitude_m": 497.7, "landing_speed_m_s": 5.5, "landing_descent_rate_m_s": 5.0,
+        "descent_time_s": 99.3, "drift_m": 418.6, "has_recovery": True,
+    }
+    return {**base, **changes}
+
+
+def _card(summary: dict[str, Any], wind: float = 3.0):
+    return flight_card(summary, flight_warnings(summary, wind_speed_m_s=wind), title="t", wind_speed_m_s=wind)
+
+
+def test_phases_come_in_flight_order_and_a_sound_flight_is_all_ticks() -> None:
+    card = _card(_summary())
+    assert [p.key for p in card.phases] == ["pad", "boost", "coast", "recovery", "landing"]
+    assert card.verdict == "ok" and all(p.verdict in ("ok", "info") for p in card.phases)
+    # the chosen ejection opens the device: one recovery event, not two
+    assert card.phases[3].title == "Recovery: ejection, 8 s delay opens the device"
+
+
+def test_a_broken_rule_marks_its_figure_and_phase_and_carries_the_warning() -> None:
+    card = _card(_summary(rail_exit_speed_m_s=12.0))
+    pad = card.phases[0]
+    rail = next(f for f in pad.figures if f.label == "rail exit")
+    assert rail.verdict == "caution" and rail.rule == ">= 15.0 m/s"
+    assert pad.verdict == "caution" and [code for code, _ in pad.warnings] == ["rail-exit-slow"]
+    assert card.verdict == "caution"
+
+
+def test_the_wind_raises_the_rail_exit_rule() -> None:
+    card = _card(_summary(rail_exit_speed_m_s=18.9), wind=6.0)  # 4 x 6 m/s = 24 m/s
+    rail = next(f for f in card.phases[0].figures if f.label == "rail exit")
+    assert rail.verdict == "caution" and rail.rule == ">= 24.0 m/s"
+
+
+def test_no_recovery_data_leaves_the_recovery_and_landing_phases_out() -> None:
+    summary = _summary(ejections=[], chosen_delay_s=None, deploy_time_s=None, landing_speed_m_s=None, has_recovery=False)
+    assert [p.key for p in _card(summary).phases] == ["pad", "boost", "coast"]
+
+
+def test_a_failed_flight_is_one_line_with_a_cross() -> None:
+    card = _card(_summary(status="failed", message="the rocket stops and slides back before leaving the rail"))
+    assert card.phases == () and card.verdict == "fail" and not card.completed
+
+
+def test_three_d_deployments_and_landing_slot_in() -> None:
+    summary = _summary(deployments=[{"name": "drogue", "time_s": 9.9, "altitude_m": 497.0, "speed_m_s": 3.0},
+                                    {"name": "main", "time_s": 40.0, "altitude_m": 150.0, "speed_m_s": 30.0}],
+                       landing={"time_s": 70.0, "speed_m_s": 5.0, "distance_m": 323.0, "bearing_deg": 112.0},
+                       stability={"margin_rail_exit_cal": 0.6, "min_margin_cal": 0.5})
+    card = flight_card(summary, [], title="t")
+    assert [p.title for p in card.phases][3:] == ["Recovery: drogue", "Recovery: main", "Landing"]
+    assert card.phases[4].verdict == "caution"  # 30 m/s at the main's opening, above 25 m/s
+    assert "bearing 112°" in card.phases[5].figures[-1].value
+    stability = card.phases[0].figures[-1]
+    assert stability.label == "stability" and stability.verdict == "caution"
+
+
+@pytest.mark.parametrize(("value", "kind", "units", "text"), [
+    (497.87, "length", "si", "498 m"), (152.4, "length", "imperial", "500 ft"), (0.3773, "mass", "si", "377 g"),
+    (2.5, "mass", "si", "2.50 kg"), (None, "speed", "si", "-"), (-0.04, "speed", "si", "0.0 m/s"),
+])
+def test_quantities_show_in_the_chosen_units(value: float | None, kind: str, units: str, text: str) -> None:
+    assert quantity(value, kind, units) == text
+
+
+def test_rules_come_from_the_settings() -> None:
+    card = flight_card(_summary(), [], title="t", rules=LaunchRules(min_rail_exit_speed_m_s=20.0))
+    assert next(f for f in card.phases[0].figures if f.label == "rail exit").verdict == "caution"
