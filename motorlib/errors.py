@@ -44,8 +44,23 @@ __all__ = [
 ]
 
 
+def _rebuild_error(cls: type, args: tuple, state: dict) -> BaseException:
+    """Unpickle a motorlib error without calling its ``__init__`` (whose arguments differ from ``args``)."""
+    error = cls.__new__(cls)
+    error.args = args
+    error.__dict__.update(state)
+    return error
+
+
 class MotorlibError(Exception):
-    """Base class of every error raised by motorlib."""
+    """Base class of every error raised by motorlib.
+
+    Errors pickle with their attributes (so that worker processes can raise them):
+    ``__init__`` takes the facts, ``args`` holds the message, so the default pickling would fail.
+    """
+
+    def __reduce__(self) -> tuple:
+        return (_rebuild_error, (type(self), self.args, dict(self.__dict__)))
 
 
 class MotorlibWarning(UserWarning):

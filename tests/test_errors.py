@@ -23,3 +23,18 @@ def test_message_layout() -> None:
     assert str(err) == "a.xml:12: time_s: sample 3 ... (and 1 more problem(s))"
     with pytest.raises(ValueError, match="problems"):
         errors.CurveDataError("a.xml", [])
+
+
+def test_every_error_pickles_with_its_attributes() -> None:
+    # Worker processes (scatter --workers) send errors back pickled; issue 12.
+    import pickle
+
+    from motorlib.errors import (CurveDataError, CurveSyntaxError, DesignationError, MotorNotFoundError, Problem,
+                                 QuantityError, SimulationInputError)
+
+    for error in (SimulationInputError("a.toml", "launch.rail_length", "too long"),
+                  CurveDataError("f.xml", [Problem("time-order", "time_s", "must increase", index=3)]),
+                  QuantityError("--ballast", "no unit"), DesignationError("C6", 1, "a digit"),
+                  CurveSyntaxError("f.xml", "not XML", field="motor", line=4), MotorNotFoundError("F99")):
+        copy = pickle.loads(pickle.dumps(error))
+        assert type(copy) is type(error) and str(copy) == str(error) and copy.__dict__ == error.__dict__

@@ -3,7 +3,7 @@
 ``cli/`` is the only package that imports click. This module holds the group :func:`main` (the console-script
 entry point) with its version option and safety epilog, and registers the commands, one module each:
 ``check``, ``import`` (:mod:`.importing`), ``fly``, ``airframe``, ``descent``, ``catalog``, ``match``, ``demo``,
-``reduce`` and ``new-airframe``.
+``reduce``, ``new-airframe``, ``scatter`` and ``calibrate``.
 Shared option types and catalog lookup live in :mod:`.options`, consoles and the caution in :mod:`.output`.
 Library errors reach the terminal in one place, :class:`.group._Group`, as ``Error: path:line: field: problem``
 with exit 1. Command modules import only click and the standard library at start-up; each command imports
@@ -16,6 +16,7 @@ import click
 
 from .. import __version__
 from .airframe import airframe
+from .calibrate import calibrate
 from .catalog import catalog
 from .check import check
 from .demo import demo
@@ -28,6 +29,7 @@ from .new_airframe import new_airframe
 from .options import _units_option
 from .output import _EPILOG
 from .reduce import reduce
+from .scatter import scatter
 
 
 @click.group(cls=_Group, epilog=_EPILOG, context_settings={"help_option_names": ["-h", "--help"]})
@@ -55,5 +57,6 @@ def main(units: str | None) -> None:
     """
 
 
-for _command in (check, import_curve, fly, airframe, descent, catalog, match, demo, reduce, new_airframe):
+for _command in (check, import_curve, fly, airframe, descent, catalog, match, demo, reduce, new_airframe, scatter,
+                 calibrate):
     main.add_command(_command)

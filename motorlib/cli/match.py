@@ -8,6 +8,7 @@ import click
 
 from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
 from .output import _EPILOG, _card_units, _console, _json_text
+from .robust import pop_robust, robust_options, run_robust
 
 
 def _match_options(func: Any) -> Any:
@@ -48,8 +49,7 @@ def _match_options(func: Any) -> Any:
 def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     from ..files.airframe_toml import load_airframe
     from ..catalog import CatalogFilter
-    from ..matching.rank import MatchSettings, rank
-    from ..flight.rules import LaunchRules
+    from ..matching.rank import rank
 
     units = display_units(opts.get("units"))
     frame = load_airframe(airframe_file)
@@ -57,16 +57,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         from .output import _write_report
 
         _write_report(None, opts["report_path"], opts["overwrite"], [airframe_file], check_only=True)
-    rules = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
-    if opts["min_rail_exit"] is not None:
-        rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
-    slack = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
-    try:
-        settings = MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
-                                 rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
-                                 ballast=opts["ballast"], **slack)
-    except ValueError as exc:
-        raise click.UsageError(str(exc).replace("`", "")) from None
+    settings = match_settings(opts)
     rows = cat.rows(CatalogFilter(tag=opts["tag"]))
     if not rows:
         raise click.UsageError(f"no motors in {cat.root}" + (f" with tag {opts['tag']!r}" if opts["tag"] else ""))
@@ -116,10 +107,28 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")
 
 
+
+def match_settings(opts: dict[str, Any]) -> Any:
+    """The :class:`MatchSettings` the match options ask for (options left out keep the library's defaults)."""
+    from ..flight.rules import LaunchRules
+    from ..matching.rank import MatchSettings
+
+    rules = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
+    if opts["min_rail_exit"] is not None:
+        rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
+    slack = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
+    try:
+        return MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
+                             rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
+                             ballast=opts.get("ballast", False), **slack)
+    except ValueError as exc:
+        raise click.UsageError(str(exc).replace("`", "")) from None
+
 @click.command()
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @_catalog_option
 @_match_options
+@robust_options
 def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     """Rank every motor in the catalog for AIRFRAME_FILE by apogee, rail exit speed and delay.
 
@@ -139,5 +148,11 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
           --allow-smaller-motors --units imperial
       motorlib match my-rocket.toml --target 300 --ceiling 450 \\
           --report motors.html
+      motorlib match my-rocket.toml --robust --altitude-window 240m..260m \\
+          --duration-window 41s..44s
     """
+    robust = pop_robust(opts)
+    if robust["robust"]:
+        run_robust(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts, robust)
+        return
     _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)

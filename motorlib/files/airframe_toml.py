@@ -21,10 +21,11 @@ from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Tran
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
 
-__all__ = ["airframe_from_dict", "airframe_template", "load_airframe"]
+__all__ = ["airframe_from_dict", "airframe_template", "load_airframe", "load_uncertainty", "uncertainty_from_dict",
+           "write_drag"]
 
 _SECTIONS = {
-    "": {"name", "airframe", "launch", "recovery", "geometry"},
+    "": {"name", "airframe", "launch", "recovery", "geometry", "uncertainty"},
     "airframe": {"mass", "diameter", "drag_coefficient", "drag_table", "mount_diameter", "mount_length"},
     "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
     "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
@@ -33,7 +34,20 @@ _SECTIONS = {
     "geometry.body": {"length"},
     "geometry.fins": {"count", "root_chord", "tip_chord", "span", "sweep", "thickness", "offset", "profile"},
     "geometry.transition": {"fore_diameter", "aft_diameter", "length", "position"},
+    "uncertainty": {"total_impulse", "burn_time", "airframe_mass", "motor_mass", "drag", "wind_speed",
+                    "wind_direction", "rail_angle", "rail_azimuth", "temperature", "cg", "deploy_altitude"},
 }
+# [uncertainty] key -> (Uncertainty field, kind); "relative" takes a fraction or a percentage string
+_UNCERTAINTY_KEYS = {
+    "total_impulse": ("total_impulse_relative_std", "relative"), "burn_time": ("burn_time_relative_std", "relative"),
+    "airframe_mass": ("airframe_mass_relative_std", "relative"), "motor_mass": ("motor_mass_relative_std", "relative"),
+    "drag": ("drag_relative_std", "relative"), "wind_speed": ("wind_speed_std_m_s", "speed"),
+    "wind_direction": ("wind_direction_std_rad", "angle"), "rail_angle": ("rail_angle_std_rad", "angle"),
+    "rail_azimuth": ("rail_azimuth_std_rad", "angle"), "temperature": ("pad_temperature_std_k", "temperature difference"),
+    "cg": ("cg_std_m", "length"), "deploy_altitude": ("deploy_altitude_std_m", "length"),
+}
+# a temperature *difference*: 1 degC = 1 K, 1 degF = 5/9 K (exact by the scales' definitions)
+_DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "degF": 5.0 / 9.0}
 _PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
@@ -211,6 +225,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
     body = _section(source, data, "airframe", True)
     launch_t = _section(source, data, "launch", False) or {}
     recovery_t = _section(source, data, "recovery", False)
+    _section(source, data, "uncertainty", False)  # its keys are checked here; load_uncertainty reads the values
     name = str(data.get("name", os.path.splitext(os.path.basename(source))[0]))
     drag_table: tuple[tuple[float, float], ...] = ()
     if "drag_table" in body:
@@ -321,3 +336,144 @@ def airframe_template(system: str = "metric", file: str = "my-rocket.toml") -> s
     if system not in _TEMPLATE_VALUES:
         raise ValueError(f"`system` must be metric or imperial, got {system!r}")
     return _TEMPLATE.format(system=system, file=file, **_TEMPLATE_VALUES[system])
+def load_uncertainty(path: str | os.PathLike[str], base: Any = None) -> Any:
+    """The ``[uncertainty]`` table of an airframe file over ``base`` (default: the documented defaults).
+
+    Returns a :class:`motorlib.flight.dispersion.Uncertainty`; keys the file leaves out keep
+    their value from ``base``. See data_schema/AIRFRAME.md.
+
+    Raises
+    ------
+    SimulationInputError
+        Naming the file and the key.
+    """
+    source = str(path)
+    try:
+        with open(path, "rb") as handle:
+            data = tomllib.load(handle)
+    except tomllib.TOMLDecodeError as exc:
+        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
+    except OSError as exc:
+        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
+    return uncertainty_from_dict(data, source, base)
+
+
+def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: Any = None) -> Any:
+    """:func:`load_uncertainty` for parsed TOML data."""
+    from dataclasses import replace
+
+    from ..flight.dispersion import Uncertainty
+
+    base = base if base is not None else Uncertainty()
+    table = _section(source, data, "uncertainty", False)
+    if table is None:
+        return base
+    values = {}
+    for key, raw in table.items():
+        name, kind = _UNCERTAINTY_KEYS[key]
+        where = f"uncertainty.{key}"
+        if kind == "relative":
+            values[name] = _relative(source, where, raw)
+        elif kind == "temperature difference":
+            values[name] = _difference_k(source, where, raw)
+        else:
+            values[name] = _quantity(source, table, "uncertainty", key, kind)
+        if not (math.isfinite(values[name]) and values[name] >= 0.0):
+            raise SimulationInputError(source, where, f"a standard deviation must be at least 0, got {raw!r}")
+    try:
+        return replace(base, **values)
+    except ValueError as exc:
+        raise SimulationInputError(source, "uncertainty", str(exc).replace("`", "")) from None
+
+
+def _relative(source: str, where: str, raw: Any) -> float:
+    """A fraction (0.03) or a percentage string ("3 %")."""
+    if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+        return float(raw)
+    if isinstance(raw, str) and raw.strip().endswith("%"):
+        try:
+            return float(raw.strip()[:-1]) / 100.0
+        except ValueError:
+            pass
+    raise SimulationInputError(source, where, f"expected a fraction such as 0.03 or a percentage such as '3 %', got {raw!r}")
+
+
+def _difference_k(source: str, where: str, raw: Any) -> float:
+    """A temperature difference: a number of kelvin, or "2 K", "2 degC", "3.6 degF"."""
+    if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+        return float(raw)
+    if isinstance(raw, str):
+        text = raw.strip()
+        for unit, factor in _DIFFERENCE_UNITS.items():
+            if text.endswith(unit):
+                try:
+                    return float(text[: -len(unit)]) * factor
+                except ValueError:
+                    break
+    raise SimulationInputError(source, where, f"expected a temperature difference such as '2 K' or '3 degF', got {raw!r}")
+
+
+def write_drag(path: str | os.PathLike[str], kind: str, value: float) -> tuple[str, str]:
+    """Put a fitted drag into an airframe file, editing only its drag line; returns (file, backup) paths.
+
+    ``kind`` ``drag_coefficient`` replaces the number of ``airframe.drag_coefficient``;
+    ``drag_scale`` multiplies every Cd of ``airframe.drag_table`` by ``value``. Comments, order
+    and every other line stay as written. The old file is kept as ``FILE.bak`` (``FILE.bak2``, …
+    when that exists); the new text is checked by reading it back before it is written.
+
+    Raises
+    ------
+    SimulationInputError
+        When the file has no such key in its [airframe] table, or the result is not a valid airframe.
+    """
+    import re
+
+    from .fsio import write_atomic
+
+    source = str(path)
+    with open(path, encoding="utf-8") as handle:
+        text = handle.read()
+    lines = text.splitlines(keepends=True)
+    section = ""
+    key = "drag_coefficient" if kind == "drag_coefficient" else "drag_table"
+    start = None
+    for i, line in enumerate(lines):
+        header = re.match(r"\s*\[([^\[\]]+)\]\s*(#.*)?$", line)
+        if header:
+            section = header.group(1).strip()
+            continue
+        if section == "airframe" and re.match(rf"\s*{key}\s*=", line):
+            start = i
+            break
+    if start is None:
+        raise SimulationInputError(source, f"airframe.{key}", "not in the file: nothing to replace")
+    if kind == "drag_coefficient":
+        match = re.match(r"(\s*drag_coefficient\s*=\s*)([^#\r\n]*?)(\s*(#.*)?)(\r?\n)?$", lines[start])
+        lines[start] = f"{match.group(1)}{value:.4g}{match.group(3)}{match.group(5) or ''}"
+    else:
+        end, depth = start, 0
+        for end in range(start, len(lines)):  # the table may span several lines: up to its closing bracket
+            depth += lines[end].split("#")[0].count("[") - lines[end].split("#")[0].count("]")
+            if depth <= 0:
+                break
+        block = "".join(lines[start:end + 1])
+        body = "".join(line.split("#")[0] for line in lines[start:end + 1])  # comments inside the table go
+        comment = lines[end].partition("#")[2] if "#" in lines[end] else ""  # the closing line's comment stays
+        pairs = tomllib.loads("t = " + body.split("=", 1)[1])["t"]
+        scaled = ", ".join(f"[{float(m):g}, {float(c) * value:.4g}]" for m, c in pairs)
+        indent = re.match(r"\s*", lines[start]).group(0)
+        newline = "\n" if block.endswith("\n") else ""
+        lines[start:end + 1] = [f"{indent}drag_table = [{scaled}]" + (f"  #{comment.rstrip()}" if comment else "") + newline]
+    new_text = "".join(lines)
+    try:
+        airframe_from_dict(tomllib.loads(new_text), source)
+    except tomllib.TOMLDecodeError as exc:  # pragma: no cover - our edit keeps the syntax
+        raise SimulationInputError(source, f"airframe.{key}", f"the edited file would not be valid TOML: {exc}") from exc
+    backup = source + ".bak"
+    n = 2
+    while os.path.exists(backup):
+        backup = f"{source}.bak{n}"
+        n += 1
+    write_atomic(backup, text.encode("utf-8"), overwrite=False)
+    write_atomic(path, new_text.encode("utf-8"))
+    return source, backup

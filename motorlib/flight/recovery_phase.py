@@ -55,7 +55,8 @@ def _deployment_start(pack: MotorPack, recovery: Recovery, ascent: dict, idx: np
         start["t"] = np.where(has, pack.burnout_s[idx] + delay_used, np.nan)
         for k in ("x", "z", "vx", "vz"):
             start[k] = np.where(has, ascent["ejection"][k][rows, col], np.nan)
-    ok = np.isfinite(start["t"]) & np.isfinite(start["z"]) & (out["status"][idx] == OK)
+    # a delay that fires inside the step that reaches the ground gives a state below the pad: nothing deploys
+    ok = np.isfinite(start["t"]) & (start["z"] > 0.0) & (out["status"][idx] == OK)
     out["deploy_time_s"][idx] = np.where(ok, start["t"], np.nan)
     out["deploy_altitude_m"][idx] = np.where(ok, start["z"], np.nan)
     out["deploy_delay_s"][idx] = np.where(ok, delay_used, np.nan)

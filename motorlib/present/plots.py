@@ -17,7 +17,8 @@ from ..files.fsio import write_atomic
 from .display import DisplayUnits
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE
 
-__all__ = ["airframe_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot"]
+__all__ = ["airframe_plot", "calibration_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot",
+           "scatter_plot"]
 
 _MARKERS = {"rail exit": "^", "burnout": "s", "apogee": "o", "deployment": "D", "ejection": "D", "landing": "v"}
 _CYCLE = [(INK, "-"), (BLUE, "--"), (ORANGE, "-"), (INK, ":"), (BLUE, "-."), (ORANGE, "--"), (MUTED, "-")]
@@ -369,4 +370,106 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
         out = _save(fig, path, overwrite=overwrite)
     finally:
         plt.close(fig)
+    return out
+
+
+# Our own palette for dispersion charts: ink for data, a warm accent for limits, a cool one for targets.
+_INK = "#2f3e46"
+_POINTS = "#52796f"
+_LIMIT = "#bc4749"
+_TARGET = "#386fa4"
+_ZONE = "#84a98c"
+_LENGTH_UNITS = {"metric": ("m", 1.0), "si": ("m", 1.0), "imperial": ("ft", 0.3048)}  # international foot, exact
+
+
+def scatter_plot(summary: dict, flights: dict[str, np.ndarray], title: str, path: str | os.PathLike[str],
+                 units: DisplayUnits | str = _METRIC) -> Path:
+    """Apogee histogram with target and ceiling; landing map with the pad, field circle, points and 95 % ellipse."""
+    plt = _figure()
+    unit, factor = _LENGTH_UNITS[getattr(units, "system", units)]
+    fig, (hist, ground) = plt.subplots(1, 2, figsize=(12, 5.2))
+    apogee = flights["apogee_m"][np.isfinite(flights["apogee_m"])] / factor
+    if apogee.size:
+        hist.hist(apogee, bins=min(60, max(10, apogee.size // 40)), color=_POINTS, alpha=0.85, edgecolor="white")
+    a = summary["apogee_m"]
+    for key, style in (("p5", ":"), ("p50", "-"), ("p95", ":")):
+        if a.get(key) is not None:
+            hist.axvline(a[key] / factor, color=_INK, linestyle=style, linewidth=1,
+                         label="median" if key == "p50" else ("5 % / 95 %" if key == "p5" else None))
+    if summary.get("target_m") is not None:
+        hist.axvline(summary["target_m"] / factor, color=_TARGET, linewidth=2, label="target")
+    if summary.get("ceiling_m") is not None:
+        hist.axvline(summary["ceiling_m"] / factor, color=_LIMIT, linewidth=2, label="ceiling")
+    hist.set_xlabel(f"apogee ({unit})")
+    hist.set_ylabel("flights")
+    hist.legend(fontsize=8)
+    hist.grid(alpha=0.25)
+    east, north = flights["landing_east_m"] / factor, flights["landing_north_m"] / factor
+    ok = np.isfinite(east) & np.isfinite(north)
+    ground.scatter(east[ok], north[ok], s=4, color=_POINTS, alpha=0.4, linewidths=0, label="landing points")
+    ground.plot([0.0], [0.0], marker="^", color=_INK, markersize=9, linestyle="none", label="pad")
+    radius = summary.get("field_radius_m")
+    if radius is not None:
+        angle = np.linspace(0.0, 2.0 * np.pi, 361)
+        ground.plot(radius / factor * np.sin(angle), radius / factor * np.cos(angle), color=_LIMIT, linewidth=1.5,
+                    label="field")
+    e = summary["landing"]["ellipse95"]
+    if e:
+        angle = np.linspace(0.0, 2.0 * np.pi, 361)
+        theta = np.radians(e["orientation_deg"])  # major axis azimuth, clockwise from north
+        along, across = e["semi_major_m"] * np.cos(angle), e["semi_minor_m"] * np.sin(angle)
+        ground.plot((e["east_m"] + along * np.sin(theta) + across * np.cos(theta)) / factor,
+                    (e["north_m"] + along * np.cos(theta) - across * np.sin(theta)) / factor,
+                    color=_ZONE, linewidth=2, label="95 % ellipse")
+    ground.set_aspect("equal", adjustable="datalim")
+    ground.set_xlabel(f"east ({unit})")
+    ground.set_ylabel(f"north ({unit})")
+    ground.legend(fontsize=8, loc="best")
+    ground.grid(alpha=0.25)
+    fig.suptitle(f"{title}: {summary['n_flights']} sampled flights")
+    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    out = _save(fig, path)
+    plt.close(fig)
+    return out
+
+
+def calibration_plot(result: dict, kind: str, title: str, path: str | os.PathLike[str],
+                     track: tuple[np.ndarray, np.ndarray] | None = None) -> Path:
+    """Measured against simulated: a log with the fitted coast and the whole simulated flight, or apogees per flight."""
+    plt = _figure()
+    label = "drag scale" if kind == "drag_scale" else "Cd"
+    fit_text = f"fitted {label} {result[kind]:.4g} ± {result['uncertainty']:.2g}"
+    if "measured" in result:
+        fig, (top, bottom) = plt.subplots(2, 1, sharex=True, figsize=(9, 7), gridspec_kw={"height_ratios": [3, 1]})
+        top.plot(result["measured"]["time_s"], result["measured"]["altitude_m"], ".", color=_POINTS, markersize=2,
+                 label="altimeter log")
+        if track is not None:
+            top.plot(track[0], track[1], color=_TARGET, linewidth=1, label="simulated flight, fitted drag")
+        top.plot(result["model_time_s"], result["model_altitude_m"], color=_LIMIT, linewidth=2, label="fitted coast")
+        for key, colour in (("liftoff_time_s", _INK), ("burnout_time_s", _ZONE), ("apogee_time_s", _LIMIT)):
+            top.axvline(result["events"][key], color=colour, linestyle=":", linewidth=1)
+        measured_t = result["measured"]["time_s"]
+        top.set_xlim(float(measured_t[0]), float(measured_t[-1]))  # the simulated descent may outlast the log
+        top.set_ylabel("height above the pad (m)")
+        top.legend(fontsize=8)
+        top.grid(alpha=0.25)
+        top.set_title(f"{title}: {fit_text}")
+        bottom.plot(result["model_time_s"], result["residuals_m"], ".", color=_INK, markersize=2)
+        bottom.axhline(0.0, color=_LIMIT, linewidth=1)
+        bottom.set_ylabel("residual (m)")
+        bottom.set_xlabel("time (s, log clock)")
+        bottom.grid(alpha=0.25)
+    else:
+        fig, ax = plt.subplots(figsize=(8, 5))
+        x = np.arange(len(result["measured_m"]))
+        ax.errorbar(x, result["measured_m"], yerr=result["apogee_std_m"], fmt="o", color=_POINTS, label="measured")
+        ax.plot(x, result["simulated_m"], "x", color=_LIMIT, markersize=9, label="simulated, fitted drag")
+        ax.set_xticks(x, result["labels"], rotation=30, ha="right")
+        ax.set_ylabel("apogee (m)")
+        ax.legend(fontsize=8)
+        ax.grid(alpha=0.25)
+        ax.set_title(f"{title}: {fit_text}")
+    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    out = _save(fig, path)
+    plt.close(fig)
     return out

@@ -19,8 +19,11 @@ import pytest
 from click.testing import CliRunner
 
 from motorlib.cli.main import main
+from motorlib.files.airframe_toml import load_airframe
+from motorlib.files.curvefiles import load_curve_file
 
 from ..conftest import SAMPLE_DIR
+from ..flight.test_calibration import synthetic_log
 
 ENV_80 = {"COLUMNS": "80"}
 
@@ -103,6 +106,10 @@ def scratch_template(tmp_path_factory: pytest.TempPathFactory) -> Path:
     _write_curve(root / "test3.csv", *_curve(48.0, 36.0, 3.0))  # about 126 N·s at 41 N: a G40
     for seed, name in enumerate(("firing-1.csv", "f1.csv", "f2.csv", "f3.csv")):
         _write_log(root / name, seed)
+    # an altimeter log of the demo airframe on a G59-10 (barometric, synthesised from our own flight model)
+    frame = load_airframe(root / "my-rocket.toml")
+    t, p = synthetic_log(frame, load_curve_file(SAMPLE_DIR / "bramblewick-propulsion_g59-10.xml"), 0.62)
+    (root / "flight.csv").write_text("time (s),pressure (Pa)\n" + "".join(f"{a:.3f},{b:.2f}\n" for a, b in zip(t, p)))
     result = CliRunner().invoke(main, ["catalog", "add", "--catalog", str(root / "motors"), str(SAMPLE_DIR)])
     assert result.exit_code == 0, result.output
     return root

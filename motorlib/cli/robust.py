@@ -1,0 +1,125 @@
+"""``motorlib match --robust``: rank by the probability of a successful flight under sampled uncertainties."""
+
+from __future__ import annotations
+
+import json
+from typing import Any
+
+import click
+
+from .options import _Quantity, display_units
+from .output import _EPILOG, _console
+
+
+class _Window(click.ParamType):
+    """``LOW..HIGH`` of one quantity kind, e.g. ``240m..260m`` or ``41s..44s``; bare numbers take the default unit."""
+
+    def __init__(self, kind: str, default_unit: str) -> None:
+        self.kind, self.default_unit = kind, default_unit
+        self.name = f"{kind} window"
+
+    def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> tuple[float, float]:
+        if isinstance(value, tuple):
+            return value
+        parts = str(value).split("..")
+        if len(parts) != 2:
+            self.fail(f"expected LOW..HIGH such as 240m..260m, got {value!r}", param, ctx)
+        if self.kind == "time":
+            try:
+                low, high = (float(p.strip().removesuffix("s")) for p in parts)
+            except ValueError:
+                self.fail(f"expected LOW..HIGH in seconds such as 41s..44s, got {value!r}", param, ctx)
+        else:
+            quantity = _Quantity(self.kind, self.default_unit)
+            low, high = (quantity.convert(p.strip(), param, ctx) for p in parts)
+        if not 0.0 <= low < high:
+            self.fail(f"the window's low end must be at least 0 and below its high end, got {value!r}", param, ctx)
+        return (low, high)
+
+
+def robust_options(func: Any) -> Any:
+    """The options ``match`` gains for ``--robust`` (kept here so that match.py stays small)."""
+    options = [
+        click.option("--robust", is_flag=True, help="Rank by the probability of meeting every rule and window over "
+                                                    "sampled flights (motor, masses, drag, wind, rail, weather)."),
+        click.option("--samples", "n_samples", type=click.IntRange(2), default=500, show_default=True,
+                     help="With --robust: sampled flights per motor."),
+        click.option("--seed", type=click.IntRange(0), default=0, show_default=True, help="With --robust: seed."),
+        click.option("--workers", type=click.IntRange(1), default=None,
+                     help="With --robust: worker processes (default: the cores); results do not depend on it."),
+        click.option("--altitude-window", type=_Window("length", "m"),
+                     help="With --robust: apogee window, e.g. 240m..260m."),
+        click.option("--duration-window", type=_Window("time", "s"),
+                     help="With --robust: liftoff-to-landing window, e.g. 41s..44s."),
+        click.option("--field-radius", "field_radius_m", type=_Quantity("length", "m"),
+                     help="With --robust: landing farther from the pad fails; a bare number is m."),
+        click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", "deg"), default="0 deg",
+                     help="With --robust: direction the wind blows from (degrees from north)."),
+    ]
+    for option in reversed(options):
+        func = option(func)
+    return func
+
+
+_ROBUST_ONLY = ("n_samples", "seed", "workers", "altitude_window", "duration_window", "field_radius_m", "wind_from_rad")
+
+
+def pop_robust(opts: dict[str, Any]) -> dict[str, Any]:
+    """Remove the robust options from ``opts`` (the plain ranking never sees them)."""
+    return {name: opts.pop(name) for name in ("robust", *_ROBUST_ONLY)}
+
+
+def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[str, Any]) -> None:
+    from ..catalog import CatalogFilter
+    from ..files.airframe_toml import load_airframe, load_uncertainty
+    from ..flight.dispersion import catalog_spread, default_workers
+    from ..matching.rank import _fits
+    from .match import match_settings
+    from ..matching.robust import RobustSettings, robust_rank
+    from .scatter import run_with_progress
+
+    frame = load_airframe(airframe_file)
+    match = match_settings(opts)
+    try:
+        settings = RobustSettings(n_samples=robust["n_samples"], seed=robust["seed"],
+                                  altitude_window_m=robust["altitude_window"],
+                                  duration_window_s=robust["duration_window"],
+                                  field_radius_m=robust["field_radius_m"], wind_from_rad=robust["wind_from_rad"])
+    except ValueError as exc:
+        raise click.UsageError(str(exc).replace("`", "")) from None
+    rows = cat.rows(CatalogFilter(tag=opts["tag"]))
+    fitting = [r for r in rows if not _fits(frame, r, match)]
+    if not fitting:
+        raise click.UsageError(f"no motor in {cat.root} fits the airframe")
+    records = [cat.get(r["motor_id"]) for r in fitting]
+    by_name: dict[tuple[str, str], list[Any]] = {}
+    for r in records:
+        by_name.setdefault((r.maker, r.designation), []).append(r)
+    spreads = [catalog_spread(by_name[(r.maker, r.designation)]) for r in records]
+    k = robust["workers"] or default_workers()
+    total = settings.n_samples * len(records)
+    result = run_with_progress(
+        lambda progress: robust_rank(frame, records, match, load_uncertainty(airframe_file), settings,
+                                     ids=[r["motor_id"] for r in fitting], spreads=spreads, workers=k,
+                                     progress=progress),
+        total, f"{len(records)} motors x {settings.n_samples} flights")
+    result = {"airframe": frame.name, **result,
+              "conditions": {"target_m": match.target_m, "ceiling_m": match.ceiling_m,
+                             "delay_slack_s": match.delay_slack_s,
+                             "min_rail_exit_speed_m_s": match.rules.min_rail_exit_speed_m_s,
+                             "min_liftoff_thrust_to_weight": match.rules.min_liftoff_thrust_to_weight,
+                             "max_ejection_speed_m_s": match.rules.max_ejection_speed_m_s,
+                             "max_landing_speed_m_s": match.rules.max_landing_speed_m_s,
+                             "catalog": str(cat.root)},
+              "caution": _EPILOG}
+    if opts["as_json"]:
+        click.echo(json.dumps(result, indent=2))
+        return
+    from ..present.scatter import robust_table
+
+    console = _console()
+    console.print(robust_table(result, display_units(opts.get("units")), opts["top"]))
+    console.print("P(success): the share of sampled flights meeting every rule and window; ± one standard error. "
+                  "Every motor flies the same sampled conditions, so the differences between motors are sharper "
+                  "than the standard errors suggest (see p_difference_to_next_standard_error in --json).")
+    console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")

@@ -1,0 +1,206 @@
+"""Robust ranking: each candidate's probability of meeting every rule and landing inside the target windows.
+
+Every candidate motor flies the same sampled conditions (common random numbers: sample j
+draws the same standard normals for every motor, :mod:`motorlib.flight.dispersion`), so
+differences between candidates are not sampling noise of their own: the standard error of a
+difference comes from the paired outcomes and is usually much smaller than either
+candidate's own standard error.
+
+A sampled flight succeeds when it flies (status OK) and meets every rule of
+:class:`~motorlib.matching.rank.MatchSettings` (rail exit speed, liftoff thrust-to-weight,
+ceiling, the ejection delay fitted before the flight within the delay slack of that
+flight's optimal delay, deployment speed, landing speed) and every window given here
+(apogee, flight duration from liftoff to landing, landing inside the field).
+
+numpy only.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any, Callable, Sequence
+
+import numpy as np
+
+from ..flight.airframe import Airframe
+from ..flight.dispersion import DispersionSettings, Uncertainty, _nominal, run_samples
+from ..flight.integrate import OK, FlightSettings
+from ..motor.record import FiringSpread, MotorRecord
+from .rank import MatchSettings
+
+__all__ = ["RobustSettings", "robust_rank"]
+
+
+@dataclass(frozen=True)
+class RobustSettings:
+    """Sampling and windows of a robust ranking.
+
+    Attributes
+    ----------
+    n_samples : int
+        Sampled flights per candidate (default 500).
+    seed : int
+    altitude_window_m, duration_window_s : (float, float) or None
+        Apogee [m above the pad] and flight duration from liftoff to landing [s] that count as a success.
+    field_radius_m : float or None
+        Landing farther than this from the pad fails [m].
+    wind_from_rad, rail_azimuth_rad : float, float or None
+        As in :class:`~motorlib.flight.dispersion.DispersionSettings`.
+    chunk_size : int
+    flight : FlightSettings
+    """
+
+    n_samples: int = 500
+    seed: int = 0
+    altitude_window_m: tuple[float, float] | None = None
+    duration_window_s: tuple[float, float] | None = None
+    field_radius_m: float | None = None
+    wind_from_rad: float = 0.0
+    rail_azimuth_rad: float | None = None
+    chunk_size: int = 1000
+    flight: FlightSettings = FlightSettings()
+
+    def __post_init__(self) -> None:
+        for name in ("altitude_window_m", "duration_window_s"):
+            window = getattr(self, name)
+            if window is not None and not (len(window) == 2 and 0.0 <= window[0] < window[1]):
+                raise ValueError(f"`{name}` must be (low, high) with 0 <= low < high, got {window!r}")
+        if self.n_samples < 2:
+            raise ValueError(f"`n_samples` must be at least 2, got {self.n_samples!r}")
+
+    @property
+    def needs_descent(self) -> bool:
+        return self.duration_window_s is not None or self.field_radius_m is not None
+
+
+def _success(flights: dict[str, np.ndarray], frame: Airframe, match: MatchSettings, robust: RobustSettings
+             ) -> dict[str, np.ndarray]:
+    """Per-flight failure flags by rule, shape (n_flights,) each; a flight succeeds when none is set."""
+    r = match.rules
+    flown = flights["status"] == OK
+
+    def fails(bad: np.ndarray) -> np.ndarray:
+        return flown & bad  # comparisons with NaN are False: a missing figure fails only where stated
+
+    out = {"flight": ~flown,
+           "rail": fails(~(flights["rail_exit_speed_m_s"] >= r.min_rail_exit_speed_m_s)),
+           "T/W": fails(~(flights["liftoff_thrust_to_weight"] >= r.min_liftoff_thrust_to_weight))}
+    if match.ceiling_m is not None:
+        out["ceiling"] = fails(flights["apogee_m"] > match.ceiling_m)
+    if frame.recovery is None or frame.recovery.deploy == "ejection":
+        delay = flights["deploy_delay_s"]
+        out["delay"] = fails(~(np.abs(delay - flights["optimal_delay_s"]) <= match.delay_slack_s))
+        out["eject"] = fails(~(flights["deploy_speed_m_s"] <= r.max_ejection_speed_m_s))
+    if np.isfinite(flights["landing_speed_m_s"]).any():
+        out["descent"] = fails(flights["landing_speed_m_s"] > r.max_landing_speed_m_s)
+    if robust.altitude_window_m is not None:
+        low, high = robust.altitude_window_m
+        out["altitude window"] = fails(~((flights["apogee_m"] >= low) & (flights["apogee_m"] <= high)))
+    if robust.duration_window_s is not None:
+        low, high = robust.duration_window_s
+        out["duration window"] = fails(~((flights["flight_duration_s"] >= low) & (flights["flight_duration_s"] <= high)))
+    if robust.field_radius_m is not None:
+        distance = np.hypot(flights["landing_east_m"], flights["landing_north_m"])
+        out["field"] = fails(~(distance <= robust.field_radius_m))
+    return out
+
+
+def _percentiles(values: np.ndarray) -> dict[str, float | None]:
+    finite = values[np.isfinite(values)]
+    if finite.size == 0:
+        return {"p5": None, "p50": None, "p95": None, "mean": None}
+    p5, p50, p95 = np.percentile(finite, (5, 50, 95))
+    return {"p5": float(p5), "p50": float(p50), "p95": float(p95), "mean": float(finite.mean())}
+
+
+def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSettings, uncertainty: Uncertainty,
+                settings: RobustSettings, *, ids: Sequence[str] | None = None,
+                spreads: Sequence[FiringSpread | None] | None = None, workers: int = 1,
+                progress: Callable[[int, int], None] | None = None) -> dict[str, Any]:
+    """Rank ``records`` by their probability of a successful flight under ``uncertainty``.
+
+    Parameters
+    ----------
+    frame : Airframe
+    records : sequence of MotorRecord
+        Candidates that fit the airframe (see :func:`motorlib.matching.rank.rank` for the fit rules).
+    match : MatchSettings
+        Rules (ceiling, rail exit, thrust-to-weight, delay slack, deployment and landing speeds).
+    uncertainty : Uncertainty
+        A record's firing spread (or ``spreads[i]``) replaces its impulse and burn-time entries.
+    settings : RobustSettings
+    ids : sequence of str, optional
+        Catalog ids reported with each candidate.
+    workers : int
+        Worker processes; the results do not depend on it.
+    progress : callable, optional
+        ``progress(done, total)`` over all sampled flights.
+
+    Returns
+    -------
+    dict
+        ``n_samples``, ``seed``, ``windows`` and ``candidates`` (best first), each with
+        ``p_success`` and ``p_success_standard_error`` (√(p(1−p)/n)), ``apogee_m`` and
+        ``flight_duration_s`` percentiles, the fitted ``delay_s``, the share of flights failing each
+        rule (``failures``) and ``p_difference_to_next_standard_error``, the paired standard
+        error of the difference to the next candidate.
+    """
+    if len(records) == 0:
+        raise ValueError("`records` must not be empty")
+    n = settings.n_samples
+    m = len(records)
+    ds = DispersionSettings(n_samples=n, seed=settings.seed, wind_from_rad=settings.wind_from_rad,
+                            rail_azimuth_rad=settings.rail_azimuth_rad, ceiling_m=match.ceiling_m,
+                            field_radius_m=settings.field_radius_m,
+                            max_deploy_speed_m_s=match.rules.max_ejection_speed_m_s, chunk_size=settings.chunk_size,
+                            flight=settings.flight)
+    spreads = list(spreads) if spreads is not None else [None] * m
+    uncertainties = [uncertainty.for_motor(r.firing_spread or s) for r, s in zip(records, spreads)]
+    delays, nominal_apogee = _nominal(frame, records, ds)
+    motor_index = np.repeat(np.arange(m), n)
+    sample_index = np.tile(np.arange(n), m)  # common random numbers: sample j is the same draw for every motor
+    descent = settings.needs_descent and frame.recovery is not None and frame.recovery.device != "none"
+    flights = run_samples(frame, records, uncertainties, motor_index, sample_index, ds, delays, descent=descent,
+                          workers=workers, progress=progress)
+    flags = _success(flights, frame, match, settings)
+    failed = np.zeros(m * n, dtype=bool)
+    for bad in flags.values():
+        failed |= bad
+    ok = ~failed.reshape(m, n)
+    candidates = []
+    for i, record in enumerate(records):
+        p = float(ok[i].mean())
+        rows = slice(i * n, (i + 1) * n)
+        candidates.append({
+            "motor_id": ids[i] if ids else f"record-{i}", "designation": record.designation, "maker": record.maker,
+            "p_success": p, "p_success_standard_error": math.sqrt(p * (1.0 - p) / n),
+            "apogee_m": _percentiles(flights["apogee_m"][rows]),
+            "nominal_apogee_m": float(nominal_apogee[i]) if np.isfinite(nominal_apogee[i]) else None,
+            "flight_duration_s": _percentiles(flights["flight_duration_s"][rows]),
+            "delay_s": float(delays[i]) if np.isfinite(delays[i]) else None,
+            "failures": {rule: float(bad[rows].mean()) for rule, bad in flags.items()},
+            "firing_spread_used": (record.firing_spread or spreads[i]) is not None,
+            "_ok": ok[i],
+        })
+    target = None if settings.altitude_window_m is None else 0.5 * sum(settings.altitude_window_m)
+    target = target if target is not None else match.target_m
+
+    def key(c: dict[str, Any]) -> tuple:
+        median = c["apogee_m"]["p50"]
+        closeness = abs(median - target) if (target is not None and median is not None) else 0.0
+        return (-c["p_success"], closeness, c["designation"])
+
+    candidates.sort(key=key)
+    for a, b in zip(candidates, candidates[1:] + [None]):
+        if b is None:
+            a["p_difference_to_next_standard_error"] = None
+        else:
+            diff = a["_ok"].astype(float) - b["_ok"].astype(float)
+            a["p_difference_to_next_standard_error"] = float(np.std(diff, ddof=1) / math.sqrt(n))
+    for c in candidates:
+        del c["_ok"]
+    return {"n_samples": n, "seed": settings.seed, "descent_flown": descent,
+            "windows": {"altitude_m": settings.altitude_window_m, "duration_s": settings.duration_window_s,
+                        "field_radius_m": settings.field_radius_m},
+            "uncertainty": uncertainty.as_dict(), "candidates": candidates}

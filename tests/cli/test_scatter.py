@@ -1,0 +1,108 @@
+"""``motorlib scatter`` through click's CliRunner: the JSON contract, the plot, options and the file's table."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from .conftest import AIRFRAMES, run
+
+QUIBBLE = str(AIRFRAMES / "quibble-41.toml")
+
+
+def test_scatter_json_follows_the_contract() -> None:
+    # Issue 12's JSON contract: these exact keys (more are allowed).
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "60", "--seed", "5", "--workers", "1",
+                    "--ceiling", "520", "--field-radius", "400", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["n_flights"] == 60 and data["seed"] == 5
+    assert {"p5", "p50", "p95", "mean", "std"} <= set(data["apogee_m"])
+    assert 0.0 <= data["p_over_ceiling"] <= 1.0 and 0.0 <= data["p_outside_field"] <= 1.0
+    assert set(data["landing"]["ellipse95"]) == {"east_m", "north_m", "semi_major_m", "semi_minor_m", "orientation_deg"}
+
+
+def test_scatter_table_and_plot_and_no_overwrite(tmp_path: Path) -> None:
+    plot = tmp_path / "s.png"
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "40", "--workers", "1", "--target", "480",
+                    "--ceiling", "520", "--field-radius", "400", "--plot", str(plot))
+    assert code == 0, out
+    assert "apogee" in out and "95 % landing ellipse" in out and "range safety officer" in out
+    assert plot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "40", "--plot", str(plot))
+    assert code != 0 and "--overwrite" in out
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "40", "--workers", "1", "--plot", str(plot),
+                    "--overwrite")
+    assert code == 0, out
+
+
+def test_no_uncertainty_gives_the_nominal_apogee_every_time() -> None:
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "5", "--workers", "1", "--no-uncertainty", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["apogee_m"]["std"] < 1e-9
+    assert data["apogee_m"]["p5"] == data["apogee_m"]["p95"] == data["nominal_apogee_m"]
+
+
+def test_the_file_table_and_options_set_the_uncertainty(tmp_path: Path) -> None:
+    frame = tmp_path / "r.toml"
+    frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ndrag = "8 %"\nwind_direction = "10 deg"\n'
+                     'temperature = "3.6 degF"\n')
+    code, out = run("scatter", str(frame), "--motor", "F29-8", "-n", "5", "--workers", "1", "--wind-speed-std",
+                    "2", "--json")
+    assert code == 0, out
+    u = json.loads(out)["uncertainty"]
+    assert u["drag_relative_std"] == 0.08 and u["wind_speed_std_m_s"] == 2.0
+    assert abs(u["wind_direction_std_rad"] - 0.17453292519943295) < 1e-12
+    assert abs(u["pad_temperature_std_k"] - 2.0) < 1e-12
+
+
+def test_bad_uncertainty_entries_name_the_key(tmp_path: Path) -> None:
+    frame = tmp_path / "r.toml"
+    frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ndrag = "lots"\n')
+    code, out = run("scatter", str(frame), "--motor", "F29-8", "-n", "5")
+    assert code == 1 and "uncertainty.drag" in out
+    frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ndarg = "5 %"\n')
+    code, out = run("fly", str(frame), "--motor", "F29-8")
+    assert code == 1 and "uncertainty.darg" in out
+
+
+def test_match_robust_json_and_windows() -> None:
+    code, out = run("match", QUIBBLE, "--robust", "--samples", "20", "--workers", "1", "--allow-smaller-motors",
+                    "--altitude-window", "250m..330m", "--duration-window", "20s..200s", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["n_samples"] == 20 and data["windows"]["altitude_m"] == [250.0, 330.0]
+    best = data["candidates"][0]
+    assert best["designation"] == "E25-7" and best["p_success"] > 0.5
+    assert {"p_success", "p_success_standard_error", "apogee_m", "failures"} <= set(best)
+
+
+def test_match_robust_table_and_bad_window() -> None:
+    code, out = run("match", QUIBBLE, "--robust", "--samples", "10", "--workers", "1", "--allow-smaller-motors",
+                    "--altitude-window", "800ft..1100ft")
+    assert code == 0, out
+    assert "P(success)" in out
+    code, out = run("match", QUIBBLE, "--robust", "--altitude-window", "260m..240m")
+    assert code == 2 and "low end" in out
+
+
+def test_a_measured_firing_spread_replaces_the_motor_default(tmp_path: Path) -> None:
+    from dataclasses import replace
+
+    from motorlib import FiringSpread, write_record
+    from motorlib.files.curvefiles import load_curve_file
+
+    from ..conftest import SAMPLE_DIR
+
+    motor = load_curve_file(SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml")
+    measured = replace(motor, firing_spread=FiringSpread(5, motor.total_impulse_ns, 0.004 * motor.total_impulse_ns,
+                                                         1.7, 0.017))
+    path = tmp_path / "f29-measured.xml"
+    write_record(measured, path)
+    code, out = run("scatter", QUIBBLE, "--motor", str(path), "-n", "5", "--workers", "1", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["firing_spread"]["n_firings"] == 5 and data["firing_spread"]["source"] == "motor record"
+    assert abs(data["uncertainty"]["total_impulse_relative_std"] - 0.004) < 1e-12
+    assert abs(data["uncertainty"]["burn_time_relative_std"] - 0.01) < 1e-12
