@@ -73,6 +73,11 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
     warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
+        from ..present.messages import warning_message
+
+        warnings = [(code, warning_message(code, message, summary, LaunchRules(), shown,
+                                           frame.launch.wind_speed_m_s)) for code, message in warnings]
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))

@@ -8,7 +8,7 @@ from typing import Any
 import click
 
 from .options import _Quantity, display_units
-from .output import _EPILOG, _console
+from .output import _EPILOG, _caution, _console
 
 
 class _Window(click.ParamType):
@@ -115,11 +115,13 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     if opts["as_json"]:
         click.echo(json.dumps(result, indent=2))
         return
-    from ..present.scatter import robust_table
+    from rich.markup import escape
+
+    from ..present.scatter import robust_key, robust_table
 
     console = _console()
-    console.print(robust_table(result, display_units(opts.get("units")), opts["top"]))
-    console.print("P(success): the share of sampled flights meeting every rule and window; ± one standard error. "
-                  "Every motor flies the same sampled conditions, so the differences between motors are sharper "
-                  "than the standard errors suggest (see p_difference_to_next_standard_error in --json).")
-    console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")
+    console.print(robust_table(result, display_units(opts.get("units")), opts["top"], console.width))
+    console.print(escape(robust_key(result)) + " ± is one standard error; every motor flies the same sampled "
+                  "conditions, so the differences between motors are sharper than the standard errors suggest "
+                  "(p_difference_to_next_standard_error in --json).", highlight=False)
+    _caution(console)

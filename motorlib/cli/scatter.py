@@ -43,6 +43,9 @@ class _Relative(click.ParamType):
             self.fail(f"expected a fraction such as 0.03 or a percentage such as 3%, got {value!r}", param, ctx)
         if number < 0:
             self.fail(f"a standard deviation must be at least 0, got {value!r}", param, ctx)
+        if number >= 1.0 and not text.endswith("%"):
+            self.fail(f"{text} would mean {100 * number:g} %; write {text}% for a percentage, or a fraction "
+                      "below 1 such as 0.03", param, ctx)
         return number
 
 
@@ -141,8 +144,9 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
               help="Seed of the random draws; the same seed gives the same flights for any --workers.")
 @click.option("--workers", type=click.IntRange(1), default=None,
               help="Worker processes (default: the machine's cores); the results do not depend on it.")
-@click.option("--delay", "delay_s", type=float, help="Ejection delay fitted before the flight, in s "
-                                                      "(default: the one closest to the nominal optimal delay).")
+@click.option("--delay", "delay_s", type=_Quantity("time", "s"),
+              help="Ejection delay fitted before the flight; a bare number is s (default: the delay on offer "
+                   "closest to the nominal optimal delay).")
 @click.option("--target", "target_m", type=_Quantity("length", "m"), help="Aim altitude, marked on the plot.")
 @click.option("--ceiling", "ceiling_m", type=_Quantity("length", "m"), help="Altitude limit; a bare number is m.")
 @click.option("--field-radius", "field_radius_m", type=_Quantity("length", "m"),

@@ -231,3 +231,12 @@ def test_flight_warnings_follow_the_units_and_never_round_a_failure_away() -> No
     assert warning_message("rail-exit-slow", "", summary, LaunchRules(), DisplayUnits("imperial"), 0.0).startswith(
         "rail exit speed 49.1 ft/s is below 49.2 ft/s")
     assert warning_message("new-code", "library words", summary, LaunchRules(), DisplayUnits(), 0.0) == "library words"
+
+
+def test_fly_card_warnings_follow_the_units_switch() -> None:
+    # 10 oz of ballast slows the rail exit below 15 m/s and the descent above 6.5 m/s: both warnings in ft/s
+    code, out = run("--units", "imperial", "fly", QUIBBLE, "--motor", "F29-8", "--ballast", "10oz")
+    assert code == 0, out
+    flat = " ".join(out.split())
+    assert "descent rate at landing" in flat and "ft/s" in flat
+    assert " m/s" not in flat.split("Assumptions")[0]
