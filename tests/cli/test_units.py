@@ -240,3 +240,21 @@ def test_fly_card_warnings_follow_the_units_switch() -> None:
     flat = " ".join(out.split())
     assert "descent rate at landing" in flat and "ft/s" in flat
     assert " m/s" not in flat.split("Assumptions")[0]
+
+
+@pytest.mark.parametrize("system", ["metric", "imperial"])
+def test_the_template_geometry_block_loads_when_uncommented(tmp_path: Path, system: str) -> None:
+    # the commented [geometry] block is a complete shape: uncommented, `motorlib airframe` can use it at once
+    from motorlib.files.airframe_toml import airframe_template, load_airframe
+
+    text = airframe_template(system)
+    head, block = text.split("# [geometry]\n")
+    uncommented = head + "[geometry]\n" + "\n".join(line[2:] if line.startswith("# ") else line
+                                                  for line in block.splitlines()) + "\n"
+    path = tmp_path / "shaped.toml"
+    path.write_text(uncommented)
+    frame = load_airframe(path)
+    assert frame.geometry is not None and frame.geometry.fins.count == 3
+    code, out = run("airframe", str(path), "--motor", "F29-8", "--json")
+    assert code == 0, out
+    assert json.loads(out)["stability"]["margin_liftoff_cal"] > 1.0  # a sound example shape: stable
