@@ -160,8 +160,8 @@ def _metadata_options(func: Any) -> Any:
                      help="Available ejection delays in seconds, e.g. 3,5,7."),
         click.option("--plugged", is_flag=True, help="No ejection charge (plugged or booster)."),
         click.option("--adjustable-delay", is_flag=True, help="The user may shorten the delay."),
-        click.option("--source-kind", type=click.Choice(SOURCE_KINDS), default="other", show_default=True,
-                     help="Where the curve comes from."),
+        click.option("--source-kind", type=click.Choice(SOURCE_KINDS), default=None,
+                     help="Where the curve comes from (default: other; for reduce: own-firing)."),
         click.option("--test-date", type=click.DateTime(["%Y-%m-%d"]), help="Date of the test, YYYY-MM-DD."),
         click.option("--notes", default="", help="Free-text provenance notes (stand, lot, operator)."),
         click.option("--time-unit", help="Unit of the CSV time column (s, ms) when the header gives none."),
@@ -184,7 +184,7 @@ def _metadata(opts: dict[str, Any]) -> Any:
         length_m=opts["length_m"], total_mass_kg=opts["total_mass_kg"],
         propellant_mass_kg=opts["propellant_mass_kg"], delays_s=opts["delays_s"],
         delay_adjustable=opts["adjustable_delay"], no_ejection_charge=opts["plugged"],
-        provenance=Provenance(kind=opts["source_kind"], date=date, notes=opts["notes"]),
+        provenance=Provenance(kind=opts["source_kind"] or "other", date=date, notes=opts["notes"]),
     )
 
 

@@ -68,7 +68,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         from .output import _write_report
 
         _write_report(None, report_path, overwrite, list(logs) + ([output] if output else []), check_only=True)
-    if opts["source_kind"] == "other":
+    if opts["source_kind"] is None:  # a log from our own stand, unless the user says otherwise
         opts = {**opts, "source_kind": "own-firing"}
     meta = _metadata(opts)
     reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
