@@ -52,12 +52,12 @@ def _parse_flight(spec: str) -> dict[str, Any]:
               help="The motor flown: a curve file, or a motor id, handle or designation in the catalog.")
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find motors in (default: $MOTORLIB_CATALOG, else the user catalog, else the samples).")
-@click.option("--apogee", "apogees_m", type=_Quantity("length", "m"), multiple=True,
+@click.option("--apogee", "apogees_m", type=_Quantity("length", minimum=0.0, strict=True), multiple=True,
               help="A measured apogee above the pad, flown in the file's conditions (repeat for several flights).")
 @click.option("--flight", "flights", multiple=True, metavar="apogee=..[,KEY=..]",
               help="A measured apogee with that day's conditions (repeatable); more keys: wind, temperature, "
                    "pressure, ballast, motor, label.")
-@click.option("--apogee-std", "apogee_std_m", type=_Quantity("length", "m"),
+@click.option("--apogee-std", "apogee_std_m", type=_Quantity("length", minimum=0.0, strict=True),
               help="Standard deviation of each measured apogee (default 1 % of it, from memory).")
 @click.option("--log", "log_path", type=click.Path(exists=True, dir_okay=False),
               help="An altimeter log (CSV: time and altitude, or time and pressure); fits the drag over the coast.")

@@ -17,10 +17,10 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
                    "else the bundled sample curves).")
-@click.option("--delay", "delay_s", type=_Quantity("time"),
+@click.option("--delay", "delay_s", type=_Quantity("time", minimum=0.0),
               help="Ejection delay to use, e.g. 6s; a bare number is s (default: the listed delay closest to the "
                    "optimal one).")
-@click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g"), default=None,
+@click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g", minimum=0.0), default=None,
               help="Mass added to the airframe, with a unit (e.g. 25g, 1.2oz).")
 @_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")

@@ -13,18 +13,18 @@ from .robust import pop_robust, robust_options, run_robust
 
 def _match_options(func: Any) -> Any:
     options = [
-        click.option("--target", "target_m", type=_Quantity("length"),
+        click.option("--target", "target_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="Aim altitude above the pad, e.g. 250m or 800ft; a bare number is m."),
-        click.option("--ceiling", "ceiling_m", type=_Quantity("length"),
+        click.option("--ceiling", "ceiling_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="Never exceed this altitude (the field's limit), e.g. 600m or 2000ft; a bare number is m."),
         click.option("--max-class", type=click.Choice(["1/8A", "1/4A", "1/2A", *"ABCDEFGHIJKLMNO"]),
                      help="Highest impulse class you may fly (your certification)."),
-        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed"), default=None,
+        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed", minimum=0.0, strict=True), default=None,
                      help="Minimum rail exit speed, e.g. 15m/s or 50ft/s (default 15 m/s: common practice, "
                           "no published source)."),
         click.option("--min-thrust-to-weight", type=float, default=5.0, show_default=True,
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
-        click.option("--delay-slack", type=_Quantity("time"), default=None,
+        click.option("--delay-slack", type=_Quantity("time", minimum=0.0), default=None,
                      help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
         click.option("--allow-smaller-motors", is_flag=True, help="Narrower motors fit with an adapter."),
         click.option("--tag", help="Only motors with this catalog tag (e.g. the ones in stock)."),

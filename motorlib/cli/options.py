@@ -22,8 +22,10 @@ class _Quantity(click.ParamType):
     :class:`~motorlib.units.Quantity`), so that reports echo the user's own numbers.
     """
 
-    def __init__(self, kind: str, bare: bool = True, example: str = "") -> None:
-        self.kind, self.bare, self.example = kind, bare, example
+    def __init__(self, kind: str, bare: bool = True, example: str = "", *, default_unit: str | None = None,
+                 minimum: float | None = None, strict: bool = False) -> None:
+        self.kind, self.bare, self.example, self.default_unit = kind, bare, example, default_unit  # unit of a bare number
+        self.minimum, self.strict = minimum, strict  # values below (with strict: at) the minimum are refused
         self.name = f"{kind}"
 
     def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> float:
@@ -37,9 +39,13 @@ class _Quantity(click.ParamType):
             self.fail(f"{text!r} has no unit; give one, e.g. {self.example or _UNIT_EXAMPLES[self.kind]} "
                       "(a bare number would mean the SI unit here)", param, ctx)
         try:
-            return parse_quantity(value, self.kind, field=name, keep_text=True)
+            quantity = parse_quantity(value, self.kind, field=name, keep_text=True, default_unit=self.default_unit)
         except QuantityError as exc:
             self.fail(exc.problem, param, ctx)
+        low = self.minimum
+        if low is not None and (quantity < low or (self.strict and quantity == low)):
+            self.fail(f"{text!r} must be {'more than' if self.strict else 'at least'} {low:g}", param, ctx)
+        return quantity
 
 
 _UNIT_EXAMPLES = {"length": "24mm or 0.95in", "mass": "25g or 0.9oz", "time": "6s", "speed": "15m/s",

@@ -5,6 +5,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import pytest
+
 from .conftest import AIRFRAMES, run
 
 QUIBBLE = str(AIRFRAMES / "quibble-41.toml")
@@ -126,3 +128,17 @@ def test_the_landing_ellipse_centre_is_told_in_compass_words() -> None:
 
     assert _offset(DisplayUnits(), -373.0, "north", "south") == "373 m south"
     assert _offset(DisplayUnits(), 6.0, "east", "west") == "6 m east"
+
+
+def test_bare_numbers_take_the_unit_the_help_states() -> None:
+    # --wind-from's help says a bare number is degrees, --cg-std's that it is mm: 90 must be 90 deg, not 90 rad
+    def summary(*args: str) -> dict:
+        code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "30", "--seed", "2", "--workers", "1",
+                        "--json", *args)
+        assert code == 0, out
+        return json.loads(out)
+
+    assert summary("--wind-from", "90") == summary("--wind-from", "90deg")
+    assert summary("--cg-std", "5")["uncertainty"]["cg_std_m"] == 0.005
+    assert summary("--wind-direction-std", "10")["uncertainty"]["wind_direction_std_rad"] == \
+        pytest.approx(10 * 3.141592653589793 / 180)  # exact by definition of the degree

@@ -258,3 +258,15 @@ def test_the_template_geometry_block_loads_when_uncommented(tmp_path: Path, syst
     code, out = run("airframe", str(path), "--motor", "F29-8", "--json")
     assert code == 0, out
     assert json.loads(out)["stability"]["margin_liftoff_cal"] > 1.0  # a sound example shape: stable
+
+
+@pytest.mark.parametrize(("args", "option"), [
+    (("match", QUIBBLE, "--target", "-5"), "--target"),
+    (("match", QUIBBLE, "--ceiling", "0"), "--ceiling"),
+    (("fly", QUIBBLE, "--motor", "F29-8", "--ballast", "-50g"), "--ballast"),
+    (("fly", QUIBBLE, "--motor", "F29-8", "--delay", "-3"), "--delay"),
+    (("descent", "--mass", "1kg", "--drag-area", "0.1", "--height", "-100"), "--height"),
+])
+def test_signs_that_make_no_sense_are_refused_with_the_option_name(args: tuple[str, ...], option: str) -> None:
+    code, out = run(*args)
+    assert code == 2 and option in out and "_m" not in out and "_kg" not in out, out
