@@ -51,6 +51,18 @@ _DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "degF": 5.0 / 9.0}
 _PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
+def _read_toml(path: str | os.PathLike[str]) -> dict[str, Any]:
+    """The TOML document at ``path``; a syntax or file error names the file."""
+    source = str(path)
+    try:
+        with open(path, "rb") as handle:
+            return tomllib.load(handle)
+    except tomllib.TOMLDecodeError as exc:
+        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
+    except OSError as exc:
+        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
+
+
 def load_airframe(path: str | os.PathLike[str]) -> Airframe:
     """Read an airframe TOML file.
 
@@ -60,14 +72,7 @@ def load_airframe(path: str | os.PathLike[str]) -> Airframe:
         Naming the file and the key: a missing key, a wrong unit, a value out of range.
     """
     source = str(path)
-    try:
-        with open(path, "rb") as handle:
-            data = tomllib.load(handle)
-    except tomllib.TOMLDecodeError as exc:
-        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
-    except OSError as exc:
-        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
-    return airframe_from_dict(data, source)
+    return airframe_from_dict(_read_toml(path), source)
 
 
 def _quantity(source: str, table: dict[str, Any], section: str, key: str, kind: str, *,
@@ -371,14 +376,7 @@ def load_uncertainty(path: str | os.PathLike[str], base: Any = None) -> Any:
         Naming the file and the key.
     """
     source = str(path)
-    try:
-        with open(path, "rb") as handle:
-            data = tomllib.load(handle)
-    except tomllib.TOMLDecodeError as exc:
-        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
-    except OSError as exc:
-        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
-    return uncertainty_from_dict(data, source, base)
+    return uncertainty_from_dict(_read_toml(path), source, base)
 
 
 def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: Any = None) -> Any:
