@@ -18,9 +18,9 @@ from pathlib import Path
 import pytest
 
 PACKAGE = Path(__file__).resolve().parent.parent / "motorlib"
-LAYERS = ["errors", "units", "motor", "flight", "matching", "files", "catalog", "present", "cli"]
-# errors and units are one layer (units raises QuantityError): both sit at rank 0.
-RANK = {name: max(0, i - 1) for i, name in enumerate(LAYERS)}
+LAYERS = ["errors", "units", "safety", "motor", "flight", "matching", "files", "catalog", "present", "cli"]
+# errors, units and safety are one layer (units raises QuantityError): all three sit at rank 0.
+RANK = {name: max(0, i - 2) for i, name in enumerate(LAYERS)}
 
 # Third-party packages each layer must not import (directly or inside a function).
 FORBIDDEN = {
@@ -32,6 +32,7 @@ FORBIDDEN = {
     "present": {"click"},
     "errors": {"numpy", "lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
     "units": {"numpy", "lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
+    "safety": {"numpy", "lxml", "sqlite3", "pandas", "click", "rich", "matplotlib", "scipy"},
 }
 
 

@@ -6,8 +6,7 @@ import json
 import sys
 from typing import Any
 
-_EPILOG = ("Predictions are estimates. Follow your national rocketry association's safety code, local law and "
-           "the launch site's rules; the range safety officer decides; fly only motors within your certification.")
+from ..safety import SAFETY_CAUTION as _EPILOG
 
 
 def _console() -> Any:

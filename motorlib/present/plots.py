@@ -14,6 +14,7 @@ from pathlib import Path
 import numpy as np
 
 from ..files.fsio import write_atomic
+from ..safety import CHART_CAUTION as _CAUTION
 from .display import DisplayUnits
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE
 
@@ -22,7 +23,6 @@ __all__ = ["airframe_plot", "calibration_plot", "curves_plot", "flight_plot", "m
 
 _MARKERS = {"rail exit": "^", "burnout": "s", "apogee": "o", "deployment": "D", "ejection": "D", "landing": "v"}
 _CYCLE = [(INK, "-"), (BLUE, "--"), (ORANGE, "-"), (INK, ":"), (BLUE, "-."), (ORANGE, "--"), (MUTED, "-")]
-_CAUTION = "Predictions are estimates; the range safety officer decides."
 _METRIC = DisplayUnits()
 
 
@@ -46,7 +46,7 @@ def _save(fig, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
 
 def _finish(plt, fig, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
     """Add the caution line, write ``fig`` as PNG to ``path`` and close it."""
-    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    fig.text(0.01, 0.005, _CAUTION, fontsize=7, color="gray")
     try:
         return _save(fig, path, overwrite=overwrite)
     finally:
@@ -374,7 +374,7 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
     ax_cd.grid(alpha=0.3, color=_MID)
     ax_cd.legend(fontsize=8, loc="upper right")
     fig.tight_layout()
-    fig.text(0.01, 0.002, "Predictions are estimates; the range safety officer decides.", fontsize=7, color=_MID)
+    fig.text(0.01, 0.002, _CAUTION, fontsize=7, color=_MID)
     try:
         out = _save(fig, path, overwrite=overwrite)
     finally:

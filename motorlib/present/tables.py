@@ -28,13 +28,9 @@ from ..motor.classes import class_impulse_text, impulse_class_for
 from .display import DisplayUnits
 from .messages import reason_text, short_code, warning_message
 
-__all__ = ["SAFETY_CAUTION", "WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
+__all__ = ["WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
            "findings_text", "flight_table", "impulse_text", "match_table"]
 
-SAFETY_CAUTION = (
-    "Caution: predictions are estimates. Follow your national rocketry association's safety code, local law "
-    "and the launch site's rules; the range safety officer decides; fly only motors within your certification."
-)
 WIDE = 110  # from this terminal width on, tables add their extra columns
 
 _SEVERITY_STYLE = {"error": "bold red", "warning": "yellow", "note": "cyan", "unreadable": "bold red"}
