@@ -10,10 +10,11 @@ from .output import _console
 
 
 @click.command()
-@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default="motorlib-demo.png", show_default=True,
-              help="Where to write the chart of apogee per motor.")
+@click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
+              help="Where to write the chart of apogee per motor (default: motorlib-demo.png, or the first free "
+                   "motorlib-demo-N.png: the demo never replaces a file).")
 @_units_option
-def demo(plot_path: str, units: str | None) -> None:
+def demo(plot_path: str | None, units: str | None) -> None:
     """Run the main job end to end on bundled data: rank the sample motors for a demo airframe.
 
     The demo airframe (a 41.6 mm sport model with a 29 mm mount) aims at 400 m
@@ -25,6 +26,9 @@ def demo(plot_path: str, units: str | None) -> None:
       motorlib demo --units imperial --plot demo.png
     """
     from ..files.curvefiles import sample_catalog_dir
+
+    if plot_path is None:
+        plot_path = _free_name("motorlib-demo", ".png")
 
     airframe = sample_catalog_dir() / "airframes" / "quibble-41.toml"
     from ..units import parse_quantity
@@ -39,3 +43,13 @@ def demo(plot_path: str, units: str | None) -> None:
     _console().print(f"Demo: airframe {airframe.name}, bundled sample catalog, target {target.text}, ceiling "
                      f"{ceiling.text}, motors for the 29 mm mount and smaller ones through adapters, with ballast.")
     _run_match(str(airframe), _open_catalog(str(sample_catalog_dir())), opts)
+
+
+def _free_name(stem: str, suffix: str) -> str:
+    """``stem + suffix`` in the working folder, or ``stem-N + suffix`` with the first N that names no file."""
+    import os
+
+    name, n = stem + suffix, 1
+    while os.path.lexists(name):
+        name, n = f"{stem}-{n}{suffix}", n + 1
+    return name

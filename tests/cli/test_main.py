@@ -4,6 +4,9 @@ from __future__ import annotations
 
 import subprocess
 import sys
+from pathlib import Path
+
+import pytest
 
 from .conftest import run
 
@@ -21,3 +24,13 @@ def test_python_dash_m_runs_the_same_group() -> None:
     result = subprocess.run([sys.executable, "-m", "motorlib", "--version"], capture_output=True, text=True,
                             check=True)
     assert "motorlib" in result.stdout
+
+
+def test_demo_never_replaces_a_file_and_runs_again(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # The README's first command may be run twice: the second run writes beside the first chart, not over it.
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "motorlib-demo.png").write_bytes(b"an older chart")
+    code, out = run("demo")
+    assert code == 0, out
+    assert (tmp_path / "motorlib-demo.png").read_bytes() == b"an older chart"
+    assert (tmp_path / "motorlib-demo-1.png").read_bytes()[:4] == b"\x89PNG" and "motorlib-demo-1.png" in out
