@@ -23,6 +23,7 @@ delays-differ-from-label   warning   a labelled delay is not among the listed on
 beyond-class-o             warning   impulse above 40 960.00 N·s, outside the class table
 few-samples                warning   too few samples to describe the curve's shape
 start-not-near-zero        warning   first sample well above zero thrust
+late-ignition              warning   thrust rises long after the first sample (a raw log's run-up kept)
 end-not-near-zero          warning   last sample well above zero thrust (curve cut off)
 isp-implausible            warning   specific impulse outside the range of hobby propellants
 burn-time-implausible      warning   burn time outside the range of hobby motors
@@ -91,6 +92,10 @@ class CheckSettings:
         0.05: common practice, no published source.
     min_samples : int
         Fewer samples draw a warning. 8: common practice, no published source.
+    max_ignition_delay_s : float
+        Longest time from the first sample to the start of the burn window [s] before the curve is taken for a
+        raw log whose run-up was kept (time 0 of a thrust curve is ignition, and a simulation counts the
+        liftoff and the delay from it). 0.1 s: common practice, no published source.
     isp_range_s : (float, float)
         Plausible specific impulse of hobby propellants [s]. 50-300 s: common
         practice, no published source (check-values.md 4.1: black powder about
@@ -104,6 +109,7 @@ class CheckSettings:
     total_impulse_tolerance: float = 0.10
     edge_fraction: float = 0.05
     min_samples: int = 8
+    max_ignition_delay_s: float = 0.1
     isp_range_s: tuple[float, float] = (50.0, 300.0)
     burn_time_range_s: tuple[float, float] = (0.02, 30.0)
 
@@ -203,6 +209,12 @@ def _shape_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
         out.append(Finding("warning", "start-not-near-zero",
                            f"the first sample is {record.thrust_n[0]:.4g} N, {100 * record.thrust_n[0] / peak:.0f} % "
                            f"of peak; a curve should start near 0 N (add a sample at ignition)", "samples"))
+    start_s = record.burn_window_s(s.burn_threshold)[0] - float(record.time_s[0])
+    if start_s > s.max_ignition_delay_s:
+        out.append(Finding("warning", "late-ignition",
+                           f"thrust first reaches {100 * s.burn_threshold:.0f} % of peak {start_s:.3g} s after the "
+                           f"first sample; time 0 of a thrust curve is ignition. Trim the run-up (motorlib reduce "
+                           "does this for raw stand logs)", "samples"))
     if record.thrust_n[-1] > s.edge_fraction * peak:
         out.append(Finding("warning", "end-not-near-zero",
                            f"the last sample is {record.thrust_n[-1]:.4g} N, {100 * record.thrust_n[-1] / peak:.0f} % "

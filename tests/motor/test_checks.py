@@ -27,6 +27,7 @@ CHECK_FINDINGS = {
     "delays_differ_from_label.xml": ("warning", "delays-differ-from-label"),
     "few_samples.xml": ("warning", "few-samples"),
     "start_not_near_zero.xml": ("warning", "start-not-near-zero"),
+    "late_ignition.xml": ("warning", "late-ignition"),
     "end_not_near_zero.xml": ("warning", "end-not-near-zero"),
     "isp_implausible.xml": ("warning", "isp-implausible"),
     "burn_time_implausible.xml": ("warning", "burn-time-implausible"),
