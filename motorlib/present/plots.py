@@ -255,6 +255,35 @@ def reduction_plot(reduction, title: str, path: str | os.PathLike[str], burn_thr
     return out
 
 
+def series_plot(reductions: list, title: str, path: str | os.PathLike[str]) -> Path:
+    """Every firing of a test series from its own ignition (each its own line style), their mean and the band of
+    ±1 standard deviation around it; every line and the band are in the legend."""
+    plt = _figure()
+    fig, ax = plt.subplots(figsize=(9, 4.8))
+    end = max(float(r.filtered_time_s[-1]) for _, r in reductions)
+    grid = np.linspace(0.0, end, 600)
+    curves = np.array([np.interp(grid, r.filtered_time_s, r.filtered_thrust_n, left=0.0, right=0.0)
+                       for _, r in reductions])
+    mean, std = curves.mean(axis=0), curves.std(axis=0, ddof=1)
+    ax.fill_between(grid, np.maximum(mean - std, 0.0), mean + std, color=BLUE_TINT, zorder=0,
+                    label="mean ± 1 standard deviation")
+    styles = ["-", "--", "-.", ":"]
+    for k, (name, r) in enumerate(reductions):
+        ax.plot(r.filtered_time_s, r.filtered_thrust_n, color=MUTED, linewidth=1.0, linestyle=styles[k % len(styles)],
+                label=name)
+    ax.plot(grid, mean, color=INK, linewidth=2.0, label=f"mean of {len(reductions)} firings")
+    ax.set_xlabel("time from ignition (s)")
+    ax.set_ylabel("thrust (N)")
+    ax.set_title(title + " (each from its own ignition)", loc="left", fontsize=10)
+    ax.set_xlim(0.0, end * 1.03)
+    ax.set_ylim(0.0, float(curves.max()) * 1.12)
+    ax.grid(True)
+    ax.legend(fontsize=7.5)
+    out = _save(fig, path)
+    plt.close(fig)
+    return out
+
+
 # Grey levels (0 black, 1 white) that stay apart when printed in greyscale; line styles carry the rest.
 _INK, _MID, _LIGHT, _FILL = "0.1", "0.45", "0.65", "0.88"
 # Our own position markers: CG a diamond (filled at liftoff, hollow at burnout, a cross without motor), CP a

@@ -143,6 +143,11 @@ def _status(report: CheckReport) -> Text:
     return Text("sound", style="green")
 
 
+def check_status_line(report: CheckReport) -> Text:
+    """``Log firing-2.csv  warnings``: the head of one log's check block."""
+    return Text.assemble(("Log ", "bold"), escape(Path(report.source).name), "  ", _status(report))
+
+
 def check_summary_table(reports: list[CheckReport], units: DisplayUnits = _METRIC, width: int = 80) -> Table:
     """One row per checked file; ``--details`` shows the rest (peak, masses, delays).
 
@@ -661,6 +666,22 @@ def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
                     f"{u.number(ti['max'], 'impulse', d)}), burn {u.number(bt['mean'], 'time')} ± "
                     f"{u.number(bt['std'], 'time')} s\n")
     return text
+
+
+def firings_table(summary: list[dict[str, Any]], units: DisplayUnits = _METRIC) -> Table:
+    """One row per firing of a test series: impulse, peak, burn time, average thrust, class and percent into it."""
+    u = units
+    table = _table(f"{len(summary)} firings")
+    table.add_column("firing", no_wrap=True, overflow="ellipsis", max_width=28)
+    for name in ("impulse N·s", "peak N", "burn s", "average N", "class"):
+        _right(table, name)
+    impulses = [e["total_impulse_ns"] for e in summary]
+    d = u.column_decimals(impulses, "impulse", significant=4)
+    for e in summary:
+        table.add_row(escape(Path(e["file"]).name), _impulse(u, e["total_impulse_ns"], d),
+                      f"{e['peak_thrust_n']:,.1f}", f"{e['burn_time_s']:.2f}", f"{e['average_thrust_n']:,.1f}",
+                      _cls(e["impulse_class"], e["class_percent"]))
+    return _lock_widths(table, "firing", 80)
 
 
 # ----------------------------------------------------------------------------- airframe
