@@ -44,7 +44,9 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     tared from the readings before ignition, the data filtered, ignition and
     burnout found, and the curve reduced to at most --points points; the
     result is checked against --designation when given. The provenance kind
-    defaults to own-firing.
+    defaults to own-firing. Several logs give a table of the firings and a
+    check of each log; --plot then overlays them with their mean. The exit
+    status is 1 when any check finds an error.
 
     \b
     Example:
