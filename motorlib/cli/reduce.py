@@ -7,7 +7,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options, _units_option, display_units
+from .options import _metadata_for, _metadata_options, _units_option, display_units
 from .output import _console
 
 
@@ -71,9 +71,10 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         from .output import _write_report
 
         _write_report(None, report_path, overwrite, list(logs) + ([output] if output else []), check_only=True)
-    if opts["source_kind"] == "other":
-        opts = {**opts, "source_kind": "own-firing"}
-    meta = _metadata(opts)
+    meta = _metadata_for(opts, list(logs))
+    meta = meta(logs[0]) if callable(meta) else meta  # a series is one motor: the first log's entry
+    if meta.provenance.kind == "other":
+        meta = replace(meta, provenance=replace(meta.provenance, kind="own-firing"))
     reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
     if combine:
         time_s, thrust_n, spread = combine_reductions([r for _, r in reductions], points)
