@@ -223,7 +223,8 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
         nowrap=(False, True, False, False, False, False, False, False))
     conditions = Facts("Conditions and rules", (
         ("airframe", f"{result.airframe['name']}, {quantity(result.airframe['mass_kg'], 'mass', u)} empty"),
-        ("target", "-" if not c.get("target_m") else quantity(c["target_m"], "length", u)),
+        ("target", "-" if not c.get("target_m") else
+         f"{quantity(c['target_m'], 'length', u)} ±{c.get('target_tolerance', 0.05) * 100:g} %"),
         ("ceiling", "-" if not c.get("ceiling_m") else quantity(c["ceiling_m"], "length", u)),
         ("class limit", c.get("max_class") or "none"),
         ("rail exit", f">= {quantity(c['min_rail_exit_speed_m_s'], 'speed', u)}"),
