@@ -48,7 +48,8 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
     frame = load_airframe(airframe_file)
     if frame.geometry is None:
         raise click.ClickException(f"{airframe_file}: [geometry]: missing section; this command needs the "
-                                   "airframe's shape (see data_schema/AIRFRAME.md)")
+                                   "airframe's shape (see data_schema/AIRFRAME.md; `motorlib new-airframe` writes a "
+                                   "commented example block to start from)")
     motor = None if motor_ref is None else _load_motor(motor_ref, catalog_dir)[0]
     inputs = [airframe_file] + ([motor_ref] if motor_ref is not None and os.path.isfile(motor_ref) else [])
     if plot_path:

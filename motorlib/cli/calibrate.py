@@ -52,23 +52,24 @@ def _parse_flight(spec: str) -> dict[str, Any]:
               help="The motor flown: a curve file, or a motor id, handle or designation in the catalog.")
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find motors in (default: $MOTORLIB_CATALOG, else the user catalog, else the samples).")
-@click.option("--apogee", "apogees_m", type=_Quantity("length", "m"), multiple=True,
+@click.option("--apogee", "apogees_m", type=_Quantity("length", minimum=0.0, strict=True), multiple=True,
               help="A measured apogee above the pad, flown in the file's conditions (repeat for several flights).")
 @click.option("--flight", "flights", multiple=True, metavar="apogee=..[,KEY=..]",
               help="A measured apogee with that day's conditions (repeatable); more keys: wind, temperature, "
                    "pressure, ballast, motor, label.")
-@click.option("--apogee-std", "apogee_std_m", type=_Quantity("length", "m"),
+@click.option("--apogee-std", "apogee_std_m", type=_Quantity("length", minimum=0.0, strict=True),
               help="Standard deviation of each measured apogee (default 1 % of it, from memory).")
 @click.option("--log", "log_path", type=click.Path(exists=True, dir_okay=False),
               help="An altimeter log (CSV: time and altitude, or time and pressure); fits the drag over the coast.")
 @click.option("--write", is_flag=True, help="Write the fitted drag into AIRFRAME_FILE (a backup .bak is kept).")
+@click.option("--force", is_flag=True, help="With --write: write a fitted drag outside the usual range too.")
 @click.option("--json", "as_json", is_flag=True, help="Print the fit as JSON (SI).")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
               help="Write measured against simulated to this PNG file.")
 @click.option("--overwrite", is_flag=True, help="Replace an existing --plot file.")
 def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apogees_m: tuple[float, ...],
               flights: tuple[str, ...], apogee_std_m: float | None, log_path: str | None, write: bool,
-              as_json: bool, plot_path: str | None, overwrite: bool) -> None:
+              force: bool, as_json: bool, plot_path: str | None, overwrite: bool) -> None:
     """Fit the drag of AIRFRAME_FILE to what flights really did.
 
     With measured apogees (--apogee, --flight) the constant Cd, or a scale on
@@ -126,6 +127,12 @@ def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apoge
         raise click.UsageError(str(exc).replace("`", "")) from None
     kind = cal.drag_kind(frame)
     value = result[kind]
+    result["file_value"] = cal.nominal_drag(frame)
+    doubt = cal.implausible_drag(kind, value)
+    if doubt:
+        result.setdefault("notes", []).insert(0, f"Warning: {doubt}.")
+        if write and not force:
+            raise click.UsageError(f"not written: {doubt}; add --force to write it anyway")
     written = []
     if plot_path:
         from ..present.plots import calibration_plot

@@ -37,5 +37,5 @@ def demo(plot_path: str, units: str | None) -> None:
                 units=shown.system, as_json=False, as_csv=False, plot_path=plot_path, report_path=None,
                 overwrite=False)
     _console().print(f"Demo: airframe {airframe.name}, bundled sample catalog, target {target.text}, ceiling "
-                     f"{ceiling.text}, 24 and 29 mm motors (adapters allowed), with ballast.")
+                     f"{ceiling.text}, motors for the 29 mm mount and smaller ones through adapters, with ballast.")
     _run_match(str(airframe), _open_catalog(str(sample_catalog_dir())), opts)

@@ -11,16 +11,16 @@ from .output import _caution, _console
 
 
 @click.command()
-@click.option("--mass", "mass_kg", type=_Quantity("mass", bare=False, example="450g"),
+@click.option("--mass", "mass_kg", type=_Quantity("mass", bare=False, example="450g", minimum=0.0, strict=True),
               help="Mass under the device, with a unit (e.g. 450g, 1.2kg, 16oz).")
-@click.option("--drag-area", "drag_area_m2", type=_Quantity("area"),
+@click.option("--drag-area", "drag_area_m2", type=_Quantity("area", minimum=0.0),
               help="Cd·A of the device, e.g. 0.18m2 or 280in2; a bare number is m².")
 @click.option("--cd", "drag_coefficient", type=click.FloatRange(min=0, min_open=True),
               help="Drag coefficient of the device (with --diameter).")
-@click.option("--diameter", "diameter_m", type=_Quantity("length"),
+@click.option("--diameter", "diameter_m", type=_Quantity("length", minimum=0.0, strict=True),
               help="Device diameter (with --cd), e.g. 0.6m or 24in; a bare number is m.")
-@click.option("--height", "height_m", type=_Quantity("length"), help="Height fallen, e.g. 300m or 1000ft; a bare number is m.")
-@click.option("--fall-time", "fall_time_s", type=_Quantity("time"),
+@click.option("--height", "height_m", type=_Quantity("length", minimum=0.0, strict=True), help="Height fallen, e.g. 300m or 1000ft; a bare number is m.")
+@click.option("--fall-time", "fall_time_s", type=_Quantity("time", minimum=0.0, strict=True),
               help="Observed time to fall --height, e.g. 9.5s (read off a launch video); a bare number is s.")
 @click.option("--elevation", "elevation_m", type=_Quantity("length"), default=None,
               help="Site elevation for the air density (standard atmosphere), e.g. 120m or 4000ft; default 0.")

@@ -17,10 +17,10 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
                    "else the bundled sample curves).")
-@click.option("--delay", "delay_s", type=_Quantity("time"),
+@click.option("--delay", "delay_s", type=_Quantity("time", minimum=0.0),
               help="Ejection delay to use, e.g. 6s; a bare number is s (default: the listed delay closest to the "
                    "optimal one).")
-@click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g"), default=None,
+@click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g", minimum=0.0), default=None,
               help="Mass added to the airframe, with a unit (e.g. 25g, 1.2oz).")
 @_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
@@ -73,6 +73,11 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
     warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
+        from ..present.messages import warning_message
+
+        warnings = [(code, warning_message(code, message, summary, LaunchRules(), shown,
+                                           frame.launch.wind_speed_m_s)) for code, message in warnings]
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))

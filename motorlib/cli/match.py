@@ -31,28 +31,28 @@ class _Tolerance(click.ParamType):
         try:
             float(text)
         except ValueError:
-            return ("length", _Quantity("length").convert(text, param, ctx))
+            return ("length", _Quantity("length", minimum=0.0, strict=True).convert(text, param, ctx))
         self.fail(f"{text!r} has no unit; give a percentage of the target such as 5% or a length such as 20m",
                   param, ctx)
 
 
 def _match_options(func: Any) -> Any:
     options = [
-        click.option("--target", "target_m", type=_Quantity("length"),
+        click.option("--target", "target_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="Aim altitude above the pad, e.g. 250m or 800ft; a bare number is m."),
         click.option("--target-tolerance", "target_tolerance", type=_Tolerance(), default=None,
                      help="How far from the target still counts as on target: 10% or 30m (default 5%). "
                           "A safe motor outside it is 'off target'."),
-        click.option("--ceiling", "ceiling_m", type=_Quantity("length"),
+        click.option("--ceiling", "ceiling_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="Never exceed this altitude (the field's limit), e.g. 600m or 2000ft; a bare number is m."),
         click.option("--max-class", type=click.Choice(["1/8A", "1/4A", "1/2A", *"ABCDEFGHIJKLMNO"]),
                      help="Highest impulse class you may fly (your certification)."),
-        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed"), default=None,
+        click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed", minimum=0.0, strict=True), default=None,
                      help="Minimum rail exit speed, e.g. 15m/s or 50ft/s (default 15 m/s: common practice, "
                           "no published source)."),
         click.option("--min-thrust-to-weight", type=float, default=5.0, show_default=True,
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
-        click.option("--delay-slack", type=_Quantity("time"), default=None,
+        click.option("--delay-slack", type=_Quantity("time", minimum=0.0), default=None,
                      help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
         click.option("--allow-smaller-motors", is_flag=True,
                      help="Narrower motors fit with an adapter, up to --adapter-steps standard sizes down."),

@@ -22,8 +22,10 @@ class _Quantity(click.ParamType):
     :class:`~motorlib.units.Quantity`), so that reports echo the user's own numbers.
     """
 
-    def __init__(self, kind: str, bare: bool = True, example: str = "") -> None:
-        self.kind, self.bare, self.example = kind, bare, example
+    def __init__(self, kind: str, bare: bool = True, example: str = "", *, default_unit: str | None = None,
+                 minimum: float | None = None, strict: bool = False) -> None:
+        self.kind, self.bare, self.example, self.default_unit = kind, bare, example, default_unit  # unit of a bare number
+        self.minimum, self.strict = minimum, strict  # values below (with strict: at) the minimum are refused
         self.name = f"{kind}"
 
     def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> float:
@@ -37,9 +39,13 @@ class _Quantity(click.ParamType):
             self.fail(f"{text!r} has no unit; give one, e.g. {self.example or _UNIT_EXAMPLES[self.kind]} "
                       "(a bare number would mean the SI unit here)", param, ctx)
         try:
-            return parse_quantity(value, self.kind, field=name, keep_text=True)
+            quantity = parse_quantity(value, self.kind, field=name, keep_text=True, default_unit=self.default_unit)
         except QuantityError as exc:
             self.fail(exc.problem, param, ctx)
+        low = self.minimum
+        if low is not None and (quantity < low or (self.strict and quantity == low)):
+            self.fail(f"{text!r} must be {'more than' if self.strict else 'at least'} {low:g}", param, ctx)
+        return quantity
 
 
 _UNIT_EXAMPLES = {"length": "24mm or 0.95in", "mass": "25g or 0.9oz", "time": "6s", "speed": "15m/s",
@@ -160,8 +166,8 @@ def _metadata_options(func: Any) -> Any:
                      help="Available ejection delays in seconds, e.g. 3,5,7."),
         click.option("--plugged", is_flag=True, help="No ejection charge (plugged or booster)."),
         click.option("--adjustable-delay", is_flag=True, help="The user may shorten the delay."),
-        click.option("--source-kind", type=click.Choice(SOURCE_KINDS), default="other", show_default=True,
-                     help="Where the curve comes from."),
+        click.option("--source-kind", type=click.Choice(SOURCE_KINDS), default=None,
+                     help="Where the curve comes from (default: other; for reduce: own-firing)."),
         click.option("--test-date", type=click.DateTime(["%Y-%m-%d"]), help="Date of the test, YYYY-MM-DD."),
         click.option("--notes", default="", help="Free-text provenance notes (stand, lot, operator)."),
         click.option("--meta", "meta_file", type=click.Path(exists=True, dir_okay=False),
@@ -187,7 +193,7 @@ def _metadata(opts: dict[str, Any]) -> Any:
         length_m=opts["length_m"], total_mass_kg=opts["total_mass_kg"],
         propellant_mass_kg=opts["propellant_mass_kg"], delays_s=opts["delays_s"],
         delay_adjustable=opts["adjustable_delay"], no_ejection_charge=opts["plugged"],
-        provenance=Provenance(kind=opts["source_kind"], date=date, notes=opts["notes"]),
+        provenance=Provenance(kind=opts["source_kind"] or "other", date=date, notes=opts["notes"]),
     )
 
 
@@ -195,15 +201,17 @@ def _metadata(opts: dict[str, Any]) -> Any:
 _GIVEN = {"designation": ("designation", None), "maker": ("maker", ""), "diameter_m": ("diameter", None),
           "length_m": ("length", None), "total_mass_kg": ("total_mass", None),
           "propellant_mass_kg": ("propellant_mass", None), "delays_s": ("delays", ()), "plugged": ("plugged", False),
-          "adjustable_delay": ("adjustable_delay", False), "source_kind": ("source_kind", "other"),
+          "adjustable_delay": ("adjustable_delay", False), "source_kind": ("source_kind", None),
           "test_date": ("test_date", None), "notes": ("notes", "")}
 
 
-def _metadata_for(opts: dict[str, Any], csv_paths: list[Any] = (), report_unused: bool = False) -> Any:
+def _metadata_for(opts: dict[str, Any], csv_paths: list[Any] = (), report_unused: bool = False,
+                  default_kind: str = "other") -> Any:
     """Metadata per CSV file: ``path -> CurveMetadata`` from ``--meta`` under the options given, or the options'
     :class:`CurveMetadata` when there is no side file. With ``report_unused``, tables naming none of
-    ``csv_paths`` (a misspelt file name) are reported on stderr."""
-    base = _metadata(opts)
+    ``csv_paths`` (a misspelt file name) are reported on stderr. ``default_kind`` is the provenance kind when
+    neither ``--source-kind`` nor the side file gives one."""
+    base = _metadata(opts if opts.get("source_kind") else {**opts, "source_kind": default_kind})
     if not opts.get("meta_file"):
         return base
     from ..errors import CurveError

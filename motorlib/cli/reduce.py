@@ -71,10 +71,9 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         from .output import _write_report
 
         _write_report(None, report_path, overwrite, list(logs) + ([output] if output else []), check_only=True)
-    meta = _metadata_for(opts, list(logs))
+    # a log from our own stand, unless the option or the side file says otherwise
+    meta = _metadata_for(opts, list(logs), default_kind="own-firing")
     meta = meta(logs[0]) if callable(meta) else meta  # a series is one motor: the first log's entry
-    if meta.provenance.kind == "other":
-        meta = replace(meta, provenance=replace(meta.provenance, kind="own-firing"))
     reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
     if combine:
         time_s, thrust_n, spread = combine_reductions([r for _, r in reductions], points)

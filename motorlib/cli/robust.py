@@ -8,7 +8,7 @@ from typing import Any
 import click
 
 from .options import _Quantity, display_units
-from .output import _EPILOG, _console
+from .output import _EPILOG, _caution, _console
 
 
 class _Window(click.ParamType):
@@ -30,7 +30,7 @@ class _Window(click.ParamType):
             except ValueError:
                 self.fail(f"expected LOW..HIGH in seconds such as 41s..44s, got {value!r}", param, ctx)
         else:
-            quantity = _Quantity(self.kind, self.default_unit)
+            quantity = _Quantity(self.kind, default_unit=self.default_unit, minimum=0.0)
             low, high = (quantity.convert(p.strip(), param, ctx) for p in parts)
         if not 0.0 <= low < high:
             self.fail(f"the window's low end must be at least 0 and below its high end, got {value!r}", param, ctx)
@@ -51,9 +51,9 @@ def robust_options(func: Any) -> Any:
                      help="With --robust: apogee window, e.g. 240m..260m."),
         click.option("--duration-window", type=_Window("time", "s"),
                      help="With --robust: liftoff-to-landing window, e.g. 41s..44s."),
-        click.option("--field-radius", "field_radius_m", type=_Quantity("length", "m"),
+        click.option("--field-radius", "field_radius_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="With --robust: landing farther from the pad fails; a bare number is m."),
-        click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", "deg"), default="0 deg",
+        click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", default_unit="deg"), default="0 deg",
                      help="With --robust: direction the wind blows from (degrees from north)."),
     ]
     for option in reversed(options):
@@ -115,11 +115,13 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     if opts["as_json"]:
         click.echo(json.dumps(result, indent=2))
         return
-    from ..present.scatter import robust_table
+    from rich.markup import escape
+
+    from ..present.scatter import robust_key, robust_table
 
     console = _console()
-    console.print(robust_table(result, display_units(opts.get("units")), opts["top"]))
-    console.print("P(success): the share of sampled flights meeting every rule and window; ± one standard error. "
-                  "Every motor flies the same sampled conditions, so the differences between motors are sharper "
-                  "than the standard errors suggest (see p_difference_to_next_standard_error in --json).")
-    console.print(f"[bold yellow]Caution:[/bold yellow] {_EPILOG}")
+    console.print(robust_table(result, display_units(opts.get("units")), opts["top"], console.width))
+    console.print(escape(robust_key(result)) + " ± is one standard error; every motor flies the same sampled "
+                  "conditions, so the differences between motors are sharper than the standard errors suggest "
+                  "(p_difference_to_next_standard_error in --json).", highlight=False)
+    _caution(console)

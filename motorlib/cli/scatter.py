@@ -43,6 +43,9 @@ class _Relative(click.ParamType):
             self.fail(f"expected a fraction such as 0.03 or a percentage such as 3%, got {value!r}", param, ctx)
         if number < 0:
             self.fail(f"a standard deviation must be at least 0, got {value!r}", param, ctx)
+        if number >= 1.0 and not text.endswith("%"):
+            self.fail(f"{text} would mean {100 * number:g} %; write {text}% for a percentage, or a fraction "
+                      "below 1 such as 0.03", param, ctx)
         return number
 
 
@@ -75,7 +78,7 @@ def _std_options(func: Any) -> Any:
         elif kind == "difference":
             ptype, hint = _Difference(), "in K (e.g. 2, 3.6degF)"
         else:
-            ptype, hint = _Quantity(kind, unit), f"a bare number is {unit}"
+            ptype, hint = _Quantity(kind, default_unit=unit, minimum=0.0), f"a bare number is {unit}"
         func = click.option(flag, option, type=ptype, default=None,
                             help=f"Standard deviation of the {option[:-4].replace('_', ' ')}, {hint}.")(func)
     return func
@@ -141,17 +144,18 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
               help="Seed of the random draws; the same seed gives the same flights for any --workers.")
 @click.option("--workers", type=click.IntRange(1), default=None,
               help="Worker processes (default: the machine's cores); the results do not depend on it.")
-@click.option("--delay", "delay_s", type=float, help="Ejection delay fitted before the flight, in s "
-                                                      "(default: the one closest to the nominal optimal delay).")
-@click.option("--target", "target_m", type=_Quantity("length", "m"), help="Aim altitude, marked on the plot.")
-@click.option("--ceiling", "ceiling_m", type=_Quantity("length", "m"), help="Altitude limit; a bare number is m.")
-@click.option("--field-radius", "field_radius_m", type=_Quantity("length", "m"),
+@click.option("--delay", "delay_s", type=_Quantity("time", minimum=0.0),
+              help="Ejection delay fitted before the flight; a bare number is s (default: the delay on offer "
+                   "closest to the nominal optimal delay).")
+@click.option("--target", "target_m", type=_Quantity("length", minimum=0.0, strict=True), help="Aim altitude, marked on the plot.")
+@click.option("--ceiling", "ceiling_m", type=_Quantity("length", minimum=0.0, strict=True), help="Altitude limit; a bare number is m.")
+@click.option("--field-radius", "field_radius_m", type=_Quantity("length", minimum=0.0, strict=True),
               help="Radius of the recovery field around the pad; a bare number is m.")
-@click.option("--max-deploy-speed", "max_deploy_speed", type=_Quantity("speed", "m/s"), default="25 m/s",
+@click.option("--max-deploy-speed", "max_deploy_speed", type=_Quantity("speed", minimum=0.0, strict=True), default="25 m/s",
               show_default=True, help="Deployment faster than this counts as a failure (common practice).")
-@click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", "deg"), default="0 deg", show_default=True,
+@click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", default_unit="deg"), default="0 deg", show_default=True,
               help="Direction the wind blows from, clockwise from north; a bare number is degrees.")
-@click.option("--rail-azimuth", "rail_azimuth_rad", type=_Quantity("angle", "deg"), default=None,
+@click.option("--rail-azimuth", "rail_azimuth_rad", type=_Quantity("angle", default_unit="deg"), default=None,
               help="Direction the rail leans towards (default: downwind); a bare number is degrees.")
 @click.option("--no-uncertainty", is_flag=True, help="Start from zero uncertainty instead of the file's and the "
                                                      "defaults (then add the options you give).")

@@ -51,6 +51,18 @@ _DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "degF": 5.0 / 9.0}
 _PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
+def _read_toml(path: str | os.PathLike[str]) -> dict[str, Any]:
+    """The TOML document at ``path``; a syntax or file error names the file."""
+    source = str(path)
+    try:
+        with open(path, "rb") as handle:
+            return tomllib.load(handle)
+    except tomllib.TOMLDecodeError as exc:
+        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
+    except OSError as exc:
+        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
+
+
 def load_airframe(path: str | os.PathLike[str]) -> Airframe:
     """Read an airframe TOML file.
 
@@ -60,14 +72,7 @@ def load_airframe(path: str | os.PathLike[str]) -> Airframe:
         Naming the file and the key: a missing key, a wrong unit, a value out of range.
     """
     source = str(path)
-    try:
-        with open(path, "rb") as handle:
-            data = tomllib.load(handle)
-    except tomllib.TOMLDecodeError as exc:
-        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
-    except OSError as exc:
-        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
-    return airframe_from_dict(data, source)
+    return airframe_from_dict(_read_toml(path), source)
 
 
 def _quantity(source: str, table: dict[str, Any], section: str, key: str, kind: str, *,
@@ -318,13 +323,34 @@ deploy = "ejection"             # ejection (the motor's delay) | apogee | altitu
 drag_coefficient = 0.8          # Cd of the device on the area below (about 0.8 for a round canopy)
 diameter = "{chute}"            # canopy diameter; or for a streamer: area = "0.05 m2"
 # deploy_altitude = "{deploy}"  # with deploy = "altitude": height above the pad on the way down
+
+# The shape, for the stability margin with each motor and a drag estimate (motorlib airframe {file}).
+# Uncomment the whole block and measure your rocket; positions are from the nose tip.
+# [geometry]
+# cg = "{cg}"                   # balance point WITHOUT the motor (measured)
+# [geometry.nose]
+# shape = "ogive"               # conical | ogive | parabolic | elliptical | power (with exponent)
+# length = "{nose}"
+# [geometry.body]
+# length = "{body}"             # body tube(s) behind the nose
+# [geometry.fins]
+# count = 3
+# root_chord = "{root}"
+# tip_chord = "{tip}"
+# span = "{span}"               # from the body surface to the tip
+# sweep = "{sweep}"             # root leading edge to tip leading edge, along the body
+# thickness = "{thick}"
 """
 
 _TEMPLATE_VALUES = {
     "metric": dict(target="400m", mass="310 g", diameter="41.6 mm", mount_length="200 mm", rail="1.5 m",
-                   elevation="100 m", temperature="15 degC", wind="3 m/s", chute="0.6 m", deploy="150 m"),
+                   elevation="100 m", temperature="15 degC", wind="3 m/s", chute="0.6 m", deploy="150 m",
+                   cg="520 mm", nose="160 mm", body="700 mm", root="100 mm", tip="50 mm", span="60 mm",
+                   sweep="50 mm", thick="3 mm"),
     "imperial": dict(target="1300ft", mass="11 oz", diameter="1.64 in", mount_length="7.9 in", rail="6 ft",
-                     elevation="330 ft", temperature="59 degF", wind="7 mph", chute="24 in", deploy="500 ft"),
+                     elevation="330 ft", temperature="59 degF", wind="7 mph", chute="24 in", deploy="500 ft",
+                     cg="20.5 in", nose="6.3 in", body="27.5 in", root="3.9 in", tip="2 in", span="2.4 in",
+                     sweep="2 in", thick="0.125 in"),
 }
 
 
@@ -336,6 +362,8 @@ def airframe_template(system: str = "metric", file: str = "my-rocket.toml") -> s
     if system not in _TEMPLATE_VALUES:
         raise ValueError(f"`system` must be metric or imperial, got {system!r}")
     return _TEMPLATE.format(system=system, file=file, **_TEMPLATE_VALUES[system])
+
+
 def load_uncertainty(path: str | os.PathLike[str], base: Any = None) -> Any:
     """The ``[uncertainty]`` table of an airframe file over ``base`` (default: the documented defaults).
 
@@ -348,14 +376,7 @@ def load_uncertainty(path: str | os.PathLike[str], base: Any = None) -> Any:
         Naming the file and the key.
     """
     source = str(path)
-    try:
-        with open(path, "rb") as handle:
-            data = tomllib.load(handle)
-    except tomllib.TOMLDecodeError as exc:
-        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
-    except OSError as exc:
-        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
-    return uncertainty_from_dict(data, source, base)
+    return uncertainty_from_dict(_read_toml(path), source, base)
 
 
 def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: Any = None) -> Any:

@@ -36,7 +36,7 @@ from .integrate import OK, FlightSettings, simulate
 from ..motor.record import MotorRecord
 from ..units import STANDARD_GRAVITY_M_S2
 
-__all__ = ["DEFAULT_APOGEE_RELATIVE_STD", "altitude_from_pressure_m", "detect_events", "drag_kind", "fit_apogees", "flight_conditions", "simulated_track",
+__all__ = ["DEFAULT_APOGEE_RELATIVE_STD", "PLAUSIBLE_DRAG", "altitude_from_pressure_m", "detect_events", "drag_kind", "fit_apogees", "implausible_drag", "flight_conditions", "simulated_track",
            "fit_log", "with_drag"]
 
 DEFAULT_APOGEE_RELATIVE_STD: Final = 0.01  # from memory: hobby barometric altimeters are good to about 1 %
@@ -48,7 +48,31 @@ def drag_kind(frame: Airframe) -> str:
     return "drag_scale" if frame.drag_table else "drag_coefficient"
 
 
-def _nominal_value(frame: Airframe) -> float:
+# Plausible fitted drag: a whole model or high-power rocket has a zero-lift Cd of about 0.3 to 1.0 on its body
+# cross-section (common practice, no published source); a fitted scale on a Cd(Mach) table estimated from the
+# shape should stay within about 0.6 to 1.6 of it (common practice, no published source). Outside, a wrong unit
+# (feet read as metres), a wrong motor or a wrong mass is far more likely than the drag.
+PLAUSIBLE_DRAG = {"drag_coefficient": (0.3, 1.0), "drag_scale": (0.6, 1.6)}
+
+
+def implausible_drag(kind: str, value: float) -> str | None:
+    """Why a fitted drag ``value`` of ``kind`` (see :func:`drag_kind`) is hard to believe, or None.
+
+    >>> implausible_drag("drag_coefficient", 0.55) is None
+    True
+    >>> implausible_drag("drag_coefficient", 2.35)[:20]
+    'a drag coefficient o'
+    """
+    low, high = PLAUSIBLE_DRAG[kind]
+    if low <= value <= high:
+        return None
+    name = "a drag coefficient" if kind == "drag_coefficient" else "a drag scale"
+    return (f"{name} of {value:.3g} is outside the usual {low:g} to {high:g}: check the measured apogee's unit "
+            "(feet or metres), the motor and the masses before trusting it")
+
+
+def nominal_drag(frame: Airframe) -> float:
+    """The drag value the airframe file gives: its constant Cd, or 1 (the scale) with a Cd(Mach) table."""
     return 1.0 if frame.drag_table else frame.drag_coefficient
 
 
@@ -132,7 +156,7 @@ def fit_apogees(frames: Sequence[Airframe], records: Sequence[MotorRecord], apog
     if not np.all(sigma > 0.0):
         raise ValueError("`apogee_std_m` must be positive")
     s = settings or FlightSettings()
-    k0 = _nominal_value(frames[0])
+    k0 = nominal_drag(frames[0])
     upper = 4.99 if kind == "drag_coefficient" else 10.0 * k0  # the Airframe record refuses Cd >= 5
     grid = np.geomspace(0.1 * k0, min(upper, 10.0 * k0), 13)
     heights = _apogees(frames, records, grid, s)
@@ -353,7 +377,7 @@ def fit_log(frame: Airframe, record: MotorRecord, time_s: np.ndarray, altitude_m
     # start values: a quadratic through the window's first second for height and speed, the nominal drag
     first = tw <= tw[0] + 1.0
     c2, c1, c0 = np.polyfit(tw[first] - tw[0], zw[first], 2)
-    params = np.array([_nominal_value(frame), c0, c1])
+    params = np.array([nominal_drag(frame), c0, c1])
     t0 = float(tw[0])
     for _ in range(40):
         steps = np.array([1e-4 * params[0], 1e-3, 1e-3])

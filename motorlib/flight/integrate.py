@@ -17,6 +17,9 @@ Vectorisation contract: k flights simulated together give the same numbers
 as k single runs (each flight's steps depend only on its own state).
 
 numpy only (scipy is used by the tests as the reference, never here).
+
+The module runs a little past 500 lines on purpose: the loop and the settings it reads belong together;
+the right-hand side, events, results and the recovery phase live in their own modules.
 """
 
 from __future__ import annotations

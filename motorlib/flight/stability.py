@@ -35,6 +35,9 @@ Thresholds (common practice, no published source): at least :data:`MIN_STABILITY
 above :data:`OVERSTABLE_CAL` = 3 calibers a rocket is over-stable (it turns into the wind).
 
 numpy only.
+
+The module runs a little past 500 lines on purpose: CG, margins and the nose-weight solve are one
+model, and the solve reads the same arrays the margins do.
 """
 
 from __future__ import annotations

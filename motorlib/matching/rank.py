@@ -91,6 +91,9 @@ class MatchSettings:
             value = getattr(self, name)
             if value is not None and not value > 0:
                 raise ValueError(f"`{name}` must be positive, got {value!r}")
+        if self.target_m is not None and self.ceiling_m is not None and self.target_m > self.ceiling_m:
+            raise ValueError(f"the target ({self.target_m:g} m) is above the ceiling ({self.ceiling_m:g} m): no "
+                             "motor can reach one without breaking the other")
 
 
 @dataclass(frozen=True)

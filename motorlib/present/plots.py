@@ -44,6 +44,15 @@ def _save(fig, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
     return write_atomic(path, buffer.getvalue(), overwrite=overwrite)
 
 
+def _finish(plt, fig, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
+    """Add the caution line, write ``fig`` as PNG to ``path`` and close it."""
+    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
+    try:
+        return _save(fig, path, overwrite=overwrite)
+    finally:
+        plt.close(fig)
+
+
 def _event_times(summary: dict[str, object]) -> list[tuple[str, float]]:
     out = []
     for name, key in (("rail exit", "rail_exit_time_s"), ("burnout", "burnout_time_s"), ("apogee", "time_to_apogee_s"),
@@ -469,10 +478,7 @@ def scatter_plot(summary: dict, flights: dict[str, np.ndarray], title: str, path
     ground.legend(fontsize=8, loc="best")
     ground.grid(alpha=0.25)
     fig.suptitle(f"{title}: {summary['n_flights']} sampled flights")
-    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
-    out = _save(fig, path)
-    plt.close(fig)
-    return out
+    return _finish(plt, fig, path)
 
 
 def calibration_plot(result: dict, kind: str, title: str, path: str | os.PathLike[str],
@@ -511,7 +517,4 @@ def calibration_plot(result: dict, kind: str, title: str, path: str | os.PathLik
         ax.legend(fontsize=8)
         ax.grid(alpha=0.25)
         ax.set_title(f"{title}: {fit_text}")
-    fig.text(0.01, 0.005, "Predictions are estimates; the range safety officer decides.", fontsize=7, color="gray")
-    out = _save(fig, path)
-    plt.close(fig)
-    return out
+    return _finish(plt, fig, path)

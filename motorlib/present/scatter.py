@@ -11,7 +11,7 @@ from rich.text import Text
 
 from .display import DisplayUnits
 
-__all__ = ["calibration_text", "robust_table", "scatter_text"]
+__all__ = ["calibration_text", "robust_key", "robust_table", "scatter_text"]
 
 
 def _percent(p: float | None, se: float | None = None) -> str:
@@ -22,6 +22,11 @@ def _percent(p: float | None, se: float | None = None) -> str:
 
 def _units(units: DisplayUnits | str) -> DisplayUnits:
     return units if isinstance(units, DisplayUnits) else DisplayUnits(units)
+
+
+def _offset(u: DisplayUnits, value_m: float, positive: str, negative: str) -> str:
+    """A signed offset in words: ``373 m south`` rather than ``-373 m north``."""
+    return f"{u.quantity(abs(value_m), 'length')} {positive if value_m >= 0 else negative}"
 
 
 def _triple(block: dict[str, Any], kind: str, u: DisplayUnits) -> list[str]:
@@ -66,8 +71,9 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
                      f"{_percent(stability['p_under_min_margin'], stability['p_under_min_margin_standard_error'])}\n")
     e = summary["landing"]["ellipse95"]
     if e:
-        lines.append(f"95 % landing ellipse: centre {u.quantity(e['east_m'], 'length')} east, "
-                     f"{u.quantity(e['north_m'], 'length')} north; semi-axes {u.quantity(e['semi_major_m'], 'length')}"
+        lines.append(f"95 % landing ellipse: centre {_offset(u, e['east_m'], 'east', 'west')}, "
+                     f"{_offset(u, e['north_m'], 'north', 'south')} of the pad; semi-axes "
+                     f"{u.quantity(e['semi_major_m'], 'length')}"
                      f" × {u.quantity(e['semi_minor_m'], 'length')}, major axis at {e['orientation_deg']:.0f} deg "
                      "from north.\n")
     if summary.get("firing_spread"):
@@ -81,32 +87,76 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
     return Group(table, lines)
 
 
-def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", top: int | None = None) -> Table:
-    """Candidates by their probability of meeting every rule and window (``match --robust``)."""
-    rows = result["candidates"][:top] if top else result["candidates"]
-    table = Table(title=f"Robust ranking: {result['n_samples']} sampled flights per motor (seed {result['seed']})",
-                  title_justify="left")
+def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", top: int | None = None,
+                 width: int = 80) -> Table:
+    """Candidates by their probability of meeting every rule and window (``match --robust``).
+
+    In the one table style of :mod:`.tables`; the maker column appears from ``WIDE`` columns on, and only it
+    gives way on a narrow terminal.
+    """
+    from .tables import WIDE, _lock_widths, _table
+
     u = _units(units)
-    length = u.unit("length")
-    for name in ("#", "motor", "maker", "P(success)", "± s.e.", f"apogee 5-95 % ({length})", "delay (s)", "main failure"):
-        table.add_column(name, justify="left" if name in ("motor", "maker", "main failure") else "right")
+    rows = result["candidates"][:top] if top else result["candidates"]
+    table = _table(f"Robust ranking: {result['n_samples']} sampled flights per motor (seed {result['seed']})")
+    wide = width >= WIDE
+    table.add_column("#", justify="right", no_wrap=True)
+    table.add_column("motor", no_wrap=True)
+    if wide:
+        table.add_column("maker", no_wrap=True, overflow="ellipsis", min_width=8)
+    table.add_column("success\n(%)", justify="right", no_wrap=True)
+    table.add_column("±\n(s.e.)", justify="right", no_wrap=True)
+    table.add_column(f"apogee 5-95 %\n({u.unit('length')})", justify="right", no_wrap=True)
+    table.add_column("delay\n(s)", justify="right", no_wrap=True)
+    table.add_column("most failed", no_wrap=True)
     for i, c in enumerate(rows, start=1):
         a = c["apogee_m"]
         spread = "-" if a["p5"] is None else f"{u.number(a['p5'], 'length', 0)}-{u.number(a['p95'], 'length', 0)}"
-        failure = max(c["failures"].items(), key=lambda kv: kv[1])[0] if c["failures"] and max(c["failures"].values()) > 0 else ""
-        table.add_row(str(i), escape(c["designation"]), escape(c["maker"] or ""), _percent(c["p_success"]),
-                      f"{100 * c['p_success_standard_error']:.1f}" if c["p_success_standard_error"] is not None else "-",
-                      spread, f"{c['delay_s']:g}" if c["delay_s"] is not None else "-", failure)
-    return table
+        worst = max(c["failures"].items(), key=lambda kv: kv[1]) if c["failures"] else ("", 0.0)
+        failure = f"{worst[0]} {100 * worst[1]:.0f} %" if worst[1] > 0 else ""
+        se = c["p_success_standard_error"]
+        cells = [str(i), escape(c["designation"])] + ([escape(c["maker"] or "")] if wide else [])
+        cells += [f"{100 * c['p_success']:.1f}" if c["p_success"] is not None else "-",
+                  f"{100 * se:.1f}" if se is not None else "-", spread,
+                  f"{c['delay_s']:g}" if c["delay_s"] is not None else "-", escape(failure)]
+        table.add_row(*cells)
+    return _lock_widths(table, "maker" if wide else None, width)
+
+
+def robust_key(result: dict[str, Any]) -> str:
+    """The words under the robust ranking: what success means and what each failure name stands for."""
+    names = sorted({name for c in result["candidates"] for name, p in c["failures"].items() if p > 0})
+    windows, conditions = result.get("windows") or {}, result.get("conditions") or {}
+    limits = [w for w, on in (("the ceiling", conditions.get("ceiling_m") is not None),
+                              ("the altitude window", windows.get("altitude_m") is not None),
+                              ("the flight-duration window", windows.get("duration_s") is not None),
+                              ("the field radius", windows.get("field_radius_m") is not None)) if on]
+    text = ("success: the share of sampled flights that meet every launch rule"
+            + (" and " + ", ".join(limits) if limits else "; no ceiling or window was given, so apogee is not "
+               "judged") + ".")
+    if names:
+        text += " most failed: the rule the motor failed most often, with its share: " + ", ".join(
+            f"{n} ({_FAILURE_WORDS.get(n, n)})" for n in names) + "."
+    return text
+
+
+_FAILURE_WORDS = {"flight": "no liftoff or stuck on the rail", "rail": "rail exit too slow",
+                  "T/W": "liftoff thrust-to-weight too low", "ceiling": "over the ceiling",
+                  "delay": "no delay on offer near the optimal one", "eject": "ejection too fast",
+                  "descent": "landing too fast", "altitude window": "apogee outside the window",
+                  "duration window": "flight time outside the window", "field": "lands outside the field"}
 
 
 def calibration_text(result: dict[str, Any]) -> Text:
     """The fitted drag with its uncertainty and the residuals."""
     text = Text()
+    before = result.get("file_value")
     if "drag_scale" in result:
-        text.append(f"Drag scale on the Cd(Mach) table: {result['drag_scale']:.4f} ± {result['uncertainty']:.4f}\n")
+        text.append(f"Drag scale on the Cd(Mach) table: {result['drag_scale']:.4f} ± {result['uncertainty']:.4f}"
+                    + (f" (the file flies {before:.4g})" if before is not None else "") + "\n")
     else:
-        text.append(f"Drag coefficient: {result['drag_coefficient']:.4f} ± {result['uncertainty']:.4f}\n")
+        text.append(f"Drag coefficient: {result['drag_coefficient']:.4f} ± {result['uncertainty']:.4f}"
+                    + (f" (the file gives {before:.4g})" if before is not None else "") + "\n")
     for label, r in zip(result.get("labels", []), result["residuals_m"]):
         text.append(f"  {escape(str(label))}: residual {r:+.2f} m\n")
     if result.get("rms_residual_m") is not None:

@@ -51,3 +51,18 @@ def test_calibrate_usage_errors() -> None:
     assert code == 2 and "apogee=" in out
     code, out = run("calibrate", str(QUIBBLE), "--motor", "F29-8", "--apogee", "60km")
     assert code == 2 and "measured apogee" in out
+
+
+def test_an_implausible_fit_is_flagged_and_not_written_without_force(tmp_path: Path) -> None:
+    # 250 m for a rocket that flies about 500 m on an F29-8 needs Cd about 2.3: far outside 0.3-1.0 (common
+    # practice, no published source); a feet/metres slip is likelier than such drag.
+    frame = tmp_path / "q.toml"
+    shutil.copy(QUIBBLE, frame)
+    before = frame.read_bytes()
+    code, out = run("calibrate", str(frame), "--motor", "F29-8", "--apogee", "250m", "--write")
+    assert code == 2 and "--force" in out and "outside the usual" in " ".join(out.split())
+    assert frame.read_bytes() == before
+    code, out = run("calibrate", str(frame), "--motor", "F29-8", "--apogee", "250m")
+    assert code == 0 and "Warning" in out and "the file gives 0.55" in out
+    code, out = run("calibrate", str(frame), "--motor", "F29-8", "--apogee", "250m", "--write", "--force")
+    assert code == 0 and frame.read_bytes() != before

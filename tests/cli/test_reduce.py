@@ -1,4 +1,5 @@
-"""``motorlib reduce`` on a test series (issue 14): a table of firings, a check per log, an honest exit status."""
+"""``motorlib reduce`` through click's CliRunner: options that set the record's metadata; a test series (issue 14):
+a table of firings, a check per log, an honest exit status."""
 
 from __future__ import annotations
 
@@ -6,8 +7,10 @@ import json
 from pathlib import Path
 
 import numpy as np
+import pytest
 
 from motorlib import read_record
+from motorlib.files.curvefiles import load_curve_file
 
 from ..conftest import SAMPLE_DIR
 from ..motor.test_reduction import synthetic_log
@@ -68,3 +71,34 @@ def test_series_plot_and_provenance(tmp_path: Path) -> None:
     assert "cut-off 80" in notes and "detrend on" in notes and "at most 48 points" in notes
     code, out = run("reduce", *logs, "--designation", "G59-10", "-o", str(tmp_path / "one.xml"))
     assert code == 2 and "--combine" in out  # several logs and one output: the mean needs --combine
+
+
+def _log(path: Path) -> Path:
+    """A raw stand log: 0.5 s of baseline, an F30-like burn with a 2 N offset, 1 kHz, a little noise."""
+    t = np.arange(-0.5, 2.7, 1e-3)
+    f = np.interp(t, [0.0, 0.1, 2.0, 2.1], [0.0, 36.0, 26.0, 0.0], left=0.0, right=0.0)
+    f = f + 2.0 + np.random.default_rng(3).normal(0.0, 0.05, t.size)
+    path.write_text("time_s,thrust_n\n" + "".join(f"{a:.4f},{b:.4f}\n" for a, b in zip(t, f)))
+    return path
+
+
+@pytest.mark.parametrize(("args", "kind"), [((), "own-firing"), (("--source-kind", "other"), "other"),
+                                             (("--source-kind", "maker-published"), "maker-published")])
+def test_the_provenance_kind_defaults_to_own_firing_and_an_explicit_choice_is_kept(
+        tmp_path: Path, args: tuple[str, ...], kind: str) -> None:
+    out_path = tmp_path / "f30.xml"
+    code, out = run("reduce", str(_log(tmp_path / "firing.csv")), "-o", str(out_path), *args)
+    assert code == 0, out
+    assert load_curve_file(out_path).provenance.kind == kind
+
+
+def test_a_side_file_sets_the_kind_and_an_option_still_wins(tmp_path: Path) -> None:
+    log = _log(tmp_path / "firing.csv")
+    side = tmp_path / "motors.toml"
+    side.write_text('[files."firing.csv"]\ndesignation = "F30-6"\nsource_kind = "maker-published"\n')
+    code, out = run("reduce", str(log), "-o", str(tmp_path / "a.xml"), "--meta", str(side))
+    assert code == 0, out
+    record = load_curve_file(tmp_path / "a.xml")
+    assert record.provenance.kind == "maker-published" and record.designation == "F30-6"
+    code, out = run("reduce", str(log), "-o", str(tmp_path / "b.xml"), "--meta", str(side), "--source-kind", "other")
+    assert code == 0 and load_curve_file(tmp_path / "b.xml").provenance.kind == "other"

@@ -5,6 +5,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import pytest
+
 from .conftest import AIRFRAMES, run
 
 QUIBBLE = str(AIRFRAMES / "quibble-41.toml")
@@ -82,7 +84,9 @@ def test_match_robust_table_and_bad_window() -> None:
     code, out = run("match", QUIBBLE, "--robust", "--samples", "10", "--workers", "1", "--allow-smaller-motors",
                     "--altitude-window", "800ft..1100ft")
     assert code == 0, out
-    assert "P(success)" in out
+    flat = " ".join(out.split())
+    assert "success" in flat and "the altitude window" in flat  # the key says what success was judged on
+    assert all(len(line) <= 80 for line in out.splitlines()), out
     code, out = run("match", QUIBBLE, "--robust", "--altitude-window", "260m..240m")
     assert code == 2 and "low end" in out
 
@@ -106,3 +110,35 @@ def test_a_measured_firing_spread_replaces_the_motor_default(tmp_path: Path) -> 
     assert data["firing_spread"]["n_firings"] == 5 and data["firing_spread"]["source"] == "motor record"
     assert abs(data["uncertainty"]["total_impulse_relative_std"] - 0.004) < 1e-12
     assert abs(data["uncertainty"]["burn_time_relative_std"] - 0.01) < 1e-12
+
+
+def test_a_bare_relative_std_of_one_or_more_asks_for_a_percent_sign() -> None:
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "--drag-std", "8")
+    assert code == 2 and "8%" in out
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "20", "--workers", "1", "--drag-std", "8%",
+                    "--delay", "8s", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["uncertainty"]["drag_relative_std"] == 0.08 and data["delay_s"] == 8.0
+
+
+def test_the_landing_ellipse_centre_is_told_in_compass_words() -> None:
+    from motorlib.present.scatter import _offset
+    from motorlib.present.display import DisplayUnits
+
+    assert _offset(DisplayUnits(), -373.0, "north", "south") == "373 m south"
+    assert _offset(DisplayUnits(), 6.0, "east", "west") == "6 m east"
+
+
+def test_bare_numbers_take_the_unit_the_help_states() -> None:
+    # --wind-from's help says a bare number is degrees, --cg-std's that it is mm: 90 must be 90 deg, not 90 rad
+    def summary(*args: str) -> dict:
+        code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "30", "--seed", "2", "--workers", "1",
+                        "--json", *args)
+        assert code == 0, out
+        return json.loads(out)
+
+    assert summary("--wind-from", "90") == summary("--wind-from", "90deg")
+    assert summary("--cg-std", "5")["uncertainty"]["cg_std_m"] == 0.005
+    assert summary("--wind-direction-std", "10")["uncertainty"]["wind_direction_std_rad"] == \
+        pytest.approx(10 * 3.141592653589793 / 180)  # exact by definition of the degree

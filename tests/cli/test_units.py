@@ -232,3 +232,42 @@ def test_flight_warnings_follow_the_units_and_never_round_a_failure_away() -> No
     assert warning_message("rail-exit-slow", "", summary, LaunchRules(), DisplayUnits("imperial"), 0.0).startswith(
         "rail exit speed 49.1 ft/s is below 49.2 ft/s")
     assert warning_message("new-code", "library words", summary, LaunchRules(), DisplayUnits(), 0.0) == "library words"
+
+
+def test_fly_card_warnings_follow_the_units_switch() -> None:
+    # 10 oz of ballast slows the rail exit below 15 m/s and the descent above 6.5 m/s: both warnings in ft/s
+    code, out = run("--units", "imperial", "fly", QUIBBLE, "--motor", "F29-8", "--ballast", "10oz")
+    assert code == 0, out
+    flat = " ".join(out.split())
+    assert "descent rate at landing" in flat and "ft/s" in flat
+    assert " m/s" not in flat.split("Assumptions")[0]
+
+
+@pytest.mark.parametrize("system", ["metric", "imperial"])
+def test_the_template_geometry_block_loads_when_uncommented(tmp_path: Path, system: str) -> None:
+    # the commented [geometry] block is a complete shape: uncommented, `motorlib airframe` can use it at once
+    from motorlib.files.airframe_toml import airframe_template, load_airframe
+
+    text = airframe_template(system)
+    head, block = text.split("# [geometry]\n")
+    uncommented = head + "[geometry]\n" + "\n".join(line[2:] if line.startswith("# ") else line
+                                                  for line in block.splitlines()) + "\n"
+    path = tmp_path / "shaped.toml"
+    path.write_text(uncommented)
+    frame = load_airframe(path)
+    assert frame.geometry is not None and frame.geometry.fins.count == 3
+    code, out = run("airframe", str(path), "--motor", "F29-8", "--json")
+    assert code == 0, out
+    assert json.loads(out)["stability"]["margin_liftoff_cal"] > 1.0  # a sound example shape: stable
+
+
+@pytest.mark.parametrize(("args", "option"), [
+    (("match", QUIBBLE, "--target", "-5"), "--target"),
+    (("match", QUIBBLE, "--ceiling", "0"), "--ceiling"),
+    (("fly", QUIBBLE, "--motor", "F29-8", "--ballast", "-50g"), "--ballast"),
+    (("fly", QUIBBLE, "--motor", "F29-8", "--delay", "-3"), "--delay"),
+    (("descent", "--mass", "1kg", "--drag-area", "0.1", "--height", "-100"), "--height"),
+])
+def test_signs_that_make_no_sense_are_refused_with_the_option_name(args: tuple[str, ...], option: str) -> None:
+    code, out = run(*args)
+    assert code == 2 and option in out and "_m" not in out and "_kg" not in out, out

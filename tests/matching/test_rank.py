@@ -89,9 +89,9 @@ def test_just_below_the_rail_exit_rule_fails_with_that_reason(sample_catalog: Ca
 
 
 def test_over_the_ceiling_fails_even_when_closest_to_the_target(sample_catalog: Catalog) -> None:
-    result = _rank(sample_catalog, target_m=720.0, ceiling_m=650.0, allow_smaller_motors=True)
+    result = _rank(sample_catalog, target_m=690.0, ceiling_m=700.0, allow_smaller_motors=True)
     f51 = next(c for c in result.candidates if c["designation"] == "F51-10")  # apogee about 706 m
-    closest = min((c for c in result.candidates if c["apogee_m"]), key=lambda c: abs(c["apogee_m"] - 720.0))
+    closest = min((c for c in result.candidates if c["apogee_m"]), key=lambda c: abs(c["apogee_m"] - 690.0))
     assert closest is f51
     assert not f51["passes"] and "ceiling" in f51["reason_codes"]
     safe = [c for c in result.candidates if not c["reasons"]]  # on target or not, every safe motor ranks higher
@@ -253,3 +253,13 @@ def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> 
     reasons = {c["motor_id"]: dict(zip(c["reason_codes"], c["reasons"])) for c in result.candidates}
     assert "plugged" in reasons["record-0"]["no charge"]
     assert "delays unknown" in reasons["record-1"] and "plugged" not in reasons["record-1"]["delays unknown"]
+
+
+def test_a_target_above_the_ceiling_is_refused() -> None:
+    import pytest
+
+    from motorlib.matching.rank import MatchSettings
+
+    with pytest.raises(ValueError, match="above the ceiling"):
+        MatchSettings(target_m=400.0, ceiling_m=300.0)
+    assert MatchSettings(target_m=300.0, ceiling_m=300.0).ceiling_m == 300.0
