@@ -41,9 +41,9 @@ def short_code(code: str, text: str) -> tuple[str, str]:
 
 
 def match_count(result: Any) -> str:
-    """"2 of 27 motors pass, 1 more with ballast, 3 off target": only good choices count as passing."""
+    """"2 of 27 pass, 1 more with ballast, 3 off target": only good choices count as passing."""
     verdicts = [c["verdict"] for c in result.candidates]
-    text = f"{verdicts.count('pass')} of {len(verdicts)} motors pass"
+    text = f"{verdicts.count('pass')} of {len(verdicts)} pass"
     if verdicts.count("pass with ballast"):
         text += f", {verdicts.count('pass with ballast')} more with ballast"
     if verdicts.count("off target"):
