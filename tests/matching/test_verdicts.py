@@ -205,3 +205,13 @@ def test_match_json_carries_verdicts_and_options() -> None:
     bare = CliRunner().invoke(main, ["match", str(QUIBBLE), "--catalog", str(SAMPLE_DIR), "--target", "400",
                                      "--target-tolerance", "5"])
     assert bare.exit_code != 0 and "5%" in bare.output
+
+
+def test_charts_draw_the_tolerance_asked_for(catalog: Catalog, tmp_path) -> None:
+    from motorlib.present.plots import match_plot
+    from motorlib.present.report_charts import match_chart
+
+    result = _rank(catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3)
+    svg = match_chart(result).svg
+    assert "within 30 % of the target" in svg and "within 5 %" not in svg
+    assert match_plot(result, tmp_path / "m.png").read_bytes()[:4] == b"\x89PNG"
