@@ -266,6 +266,9 @@ class Catalog:
                   thrust_unit: str | None = None) -> list[AddResult]:
         """Add curve files (XML, or CSV with ``metadata``); bad files are reported, never fatal.
 
+        ``metadata`` is one :class:`~motorlib.files.motor_csv.CurveMetadata` for every CSV file, or a function
+        ``metadata(path)`` giving each file its own (a metadata side file).
+
         Files are added in durable batches of :data:`BATCH_SIZE` (see the module
         docstring); ``progress(1)`` is called after each file is handled.
         """
@@ -279,7 +282,8 @@ class Catalog:
                 with self._batch() as batch:
                     for path in paths[start:start + BATCH_SIZE]:
                         try:
-                            record = load_curve_file(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit)
+                            meta = metadata(path) if callable(metadata) else metadata
+                            record = load_curve_file(path, meta, time_unit=time_unit, thrust_unit=thrust_unit)
                         except CurveDataError as exc:
                             results.append(AddResult(str(path), "refused", message=str(exc),
                                                      findings=tuple(findings_from_problems(exc))))

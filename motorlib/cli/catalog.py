@@ -10,7 +10,7 @@ import click
 
 from ..errors import QuantityError
 from .group import _Group
-from .options import _catalog_option, _metadata, _metadata_options, _open_catalog, _Quantity, _units_option, display_units
+from .options import _catalog_option, _metadata_for, _metadata_options, _open_catalog, _Quantity, _units_option, display_units
 from .output import _console, _err_console, _json_text
 
 
@@ -103,6 +103,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
       motorlib catalog add stand-03.csv --designation F30-6 --maker "Our team" \\
           --diameter 24mm --length 70mm --total-mass 48g --propellant-mass 22g \\
           --delays 4,6,8 --source-kind own-firing
+      motorlib catalog add stand.csv stand-03.csv --meta motors.toml
     """
     from collections import Counter
 
@@ -112,7 +113,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     cat = _open_catalog(catalog_dir)
     files = find_curve_files(list(paths))
     console = _console()
-    kwargs = dict(metadata=_metadata(opts), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
+    kwargs = dict(metadata=_metadata_for(opts, files, report_unused=True), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
     with _progress("adding curves", len(files)) as advance:
         results = cat.add_files(files, progress=advance, **kwargs) if advance else cat.add_files(files, **kwargs)
     if any(r.status != "added" or r.near_duplicates for r in results):

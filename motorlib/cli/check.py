@@ -8,7 +8,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options, _units_option, display_units
+from .options import _metadata_for, _metadata_options, _units_option, display_units
 from .output import _console
 
 
@@ -43,12 +43,12 @@ def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_thre
     from ..files.curvefiles import check_file, find_curve_files
 
     settings = CheckSettings(burn_threshold=burn_threshold / 100.0, average_thrust_tolerance=thrust_tolerance / 100.0)
-    metadata = _metadata(opts)
     files = find_curve_files(list(paths))
     if not files:
         raise click.UsageError(f"no .xml or .csv curve files in {', '.join(paths)}")
-    reports = [check_file(f, settings, metadata, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
-               for f in files]
+    metadata = _metadata_for(opts, files)
+    reports = [check_file(f, settings, metadata(f) if callable(metadata) else metadata, time_unit=opts["time_unit"],
+                          thrust_unit=opts["thrust_unit"]) for f in files]
     if as_json:
         click.echo(json.dumps([r.as_dict() for r in reports], indent=2, default=float))
     else:

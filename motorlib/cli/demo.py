@@ -37,11 +37,12 @@ def demo(plot_path: str | None, units: str | None) -> None:
     target, ceiling = (parse_quantity(t, "length", keep_text=True) for t in
                        (("400 m", "600 m") if shown.system == "metric" else ("1300 ft", "2000 ft")))
     opts = dict(target_m=target, ceiling_m=ceiling, max_class=None, min_rail_exit=None, min_thrust_to_weight=5.0,
-                delay_slack=None, allow_smaller_motors=True, tag=None, top=None, show_rejected=False, ballast=True,
+                delay_slack=None, allow_smaller_motors=True, adapter_steps=1, target_tolerance=None, tag=None,
+                top=None, show_rejected=False, ballast=True,
                 units=shown.system, as_json=False, as_csv=False, plot_path=plot_path, report_path=None,
                 overwrite=False)
     _console().print(f"Demo: airframe {airframe.name}, bundled sample catalog, target {target.text}, ceiling "
-                     f"{ceiling.text}, motors for the 29 mm mount and smaller ones through adapters, with ballast.")
+                     f"{ceiling.text}, motors for the 29 mm mount and 24 mm ones through an adapter, with ballast.")
     _run_match(str(airframe), _open_catalog(str(sample_catalog_dir())), opts)
 
 

@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options
+from .options import _metadata_for, _metadata_options
 from .output import _console
 
 
@@ -40,7 +40,8 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
 
     console = _console()
     try:
-        record = record_from_csv(csv_file, _metadata(opts), time_unit=opts["time_unit"],
+        meta = _metadata_for(opts, [csv_file])
+        record = record_from_csv(csv_file, meta(csv_file) if callable(meta) else meta, time_unit=opts["time_unit"],
                                  thrust_unit=opts["thrust_unit"])
     except CurveDataError as exc:
         report = CheckReport(csv_file, True, None, tuple(findings_from_problems(exc)), None)

@@ -11,10 +11,38 @@ from .output import _EPILOG, _card_units, _console, _json_text
 from .robust import pop_robust, robust_options, run_robust
 
 
+class _Tolerance(click.ParamType):
+    """``--target-tolerance``: a percentage of the target (``5%``) or a length (``20m``, ``60ft``).
+
+    A bare number is refused: 5 could be 5 % or 5 m.
+    """
+
+    name = "tolerance"
+
+    def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> Any:
+        if isinstance(value, tuple):
+            return value
+        text = str(value).strip()
+        if text.endswith("%"):
+            try:
+                return ("fraction", float(text[:-1]) / 100.0)
+            except ValueError:
+                self.fail(f"{text!r} is not a percentage such as 5%", param, ctx)
+        try:
+            float(text)
+        except ValueError:
+            return ("length", _Quantity("length", minimum=0.0, strict=True).convert(text, param, ctx))
+        self.fail(f"{text!r} has no unit; give a percentage of the target such as 5% or a length such as 20m",
+                  param, ctx)
+
+
 def _match_options(func: Any) -> Any:
     options = [
         click.option("--target", "target_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="Aim altitude above the pad, e.g. 250m or 800ft; a bare number is m."),
+        click.option("--target-tolerance", "target_tolerance", type=_Tolerance(), default=None,
+                     help="How far from the target still counts as on target: 10% or 30m (default 5%). "
+                          "A safe motor outside it is 'off target'."),
         click.option("--ceiling", "ceiling_m", type=_Quantity("length", minimum=0.0, strict=True),
                      help="Never exceed this altitude (the field's limit), e.g. 600m or 2000ft; a bare number is m."),
         click.option("--max-class", type=click.Choice(["1/8A", "1/4A", "1/2A", *"ABCDEFGHIJKLMNO"]),
@@ -26,11 +54,16 @@ def _match_options(func: Any) -> Any:
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
         click.option("--delay-slack", type=_Quantity("time", minimum=0.0), default=None,
                      help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
-        click.option("--allow-smaller-motors", is_flag=True, help="Narrower motors fit with an adapter."),
+        click.option("--allow-smaller-motors", is_flag=True,
+                     help="Narrower motors fit with an adapter, up to --adapter-steps standard sizes down."),
+        click.option("--adapter-steps", type=click.IntRange(1, 9), default=2, show_default=True,
+                     help="Most standard motor sizes an adapter steps down (2: 24 or 18 mm in a 29 mm mount)."),
         click.option("--tag", help="Only motors with this catalog tag (e.g. the ones in stock)."),
         click.option("--top", type=click.IntRange(1), help="Show only the first N candidates."),
         click.option("--show-rejected", is_flag=True, help="Also list the motors that do not fit."),
-        click.option("--ballast", is_flag=True, help="Solve the nose weight that brings each passing motor to the target."),
+        click.option("--ballast", is_flag=True,
+                     help="Solve the nose weight that brings every motor too strong for the target or the ceiling "
+                          "down to the target, and re-check every rule with it."),
         _units_option,
         click.option("--json", "as_json", is_flag=True, help="Print {airframe, conditions, candidates} as JSON (SI)."),
         click.option("--csv", "as_csv", is_flag=True,
@@ -81,12 +114,14 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         return
     if opts["as_csv"]:
         from ..present.csvout import rows_csv
-        from ..present.messages import reason_text
+        from ..present.messages import note_text, reason_text
 
-        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes")
-        columns = [k for k in result.candidates[0] if k not in skip] + ["reasons"]
+        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "notes", "note_codes")
+        columns = [k for k in result.candidates[0] if k not in skip] + ["reasons", "notes"]
         rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, result.conditions, units)
-                                           for code, text in zip(c["reason_codes"], c["reasons"]))}
+                                           for code, text in zip(c["reason_codes"], c["reasons"])),
+                 "notes": "; ".join(note_text(code, text, c, result.conditions, units)
+                                    for code, text in zip(c["note_codes"], c["notes"]))}
                 for c in result.candidates]
         click.echo(rows_csv(rows, columns, units), nl=False)
         return
@@ -116,11 +151,17 @@ def match_settings(opts: dict[str, Any]) -> Any:
     rules = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
     if opts["min_rail_exit"] is not None:
         rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
-    slack = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
+    extra = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
+    tolerance = opts.get("target_tolerance")
+    if tolerance is not None:
+        kind, value = tolerance
+        if kind == "length" and not opts["target_m"]:
+            raise click.UsageError("--target-tolerance as a length needs --target")
+        extra["target_tolerance"] = value / opts["target_m"] if kind == "length" else value
     try:
         return MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
                              rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
-                             ballast=opts.get("ballast", False), **slack)
+                             adapter_steps=opts.get("adapter_steps", 2), ballast=opts.get("ballast", False), **extra)
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
 
@@ -136,7 +177,10 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     gets its apogee, rail exit speed, liftoff thrust-to-weight, optimal delay,
     the closest available delay and the ejection speed with it, and the
     reasons it fails any rule. With --target the ranking is by closeness to
-    it; otherwise by apogee under the ceiling. Passing motors come first.
+    it; otherwise by apogee under the ceiling. Good choices come first:
+    'pass' (every rule, within --target-tolerance of the target), then
+    'pass with ballast' (with --ballast), then 'off target' (safe, but
+    misses the target), then 'fail' and the motors that cannot fly.
     Without --catalog (or $MOTORLIB_CATALOG) the user catalog is used when it
     exists, else the bundled sample curves.
 

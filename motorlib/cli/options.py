@@ -170,6 +170,9 @@ def _metadata_options(func: Any) -> Any:
                      help="Where the curve comes from (default: other; for reduce: own-firing)."),
         click.option("--test-date", type=click.DateTime(["%Y-%m-%d"]), help="Date of the test, YYYY-MM-DD."),
         click.option("--notes", default="", help="Free-text provenance notes (stand, lot, operator)."),
+        click.option("--meta", "meta_file", type=click.Path(exists=True, dir_okay=False),
+                     help="TOML side file with metadata for many CSV files ([defaults] and [files.\"NAME.csv\"]); "
+                          "options given here override it."),
         click.option("--time-unit", help="Unit of the CSV time column (s, ms) when the header gives none."),
         click.option("--thrust-unit", help="Unit of the CSV thrust column (N, lbf, kgf, gf) when the header gives none."),
     ]
@@ -192,6 +195,47 @@ def _metadata(opts: dict[str, Any]) -> Any:
         delay_adjustable=opts["adjustable_delay"], no_ejection_charge=opts["plugged"],
         provenance=Provenance(kind=opts["source_kind"] or "other", date=date, notes=opts["notes"]),
     )
+
+
+# Metadata option -> (side-file key, value when not given)
+_GIVEN = {"designation": ("designation", None), "maker": ("maker", ""), "diameter_m": ("diameter", None),
+          "length_m": ("length", None), "total_mass_kg": ("total_mass", None),
+          "propellant_mass_kg": ("propellant_mass", None), "delays_s": ("delays", ()), "plugged": ("plugged", False),
+          "adjustable_delay": ("adjustable_delay", False), "source_kind": ("source_kind", None),
+          "test_date": ("test_date", None), "notes": ("notes", "")}
+
+
+def _metadata_for(opts: dict[str, Any], csv_paths: list[Any] = (), report_unused: bool = False,
+                  default_kind: str = "other") -> Any:
+    """Metadata per CSV file: ``path -> CurveMetadata`` from ``--meta`` under the options given, or the options'
+    :class:`CurveMetadata` when there is no side file. With ``report_unused``, tables naming none of
+    ``csv_paths`` (a misspelt file name) are reported on stderr. ``default_kind`` is the provenance kind when
+    neither ``--source-kind`` nor the side file gives one."""
+    base = _metadata(opts if opts.get("source_kind") else {**opts, "source_kind": default_kind})
+    if not opts.get("meta_file"):
+        return base
+    from ..errors import CurveError
+    from ..files.csv_meta import read_csv_metadata
+
+    try:
+        side = read_csv_metadata(opts["meta_file"])
+    except CurveError as exc:
+        raise click.UsageError(str(exc)) from None
+    given = {key for option, (key, unset) in _GIVEN.items() if opts.get(option) not in (unset, "", None)}
+    csvs = [p for p in csv_paths if str(p).lower().endswith((".csv", ".txt", ".tsv"))]
+    from rich.markup import escape
+
+    for name in side.unused(csvs) if csvs and report_unused else []:
+        _err_console().print(f"[yellow]note[/yellow] {escape(str(opts['meta_file']))}: "
+                             + escape(f'[files."{name}"] names none of the files given'), highlight=False)
+
+    def for_path(path: Any) -> Any:
+        try:
+            return side.metadata(path, base, given)
+        except CurveError as exc:
+            raise click.UsageError(str(exc)) from None
+
+    return for_path
 
 
 def default_catalog_dir() -> str:

@@ -7,7 +7,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options, _units_option, display_units
+from .options import _metadata_for, _metadata_options, _units_option, display_units
 from .output import _console
 
 
@@ -44,7 +44,9 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     tared from the readings before ignition, the data filtered, ignition and
     burnout found, and the curve reduced to at most --points points; the
     result is checked against --designation when given. The provenance kind
-    defaults to own-firing.
+    defaults to own-firing. Several logs give a table of the firings and a
+    check of each log; --plot then overlays them with their mean. The exit
+    status is 1 when any check finds an error.
 
     \b
     Example:
@@ -59,7 +61,8 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     from ..motor.checks import check_record, metrics
     from ..files.curvefiles import CheckReport
-    from ..motor.reduction import ReductionSettings, combine_reductions, firing_spread
+    from ..motor.reduction import (ReductionSettings, combine_reductions, firing_spread, firing_table,
+                                   series_findings)
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
@@ -68,27 +71,37 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         from .output import _write_report
 
         _write_report(None, report_path, overwrite, list(logs) + ([output] if output else []), check_only=True)
-    if opts["source_kind"] is None:  # a log from our own stand, unless the user says otherwise
-        opts = {**opts, "source_kind": "own-firing"}
-    meta = _metadata(opts)
+    # a log from our own stand, unless the option or the side file says otherwise
+    meta = _metadata_for(opts, list(logs), default_kind="own-firing")
+    meta = meta(logs[0]) if callable(meta) else meta  # a series is one motor: the first log's entry
     reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
     if combine:
         time_s, thrust_n, spread = combine_reductions([r for _, r in reductions], points)
     else:
         time_s, thrust_n, spread = reductions[0][1].time_s, reductions[0][1].thrust_n, None
     first = reductions[0][1]
-    note = _provenance_note(reductions, combine)
+    note = _provenance_note(reductions if combine else reductions[:1], combine,
+                            _settings_text(cutoff, detrend, points, scale, offset))
     meta = replace(meta, provenance=replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip()))
     record = meta.record(time_s, thrust_n, default_designation=Path(logs[0]).stem)
     if combine:
         record = replace(record, firing_spread=firing_spread([r for _, r in reductions]))
-    log_findings = [f for _, r in reductions for f in r.findings]
-    findings = log_findings + check_record(record)
+    table = firing_table([r for _, r in reductions])
+    series = series_findings(table) if len(reductions) > 1 else []
+    log_reports = _log_reports(reductions, meta, Path(logs[0]).stem) if len(reductions) > 1 else []
+    log_findings = [f for _, r in reductions for f in r.findings] if combine or len(reductions) == 1 \
+        else list(reductions[0][1].findings)
+    findings = log_findings + series + check_record(record)
     report = CheckReport(output or logs[0], True, record, tuple(findings), metrics(record))
     written = []
     if output:
         written.append(_write_checked(record, report, output, overwrite, force))
-    if plot_path:
+    if plot_path and len(reductions) > 1:
+        from ..present.plots import series_plot
+
+        written.append(series_plot([(Path(p).name, r) for p, r in reductions],
+                                   f"{record.designation}: {len(reductions)} firings", plot_path))
+    elif plot_path:
         from ..present.plots import reduction_plot
 
         written.append(reduction_plot(first, f"{record.designation}: {Path(logs[0]).name}", plot_path))
@@ -101,11 +114,18 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         report_doc = reduce_report(reductions, record, report, spread, inputs=list(logs), command=_command_line())
         written.append(_write_report(report_doc, report_path, overwrite, inputs))
     summary = _log_summary(reductions)
+    for entry, row, log_report in zip(summary, table, log_reports or [None] * len(summary)):
+        entry.update(row)
+        if log_report is not None:
+            entry.update(ok=log_report.ok, findings=[f.as_dict() for f in log_report.findings])
+    failed = [r for r in log_reports if not r.ok] + ([] if report.ok else [report])
     if as_json:
-        click.echo(json.dumps({"logs": summary, "combined": spread, **report.as_dict(),
-                               "written": [str(p) for p in written]}, indent=2, default=float))
-        return
-    _print_reduction(summary, spread, report, written, display_units(units))
+        click.echo(json.dumps({"logs": summary, "combined": spread, "series_findings": [f.as_dict() for f in series],
+                               **report.as_dict(), "written": [str(p) for p in written]}, indent=2, default=float))
+    else:
+        _print_reduction(summary, spread, report, written, display_units(units), log_reports, combine)
+    if failed:
+        raise SystemExit(1)  # the report is printed; the status tells scripts that a check found errors
 
 
 def _cutoff_hz(cutoff: str | None) -> float | None:
@@ -137,8 +157,29 @@ def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, th
     return reductions
 
 
-def _provenance_note(reductions: list[tuple[str, Any]], combine: bool) -> str:
-    """The provenance note naming the logs and how the first one was reduced."""
+def _settings_text(cutoff: str | None, detrend: bool, points: int, scale: float | None, offset: float) -> str:
+    """The reduction settings as given, for the record's provenance (so the reduction can be repeated)."""
+    parts = [f"cut-off {cutoff or 'default'}", "detrend on" if detrend else "detrend off", f"at most {points} points"]
+    if scale is not None:
+        parts.append(f"scale {scale:g} N/count, offset {offset:g} counts")
+    return "Settings: " + ", ".join(parts) + "."
+
+
+def _log_reports(reductions: list[tuple[str, Any]], meta: Any, default_designation: str) -> list[Any]:
+    """One check per log of a series: its own reduction findings and the record checks of its own curve."""
+    from ..files.curvefiles import CheckReport
+    from ..motor.checks import check_record, metrics
+
+    reports = []
+    for path, r in reductions:
+        record = meta.record(r.time_s, r.thrust_n, default_designation=default_designation)
+        findings = [f for f in (*r.findings, *check_record(record)) if f.code != "hardware-incomplete"]
+        reports.append(CheckReport(path, True, record, tuple(findings), metrics(record)))
+    return reports
+
+
+def _provenance_note(reductions: list[tuple[str, Any]], combine: bool, settings: str = "") -> str:
+    """The provenance note naming the logs, how the first one was reduced and the settings given."""
     from pathlib import Path
 
     from ..present.display import DisplayUnits
@@ -148,7 +189,8 @@ def _provenance_note(reductions: list[tuple[str, Any]], combine: bool) -> str:
             f"{u.precise(first.baseline_n, 'force')}, noise {u.precise(first.noise_n, 'force', 2)}, "
             f"{u.plain(first.sample_rate_hz)} Hz, "
             + (f"low-pass {u.plain(first.cutoff_hz)} Hz" if first.cutoff_hz else "no filter")
-            + f", events at {u.precise(first.threshold_n, 'force', 2)}." + (f" Mean of {len(reductions)} firings." if combine else ""))
+            + f", events at {u.precise(first.threshold_n, 'force', 2)}." + (f" Mean of {len(reductions)} firings." if combine else "")
+            + (f" {settings}" if settings else ""))
 
 
 def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force: bool) -> Any:
@@ -173,15 +215,30 @@ def _log_summary(reductions: list[tuple[str, Any]]) -> list[dict[str, Any]]:
 
 
 def _print_reduction(summary: list[dict[str, Any]], spread: dict[str, Any] | None, report: Any,
-                     written: list[Any], units: Any) -> None:
-    """The report for people: one line per log, the spread of several firings, the checks, the files written."""
+                     written: list[Any], units: Any, log_reports: list[Any] = (), combine: bool = False) -> None:
+    """The report for people: one line per log, the table of firings and a check block per log of a series,
+    the spread of several firings, the checks of the record, the files written."""
     from ..present import tables as render
 
     console = _console()
     console.print(render.reduction_text(summary, spread, units), end="")
+    if len(summary) > 1:
+        console.print(render.firings_table(summary, units))
+        for log_report in log_reports:
+            console.print(_log_check_block(log_report, render))
+    if len(summary) > 1 and not combine:
+        console.print(f"The record below is the first firing's; --combine writes the mean of all {len(summary)}.")
     console.print(render.check_details(report, units, report.record))
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
+
+
+def _log_check_block(log_report: Any, render: Any) -> Any:
+    """``firing-2.csv  sound`` or its status and findings: the check block of one log of a series."""
+    from rich.console import Group
+
+    head = render.check_status_line(log_report)
+    return Group(head, render.findings_text(log_report)) if log_report.findings else head
 
 
 def _findings_message(report: Any) -> str:

@@ -88,7 +88,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
     rows = cat.rows(CatalogFilter(tag=opts["tag"]))
-    fitting = [r for r in rows if not _fits(frame, r, match)]
+    fitting = [r for r in rows if not _fits(frame, r, match)[0]]
     if not fitting:
         raise click.UsageError(f"no motor in {cat.root} fits the airframe")
     records = [cat.get(r["motor_id"]) for r in fitting]

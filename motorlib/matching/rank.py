@@ -3,7 +3,10 @@
 Every candidate gets the list of reasons it fails; a failed safety rule is never
 dropped to improve a ranking. The rules are settings (:class:`MatchSettings`);
 each default names its source. With a target altitude the ranking is by
-closeness to it, otherwise by apogee (under the ceiling); passing motors first.
+closeness to it, otherwise by apogee (under the ceiling); good choices first.
+Each candidate gets a verdict word (:mod:`.verdicts`): a motor that flies safely
+but misses the target's tolerance band is ``off target``, not ``pass``; notes
+(an adapter, a missed target) are kept apart from failures.
 
 Landing speed under the recovery device is the terminal descent rate at the pad,
 √(2·m·g/(ρ·(Cd·A_device + Cd·A_body))), which the descent approaches well before
@@ -26,9 +29,11 @@ from ..motor.classes import CLASS_LETTERS
 from ..motor.record import MotorRecord
 from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
-from ..flight.results import OK, FlightResults
+from ..flight.results import NO_LIFTOFF, OK, STUCK_ON_RAIL, FlightResults
 from ..flight.rules import LaunchRules
 from ..units import STANDARD_GRAVITY_M_S2
+from .adapters import adapter_steps, adapter_text
+from .verdicts import classify, verdict_order
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "rank"]
 
@@ -48,11 +53,18 @@ class MatchSettings:
     delay_slack_s : float
         How far the chosen delay may be from the optimal one [s]; default 2 s (common practice, no published source).
     allow_smaller_motors : bool
-        Motors narrower than the mount fit (with an adapter).
+        Motors narrower than the mount fit with an adapter, up to ``adapter_steps`` standard sizes down.
+    adapter_steps : int
+        How many standard motor sizes below the mount an adapter may step down (default 2: a 24 or an
+        18 mm motor in a 29 mm mount; common practice, no published source).
     diameter_tolerance_m : float
         Diameters within this are equal (0.5 mm).
     ballast : bool
-        Solve the nose weight that brings each passing motor down to the target.
+        Solve the nose weight that brings every motor too strong for the target or the ceiling down to the
+        target, and re-check every rule with it aboard.
+    target_tolerance : float
+        Half-width of the target band as a fraction of the target (default 0.05, ±5 %); a safe motor outside
+        it is ``off target``.
     """
 
     target_m: float | None = None
@@ -63,8 +75,14 @@ class MatchSettings:
     allow_smaller_motors: bool = False
     diameter_tolerance_m: float = 0.0005
     ballast: bool = False
+    target_tolerance: float = 0.05
+    adapter_steps: int = 2
 
     def __post_init__(self) -> None:
+        if not 0.0 < self.target_tolerance < 1.0:
+            raise ValueError(f"`target_tolerance` must be a fraction between 0 and 1, got {self.target_tolerance!r}")
+        if int(self.adapter_steps) != self.adapter_steps or self.adapter_steps < 1:
+            raise ValueError(f"`adapter_steps` must be a whole number of at least 1, got {self.adapter_steps!r}")
         if self.max_class is not None and self.max_class not in CLASS_LETTERS:
             raise ValueError(f"`max_class` must be one of {', '.join(CLASS_LETTERS)}, got {self.max_class!r}")
         if self.ballast and self.target_m is None:
@@ -80,7 +98,7 @@ class MatchSettings:
 
 @dataclass(frozen=True)
 class MatchResult:
-    """The ranking: ``candidates`` (dicts, passing first) plus the conditions that produced it."""
+    """The ranking: ``candidates`` (dicts, good choices first) plus the conditions that produced it."""
 
     airframe: dict[str, Any]
     conditions: dict[str, Any]
@@ -88,7 +106,13 @@ class MatchResult:
 
     @property
     def passing(self) -> list[dict[str, Any]]:
+        """Candidates with the verdict ``pass`` (every rule, on target, no ballast needed)."""
         return [c for c in self.candidates if c["passes"]]
+
+    @property
+    def with_ballast(self) -> list[dict[str, Any]]:
+        """Candidates with the verdict ``pass with ballast``."""
+        return [c for c in self.candidates if c["verdict"] == "pass with ballast"]
 
     def as_dict(self) -> dict[str, Any]:
         return {"airframe": self.airframe, "conditions": self.conditions, "candidates": self.candidates}
@@ -109,28 +133,39 @@ def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = N
     return rows
 
 
-def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> list[str]:
+def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:
+    """(code, message) for every reason the motor cannot be flown in ``frame``, and the adapter it needs."""
     reasons = []
+    adapter = None
     if s.max_class is not None:
         cls = row["impulse_class"]
         if cls is None or CLASS_LETTERS.index(cls) > CLASS_LETTERS.index(s.max_class):
-            reasons.append(f"class {cls or 'above O'} is above the limit {s.max_class}")
+            reasons.append(("above class", f"class {cls or 'above O'} is above the limit {s.max_class}"))
     d, mount = row["diameter_m"], frame.mount_diameter_m
     if mount is not None:
+        size = f"{d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount" if d is not None else ""
         if d is None:
-            reasons.append("does not fit: the motor's diameter is unknown")
+            reasons.append(("no fit", "does not fit: the motor's diameter is unknown"))
         elif d > mount + s.diameter_tolerance_m:
-            reasons.append(f"does not fit: {d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount")
-        elif d < mount - s.diameter_tolerance_m and not s.allow_smaller_motors:
-            reasons.append(f"does not fit: {d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount (adapters not allowed)")
+            reasons.append(("no fit", f"does not fit: {size}"))
+        elif d < mount - s.diameter_tolerance_m:
+            steps = adapter_steps(d, mount, s.diameter_tolerance_m)
+            if not s.allow_smaller_motors:
+                reasons.append(("no fit", f"does not fit: {size} (adapters not allowed)"))
+            elif steps > s.adapter_steps:
+                reasons.append(("no fit", f"does not fit: {size} is {steps} standard sizes down (adapters up to "
+                                          f"{s.adapter_steps} allowed)"))
+            else:
+                adapter = adapter_text(d, mount)
     if frame.mount_length_m is not None:
         if row["length_m"] is None:
-            reasons.append("does not fit: the motor's length is unknown")
+            reasons.append(("no fit", "does not fit: the motor's length is unknown"))
         elif row["length_m"] > frame.mount_length_m + 1e-9:
-            reasons.append(f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes {frame.mount_length_m * 1e3:.4g} mm")
+            reasons.append(("no fit", f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes "
+                                      f"{frame.mount_length_m * 1e3:.4g} mm"))
     if row["total_mass_kg"] is None or row["propellant_mass_kg"] is None:
-        reasons.append("cannot be flown: no total or propellant mass")
-    return reasons
+        reasons.append(("no masses", "cannot be flown: no total or propellant mass"))
+    return reasons, adapter
 
 
 def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettings | None = None,
@@ -162,16 +197,16 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     >>> from motorlib.files.curvefiles import sample_catalog_dir
     >>> frame = motorlib.load_airframe(sample_catalog_dir() / "airframes" / "quibble-41.toml")
     >>> catalog = motorlib.Catalog(sample_catalog_dir(), read_only=True)
-    >>> result = motorlib.rank(frame, catalog, motorlib.MatchSettings(target_m=400.0))
-    >>> len(result.candidates), result.candidates[0]["passes"]
-    (27, True)
+    >>> result = motorlib.rank(frame, catalog, motorlib.MatchSettings(target_m=400.0, ceiling_m=800.0))
+    >>> len(result.candidates), result.candidates[0]["designation"], result.candidates[0]["verdict"]
+    (27, 'F51-10', 'off target')
     """
     if isinstance(pack_for, MatchSettings):  # rank(airframe, catalog, settings)
         settings, pack_for = pack_for, None
     s = settings or MatchSettings()
     fs = flight_settings or FlightSettings()
     rows, pack_for = _candidates(rows, pack_for, fs.drill_step_s)
-    fit_reasons = [_fits(frame, row, s) for row in rows]
+    fit_reasons, adapters = zip(*[_fits(frame, row, s) for row in rows]) if rows else ((), ())
     fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
     flown: dict[int, dict[str, Any]] = {}
     if fitting:
@@ -188,7 +223,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
         base = {"motor_id": row["motor_id"], "handle": row.get("handle"), "designation": row["designation"],
                 "maker": row["maker"], "impulse_class": row["impulse_class"],
                 "total_impulse_ns": row["total_impulse_ns"], "diameter_m": row["diameter_m"],
-                "length_m": row["length_m"], "fits": not fit_reasons[i]}
+                "length_m": row["length_m"], "fits": not fit_reasons[i], "adapter": adapters[i]}
         if i in flown:
             f = flown[i]
             base.update({k: v for k, v in f.items() if not k.startswith("_")})
@@ -196,9 +231,9 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
             base["reason_codes"] = [code for code, _ in f["_reasons"]]
         else:
             base.update({k: None for k in _FIGURE_KEYS})
-            base["reasons"] = fit_reasons[i]
-            base["reason_codes"] = ["fit"] * len(fit_reasons[i])
-        base["passes"] = not base["reasons"]
+            base["reasons"] = [text for _, text in fit_reasons[i]]
+            base["reason_codes"] = [code for code, _ in fit_reasons[i]]
+        _judge(base, s)
         candidates.append(base)
     candidates.sort(key=lambda c: _sort_key(c, s))
     conditions = _conditions(frame, s)
@@ -232,13 +267,24 @@ _FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_
                 "ballast_ejection_speed_m_s", "ballast_landing_speed_m_s", "ballast_reasons", "ballast_reason_codes")
 
 
+def _judge(c: dict[str, Any], s: MatchSettings) -> None:
+    """The candidate's verdict and notes (:func:`.verdicts.classify`), with the adapter it needs as a note."""
+    if c["adapter"] is not None and c["fits"]:
+        c["notes"], c["note_codes"] = [f"needs a {c['adapter']} adapter"], ["adapter"]
+    classify(c, s.target_m, s.target_tolerance)
+
+
 def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
+    """Good choices first (by verdict), then closeness to the target (least ballast with ballast), or apogee."""
+    group = verdict_order(c["verdict"])
     apogee = c["apogee_m"]
     if apogee is None or not math.isfinite(apogee):
-        return (not c["passes"], 2, 0.0, c["designation"])
+        return (group, 0.0, c["designation"])
+    if c["verdict"] == "pass with ballast":
+        return (group, c["ballast_kg"], c["designation"])
     if s.target_m is not None:
-        return (not c["passes"], 0, abs(apogee - s.target_m), c["designation"])
-    return (not c["passes"], 0, -apogee, c["designation"])
+        return (group, abs(apogee - s.target_m), c["designation"])
+    return (group, -apogee, c["designation"])
 
 
 def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[float]]) -> tuple[np.ndarray, ...]:
@@ -296,12 +342,16 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
     }
 
 
+# Flight status -> the reason code (and verdict word) a flyer reads at a glance.
+_STATUS_CODES = {NO_LIFTOFF: "no liftoff", STUCK_ON_RAIL: "stuck on rail"}
+
+
 def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: float, landing: float,
              uses_charge: bool, s: MatchSettings, row: dict[str, Any]) -> list[tuple[str, str]]:
     """(short code, message) for every rule the flight breaks."""
     r = s.rules
     if results.status[i] != OK:
-        return [("flight", results.message(i))]
+        return [(_STATUS_CODES.get(int(results.status[i]), "not flown"), results.message(i))]
     out = []
     exit_speed = results.rail_exit_speed_m_s[i]
     if exit_speed < r.min_rail_exit_speed_m_s:
@@ -334,22 +384,19 @@ def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: floa
 
 def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, figures: dict[str, Any],
                    s: MatchSettings, fs: FlightSettings) -> None:
-    """Added mass that brings each passing motor's apogee to the target, all motors solved together.
+    """Added mass that brings every motor too strong for the target down to it, all motors solved together.
 
-    Apogee falls monotonically with added mass. A bracket [0, hi] is found by
-    doubling, then the Illinois variant of regula falsi runs on every motor at
-    once, one batched simulation per iteration, to 0.02 % of the target.
-    The rules are then re-checked with the solved mass.
+    Every completed flight above the target is solved, whatever rules it breaks without
+    ballast (over the ceiling, an ejection too fast): the rules are re-checked with the
+    solved mass, so the ranking shows which motors then pass. Apogee falls monotonically
+    with added mass. A bracket [0, hi] is found by doubling, then the Illinois variant of
+    regula falsi runs on every motor at once, one batched simulation per iteration, to
+    0.02 % of the target.
     """
     target = s.target_m
-    n = len(rows)
     apogee0 = np.array([a if a is not None else np.nan for a in figures["apogee_m"]])
-    candidates = np.array([not reasons for reasons in figures["_reasons"]]) & (apogee0 > target)
-    for i in range(n):
-        if not figures["_reasons"][i] and apogee0[i] <= target:
-            figures["ballast_reasons"][i] = ["cannot reach the target even without ballast"]
-            figures["ballast_reason_codes"][i] = ["short"]
-    idx = np.flatnonzero(candidates)
+    flew = np.array([status == OK for status in figures["_status"]])
+    idx = np.flatnonzero(flew & (apogee0 > target))
     if idx.size == 0:
         return
     sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
@@ -408,6 +455,7 @@ def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
         "min_liftoff_thrust_to_weight": s.rules.min_liftoff_thrust_to_weight,
         "delay_slack_s": s.delay_slack_s, "max_ejection_speed_m_s": s.rules.max_ejection_speed_m_s,
         "max_landing_speed_m_s": s.rules.max_landing_speed_m_s, "allow_smaller_motors": s.allow_smaller_motors,
+        "adapter_steps": s.adapter_steps, "target_tolerance": s.target_tolerance,
         "drag": (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
                  else f"Cd {frame.drag_coefficient:g}") + f" on {frame.diameter_m * 1e3:.4g} mm",
         "atmosphere": "U.S. Standard Atmosphere 1976" + (f", {site.elevation_m:.0f} m elevation" if site.elevation_m else "")

@@ -26,6 +26,10 @@ Steps (each documented where it is done):
    thrust is exact; the impulse error is reported and warned about above 0.2 %.
 
 Findings (warnings about the log) carry row numbers where rows are involved.
+
+A test series (several firings of one motor) gets a table of firings
+(:func:`firing_table`) and findings of its own (:func:`series_findings`: the
+firings straddle a class boundary).
 """
 
 from __future__ import annotations
@@ -35,11 +39,21 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from typing import Any
+
 from .checks import Finding
+from .classes import CLASS_LETTERS, class_bounds_ns, impulse_class_for
 from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord
 from ..errors import CurveDataError, Problem
 
-__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "firing_spread", "lowpass_design_hz", "reduce_log"]
+__all__ = ["ReductionSettings", "Reduction", "combine_reductions", "firing_spread", "firing_table", "lowpass_design_hz",
+           "reduce_log", "series_findings"]
+
+# A reading that stands above both neighbours by more than 10 σ of the baseline noise plus 20 % of the
+# (glitch-free) peak is an electrical glitch when the logger samples at 500 Hz or faster: a real motor's
+# ignition spike lasts 10 ms or more (common practice, no published source) and so spans several readings.
+GLITCH_MIN_RATE_HZ = 500.0
+GLITCH_PEAK_FRACTION = 0.2
 
 
 @dataclass(frozen=True)
@@ -163,6 +177,7 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     tared, drift, findings = _correct_drift(t, f - baseline, span, noise, pre_end, s.detrend)
     peak_raw = _raw_peak(tared, noise, source)
     findings += _log_problems(f, tared, rows, noise, peak_raw)
+    findings += _glitches(t, tared, rows, noise)
     grid, uniform, rate, resample_findings = _resample(t, tared)
     filtered, cutoff, filter_findings = _lowpass(uniform, rate, s.cutoff_hz, s.filter_order)
     findings += resample_findings + filter_findings + _rate_findings(rate)
@@ -291,6 +306,24 @@ def _log_problems(f: np.ndarray, tared: np.ndarray, rows: np.ndarray, noise: flo
         findings.append(Finding("warning", "log-negative-spike",
                                 f"readings far below the baseline at {_rows(rows, dips)} (lowest {float(np.min(tared)):.3g} N)"))
     return findings
+
+
+def _glitches(t: np.ndarray, tared: np.ndarray, rows: np.ndarray, noise: float) -> list[Finding]:
+    """Single readings far above both neighbours (above :data:`GLITCH_MIN_RATE_HZ` only), with their rows."""
+    if tared.size < 3 or 1.0 / float(np.median(np.diff(t))) < GLITCH_MIN_RATE_HZ:
+        return []
+    middle = tared[1:-1]
+    # median of each reading and its two neighbours: a lone spike does not survive it, a ramp or a peak does
+    median3 = np.median(np.stack([tared[:-2], middle, tared[2:]]), axis=0)
+    limit = 10.0 * noise + GLITCH_PEAK_FRACTION * float(np.max(median3))
+    spikes = np.zeros(tared.size, dtype=bool)
+    spikes[1:-1] = (middle - median3) > limit
+    if not spikes.any():
+        return []
+    return [Finding("warning", "log-glitch",
+                    f"{int(spikes.sum())} single reading(s) stand far above both neighbours ({_rows(rows, spikes)}): "
+                    "probably electrical glitches, not thrust; they are smoothed by the filter but raise the "
+                    "impulse a little, so remove them from the log if you can")]
 
 
 def _resample(t: np.ndarray, tared: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, list[Finding]]:
@@ -432,6 +465,36 @@ def combine_reductions(reductions: list[Reduction], max_points: int = 48) -> tup
                               "min": float(burns.min()), "max": float(burns.max())},
     }
     return grid[keep], mean[keep], spread
+
+
+def firing_table(reductions: list[Reduction], threshold: float = DEFAULT_BURN_THRESHOLD) -> list[dict[str, Any]]:
+    """One row per firing: total impulse [N·s], peak [N], burn time [s], average thrust [N], class, % into class.
+
+    Figures of each firing's filtered curve (as :func:`firing_spread` uses), burn time and average thrust over
+    the threshold burn window of :meth:`MotorRecord.burn_time_s`; class and percent as
+    :func:`~motorlib.motor.classes.impulse_class_for` gives them.
+    """
+    out = []
+    for r in reductions:
+        firing = MotorRecord("firing", r.filtered_time_s, r.filtered_thrust_n)
+        cls = impulse_class_for(r.filtered_impulse_ns)
+        out.append({"total_impulse_ns": r.filtered_impulse_ns, "peak_thrust_n": firing.peak_thrust_n,
+                    "burn_time_s": firing.burn_time_s(threshold), "average_thrust_n": firing.average_thrust_n(threshold),
+                    "impulse_class": cls.letter if cls else None, "class_percent": cls.percent if cls else None})
+    return out
+
+
+def series_findings(table: list[dict[str, Any]]) -> list[Finding]:
+    """Findings about a test series as a whole: a warning when its firings fall in more than one class."""
+    classes = sorted({row["impulse_class"] for row in table if row["impulse_class"]}, key=CLASS_LETTERS.index)
+    if len(classes) < 2:
+        return []
+    impulses = [row["total_impulse_ns"] for row in table]
+    bounds = ", ".join(f"{class_bounds_ns(c)[1]:.2f}" for c in classes[:-1])
+    return [Finding("warning", "series-straddles-class",
+                    f"the {len(table)} firings fall in classes {', '.join(classes)} (total impulse "
+                    f"{min(impulses):.2f}-{max(impulses):.2f} N·s across the {bounds} N·s class boundary): "
+                    "one class letter does not describe every motor of this series", "total_impulse_ns")]
 
 
 def firing_spread(reductions: list[Reduction], threshold: float = DEFAULT_BURN_THRESHOLD) -> FiringSpread | None:

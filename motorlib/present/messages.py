@@ -10,21 +10,25 @@ from __future__ import annotations
 
 from typing import Any
 
+from ..matching.verdicts import miss_percent
 from .display import DisplayUnits
 
-__all__ = ["REASON_CODES", "reason_text", "short_code", "warning_message"]
+__all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text", "warning_message"]
 
-# Library reason code (and for "fit"/"flight" the start of its text) -> (short code, legend).
+# Library reason code (optionally ":" and the start of its text) -> (short code, legend).
 REASON_CODES = {
     "rail": ("R", "rail exit too slow"), "T/W": ("T", "thrust-to-weight too low"), "ceiling": ("C", "over the ceiling"),
     "delay": ("D", "no delay near the optimal one"), "eject": ("E", "ejection too fast"),
     "lands first": ("L", "lands before the delay fires"), "descent": ("S", "descends too fast under the device"),
     "no charge": ("P", "plugged: no ejection charge and no electronics"),
     "delays unknown": ("W", "ejection delays not given"),
-    "flight:thrust never": ("N", "no liftoff"), "flight:the rocket stops": ("K", "stuck on the rail"),
-    "flight": ("X", "flight not completed"), "fit:class": ("A", "above your class limit"),
-    "fit:cannot be flown": ("U", "masses unknown"), "fit": ("M", "does not fit the mount"),
+    "no liftoff": ("N", "no liftoff"), "stuck on rail": ("K", "stuck on the rail"),
+    "not flown": ("X", "flight not completed"), "above class": ("A", "above your class limit"),
+    "no masses": ("U", "masses unknown"), "no fit": ("M", "does not fit the mount"),
 }
+
+# Verdict word -> the word in the match table's result column (at most 12 characters, so it fits 80 columns).
+_VERDICT_WORDS = {"pass with ballast": "pass+ballast"}
 
 
 def short_code(code: str, text: str) -> tuple[str, str]:
@@ -34,6 +38,36 @@ def short_code(code: str, text: str) -> tuple[str, str]:
         if base == code and (not start or text.startswith(start)):
             return value
     return ("?", code)
+
+
+def match_count(result: Any) -> str:
+    """"2 of 27 pass, 1 more with ballast, 3 off target": only good choices count as passing."""
+    verdicts = [c["verdict"] for c in result.candidates]
+    text = f"{verdicts.count('pass')} of {len(verdicts)} pass"
+    if verdicts.count("pass with ballast"):
+        text += f", {verdicts.count('pass with ballast')} more with ballast"
+    if verdicts.count("off target"):
+        text += f", {verdicts.count('off target')} off target"
+    return text
+
+
+def verdict_text(verdict: str, codes: list[str], texts: list[str]) -> str:
+    """The result column: the verdict word, and for ``fail`` the one-letter codes of the rules broken."""
+    if verdict == "fail":
+        return "fail " + " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(codes, texts)))
+    return _VERDICT_WORDS.get(verdict, verdict)
+
+
+def note_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits) -> str:
+    """One note (not a failure) in display units: a missed target is echoed in the user's own numbers."""
+    if code in ("below target", "above target") and c.get("apogee_m") is not None and cond.get("target_m"):
+        target, apogee = cond["target_m"], c["apogee_m"]
+        where = code.split()[0]
+        miss = miss_percent((apogee - target) / target, cond["target_tolerance"])
+        return (f"apogee {u.quantity(apogee, 'length')} is {miss} % {where} the "
+                f"{u.given(target, 'length')} target (tolerance ±{cond['target_tolerance'] * 100:g} %)"
+                + ("; ballast could bring it down" if where == "above" and c.get("ballast_kg") is None else ""))
+    return message
 
 
 def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits,

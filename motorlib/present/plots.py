@@ -166,6 +166,15 @@ def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) 
     return out
 
 
+# Verdict -> (bar fill, hatch, mark); any other verdict is a failure: hatched orange, a cross and its reasons.
+_VERDICT_BARS = {"pass": (BLUE, None, "✓"), "pass with ballast": (BLUE, "..", "✓ with ballast"),
+                 "off target": ("white", "..", "off target")}
+_VERDICT_LEGEND = {"pass": "passes every rule, on target (✓)",
+                   "pass with ballast": "passes every rule with the solved ballast",
+                   "off target": "safe, but outside the target band",
+                   "fail": "fails a rule (✗ and its reason)"}
+
+
 def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
     """Apogee per flown motor in rank order: passing bars plain blue with a tick, failing bars hatched orange with a
     cross and their reason; values on the bars; target, tolerance band, ceiling and the region above it explained."""
@@ -182,20 +191,21 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     target_at = target * scale if target else None  # where the lines go on the axis (display unit)
     ceiling_at = ceiling * scale if ceiling else None
     apogees = [c["apogee_m"] for c in flown]
-    top = max(apogees + [ceiling_at or 0.0, (target_at or 0.0) * 1.05, 1.0]) * 1.15
+    tolerance = result.conditions.get("target_tolerance", 0.05)
+    top = max(apogees + [ceiling_at or 0.0, (target_at or 0.0) * (1 + tolerance), 1.0]) * 1.15
     handles = []
     if target:
-        ax.axhspan(0.95 * target_at, 1.05 * target_at, color=BLUE_TINT, zorder=0)
-        handles.append(Patch(facecolor=BLUE_TINT, label="within 5 % of the target"))
+        ax.axhspan((1 - tolerance) * target_at, (1 + tolerance) * target_at, color=BLUE_TINT, zorder=0)
+        handles.append(Patch(facecolor=BLUE_TINT, label=f"within {tolerance * 100:g} % of the target"))
     if ceiling:
         ax.axhspan(ceiling_at, top, facecolor=ORANGE_TINT, hatch="xx", edgecolor=RULE, linewidth=0, zorder=0)
         handles.append(Patch(facecolor=ORANGE_TINT, hatch="xx", edgecolor=RULE, label="above the ceiling: not allowed"))
     for i, c in enumerate(flown):
         passes = c["passes"]
-        ax.bar(i, c["apogee_m"], color=BLUE if passes else ORANGE, hatch=None if passes else "///", edgecolor=INK,
-               linewidth=0.8, zorder=2)
+        fill, hatch, mark = _VERDICT_BARS.get(c["verdict"], (ORANGE, "///", None))
+        mark = mark or "✗ " + ", ".join(dict.fromkeys(c["reason_codes"]))
+        ax.bar(i, c["apogee_m"], color=fill, hatch=hatch, edgecolor=INK, linewidth=0.8, zorder=2)
         ax.text(i, c["apogee_m"] + top * 0.01, f"{c['apogee_m']:.0f}", ha="center", va="bottom", fontsize=7.5, color=INK)
-        mark = "✓" if passes else "✗ " + ", ".join(dict.fromkeys(c["reason_codes"]))
         tall = c["apogee_m"] > top * (0.012 * len(mark) + 0.04)
         ax.text(i, (top * 0.015) if tall else c["apogee_m"] + top * 0.06, mark, ha="center", va="bottom",
                 rotation=0 if passes else 90, fontsize=8, fontweight="bold", color="white" if passes else INK,
@@ -206,8 +216,11 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     if ceiling:
         ax.axhline(ceiling_at, color=INK, linestyle=":", linewidth=2.0, zorder=1)
         handles.append(plt.Line2D([], [], color=INK, linestyle=":", linewidth=2.0, label=f"ceiling {units.given(ceiling, 'length')}"))
-    handles += [Patch(facecolor=BLUE, edgecolor=INK, label="passes every rule (✓)"),
-                Patch(facecolor=ORANGE, hatch="///", edgecolor=INK, label="fails a rule (✗ and its reason)")]
+    shown = {c["verdict"] for c in flown}
+    for verdict, label in _VERDICT_LEGEND.items():
+        if verdict in shown or verdict in ("pass", "fail"):
+            fill, hatch, _ = _VERDICT_BARS.get(verdict, (ORANGE, "///", None))
+            handles.append(Patch(facecolor=fill, hatch=hatch, edgecolor=INK, label=label))
     ax.set_xticks(range(len(flown)))
     ax.set_xticklabels([c["designation"] for c in flown], rotation=55, ha="right", fontsize=8)
     ax.set_ylim(0, top)
@@ -244,6 +257,35 @@ def reduction_plot(reduction, title: str, path: str | os.PathLike[str], burn_thr
     ax.set_xlabel("time from ignition (s)")
     ax.set_ylabel("thrust (N)")
     ax.set_title(title, loc="left", fontsize=10)
+    ax.grid(True)
+    ax.legend(fontsize=7.5)
+    out = _save(fig, path)
+    plt.close(fig)
+    return out
+
+
+def series_plot(reductions: list, title: str, path: str | os.PathLike[str]) -> Path:
+    """Every firing of a test series from its own ignition (each its own line style), their mean and the band of
+    ±1 standard deviation around it; every line and the band are in the legend."""
+    plt = _figure()
+    fig, ax = plt.subplots(figsize=(9, 4.8))
+    end = max(float(r.filtered_time_s[-1]) for _, r in reductions)
+    grid = np.linspace(0.0, end, 600)
+    curves = np.array([np.interp(grid, r.filtered_time_s, r.filtered_thrust_n, left=0.0, right=0.0)
+                       for _, r in reductions])
+    mean, std = curves.mean(axis=0), curves.std(axis=0, ddof=1)
+    ax.fill_between(grid, np.maximum(mean - std, 0.0), mean + std, color=BLUE_TINT, zorder=0,
+                    label="mean ± 1 standard deviation")
+    styles = ["-", "--", "-.", ":"]
+    for k, (name, r) in enumerate(reductions):
+        ax.plot(r.filtered_time_s, r.filtered_thrust_n, color=MUTED, linewidth=1.0, linestyle=styles[k % len(styles)],
+                label=name)
+    ax.plot(grid, mean, color=INK, linewidth=2.0, label=f"mean of {len(reductions)} firings")
+    ax.set_xlabel("time from ignition (s)")
+    ax.set_ylabel("thrust (N)")
+    ax.set_title(title + " (each from its own ignition)", loc="left", fontsize=10)
+    ax.set_xlim(0.0, end * 1.03)
+    ax.set_ylim(0.0, float(curves.max()) * 1.12)
     ax.grid(True)
     ax.legend(fontsize=7.5)
     out = _save(fig, path)

@@ -23,6 +23,7 @@ import numpy as np
 from .flightcard import FlightCard, flight_card, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
+from .messages import match_count
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
 
 __all__ = ["fly_report", "match_report", "reduce_report", "trace_for"]
@@ -194,6 +195,9 @@ def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
 
 
 # ----------------------------------------------------------------------------- match
+_VERDICT_MARK = {"pass": "ok", "pass with ballast": "ok", "off target": "caution"}
+
+
 def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
                  made_at: str | None = None) -> MatchReport:
     """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions."""
@@ -208,11 +212,10 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
                      quantity(cand["rail_exit_speed_m_s"], "speed", u),
                      "-" if cand["liftoff_thrust_to_weight"] is None else f"{cand['liftoff_thrust_to_weight']:.1f}",
                      delay, quantity(cand["ejection_speed_m_s"], "speed", u),
-                     "passes" if cand["passes"] else "; ".join(cand["reasons"])))
-        marks.append("ok" if cand["passes"] else "fail")
-    n_pass = sum(cand["passes"] for cand in result.candidates)
+                     "; ".join([cand["verdict"]] + cand["reasons"] + [f"note: {n}" for n in cand["notes"]])))
+        marks.append(_VERDICT_MARK.get(cand["verdict"], "fail"))
     ranking = TableBlock(
-        f"Ranking: {n_pass} of {len(result.candidates)} motors pass",
+        f"Ranking: {match_count(result)}",
         ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
         tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
         f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
@@ -220,7 +223,8 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
         nowrap=(False, True, False, False, False, False, False, False))
     conditions = Facts("Conditions and rules", (
         ("airframe", f"{result.airframe['name']}, {quantity(result.airframe['mass_kg'], 'mass', u)} empty"),
-        ("target", "-" if not c.get("target_m") else quantity(c["target_m"], "length", u)),
+        ("target", "-" if not c.get("target_m") else
+         f"{quantity(c['target_m'], 'length', u)} ±{c.get('target_tolerance', 0.05) * 100:g} %"),
         ("ceiling", "-" if not c.get("ceiling_m") else quantity(c["ceiling_m"], "length", u)),
         ("class limit", c.get("max_class") or "none"),
         ("rail exit", f">= {quantity(c['min_rail_exit_speed_m_s'], 'speed', u)}"),

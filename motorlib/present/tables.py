@@ -26,7 +26,8 @@ from rich.text import Text
 from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
 from .display import DisplayUnits
-from .messages import reason_text, short_code, warning_message
+from ..matching.verdicts import VERDICTS
+from .messages import match_count, note_text, reason_text, short_code, verdict_text, warning_message
 
 __all__ = ["WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
            "findings_text", "flight_table", "impulse_text", "match_table"]
@@ -136,6 +137,11 @@ def _status(report: CheckReport) -> Text:
     if any(f.severity == "warning" for f in report.findings):
         return Text("warnings", style="yellow")
     return Text("sound", style="green")
+
+
+def check_status_line(report: CheckReport) -> Text:
+    """``Log firing-2.csv  warnings``: the head of one log's check block."""
+    return Text.assemble(("Log ", "bold"), escape(Path(report.source).name), "  ", _status(report))
 
 
 def check_summary_table(reports: list[CheckReport], units: DisplayUnits = _METRIC, width: int = 80) -> Table:
@@ -474,7 +480,8 @@ def _shown(result: Any, top: int | None, show_rejected: bool) -> list[dict[str, 
 
 def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
                 ballast: bool = False, width: int = 80) -> Table:
-    """The ranking: passing motors first; failing ones show one-letter reason codes (see :func:`match_legend`).
+    """The ranking, good choices first; the result column holds the verdict word, and for ``fail`` one-letter
+    reason codes (see :func:`match_legend`).
 
     A figure that breaks a rule is rounded so that it never reads as within the limit. From :data:`WIDE`
     columns on, the maker and the loaded mass are added.
@@ -484,9 +491,9 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
     cond = result.conditions
     wide = width >= WIDE
     target = cond.get("target_m")
-    title = f"{result.airframe['name']}: {sum(c['passes'] for c in c_all)} of {len(c_all)} motors pass"
+    title = f"{result.airframe['name']}: {match_count(result)}"
     if target:
-        title += f", target {u.given(target, 'length')}"
+        title += f"; target {u.given(target, 'length')} ±{cond['target_tolerance'] * 100:g} %"
     table = _table(title)
     _right(table, "#")
     table.add_column("motor", no_wrap=True)
@@ -527,13 +534,12 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
             row.append(u.number(c.get("liftoff_mass_kg"), "mass", unit=mass_unit))
         if ballast:
             row.append(u.number(c.get("ballast_kg"), "mass", unit=ballast_unit))
-        if c["passes"]:
-            verdict = Text("pass", style="green")
-        else:
-            letters = dict.fromkeys(short_code(code, text)[0] for code, text in zip(c["reason_codes"], c["reasons"]))
-            verdict = Text(" ".join(letters), style="red")
-        table.add_row(*row, verdict)
+        word = verdict_text(c["verdict"], c["reason_codes"], c["reasons"])
+        table.add_row(*row, Text(word, style=_VERDICT_STYLE.get(c["verdict"], "red")))
     return _lock_widths(table, "maker", width)
+
+
+_VERDICT_STYLE = {"pass": "green", "pass with ballast": "green", "off target": "yellow"}
 
 
 def _cell(u: DisplayUnits, value: float | None, limit: float | None, kind: str, above: bool, failing: bool) -> str:
@@ -545,28 +551,42 @@ def _cell(u: DisplayUnits, value: float | None, limit: float | None, kind: str, 
 
 
 def match_legend(result: Any, top: int | None = None, show_rejected: bool = False) -> Text:
-    """What the one-letter codes in the result column mean (only the codes shown)."""
+    """What the result words shown mean, and the one-letter codes after ``fail`` (only those shown)."""
     used: dict[str, str] = {}
+    words: dict[str, str] = {}
     for c in _shown(result, top, show_rejected):
+        if c["verdict"] != "fail":
+            words.setdefault(verdict_text(c["verdict"], [], []), VERDICTS[c["verdict"]])
+            continue
         for code, text in zip(c["reason_codes"], c["reasons"]):
             letter, meaning = short_code(code, text)
             used.setdefault(letter, meaning)
     text = Text()
+    if words:
+        text.append("Results: ", style="bold")
+        text.append("; ".join(f"{word}: {meaning}" for word, meaning in words.items()) + ".", style="dim")
     if used:
-        text.append("Result codes: ", style="bold")
+        text.append("\n" if words else "")
+        text.append("Fail codes: ", style="bold")
         text.append("; ".join(f"{letter} {meaning}" for letter, meaning in used.items()) + ".", style="dim")
     return text
 
 
 def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = None,
                   show_rejected: bool = False) -> Text:
-    """Why each shown candidate fails (and what ballast changes), one line per reason."""
+    """Why each shown candidate fails (and what ballast changes), one line per reason; then its notes on one
+    line apart from the failures (an adapter, a missed target)."""
     u, cond = units, result.conditions
     text = Text()
     for rank, c in enumerate(_shown(result, top, show_rejected), 1):
         for code, message in zip(c["reason_codes"], c["reasons"]):
             text.append(f"  #{rank} {c['designation']}: ", style="bold")
             text.append(reason_text(code, message, c, cond, u) + "\n", style="red")
+        notes = [note_text(code, message, c, cond, u) for code, message in zip(c["note_codes"], c["notes"])
+                 if code != "adapter"]  # adapters are listed together below
+        if notes:
+            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append("note: " + "; ".join(notes) + "\n", style="dim")
         ballast_reasons = c.get("ballast_reasons") or []
         codes = c.get("ballast_reason_codes") or [""] * len(ballast_reasons)
         later = [reason_text(code, message, c, cond, u, "ballast_") for code, message in zip(codes, ballast_reasons)]
@@ -576,11 +596,18 @@ def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = 
                         f"{u.quantity(c['ballast_apogee_m'], 'length')}, rail exit "
                         f"{u.quantity(c['ballast_rail_exit_speed_m_s'], 'speed')}, T/W "
                         f"{u.number(c['ballast_liftoff_thrust_to_weight'], 'ratio')}"
-                        + ("" if not later else " but " + "; ".join(later)) + "\n",
+                        + (": passes every rule" if not later else " but " + "; ".join(later)) + "\n",
                         style="yellow" if later else "green")
         elif later:
             text.append(f"  #{rank} {c['designation']}: ", style="bold")
             text.append("; ".join(later) + "\n", style="yellow")
+    adapters: dict[str, list[str]] = {}
+    for rank, c in enumerate(_shown(result, top, show_rejected), 1):
+        if c.get("adapter") and c["fits"]:
+            adapters.setdefault(c["adapter"], []).append(f"#{rank}")
+    if adapters:
+        text.append("Adapters: ", style="bold")
+        text.append("; ".join(f"{size} for {', '.join(ranks)}" for size, ranks in adapters.items()) + ".\n")
     return text
 
 
@@ -635,6 +662,22 @@ def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
                     f"{u.number(ti['max'], 'impulse', d)}), burn {u.number(bt['mean'], 'time')} ± "
                     f"{u.number(bt['std'], 'time')} s\n")
     return text
+
+
+def firings_table(summary: list[dict[str, Any]], units: DisplayUnits = _METRIC) -> Table:
+    """One row per firing of a test series: impulse, peak, burn time, average thrust, class and percent into it."""
+    u = units
+    table = _table(f"{len(summary)} firings")
+    table.add_column("firing", no_wrap=True, overflow="ellipsis", max_width=28)
+    for name in ("impulse N·s", "peak N", "burn s", "average N", "class"):
+        _right(table, name)
+    impulses = [e["total_impulse_ns"] for e in summary]
+    d = u.column_decimals(impulses, "impulse", significant=4)
+    for e in summary:
+        table.add_row(escape(Path(e["file"]).name), _impulse(u, e["total_impulse_ns"], d),
+                      f"{e['peak_thrust_n']:,.1f}", f"{e['burn_time_s']:.2f}", f"{e['average_thrust_n']:,.1f}",
+                      _cls(e["impulse_class"], e["class_percent"]))
+    return _lock_widths(table, "firing", 80)
 
 
 # ----------------------------------------------------------------------------- airframe

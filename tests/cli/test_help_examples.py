@@ -104,6 +104,9 @@ def scratch_template(tmp_path_factory: pytest.TempPathFactory) -> Path:
     for name in ("stand.csv", "stand-03.csv"):
         _write_curve(root / name, *_curve(36.0, 26.0, 2.0))  # about 62 N·s at 30 N: an F30
     _write_curve(root / "test3.csv", *_curve(48.0, 36.0, 3.0))  # about 126 N·s at 41 N: a G40
+    (root / "motors.toml").write_text('[defaults]\nmaker = "Our team"\ndiameter = "24 mm"\nsource_kind = "own-firing"\n'
+                                      '[files."stand.csv"]\ndesignation = "F30-4"\n'
+                                      '[files."stand-03.csv"]\ndesignation = "F30-6"\ndelays = [4, 6, 8]\n')
     for seed, name in enumerate(("firing-1.csv", "f1.csv", "f2.csv", "f3.csv")):
         _write_log(root / name, seed)
     # an altimeter log of the demo airframe on a G59-10 (barometric, synthesised from our own flight model)

@@ -71,5 +71,7 @@ def test_reduce_refuses_a_report_over_a_log_before_writing_anything(tmp_path: Pa
     assert log.read_bytes() == before and not out_xml.exists()
     report = tmp_path / "series.html"
     code, out = run("reduce", str(log), "--designation", "F30", "--report", str(report))
-    assert code == 0, out
+    # The 30 N·s curve under an F label is a class-mismatch error: the report is written, the status says so
+    # (issue 14: errors used to leave the exit status at 0).
+    assert code == 1 and "class-mismatch" in out, out
     assert "Raw, filtered and reduced thrust" in report.read_text()

@@ -58,7 +58,7 @@ def test_ranking_equals_the_fly_command(sample_catalog: Catalog) -> None:
 
 
 def test_passing_first_ordered_by_closeness_to_target(sample_catalog: Catalog) -> None:
-    result = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)
+    result = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3)
     passes = [c["passes"] for c in result.candidates]
     assert passes == sorted(passes, reverse=True)
     passing = result.passing
@@ -74,16 +74,16 @@ def test_without_target_ranked_by_apogee_under_the_ceiling(sample_catalog: Catal
 
 
 def test_just_below_the_rail_exit_rule_fails_with_that_reason(sample_catalog: Catalog) -> None:
-    base = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)  # F29-8 is a 24 mm motor
+    base = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3)  # F29-8: 24 mm
     f29 = next(c for c in base.candidates if c["designation"] == "F29-8")
     assert f29["passes"]
     speed = f29["rail_exit_speed_m_s"]
-    strict = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True,
+    strict = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3,
                    rules=LaunchRules(min_rail_exit_speed_m_s=speed + 0.01))
     failed = next(c for c in strict.candidates if c["designation"] == "F29-8")
     assert not failed["passes"] and failed["reason_codes"] == ["rail"]
     assert failed["reasons"][0].startswith("rail exit too slow")
-    lenient = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True,
+    lenient = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3,
                     rules=LaunchRules(min_rail_exit_speed_m_s=speed - 0.01))
     assert next(c for c in lenient.candidates if c["designation"] == "F29-8")["passes"]
 
@@ -94,7 +94,8 @@ def test_over_the_ceiling_fails_even_when_closest_to_the_target(sample_catalog: 
     closest = min((c for c in result.candidates if c["apogee_m"]), key=lambda c: abs(c["apogee_m"] - 690.0))
     assert closest is f51
     assert not f51["passes"] and "ceiling" in f51["reason_codes"]
-    assert result.candidates.index(f51) > max(result.candidates.index(c) for c in result.passing)
+    safe = [c for c in result.candidates if not c["reasons"]]  # on target or not, every safe motor ranks higher
+    assert safe and result.candidates.index(f51) > max(result.candidates.index(c) for c in safe)
 
 
 def test_fit_filter_and_class_limit(sample_catalog: Catalog) -> None:
@@ -118,8 +119,10 @@ def test_ballast_brings_apogee_to_the_target(sample_catalog: Catalog) -> None:
         check = simulate(frame, [sample_catalog.get(c["motor_id"])], added_mass_kg=c["ballast_kg"], descent=False)
         assert check.apogee_m[0] == pytest.approx(400.0, rel=1e-3)  # re-simulated: within 0.1 % of the target
         assert c["ballast_rail_exit_speed_m_s"] < c["rail_exit_speed_m_s"]  # heavier: slower off the rail
-    low = [c for c in result.passing if c["apogee_m"] < 400.0]
-    assert low and all(c["ballast_reasons"] == ["cannot reach the target even without ballast"] for c in low)
+    low = [c for c in result.candidates if c["apogee_m"] is not None and c["apogee_m"] < 400.0]
+    assert low and all(c["ballast_kg"] is None for c in low)  # ballast cannot lift a motor to the target
+    short = next(c for c in low if c["designation"] == "E25-7")  # safe, but short: a note, not a failure
+    assert short["reasons"] == [] and "below target" in short["note_codes"] and short["verdict"] == "off target"
 
 
 def test_delay_and_ejection_reasons(sample_catalog: Catalog) -> None:
@@ -129,7 +132,7 @@ def test_delay_and_ejection_reasons(sample_catalog: Catalog) -> None:
     for c in result.candidates:
         if c["chosen_delay_s"] is not None and c["optimal_delay_s"] is not None:
             assert ("delay" in c["reason_codes"]) == (abs(c["chosen_delay_s"] - c["optimal_delay_s"]) > 0.05) or \
-                c["reason_codes"][:1] == ["flight"]
+                c["reason_codes"][:1] in (["no liftoff"], ["stuck on rail"], ["not flown"])
 
 
 def test_settings_are_validated() -> None:

@@ -243,3 +243,65 @@ def test_reduce_combine_writes_the_firing_spread(tmp_path: Path) -> None:
     spread = read_record(out).firing_spread
     assert spread.n_firings == 3
     assert spread.total_impulse_relative_std == pytest.approx(0.02, rel=0.2)
+
+
+# ------------------------------------------------------------------ issue 14: test series
+def _series(scales: list[float], rate: float = 2000.0) -> list:
+    known = read_record(SAMPLE_DIR / SAMPLES[0])  # G59-10, about 110 N·s
+    out = []
+    for i, scale in enumerate(scales):
+        t, f = synthetic_log(known, rate, noise_n=0.2, offset_n=5.0, seed=i)
+        out.append(reduce_log(t, (f - 5.0) * scale + 5.0))
+    return out
+
+
+def test_firing_table_gives_each_firings_figures() -> None:
+    from motorlib.motor.reduction import firing_table
+
+    known = read_record(SAMPLE_DIR / SAMPLES[0])
+    scales = [0.95, 1.0, 1.05]
+    table = firing_table(_series(scales))
+    assert len(table) == 3
+    for row, scale in zip(table, scales):
+        impulse = known.total_impulse_ns * scale
+        assert row["total_impulse_ns"] == pytest.approx(impulse, rel=0.01)
+        assert row["peak_thrust_n"] == pytest.approx(known.peak_thrust_n * scale, rel=0.02)
+        assert row["burn_time_s"] == pytest.approx(known.burn_time_s(), rel=0.02)
+        assert row["average_thrust_n"] == pytest.approx(known.average_thrust_n() * scale, rel=0.02)
+        # Class G spans 80.00-160.00 N·s (NFPA 1122 §4.9.2; check-values.md 2.1): percent into class by hand.
+        assert row["impulse_class"] == "G"
+        assert row["class_percent"] == pytest.approx(100.0 * (row["total_impulse_ns"] - 80.0) / 80.0, abs=0.02)
+
+
+def test_a_series_across_a_class_boundary_warns() -> None:
+    from motorlib.motor.reduction import firing_table, series_findings
+
+    # 110 N·s x 1.40 and x 1.50: about 154 and 165 N·s, either side of the G/H boundary at 160.00 N·s (NFPA 1122).
+    straddling = series_findings(firing_table(_series([1.40, 1.50])))
+    assert [f.code for f in straddling] == ["series-straddles-class"]
+    assert "G, H" in straddling[0].message and "160.00" in straddling[0].message
+    assert series_findings(firing_table(_series([0.95, 1.05]))) == []
+
+
+def test_a_single_reading_glitch_is_found_and_named_by_row() -> None:
+    known = read_record(SAMPLE_DIR / SAMPLES[0])
+    t, f = synthetic_log(known, 2000.0, noise_n=0.2, offset_n=5.0)
+    assert "log-glitch" not in [x.code for x in reduce_log(t, f).findings]
+    f[1500] += 3.0 * known.peak_thrust_n  # one reading, 1.5 ms: no motor does that
+    glitch = [x for x in reduce_log(t, f, lines=np.arange(2, t.size + 2)).findings if x.code == "log-glitch"]
+    assert len(glitch) == 1 and "row 1502" in glitch[0].message  # index 1500, lines counted from 2
+
+
+@pytest.mark.parametrize("name", SAMPLES)
+def test_real_ignition_spikes_are_not_glitches(name: str) -> None:
+    known = read_record(SAMPLE_DIR / name)
+    for rate in (500.0, 10000.0):
+        t, f = synthetic_log(known, rate, noise_n=0.005 * known.peak_thrust_n)
+        assert "log-glitch" not in [x.code for x in reduce_log(t, f).findings]
+
+
+def test_a_cutoff_at_or_above_nyquist_warns() -> None:
+    known = read_record(SAMPLE_DIR / SAMPLES[0])
+    t, f = synthetic_log(known, 1000.0, noise_n=0.2)
+    for cutoff in (500.0, 800.0):  # Nyquist of a 1000 Hz log is 500 Hz
+        assert "log-filter-skipped" in [x.code for x in reduce_log(t, f, ReductionSettings(cutoff_hz=cutoff)).findings]
