@@ -31,6 +31,9 @@ def _match_options(func: Any) -> Any:
         click.option("--top", type=click.IntRange(1), help="Show only the first N candidates."),
         click.option("--show-rejected", is_flag=True, help="Also list the motors that do not fit."),
         click.option("--ballast", is_flag=True, help="Solve the nose weight that brings each passing motor to the target."),
+        click.option("--min-stability", "min_stability_cal", type=click.FloatRange(min=0.0), default=None,
+                     help="Least stability margin in calibers over the powered flight, when the airframe has a "
+                          "[geometry] (default 1: common practice, no published source)."),
         _units_option,
         click.option("--json", "as_json", is_flag=True, help="Print {airframe, conditions, candidates} as JSON (SI)."),
         click.option("--csv", "as_csv", is_flag=True,
@@ -83,7 +86,8 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         from ..present.csvout import rows_csv
         from ..present.messages import reason_text
 
-        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes")
+        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "nose_weight_reasons",
+                "nose_weight_reason_codes")
         columns = [k for k in result.candidates[0] if k not in skip] + ["reasons"]
         rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, result.conditions, units)
                                            for code, text in zip(c["reason_codes"], c["reasons"]))}
@@ -117,6 +121,8 @@ def match_settings(opts: dict[str, Any]) -> Any:
     if opts["min_rail_exit"] is not None:
         rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
     slack = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
+    if opts.get("min_stability_cal") is not None:
+        slack["min_stability_cal"] = opts["min_stability_cal"]
     try:
         return MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
                              rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
@@ -135,7 +141,9 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     Motors that fit the mount (and the class limit) are flown together; each
     gets its apogee, rail exit speed, liftoff thrust-to-weight, optimal delay,
     the closest available delay and the ejection speed with it, and the
-    reasons it fails any rule. With --target the ranking is by closeness to
+    reasons it fails any rule. With a [geometry] in the airframe file a motor
+    that leaves less than --min-stability fails, with the nose weight that
+    restores the margin flown again. With --target the ranking is by closeness to
     it; otherwise by apogee under the ceiling. Passing motors come first.
     Without --catalog (or $MOTORLIB_CATALOG) the user catalog is used when it
     exists, else the bundled sample curves.

@@ -24,6 +24,7 @@ REASON_CODES = {
     "flight:thrust never": ("N", "no liftoff"), "flight:the rocket stops": ("K", "stuck on the rail"),
     "flight": ("X", "flight not completed"), "fit:class": ("A", "above your class limit"),
     "fit:cannot be flown": ("U", "masses unknown"), "fit": ("M", "does not fit the mount"),
+    "stability": ("B", "too little stability margin (CG too far aft)"),
 }
 
 
