@@ -254,6 +254,7 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
         ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
         ("ejection speed", f"<= {quantity(c['max_ejection_speed_m_s'], 'speed', u)}"),
         ("descent rate", f"<= {quantity(c['max_landing_speed_m_s'], 'speed', u)}"),
+        *_stability_rule(c),
         ("catalog", catalog),
     ))
     assumptions = Notes("Assumptions", (f"Drag: {c['drag']}.", f"Atmosphere: {c['atmosphere']}.", f"Wind: {c['wind']}.",
@@ -263,6 +264,14 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
                        subtitle="Every motor that fits, flown with the same airframe and conditions",
                        ranking=ranking, chart=match_chart(result), conditions=conditions,
                        trace=trace_for(inputs, command, made_at), assumptions=assumptions)
+
+
+def _stability_rule(conditions: dict[str, Any]) -> tuple[tuple[str, str], ...]:
+    """The stability rule of a ranking, when the airframe has a shape to check it with."""
+    need = conditions.get("min_stability_cal")
+    if need is None:
+        return ()
+    return (("stability", f">= {float(need):g} calibers over the powered flight"),)
 
 
 # ----------------------------------------------------------------------------- reduce

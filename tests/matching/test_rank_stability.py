@@ -167,3 +167,13 @@ def test_robust_ranking_fails_every_sample_of_an_unstable_motor() -> None:
     by_name = {c["designation"]: c for c in result["candidates"]}
     assert by_name["HEAVY"]["failures"]["stability"] == 1.0 and by_name["HEAVY"]["p_success"] == 0.0
     assert by_name["LIGHT"]["failures"]["stability"] == 0.0
+
+
+def test_the_match_report_states_the_stability_rule() -> None:
+    from motorlib.present.report_content import match_report
+
+    report = match_report(rank(_frame(), [LIGHT, HEAVY], settings=MatchSettings(min_stability_cal=1.2)), inputs=[],
+                          command="test", catalog="records", made_at="2026-12-02 00:00 UTC")
+    assert ("stability", ">= 1.2 calibers over the powered flight") in report.conditions.rows
+    heavy = next(row for row in report.ranking.rows if row[1] == "HEAVY")
+    assert "stability margin" in heavy[-1]
