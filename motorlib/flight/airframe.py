@@ -10,7 +10,9 @@ table is passed (or, with neither and no geometry, the default Cd 0.5); ``estima
 neither is passed and the airframe has a ``geometry``: then the component build-up of
 :mod:`.drag` gives a coasting table (``drag_table``) and a powered one
 (``drag_table_powered``, smaller base drag while the exhaust fills part of the base), and
-the flight uses the powered table while the motor burns.
+the flight uses the powered table while the motor burns. The estimate is made once, when the
+record is built: ``dataclasses.replace`` keeps the tables (to estimate again for a changed
+shape, pass ``drag_coefficient=None, drag_table=(), drag_table_powered=(), drag_source=None``).
 """
 
 from __future__ import annotations
