@@ -202,3 +202,4 @@ def test_a_batch_mixing_given_and_estimated_drag_equals_single_flights() -> None
 def test_launch_record_is_untouched_by_the_estimate() -> None:
     frame = Airframe("a", 0.3, 0.0416, geometry=GEOMETRY, launch=Launch(rail_length_m=2.0))
     assert frame.launch.rail_length_m == 2.0 and frame.drag_coefficient == pytest.approx(frame.drag_cds[0])
+
