@@ -608,7 +608,8 @@ def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = Non
     text = Text("Assumptions: ", style="bold")
     if frame is not None:
         launch, site = frame.launch, frame.launch.site
-        drag = (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+        drag = ("Cd(Mach) estimated from the shape, powered and coasting" if frame.drag_source == "estimated"
+                else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
                 else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
         air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
                                                  if site.elevation_m else "")

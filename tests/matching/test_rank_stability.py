@@ -177,3 +177,14 @@ def test_the_match_report_states_the_stability_rule() -> None:
     assert ("stability", ">= 1.2 calibers over the powered flight") in report.conditions.rows
     heavy = next(row for row in report.ranking.rows if row[1] == "HEAVY")
     assert "stability margin" in heavy[-1]
+
+
+def test_match_says_when_the_drag_is_estimated(tmp_path) -> None:
+    airframe = SAMPLE_DIR / "airframes" / "quibble-41.toml"
+    shaped = tmp_path / "shaped.toml"
+    shaped.write_text(airframe.read_text().replace("drag_coefficient = 0.55   # constant\n", ""))
+    args = ["match", str(shaped), "--catalog", str(SAMPLE_DIR), "--target", "400"]
+    data = json.loads(CliRunner().invoke(main, [*args, "--json"]).output)
+    assert data["conditions"]["drag_source"] == "estimated" and "estimated from the shape" in data["conditions"]["drag"]
+    text = " ".join(CliRunner().invoke(main, args).output.split())
+    assert "Cd(Mach) estimated from the shape" in text
