@@ -25,11 +25,12 @@ from .atmosphere import Site
 from .geometry import Geometry, check_diameters
 from ..errors import SimulationInputError
 
-__all__ = ["DEFAULT_DRAG_COEFFICIENT", "DEPLOY_MODES", "DRAG_SOURCES", "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
+__all__ = ["DEFAULT_DRAG_COEFFICIENT", "DEPLOY_MODES", "DRAG_SOURCES", "ESTIMATE_MACH_STEP", "ESTIMATE_MAX_MACH",
+           "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
 
 RECOVERY_DEVICES: Final = ("parachute", "streamer", "none")
 DRAG_SOURCES: Final = ("given", "estimated")
-DEFAULT_DRAG_COEFFICIENT: Final = 0.5  # a mid value of the 0.45-0.75 usual for sport models (common practice)
+DEFAULT_DRAG_COEFFICIENT: Final = 0.5  # the record's long-standing default; sport models run 0.45-0.75 (common practice)
 ESTIMATE_MAX_MACH: Final = 4.0  # the estimated tables reach this Mach number (held constant beyond)
 ESTIMATE_MACH_STEP: Final = 0.02  # their spacing: linear interpolation errs by < 0.3 % (tests/flight/test_drag_flight.py)
 DEPLOY_MODES: Final = ("ejection", "apogee", "altitude")
