@@ -169,8 +169,9 @@ def test_issue_figures_constant_cd_and_base_drag_rise_at_mach_1_3_to_2_1() -> No
     # Mach 1.3-2.1 apogee by 13-34 %, and the power-off base-drag rise lowers apogee a further 6-9 %.
     # Read here as: the subsonic Cd (Mach 0.3, coasting) held constant against the full estimate (powered
     # Cd(M) while burning, coasting after); and the full estimate against the powered Cd(M) all the way.
-    # For this small model (a 29 mm motor in a 41.6 mm body) our estimate gives 20-25 % and 7-8 % here;
-    # a 98 mm motor in a 102 mm body gives 9-12 % and 12-17 % (the report of issue 11 has the figures).
+    # Measured with this oracle: this small model (a 29 mm motor in a 41.6 mm body) gives 21 and 23 %, and
+    # 6.9 and 7.2 %; the 98 mm sample airframe's shape (a 98 mm motor fills most of its 102 mm base) gives
+    # 10-12 % and 13-17 % at Mach 1.3-1.9: the base-drag rise depends on how much of the base the motor fills.
     full = _estimated_quibble()
     constant = dataclasses.replace(full, drag_table=(), drag_table_powered=(),
                                    drag_coefficient=float(np.interp(0.3, full.drag_machs, full.drag_cds)))
