@@ -17,6 +17,7 @@ __version__ = "0.1.0"
 # or lxml; a command imports what it needs when it runs.
 _EXPORTS = {
     "Airframe": ".flight.airframe",
+    "Body": ".flight.geometry",
     "CLASS_LETTERS": ".motor.classes",
     "Catalog": ".catalog",
     "CatalogError": ".errors",
@@ -33,9 +34,12 @@ _EXPORTS = {
     "DesignationError": ".errors",
     "DispersionSettings": ".flight.dispersion",
     "Finding": ".motor.checks",
+    "Finish": ".flight.geometry",
+    "Fins": ".flight.geometry",
     "FiringSpread": ".motor.record",
     "FlightResults": ".flight",
     "FlightSettings": ".flight",
+    "Geometry": ".flight.geometry",
     "ImpulseClass": ".motor.classes",
     "Launch": ".flight.airframe",
     "LaunchRules": ".flight.rules",
@@ -46,6 +50,7 @@ _EXPORTS = {
     "MotorRecord": ".motor.record",
     "MotorlibError": ".errors",
     "MotorlibWarning": ".errors",
+    "Nose": ".flight.geometry",
     "Provenance": ".motor.record",
     "QuantityError": ".errors",
     "Recovery": ".flight.airframe",
@@ -55,18 +60,25 @@ _EXPORTS = {
     "SchemaValidationError": ".errors",
     "SimulationInputError": ".errors",
     "Site": ".flight.atmosphere",
+    "Stability": ".flight.stability",
+    "Transition": ".flight.geometry",
     "Uncertainty": ".flight.dispersion",
+    "airframe_summary": ".flight.summary",
     "check_file": ".files.curvefiles",
     "check_record": ".motor.checks",
     "class_bounds_ns": ".motor.classes",
+    "drag_summary": ".flight.summary",
+    "drag_table_for": ".flight.drag",
     "fit_apogees": ".flight.calibration",
     "fit_log": ".flight.calibration",
+    "flight_stability": ".flight.stability",
     "format_designation": ".motor.classes",
     "impulse_class_for": ".motor.classes",
     "load_airframe": ".files.airframe_toml",
     "load_curve_file": ".files.curvefiles",
     "load_uncertainty": ".files.airframe_toml",
     "metrics": ".motor.checks",
+    "nose_weight_kg": ".flight.stability",
     "parse_designation": ".motor.classes",
     "parse_quantity": ".units",
     "rank": ".matching.rank",
@@ -81,6 +93,8 @@ _EXPORTS = {
     "rounded_impulse_ns": ".motor.classes",
     "run_scatter": ".flight.dispersion",
     "simulate": ".flight",
+    "stability_for": ".flight.stability",
+    "stability_for_records": ".flight.stability",
     "write_record": ".files.motor_xml",
 }
 # Subpackages reachable as attributes after ``import motorlib``, as when the re-exports were eager.
@@ -88,6 +102,10 @@ _SUBMODULES = frozenset({"catalog", "errors", "files", "flight", "matching", "mo
 
 if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
     from .flight.airframe import Airframe, Launch, Recovery
+    from .flight.drag import drag_table_for
+    from .flight.geometry import Body, Finish, Fins, Geometry, Nose, Transition
+    from .flight.stability import Stability, flight_stability, nose_weight_kg, stability_for, stability_for_records
+    from .flight.summary import airframe_summary, drag_summary
     from .files.airframe_toml import load_airframe
     from .flight.atmosphere import Site
     from .catalog import Catalog, CatalogFilter
@@ -149,6 +167,7 @@ def __dir__() -> list[str]:
 
 __all__ = [
     "Airframe",
+    "Body",
     "CLASS_LETTERS",
     "Catalog",
     "CatalogError",
@@ -165,9 +184,12 @@ __all__ = [
     "DesignationError",
     "DispersionSettings",
     "Finding",
+    "Finish",
+    "Fins",
     "FiringSpread",
     "FlightResults",
     "FlightSettings",
+    "Geometry",
     "ImpulseClass",
     "Launch",
     "LaunchRules",
@@ -178,6 +200,7 @@ __all__ = [
     "MotorRecord",
     "MotorlibError",
     "MotorlibWarning",
+    "Nose",
     "Provenance",
     "QuantityError",
     "Recovery",
@@ -187,19 +210,26 @@ __all__ = [
     "SchemaValidationError",
     "SimulationInputError",
     "Site",
+    "Stability",
+    "Transition",
     "Uncertainty",
     "__version__",
+    "airframe_summary",
     "check_file",
     "check_record",
     "class_bounds_ns",
+    "drag_summary",
+    "drag_table_for",
     "fit_apogees",
     "fit_log",
+    "flight_stability",
     "format_designation",
     "impulse_class_for",
     "load_airframe",
     "load_curve_file",
     "load_uncertainty",
     "metrics",
+    "nose_weight_kg",
     "parse_designation",
     "parse_quantity",
     "rank",
@@ -214,5 +244,7 @@ __all__ = [
     "rounded_impulse_ns",
     "run_scatter",
     "simulate",
+    "stability_for",
+    "stability_for_records",
     "write_record",
 ]

@@ -21,7 +21,11 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
               help="Ejection delay to use, e.g. 6s; a bare number is s (default: the listed delay closest to the "
                    "optimal one).")
 @click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g", minimum=0.0), default=None,
-              help="Mass added to the airframe, with a unit (e.g. 25g, 1.2oz).")
+              help="Mass added to the airframe, with a unit (e.g. 25g, 1.2oz); counted at half the nose length "
+                   "for the stability margin.")
+@click.option("--min-stability", "min_stability_cal", type=click.FloatRange(min=0.0), default=None,
+              help="Warn below this stability margin in calibers when the airframe has a [geometry] (default 1: "
+                   "common practice, no published source).")
 @_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False),
@@ -33,13 +37,16 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
               help="Write a printable pre-flight report (one self-contained HTML file, at most two pages).")
 @click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists.")
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
-        units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None, report_path: str | None,
+        min_stability_cal: float | None, units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None, report_path: str | None,
         overwrite: bool) -> None:
     """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
 
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
     speed at each delay, and descent figures when the airframe has recovery,
     with warnings from launch rules of thumb. Times count from motor ignition.
+    With a [geometry] in the airframe file it also gives the stability margin
+    at liftoff, rail exit and burnout, and, when the file gives no Cd, flies
+    the drag estimated from the shape.
 
     \b
     Example:
@@ -48,6 +55,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
       motorlib fly my-rocket.toml --motor static-3.xml --delay 8s --units imperial
       motorlib fly my-rocket.toml --motor G59-10 --ballast 25g --csv g59.csv
       motorlib fly my-rocket.toml --motor G59-10 --report preflight.html
+      motorlib fly sample_curves/airframes/quibble-41.toml --motor G59-10 \\
+          --min-stability 1.5 --json
     """
     import numpy as np
 
@@ -73,6 +82,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
     warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    warnings += _stability_and_drag(frame, record, results, summary, ballast_kg or 0.0, min_stability_cal)
     if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
         from ..present.messages import warning_message
 
@@ -110,6 +120,23 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)
+
+
+def _stability_and_drag(frame: Any, record: Any, results: Any, summary: dict[str, Any], ballast_kg: float,
+                        min_stability_cal: float | None) -> list[tuple[str, str]]:
+    """Add ``stability``, ``drag_source`` and ``drag`` to ``summary``; return the stability warnings."""
+    from ..flight.stability import MIN_STABILITY_CAL, flight_stability, stability_warnings
+    from ..flight.summary import drag_summary
+
+    required = MIN_STABILITY_CAL if min_stability_cal is None else min_stability_cal
+    stability = flight_stability(frame, [record], results, added_mass_kg=ballast_kg)
+    summary["stability"] = None if stability is None else stability.as_dict(0)
+    summary["min_stability_cal"] = required
+    summary["drag_source"] = frame.drag_source
+    summary["drag"] = drag_summary(frame)
+    if stability is None:
+        return []
+    return stability_warnings(summary["stability"]["min_margin_cal"], min_margin_cal=required)
 
 
 def _load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:

@@ -64,6 +64,9 @@ def _match_options(func: Any) -> Any:
         click.option("--ballast", is_flag=True,
                      help="Solve the nose weight that brings every motor too strong for the target or the ceiling "
                           "down to the target, and re-check every rule with it."),
+        click.option("--min-stability", "min_stability_cal", type=click.FloatRange(min=0.0), default=None,
+                     help="Least stability margin in calibers over the powered flight, when the airframe has a "
+                          "[geometry] (default 1: common practice, no published source)."),
         _units_option,
         click.option("--json", "as_json", is_flag=True, help="Print {airframe, conditions, candidates} as JSON (SI)."),
         click.option("--csv", "as_csv", is_flag=True,
@@ -116,7 +119,8 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         from ..present.csvout import rows_csv
         from ..present.messages import note_text, reason_text
 
-        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "notes", "note_codes")
+        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "notes", "note_codes",
+                "nose_weight_reasons", "nose_weight_reason_codes")
         columns = [k for k in result.candidates[0] if k not in skip] + ["reasons", "notes"]
         rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, result.conditions, units)
                                            for code, text in zip(c["reason_codes"], c["reasons"])),
@@ -158,6 +162,8 @@ def match_settings(opts: dict[str, Any]) -> Any:
         if kind == "length" and not opts["target_m"]:
             raise click.UsageError("--target-tolerance as a length needs --target")
         extra["target_tolerance"] = value / opts["target_m"] if kind == "length" else value
+    if opts.get("min_stability_cal") is not None:
+        extra["min_stability_cal"] = opts["min_stability_cal"]
     try:
         return MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
                              rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
@@ -176,8 +182,10 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     Motors that fit the mount (and the class limit) are flown together; each
     gets its apogee, rail exit speed, liftoff thrust-to-weight, optimal delay,
     the closest available delay and the ejection speed with it, and the
-    reasons it fails any rule. With --target the ranking is by closeness to
-    it; otherwise by apogee under the ceiling. Good choices come first:
+    reasons it fails any rule. With a [geometry] in the airframe file a motor
+    that leaves less than --min-stability fails, with the nose weight that
+    restores the margin flown again. With --target the ranking is by closeness
+    to it; otherwise by apogee under the ceiling. Good choices come first:
     'pass' (every rule, within --target-tolerance of the target), then
     'pass with ballast' (with --ballast), then 'off target' (safe, but
     misses the target), then 'fail' and the motors that cannot fly.

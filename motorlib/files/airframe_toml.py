@@ -241,10 +241,11 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             drag_table = tuple((float(m), float(c)) for m, c in raw)
         except (TypeError, ValueError):
             raise SimulationInputError(source, "airframe.drag_table", "every [mach, cd] entry must be two numbers") from None
-    elif "drag_coefficient" not in body:
-        raise SimulationInputError(source, "airframe.drag_coefficient", "missing; give drag_coefficient or drag_table")
-    cd = body.get("drag_coefficient", 0.5)
-    if isinstance(cd, bool) or not isinstance(cd, (int, float)):
+    elif "drag_coefficient" not in body and "geometry" not in data:
+        raise SimulationInputError(source, "airframe.drag_coefficient",
+                                   "missing; give drag_coefficient or drag_table, or a [geometry] to estimate it from")
+    cd = body.get("drag_coefficient")  # None with no table: estimated from [geometry]
+    if cd is not None and (isinstance(cd, bool) or not isinstance(cd, (int, float))):
         raise SimulationInputError(source, "airframe.drag_coefficient", f"expected a number, got {cd!r}")
     try:
         site = Site(
@@ -282,7 +283,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             name=name,
             mass_kg=_quantity(source, body, "airframe", "mass", "mass", required=True),
             diameter_m=_quantity(source, body, "airframe", "diameter", "length", required=True),
-            drag_coefficient=float(cd),
+            drag_coefficient=None if cd is None else float(cd),
             drag_table=drag_table,
             mount_diameter_m=_quantity(source, body, "airframe", "mount_diameter", "length"),
             mount_length_m=_quantity(source, body, "airframe", "mount_length", "length"),

@@ -9,7 +9,8 @@ State per flight: downrange x, altitude z above the pad, and their speeds
   samples) and mass (propellant consumed in proportion to impulse delivered);
 * gravity g(Z) = g0·(r0/(r0+Z))² at geometric altitude Z (or constant g0);
 * drag D = ½·ρ·|v_rel|²·(Cd·A + Cd·A of a deployed device) against the
-  air-relative velocity v_rel = v − wind; Cd constant or linear in Mach;
+  air-relative velocity v_rel = v − wind; Cd constant or linear in Mach (a
+  powered table while the motor burns when the drag is estimated from the shape);
 * air from the U.S. Standard Atmosphere 1976 with the site's offsets
   (:mod:`motorlib.flight.atmosphere`), read from a 5 m table of ρ and a;
 * wind blowing downrange, w(z) = w10·(max(z, z_floor)/10 m)^(1/7), the usual

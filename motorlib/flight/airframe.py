@@ -4,6 +4,15 @@ Drag of the airframe: ``D = ½·ρ·v²·Cd·A`` with A = π·d²/4 from the ref
 diameter and Cd constant or interpolated linearly in Mach number from a table
 (held constant beyond its ends). Recovery devices add their own drag area
 ``Cd·A`` after deployment.
+
+Where the drag comes from (``Airframe.drag_source``): ``given`` when a constant Cd or a
+table is passed (or, with neither and no geometry, the default Cd 0.5); ``estimated`` when
+neither is passed and the airframe has a ``geometry``: then the component build-up of
+:mod:`.drag` gives a coasting table (``drag_table``) and a powered one
+(``drag_table_powered``, smaller base drag while the exhaust fills part of the base), and
+the flight uses the powered table while the motor burns. The estimate is made once, when the
+record is built: ``dataclasses.replace`` keeps the tables (to estimate again for a changed
+shape, pass ``drag_coefficient=None, drag_table=(), drag_table_powered=(), drag_source=None``).
 """
 
 from __future__ import annotations
@@ -16,9 +25,14 @@ from .atmosphere import Site
 from .geometry import Geometry, check_diameters
 from ..errors import SimulationInputError
 
-__all__ = ["DEPLOY_MODES", "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
+__all__ = ["DEFAULT_DRAG_COEFFICIENT", "DEPLOY_MODES", "DRAG_SOURCES", "ESTIMATE_MACH_STEP", "ESTIMATE_MAX_MACH",
+           "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
 
 RECOVERY_DEVICES: Final = ("parachute", "streamer", "none")
+DRAG_SOURCES: Final = ("given", "estimated")
+DEFAULT_DRAG_COEFFICIENT: Final = 0.5  # the record's long-standing default; sport models run 0.45-0.75 (common practice)
+ESTIMATE_MAX_MACH: Final = 4.0  # the estimated tables reach this Mach number (held constant beyond)
+ESTIMATE_MACH_STEP: Final = 0.02  # their spacing: linear interpolation errs by < 0.3 % (tests/flight/test_drag_flight.py)
 DEPLOY_MODES: Final = ("ejection", "apogee", "altitude")
 
 
@@ -102,10 +116,17 @@ class Airframe:
         Empty mass, without motor [kg].
     diameter_m : float
         Reference diameter for drag [m].
-    drag_coefficient : float
-        Constant Cd, used when ``drag_table`` is empty.
+    drag_coefficient : float or None
+        Constant Cd, used when ``drag_table`` is empty. None (the default) with no table:
+        estimated from the ``geometry`` when there is one, else 0.5.
     drag_table : tuple of (mach, cd)
-        Cd against Mach, Mach strictly increasing; linear between points.
+        Cd against Mach, Mach strictly increasing; linear between points. With
+        ``drag_table_powered`` it is the coasting table.
+    drag_table_powered : tuple of (mach, cd)
+        Cd while the motor burns, on the Mach numbers of ``drag_table``; empty: the
+        same drag burning or not.
+    drag_source : str or None
+        ``given`` or ``estimated`` (see the module docstring); worked out when None.
     mount_diameter_m, mount_length_m : float or None
         Motor mount diameter and the longest motor that fits [m].
     launch : Launch
@@ -119,18 +140,26 @@ class Airframe:
     name: str
     mass_kg: float
     diameter_m: float
-    drag_coefficient: float = 0.5
+    drag_coefficient: float | None = None
     drag_table: tuple[tuple[float, float], ...] = ()
     mount_diameter_m: float | None = None
     mount_length_m: float | None = None
     launch: Launch = field(default_factory=Launch)
     recovery: Recovery | None = None
     geometry: Geometry | None = None
+    drag_table_powered: tuple[tuple[float, float], ...] = ()
+    drag_source: str | None = None
 
     def __post_init__(self) -> None:
         src = self.name or "airframe"
         _require(src, "airframe.mass", 0.0 < self.mass_kg <= 2000.0, f"must be above 0 and at most 2000 kg, got {self.mass_kg!r} kg")
         _require(src, "airframe.diameter", 0.0 < self.diameter_m <= 2.0, f"must be above 0 and at most 2 m, got {self.diameter_m!r} m")
+        if self.geometry is not None:
+            try:
+                check_diameters(self.geometry, self.diameter_m)
+            except SimulationInputError as exc:
+                raise SimulationInputError(src, exc.field, exc.problem) from None
+        self._resolve_drag()
         table = tuple((float(m), float(c)) for m, c in self.drag_table)
         object.__setattr__(self, "drag_table", table)
         if table:
@@ -143,11 +172,38 @@ class Airframe:
                      f"must lie between 0 and 5, got {self.drag_coefficient!r}")
         for key, value in (("airframe.mount_diameter", self.mount_diameter_m), ("airframe.mount_length", self.mount_length_m)):
             _require(src, key, value is None or value > 0.0, f"must be above 0, got {value!r}")
-        if self.geometry is not None:
-            try:
-                check_diameters(self.geometry, self.diameter_m)
-            except SimulationInputError as exc:
-                raise SimulationInputError(src, exc.field, exc.problem) from None
+        powered = tuple((float(m), float(c)) for m, c in self.drag_table_powered)
+        object.__setattr__(self, "drag_table_powered", powered)
+        if powered:
+            _require(src, "airframe.drag_table_powered", [m for m, _ in powered] == [m for m, _ in table],
+                     "must have the Mach numbers of drag_table")
+            _require(src, "airframe.drag_table_powered", all(0.0 < c < 5.0 for _, c in powered),
+                     "every Cd must lie between 0 and 5")
+        _require(src, "airframe.drag_source", self.drag_source in DRAG_SOURCES,
+                 f"must be one of {', '.join(DRAG_SOURCES)}, got {self.drag_source!r}")
+
+    def _resolve_drag(self) -> None:
+        """Fill in the drag when none is given: the shape's estimate, else the default Cd 0.5."""
+        if self.drag_coefficient is not None or self.drag_table:
+            if self.drag_source is None:
+                object.__setattr__(self, "drag_source", "given")
+            if self.drag_coefficient is None:
+                object.__setattr__(self, "drag_coefficient", DEFAULT_DRAG_COEFFICIENT)
+            return
+        if self.geometry is None:
+            object.__setattr__(self, "drag_coefficient", DEFAULT_DRAG_COEFFICIENT)
+            object.__setattr__(self, "drag_source", self.drag_source or "given")
+            return
+        from .drag import drag_curves  # drag.py refers to this module for annotations only
+
+        mach, powered, coasting = drag_curves(self.geometry, self.diameter_m, max_mach=ESTIMATE_MAX_MACH,
+                                              mach_step=ESTIMATE_MACH_STEP,
+                                              altitude_m=self.launch.site.elevation_m,
+                                              exhaust_diameter_m=self.mount_diameter_m)
+        object.__setattr__(self, "drag_table", tuple(zip(mach.tolist(), coasting.tolist())))
+        object.__setattr__(self, "drag_table_powered", tuple(zip(mach.tolist(), powered.tolist())))
+        object.__setattr__(self, "drag_coefficient", float(coasting[0]))
+        object.__setattr__(self, "drag_source", "estimated")
 
     @property
     def reference_area_m2(self) -> float:
@@ -161,3 +217,8 @@ class Airframe:
     @property
     def drag_cds(self) -> tuple[float, ...]:
         return tuple(c for _, c in self.drag_table) if self.drag_table else (self.drag_coefficient,)
+
+    @property
+    def drag_cds_powered(self) -> tuple[float, ...]:
+        """Cd on :attr:`drag_machs` while the motor burns (the coasting values when no powered table)."""
+        return tuple(c for _, c in self.drag_table_powered) if self.drag_table_powered else self.drag_cds

@@ -496,14 +496,15 @@ def stability_spread(frame: Airframe, record: MotorRecord, cg_shift_m: np.ndarra
     """Stability margin percentiles and P(margin below ``min_margin_cal``) from sampled CG shifts.
 
     A shift δ of the empty airframe's CG moves the loaded CG by δ·m_airframe/m_total;
-    the margin (CP − CG)/d moves with it. None without a geometry or motor masses.
+    the margin (CP − CG)/d moves with it. None without a geometry, motor masses or motor length
+    (a guessed length would give a guessed margin).
     """
-    if frame.geometry is None or record.total_mass_kg is None or record.propellant_mass_kg is None:
+    if (frame.geometry is None or record.total_mass_kg is None or record.propellant_mass_kg is None
+            or record.length_m is None):
         return None
     from .stability import stability_for
 
-    length = record.length_m if record.length_m is not None else 0.1
-    s = stability_for(frame, record.total_mass_kg, record.propellant_mass_kg, length)
+    s = stability_for(frame, record.total_mass_kg, record.propellant_mass_kg, record.length_m)
     liftoff = frame.mass_kg + record.total_mass_kg
     burnout = liftoff - record.propellant_mass_kg
     m_lift = float(np.ravel(s.margin_liftoff_cal)[0]) - cg_shift_m * frame.mass_kg / liftoff / frame.diameter_m

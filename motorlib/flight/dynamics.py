@@ -45,6 +45,7 @@ class _Group:
     machs: np.ndarray
     cds: np.ndarray
     table_cd: bool
+    cds_powered: np.ndarray | None = None  # Cd while burning on ``machs`` (estimated drag); None: as ``cds``
 
     def lookup(self, z: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """Density, speed of sound, gravity and wind shape w(z)/w(10 m) at heights z above the pad.
@@ -77,7 +78,8 @@ def _make_group(frame: Airframe, s: FlightSettings) -> _Group:
     return _Group(base_m=float(heights[0]), step_m=_TABLE_STEP_M, rho=rho, sound=sound, gravity=gravity,
                   wind_floor_m=s.wind_floor_m, wind_exponent=s.wind_exponent,
                   machs=np.array(frame.drag_machs), cds=np.array(frame.drag_cds),
-                  table_cd=bool(frame.drag_table))
+                  table_cd=bool(frame.drag_table),
+                  cds_powered=np.array(frame.drag_cds_powered) if frame.drag_table_powered else None)
 
 
 def _accel(g: _Group, a: dict[str, np.ndarray], t, x, z, vx, vz):
@@ -95,6 +97,8 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, z, vx, vz):
     speed = np.sqrt(vrx * vrx + vz * vz)
     mach = speed / sound
     cd = np.interp(mach, g.machs, g.cds) if g.table_cd else a["cd"]
+    if g.cds_powered is not None:  # smaller base drag while the exhaust fills part of the base
+        cd = np.where(burning, np.interp(mach, g.machs, g.cds_powered), cd)
     half_rho_v = 0.5 * rho * speed
     drag_per_v = half_rho_v * (cd * a["area"] + a["extra"])  # drag force / |v_rel|
     # free flight: thrust along v_rel (weathercocking), drag against it

@@ -112,7 +112,7 @@ def simulate(
     ----------
     airframe : Airframe or sequence of Airframe
         One airframe for all motors, or one per motor. Flights that share a
-        launch site, drag table and recovery device are integrated together;
+        launch site, drag tables and recovery device are integrated together;
         mass, diameter, constant Cd, rail and wind may differ per flight.
     motors : sequence of MotorRecord, one MotorRecord, or MotorPack
     settings : FlightSettings, optional
@@ -152,7 +152,7 @@ def simulate(
     traj: list[dict[str, np.ndarray] | None] = [None] * n
     groups: dict[tuple, list[int]] = {}
     for i, frame in enumerate(frames):
-        groups.setdefault((frame.launch.site, frame.drag_table, frame.recovery), []).append(i)
+        groups.setdefault((frame.launch.site, frame.drag_table, frame.drag_table_powered, frame.recovery), []).append(i)
     for members in groups.values():
         members_idx = np.array(members)
         _fly_group([frames[i] for i in members], pack, members_idx, added, s, out,

@@ -61,6 +61,7 @@ __all__ = [
     "cg_m",
     "cg_with_motor_m",
     "default_nose_weight_position_m",
+    "flight_stability",
     "nose_weight_kg",
     "stability_for",
     "stability_for_pack",
@@ -435,6 +436,37 @@ def stability_for_records(airframe: Airframe, records: list[MotorRecord], *,
     lengths = np.array([np.nan if r.length_m is None else r.length_m for r in records], dtype=float)
     return stability_for_pack(airframe, MotorPack.from_records(records), lengths, rail_exit_time_s=rail_exit_time_s,
                               mach=mach, added_mass_kg=added_mass_kg, added_mass_position_m=added_mass_position_m)
+
+
+def flight_stability(airframe: Airframe, records: list[MotorRecord], results: Any, *,
+                     added_mass_kg: np.ndarray | float = 0.0, added_mass_position_m: float | None = None
+                     ) -> Stability | None:
+    """Stability of flown flights: margins at liftoff, at rail exit (the flight's own) and at burnout.
+
+    Parameters
+    ----------
+    airframe : Airframe
+        Without a ``geometry`` there is no stability to tell: None is returned.
+    records : list of MotorRecord
+        The motors flown, shape (n_motors,), in the order of ``results``.
+    results : FlightResults
+        Their flights; ``rail_exit_time_s`` (from ignition, NaN where the rocket never left)
+        sets how much propellant has burnt at rail exit.
+    added_mass_kg : float or ndarray
+        Ballast or nose weight flown with [kg], taken to sit at ``added_mass_position_m``
+        (default :func:`default_nose_weight_position_m`).
+    added_mass_position_m : float, optional
+        Its position from the nose tip [m].
+
+    Returns
+    -------
+    Stability or None
+        With the subsonic CP (Mach 0, the cautious choice; see the module docstring).
+    """
+    if airframe.geometry is None:
+        return None
+    return stability_for_records(airframe, records, rail_exit_time_s=np.asarray(results.rail_exit_time_s, dtype=float),
+                                 added_mass_kg=added_mass_kg, added_mass_position_m=added_mass_position_m)
 
 
 def nose_weight_kg(stability: Stability, required_margin_cal: float = MIN_STABILITY_CAL, *,

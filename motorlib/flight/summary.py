@@ -22,7 +22,7 @@ if TYPE_CHECKING:
     from ..motor.record import MotorRecord
     from .airframe import Airframe
 
-__all__ = ["DEFAULT_TABLE_MACHS", "airframe_summary"]
+__all__ = ["DEFAULT_TABLE_MACHS", "airframe_summary", "drag_summary"]
 
 # Mach numbers of the printed Cd table: dense through the transonic rise, where Cd changes fastest
 DEFAULT_TABLE_MACHS: Final = (0.0, 0.3, 0.5, 0.7, 0.8, 0.9, 0.95, 1.0, 1.05, 1.1, 1.2, 1.5, 2.0, 2.5, 3.0)
@@ -137,3 +137,33 @@ def airframe_summary(airframe: Airframe, motor: MotorRecord | None = None, *, ma
     out["drag_given"] = {"drag_coefficient": None if airframe.drag_table else airframe.drag_coefficient,
                          "drag_table": [list(row) for row in airframe.drag_table] or None, "cd_at_mach": given_at_mach}
     return out
+
+
+def drag_summary(airframe: Airframe, mach: float = 0.3) -> dict[str, Any]:
+    """Where the flight's drag comes from, and the shape's estimate beside a given Cd.
+
+    Parameters
+    ----------
+    airframe : Airframe
+    mach : float
+        Mach number the two Cd are compared at, >= 0 (coasting values).
+
+    Returns
+    -------
+    dict
+        ``drag_source`` (``given`` or ``estimated``), ``mach``, ``cd_flown`` (the coasting Cd the
+        flight uses at ``mach``) and ``cd_estimated`` (the shape's coasting estimate there; None
+        without a geometry). When the drag is estimated the two are the same figure.
+
+    >>> from motorlib.flight.airframe import Airframe
+    >>> drag_summary(Airframe("a", 0.3, 0.04, drag_coefficient=0.6))
+    {'drag_source': 'given', 'mach': 0.3, 'cd_flown': 0.6, 'cd_estimated': None}
+    """
+    if not mach >= 0.0:
+        raise ValueError("`mach` must be >= 0")
+    flown = float(np.interp(mach, airframe.drag_machs, airframe.drag_cds))
+    estimated = None
+    if airframe.geometry is not None:
+        breakdown = drag_breakdown(airframe.geometry, airframe.diameter_m, mach, **drag_conditions_for(airframe))
+        estimated = breakdown["total, coasting"]
+    return {"drag_source": airframe.drag_source, "mach": float(mach), "cd_flown": flown, "cd_estimated": estimated}

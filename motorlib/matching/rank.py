@@ -31,6 +31,7 @@ from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
 from ..flight.results import NO_LIFTOFF, OK, STUCK_ON_RAIL, FlightResults
 from ..flight.rules import LaunchRules
+from ..flight.stability import MIN_STABILITY_CAL, nose_weight_kg, stability_for_pack
 from ..units import STANDARD_GRAVITY_M_S2
 from .adapters import adapter_steps, adapter_text
 from .verdicts import classify, verdict_order
@@ -65,6 +66,9 @@ class MatchSettings:
     target_tolerance : float
         Half-width of the target band as a fraction of the target (default 0.05, ±5 %); a safe motor outside
         it is ``off target``.
+    min_stability_cal : float
+        Least static margin over the powered flight [calibers] when the airframe has a
+        geometry; default 1 caliber (common practice, no published source).
     """
 
     target_m: float | None = None
@@ -77,12 +81,15 @@ class MatchSettings:
     ballast: bool = False
     target_tolerance: float = 0.05
     adapter_steps: int = 2
+    min_stability_cal: float = MIN_STABILITY_CAL
 
     def __post_init__(self) -> None:
         if not 0.0 < self.target_tolerance < 1.0:
             raise ValueError(f"`target_tolerance` must be a fraction between 0 and 1, got {self.target_tolerance!r}")
         if int(self.adapter_steps) != self.adapter_steps or self.adapter_steps < 1:
             raise ValueError(f"`adapter_steps` must be a whole number of at least 1, got {self.adapter_steps!r}")
+        if not (math.isfinite(self.min_stability_cal) and self.min_stability_cal >= 0.0):
+            raise ValueError(f"`min_stability_cal` must be finite and >= 0, got {self.min_stability_cal!r}")
         if self.max_class is not None and self.max_class not in CLASS_LETTERS:
             raise ValueError(f"`max_class` must be one of {', '.join(CLASS_LETTERS)}, got {self.max_class!r}")
         if self.ballast and self.target_m is None:
@@ -214,6 +221,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
         pack = pack_for(sub)
         results = simulate(frame, pack, fs, descent=False)
         figures = _figures(frame, sub, pack, results, s)
+        _check_stability(frame, sub, pack, results, figures, s, fs)
         if s.ballast:
             _solve_ballast(frame, sub, pack, figures, s, fs)
         for k, i in enumerate(fitting):
@@ -272,6 +280,11 @@ def _judge(c: dict[str, Any], s: MatchSettings) -> None:
     if c["adapter"] is not None and c["fits"]:
         c["notes"], c["note_codes"] = [f"needs a {c['adapter']} adapter"], ["adapter"]
     classify(c, s.target_m, s.target_tolerance)
+
+
+_STABILITY_KEYS = ("stability_margin_cal", "nose_weight_for_stability_kg", "nose_weight_apogee_m",
+                   "nose_weight_stability_margin_cal", "nose_weight_reasons", "nose_weight_reason_codes")
+_FIGURE_KEYS += _STABILITY_KEYS
 
 
 def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
@@ -446,6 +459,77 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         figures["ballast_reason_codes"][i] = [code for code, _ in broken]
 
 
+# ----------------------------------------------------------------------------- stability (issue 11)
+_NOSE_WEIGHT_STEP_KG = 1e-4  # the solved nose weight is rounded up to 0.1 g: it then meets the margin, never misses
+
+
+def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
+                     figures: dict[str, Any], s: MatchSettings, fs: FlightSettings) -> None:
+    """Fail every motor that leaves the rocket under ``s.min_stability_cal``; solve its nose weight and re-fly.
+
+    The margin is the smallest of liftoff, rail exit and burnout (:mod:`motorlib.flight.stability`),
+    with the subsonic CP. A motor below it gets a reason with the code ``stability``; the nose
+    weight that restores the margin (closed form, at half the nose length) is flown again with
+    every motor that needs one, in one batch, and every rule is checked again on that flight
+    (``nose_weight_reasons``). The motor's own reason stays: a solved weight is advice, not a pass.
+    Without a geometry the keys are None and nothing is checked.
+    """
+    n = len(rows)
+    for key in _STABILITY_KEYS:
+        figures[key] = [None] * n
+    if frame.geometry is None:
+        return
+    lengths = np.array([np.nan if r["length_m"] is None else r["length_m"] for r in rows], dtype=float)
+    stability = stability_for_pack(frame, pack, lengths, rail_exit_time_s=results.rail_exit_time_s)
+    margin = stability.min_margin_cal
+    weight = nose_weight_kg(stability, s.min_stability_cal)
+    weight = np.where(weight > 0.0, np.ceil(weight / _NOSE_WEIGHT_STEP_KG) * _NOSE_WEIGHT_STEP_KG, weight)
+    for i in range(n):
+        figures["stability_margin_cal"][i] = float(margin[i]) if np.isfinite(margin[i]) else None
+        reason = _stability_reason(margin[i], s.min_stability_cal, weight[i])
+        if reason is not None:
+            figures["_reasons"][i].append(reason)
+    need = np.flatnonzero(np.isfinite(weight) & (weight > 0.0))
+    if need.size:
+        _refly_with_nose_weight(frame, rows, pack, lengths, need, weight[need], figures, s, fs)
+
+
+def _stability_reason(margin_cal: float, required_cal: float, weight_kg: float) -> tuple[str, str] | None:
+    """("stability", message) when the least margin is unknown or below ``required_cal``; None when it holds."""
+    if not np.isfinite(margin_cal):
+        return ("stability", "stability unknown: the motor's length or masses are not given")
+    if margin_cal >= required_cal:
+        return None
+    what = (f"unstable: stability margin {margin_cal:.2f} cal, the CG lies behind the CP" if margin_cal < 0.0
+            else f"stability margin {margin_cal:.2f} cal, below {required_cal:g} cal")
+    if np.isinf(weight_kg):
+        return ("stability", what + "; no nose weight can restore it (enlarge the fins)")
+    return ("stability", what + f"; {weight_kg * 1e3:.1f} g of nose weight restores it")
+
+
+def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, lengths: np.ndarray,
+                            idx: np.ndarray, weight_kg: np.ndarray, figures: dict[str, Any], s: MatchSettings,
+                            fs: FlightSettings) -> None:
+    """Fly the motors ``idx`` again carrying their nose weight and check every rule, stability included."""
+    sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
+    sub_rows = [rows[i] for i in idx]
+    final = simulate(frame, sub, fs, added_mass_kg=weight_kg, descent=False)
+    again = _figures(frame, sub_rows, sub, final, s)
+    stability = stability_for_pack(frame, sub, lengths[idx], rail_exit_time_s=final.rail_exit_time_s,
+                                   added_mass_kg=weight_kg)
+    for k, i in enumerate(idx):
+        margin = float(stability.min_margin_cal[k])
+        broken = list(again["_reasons"][k])
+        reason = _stability_reason(margin, s.min_stability_cal, np.inf)
+        if reason is not None:  # the solve aims at the margin: this would be a defect, never hidden
+            broken.append(reason)
+        figures["nose_weight_for_stability_kg"][i] = float(weight_kg[k])
+        figures["nose_weight_apogee_m"][i] = again["apogee_m"][k]
+        figures["nose_weight_stability_margin_cal"][i] = margin if np.isfinite(margin) else None
+        figures["nose_weight_reasons"][i] = [text for _, text in broken]
+        figures["nose_weight_reason_codes"][i] = [code for code, _ in broken]
+
+
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
     launch = frame.launch
     site = launch.site
@@ -456,8 +540,11 @@ def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
         "delay_slack_s": s.delay_slack_s, "max_ejection_speed_m_s": s.rules.max_ejection_speed_m_s,
         "max_landing_speed_m_s": s.rules.max_landing_speed_m_s, "allow_smaller_motors": s.allow_smaller_motors,
         "adapter_steps": s.adapter_steps, "target_tolerance": s.target_tolerance,
-        "drag": (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+        "drag": ("estimated from the shape, Cd(Mach) powered and coasting" if frame.drag_source == "estimated"
+                 else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
                  else f"Cd {frame.drag_coefficient:g}") + f" on {frame.diameter_m * 1e3:.4g} mm",
+        "drag_source": frame.drag_source,
+        "min_stability_cal": s.min_stability_cal if frame.geometry is not None else None,
         "atmosphere": "U.S. Standard Atmosphere 1976" + (f", {site.elevation_m:.0f} m elevation" if site.elevation_m else "")
                       + (f", {site.temperature_k - 273.15:.1f} degC at the pad" if site.temperature_k else "")
                       + (f", {site.pressure_pa / 100:.0f} hPa at the pad" if site.pressure_pa else ""),

@@ -106,6 +106,18 @@ def _success(flights: dict[str, np.ndarray], frame: Airframe, match: MatchSettin
     return out
 
 
+def _stability_flags(frame: Airframe, records: Sequence[MotorRecord], match: MatchSettings, n: int
+                     ) -> np.ndarray | None:
+    """Every sample of a motor whose nominal least margin (liftoff or burnout) is under ``match.min_stability_cal``,
+    or unknown, fails "stability"; shape (n_motors·n,) in the samples' order. None without a geometry."""
+    if frame.geometry is None:
+        return None
+    from ..flight.stability import stability_for_records
+
+    margin = stability_for_records(frame, list(records)).min_margin_cal
+    return np.repeat(~(margin >= match.min_stability_cal), n)  # NaN (unknown) fails too
+
+
 def _percentiles(values: np.ndarray) -> dict[str, float | None]:
     finite = values[np.isfinite(values)]
     if finite.size == 0:
@@ -164,6 +176,9 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
     flights = run_samples(frame, records, uncertainties, motor_index, sample_index, ds, delays, descent=descent,
                           workers=workers, progress=progress)
     flags = _success(flights, frame, match, settings)
+    stability = _stability_flags(frame, records, match, n)
+    if stability is not None:
+        flags["stability"] = stability
     failed = np.zeros(m * n, dtype=bool)
     for bad in flags.values():
         failed |= bad

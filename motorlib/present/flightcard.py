@@ -177,15 +177,34 @@ def _pad(s: dict[str, Any], r: Any, u: str, wind: float, warnings: list[tuple[st
     ]
     stability = s.get("stability")
     if stability:
-        margin = stability.get("margin_rail_exit_cal")
-        if margin is None:
-            margin = stability.get("min_margin_cal")
-        low = stability.get("min_margin_cal")
-        verdict = "info" if low is None else ("fail" if low < 0 else "caution" if low < 1.0 or low > 3.0 else "ok")
-        figures.append(CardFigure("stability", "unknown" if margin is None else
-                                  f"{margin:.2f} cal" + ("" if low is None else f" (least {low:.2f})"),
-                                  verdict, "1 to 3 cal"))
+        figures.append(_stability_figure(stability, s.get("min_stability_cal")))
     return Phase("pad", "Pad and rail", tuple(figures), tuple(warnings))
+
+
+def _stability_figure(stability: dict[str, Any], required_cal: Any) -> CardFigure:
+    """The margin off the rail (else the least), marked against the required margin and the over-stable limit."""
+    from ..flight.stability import MIN_STABILITY_CAL, OVERSTABLE_CAL
+
+    need = MIN_STABILITY_CAL if required_cal is None else float(required_cal)
+    margin = stability.get("margin_rail_exit_cal")
+    if margin is None:
+        margin = stability.get("min_margin_cal")
+    low = stability.get("min_margin_cal")
+    verdict = "info" if low is None else ("fail" if low < 0 else "caution" if low < need or low > OVERSTABLE_CAL else "ok")
+    return CardFigure("stability", "unknown" if margin is None else
+                      f"{margin:.2f} cal" + ("" if low is None else f" (least {low:.2f})"),
+                      verdict, f"{need:g} to {OVERSTABLE_CAL:g} cal")
+
+
+def _drag_figure(drag: dict[str, Any]) -> CardFigure:
+    """Where the drag came from, with the shape's estimate beside a given Cd."""
+    mach = f"Mach {float(drag['mach']):g}"
+    if drag.get("drag_source") == "estimated":
+        return CardFigure("drag", f"estimated from the shape, Cd {float(drag['cd_flown']):.2f} at {mach}")
+    text = f"given, Cd {float(drag['cd_flown']):.2f} at {mach}"
+    if drag.get("cd_estimated") is not None:
+        text += f" (shape estimate {float(drag['cd_estimated']):.2f})"
+    return CardFigure("drag", text)
 
 
 def _boost(s: dict[str, Any], u: str) -> Phase:
@@ -199,6 +218,8 @@ def _boost(s: dict[str, Any], u: str) -> Phase:
                    + ("" if accel is None else f" ({float(accel) / STANDARD_GRAVITY_M_S2:.1f} g)")),
         CardFigure("dynamic pressure", quantity(s.get("max_dynamic_pressure_pa"), "pressure", u)),
     )
+    if s.get("drag"):
+        figures += (_drag_figure(s["drag"]),)
     return Phase("boost", "Boost", figures)
 
 

@@ -25,6 +25,7 @@ REASON_CODES = {
     "no liftoff": ("N", "no liftoff"), "stuck on rail": ("K", "stuck on the rail"),
     "not flown": ("X", "flight not completed"), "above class": ("A", "above your class limit"),
     "no masses": ("U", "masses unknown"), "no fit": ("M", "does not fit the mount"),
+    "stability": ("B", "too little stability margin (CG too far aft)"),
 }
 
 # Verdict word -> the word in the match table's result column (at most 12 characters, so it fits 80 columns).

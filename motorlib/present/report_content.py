@@ -62,8 +62,7 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
         ("name", frame.name),
         ("empty mass", quantity(frame.mass_kg, "mass", u)),
         ("diameter", f"{frame.diameter_m * 1e3:.1f} mm"),
-        ("drag", f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
-         else f"Cd {frame.drag_coefficient:g}"),
+        ("drag", _drag_words(frame, summary)),
         ("motor mount", "-" if frame.mount_diameter_m is None else f"{frame.mount_diameter_m * 1e3:.0f} mm"
          + ("" if frame.mount_length_m is None else f", up to {frame.mount_length_m * 1e3:.0f} mm long")),
         ("recovery", "none given" if frame.recovery is None else
@@ -112,12 +111,18 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
                          ("margin at burnout", "margin_burnout_cal"), ("least margin", "min_margin_cal")):
             if st.get(k) is not None:
                 rows.append((label, f"{float(st[k]):.2f} calibers"))
-        stability = Facts("Stability", tuple(rows), "Margin in body diameters of CP behind CG; 1 to 3 is the usual range.")
+        need = summary.get("min_stability_cal")
+        stability = Facts("Stability", tuple(rows), "Margin in body diameters of CP behind CG; "
+                          + (f"at least {float(need):g} asked for, " if need is not None else "")
+                          + "1 to 3 is the usual range (common practice).")
     recovery = _recovery_table(summary, u)
     landing = _landing_facts(summary, u)
     notes = [m for _, m in warnings]
     assumptions = Notes("Assumptions", (
-        "Drag from the airframe's Cd; the motor burns as its curve says; propellant mass falls with impulse delivered.",
+        ("Drag estimated from the shape, smaller base drag while the motor burns"
+         if frame.drag_source == "estimated" else "Drag from the airframe's Cd")
+        + "; the motor burns as its curve says; propellant mass falls with impulse delivered.",
+        *_stability_assumptions(summary),
         "Standard atmosphere shifted to the pad's measured air; wind grows with height by a power law.",
         "Recovery device fully open the moment it deploys; no gusts, no weathercocking beyond the model's.",
         "Times count from motor ignition; altitudes are above the pad.",
@@ -129,6 +134,27 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
         side_chart=side, stability=stability, recovery=recovery, landing=landing,
         warnings=Notes("Warnings", tuple(notes), "warning") if notes else Notes("Warnings", ("None from the rules of thumb.",)),
         assumptions=assumptions)
+
+
+def _drag_words(frame: Any, summary: dict[str, Any]) -> str:
+    """The rocket's drag as the report states it: given or estimated, with the shape's estimate beside a given Cd."""
+    drag = summary.get("drag") or {}
+    if frame.drag_source == "estimated":
+        return f"estimated from the shape: Cd {float(drag['cd_flown']):.2f} at Mach {float(drag['mach']):g}, " \
+               f"Cd(Mach) powered and coasting" if drag else "estimated from the shape"
+    text = (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+            else f"Cd {frame.drag_coefficient:g}")
+    if drag.get("cd_estimated") is not None:
+        text += f" (shape estimate {float(drag['cd_estimated']):.2f} at Mach {float(drag['mach']):g})"
+    return text
+
+
+def _stability_assumptions(summary: dict[str, Any]) -> tuple[str, ...]:
+    """The stability model's assumptions, when the report has a stability section."""
+    if not summary.get("stability"):
+        return ()
+    return ("Stability: Barrowman's subsonic centre of pressure (small angle of attack); the motor's case and "
+            "propellant centred in the motor; ballast counted at half the nose length.",)
 
 
 def _mm(value: Any) -> str:
@@ -232,6 +258,7 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
         ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
         ("ejection speed", f"<= {quantity(c['max_ejection_speed_m_s'], 'speed', u)}"),
         ("descent rate", f"<= {quantity(c['max_landing_speed_m_s'], 'speed', u)}"),
+        *_stability_rule(c),
         ("catalog", catalog),
     ))
     assumptions = Notes("Assumptions", (f"Drag: {c['drag']}.", f"Atmosphere: {c['atmosphere']}.", f"Wind: {c['wind']}.",
@@ -241,6 +268,14 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
                        subtitle="Every motor that fits, flown with the same airframe and conditions",
                        ranking=ranking, chart=match_chart(result), conditions=conditions,
                        trace=trace_for(inputs, command, made_at), assumptions=assumptions)
+
+
+def _stability_rule(conditions: dict[str, Any]) -> tuple[tuple[str, str], ...]:
+    """The stability rule of a ranking, when the airframe has a shape to check it with."""
+    need = conditions.get("min_stability_cal")
+    if need is None:
+        return ()
+    return (("stability", f">= {float(need):g} calibers over the powered flight"),)
 
 
 # ----------------------------------------------------------------------------- reduce

@@ -601,6 +601,7 @@ def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = 
         elif later:
             text.append(f"  #{rank} {c['designation']}: ", style="bold")
             text.append("; ".join(later) + "\n", style="yellow")
+        _nose_weight_line(text, rank, c, cond, u)
     adapters: dict[str, list[str]] = {}
     for rank, c in enumerate(_shown(result, top, show_rejected), 1):
         if c.get("adapter") and c["fits"]:
@@ -611,13 +612,27 @@ def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = 
     return text
 
 
+def _nose_weight_line(text: Text, rank: int, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits) -> None:
+    """What the motor does re-flown with the nose weight that restores its stability margin (issue 11)."""
+    if c.get("nose_weight_for_stability_kg") is None:
+        return
+    later = [reason_text(code, message, c, cond, u, "nose_weight_")
+             for code, message in zip(c.get("nose_weight_reason_codes") or [], c.get("nose_weight_reasons") or [])]
+    text.append(f"  #{rank} {c['designation']}: ", style="bold")
+    text.append(f"with {u.quantity(c['nose_weight_for_stability_kg'], 'mass')} of nose weight: stability "
+                f"{c['nose_weight_stability_margin_cal']:.2f} cal, apogee {u.quantity(c['nose_weight_apogee_m'], 'length')}"
+                + (" but " + "; ".join(later) if later else ", every rule met") + "\n",
+                style="yellow" if later else "green")
+
+
 def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = None) -> Text:
     """The assumptions and rules behind a ranking, echoing the airframe file's and the options' own numbers."""
     c, u = result.conditions, units
     text = Text("Assumptions: ", style="bold")
     if frame is not None:
         launch, site = frame.launch, frame.launch.site
-        drag = (f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+        drag = ("Cd(Mach) estimated from the shape, powered and coasting" if frame.drag_source == "estimated"
+                else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
                 else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
         air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
                                                  if site.elevation_m else "")
@@ -635,7 +650,9 @@ def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = Non
                 f"of optimal, ejection <= {u.limit(c['max_ejection_speed_m_s'], 'speed')}, descent <= "
                 f"{u.limit(c['max_landing_speed_m_s'], 'speed')}"
                 + (f", ceiling {u.given(c['ceiling_m'], 'length')}" if c.get("ceiling_m") else "")
-                + (f", classes up to {c['max_class']}" if c.get("max_class") else "") + ". ")
+                + (f", classes up to {c['max_class']}" if c.get("max_class") else "")
+                + (f", stability >= {c['min_stability_cal']:g} cal" if c.get("min_stability_cal") is not None else "")
+                + ". ")
     text.append("Delay column: chosen/optimal; 'd' = drilled (adjustable motor).", style="dim")
     return text
 

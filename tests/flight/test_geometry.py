@@ -185,3 +185,33 @@ def test_docstring_examples_run() -> None:
     from motorlib.flight import drag, geometry
     for module in (geometry, drag):
         assert doctest.testmod(module).failed == 0
+
+
+@pytest.mark.parametrize(("shape", "exponent"), [("conical", None), ("ogive", None), ("parabolic", None),
+                                                 ("elliptical", None), ("power", 0.5), ("power", 0.3)])
+def test_nose_cp_is_the_centroid_of_the_area_growth(shape: str, exponent: float | None) -> None:
+    # Slender-body theory (Munk; the nose term of Barrowman 1967): the normal force per unit length is
+    # proportional to dS/dx, so CN_α = 2·S_base/A_ref and x_CP = ∫ x·(dS/dx) dx / S_base. Evaluated here by
+    # scipy's quad on the radius written out again, independently of Nose.volume_fraction (L − V/A).
+    from scipy.integrate import quad
+
+    length, r = 0.2, 0.025
+    rho = (r * r + length * length) / (2 * r)
+    radius = {
+        "conical": lambda x: r * x / length,
+        "ogive": lambda x: math.sqrt(rho**2 - (length - x) ** 2) + r - rho,
+        "parabolic": lambda x: r * (2 * x / length - (x / length) ** 2),
+        "elliptical": lambda x: r * math.sqrt(x / length * (2 - x / length)),
+        "power": lambda x: r * (x / length) ** (exponent or 1.0),
+    }[shape]
+    h = 1e-7
+
+    def area_slope(x: float) -> float:  # d(π r²)/dx by a central difference, one-sided at the ends
+        lo, hi = max(x - h, 0.0), min(x + h, length)
+        return math.pi * (radius(hi) ** 2 - radius(lo) ** 2) / (hi - lo)
+
+    moment = quad(lambda x: x * area_slope(x), 0.0, length, limit=200, points=[1e-6])[0]
+    x_cp = moment / (math.pi * r * r)
+    nose = normal_force_components(Geometry(0.3, Nose(shape, length, exponent), Body(0.5)), 2 * r)[0]
+    assert nose.cn_alpha == 2.0
+    assert nose.cp_m == pytest.approx(x_cp, rel=1e-6)

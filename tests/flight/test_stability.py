@@ -249,3 +249,16 @@ def test_docstring_examples_run() -> None:
 
     from motorlib.flight import stability
     assert doctest.testmod(stability).failed == 0
+
+
+def test_scatter_stability_is_unknown_without_the_motor_length() -> None:
+    # Regression (issue 11): the scatter's margin spread guessed a 0.1 m motor when the record has no length;
+    # a guessed margin is no margin: without the length there is none to report.
+    from dataclasses import replace
+
+    from motorlib.flight.dispersion import stability_spread
+
+    frame = _frame()
+    known = _motor("K", 0.1, 0.04)
+    assert stability_spread(frame, known, np.zeros(4)) is not None
+    assert stability_spread(frame, replace(known, length_m=None), np.zeros(4)) is None
