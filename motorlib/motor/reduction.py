@@ -172,12 +172,12 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     f = np.asarray(force_n, dtype=float)
     rows = np.asarray(lines if lines is not None else np.arange(1, t.size + 1))
     _check_rows(t, f, rows, s.min_samples, source)
+    f, glitch_findings = _remove_glitches(t, f, rows)
     span = _firing_span(f, source)
     baseline, noise, pre_end = _tare(t, f, rows, span, source)
     tared, drift, findings = _correct_drift(t, f - baseline, span, noise, pre_end, s.detrend)
     peak_raw = _raw_peak(tared, noise, source)
-    findings += _log_problems(f, tared, rows, noise, peak_raw)
-    findings += _glitches(t, tared, rows, noise)
+    findings = glitch_findings + findings + _log_problems(f, tared, rows, noise, peak_raw)
     grid, uniform, rate, resample_findings = _resample(t, tared)
     filtered, cutoff, filter_findings = _lowpass(uniform, rate, s.cutoff_hz, s.filter_order)
     findings += resample_findings + filter_findings + _rate_findings(rate)
@@ -308,22 +308,34 @@ def _log_problems(f: np.ndarray, tared: np.ndarray, rows: np.ndarray, noise: flo
     return findings
 
 
-def _glitches(t: np.ndarray, tared: np.ndarray, rows: np.ndarray, noise: float) -> list[Finding]:
-    """Single readings far above both neighbours (above :data:`GLITCH_MIN_RATE_HZ` only), with their rows."""
-    if tared.size < 3 or 1.0 / float(np.median(np.diff(t))) < GLITCH_MIN_RATE_HZ:
-        return []
-    middle = tared[1:-1]
-    # median of each reading and its two neighbours: a lone spike does not survive it, a ramp or a peak does
-    median3 = np.median(np.stack([tared[:-2], middle, tared[2:]]), axis=0)
-    limit = 10.0 * noise + GLITCH_PEAK_FRACTION * float(np.max(median3))
-    spikes = np.zeros(tared.size, dtype=bool)
+def _remove_glitches(t: np.ndarray, f: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, list[Finding]]:
+    """Step 1b: single readings far above both neighbours (loggers at :data:`GLITCH_MIN_RATE_HZ` or faster only)
+    are replaced by the median of each with its two neighbours, before anything reads the log.
+
+    A glitch left in would raise the peak, the impulse and the burn window, and can fake a drift. The limit is
+    10 σ of the sample noise (from successive differences) plus :data:`GLITCH_PEAK_FRACTION` of the firing's
+    rise above its lowest reading, both on the 3-point median, which a lone spike does not survive but a ramp or
+    a real peak does.
+    """
+    if f.size < 3 or 1.0 / float(np.median(np.diff(t))) < GLITCH_MIN_RATE_HZ:
+        return f, []
+    middle = f[1:-1]
+    median3 = np.median(np.stack([f[:-2], middle, f[2:]]), axis=0)
+    noise = _robust_sigma(np.diff(f)) / math.sqrt(2.0)
+    limit = 10.0 * noise + GLITCH_PEAK_FRACTION * float(np.max(median3) - np.min(median3))
+    spikes = np.zeros(f.size, dtype=bool)
     spikes[1:-1] = (middle - median3) > limit
     if not spikes.any():
-        return []
-    return [Finding("warning", "log-glitch",
-                    f"{int(spikes.sum())} single reading(s) stand far above both neighbours ({_rows(rows, spikes)}): "
-                    "probably electrical glitches, not thrust; they are smoothed by the filter but raise the "
-                    "impulse a little, so remove them from the log if you can")]
+        return f, []
+    cleaned = f.copy()
+    cleaned[1:-1] = np.where(spikes[1:-1], median3, middle)
+    worst = int(np.argmax(np.where(spikes, f - cleaned, -np.inf)))
+    return cleaned, [Finding("warning", "log-glitch",
+                             f"{int(spikes.sum())} single reading(s) stand far above both neighbours "
+                             f"({_rows(rows, spikes)}; the largest {float(f[worst]):.4g} N where its neighbours "
+                             f"read about {float(cleaned[worst]):.4g} N): electrical glitches, not thrust. Each was "
+                             "replaced by the median of it and its two neighbours before the reduction; check the "
+                             "wiring of the load cell")]
 
 
 def _resample(t: np.ndarray, tared: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, list[Finding]]:

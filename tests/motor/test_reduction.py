@@ -305,3 +305,24 @@ def test_a_cutoff_at_or_above_nyquist_warns() -> None:
     t, f = synthetic_log(known, 1000.0, noise_n=0.2)
     for cutoff in (500.0, 800.0):  # Nyquist of a 1000 Hz log is 500 Hz
         assert "log-filter-skipped" in [x.code for x in reduce_log(t, f, ReductionSettings(cutoff_hz=cutoff)).findings]
+
+
+@pytest.mark.parametrize("rate", [1000.0, 5000.0])
+def test_a_glitch_is_replaced_so_the_curve_equals_the_clean_one(rate: float) -> None:
+    # A lone reading at 8x the peak (an electrical glitch) must not reach the curve: the reduced peak, impulse
+    # and burn time equal those of the same log without it, and no drift is reported that the log does not have.
+    known = read_record(SAMPLE_DIR / SAMPLES[0])
+    t, f = synthetic_log(known, rate, noise_n=0.2, offset_n=5.0)
+    clean = reduce_log(t, f)
+    i = int(np.argmin(np.abs(t - 0.9)))
+    f[i] += 8.0 * known.peak_thrust_n
+    spiky = reduce_log(t, f)
+    clean_curve = MotorRecord("clean", clean.time_s, clean.thrust_n)
+    spiky_curve = MotorRecord("spiky", spiky.time_s, spiky.thrust_n)
+    assert spiky_curve.peak_thrust_n == pytest.approx(clean_curve.peak_thrust_n, rel=0.01)
+    assert spiky_curve.total_impulse_ns == pytest.approx(clean_curve.total_impulse_ns, rel=0.002)
+    assert spiky_curve.burn_time_s() == pytest.approx(clean_curve.burn_time_s(), rel=0.01)
+    codes = [x.code for x in spiky.findings]
+    assert "log-glitch" in codes and [c for c in codes if c != "log-glitch"] == [x.code for x in clean.findings]
+    glitch = next(x for x in spiky.findings if x.code == "log-glitch")
+    assert "replaced" in glitch.message
