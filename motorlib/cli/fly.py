@@ -40,6 +40,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
     speed at each delay, and descent figures when the airframe has recovery,
     with warnings from launch rules of thumb. Times count from motor ignition.
+    Exits with status 1 when the flight fails (no liftoff, stuck on the rail).
 
     \b
     Example:
@@ -89,10 +90,13 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         report = fly_report(frame, motor, summary, warnings, results.trajectories[0], inputs=inputs,
                             command=_command_line(), units=_card_units(shown))
         written.append(_write_report(report, report_path, overwrite, inputs))
+    failed = summary["status"] != "ok"
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
         click.echo(_json_text(payload))
+        if failed:  # the figures are printed, and the exit status says the flight failed
+            raise SystemExit(1)
         return
     from ..present import tables as render
 
@@ -105,6 +109,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)
+    if failed:
+        raise SystemExit(1)
 
 
 def _load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:

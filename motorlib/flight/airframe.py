@@ -18,8 +18,9 @@ from ..errors import SimulationInputError
 
 __all__ = ["DEPLOY_MODES", "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
 
-RECOVERY_DEVICES: Final = ("parachute", "streamer", "none")
-DEPLOY_MODES: Final = ("ejection", "apogee", "altitude")
+# device kinds: each has its own deployment-speed limit (motorlib.flight.rules.LaunchRules)
+RECOVERY_DEVICES: Final = ("parachute", "drogue", "main", "streamer", "none")
+DEPLOY_MODES: Final = ("ejection", "apogee", "altitude", "after")
 
 
 def _require(source: str, name: str, ok: bool, problem: str) -> None:
@@ -60,25 +61,35 @@ class Launch:
 
 @dataclass(frozen=True)
 class Recovery:
-    """A recovery device and when it deploys.
+    """A recovery device and what opens it (its trigger).
 
     Attributes
     ----------
     device : str
-        ``parachute``, ``streamer`` or ``none``.
+        Its kind: ``parachute``, ``drogue``, ``main``, ``streamer`` or ``none``; each kind has its own
+        deployment-speed limit in :class:`~motorlib.flight.rules.LaunchRules`.
     deploy : str
-        ``ejection`` (the motor's delay charge), ``apogee`` (electronics) or
-        ``altitude`` (electronics, at ``deploy_altitude_m`` on the way down).
+        The trigger: ``ejection`` (the motor's delay charge), ``apogee`` (electronics, ``delay_s``
+        after apogee), ``altitude`` (electronics, at ``deploy_altitude_m`` on the way down) or
+        ``after`` (a timer: ``delay_s`` after the previous device opened, or after liftoff for the
+        first device).
     drag_area_m2 : float
         Cd·A of the device [m²] (Cd referred to the same area A).
     deploy_altitude_m : float or None
         Height above the pad for ``altitude`` deployment [m].
+    delay_s : float
+        Delay of an ``apogee`` or ``after`` trigger [s].
+    replaces : bool
+        The device replaces the drag area of the devices before it (a main let out by a
+        chute release that frees the drogue); by default it adds to it.
     """
 
     device: str = "parachute"
     deploy: str = "ejection"
     drag_area_m2: float = 0.0
     deploy_altitude_m: float | None = None
+    delay_s: float = 0.0
+    replaces: bool = False
 
     def __post_init__(self) -> None:
         src = "recovery"
@@ -89,6 +100,8 @@ class Recovery:
         if self.deploy == "altitude":
             _require(src, "recovery.deploy_altitude", self.deploy_altitude_m is not None and self.deploy_altitude_m > 0.0,
                      "altitude deployment needs a positive deploy_altitude")
+        _require(src, "recovery.delay", math.isfinite(self.delay_s) and 0.0 <= self.delay_s <= 600.0,
+                 f"must lie between 0 and 600 s, got {self.delay_s!r} s")
 
 
 @dataclass(frozen=True)
@@ -110,6 +123,10 @@ class Airframe:
         Motor mount diameter and the longest motor that fits [m].
     launch : Launch
     recovery : Recovery or None
+        The first (or only) recovery device.
+    recovery_sequence : tuple of Recovery
+        Every device in the order they open (a drogue, then a main); empty for one device
+        given as ``recovery``. When given, ``recovery`` is set to its first device.
     geometry : Geometry or None
         The outside shape and the empty airframe's balance point, for the centre of pressure,
         the stability margin and a drag estimate (:mod:`motorlib.flight.geometry`,
@@ -126,9 +143,18 @@ class Airframe:
     launch: Launch = field(default_factory=Launch)
     recovery: Recovery | None = None
     geometry: Geometry | None = None
+    recovery_sequence: tuple[Recovery, ...] = ()
 
     def __post_init__(self) -> None:
         src = self.name or "airframe"
+        sequence = tuple(self.recovery_sequence)
+        object.__setattr__(self, "recovery_sequence", sequence)
+        if sequence:
+            _require(src, "recovery", self.recovery is None or self.recovery == sequence[0],
+                     "give either one recovery device or a sequence, not both")
+            _require(src, "recovery", all(d.device != "none" for d in sequence),
+                     "every device of a sequence needs a kind other than none")
+            object.__setattr__(self, "recovery", sequence[0])
         _require(src, "airframe.mass", 0.0 < self.mass_kg <= 2000.0, f"must be above 0 and at most 2000 kg, got {self.mass_kg!r} kg")
         _require(src, "airframe.diameter", 0.0 < self.diameter_m <= 2.0, f"must be above 0 and at most 2 m, got {self.diameter_m!r} m")
         table = tuple((float(m), float(c)) for m, c in self.drag_table)
@@ -148,6 +174,13 @@ class Airframe:
                 check_diameters(self.geometry, self.diameter_m)
             except SimulationInputError as exc:
                 raise SimulationInputError(src, exc.field, exc.problem) from None
+
+    @property
+    def recovery_devices(self) -> tuple[Recovery, ...]:
+        """The devices in the order they open (none for no recovery)."""
+        if self.recovery_sequence:
+            return self.recovery_sequence
+        return () if self.recovery is None or self.recovery.device == "none" else (self.recovery,)
 
     @property
     def reference_area_m2(self) -> float:

@@ -207,6 +207,9 @@ def _ejection_states(a: dict, queries_s: np.ndarray, ejection: dict[str, np.ndar
     ejection["vx"][r, b_i] = vxq
     ejection["vz"][r, b_i] = vzq
     ejection["speed"][r, b_i] = np.hypot(vxq, vzq)
+    ejection["t"][r, b_i] = q_rows[a_i, b_i]
+    for name in ("max_speed", "max_mach", "max_acc", "max_q"):  # maxima of the step ends before the instant
+        ejection[name][r, b_i] = a[name][li]
     later = np.where(q_rows > e.t1[rows_d, None], q_rows, np.inf)
     a["next_q"][rows_d] = later.min(axis=1)
 
@@ -224,6 +227,8 @@ def _deploy_altitude_reached(a: dict, at_deploy: dict[str, np.ndarray], deploy_a
         r = a["ref"][down]
         at_deploy["t"][r], at_deploy["x"][r], at_deploy["z"][r] = e.t1[down], e.x1[down], e.z1[down]
         at_deploy["vx"][r], at_deploy["vz"][r] = e.vx1[down], e.vz1[down]
+        for name in ("max_speed", "max_mach", "max_acc", "max_q"):  # the step end itself counts in the next pass
+            at_deploy[name][r] = a[name][down]
         a["pending"] = a["pending"] & ~down
 
 
@@ -250,5 +255,7 @@ def _locate_landing(steps: list[tuple[np.ndarray, _StepEnds]], landing: dict[str
     landing["t"][r] = e.t0 + tau * e.h
     landing["x"][r] = _hermite(e.x0, e.vx0, e.x1, e.vx1, e.h, tau)
     vz_land = _hermite(e.vz0, e.az0, e.vz1, e.az1, e.h, tau)
-    landing["speed"][r] = np.hypot(_hermite(e.vx0, e.ax0, e.vx1, e.ax1, e.h, tau), vz_land)
+    vx_land = _hermite(e.vx0, e.ax0, e.vx1, e.ax1, e.h, tau)
+    landing["speed"][r] = np.hypot(vx_land, vz_land)
     landing["rate"][r] = -vz_land
+    landing["vx"][r], landing["vz"][r] = vx_land, vz_land

@@ -56,3 +56,16 @@ def test_fly_errors_are_clear() -> None:
     assert code == 1 and "no motor with that id, handle or designation" in out
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "20")
     assert code == 2 and "can only be shortened" in out
+
+
+def test_fly_exits_1_when_the_flight_fails(tmp_path: Path) -> None:
+    # Issue 10 defect 8: a rocket that never lifts off was reported with exit code 0.
+    heavy = tmp_path / "heavy.toml"
+    heavy.write_text('name = "Too heavy"\n[airframe]\nmass = "40 kg"\ndiameter = "41.6 mm"\n'
+                     'drag_coefficient = 0.55\n[launch]\nrail_length = "2 m"\n')
+    code, out = run("fly", str(heavy), "--motor", "F29-8")
+    assert code == 1, out
+    assert "does not lift off" in out
+    code, out = run("fly", str(heavy), "--motor", "F29-8", "--json")
+    assert code == 1
+    assert json.loads(out)["status"] == "failed"

@@ -250,3 +250,33 @@ def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> 
     reasons = {c["motor_id"]: dict(zip(c["reason_codes"], c["reasons"])) for c in result.candidates}
     assert "plugged" in reasons["record-0"]["no charge"]
     assert "delays unknown" in reasons["record-1"] and "plugged" not in reasons["record-1"]["delays unknown"]
+
+
+def test_a_fast_electronics_opening_fails_the_motor() -> None:
+    # Issue 10 defect 1: electronics open the main at 200 m with no drogue: after a ballistic fall it opens at
+    # about 96 m/s here, and match passed the motor.
+    from motorlib import MotorRecord
+    from motorlib.flight import Airframe, Launch, Recovery
+
+    motor = MotorRecord("K900", [0.0, 0.05, 1.9, 2.0], [0.0, 900.0, 900.0, 0.0], total_mass_kg=1.2,
+                        propellant_mass_kg=0.6, delays_s=(), diameter_m=0.054, length_m=0.4)
+    main = Recovery(device="main", deploy="altitude", drag_area_m2=1.5, deploy_altitude_m=200.0)
+    frame = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0), recovery=main)
+    result = rank(frame, [motor], settings=MatchSettings())
+    c = result.candidates[0]
+    assert c["max_deployment_speed_m_s"] > 80.0
+    assert "deploy" in c["reason_codes"] and not c["passes"]
+    assert c["max_deployment_speed_m_s"] == pytest.approx(
+        simulate(frame, [motor]).deployment_speed_m_s[0, 0], rel=1e-9)  # the flight's own opening speed
+    # a drogue at apogee slows the fall: the main then opens at the drogue's terminal speed, and passes
+    drogue = Recovery(device="drogue", deploy="apogee", drag_area_m2=0.25)
+    dual = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0),
+                    recovery_sequence=(drogue, main))
+    c = rank(dual, [motor], settings=MatchSettings()).candidates[0]
+    assert "deploy" not in c["reason_codes"] and c["max_deployment_speed_m_s"] < 45.0
+    # the field radius fails a motor that lands outside it
+    windy = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054,
+                     launch=Launch(rail_length_m=3.0, wind_speed_m_s=8.0), recovery_sequence=(drogue, main))
+    tight = MatchSettings(rules=LaunchRules(field_radius_m=50.0))
+    c = rank(windy, [motor], settings=tight).candidates[0]
+    assert c["landing_distance_m"] > 50.0 and "field" in c["reason_codes"]
