@@ -29,6 +29,7 @@ _SECTIONS = {
     "airframe": {"mass", "diameter", "drag_coefficient", "drag_table", "mount_diameter", "mount_length"},
     "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
     "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
+    "[[recovery]]": {"device", "trigger", "altitude", "delay", "drag_coefficient", "diameter", "drag_area", "replaces"},
     "geometry": {"cg", "motor_offset", "nose", "body", "fins", "transition", "finish", "launch_guide"},
     "geometry.nose": {"shape", "length", "exponent"},
     "geometry.body": {"length"},
@@ -224,7 +225,8 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
     _check_keys(source, data, "")
     body = _section(source, data, "airframe", True)
     launch_t = _section(source, data, "launch", False) or {}
-    recovery_t = _section(source, data, "recovery", False)
+    sequence = _recovery_sequence(source, data.get("recovery")) if isinstance(data.get("recovery"), list) else ()
+    recovery_t = None if sequence else _section(source, data, "recovery", False)
     _section(source, data, "uncertainty", False)  # its keys are checked here; load_uncertainty reads the values
     name = str(data.get("name", os.path.splitext(os.path.basename(source))[0]))
     drag_table: tuple[tuple[float, float], ...] = ()
@@ -284,7 +286,47 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             launch=launch,
             recovery=recovery,
             geometry=geometry,
+            recovery_sequence=sequence,
         )
+
+
+def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:
+    """``[[recovery]]`` entries, in the order the devices open (keys in data_schema/AIRFRAME.md)."""
+    devices = []
+    for k, entry in enumerate(entries, start=1):
+        where = f"recovery[{k}]"
+        if not isinstance(entry, dict):
+            raise SimulationInputError(source, where, "expected a table ([[recovery]])")
+        _check_keys(source, entry, "[[recovery]]", where)
+        device = _text(source, entry, where, "device")
+        trigger = _text(source, entry, where, "trigger")
+        cd = entry.get("drag_coefficient")
+        if "drag_area" in entry:
+            if cd is not None:
+                raise SimulationInputError(source, f"{where}.drag_area", "give drag_area alone, or "
+                                                                          "drag_coefficient with diameter")
+            area = _quantity(source, entry, where, "drag_area", "area", required=True)
+        else:
+            if isinstance(cd, bool) or not isinstance(cd, (int, float)) or cd <= 0:
+                raise SimulationInputError(source, f"{where}.drag_coefficient",
+                                           f"expected a positive number (or give drag_area), got {cd!r}")
+            diameter = _quantity(source, entry, where, "diameter", "length", required=True)
+            area = float(cd) * math.pi * diameter**2 / 4.0
+        replaces = entry.get("replaces", False)
+        if not isinstance(replaces, bool):
+            raise SimulationInputError(source, f"{where}.replaces", f"expected true or false, got {replaces!r}")
+        try:
+            devices.append(Recovery(device=device, deploy=trigger, drag_area_m2=float(area),
+                                    deploy_altitude_m=_quantity(source, entry, where, "altitude", "length"),
+                                    delay_s=_quantity(source, entry, where, "delay", "time", default=0.0),
+                                    replaces=replaces))
+        except SimulationInputError as exc:
+            field = exc.field.replace("recovery.deploy_altitude", f"{where}.altitude").replace(
+                "recovery.deploy", f"{where}.trigger").replace("recovery.", f"{where}.")
+            raise SimulationInputError(source, field, exc.problem) from None
+    if not devices:
+        raise SimulationInputError(source, "[[recovery]]", "expected at least one device")
+    return tuple(devices)
 
 
 _TEMPLATE = """\
