@@ -14,6 +14,7 @@ from typing import Final
 
 from .atmosphere import Site
 from .geometry import Geometry, check_diameters
+from .wind import MeasuredWind
 from ..errors import SimulationInputError
 
 __all__ = ["DEPLOY_MODES", "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
@@ -37,18 +38,30 @@ class Launch:
     rail_length_m : float
         Travel along the rail before the rocket is free [m].
     rail_angle_rad : float
-        Rail tilt from vertical, tilted downwind [rad]; 0 to 30 degrees.
+        Rail tilt from vertical [rad]; 0 to 30 degrees.
     site : Site
         Elevation and optional measured temperature and pressure.
     wind_speed_m_s : float
-        Wind speed at 10 m above the pad [m/s], blowing downrange (+x). Above and
-        below 10 m it follows a power-law profile (see :mod:`motorlib.flight`).
+        Wind speed at 10 m above the pad [m/s]. Above and below 10 m it follows a
+        power-law profile, held above its cap (see :mod:`motorlib.flight.wind`).
+    wind_direction_rad : float
+        Where the wind blows FROM, clockwise from north [rad], as weather reports give
+        it; the default 3π/2 (a west wind) blows toward the east.
+    rail_azimuth_rad : float or None
+        The direction the rail leans toward, clockwise from north [rad]; None leans it
+        downwind (as the 2-D model did). Lean it into the wind with the wind's own direction.
+    wind_profile : MeasuredWind or None
+        A measured profile of height, speed and direction; it replaces the power law
+        (``wind_speed_m_s`` and ``wind_direction_rad`` then only set the axes and rules).
     """
 
     rail_length_m: float = 1.0
     rail_angle_rad: float = 0.0
     site: Site = field(default_factory=Site)
     wind_speed_m_s: float = 0.0
+    wind_direction_rad: float = 1.5 * math.pi
+    rail_azimuth_rad: float | None = None
+    wind_profile: MeasuredWind | None = None
 
     def __post_init__(self) -> None:
         src = "launch"
@@ -57,6 +70,9 @@ class Launch:
                  f"must lie between 0 and 30 degrees from vertical, got {math.degrees(self.rail_angle_rad):.4g} deg")
         _require(src, "launch.wind_speed", 0.0 <= self.wind_speed_m_s <= 40.0,
                  f"must lie between 0 and 40 m/s, got {self.wind_speed_m_s!r} m/s")
+        for key, value in (("launch.wind_direction", self.wind_direction_rad), ("launch.rail_azimuth", self.rail_azimuth_rad)):
+            _require(src, key, value is None or (math.isfinite(value) and 0.0 <= value <= 2.0 * math.pi + 1e-12),
+                     f"must lie between 0 and 360 degrees from north, got {value!r} rad")
 
 
 @dataclass(frozen=True)

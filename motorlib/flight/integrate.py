@@ -27,10 +27,11 @@ from typing import Sequence
 import numpy as np
 
 from .airframe import Airframe, Recovery
-from .dynamics import _accel, _Group, _make_group
+from .dynamics import _accel, _basis, _Group, _make_group
 from .events import (_deploy_altitude_reached, _ejection_states, _liftoff, _locate_apogee, _locate_landing,
                      _rail_exit, _StepEnds, _thrust_to_weight)
 from .pack import _TINY, MotorPack
+from .wind import DEFAULT_CAP_M
 from .recovery_phase import (_MAXIMA, _STATE, _air_speed, _charge_column, _descent_step, _first_opening,
                              _fly_sequence, _sub)
 from .results import (NO_LIFTOFF, NO_MASS, OK, STEP_LIMIT, FlightResults, _empty_results, _finish_trajectory,
@@ -67,6 +68,10 @@ class FlightSettings:
         Power-law exponent of the wind profile, 1/7 (common practice, no published source).
     wind_floor_m : float
         Below this height the wind is that at this height [m].
+    wind_cap_m : float
+        Above this height the power-law wind is held [m]; 1,000 m, about the top of a
+        daytime boundary layer (common practice, no published source; see
+        :mod:`motorlib.flight.wind`); ``math.inf`` for the uncapped law.
     vary_gravity : bool
         Inverse-square gravity with altitude; False for constant g0.
     uniform_air : bool
@@ -86,6 +91,7 @@ class FlightSettings:
     opening_step_fraction: float = 0.1
     wind_exponent: float = 1.0 / 7.0
     wind_floor_m: float = 1.0
+    wind_cap_m: float = DEFAULT_CAP_M
     vary_gravity: bool = True
     uniform_air: bool = False
     drill_step_s: float = 1.0
@@ -157,7 +163,8 @@ def simulate(
     traj: list[dict[str, np.ndarray] | None] = [None] * n
     groups: dict[tuple, list[int]] = {}
     for i, frame in enumerate(frames):
-        groups.setdefault((frame.launch.site, frame.drag_table, frame.recovery_devices), []).append(i)
+        key = (frame.launch.site, frame.drag_table, frame.recovery_devices, frame.launch.wind_profile)
+        groups.setdefault(key, []).append(i)
     for members in groups.values():
         members_idx = np.array(members)
         _fly_group([frames[i] for i in members], pack, members_idx, added, s, out,
@@ -172,13 +179,15 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
     first = frames[0]
     g = _make_group(first, s)
     dry = np.array([f.mass_kg for f in frames]) + added[idx]
-    angle = np.array([f.launch.rail_angle_rad for f in frames])
+    e1e, e1n, ux, uy, uz = np.array([_basis(f.launch) for f in frames]).T
+    g.planar = g.profile is None and not np.any(uy != 0.0)  # 3-D only for a rail across the wind, or a profile
     params = {
         "itot": pack.total_impulse_ns[idx], "m_full": dry + pack.total_mass_kg[idx],
         "m_prop": pack.propellant_mass_kg[idx], "area": np.array([f.reference_area_m2 for f in frames]),
-        "cd": np.array([f.drag_coefficient for f in frames]), "ux": np.sin(angle), "uz": np.cos(angle),
+        "cd": np.array([f.drag_coefficient for f in frames]), "ux": ux, "uy": uy, "uz": uz,
         "rail_m": np.array([f.launch.rail_length_m for f in frames]),
         "wind": np.array([f.launch.wind_speed_m_s for f in frames]), "extra": np.zeros(idx.size),
+        "e1e": e1e, "e1n": e1n, "e2e": -e1n, "e2n": e1e, "zeros": np.zeros(idx.size),
     }
     out["liftoff_mass_kg"][idx] = params["m_full"]
     ttw_lift, ttw_avg = _thrust_to_weight(pack, idx, params["m_full"] * STANDARD_GRAVITY_M_S2)
@@ -202,7 +211,8 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
     deploy_altitude = lead.deploy_altitude_m if lead is not None and lead.deploy == "altitude" else None
     timer = t0 + lead.delay_s if lead is not None and lead.deploy == "after" else None
     zeros = np.zeros(idx.size)
-    state0 = {"t": t0, "x": zeros, "z": zeros, "vx": zeros, "vz": zeros}
+    state0 = {k: zeros for k in _STATE}
+    state0["t"] = t0
     ascent = _integrate(g, pack, idx, state0, seg0, params, s, out, traj, deploy_altitude, descent=False,
                         timer_s=timer)
     _fly_after_ascent(g, pack, devices, ascent, idx, params, s, out, traj, wanted_delay, descent)
@@ -231,14 +241,14 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
     snap = {k: np.where(opens, snap[k], apogee[k]) if k in snap else apogee[k].copy() for k in _MAXIMA}
     # the ascent's apogee was flown unless a device opened before it: then a later pass finds the flown one
     early = opens & (start["t"] < apogee["t"])
-    flown = {k: np.where(early, np.nan, apogee[k]) for k in ("t", "x", "z")}
+    flown = {k: np.where(early, np.nan, apogee[k]) for k in ("t", "x", "y", "z")}
     acc = {**{f"apogee_{k}": v for k, v in flown.items()}, **snap,
-           **{f"land_{k}": np.full(n, np.nan) for k in ("t", "x", "speed", "rate", "vx", "vz")}}
+           **{f"land_{k}": np.full(n, np.nan) for k in _LANDING}}
     n_dev = out["deployment_time_s"].shape[1]
     dep = {k: np.full((n, n_dev), np.nan) for k in ("t", "z", "speed", "load", "rate")}
 
     def record(pos: np.ndarray, k: int, state: dict[str, np.ndarray]) -> None:
-        speed, rho = _air_speed(g, params["wind"][pos], state)
+        speed, rho = _air_speed(g, {k: v[pos] for k, v in params.items()}, state)
         dep["t"][pos, k], dep["z"][pos, k], dep["speed"][pos, k] = state["t"], state["z"], speed
         dep["load"][pos, k] = 0.5 * rho * speed * speed * devices[k].drag_area_m2
 
@@ -251,12 +261,12 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
                        stop_altitude_m, descent=True, stop_time_s=stop_time_s, stop_at_apogee=stop_at_apogee,
                        under_device=device is not None)
         found = np.isfinite(r["apogee"]["t"]) & np.isnan(acc["apogee_t"][pos])
-        for k in ("t", "x", "z"):
+        for k in ("t", "x", "y", "z"):
             acc[f"apogee_{k}"][pos[found]] = r["apogee"][k][found]
         for k in ("max_speed", "max_mach", "max_q") + (("max_acc",) if device is None else ()):
             acc[k][pos] = np.fmax(acc[k][pos], r["maxima"][k])
         landed = np.isfinite(r["landing"]["t"])
-        for k in ("t", "x", "speed", "rate", "vx", "vz"):
+        for k in _LANDING:
             acc[f"land_{k}"][pos[landed]] = r["landing"][k][landed]
         stop = r["stop"]
         if device is not None:
@@ -269,27 +279,32 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
         pos = np.flatnonzero(opens)
         at = _sub(start, opens)
         record(pos, 0, at)
-        acc["max_speed"][pos] = np.fmax(acc["max_speed"][pos], np.hypot(at["vx"], at["vz"]))
+        acc["max_speed"][pos] = np.fmax(acc["max_speed"][pos], np.sqrt(at["vx"]**2 + at["vy"]**2 + at["vz"]**2))
         if early.any():  # the climb under the first device, to the flown apogee
             fly(np.flatnonzero(early), _sub(start, early), np.full(int(early.sum()), lead.drag_area_m2), device=0,
                 stop_at_apogee=True)
     charge_delay = delay_used if lead is not None and lead.deploy == "ejection" else np.full(n, np.nan)
-    _write_flown(out, idx, acc, dep, opens, charge_delay, descent)
+    _write_flown(out, idx, acc, dep, opens, charge_delay, descent, params)
     if traj is not None:
         for k, i in enumerate(idx):
             landing = None
             if np.isfinite(acc["land_t"][k]):
-                landing = (acc["land_t"][k], acc["land_x"][k], acc["land_vx"][k], acc["land_vz"][k])
+                landing = {key: acc[f"land_{key}"][k] for key in ("t", "x", "y", "vx", "vy", "vz")}
             end = acc["land_t"][k] if descent else np.fmax(branch_t[k], acc["apogee_t"][k])
-            traj[i] = _finish_trajectory(traj[i], end if np.isfinite(end) else np.inf, landing)
+            traj[i] = _finish_trajectory(traj[i], end if np.isfinite(end) else np.inf, landing,
+                                         (params["e1e"][k], params["e1n"][k]))
 
 
 def _write_flown(out: dict[str, np.ndarray], idx: np.ndarray, acc: dict[str, np.ndarray], dep: dict[str, np.ndarray],
-                 opens: np.ndarray, delay_used: np.ndarray, descent: bool) -> None:
-    """Copy the flown flight's figures into the batch's result arrays, at the flights' rows ``idx``."""
+                 opens: np.ndarray, delay_used: np.ndarray, descent: bool, params: dict[str, np.ndarray]) -> None:
+    """Copy the flown flight's figures into the batch's result arrays, at the flights' rows ``idx``;
+    positions turned from each flight's (downwind, left) axes to east and north."""
+    e1e, e1n = params["e1e"], params["e1n"]
     out["apogee_m"][idx] = acc["apogee_z"]
     out["apogee_time_s"][idx] = acc["apogee_t"]
     out["apogee_downrange_m"][idx] = acc["apogee_x"]
+    out["apogee_east_m"][idx] = acc["apogee_x"] * e1e - acc["apogee_y"] * e1n
+    out["apogee_north_m"][idx] = acc["apogee_x"] * e1n + acc["apogee_y"] * e1e
     for name, key in (("max_speed_m_s", "max_speed"), ("max_mach", "max_mach"),
                       ("max_acceleration_m_s2", "max_acc"), ("max_dynamic_pressure_pa", "max_q")):
         out[name][idx] = acc[key]
@@ -304,11 +319,14 @@ def _write_flown(out: dict[str, np.ndarray], idx: np.ndarray, acc: dict[str, np.
         out["landing_speed_m_s"][idx] = acc["land_speed"]
         out["landing_descent_rate_m_s"][idx] = acc["land_rate"]
         out["drift_m"][idx] = acc["land_x"]
+        out["landing_east_m"][idx] = acc["land_x"] * e1e - acc["land_y"] * e1n
+        out["landing_north_m"][idx] = acc["land_x"] * e1n + acc["land_y"] * e1e
         out["descent_time_s"][idx] = acc["land_t"] - dep["t"][:, 0]
 
 
 # ----------------------------------------------------------------------------- the batched loop
-_HISTORY = ("ref", "t", "x", "z", "vx", "vz", "ax", "az")
+_HISTORY = ("ref", "t", "x", "y", "z", "vx", "vy", "vz", "ax", "ay", "az")
+_LANDING = ("t", "x", "y", "speed", "rate", "vx", "vy", "vz")
 
 
 @dataclass
@@ -360,10 +378,10 @@ class _Pass:
             stop_at_apogee=stop_at_apogee,
             status=np.zeros(n_all, dtype=np.int64),
             rail_exit_t=np.full(n_all, np.nan), rail_exit_v=np.full(n_all, np.nan),
-            apogee={k: np.full(n_all, np.nan) for k in ("t", "x", "z", "vx") + _MAXIMA},
+            apogee={k: np.full(n_all, np.nan) for k in ("t", "x", "y", "z", "vx", "vy") + _MAXIMA},
             at_deploy={k: np.full(n_all, np.nan) for k in _STATE + _MAXIMA},
-            landing={k: np.full(n_all, np.nan) for k in ("t", "x", "speed", "rate", "vx", "vz")},
-            ejection={k: np.full((n_all, n_delays), np.nan) for k in ("t", "z", "speed", "vz", "x", "vx") + _MAXIMA},
+            landing={k: np.full(n_all, np.nan) for k in _LANDING},
+            ejection={k: np.full((n_all, n_delays), np.nan) for k in _STATE + ("speed",) + _MAXIMA},
             maxima={name: np.zeros(n_all) for name in _MAXIMA},
             stop={k: np.full(n_all, np.nan) for k in _STATE},
             history=[] if keep_history else None,
@@ -398,10 +416,11 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     run = _Pass.start(pack, idx, traj is not None, timer_s, stop_at_apogee)
     a = _active_arrays(run, state0, seg0, params, s, deploy_altitude_m, descent, stop_time_s)
     _load_segment(a, run, None)
-    a["ax"], a["az"], mach0, q0 = _accel(g, a, a["t"], a["x"], a["z"], a["vx"], a["vz"])
+    a["ax"], ay, a["az"], mach0, q0 = _accel(g, a, a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"])
+    a["ay"] = a["zeros"] if ay is None else ay
     if descent:  # the start state was flown: it counts in the maxima
-        a["max_speed"], a["max_mach"], a["max_q"] = np.hypot(a["vx"], a["vz"]), mach0, q0
-        a["max_acc"] = np.hypot(a["ax"], a["az"])
+        a["max_speed"], a["max_mach"], a["max_q"] = np.sqrt(a["vx"]**2 + a["vy"]**2 + a["vz"]**2), mach0, q0
+        a["max_acc"] = np.sqrt(a["ax"]**2 + a["ay"]**2 + a["az"]**2)
     if run.history is not None:
         run.history.append(tuple(a[k].copy() for k in _HISTORY))
     steps = 0
@@ -417,7 +436,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         _store_history(run.history, idx, traj, under_device)
     stop = run.stop
     if descent and stop_at_apogee:
-        stop = {**{k: run.apogee[k] for k in ("t", "x", "z", "vx")}, "vz": np.zeros(idx.size)}
+        stop = {**{k: run.apogee[k] for k in ("t", "x", "y", "z", "vx", "vy")}, "vz": np.zeros(idx.size)}
     elif descent and deploy_altitude_m is not None:
         stop = {k: run.at_deploy[k] for k in _STATE}
     return {"apogee": run.apogee, "deploy": run.at_deploy, "landing": run.landing, "ejection": run.ejection,
@@ -474,11 +493,11 @@ def _load_segment(a: dict, run: _Pass, mask: np.ndarray | None) -> None:
 def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: float | None, descent: bool,
           steps: int) -> None:
     """Advance every active flight by one RK4 step, then record its events and retire finished flights."""
-    t, x, z, vx, vz, ax, az = a["t"], a["x"], a["z"], a["vx"], a["vz"], a["ax"], a["az"]
+    t = a["t"]
     burning = a["burning"]
     h = _step_size(g, a, s, deploy_altitude_m, descent)
     hit_seg = burning & (h >= a["seg_end"] - t)
-    x1, z1, vx1, vz1 = _rk4(g, a, h, t, x, z, vx, vz, ax, az)
+    x1, y1, z1, vx1, vy1, vz1 = _rk4(g, a, h)
     t1 = np.where(hit_seg, a["seg_end"], t + h)
     if descent:
         t1 = np.where(h >= a["stop_t"] - t, a["stop_t"], t1)  # a step aimed at the stop time ends on it
@@ -486,18 +505,25 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     if hit_seg.any():
         _next_segment(a, run, s, hit_seg, burning, t1, vz1)
     if a["any_rail"]:
-        _rail_exit(a, run.rail_exit_t, run.rail_exit_v, run.status, t1, x1, z1, vx1, vz1)
+        _rail_exit(a, run.rail_exit_t, run.rail_exit_v, run.status, t1, x1, y1, z1, vx1, vy1, vz1)
     # ---- derivative at the new state: the next step's first stage ----
-    ax1, az1, mach1, q1 = _accel(g, a, t1, x1, z1, vx1, vz1)
-    landed = _record_events(a, run, _StepEnds(t, t1, t1 - t, x, z, vx, vz, ax, az, x1, z1, vx1, vz1, ax1, az1),
-                            s, deploy_altitude_m, descent)
+    ax1, ay1, az1, mach1, q1 = _accel(g, a, t1, x1, y1, z1, vx1, vy1, vz1)
+    if ay1 is None:
+        ay1 = a["zeros"]
+    ends = _StepEnds(t, t1, t1 - t, a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"], a["ax"], a["ay"], a["az"],
+                     x1, y1, z1, vx1, vy1, vz1, ax1, ay1, az1)
+    landed = _record_events(a, run, ends, s, deploy_altitude_m, descent)
     # ---- running maxima, sampled at step ends above ground (every curve sample is a step end) ----
     flown = ~landed  # the end of the step that reaches the ground lies below it: never flown
-    np.maximum(a["max_speed"], np.sqrt(vx1 * vx1 + vz1 * vz1), out=a["max_speed"], where=flown)
+    if g.planar:
+        speed2, acc2 = vx1 * vx1 + vz1 * vz1, ax1 * ax1 + az1 * az1
+    else:
+        speed2, acc2 = vx1 * vx1 + vy1 * vy1 + vz1 * vz1, ax1 * ax1 + ay1 * ay1 + az1 * az1
+    np.maximum(a["max_speed"], np.sqrt(speed2), out=a["max_speed"], where=flown)
     np.maximum(a["max_mach"], mach1, out=a["max_mach"], where=flown)
     np.maximum(a["max_q"], q1, out=a["max_q"], where=flown)
-    np.maximum(a["max_acc"], np.sqrt(ax1 * ax1 + az1 * az1), out=a["max_acc"], where=flown)  # kinematic, with g
-    a["t"], a["x"], a["z"], a["vx"], a["vz"], a["ax"], a["az"] = t1, x1, z1, vx1, vz1, ax1, az1
+    np.maximum(a["max_acc"], np.sqrt(acc2), out=a["max_acc"], where=flown)  # kinematic, gravity included
+    a.update(t=t1, x=x1, y=y1, z=z1, vx=vx1, vy=vy1, vz=vz1, ax=ax1, ay=ay1, az=az1)
     if run.history is not None:
         run.history.append(tuple(a[k].copy() for k in _HISTORY))
     _retire(a, run, s, landed, t1, steps, descent, deploy_altitude_m)
@@ -505,9 +531,9 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
 
 def _step_size(g: _Group, a: dict, s: FlightSettings, deploy_altitude_m: float | None, descent: bool) -> np.ndarray:
     """Step of every active flight [s], shortened to end on rail exit and on the deployment altitude."""
-    t, z, vx, vz = a["t"], a["z"], a["vx"], a["vz"]
+    t, z, vz = a["t"], a["z"], a["vz"]
     if descent:
-        h = _descent_step(g, a, z, vx, vz, s)  # ends on curve samples while burning, and on the stop time
+        h = _descent_step(g, a, s)  # ends on curve samples while burning, and on the stop time
     else:
         h = np.where(a["burning"], np.minimum(a["burn_h"], a["seg_end"] - t), a["coast_h"])
     if a["any_rail"]:
@@ -531,11 +557,10 @@ def _rail_step(a: dict, s: FlightSettings, h: np.ndarray) -> np.ndarray:
     1/rail_steps of the rail per step (the short rail phase sets the exit speed).
     """
     on_rail = a["on_rail"]
-    ux, uz = a["ux"], a["uz"]
-    vx, vz = a["vx"], a["vz"]
-    v_along = vx * ux + vz * uz
-    a_along = a["ax"] * ux + a["az"] * uz
-    remaining = a["rail_m"] - (a["x"] * ux + a["z"] * uz)
+    ux, uy, uz = a["ux"], a["uy"], a["uz"]
+    v_along = a["vx"] * ux + a["vy"] * uy + a["vz"] * uz
+    a_along = a["ax"] * ux + a["ay"] * uy + a["az"] * uz
+    remaining = a["rail_m"] - (a["x"] * ux + a["y"] * uy + a["z"] * uz)
     disc = v_along * v_along + 2.0 * a_along * remaining
     denom = v_along + np.sqrt(np.maximum(disc, 0.0))
     piece = a["rail_m"] / s.rail_steps
@@ -545,22 +570,37 @@ def _rail_step(a: dict, s: FlightSettings, h: np.ndarray) -> np.ndarray:
     return np.where(on_rail, np.minimum(np.minimum(h, h_piece), h_rail), h)
 
 
-def _rk4(g: _Group, a: dict, h: np.ndarray, t, x, z, vx, vz, ax, az
-         ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Classic RK4 from (x, z, vx, vz) with first stage (ax, az) over steps h; the new x, z, vx, vz."""
+def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Classic RK4 from the active state with first stage (ax, ay, az) over steps h; the new x, y, z, vx, vy, vz.
+
+    In a planar group y and its speed stay as they are (0).
+    """
+    t, x, y, z, vx, vy, vz = a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"]
+    ax, ay, az = a["ax"], a["ay"], a["az"]
     half = 0.5 * h
-    vx2, vz2 = vx + half * ax, vz + half * az
-    k2x, k2z, _, _ = _accel(g, a, t + half, x + half * vx, z + half * vz, vx2, vz2)
-    vx3, vz3 = vx + half * k2x, vz + half * k2z
-    k3x, k3z, _, _ = _accel(g, a, t + half, x + half * vx2, z + half * vz2, vx3, vz3)
-    vx4, vz4 = vx + h * k3x, vz + h * k3z
-    k4x, k4z, _, _ = _accel(g, a, t + h, x + h * vx3, z + h * vz3, vx4, vz4)
     sixth = h / 6.0
+    vx2, vz2 = vx + half * ax, vz + half * az
+    if g.planar:
+        k2x, _, k2z, _, _ = _accel(g, a, t + half, x + half * vx, y, z + half * vz, vx2, vy, vz2)
+        vx3, vz3 = vx + half * k2x, vz + half * k2z
+        k3x, _, k3z, _, _ = _accel(g, a, t + half, x + half * vx2, y, z + half * vz2, vx3, vy, vz3)
+        vx4, vz4 = vx + h * k3x, vz + h * k3z
+        k4x, _, k4z, _, _ = _accel(g, a, t + h, x + h * vx3, y, z + h * vz3, vx4, vy, vz4)
+        y1, vy1 = y, vy
+    else:
+        vy2 = vy + half * ay
+        k2x, k2y, k2z, _, _ = _accel(g, a, t + half, x + half * vx, y + half * vy, z + half * vz, vx2, vy2, vz2)
+        vx3, vy3, vz3 = vx + half * k2x, vy + half * k2y, vz + half * k2z
+        k3x, k3y, k3z, _, _ = _accel(g, a, t + half, x + half * vx2, y + half * vy2, z + half * vz2, vx3, vy3, vz3)
+        vx4, vy4, vz4 = vx + h * k3x, vy + h * k3y, vz + h * k3z
+        k4x, k4y, k4z, _, _ = _accel(g, a, t + h, x + h * vx3, y + h * vy3, z + h * vz3, vx4, vy4, vz4)
+        y1 = y + sixth * (vy + 2.0 * (vy2 + vy3) + vy4)
+        vy1 = vy + sixth * (ay + 2.0 * (k2y + k3y) + k4y)
     x1 = x + sixth * (vx + 2.0 * (vx2 + vx3) + vx4)
     z1 = z + sixth * (vz + 2.0 * (vz2 + vz3) + vz4)
     vx1 = vx + sixth * (ax + 2.0 * (k2x + k3x) + k4x)
     vz1 = vz + sixth * (az + 2.0 * (k2z + k3z) + k4z)
-    return x1, z1, vx1, vz1
+    return x1, y1, z1, vx1, vy1, vz1
 
 
 def _next_segment(a: dict, run: _Pass, s: FlightSettings, hit_seg: np.ndarray, burning: np.ndarray,
@@ -603,7 +643,7 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
         stopped = (e.t1 >= a["stop_t"]) & ~landed
         if stopped.any():
             r = a["ref"][stopped]
-            for key, value in zip(_STATE, (e.t1, e.x1, e.z1, e.vx1, e.vz1)):
+            for key, value in zip(_STATE, (e.t1, e.x1, e.y1, e.z1, e.vx1, e.vy1, e.vz1)):
                 run.stop[key][r] = value[stopped]
     return landed
 

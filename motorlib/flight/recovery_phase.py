@@ -37,7 +37,7 @@ from .results import OK
 if TYPE_CHECKING:  # annotation only: integrate imports this module
     from .integrate import FlightSettings
 
-_STATE = ("t", "x", "z", "vx", "vz")
+_STATE = ("t", "x", "y", "z", "vx", "vy", "vz")
 _MAXIMA = ("max_speed", "max_mach", "max_acc", "max_q")
 
 
@@ -70,14 +70,14 @@ def _first_opening(device: Recovery, ascent: dict, col: np.ndarray, has: np.ndar
         src = ascent["ejection"]
         c = col if device.deploy == "ejection" else np.full(n, src["z"].shape[1] - 1)
         ok = has if device.deploy == "ejection" else np.ones(n, dtype=bool)
-        state = {k: np.where(ok, src[k][rows, c], np.nan) for k in ("x", "z", "vx", "vz")}
+        state = {k: np.where(ok, src[k][rows, c], np.nan) for k in _STATE[1:]}
         state["t"] = np.where(ok, charge_t if device.deploy == "ejection" else src["t"][rows, c], np.nan)
         snap = {k: src[k][rows, c] for k in _MAXIMA}
     elif device.deploy == "altitude":
         state = {k: ascent["deploy"][k].copy() for k in _STATE}
         snap = {k: ascent["deploy"][k].copy() for k in _MAXIMA}
     else:
-        state = {k: ascent["apogee"][k].copy() for k in ("t", "x", "z", "vx")}
+        state = {k: ascent["apogee"][k].copy() for k in ("t", "x", "y", "z", "vx", "vy")}
         state["vz"] = np.zeros(n)
         snap = {k: ascent["apogee"][k].copy() for k in _MAXIMA}
     # a state inside the step that reaches the ground lies below the pad: nothing opens
@@ -85,10 +85,13 @@ def _first_opening(device: Recovery, ascent: dict, col: np.ndarray, has: np.ndar
     return state, snap, opens
 
 
-def _air_speed(g: _Group, wind: np.ndarray, state: dict[str, np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
-    """Air-relative speed [m/s] and air density [kg/m³] at the given states."""
+def _air_speed(g: _Group, params: dict[str, np.ndarray], state: dict[str, np.ndarray]
+               ) -> tuple[np.ndarray, np.ndarray]:
+    """Air-relative speed [m/s] and air density [kg/m³] at the given states (``params`` of those flights)."""
     rho, _, _, shape = g.lookup(state["z"])
-    return np.hypot(state["vx"] - wind * shape, state["vz"]), rho
+    wind_x, wind_y = g.wind(params, state["z"], shape)
+    vry = state["vy"] if wind_y is None else state["vy"] - wind_y
+    return np.sqrt((state["vx"] - wind_x) ** 2 + vry**2 + state["vz"] ** 2), rho
 
 
 def _sub(state: dict[str, np.ndarray], mask: np.ndarray) -> dict[str, np.ndarray]:
@@ -110,7 +113,7 @@ def _fly_sequence(fly: Callable[..., dict[str, np.ndarray]], record: Callable[..
     """
     n = opens.size
     ok = (status == OK) & np.isfinite(apogee["t"])
-    apogee_state = {**{k: apogee[k] for k in ("t", "x", "z", "vx")}, "vz": np.zeros(n)}
+    apogee_state = {**{k: apogee[k] for k in ("t", "x", "y", "z", "vx", "vy")}, "vz": np.zeros(n)}
     first = devices[0] if devices else None
     # nothing opens at the first event: fall from apogee (ballistically, or until an apogee delay runs out)
     waiting = np.flatnonzero(ok & ~opens)
@@ -186,7 +189,7 @@ def _to_next_opening(fly: Callable[..., dict[str, np.ndarray]], device: Recovery
     return pos[local], new_state, extra[local]
 
 
-def _descent_step(g: _Group, a: dict[str, np.ndarray], z, vx, vz, s: FlightSettings) -> np.ndarray:
+def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.ndarray:
     """Step after the first recovery event, bounded by the drag time scale m/(k·v).
 
     With k = ½ρ(Cd·A) and v = max(|v|, v_t), the time scale is v_t/g at terminal
@@ -198,12 +201,15 @@ def _descent_step(g: _Group, a: dict[str, np.ndarray], z, vx, vz, s: FlightSetti
     step also ends on every thrust-curve sample and covers at most 1/burn_steps
     of the burn; a step never passes the pass's stop time.
     """
+    z, vz = a["z"], a["vz"]
     rho, _, grav, shape = g.lookup(z)
     mass = a["m_full"] - a["m_prop"]
     cd = g.cds[0] if g.table_cd else a["cd"]
     k = 0.5 * rho * (cd * a["area"] + a["extra"])
     v_t = np.sqrt(mass * grav / k)
-    air_speed = np.hypot(vx - a["wind"] * shape, vz)
+    wind_x, wind_y = g.wind(a, z, shape)
+    vry = a["vy"] if wind_y is None else a["vy"] - wind_y
+    air_speed = np.sqrt((a["vx"] - wind_x) ** 2 + vry * vry + vz * vz)
     speed = np.maximum(air_speed, v_t)
     time_scale = mass / (k * speed)
     # fine steps while far from the terminal state: just after an opening, or still climbing under a device

@@ -90,6 +90,10 @@ class FlightResults:
     descent_time_s: np.ndarray
     drift_m: np.ndarray
     optimal_delay_s: np.ndarray
+    apogee_east_m: np.ndarray
+    apogee_north_m: np.ndarray
+    landing_east_m: np.ndarray
+    landing_north_m: np.ndarray
     deployment_time_s: np.ndarray
     deployment_altitude_m: np.ndarray
     deployment_speed_m_s: np.ndarray
@@ -190,8 +194,8 @@ class FlightResults:
             "landing_descent_rate_m_s": num(self.landing_descent_rate_m_s[i]),
             "descent_time_s": num(self.descent_time_s[i]),
             "drift_m": num(self.drift_m[i]),
-            "apogee_east_m": num(self.apogee_downrange_m[i]),
-            "apogee_north_m": num(0.0 * self.apogee_downrange_m[i]),
+            "apogee_east_m": num(self.apogee_east_m[i]),
+            "apogee_north_m": num(self.apogee_north_m[i]),
             "deployments": self.deployments(i),
             "landing": self.landing(i),
         }
@@ -214,10 +218,10 @@ class FlightResults:
 
     def landing(self, i: int) -> dict[str, object] | None:
         """Flight ``i``'s landing: ``{time_s, speed_m_s, east_m, north_m, distance_m, bearing_deg}`` (None if
-        not flown). East is the direction the wind blows toward in this 2-D model."""
+        not flown); the bearing from the pad is clockwise from north, in [0, 360)."""
         if not np.isfinite(self.landing_time_s[i]):
             return None
-        east, north = float(self.drift_m[i]), 0.0
+        east, north = float(self.landing_east_m[i]), float(self.landing_north_m[i])
         return {"time_s": float(self.landing_time_s[i]), "speed_m_s": float(self.landing_speed_m_s[i]),
                 "east_m": east, "north_m": north, "distance_m": math.hypot(east, north),
                 "bearing_deg": math.degrees(math.atan2(east, north)) % 360.0}
@@ -232,7 +236,8 @@ _RESULT_FIELDS = ("liftoff_time_s", "rail_exit_time_s", "rail_exit_speed_m_s", "
                   "max_dynamic_pressure_pa", "liftoff_mass_kg", "liftoff_thrust_to_weight",
                   "average_thrust_to_weight", "deploy_time_s", "deploy_altitude_m", "deploy_delay_s",
                   "landing_time_s", "landing_speed_m_s", "landing_descent_rate_m_s", "descent_time_s",
-                  "drift_m", "optimal_delay_s")
+                  "drift_m", "optimal_delay_s", "apogee_east_m", "apogee_north_m", "landing_east_m",
+                  "landing_north_m")
 _DEPLOYMENT_FIELDS = ("deployment_time_s", "deployment_altitude_m", "deployment_speed_m_s", "opening_load_n",
                       "deployment_descent_rate_m_s")
 
@@ -250,12 +255,13 @@ def _empty_results(n: int, k: int, delays: np.ndarray, n_devices: int = 1) -> di
 
 
 def _store_history(history: list, idx: np.ndarray, traj: list, descent: bool) -> None:
-    """Append one pass's sampled states, (ref, t, x, z, vx, vz, ax, az) per step, to each flight's trajectory.
+    """Append one pass's sampled states, (ref, t, x, y, z, vx, vy, vz, ax, ay, az) per step, to each flight's
+    trajectory (x downwind, y to its left).
 
     A pass starts where the flight branched from the pass before it (a device opened): the earlier
     rows from that instant on were never flown and are cut, so the trajectory stays one flight.
     """
-    names = ("time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2")
+    names = ("time_s", "x_m", "y_m", "altitude_m", "vx_m_s", "vy_m_s", "vz_m_s", "ax_m_s2", "ay_m_s2", "az_m_s2")
     per_flight: dict[int, list[np.ndarray]] = {}
     for entry in history:
         ref = entry[0]
@@ -274,16 +280,20 @@ def _store_history(history: list, idx: np.ndarray, traj: list, descent: bool) ->
             traj[k] = {name: np.concatenate((traj[k][name][kept], block[name])) for name in block}
 
 
-def _finish_trajectory(block: dict[str, np.ndarray] | None, t_end_s: float, landing: tuple[float, ...] | None
-                       ) -> dict[str, np.ndarray] | None:
-    """Cut a trajectory at ``t_end_s`` (rows after it were not flown) and end it on the ground at the landing
-    state ``(t, x, vx, vz)`` when there is one (the last step ends below the pad)."""
+def _finish_trajectory(block: dict[str, np.ndarray] | None, t_end_s: float, landing: dict[str, float] | None,
+                       axis: tuple[float, float]) -> dict[str, np.ndarray] | None:
+    """Cut a trajectory at ``t_end_s`` (rows after it were not flown), end it on the ground at the landing
+    state ``{t, x, y, vx, vy, vz}`` when there is one (the last step ends below the pad), and add the
+    ``east_m`` and ``north_m`` columns from the flight's downwind axis ``axis`` = (east, north)."""
     if block is None:
         return None
     kept = (block["time_s"] <= t_end_s) & (block["altitude_m"] >= 0.0)
     out = {name: values[kept] for name, values in block.items()}
-    if landing is not None and np.all(np.isfinite(landing)) and out["time_s"].size:
-        t, x, vx, vz = landing
-        row = {"time_s": t, "x_m": x, "altitude_m": 0.0, "vx_m_s": vx, "vz_m_s": vz}
+    if landing is not None and out["time_s"].size:
+        row = {"time_s": landing["t"], "x_m": landing["x"], "y_m": landing["y"], "altitude_m": 0.0,
+               "vx_m_s": landing["vx"], "vy_m_s": landing["vy"], "vz_m_s": landing["vz"]}
         out = {name: np.append(values, row.get(name, values[-1])) for name, values in out.items()}
+    e1e, e1n = axis
+    out["east_m"] = out["x_m"] * e1e - out["y_m"] * e1n
+    out["north_m"] = out["x_m"] * e1n + out["y_m"] * e1e
     return out
