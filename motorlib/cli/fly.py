@@ -6,7 +6,8 @@ from typing import Any
 
 import click
 
-from .options import _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
+from .options import (_catalog_or_samples, _open_catalog, _Quantity, _units_option, apply_field_day, display_units,
+                      field_day_options, pop_field_day)
 from .output import _EPILOG, _caution, _card_units, _console, _json_text
 
 
@@ -32,9 +33,12 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
 @click.option("--report", "report_path", type=click.Path(dir_okay=False),
               help="Write a printable pre-flight report (one self-contained HTML file, at most two pages).")
 @click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists.")
+@click.option("--field-radius", "field_radius", type=_Quantity("length"), default=None,
+              help="Warn when the rocket lands farther from the pad than this, e.g. 600m.")
+@field_day_options
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
         units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None, report_path: str | None,
-        overwrite: bool) -> None:
+        overwrite: bool, field_radius: float | None, **day: Any) -> None:
     """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
 
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
@@ -49,6 +53,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
       motorlib fly my-rocket.toml --motor static-3.xml --delay 8s --units imperial
       motorlib fly my-rocket.toml --motor G59-10 --ballast 25g --csv g59.csv
       motorlib fly my-rocket.toml --motor G59-10 --report preflight.html
+      motorlib fly my-rocket.toml --motor G59-10 --wind 7m/s --wind-from 250deg \\
+          --temperature 31degC --rail-azimuth 250deg
     """
     import numpy as np
 
@@ -58,7 +64,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
-    frame = load_airframe(airframe_file)
+    frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
     motor, motor_file = _load_motor(motor_ref, catalog_dir)
     if report_path:
         from .output import _write_report
@@ -73,7 +79,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
-    warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
+    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.wind_speed_m_s)
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))

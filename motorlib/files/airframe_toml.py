@@ -18,6 +18,7 @@ from typing import Any
 from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
 from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition
+from ..flight.wind import MeasuredWind
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
 
@@ -27,7 +28,8 @@ __all__ = ["airframe_from_dict", "airframe_template", "load_airframe", "load_unc
 _SECTIONS = {
     "": {"name", "airframe", "launch", "recovery", "geometry", "uncertainty"},
     "airframe": {"mass", "diameter", "drag_coefficient", "drag_table", "mount_diameter", "mount_length"},
-    "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
+    "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed", "wind_direction",
+               "rail_azimuth", "wind_profile"},
     "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
     "[[recovery]]": {"device", "trigger", "altitude", "delay", "drag_coefficient", "diameter", "drag_area", "replaces"},
     "geometry": {"cg", "motor_offset", "nose", "body", "fins", "transition", "finish", "launch_guide"},
@@ -251,11 +253,18 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
         )
     except ValueError as exc:
         raise SimulationInputError(source, "launch", str(exc).replace("`", "")) from None
+    profile = _wind_profile(source, launch_t["wind_profile"]) if "wind_profile" in launch_t else None
+    direction = _compass(source, launch_t, "wind_direction")
+    if direction is None:  # a profile sets the axes from its lowest row; else a west wind (the 2-D default)
+        direction = math.radians(float(profile.directions_from_deg[0])) if profile is not None else 1.5 * math.pi
     launch = Launch(
         rail_length_m=_quantity(source, launch_t, "launch", "rail_length", "length", default=1.0),
         rail_angle_rad=_quantity(source, launch_t, "launch", "rail_angle", "angle", default=0.0),
         site=site,
         wind_speed_m_s=_quantity(source, launch_t, "launch", "wind_speed", "speed", default=0.0),
+        wind_direction_rad=direction,
+        rail_azimuth_rad=_compass(source, launch_t, "rail_azimuth"),
+        wind_profile=profile,
     )
     recovery = None
     if recovery_t is not None:
@@ -288,6 +297,42 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             geometry=geometry,
             recovery_sequence=sequence,
         )
+
+
+def _compass(source: str, table: dict[str, Any], key: str) -> float | None:
+    """A compass direction [rad]: a bare number is degrees from north (as weather reports give it)."""
+    if key not in table:
+        return None
+    value = table[key]
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        value = f"{value} deg"
+    angle = _quantity(source, {key: value}, "launch", key, "angle")
+    if angle is None or not 0.0 <= angle <= 2.0 * math.pi + 1e-12:
+        raise SimulationInputError(source, f"launch.{key}", f"must lie between 0 and 360 degrees from north, "
+                                                            f"got {table[key]!r}")
+    return angle
+
+
+def _wind_profile(source: str, rows: Any) -> MeasuredWind:
+    """``wind_profile = [[height, speed, direction], ...]``: bare numbers are m, m/s and degrees from north;
+    strings with units are accepted for height and speed."""
+    if not isinstance(rows, list) or not rows:
+        raise SimulationInputError(source, "launch.wind_profile", "expected a list of [height, speed, direction] rows")
+    parsed = []
+    for i, row in enumerate(rows):
+        where = f"launch.wind_profile[{i}]"
+        if not isinstance(row, list) or len(row) != 3:
+            raise SimulationInputError(source, where, f"expected [height, speed, direction], got {row!r}")
+        height = _quantity(source, {"height": row[0]}, where, "height", "length", required=True)
+        speed = _quantity(source, {"speed": row[1]}, where, "speed", "speed", required=True)
+        direction = row[2]
+        if isinstance(direction, bool) or not isinstance(direction, (int, float)):
+            raise SimulationInputError(source, f"{where}.direction", f"expected degrees from north, got {direction!r}")
+        parsed.append([height, speed, float(direction)])
+    try:
+        return MeasuredWind.from_rows(parsed)
+    except SimulationInputError as exc:
+        raise SimulationInputError(source, exc.field, exc.problem) from None
 
 
 def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:

@@ -86,3 +86,21 @@ def test_a_measured_profile_of_one_wind_equals_that_wind_everywhere() -> None:
     b = simulate(uniform, [MOTOR], FlightSettings(vary_gravity=False, wind_exponent=0.0))
     for name in ("apogee_m", "landing_time_s", "landing_east_m", "landing_north_m"):
         assert getattr(a, name)[0] == pytest.approx(getattr(b, name)[0], rel=1e-9, abs=1e-6), name
+
+
+def test_launch_keys_in_the_airframe_file() -> None:
+    from motorlib.errors import SimulationInputError
+    from motorlib.files.airframe_toml import airframe_from_dict
+
+    data = {"airframe": {"mass": "2.4 kg", "diameter": "54 mm", "drag_coefficient": 0.5},
+            "launch": {"wind_speed": "5 m/s", "wind_direction": 300, "rail_angle": "5 deg", "rail_azimuth": "300 deg",
+                       "wind_profile": [[0, 4, 290], ["500 m", "9 m/s", 250], [1500, 14, 240]]}}
+    frame = airframe_from_dict(data, "day.toml")
+    assert frame.launch.wind_direction_rad == pytest.approx(math.radians(300.0))
+    assert frame.launch.rail_azimuth_rad == pytest.approx(math.radians(300.0))
+    assert frame.launch.wind_profile.heights_m.tolist() == [0.0, 500.0, 1500.0]
+    bad = {**data, "launch": {"wind_profile": [[0, 4, 290], [0, 5, 250]]}}
+    with pytest.raises(SimulationInputError, match=r"wind_profile\[1\]\.height"):
+        airframe_from_dict(bad, "day.toml")
+    with pytest.raises(SimulationInputError, match="launch.wind_direction"):
+        airframe_from_dict({**data, "launch": {"wind_direction": 400}}, "day.toml")

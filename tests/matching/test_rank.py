@@ -280,3 +280,21 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
     tight = MatchSettings(rules=LaunchRules(field_radius_m=50.0))
     c = rank(windy, [motor], settings=tight).candidates[0]
     assert c["landing_distance_m"] > 50.0 and "field" in c["reason_codes"]
+
+
+def test_match_recovery_options_fail_motors_with_the_reason() -> None:
+    runner = CliRunner()
+    args = ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--json"]
+    plain = json.loads(runner.invoke(main, args).output)["candidates"]
+    flown = [c for c in plain if c["landing_distance_m"] is not None]
+    assert flown and all("max_deployment_speed_m_s" in c for c in plain)
+    tight = json.loads(runner.invoke(main, [*args, "--field-radius", "1m", "--max-deploy-speed", "parachute=1m/s",
+                                            "--wind", "9m/s"]).output)
+    for c in tight["candidates"]:
+        if c["landing_distance_m"] is not None and c["landing_distance_m"] > 1.0:
+            assert "field" in c["reason_codes"] and not c["passes"]
+        if c["max_deployment_speed_m_s"] is not None and c["max_deployment_speed_m_s"] > 1.0:
+            assert "deploy" in c["reason_codes"]
+    assert tight["conditions"]["field_radius_m"] == 1.0
+    bad = runner.invoke(main, [*args, "--max-deploy-speed", "kite=3m/s"])
+    assert bad.exit_code == 2 and "KIND=SPEED" in bad.output
