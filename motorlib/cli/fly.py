@@ -80,7 +80,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
     rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
-    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.wind_speed_m_s,
+                               constant_drag=not frame.drag_table)
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))

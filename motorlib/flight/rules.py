@@ -37,6 +37,11 @@ class LaunchRules:
         45 m/s (a small, strong device meant to open fast): common practice, no published source.
     field_radius_m : float or None
         The recovery field: landing farther than this from the pad fails [m]; None for no limit.
+    max_constant_cd_mach : float
+        A constant drag coefficient flown past this Mach number gets a warning: 0.8, where the
+        transonic drag rise starts on typical rockets (common practice, no published source; a
+        constant Cd overstated apogee 13-34 % and the optimal delay 2-5 s at Mach 1.3-2.1 in the
+        comparisons behind issue 10).
     """
 
     min_rail_exit_speed_m_s: float = 15.0
@@ -48,6 +53,7 @@ class LaunchRules:
     max_deployment_speed_m_s: tuple[tuple[str, float], ...] = (("parachute", 25.0), ("main", 25.0),
                                                                ("drogue", 45.0), ("streamer", 45.0))
     field_radius_m: float | None = None
+    max_constant_cd_mach: float = 0.8
 
     def deployment_limit_m_s(self, kind: str) -> float:
         """The deployment-speed limit of a device kind [m/s] (that of a parachute for a kind not listed)."""
@@ -56,8 +62,11 @@ class LaunchRules:
 
 
 def flight_warnings(flight: dict[str, object], rules: LaunchRules | None = None, *,
-                    wind_speed_m_s: float = 0.0) -> list[tuple[str, str]]:
-    """(code, message) warnings for one flight summary (:meth:`motorlib.flight.FlightResults.summary`)."""
+                    wind_speed_m_s: float = 0.0, constant_drag: bool = False) -> list[tuple[str, str]]:
+    """(code, message) warnings for one flight summary (:meth:`motorlib.flight.FlightResults.summary`).
+
+    ``constant_drag`` says the airframe flew with one drag coefficient at every Mach number.
+    """
     r = rules or LaunchRules()
     out: list[tuple[str, str]] = []
     if flight["status"] != "ok":
@@ -89,6 +98,11 @@ def flight_warnings(flight: dict[str, object], rules: LaunchRules | None = None,
     if landing is not None and float(landing) > r.max_landing_speed_m_s:
         out.append(("descent-fast", f"descent rate at landing {float(landing):.1f} m/s is above {r.max_landing_speed_m_s:g} m/s: "
                                     "use a larger parachute"))
+    mach = flight.get("max_mach")
+    if constant_drag and mach is not None and float(mach) > r.max_constant_cd_mach:  # type: ignore[arg-type]
+        out.append(("constant-cd-past-mach", f"the rocket reaches Mach {float(mach):.2f} with a constant drag "  # type: ignore[arg-type]
+                                             "coefficient, which ignores the transonic drag rise and overstates "
+                                             "apogee and the optimal delay; give a drag_table or a [geometry]"))
     out += _recovery_warnings(flight, r)
     if flight.get("has_recovery") and flight.get("deploy_time_s") is None:
         out.append(("no-deployment", "nothing deploys recovery on this flight (plugged motor without electronics, or "

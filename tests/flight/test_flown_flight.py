@@ -176,3 +176,12 @@ def test_an_altitude_deployment_after_a_ballistic_fall_reports_its_speed() -> No
     assert summary["deployments"][0]["speed_m_s"] == pytest.approx(v_open, rel=1e-5)
     codes = [code for code, _ in flight_warnings({**summary, "has_recovery": True}, LaunchRules())]
     assert "deployment-fast" in codes
+
+
+def test_a_constant_cd_flown_past_mach_0_8_is_warned_about() -> None:
+    summary = {"status": "ok", "rail_exit_speed_m_s": 30.0, "apogee_m": 3000.0, "liftoff_thrust_to_weight": 10.0,
+               "optimal_delay_s": 12.0, "max_mach": 1.4}
+    assert "constant-cd-past-mach" in [c for c, _ in flight_warnings(summary, constant_drag=True)]
+    assert "constant-cd-past-mach" not in [c for c, _ in flight_warnings(summary, constant_drag=False)]
+    assert "constant-cd-past-mach" not in [c for c, _ in flight_warnings({**summary, "max_mach": 0.7},
+                                                                         constant_drag=True)]

@@ -239,6 +239,6 @@ def test_the_fly_report_has_the_sections_its_data_allow(report_files: dict[str, 
     plain = report_files["fly"].read_text()
     full = report_files["fly-3d"].read_text()
     assert "<h2>Stability</h2>" not in plain and "<h2>Stability</h2>" in full
-    assert "Recovery: main at 150 m" in full and "bearing 112°" in full
+    assert "Recovery: main at 150 m" in full and "toward 112°" in full
     for text in (plain, full):
         assert "range safety officer decides" in text and "sha256" in text and "Signature" in text
