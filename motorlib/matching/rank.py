@@ -261,12 +261,15 @@ def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[fl
 
 
 def _landing_speed(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
-    if frame.recovery is None or frame.recovery.device == "none":
+    if not frame.recovery_devices:
         return np.full(results.n_flights, np.nan)
     _, _, rho, _ = frame.launch.site.air(0.0)
     burnt_mass = results.liftoff_mass_kg - pack.propellant_mass_kg
     body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
-    return np.sqrt(2.0 * burnt_mass * STANDARD_GRAVITY_M_S2 / (float(rho) * (frame.recovery.drag_area_m2 + body)))
+    extra = 0.0
+    for device in frame.recovery_devices:  # the drag area open at landing: every device, or the last that replaces
+        extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
+    return np.sqrt(2.0 * burnt_mass * STANDARD_GRAVITY_M_S2 / (float(rho) * (extra + body)))
 
 
 def _deployment_speeds(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
