@@ -20,6 +20,7 @@ REASON_CODES = {
     "delay": ("D", "no delay near the optimal one"), "eject": ("E", "ejection too fast"),
     "lands first": ("L", "lands before the delay fires"), "descent": ("S", "descends too fast under the device"),
     "no charge": ("P", "plugged: no ejection charge and no electronics"),
+    "deploy": ("O", "a recovery device opens too fast"), "field": ("F", "lands outside the field"),
     "delays unknown": ("W", "ejection delays not given"),
     "flight:thrust never": ("N", "no liftoff"), "flight:the rocket stops": ("K", "stuck on the rail"),
     "flight": ("X", "flight not completed"), "fit:class": ("A", "above your class limit"),

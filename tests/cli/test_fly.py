@@ -17,7 +17,9 @@ def test_fly_prints_the_flight_and_the_caution(tmp_path: Path) -> None:
     assert "apogee" in out and "range safety officer" in out
     assert plot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     header = csv_path.read_text().splitlines()[0]
-    assert header.startswith("time_s,x_m,altitude_m")
+    assert header.startswith("time_s,x_m,y_m,altitude_m,east_m,north_m")
+    times = [float(line.split(",")[0]) for line in csv_path.read_text().splitlines()[1:]]
+    assert all(b > a for a, b in zip(times, times[1:]))  # issue 10 defect 2: one flight, never back in time
 
 
 def test_fly_json_has_the_documented_keys() -> None:
