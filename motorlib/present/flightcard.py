@@ -238,10 +238,13 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
         for event in s["deployments"]:
             name = str(event.get("name") or event.get("event") or event.get("device") or "deployment")
             speed = event.get("speed_m_s")
+            limit = r.deployment_limit_m_s(str(event.get("device") or "parachute"))  # each kind has its own
             figures = [CardFigure("time", _seconds(event.get("time_s"))),
                        CardFigure("height", quantity(event.get("altitude_m"), "length", u)),
-                       CardFigure("speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
-                                  f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")]
+                       CardFigure("speed", quantity(speed, "speed", u), _check(speed, limit, False),
+                                  f"<= {quantity(limit, 'speed', u)}")]
+            if event.get("opening_load_n") is not None:  # ½ρv²·CdA: no inflation model, so an upper bound
+                figures.append(CardFigure("opening load", f"up to {float(event['opening_load_n']):,.0f} N"))
             events.append((name, figures))
     else:
         chosen = s.get("chosen_delay_s")
