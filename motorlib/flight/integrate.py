@@ -194,8 +194,10 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
         "cd": np.array([f.drag_coefficient for f in frames]), "ux": ux, "uy": uy, "uz": uz,
         "rail_m": np.array([f.launch.rail_length_m for f in frames]),
         "wind": np.array([f.launch.wind_speed_m_s for f in frames]), "extra": np.zeros(idx.size),
-        "e1e": e1e, "e1n": e1n, "e2e": -e1n, "e2n": e1e, "zeros": np.zeros(idx.size),
+        "zeros": np.zeros(idx.size),
     }
+    if g.profile is not None:  # the loop turns a measured wind into each flight's axes
+        params.update(e1e=e1e, e1n=e1n, e2e=-e1n, e2n=e1e)
     out["liftoff_mass_kg"][idx] = params["m_full"]
     ttw_lift, ttw_avg = _thrust_to_weight(pack, idx, params["m_full"] * STANDARD_GRAVITY_M_S2)
     out["liftoff_thrust_to_weight"][idx] = ttw_lift
@@ -212,6 +214,7 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
     keep = np.flatnonzero(flyable)
     idx, t0, seg0 = idx[keep], t0[keep], seg0[keep]
     params = {k: v[keep] for k, v in params.items()}
+    axes = (e1e[keep], e1n[keep])
     out["liftoff_time_s"][idx] = t0
     devices = first.recovery_devices
     lead = devices[0] if devices else None
@@ -222,12 +225,13 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
     state0["t"] = t0
     ascent = _integrate(g, pack, idx, state0, seg0, params, s, out, traj, deploy_altitude, descent=False,
                         timer_s=timer)
-    _fly_after_ascent(g, pack, devices, ascent, idx, params, s, out, traj, wanted_delay, descent)
+    _fly_after_ascent(g, pack, devices, ascent, idx, params, s, out, traj, wanted_delay, descent, axes)
 
 
 def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...], ascent: dict, idx: np.ndarray,
                       params: dict[str, np.ndarray], s: FlightSettings, out: dict[str, np.ndarray],
-                      traj: list | None, wanted_delay: np.ndarray | None, descent: bool) -> None:
+                      traj: list | None, wanted_delay: np.ndarray | None, descent: bool,
+                      axes: tuple[np.ndarray, np.ndarray]) -> None:
     """From the ascent pass to the reported flight: openings, the passes between them, landing, flown figures.
 
     With ``descent`` False only the first opening is located (what a ranking needs), and apogee
@@ -291,7 +295,7 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
             fly(np.flatnonzero(early), _sub(start, early), np.full(int(early.sum()), lead.drag_area_m2), device=0,
                 stop_at_apogee=True)
     charge_delay = delay_used if lead is not None and lead.deploy == "ejection" else np.full(n, np.nan)
-    _write_flown(out, idx, acc, dep, opens, charge_delay, descent, params)
+    _write_flown(out, idx, acc, dep, opens, charge_delay, descent, axes)
     if traj is not None:
         for k, i in enumerate(idx):
             landing = None
@@ -299,14 +303,15 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
                 landing = {key: acc[f"land_{key}"][k] for key in ("t", "x", "y", "vx", "vy", "vz")}
             end = acc["land_t"][k] if descent else np.fmax(branch_t[k], acc["apogee_t"][k])
             traj[i] = _finish_trajectory(traj[i], end if np.isfinite(end) else np.inf, landing,
-                                         (params["e1e"][k], params["e1n"][k]))
+                                         (axes[0][k], axes[1][k]))
 
 
 def _write_flown(out: dict[str, np.ndarray], idx: np.ndarray, acc: dict[str, np.ndarray], dep: dict[str, np.ndarray],
-                 opens: np.ndarray, delay_used: np.ndarray, descent: bool, params: dict[str, np.ndarray]) -> None:
+                 opens: np.ndarray, delay_used: np.ndarray, descent: bool, axes: tuple[np.ndarray, np.ndarray]
+                 ) -> None:
     """Copy the flown flight's figures into the batch's result arrays, at the flights' rows ``idx``;
     positions turned from each flight's (downwind, left) axes to east and north."""
-    e1e, e1n = params["e1e"], params["e1n"]
+    e1e, e1n = axes
     out["apogee_m"][idx] = acc["apogee_z"]
     out["apogee_time_s"][idx] = acc["apogee_t"]
     out["apogee_downrange_m"][idx] = acc["apogee_x"]
