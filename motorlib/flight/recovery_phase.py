@@ -82,6 +82,8 @@ def _first_opening(device: Recovery, ascent: dict, col: np.ndarray, has: np.ndar
         snap = {k: ascent["apogee"][k].copy() for k in _MAXIMA}
     # a state inside the step that reaches the ground lies below the pad: nothing opens
     opens = np.isfinite(state["t"]) & (state["z"] > 0.0) & (status == OK)
+    if device.deploy == "apogee" and device.delay_s > 0.0:
+        opens[:] = False  # it falls from apogee until the delay runs out (see _fly_sequence)
     return state, snap, opens
 
 

@@ -169,3 +169,10 @@ def test_dual_deploy_is_a_few_lines_of_toml() -> None:
     typo = {**data, "recovery": [{"device": "main", "trigger": "apogee", "drag_area": "1 m2", "delya": 2}]}
     with pytest.raises(SimulationInputError, match=r"recovery\[1\]\.delya"):
         airframe_from_dict(typo, "dual.toml")
+
+
+def test_an_apogee_trigger_with_a_delay_opens_that_long_after_apogee() -> None:
+    late = Recovery(device="drogue", deploy="apogee", drag_area_m2=0.12, delay_s=2.0)
+    res = simulate(_frame(devices=(late, MAIN)), [MOTOR], FLAT)
+    assert res.deployment_time_s[0, 0] == pytest.approx(res.apogee_time_s[0] + 2.0, abs=1e-9)
+    assert res.deployment_altitude_m[0, 0] < res.apogee_m[0] - 15.0  # it fell for 2 s: ½·g·t² less a little drag
