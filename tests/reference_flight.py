@@ -24,7 +24,7 @@ from motorlib.units import STANDARD_GRAVITY_M_S2 as G0
 
 def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10, atol: float = 1e-10,
                      method: str = "DOP853", wind_exponent: float = 1 / 7, wind_floor_m: float = 1.0,
-                     vary_gravity: bool = True) -> dict[str, float]:
+                     vary_gravity: bool = True, wind_cap_m: float = 1000.0) -> dict[str, float]:
     site = frame.launch.site
     theta = frame.launch.rail_angle_rad
     ux, uz = math.sin(theta), math.cos(theta)
@@ -43,7 +43,8 @@ def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10
         return G0 * (EARTH_RADIUS_M / (EARTH_RADIUS_M + site.elevation_m + z)) ** 2 if vary_gravity else G0
 
     def wind(z: float) -> float:
-        return frame.launch.wind_speed_m_s * (max(z, wind_floor_m) / 10.0) ** wind_exponent
+        # the power law, held above its cap (1,000 m by default, as motorlib.flight.wind)
+        return frame.launch.wind_speed_m_s * (min(max(z, wind_floor_m), wind_cap_m) / 10.0) ** wind_exponent
 
     def drag_per_v(z: float, speed: float) -> float:
         rho, a = air(z)

@@ -6,7 +6,8 @@ from typing import Any
 
 import click
 
-from .options import _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
+from .options import (_catalog_or_samples, _open_catalog, _Quantity, _units_option, apply_field_day, display_units,
+                      field_day_options, pop_field_day)
 from .output import _EPILOG, _caution, _card_units, _console, _json_text
 
 
@@ -36,9 +37,13 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
 @click.option("--report", "report_path", type=click.Path(dir_okay=False),
               help="Write a printable pre-flight report (one self-contained HTML file, at most two pages).")
 @click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists.")
+@click.option("--field-radius", "field_radius", type=_Quantity("length"), default=None,
+              help="Warn when the rocket lands farther from the pad than this, e.g. 600m.")
+@field_day_options
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
-        min_stability_cal: float | None, units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None, report_path: str | None,
-        overwrite: bool) -> None:
+        min_stability_cal: float | None, units: str | None, as_json: bool, csv_path: str | None,
+        plot_path: str | None, report_path: str | None, overwrite: bool, field_radius: float | None,
+        **day: Any) -> None:
     """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
 
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
@@ -47,6 +52,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     With a [geometry] in the airframe file it also gives the stability margin
     at liftoff, rail exit and burnout, and, when the file gives no Cd, flies
     the drag estimated from the shape.
+    Exits with status 1 when the flight fails (no liftoff, stuck on the rail).
 
     \b
     Example:
@@ -57,6 +63,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
       motorlib fly my-rocket.toml --motor G59-10 --report preflight.html
       motorlib fly sample_curves/airframes/quibble-41.toml --motor G59-10 \\
           --min-stability 1.5 --json
+      motorlib fly my-rocket.toml --motor G59-10 --wind 7m/s --wind-from 250deg \\
+          --temperature 31degC --rail-azimuth 250deg
     """
     import numpy as np
 
@@ -66,7 +74,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
-    frame = load_airframe(airframe_file)
+    frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
     motor, motor_file = _load_motor(motor_ref, catalog_dir)
     if report_path:
         from .output import _write_report
@@ -81,13 +89,15 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
-    warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
+    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.wind_speed_m_s,
+                               constant_drag=not frame.drag_table)
     warnings += _stability_and_drag(frame, record, results, summary, ballast_kg or 0.0, min_stability_cal)
     if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
         from ..present.messages import warning_message
 
-        warnings = [(code, warning_message(code, message, summary, LaunchRules(), shown,
-                                           frame.launch.wind_speed_m_s)) for code, message in warnings]
+        warnings = [(code, warning_message(code, message, summary, rules, shown, frame.launch.wind_speed_m_s))
+                    for code, message in warnings]
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))
@@ -104,10 +114,13 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         report = fly_report(frame, motor, summary, warnings, results.trajectories[0], inputs=inputs,
                             command=_command_line(), units=_card_units(shown))
         written.append(_write_report(report, report_path, overwrite, inputs))
+    failed = summary["status"] != "ok"
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
         click.echo(_json_text(payload))
+        if failed:  # the figures are printed, and the exit status says the flight failed
+            raise SystemExit(1)
         return
     from ..present import tables as render
 
@@ -120,6 +133,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)
+    if failed:
+        raise SystemExit(1)
 
 
 def _stability_and_drag(frame: Any, record: Any, results: Any, summary: dict[str, Any], ballast_kg: float,
@@ -179,7 +194,8 @@ def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any) -> 
     from ..files.fsio import write_atomic
     from ..present.csvout import rows_csv
 
-    names = ["time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2"]
+    names = ["time_s", "x_m", "y_m", "altitude_m", "east_m", "north_m", "vx_m_s", "vy_m_s", "vz_m_s", "ax_m_s2",
+             "ay_m_s2", "az_m_s2"]
     rows = [{**{n: float(trajectory[n][row]) for n in names},
              "phase": "descent" if trajectory["descent"][row] else "ascent"} for row in range(len(trajectory["time_s"]))]
     return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode())

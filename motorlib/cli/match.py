@@ -6,7 +6,8 @@ from typing import Any
 
 import click
 
-from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
+from .options import (_catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, apply_field_day,
+                      display_units, field_day_options, pop_field_day)
 from .output import _EPILOG, _card_units, _console, _json_text
 from .robust import pop_robust, robust_options, run_robust
 
@@ -54,6 +55,15 @@ def _match_options(func: Any) -> Any:
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
         click.option("--delay-slack", type=_Quantity("time", minimum=0.0), default=None,
                      help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
+        click.option("--max-landing-speed", "max_landing_speed", type=_Quantity("speed", minimum=0.0, strict=True),
+                     default=None,
+                     help="Highest descent rate at landing, e.g. 6.5m/s (default 6.5 m/s: common practice, "
+                          "no published source)."),
+        click.option("--max-deploy-speed", "max_deploy_speed", multiple=True, metavar="KIND=SPEED",
+                     help="Highest opening speed of a device kind, e.g. drogue=40m/s (defaults: parachute and "
+                          "main 25 m/s, drogue and streamer 45 m/s: common practice, no published source)."),
+        click.option("--field-radius", "field_radius", type=_Quantity("length", minimum=0.0, strict=True), default=None,
+                     help="Fail motors whose estimated landing point lies farther from the pad, e.g. 600m."),
         click.option("--allow-smaller-motors", is_flag=True,
                      help="Narrower motors fit with an adapter, up to --adapter-steps standard sizes down."),
         click.option("--adapter-steps", type=click.IntRange(1, 9), default=2, show_default=True,
@@ -88,7 +98,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     from ..matching.rank import rank
 
     units = display_units(opts.get("units"))
-    frame = load_airframe(airframe_file)
+    frame = apply_field_day(load_airframe(airframe_file), opts.get("_field_day") or {})
     if opts.get("report_path"):
         from .output import _write_report
 
@@ -152,9 +162,11 @@ def match_settings(opts: dict[str, Any]) -> Any:
     from ..flight.rules import LaunchRules
     from ..matching.rank import MatchSettings
 
-    rules = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
+    rules: dict[str, Any] = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
     if opts["min_rail_exit"] is not None:
         rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
+    rules.update(recovery_rules(opts.get("max_landing_speed"), opts.get("max_deploy_speed") or (),
+                                opts.get("field_radius")))
     extra = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
     tolerance = opts.get("target_tolerance")
     if tolerance is not None:
@@ -175,6 +187,7 @@ def match_settings(opts: dict[str, Any]) -> Any:
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @_catalog_option
 @_match_options
+@field_day_options
 @robust_options
 def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     """Rank every motor in the catalog for AIRFRAME_FILE by apogee, rail exit speed and delay.
@@ -202,9 +215,38 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
           --report motors.html
       motorlib match my-rocket.toml --robust --altitude-window 240m..260m \\
           --duration-window 41s..44s
+      motorlib match my-rocket.toml --target 900 --wind 8m/s --wind-from 300deg \\
+          --field-radius 600m
     """
     robust = pop_robust(opts)
+    opts["_field_day"] = pop_field_day(opts)
     if robust["robust"]:
         run_robust(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts, robust)
         return
     _run_match(airframe_file, _open_catalog(_catalog_or_samples(catalog_dir)), opts)
+
+
+def recovery_rules(max_landing: float | None, deploy: tuple[str, ...], field_radius: float | None) -> dict[str, Any]:
+    """The :class:`~motorlib.flight.rules.LaunchRules` fields that the recovery options set."""
+    from ..flight.airframe import RECOVERY_DEVICES
+    from ..flight.rules import LaunchRules
+    from ..units import parse_quantity
+
+    rules: dict[str, Any] = {}
+    if max_landing is not None:
+        rules["max_landing_speed_m_s"] = float(max_landing)
+    if field_radius is not None:
+        rules["field_radius_m"] = float(field_radius)
+    if deploy:
+        limits = dict(LaunchRules().max_deployment_speed_m_s)
+        for text in deploy:
+            kind, _, speed = text.partition("=")
+            if kind.strip() not in RECOVERY_DEVICES or not speed:
+                raise click.UsageError(f"--max-deploy-speed {text!r}: expected KIND=SPEED with KIND one of "
+                                       f"{', '.join(k for k in RECOVERY_DEVICES if k != 'none')}, e.g. drogue=40m/s")
+            try:
+                limits[kind.strip()] = float(parse_quantity(speed, "speed", field="--max-deploy-speed"))
+            except ValueError as exc:
+                raise click.UsageError(f"--max-deploy-speed {text!r}: {getattr(exc, 'problem', exc)}") from None
+        rules["max_deployment_speed_m_s"] = tuple(limits.items())
+    return rules

@@ -49,7 +49,60 @@ class _Quantity(click.ParamType):
 
 
 _UNIT_EXAMPLES = {"length": "24mm or 0.95in", "mass": "25g or 0.9oz", "time": "6s", "speed": "15m/s",
-                  "area": "0.05m2 or 78in2"}
+                  "area": "0.05m2 or 78in2", "angle": "5deg", "temperature": "30degC or 86degF"}
+
+# Field-day overrides: re-run today's conditions without editing the airframe file (fly and match)
+_FIELD_DAY = (
+    ("--wind", "wind_m_s", _Quantity("speed"), "Wind speed at 10 m today, e.g. 6m/s or 12mph; a bare number is m/s."),
+    ("--wind-from", "wind_from_rad", _Quantity("angle", bare=False, example="270deg"),
+     "Where the wind blows from, clockwise from north, e.g. 270deg (a west wind)."),
+    ("--temperature", "temperature_k", _Quantity("temperature", bare=False, example="30degC"),
+     "Temperature at the pad today, e.g. 30degC or 86degF."),
+    ("--elevation", "elevation_m", _Quantity("length"), "Pad elevation above sea level, e.g. 1400m or 4600ft."),
+    ("--rail-length", "rail_length_m", _Quantity("length"), "Rail length, e.g. 2.4m or 8ft; a bare number is m."),
+    ("--rail-angle", "rail_angle_rad", _Quantity("angle", bare=False, example="5deg"),
+     "Rail angle from vertical, e.g. 5deg."),
+    ("--rail-azimuth", "rail_azimuth_rad", _Quantity("angle", bare=False, example="250deg"),
+     "Direction the rail leans toward, clockwise from north, e.g. 250deg (into a wind from 250deg)."),
+)
+
+
+def field_day_options(func: Any) -> Any:
+    """The field-day overrides (--wind, --wind-from, --temperature, --elevation, --rail-*) on a command."""
+    for flag, name, kind, text in reversed(_FIELD_DAY):
+        func = click.option(flag, name, type=kind, default=None, help=text)(func)
+    return func
+
+
+def pop_field_day(opts: dict[str, Any]) -> dict[str, Any]:
+    """Remove the field-day overrides from ``opts``: {name: value or None}."""
+    return {name: opts.pop(name, None) for _, name, _, _ in _FIELD_DAY}
+
+
+def apply_field_day(frame: Any, day: dict[str, Any]) -> Any:
+    """``frame`` with the field-day overrides that were given (the rest as in the file)."""
+    from dataclasses import replace
+
+    from ..errors import SimulationInputError
+
+    given = {k: float(v) for k, v in day.items() if v is not None}
+    if not given:
+        return frame
+    launch = frame.launch
+    site = launch.site
+    try:
+        if "temperature_k" in given or "elevation_m" in given:
+            site = replace(site, temperature_k=given.get("temperature_k", site.temperature_k),
+                           elevation_m=given.get("elevation_m", site.elevation_m))
+        launch = replace(launch, site=site,
+                         wind_speed_m_s=given.get("wind_m_s", launch.wind_speed_m_s),
+                         wind_direction_rad=given.get("wind_from_rad", launch.wind_direction_rad),
+                         rail_length_m=given.get("rail_length_m", launch.rail_length_m),
+                         rail_angle_rad=given.get("rail_angle_rad", launch.rail_angle_rad),
+                         rail_azimuth_rad=given.get("rail_azimuth_rad", launch.rail_azimuth_rad))
+    except (SimulationInputError, ValueError) as exc:
+        raise click.UsageError(str(getattr(exc, "problem", exc)).replace("`", "")) from None
+    return replace(frame, launch=launch)
 
 
 def _is_bare_number(text: str) -> bool:

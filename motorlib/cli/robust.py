@@ -51,17 +51,14 @@ def robust_options(func: Any) -> Any:
                      help="With --robust: apogee window, e.g. 240m..260m."),
         click.option("--duration-window", type=_Window("time", "s"),
                      help="With --robust: liftoff-to-landing window, e.g. 41s..44s."),
-        click.option("--field-radius", "field_radius_m", type=_Quantity("length", minimum=0.0, strict=True),
-                     help="With --robust: landing farther from the pad fails; a bare number is m."),
-        click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", default_unit="deg"), default="0 deg",
-                     help="With --robust: direction the wind blows from (degrees from north)."),
     ]
     for option in reversed(options):
         func = option(func)
     return func
 
 
-_ROBUST_ONLY = ("n_samples", "seed", "workers", "altitude_window", "duration_window", "field_radius_m", "wind_from_rad")
+# --field-radius and --wind-from are shared with the plain ranking (match options and field-day overrides)
+_ROBUST_ONLY = ("n_samples", "seed", "workers", "altitude_window", "duration_window")
 
 
 def pop_robust(opts: dict[str, Any]) -> dict[str, Any]:
@@ -78,13 +75,16 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     from ..matching.robust import RobustSettings, robust_rank
     from .scatter import run_with_progress
 
-    frame = load_airframe(airframe_file)
+    from .options import apply_field_day
+
+    frame = apply_field_day(load_airframe(airframe_file), opts.get("_field_day") or {})
     match = match_settings(opts)
     try:
         settings = RobustSettings(n_samples=robust["n_samples"], seed=robust["seed"],
                                   altitude_window_m=robust["altitude_window"],
                                   duration_window_s=robust["duration_window"],
-                                  field_radius_m=robust["field_radius_m"], wind_from_rad=robust["wind_from_rad"])
+                                  field_radius_m=opts.get("field_radius"),
+                                  wind_from_rad=frame.launch.wind_direction_rad)
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
     rows = cat.rows(CatalogFilter(tag=opts["tag"]))

@@ -18,6 +18,7 @@ from typing import Any
 from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
 from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition
+from ..flight.wind import MeasuredWind
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
 
@@ -27,8 +28,10 @@ __all__ = ["airframe_from_dict", "airframe_template", "load_airframe", "load_unc
 _SECTIONS = {
     "": {"name", "airframe", "launch", "recovery", "geometry", "uncertainty"},
     "airframe": {"mass", "diameter", "drag_coefficient", "drag_table", "mount_diameter", "mount_length"},
-    "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed"},
+    "launch": {"rail_length", "rail_angle", "elevation", "temperature", "pressure", "wind_speed", "wind_direction",
+               "rail_azimuth", "wind_profile"},
     "recovery": {"device", "deploy", "drag_coefficient", "diameter", "area", "deploy_altitude"},
+    "[[recovery]]": {"device", "trigger", "altitude", "delay", "drag_coefficient", "diameter", "drag_area", "replaces"},
     "geometry": {"cg", "motor_offset", "nose", "body", "fins", "transition", "finish", "launch_guide"},
     "geometry.nose": {"shape", "length", "exponent"},
     "geometry.body": {"length"},
@@ -229,7 +232,8 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
     _check_keys(source, data, "")
     body = _section(source, data, "airframe", True)
     launch_t = _section(source, data, "launch", False) or {}
-    recovery_t = _section(source, data, "recovery", False)
+    sequence = _recovery_sequence(source, data.get("recovery")) if isinstance(data.get("recovery"), list) else ()
+    recovery_t = None if sequence else _section(source, data, "recovery", False)
     _section(source, data, "uncertainty", False)  # its keys are checked here; load_uncertainty reads the values
     name = str(data.get("name", os.path.splitext(os.path.basename(source))[0]))
     drag_table: tuple[tuple[float, float], ...] = ()
@@ -255,11 +259,18 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
         )
     except ValueError as exc:
         raise SimulationInputError(source, "launch", str(exc).replace("`", "")) from None
+    profile = _wind_profile(source, launch_t["wind_profile"]) if "wind_profile" in launch_t else None
+    direction = _compass(source, launch_t, "wind_direction")
+    if direction is None:  # a profile sets the axes from its lowest row; else a west wind (the 2-D default)
+        direction = math.radians(float(profile.directions_from_deg[0])) if profile is not None else 1.5 * math.pi
     launch = Launch(
         rail_length_m=_quantity(source, launch_t, "launch", "rail_length", "length", default=1.0),
         rail_angle_rad=_quantity(source, launch_t, "launch", "rail_angle", "angle", default=0.0),
         site=site,
         wind_speed_m_s=_quantity(source, launch_t, "launch", "wind_speed", "speed", default=0.0),
+        wind_direction_rad=direction,
+        rail_azimuth_rad=_compass(source, launch_t, "rail_azimuth"),
+        wind_profile=profile,
     )
     recovery = None
     if recovery_t is not None:
@@ -290,7 +301,83 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
             launch=launch,
             recovery=recovery,
             geometry=geometry,
+            recovery_sequence=sequence,
         )
+
+
+def _compass(source: str, table: dict[str, Any], key: str) -> float | None:
+    """A compass direction [rad]: a bare number is degrees from north (as weather reports give it)."""
+    if key not in table:
+        return None
+    value = table[key]
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        value = f"{value} deg"
+    angle = _quantity(source, {key: value}, "launch", key, "angle")
+    if angle is None or not 0.0 <= angle <= 2.0 * math.pi + 1e-12:
+        raise SimulationInputError(source, f"launch.{key}", f"must lie between 0 and 360 degrees from north, "
+                                                            f"got {table[key]!r}")
+    return angle
+
+
+def _wind_profile(source: str, rows: Any) -> MeasuredWind:
+    """``wind_profile = [[height, speed, direction], ...]``: bare numbers are m, m/s and degrees from north;
+    strings with units are accepted for height and speed."""
+    if not isinstance(rows, list) or not rows:
+        raise SimulationInputError(source, "launch.wind_profile", "expected a list of [height, speed, direction] rows")
+    parsed = []
+    for i, row in enumerate(rows):
+        where = f"launch.wind_profile[{i}]"
+        if not isinstance(row, list) or len(row) != 3:
+            raise SimulationInputError(source, where, f"expected [height, speed, direction], got {row!r}")
+        height = _quantity(source, {"height": row[0]}, where, "height", "length", required=True)
+        speed = _quantity(source, {"speed": row[1]}, where, "speed", "speed", required=True)
+        direction = row[2]
+        if isinstance(direction, bool) or not isinstance(direction, (int, float)):
+            raise SimulationInputError(source, f"{where}.direction", f"expected degrees from north, got {direction!r}")
+        parsed.append([height, speed, float(direction)])
+    try:
+        return MeasuredWind.from_rows(parsed)
+    except SimulationInputError as exc:
+        raise SimulationInputError(source, exc.field, exc.problem) from None
+
+
+def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:
+    """``[[recovery]]`` entries, in the order the devices open (keys in data_schema/AIRFRAME.md)."""
+    devices = []
+    for k, entry in enumerate(entries, start=1):
+        where = f"recovery[{k}]"
+        if not isinstance(entry, dict):
+            raise SimulationInputError(source, where, "expected a table ([[recovery]])")
+        _check_keys(source, entry, "[[recovery]]", where)
+        device = _text(source, entry, where, "device")
+        trigger = _text(source, entry, where, "trigger")
+        cd = entry.get("drag_coefficient")
+        if "drag_area" in entry:
+            if cd is not None:
+                raise SimulationInputError(source, f"{where}.drag_area", "give drag_area alone, or "
+                                                                          "drag_coefficient with diameter")
+            area = _quantity(source, entry, where, "drag_area", "area", required=True)
+        else:
+            if isinstance(cd, bool) or not isinstance(cd, (int, float)) or cd <= 0:
+                raise SimulationInputError(source, f"{where}.drag_coefficient",
+                                           f"expected a positive number (or give drag_area), got {cd!r}")
+            diameter = _quantity(source, entry, where, "diameter", "length", required=True)
+            area = float(cd) * math.pi * diameter**2 / 4.0
+        replaces = entry.get("replaces", False)
+        if not isinstance(replaces, bool):
+            raise SimulationInputError(source, f"{where}.replaces", f"expected true or false, got {replaces!r}")
+        try:
+            devices.append(Recovery(device=device, deploy=trigger, drag_area_m2=float(area),
+                                    deploy_altitude_m=_quantity(source, entry, where, "altitude", "length"),
+                                    delay_s=_quantity(source, entry, where, "delay", "time", default=0.0),
+                                    replaces=replaces))
+        except SimulationInputError as exc:
+            field = exc.field.replace("recovery.deploy_altitude", f"{where}.altitude").replace(
+                "recovery.deploy", f"{where}.trigger").replace("recovery.", f"{where}.")
+            raise SimulationInputError(source, field, exc.problem) from None
+    if not devices:
+        raise SimulationInputError(source, "[[recovery]]", "expected at least one device")
+    return tuple(devices)
 
 
 _TEMPLATE = """\

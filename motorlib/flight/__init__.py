@@ -2,8 +2,10 @@
 
 Model
 -----
-State per flight: downrange x, altitude z above the pad, and their speeds
-(m, m/s); time is motor time, 0 at ignition. Forces:
+State per flight: a 3-D point mass, x along the direction the wind blows
+toward (downrange), y to its left, z up above the pad, and their speeds (m,
+m/s), turned to east and north in the results; time is motor time, 0 at
+ignition. Forces:
 
 * thrust along the body axis; the motor record gives thrust (linear between
   samples) and mass (propellant consumed in proportion to impulse delivered);
@@ -13,14 +15,17 @@ State per flight: downrange x, altitude z above the pad, and their speeds
   powered table while the motor burns when the drag is estimated from the shape);
 * air from the U.S. Standard Atmosphere 1976 with the site's offsets
   (:mod:`motorlib.flight.atmosphere`), read from a 5 m table of ρ and a;
-* wind blowing downrange, w(z) = w10·(max(z, z_floor)/10 m)^(1/7), the usual
-  power-law profile (common practice, no published source).
+* wind from a compass direction, w(z) = w10·(clip(z, z_floor, 1,000 m)/10 m)^(1/7),
+  the usual power-law profile held above its cap, or a measured profile of
+  height, speed and direction (:mod:`motorlib.flight.wind`).
 
 Phases: the rocket waits on the pad until thrust exceeds the weight component
 along the rail (solved exactly on the curve, so the pad wait is not
-integrated); on the rail it moves only along the rail (no friction); after
-rail exit the body axis follows v_rel (a stable rocket weathercocks into the
-wind); after deployment the device's drag area is added.
+integrated); on the rail (leaning toward its azimuth) it moves only along the
+rail (no friction); after rail exit the body axis follows v_rel (a stable
+rocket weathercocks into the wind); each recovery device adds its drag area
+(or replaces the ones before it) from its opening on, and the reported flight
+is the one flown (:mod:`motorlib.flight.recovery_phase`).
 
 Modules
 -------
@@ -29,7 +34,8 @@ Modules
 * ``dynamics``: air, gravity and wind tables on a height grid, and the accelerations;
 * ``events``: the liftoff solve, and Hermite location of apogee, landing, ejection and deployment;
 * ``integrate``: :class:`FlightSettings`, :func:`simulate` and the batched RK4 loop;
-* ``recovery_phase``: where each descent under the device starts, and its step size;
+* ``recovery_phase``: where each device opens, the passes between openings, landing;
+* ``wind``: the capped power law and measured wind profiles;
 * ``results``: status codes, ``MESSAGES`` and :class:`FlightResults`;
 * ``descent``: closed-form fall under quadratic drag; ``rules``: launch rules of thumb.
 """

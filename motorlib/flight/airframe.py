@@ -23,17 +23,19 @@ from typing import Final
 
 from .atmosphere import Site
 from .geometry import Geometry, check_diameters
+from .wind import MeasuredWind
 from ..errors import SimulationInputError
 
 __all__ = ["DEFAULT_DRAG_COEFFICIENT", "DEPLOY_MODES", "DRAG_SOURCES", "ESTIMATE_MACH_STEP", "ESTIMATE_MAX_MACH",
            "RECOVERY_DEVICES", "Airframe", "Launch", "Recovery"]
 
-RECOVERY_DEVICES: Final = ("parachute", "streamer", "none")
+# device kinds: each has its own deployment-speed limit (motorlib.flight.rules.LaunchRules)
+RECOVERY_DEVICES: Final = ("parachute", "drogue", "main", "streamer", "none")
 DRAG_SOURCES: Final = ("given", "estimated")
 DEFAULT_DRAG_COEFFICIENT: Final = 0.5  # the record's long-standing default; sport models run 0.45-0.75 (common practice)
 ESTIMATE_MAX_MACH: Final = 4.0  # the estimated tables reach this Mach number (held constant beyond)
 ESTIMATE_MACH_STEP: Final = 0.02  # their spacing: linear interpolation errs by < 0.3 % (tests/flight/test_drag_flight.py)
-DEPLOY_MODES: Final = ("ejection", "apogee", "altitude")
+DEPLOY_MODES: Final = ("ejection", "apogee", "altitude", "after")
 
 
 def _require(source: str, name: str, ok: bool, problem: str) -> None:
@@ -50,18 +52,30 @@ class Launch:
     rail_length_m : float
         Travel along the rail before the rocket is free [m].
     rail_angle_rad : float
-        Rail tilt from vertical, tilted downwind [rad]; 0 to 30 degrees.
+        Rail tilt from vertical [rad]; 0 to 30 degrees.
     site : Site
         Elevation and optional measured temperature and pressure.
     wind_speed_m_s : float
-        Wind speed at 10 m above the pad [m/s], blowing downrange (+x). Above and
-        below 10 m it follows a power-law profile (see :mod:`motorlib.flight`).
+        Wind speed at 10 m above the pad [m/s]. Above and below 10 m it follows a
+        power-law profile, held above its cap (see :mod:`motorlib.flight.wind`).
+    wind_direction_rad : float
+        Where the wind blows FROM, clockwise from north [rad], as weather reports give
+        it; the default 3π/2 (a west wind) blows toward the east.
+    rail_azimuth_rad : float or None
+        The direction the rail leans toward, clockwise from north [rad]; None leans it
+        downwind (as the 2-D model did). Lean it into the wind with the wind's own direction.
+    wind_profile : MeasuredWind or None
+        A measured profile of height, speed and direction; it replaces the power law
+        (``wind_speed_m_s`` and ``wind_direction_rad`` then only set the axes and rules).
     """
 
     rail_length_m: float = 1.0
     rail_angle_rad: float = 0.0
     site: Site = field(default_factory=Site)
     wind_speed_m_s: float = 0.0
+    wind_direction_rad: float = 1.5 * math.pi
+    rail_azimuth_rad: float | None = None
+    wind_profile: MeasuredWind | None = None
 
     def __post_init__(self) -> None:
         src = "launch"
@@ -70,29 +84,42 @@ class Launch:
                  f"must lie between 0 and 30 degrees from vertical, got {math.degrees(self.rail_angle_rad):.4g} deg")
         _require(src, "launch.wind_speed", 0.0 <= self.wind_speed_m_s <= 40.0,
                  f"must lie between 0 and 40 m/s, got {self.wind_speed_m_s!r} m/s")
+        for key, value in (("launch.wind_direction", self.wind_direction_rad), ("launch.rail_azimuth", self.rail_azimuth_rad)):
+            _require(src, key, value is None or (math.isfinite(value) and 0.0 <= value <= 2.0 * math.pi + 1e-12),
+                     f"must lie between 0 and 360 degrees from north, got {value!r} rad")
 
 
 @dataclass(frozen=True)
 class Recovery:
-    """A recovery device and when it deploys.
+    """A recovery device and what opens it (its trigger).
 
     Attributes
     ----------
     device : str
-        ``parachute``, ``streamer`` or ``none``.
+        Its kind: ``parachute``, ``drogue``, ``main``, ``streamer`` or ``none``; each kind has its own
+        deployment-speed limit in :class:`~motorlib.flight.rules.LaunchRules`.
     deploy : str
-        ``ejection`` (the motor's delay charge), ``apogee`` (electronics) or
-        ``altitude`` (electronics, at ``deploy_altitude_m`` on the way down).
+        The trigger: ``ejection`` (the motor's delay charge), ``apogee`` (electronics, ``delay_s``
+        after apogee), ``altitude`` (electronics, at ``deploy_altitude_m`` on the way down) or
+        ``after`` (a timer: ``delay_s`` after the previous device opened, or after liftoff for the
+        first device).
     drag_area_m2 : float
         Cd·A of the device [m²] (Cd referred to the same area A).
     deploy_altitude_m : float or None
         Height above the pad for ``altitude`` deployment [m].
+    delay_s : float
+        Delay of an ``apogee`` or ``after`` trigger [s].
+    replaces : bool
+        The device replaces the drag area of the devices before it (a main let out by a
+        chute release that frees the drogue); by default it adds to it.
     """
 
     device: str = "parachute"
     deploy: str = "ejection"
     drag_area_m2: float = 0.0
     deploy_altitude_m: float | None = None
+    delay_s: float = 0.0
+    replaces: bool = False
 
     def __post_init__(self) -> None:
         src = "recovery"
@@ -103,6 +130,8 @@ class Recovery:
         if self.deploy == "altitude":
             _require(src, "recovery.deploy_altitude", self.deploy_altitude_m is not None and self.deploy_altitude_m > 0.0,
                      "altitude deployment needs a positive deploy_altitude")
+        _require(src, "recovery.delay", math.isfinite(self.delay_s) and 0.0 <= self.delay_s <= 600.0,
+                 f"must lie between 0 and 600 s, got {self.delay_s!r} s")
 
 
 @dataclass(frozen=True)
@@ -131,6 +160,10 @@ class Airframe:
         Motor mount diameter and the longest motor that fits [m].
     launch : Launch
     recovery : Recovery or None
+        The first (or only) recovery device.
+    recovery_sequence : tuple of Recovery
+        Every device in the order they open (a drogue, then a main); empty for one device
+        given as ``recovery``. When given, ``recovery`` is set to its first device.
     geometry : Geometry or None
         The outside shape and the empty airframe's balance point, for the centre of pressure,
         the stability margin and a drag estimate (:mod:`motorlib.flight.geometry`,
@@ -149,9 +182,18 @@ class Airframe:
     geometry: Geometry | None = None
     drag_table_powered: tuple[tuple[float, float], ...] = ()
     drag_source: str | None = None
+    recovery_sequence: tuple[Recovery, ...] = ()
 
     def __post_init__(self) -> None:
         src = self.name or "airframe"
+        sequence = tuple(self.recovery_sequence)
+        object.__setattr__(self, "recovery_sequence", sequence)
+        if sequence:
+            _require(src, "recovery", self.recovery is None or self.recovery == sequence[0],
+                     "give either one recovery device or a sequence, not both")
+            _require(src, "recovery", all(d.device != "none" for d in sequence),
+                     "every device of a sequence needs a kind other than none")
+            object.__setattr__(self, "recovery", sequence[0])
         _require(src, "airframe.mass", 0.0 < self.mass_kg <= 2000.0, f"must be above 0 and at most 2000 kg, got {self.mass_kg!r} kg")
         _require(src, "airframe.diameter", 0.0 < self.diameter_m <= 2.0, f"must be above 0 and at most 2 m, got {self.diameter_m!r} m")
         if self.geometry is not None:
@@ -204,6 +246,13 @@ class Airframe:
         object.__setattr__(self, "drag_table_powered", tuple(zip(mach.tolist(), powered.tolist())))
         object.__setattr__(self, "drag_coefficient", float(coasting[0]))
         object.__setattr__(self, "drag_source", "estimated")
+
+    @property
+    def recovery_devices(self) -> tuple[Recovery, ...]:
+        """The devices in the order they open (none for no recovery)."""
+        if self.recovery_sequence:
+            return self.recovery_sequence
+        return () if self.recovery is None or self.recovery.device == "none" else (self.recovery,)
 
     @property
     def reference_area_m2(self) -> float:

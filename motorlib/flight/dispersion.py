@@ -263,7 +263,9 @@ def _build(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Seque
     recoveries = _recoveries(frame.recovery, u0.deploy_altitude_std_m * col["deploy_altitude"], u0.deploy_altitude_std_m)
     base = replace(frame, geometry=None)  # the geometry's nose must match the diameter; the flight never reads it
     frames = [_copy_with(base, mass_kg=float(mass[i]), diameter_m=float(diameter[i]), drag_coefficient=float(cd[i]),
-                         launch=_copy_with(frame.launch, rail_angle_rad=float(in_plane[i]), wind_speed_m_s=float(wind[i])),
+                         # flown in the plane of the sampled wind (turned to east/north by ``downwind`` below)
+                         launch=_copy_with(frame.launch, rail_angle_rad=float(in_plane[i]), wind_speed_m_s=float(wind[i]),
+                                           wind_direction_rad=1.5 * math.pi, rail_azimuth_rad=None),
                          recovery=recoveries[i])
               for i in range(n)]
     # the motors: each record packed once, then its rows scaled per flight (time by b, thrust by i/b)

@@ -7,18 +7,28 @@ or constant g0. Air (the site's U.S. Standard Atmosphere 1976, or uniform air) a
 gravity are tabulated every 5 m above the pad, so that a lookup is one index and a
 linear interpolation (no search).
 
+Axes: each flight is integrated in its own horizontal basis, x along the
+direction the wind blows toward at 10 m (downrange) and y 90° to its left, z up;
+:func:`_basis` gives the east/north components of both axes. A power-law wind then
+has no y component, so a flight whose rail leans along the wind (or stands
+vertical) stays in its x-z plane and the group is integrated in 2-D (``planar``);
+a rail leaning across the wind, or a measured profile (which turns with height),
+makes the group 3-D. Results are turned to east and north at the end.
+
 numpy only.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Final
 
 import numpy as np
 
-from .airframe import Airframe
+from .airframe import Airframe, Launch
 from .atmosphere import EARTH_RADIUS_M
+from .wind import MeasuredWind
 from ..units import STANDARD_GRAVITY_M_S2
 
 if TYPE_CHECKING:  # annotation only: integrate imports this module
@@ -42,10 +52,21 @@ class _Group:
     gravity: np.ndarray  # [m/s²]
     wind_floor_m: float
     wind_exponent: float
+    wind_cap_m: float
     machs: np.ndarray
     cds: np.ndarray
     table_cd: bool
     cds_powered: np.ndarray | None = None  # Cd while burning on ``machs`` (estimated drag); None: as ``cds``
+    profile: MeasuredWind | None = None  # a measured wind profile (east/north against height) for the group
+    planar: bool = True  # every flight stays in its x-z plane: y and its speed are not integrated
+
+    def wind(self, a: dict[str, np.ndarray], z: np.ndarray, shape: np.ndarray
+             ) -> tuple[np.ndarray, np.ndarray | None]:
+        """Wind along each flight's x and y axes [m/s] at heights z (y None for a power law: it has none)."""
+        if self.profile is None:
+            return a["wind"] * shape, None
+        east, north = self.profile.velocity_m_s(z)
+        return east * a["e1e"] + north * a["e1n"], east * a["e2e"] + north * a["e2n"]
 
     def lookup(self, z: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """Density, speed of sound, gravity and wind shape w(z)/w(10 m) at heights z above the pad.
@@ -53,14 +74,31 @@ class _Group:
         The wind power law is computed exactly: it is too curved near the ground for a 5 m table.
         """
         u = (z - self.base_m) * (1.0 / self.step_m)
-        i = np.clip(u.astype(np.int64), 0, self.rho.size - 2)
+        i = np.minimum(np.maximum(u.astype(np.int64), 0), self.rho.size - 2)
         w = u - i
         out = []
         for table in (self.rho, self.sound, self.gravity):
             lo = table[i]
             out.append(lo + w * (table[i + 1] - lo))
-        shape = (np.maximum(z, self.wind_floor_m) * 0.1) ** self.wind_exponent  # 0.1 = 1 / (10 m reference)
+        # 0.1 = 1 / (10 m reference); held above the cap
+        # (np.minimum/np.maximum: np.clip costs several times more per call on arrays this size)
+        shape = (np.minimum(np.maximum(z, self.wind_floor_m), self.wind_cap_m) * 0.1) ** self.wind_exponent
         return out[0], out[1], out[2], shape
+
+
+def _basis(launch: Launch) -> tuple[float, float, float, float, float]:
+    """East/north components (e1e, e1n) of a flight's x axis (downwind; its y axis, 90° to the left, is
+    (-e1n, e1e)), and the rail's direction (ux, uy, uz) in that basis, from the wind direction and the
+    rail's angle and azimuth (downwind when not given)."""
+    downwind = launch.wind_direction_rad + math.pi  # the wind blows FROM its direction
+    e1e, e1n = math.sin(downwind), math.cos(downwind)
+    azimuth = downwind if launch.rail_azimuth_rad is None else launch.rail_azimuth_rad
+    lean = math.sin(launch.rail_angle_rad)
+    ux = lean * math.cos(azimuth - downwind)
+    uy = -lean * math.sin(azimuth - downwind)
+    if abs(uy) < 1e-12:  # along the wind (or vertical): exactly planar
+        uy = 0.0
+    return e1e, e1n, ux, uy, math.cos(launch.rail_angle_rad)
 
 
 def _make_group(frame: Airframe, s: FlightSettings) -> _Group:
@@ -76,16 +114,17 @@ def _make_group(frame: Airframe, s: FlightSettings) -> _Group:
     else:
         gravity = np.full(heights.size, STANDARD_GRAVITY_M_S2)
     return _Group(base_m=float(heights[0]), step_m=_TABLE_STEP_M, rho=rho, sound=sound, gravity=gravity,
-                  wind_floor_m=s.wind_floor_m, wind_exponent=s.wind_exponent,
+                  wind_floor_m=s.wind_floor_m, wind_exponent=s.wind_exponent, wind_cap_m=s.wind_cap_m,
                   machs=np.array(frame.drag_machs), cds=np.array(frame.drag_cds),
-                  table_cd=bool(frame.drag_table),
+                  table_cd=bool(frame.drag_table), profile=frame.launch.wind_profile,
                   cds_powered=np.array(frame.drag_cds_powered) if frame.drag_table_powered else None)
 
 
-def _accel(g: _Group, a: dict[str, np.ndarray], t, x, z, vx, vz):
-    """Accelerations (ax, az), Mach and dynamic pressure of every active flight; arrays of shape (n_active,).
+def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz):
+    """Accelerations (ax, ay, az), Mach and dynamic pressure of every active flight; arrays of shape (n_active,).
 
-    ``a`` holds the active flights' parameters and phase flags (compacted with the state).
+    ``a`` holds the active flights' parameters and phase flags (compacted with the state). In a
+    planar group ``ay`` is None (y and its speed stay 0).
     """
     burning = a["burning"]
     dt = t - a["seg_t"]
@@ -93,8 +132,14 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, z, vx, vz):
     impulse = np.where(burning, a["seg_c"] + (a["seg_f"] + 0.5 * a["seg_s"] * dt) * dt, a["itot"])
     inv_mass = 1.0 / (a["m_full"] - a["m_prop"] * (impulse / a["itot"]))
     rho, sound, grav, shape = g.lookup(z)
-    vrx = vx - a["wind"] * shape
-    speed = np.sqrt(vrx * vrx + vz * vz)
+    wind_x, wind_y = g.wind(a, z, shape)
+    vrx = vx - wind_x
+    if g.planar:
+        vry = None
+        speed = np.sqrt(vrx * vrx + vz * vz)
+    else:
+        vry = vy if wind_y is None else vy - wind_y
+        speed = np.sqrt(vrx * vrx + vry * vry + vz * vz)
     mach = speed / sound
     cd = np.interp(mach, g.machs, g.cds) if g.table_cd else a["cd"]
     if g.cds_powered is not None:  # smaller base drag while the exhaust fills part of the base
@@ -102,13 +147,17 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, z, vx, vz):
     half_rho_v = 0.5 * rho * speed
     drag_per_v = half_rho_v * (cd * a["area"] + a["extra"])  # drag force / |v_rel|
     # free flight: thrust along v_rel (weathercocking), drag against it
-    along = thrust / np.maximum(speed, 1e-9) - drag_per_v
-    ax = along * vrx * inv_mass
-    az = along * vz * inv_mass - grav
+    along = (thrust / np.maximum(speed, 1e-9) - drag_per_v) * inv_mass
+    ax = along * vrx
+    ay = None if vry is None else along * vry
+    az = along * vz - grav
     on_rail = a["on_rail"]
     if a["any_rail"]:
         ux, uz = a["ux"], a["uz"]
-        a_rail = (thrust - drag_per_v * (vrx * ux + vz * uz)) * inv_mass - grav * uz  # uz = cos(rail angle)
+        rel_along = vrx * ux + vz * uz if vry is None else vrx * ux + vry * a["uy"] + vz * uz
+        a_rail = (thrust - drag_per_v * rel_along) * inv_mass - grav * uz  # uz = cos(rail angle)
         ax = np.where(on_rail, a_rail * ux, ax)
         az = np.where(on_rail, a_rail * uz, az)
-    return ax, az, mach, half_rho_v * speed
+        if ay is not None:
+            ay = np.where(on_rail, a_rail * a["uy"], ay)
+    return ax, ay, az, mach, half_rho_v * speed

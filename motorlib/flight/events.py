@@ -35,16 +35,22 @@ class _StepEnds(NamedTuple):
     t1: np.ndarray
     h: np.ndarray
     x0: np.ndarray
+    y0: np.ndarray
     z0: np.ndarray
     vx0: np.ndarray
+    vy0: np.ndarray
     vz0: np.ndarray
     ax0: np.ndarray
+    ay0: np.ndarray
     az0: np.ndarray
     x1: np.ndarray
+    y1: np.ndarray
     z1: np.ndarray
     vx1: np.ndarray
+    vy1: np.ndarray
     vz1: np.ndarray
     ax1: np.ndarray
+    ay1: np.ndarray
     az1: np.ndarray
 
     def select(self, mask: np.ndarray) -> _StepEnds:
@@ -162,7 +168,8 @@ def _hermite_root(y0: np.ndarray, d0: np.ndarray, y1: np.ndarray, d1: np.ndarray
 
 # ----------------------------------------------------------------------------- events inside a step
 def _rail_exit(a: dict, rail_exit_t: np.ndarray, rail_exit_v: np.ndarray, status: np.ndarray, t1: np.ndarray,
-               x1: np.ndarray, z1: np.ndarray, vx1: np.ndarray, vz1: np.ndarray) -> None:
+               x1: np.ndarray, y1: np.ndarray, z1: np.ndarray, vx1: np.ndarray, vy1: np.ndarray, vz1: np.ndarray
+               ) -> None:
     """Record rail exit time [s] and speed [m/s] of the flights that left the rail; flag those that slid back.
 
     The step size aims a rail step's end at the rail's end (predicted from the
@@ -170,12 +177,12 @@ def _rail_exit(a: dict, rail_exit_t: np.ndarray, rail_exit_v: np.ndarray, status
     exit; the test allows 1e-12 relative short of the rail's end.
     """
     on_rail = a["on_rail"]
-    left = on_rail & (x1 * a["ux"] + z1 * a["uz"] >= a["rail_m"] * (1.0 - 1e-12))
+    left = on_rail & (x1 * a["ux"] + y1 * a["uy"] + z1 * a["uz"] >= a["rail_m"] * (1.0 - 1e-12))
     if left.any():
         rows = a["ref"][left]
         rail_exit_t[rows] = t1[left]
-        rail_exit_v[rows] = np.hypot(vx1[left], vz1[left])
-    slid_back = on_rail & ~left & ((vx1 * a["ux"] + vz1 * a["uz"]) <= 0.0)
+        rail_exit_v[rows] = np.sqrt(vx1[left] ** 2 + vy1[left] ** 2 + vz1[left] ** 2)
+    slid_back = on_rail & ~left & ((vx1 * a["ux"] + vy1 * a["uy"] + vz1 * a["uz"]) <= 0.0)
     status[a["ref"][slid_back]] = STUCK_ON_RAIL
     a["on_rail"] = on_rail & ~left
     a["any_rail"] = bool(a["on_rail"].any())
@@ -200,13 +207,16 @@ def _ejection_states(a: dict, queries_s: np.ndarray, ejection: dict[str, np.ndar
     hq = e.h[li]
     tau = (q_rows[a_i, b_i] - e.t0[li]) / hq
     r = a["ref"][li]
-    ejection["z"][r, b_i] = _hermite(e.z0[li], e.vz0[li], e.z1[li], e.vz1[li], hq, tau)
-    ejection["x"][r, b_i] = _hermite(e.x0[li], e.vx0[li], e.x1[li], e.vx1[li], hq, tau)
-    vxq = _hermite(e.vx0[li], e.ax0[li], e.vx1[li], e.ax1[li], hq, tau)
-    vzq = _hermite(e.vz0[li], e.az0[li], e.vz1[li], e.az1[li], hq, tau)
-    ejection["vx"][r, b_i] = vxq
-    ejection["vz"][r, b_i] = vzq
-    ejection["speed"][r, b_i] = np.hypot(vxq, vzq)
+    for axis in "xyz":
+        ejection[axis][r, b_i] = _hermite(getattr(e, f"{axis}0")[li], getattr(e, f"v{axis}0")[li],
+                                          getattr(e, f"{axis}1")[li], getattr(e, f"v{axis}1")[li], hq, tau)
+        ejection[f"v{axis}"][r, b_i] = _hermite(getattr(e, f"v{axis}0")[li], getattr(e, f"a{axis}0")[li],
+                                                getattr(e, f"v{axis}1")[li], getattr(e, f"a{axis}1")[li], hq, tau)
+    ejection["speed"][r, b_i] = np.sqrt(ejection["vx"][r, b_i] ** 2 + ejection["vy"][r, b_i] ** 2
+                                        + ejection["vz"][r, b_i] ** 2)
+    ejection["t"][r, b_i] = q_rows[a_i, b_i]
+    for name in ("max_speed", "max_mach", "max_acc", "max_q"):  # maxima of the step ends before the instant
+        ejection[name][r, b_i] = a[name][li]
     later = np.where(q_rows > e.t1[rows_d, None], q_rows, np.inf)
     a["next_q"][rows_d] = later.min(axis=1)
 
@@ -222,8 +232,11 @@ def _deploy_altitude_reached(a: dict, at_deploy: dict[str, np.ndarray], deploy_a
     down = a["pending"] & a["apogee_found"] & (e.z1 <= deploy_altitude_m * (1.0 + 1e-9)) & (e.vz1 < 0.0)
     if down.any():
         r = a["ref"][down]
-        at_deploy["t"][r], at_deploy["x"][r], at_deploy["z"][r] = e.t1[down], e.x1[down], e.z1[down]
-        at_deploy["vx"][r], at_deploy["vz"][r] = e.vx1[down], e.vz1[down]
+        for key, value in (("t", e.t1), ("x", e.x1), ("y", e.y1), ("z", e.z1), ("vx", e.vx1), ("vy", e.vy1),
+                           ("vz", e.vz1)):
+            at_deploy[key][r] = value[down]
+        for name in ("max_speed", "max_mach", "max_acc", "max_q"):  # the step end itself counts in the next pass
+            at_deploy[name][r] = a[name][down]
         a["pending"] = a["pending"] & ~down
 
 
@@ -240,7 +253,9 @@ def _locate_apogee(steps: list[tuple[np.ndarray, _StepEnds]], apogee: dict[str, 
     apogee["t"][r] = e.t0 + tau * e.h
     apogee["z"][r] = _hermite(e.z0, e.vz0, e.z1, e.vz1, e.h, tau)
     apogee["x"][r] = _hermite(e.x0, e.vx0, e.x1, e.vx1, e.h, tau)
+    apogee["y"][r] = _hermite(e.y0, e.vy0, e.y1, e.vy1, e.h, tau)
     apogee["vx"][r] = _hermite(e.vx0, e.ax0, e.vx1, e.ax1, e.h, tau)
+    apogee["vy"][r] = _hermite(e.vy0, e.ay0, e.vy1, e.ay1, e.h, tau)
 
 
 def _locate_landing(steps: list[tuple[np.ndarray, _StepEnds]], landing: dict[str, np.ndarray]) -> None:
@@ -249,6 +264,10 @@ def _locate_landing(steps: list[tuple[np.ndarray, _StepEnds]], landing: dict[str
     tau = _hermite_root(e.z0, e.vz0, e.z1, e.vz1, e.h)
     landing["t"][r] = e.t0 + tau * e.h
     landing["x"][r] = _hermite(e.x0, e.vx0, e.x1, e.vx1, e.h, tau)
+    landing["y"][r] = _hermite(e.y0, e.vy0, e.y1, e.vy1, e.h, tau)
     vz_land = _hermite(e.vz0, e.az0, e.vz1, e.az1, e.h, tau)
-    landing["speed"][r] = np.hypot(_hermite(e.vx0, e.ax0, e.vx1, e.ax1, e.h, tau), vz_land)
+    vx_land = _hermite(e.vx0, e.ax0, e.vx1, e.ax1, e.h, tau)
+    vy_land = _hermite(e.vy0, e.ay0, e.vy1, e.ay1, e.h, tau)
+    landing["speed"][r] = np.sqrt(vx_land**2 + vy_land**2 + vz_land**2)
     landing["rate"][r] = -vz_land
+    landing["vx"][r], landing["vy"][r], landing["vz"][r] = vx_land, vy_land, vz_land

@@ -33,18 +33,33 @@ MESSAGES: Final = {
 class FlightResults:
     """Results of a batch; every array has shape (n_flights,) unless stated. Times from ignition [s].
 
+    Every figure describes the flight that was flown: one trajectory, cut where
+    each recovery device opens, so a device that opens while the rocket climbs
+    ends the climb (apogee and maxima come from the flown states above ground).
+
     ``ejection_*`` arrays have shape (n_flights, n_delays) aligned with
     ``ejection_delay_s`` (NaN where a motor has fewer delays, or where the
-    rocket lands before that delay). ``landing_*`` and ``descent_*`` are NaN
-    when the airframe has no recovery device.
+    rocket lands before that delay); they describe the rocket without a device
+    (what each delay would meet). ``deployment_*`` and ``opening_load_n`` have
+    shape (n_flights, n_devices), one column per recovery device in the order
+    they open, NaN where a device never opens (the rocket lands first):
+    time, height above the pad, air-relative speed, and the opening-load
+    estimate ½·ρ·v²·(Cd·A of the device), an upper bound without an inflation
+    model; ``deployment_descent_rate_m_s`` is the descent rate under that device
+    when the next one opens or at landing. ``landing_*`` is the impact when
+    nothing opens; NaN when the descent was not flown (``descent=False``).
+    ``optimal_delay_s`` is the delay that fires at the apogee of the rocket
+    without a device.
 
     Definitions: ``liftoff_thrust_to_weight`` is the highest thrust in the first
     0.1 s of the curve over the liftoff weight (m·g0); ``average_thrust_to_weight``
     the total impulse over the time from the first sample to burnout, over the same
     weight; ``max_acceleration_m_s2`` the largest magnitude of the trajectory's
     (kinematic) acceleration; maxima are sampled at step ends, and every curve
-    sample is a step end. ``burnout_time_s`` is where the thrust curve reaches
-    zero for good, and ejection delays count from it.
+    sample is a step end. ``max_acceleration_m_s2`` covers the flight until the
+    first device opens (the opening is an instant change of drag in this model:
+    its jolt is ``opening_load_n``). ``burnout_time_s`` is where the thrust curve
+    reaches zero for good, and ejection delays count from it.
     """
 
     status: np.ndarray
@@ -74,12 +89,18 @@ class FlightResults:
     landing_descent_rate_m_s: np.ndarray
     descent_time_s: np.ndarray
     drift_m: np.ndarray
+    optimal_delay_s: np.ndarray
+    apogee_east_m: np.ndarray
+    apogee_north_m: np.ndarray
+    landing_east_m: np.ndarray
+    landing_north_m: np.ndarray
+    deployment_time_s: np.ndarray
+    deployment_altitude_m: np.ndarray
+    deployment_speed_m_s: np.ndarray
+    opening_load_n: np.ndarray
+    deployment_descent_rate_m_s: np.ndarray
+    recovery_devices: tuple[tuple[object, ...], ...] = ()
     trajectories: tuple[dict[str, np.ndarray], ...] | None = None
-
-    @property
-    def optimal_delay_s(self) -> np.ndarray:
-        """Apogee time minus burnout time [s]: the delay that fires the charge at apogee."""
-        return self.apogee_time_s - self.burnout_time_s
 
     @property
     def n_flights(self) -> int:
@@ -173,7 +194,41 @@ class FlightResults:
             "landing_descent_rate_m_s": num(self.landing_descent_rate_m_s[i]),
             "descent_time_s": num(self.descent_time_s[i]),
             "drift_m": num(self.drift_m[i]),
+            "apogee_east_m": num(self.apogee_east_m[i]),
+            "apogee_north_m": num(self.apogee_north_m[i]),
+            "deployments": self.deployments(i),
+            "landing": self.landing(i),
         }
+
+    def deployments(self, i: int) -> list[dict[str, object]]:
+        """Flight ``i``'s devices that opened, in order: ``{device, trigger, time_s, altitude_m, speed_m_s,
+        opening_load_n, descent_rate_m_s}`` (SI; speed air-relative; the load an upper-bound estimate)."""
+        devices = self.recovery_devices[i] if i < len(self.recovery_devices) else ()
+        out = []
+        for k, device in enumerate(devices):
+            if k >= self.deployment_time_s.shape[1] or not np.isfinite(self.deployment_time_s[i, k]):
+                continue
+            out.append({"device": getattr(device, "device", "device"), "trigger": getattr(device, "deploy", None),
+                        "time_s": float(self.deployment_time_s[i, k]),
+                        "altitude_m": float(self.deployment_altitude_m[i, k]),
+                        "speed_m_s": float(self.deployment_speed_m_s[i, k]),
+                        "opening_load_n": float(self.opening_load_n[i, k]),
+                        "descent_rate_m_s": _finite(self.deployment_descent_rate_m_s[i, k])})
+        return out
+
+    def landing(self, i: int) -> dict[str, object] | None:
+        """Flight ``i``'s landing: ``{time_s, speed_m_s, east_m, north_m, distance_m, bearing_deg}`` (None if
+        not flown); the bearing from the pad is clockwise from north, in [0, 360)."""
+        if not np.isfinite(self.landing_time_s[i]):
+            return None
+        east, north = float(self.landing_east_m[i]), float(self.landing_north_m[i])
+        return {"time_s": float(self.landing_time_s[i]), "speed_m_s": float(self.landing_speed_m_s[i]),
+                "east_m": east, "north_m": north, "distance_m": math.hypot(east, north),
+                "bearing_deg": math.degrees(math.atan2(east, north)) % 360.0}
+
+
+def _finite(value: float) -> float | None:
+    return float(value) if np.isfinite(value) else None
 
 
 _RESULT_FIELDS = ("liftoff_time_s", "rail_exit_time_s", "rail_exit_speed_m_s", "burnout_time_s", "apogee_m",
@@ -181,22 +236,32 @@ _RESULT_FIELDS = ("liftoff_time_s", "rail_exit_time_s", "rail_exit_speed_m_s", "
                   "max_dynamic_pressure_pa", "liftoff_mass_kg", "liftoff_thrust_to_weight",
                   "average_thrust_to_weight", "deploy_time_s", "deploy_altitude_m", "deploy_delay_s",
                   "landing_time_s", "landing_speed_m_s", "landing_descent_rate_m_s", "descent_time_s",
-                  "drift_m")
+                  "drift_m", "optimal_delay_s", "apogee_east_m", "apogee_north_m", "landing_east_m",
+                  "landing_north_m")
+_DEPLOYMENT_FIELDS = ("deployment_time_s", "deployment_altitude_m", "deployment_speed_m_s", "opening_load_n",
+                      "deployment_descent_rate_m_s")
 
 
-def _empty_results(n: int, k: int, delays: np.ndarray) -> dict[str, np.ndarray]:
+def _empty_results(n: int, k: int, delays: np.ndarray, n_devices: int = 1) -> dict[str, np.ndarray]:
     """The :class:`FlightResults` arrays of ``n`` flights with ``k`` delay columns, NaN until flown."""
     out = {name: np.full(n, np.nan) for name in _RESULT_FIELDS}
     out["status"] = np.zeros(n, dtype=np.int64)
     out["ejection_delay_s"] = delays.copy()
     for name in ("ejection_altitude_m", "ejection_speed_m_s", "ejection_vertical_speed_m_s"):
         out[name] = np.full((n, k), np.nan)
+    for name in _DEPLOYMENT_FIELDS:
+        out[name] = np.full((n, max(n_devices, 1)), np.nan)
     return out
 
 
 def _store_history(history: list, idx: np.ndarray, traj: list, descent: bool) -> None:
-    """Append one pass's sampled states, (ref, t, x, z, vx, vz, ax, az) per step, to each flight's trajectory."""
-    names = ("time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2")
+    """Append one pass's sampled states, (ref, t, x, y, z, vx, vy, vz, ax, ay, az) per step, to each flight's
+    trajectory (x downwind, y to its left).
+
+    A pass starts where the flight branched from the pass before it (a device opened): the earlier
+    rows from that instant on were never flown and are cut, so the trajectory stays one flight.
+    """
+    names = ("time_s", "x_m", "y_m", "altitude_m", "vx_m_s", "vy_m_s", "vz_m_s", "ax_m_s2", "ay_m_s2", "az_m_s2")
     per_flight: dict[int, list[np.ndarray]] = {}
     for entry in history:
         ref = entry[0]
@@ -211,5 +276,24 @@ def _store_history(history: list, idx: np.ndarray, traj: list, descent: bool) ->
         if traj[k] is None:
             traj[k] = block
         else:
-            traj[k] = {name: np.concatenate((traj[k][name], block[name])) for name in block}
+            kept = traj[k]["time_s"] < block["time_s"][0]
+            traj[k] = {name: np.concatenate((traj[k][name][kept], block[name])) for name in block}
 
+
+def _finish_trajectory(block: dict[str, np.ndarray] | None, t_end_s: float, landing: dict[str, float] | None,
+                       axis: tuple[float, float]) -> dict[str, np.ndarray] | None:
+    """Cut a trajectory at ``t_end_s`` (rows after it were not flown), end it on the ground at the landing
+    state ``{t, x, y, vx, vy, vz}`` when there is one (the last step ends below the pad), and add the
+    ``east_m`` and ``north_m`` columns from the flight's downwind axis ``axis`` = (east, north)."""
+    if block is None:
+        return None
+    kept = (block["time_s"] <= t_end_s) & (block["altitude_m"] >= 0.0)
+    out = {name: values[kept] for name, values in block.items()}
+    if landing is not None and out["time_s"].size:
+        row = {"time_s": landing["t"], "x_m": landing["x"], "y_m": landing["y"], "altitude_m": 0.0,
+               "vx_m_s": landing["vx"], "vy_m_s": landing["vy"], "vz_m_s": landing["vz"]}
+        out = {name: np.append(values, row.get(name, values[-1])) for name, values in out.items()}
+    e1e, e1n = axis
+    out["east_m"] = out["x_m"] * e1e - out["y_m"] * e1n
+    out["north_m"] = out["x_m"] * e1n + out["y_m"] * e1e
+    return out

@@ -41,7 +41,8 @@ _PHASE_OF_WARNING: Final = {
     "rail-exit-slow": "pad", "rail-exit-slow-for-wind": "pad", "thrust-to-weight-low": "pad",
     "unstable": "pad", "stability-low": "pad", "over-stable": "pad", "stability-unknown": "pad",
     "ejection-far-from-apogee": "coast", "ejection-fast": "recovery", "no-deployment": "recovery",
-    "deployment-fast": "recovery", "descent-fast": "landing",
+    "deployment-fast": "recovery", "descent-fast": "landing", "deployment-while-burning": "recovery",
+    "lands-outside-field": "landing", "constant-cd-past-mach": "boost",
 }
 _FAILING_WARNINGS: Final = {"unstable", "flight-failed", "flight-incomplete"}
 
@@ -114,6 +115,13 @@ def _check(value: Any, limit: float, above: bool) -> str:
     return "ok" if (float(value) >= limit if above else float(value) <= limit) else "caution"
 
 
+def _bearing(east: float, north: float) -> float:
+    """Compass bearing [deg, 0-360) of a point east/north of the pad."""
+    import math
+
+    return math.degrees(math.atan2(east, north)) % 360.0
+
+
 def _seconds(value: Any) -> str:
     return quantity(value, "time")
 
@@ -152,7 +160,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     if not completed or s.get("apogee_m") is None:
         return FlightCard(title, str(s.get("message", "flight failed")), False, (), tuple(general))
     u = units
-    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])), _boost(s, u),
+    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])), _boost(s, u, by_phase.get("boost", [])),
               _coast(s, r, u, by_phase.get("coast", []))]
     phases += _recovery(s, r, u, by_phase.get("recovery", []))
     landing = _landing(s, r, u, by_phase.get("landing", []))
@@ -207,7 +215,7 @@ def _drag_figure(drag: dict[str, Any]) -> CardFigure:
     return CardFigure("drag", text)
 
 
-def _boost(s: dict[str, Any], u: str) -> Phase:
+def _boost(s: dict[str, Any], u: str, warnings: list[tuple[str, str]]) -> Phase:
     accel = s.get("max_acceleration_m_s2")
     mach = s.get("max_mach")
     figures = (
@@ -220,17 +228,16 @@ def _boost(s: dict[str, Any], u: str) -> Phase:
     )
     if s.get("drag"):
         figures += (_drag_figure(s["drag"]),)
-    return Phase("boost", "Boost", figures)
+    return Phase("boost", "Boost", figures, tuple(warnings))
 
 
 def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> Phase:
+    downrange = s.get("apogee_downrange_m")  # along the wind: words, not signs ("246 m upwind")
+    where = "-" if downrange is None else (
+        f"{quantity(abs(float(downrange)), 'length', u)} {'downwind' if float(downrange) >= 0 else 'upwind'} of the pad")
     east, north = s.get("apogee_east_m"), s.get("apogee_north_m")
-    if east is not None and north is not None:
-        where = f"{quantity((float(east) ** 2 + float(north) ** 2) ** 0.5, 'length', u)} from the pad"
-    else:
-        downrange = s.get("apogee_downrange_m")
-        where = "-" if downrange is None else (
-            f"{quantity(abs(float(downrange)), 'length', u)} {'downwind' if float(downrange) >= 0 else 'upwind'} of the pad")
+    if east is not None and north is not None and float(east) ** 2 + float(north) ** 2 > 0.25:
+        where += f", toward {_bearing(float(east), float(north)):03.0f}°"
     figures = [
         CardFigure("apogee", f"{quantity(s.get('apogee_m'), 'length', u)} at {_seconds(s.get('time_to_apogee_s'))}"),
         CardFigure("apogee position", where),
@@ -252,10 +259,13 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
         for event in s["deployments"]:
             name = str(event.get("name") or event.get("event") or event.get("device") or "deployment")
             speed = event.get("speed_m_s")
+            limit = r.deployment_limit_m_s(str(event.get("device") or "parachute"))  # each kind has its own
             figures = [CardFigure("time", _seconds(event.get("time_s"))),
                        CardFigure("height", quantity(event.get("altitude_m"), "length", u)),
-                       CardFigure("speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
-                                  f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")]
+                       CardFigure("speed", quantity(speed, "speed", u), _check(speed, limit, False),
+                                  f"<= {quantity(limit, 'speed', u)}")]
+            if event.get("opening_load_n") is not None:  # ½ρv²·CdA: no inflation model, so an upper bound
+                figures.append(CardFigure("opening load", f"up to {float(event['opening_load_n']):,.0f} N"))
             events.append((name, figures))
     else:
         chosen = s.get("chosen_delay_s")
@@ -300,8 +310,8 @@ def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]])
             figures.append(CardFigure("lands at", _seconds(landing.get("time_s"))))
         if landing.get("distance_m") is not None:
             bearing = landing.get("bearing_deg")
-            figures.append(CardFigure("from the pad", quantity(landing["distance_m"], "length", u)
-                                      + ("" if bearing is None else f", bearing {float(bearing):03.0f}°")))
+            figures.append(CardFigure("lands", quantity(landing["distance_m"], "length", u) + " from the pad"
+                                      + ("" if bearing is None else f" toward {float(bearing):03.0f}°")))
     elif s.get("landing_speed_m_s") is not None:
         rate = s.get("landing_descent_rate_m_s")
         figures += [

@@ -21,6 +21,7 @@ REASON_CODES = {
     "delay": ("D", "no delay near the optimal one"), "eject": ("E", "ejection too fast"),
     "lands first": ("L", "lands before the delay fires"), "descent": ("S", "descends too fast under the device"),
     "no charge": ("P", "plugged: no ejection charge and no electronics"),
+    "deploy": ("O", "a recovery device opens too fast"), "field": ("F", "lands outside the field"),
     "delays unknown": ("W", "ejection delays not given"),
     "no liftoff": ("N", "no liftoff"), "stuck on rail": ("K", "stuck on the rail"),
     "not flown": ("X", "flight not completed"), "above class": ("A", "above your class limit"),

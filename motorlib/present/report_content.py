@@ -92,8 +92,12 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
     site = launch.site
     conditions = Facts("Conditions", (
         ("rail", f"{quantity(launch.rail_length_m, 'length', u) if u == 'imperial' else f'{launch.rail_length_m:g} m'}"
-                 f", {math.degrees(launch.rail_angle_rad):g}° from vertical, tilted downwind"),
-        ("wind", f"{quantity(launch.wind_speed_m_s, 'speed', u)} at 10 m, stronger aloft (power law)"),
+                 f", {math.degrees(launch.rail_angle_rad):g}° from vertical, leaning "
+                 + ("downwind" if launch.rail_azimuth_rad is None else
+                    f"toward {math.degrees(launch.rail_azimuth_rad) % 360:03.0f}°")),
+        ("wind", "measured profile" if launch.wind_profile is not None else
+         f"{quantity(launch.wind_speed_m_s, 'speed', u)} at 10 m from {math.degrees(launch.wind_direction_rad) % 360:03.0f}°"
+         ", stronger aloft (power law, held above 1,000 m)"),
         ("site", f"{quantity(site.elevation_m, 'length', u)} above sea level"),
         ("air", ("standard" if site.temperature_k is None else f"{site.temperature_k - 273.15:.1f} °C")
          + ("" if site.pressure_pa is None else f", {site.pressure_pa / 100:.0f} hPa") + " at the pad"),

@@ -17,7 +17,9 @@ def test_fly_prints_the_flight_and_the_caution(tmp_path: Path) -> None:
     assert "apogee" in out and "range safety officer" in out
     assert plot.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     header = csv_path.read_text().splitlines()[0]
-    assert header.startswith("time_s,x_m,altitude_m")
+    assert header.startswith("time_s,x_m,y_m,altitude_m,east_m,north_m")
+    times = [float(line.split(",")[0]) for line in csv_path.read_text().splitlines()[1:]]
+    assert all(b > a for a, b in zip(times, times[1:]))  # issue 10 defect 2: one flight, never back in time
 
 
 def test_fly_json_has_the_documented_keys() -> None:
@@ -56,3 +58,49 @@ def test_fly_errors_are_clear() -> None:
     assert code == 1 and "no motor with that id, handle or designation" in out
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "20")
     assert code == 2 and "can only be shortened" in out
+
+
+def test_fly_exits_1_when_the_flight_fails(tmp_path: Path) -> None:
+    # Issue 10 defect 8: a rocket that never lifts off was reported with exit code 0.
+    heavy = tmp_path / "heavy.toml"
+    heavy.write_text('name = "Too heavy"\n[airframe]\nmass = "40 kg"\ndiameter = "41.6 mm"\n'
+                     'drag_coefficient = 0.55\n[launch]\nrail_length = "2 m"\n')
+    code, out = run("fly", str(heavy), "--motor", "F29-8")
+    assert code == 1, out
+    assert "does not lift off" in out
+    code, out = run("fly", str(heavy), "--motor", "F29-8", "--json")
+    assert code == 1
+    assert json.loads(out)["status"] == "failed"
+
+
+def test_field_day_overrides_equal_the_same_values_in_the_file(tmp_path: Path) -> None:
+    # Issue 10: a safety officer re-runs today's conditions without editing the file.
+    text = (AIRFRAMES / "quibble-41.toml").read_text()
+    edited = text.replace('rail_length = "2.4 m"', 'rail_length = "3 m"\nwind_direction = 20\nrail_azimuth = "200 deg"')
+    edited = edited.replace('elevation = "120 m"', 'elevation = "1400 m"').replace('temperature = "15 degC"',
+                                                                                 'temperature = "31 degC"')
+    edited = edited.replace('wind_speed = "3 m/s"', 'wind_speed = "7 m/s"').replace('rail_angle = "5 deg"',
+                                                                                   'rail_angle = "8 deg"')
+    today = tmp_path / "today.toml"
+    today.write_text(edited)
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "G59-10", "--json", "--wind", "7m/s",
+                    "--wind-from", "20deg", "--temperature", "31degC", "--elevation", "1400m", "--rail-length", "3m",
+                    "--rail-angle", "8deg", "--rail-azimuth", "200deg")
+    assert code == 0, out
+    code2, out2 = run("fly", str(today), "--motor", "G59-10", "--json")
+    assert code2 == 0, out2
+    flags, file = json.loads(out), json.loads(out2)
+    for key in ("apogee_m", "apogee_east_m", "apogee_north_m", "rail_exit_speed_m_s"):
+        assert flags[key] == file[key], key
+    assert flags["landing"] == file["landing"] and flags["landing"]["north_m"] < 0.0  # a wind from 020° blows it south
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "G59-10", "--wind-from", "270")
+    assert code == 2 and "270deg" in out  # a compass angle needs its unit
+
+
+def test_fly_json_has_the_recovery_contract() -> None:
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "G59-10", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert {"apogee_east_m", "apogee_north_m", "deployments", "landing"} <= set(data)
+    assert {"device", "trigger", "time_s", "altitude_m", "speed_m_s", "opening_load_n"} <= set(data["deployments"][0])
+    assert set(data["landing"]) == {"time_s", "speed_m_s", "east_m", "north_m", "distance_m", "bearing_deg"}

@@ -67,7 +67,8 @@ def test_fly_in_imperial_units_table_csv_and_json(tmp_path: Path) -> None:
     assert code == 0, out
     assert re.search(r"apogee\s+1,6\d\d ft", out) and "ft/s" in out and " oz" in out and "psi" in out
     assert " m/s" not in out and " m " not in out
-    assert csv_path.read_text().splitlines()[0] == "time_s,x_ft,altitude_ft,vx_ft_s,vz_ft_s,ax_ft_s2,az_ft_s2,phase"
+    assert csv_path.read_text().splitlines()[0] == ("time_s,x_ft,y_ft,altitude_ft,east_ft,north_ft,vx_ft_s,vy_ft_s,vz_ft_s,"
+                                                    "ax_ft_s2,ay_ft_s2,az_ft_s2,phase")
     assert not EXPONENT.search(out)
 
 

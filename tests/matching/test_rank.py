@@ -263,3 +263,51 @@ def test_a_target_above_the_ceiling_is_refused() -> None:
     with pytest.raises(ValueError, match="above the ceiling"):
         MatchSettings(target_m=400.0, ceiling_m=300.0)
     assert MatchSettings(target_m=300.0, ceiling_m=300.0).ceiling_m == 300.0
+
+
+def test_a_fast_electronics_opening_fails_the_motor() -> None:
+    # Issue 10 defect 1: electronics open the main at 200 m with no drogue: after a ballistic fall it opens at
+    # about 96 m/s here, and match passed the motor.
+    from motorlib import MotorRecord
+    from motorlib.flight import Airframe, Launch, Recovery
+
+    motor = MotorRecord("K900", [0.0, 0.05, 1.9, 2.0], [0.0, 900.0, 900.0, 0.0], total_mass_kg=1.2,
+                        propellant_mass_kg=0.6, delays_s=(), diameter_m=0.054, length_m=0.4)
+    main = Recovery(device="main", deploy="altitude", drag_area_m2=1.5, deploy_altitude_m=200.0)
+    frame = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0), recovery=main)
+    result = rank(frame, [motor], settings=MatchSettings())
+    c = result.candidates[0]
+    assert c["max_deployment_speed_m_s"] > 80.0
+    assert "deploy" in c["reason_codes"] and not c["passes"]
+    assert c["max_deployment_speed_m_s"] == pytest.approx(
+        simulate(frame, [motor]).deployment_speed_m_s[0, 0], rel=1e-9)  # the flight's own opening speed
+    # a drogue at apogee slows the fall: the main then opens at the drogue's terminal speed, and passes
+    drogue = Recovery(device="drogue", deploy="apogee", drag_area_m2=0.25)
+    dual = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0),
+                    recovery_sequence=(drogue, main))
+    c = rank(dual, [motor], settings=MatchSettings()).candidates[0]
+    assert "deploy" not in c["reason_codes"] and c["max_deployment_speed_m_s"] < 45.0
+    # the field radius fails a motor that lands outside it
+    windy = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054,
+                     launch=Launch(rail_length_m=3.0, wind_speed_m_s=8.0), recovery_sequence=(drogue, main))
+    tight = MatchSettings(rules=LaunchRules(field_radius_m=50.0))
+    c = rank(windy, [motor], settings=tight).candidates[0]
+    assert c["landing_distance_m"] > 50.0 and "field" in c["reason_codes"]
+
+
+def test_match_recovery_options_fail_motors_with_the_reason() -> None:
+    runner = CliRunner()
+    args = ["match", str(AIRFRAME), "--catalog", str(SAMPLE_DIR), "--target", "400", "--json"]
+    plain = json.loads(runner.invoke(main, args).output)["candidates"]
+    flown = [c for c in plain if c["landing_distance_m"] is not None]
+    assert flown and all("max_deployment_speed_m_s" in c for c in plain)
+    tight = json.loads(runner.invoke(main, [*args, "--field-radius", "1m", "--max-deploy-speed", "parachute=1m/s",
+                                            "--wind", "9m/s"]).output)
+    for c in tight["candidates"]:
+        if c["landing_distance_m"] is not None and c["landing_distance_m"] > 1.0:
+            assert "field" in c["reason_codes"] and not c["passes"]
+        if c["max_deployment_speed_m_s"] is not None and c["max_deployment_speed_m_s"] > 1.0:
+            assert "deploy" in c["reason_codes"]
+    assert tight["conditions"]["field_radius_m"] == 1.0
+    bad = runner.invoke(main, [*args, "--max-deploy-speed", "kite=3m/s"])
+    assert bad.exit_code == 2 and "KIND=SPEED" in bad.output

@@ -69,7 +69,7 @@ def test_three_d_deployments_and_landing_slot_in() -> None:
     card = flight_card(summary, [], title="t")
     assert [p.title for p in card.phases][3:] == ["Recovery: drogue", "Recovery: main", "Landing"]
     assert card.phases[4].verdict == "caution"  # 30 m/s at the main's opening, above 25 m/s
-    assert "bearing 112°" in card.phases[5].figures[-1].value
+    assert "323 m from the pad toward 112°" in card.phases[5].figures[-1].value  # words, not signs
     stability = card.phases[0].figures[-1]
     assert stability.label == "stability" and stability.verdict == "caution"
 
@@ -85,3 +85,15 @@ def test_quantities_show_in_the_chosen_units(value: float | None, kind: str, uni
 def test_rules_come_from_the_settings() -> None:
     card = flight_card(_summary(), [], title="t", rules=LaunchRules(min_rail_exit_speed_m_s=20.0))
     assert next(f for f in card.phases[0].figures if f.label == "rail exit").verdict == "caution"
+
+
+def test_positions_read_in_words_not_signs() -> None:
+    # Issue 10: "246 m upwind", "lands 2,211 m from the pad toward 063°"
+    s = _summary(apogee_downrange_m=-246.0, apogee_east_m=-246.0, apogee_north_m=0.0,
+                 landing={"time_s": 80.0, "speed_m_s": 5.0, "east_m": 1970.0, "north_m": 1004.0,
+                          "distance_m": 2211.0, "bearing_deg": 63.0})
+    card = _card(s)
+    coast = next(p for p in card.phases if p.key == "coast")
+    assert any(f.value.startswith("246 m upwind of the pad") and "toward 270°" in f.value for f in coast.figures)
+    landing = next(p for p in card.phases if p.key == "landing")
+    assert any(f.label == "lands" and f.value == "2,211 m from the pad toward 063°" for f in landing.figures)
