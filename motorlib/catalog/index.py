@@ -22,11 +22,13 @@ import hashlib
 import json
 import os
 import sqlite3
+from stat import S_ISREG
 from pathlib import Path
 from typing import Callable, ContextManager, Iterator, Sequence
 
-from ..errors import MotorlibError
-from ..files.motor_xml import record_from_bytes
+from ..errors import CurveError, CurveSyntaxError, MotorlibError
+from ..files.fsio import read_bounded
+from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, metrics
 from ..motor.classes import CLASS_LETTERS
 from ..motor.record import MotorRecord
@@ -57,26 +59,45 @@ def create_schema(db: sqlite3.Connection) -> None:
     db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
 
 
-def scan_files(root: Path) -> dict[str, tuple[int, int]]:
+def scan_files(root: Path, problems: list[tuple[str, str]] | None = None) -> dict[str, tuple[int, int]]:
     """Every curve file under ``root`` (hidden files and folders skipped): relative path -> (size, mtime_ns).
 
-    Symbolic links to folders are not followed; links to files are (as ``os.walk`` does).
+    Symbolic links to folders are not followed; links to files are (as ``os.walk`` does). Entries named
+    ``*.xml`` that are not regular files (a dangling link, a pipe, a device) are appended to ``problems`` as
+    (full path, reason) and left out, so that no reader ever opens them.
     """
     found: dict[str, tuple[int, int]] = {}
     pending = [(str(root), "")]  # (folder, its path relative to root with a trailing "/")
     while pending:
         folder, prefix = pending.pop()
-        with os.scandir(folder) as entries:
-            for entry in entries:
-                name = entry.name
-                if name.startswith("."):
-                    continue
+        try:
+            entries = list(os.scandir(folder))
+        except OSError as exc:
+            if problems is not None:
+                problems.append((folder, f"folder cannot be read: {exc.strerror or exc}"))
+            continue
+        for entry in entries:
+            name = entry.name
+            if name.startswith("."):
+                continue
+            try:
                 if entry.is_dir():
                     if not entry.is_symlink():
                         pending.append((entry.path, f"{prefix}{name}/"))
-                elif name.endswith(".xml"):
-                    st = entry.stat()
-                    found[prefix + name] = (st.st_size, st.st_mtime_ns)
+                    continue
+                if not name.endswith(".xml"):
+                    continue
+                st = entry.stat()
+            except OSError as exc:
+                if problems is not None:
+                    problems.append((entry.path, f"cannot be read: {exc.strerror or exc}"
+                                     + (" (a link to a missing file)" if entry.is_symlink() else "")))
+                continue
+            if not S_ISREG(st.st_mode):
+                if problems is not None:
+                    problems.append((entry.path, "not a regular file (a pipe, device or socket); skipped"))
+                continue
+            found[prefix + name] = (st.st_size, st.st_mtime_ns)
     return found
 
 
@@ -217,7 +238,7 @@ class CatalogIndex:
         had_files : bool
             Whether the index knew any file before (False for a new index).
         """
-        on_disk = scan_files(self.root)
+        on_disk = scan_files(self.root, problems)
         known = {row[0]: row[1:] for row in self.db.execute("SELECT path, size, mtime_ns, sha256, error FROM files")}
         removed = [p for p in known if p not in on_disk]
         changed = [p for p, stat in on_disk.items() if p not in known or tuple(known[p][:2]) != stat]
@@ -238,9 +259,9 @@ class CatalogIndex:
                     problems: list[tuple[str, str]]) -> None:
         full = self.root / path
         try:
-            data = full.read_bytes()
-        except OSError as exc:
-            problems.append((str(full), exc.strerror or str(exc)))
+            data = read_bounded(full, DEFAULT_MAX_BYTES, error=CurveSyntaxError)
+        except MotorlibError as exc:
+            problems.append((str(full), exc.problem if isinstance(exc, CurveError) else str(exc)))
             return
         digest = hashlib.sha256(data).hexdigest()
         if old is not None and old[2] == digest and not old[3]:  # touched, not changed
@@ -250,7 +271,11 @@ class CatalogIndex:
         self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
         try:
             record = record_from_bytes(data, str(full))
-        except MotorlibError as exc:
+            row = motor_row(motor_id, path, record, self.settings)
+        except Exception as exc:  # noqa: BLE001 - one bad file, even one that trips a bug, must not break the catalog
+            if not isinstance(exc, MotorlibError):
+                exc = MotorlibError(f"{full}: internal error while reading this file ({type(exc).__name__}: {exc}); "
+                                    "please report it")
             self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, str(exc)))
             problems.append((str(full), str(exc)))
             return
@@ -261,11 +286,30 @@ class CatalogIndex:
             problems.append((str(full), message))
             return
         self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
-        self._insert_motor(motor_id, path, record)
+        self._insert_row(row)
+
+    def stale_paths(self) -> list[str]:
+        """Indexed files whose content no longer matches the index (hashed: changed without a new size or time)."""
+        stale = []
+        for path, sha256 in self.db.execute("SELECT path, sha256 FROM files WHERE error IS NULL").fetchall():
+            try:
+                data = read_bounded(self.root / path, DEFAULT_MAX_BYTES, error=CurveSyntaxError)
+            except MotorlibError:
+                continue  # gone or unreadable: the next refresh reports it
+            if hashlib.sha256(data).hexdigest() != sha256:
+                stale.append(path)
+        return stale
+
+    def mark_changed(self, paths: Sequence[str]) -> None:
+        """Make the next :meth:`refresh` re-read ``paths`` (their stamps no longer match any file)."""
+        with self.transaction():
+            self.db.executemany("UPDATE files SET size = -1 WHERE path = ?", [(p,) for p in paths])
 
     def _insert_motor(self, motor_id: str, path: str, record: MotorRecord,
                       findings: Sequence[Finding] | None = None) -> None:
-        values = motor_row(motor_id, path, record, self.settings, findings)
+        self._insert_row(motor_row(motor_id, path, record, self.settings, findings))
+
+    def _insert_row(self, values: list[object]) -> None:
         marks = ", ".join("?" * len(values))
         self.db.execute(f"INSERT OR REPLACE INTO motors VALUES ({marks})", values)
 

@@ -52,9 +52,9 @@ from typing import Any, Callable, Iterator, Sequence
 
 import numpy as np
 
-from ..errors import CatalogError, CurveDataError, MotorlibError, MotorNotFoundError
+from ..errors import CatalogError, CurveDataError, CurveError, MotorlibError, MotorNotFoundError
 from ..files.fsio import NewFileBatch, slug
-from ..files.motor_xml import record_from_bytes, record_to_bytes
+from ..files.motor_xml import read_record, readable_record_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
 from ..motor.record import MotorRecord
 from . import query as _query
@@ -186,6 +186,19 @@ class Catalog:
             self.notices.append(f"{self.root}: index refreshed ({n_read} file(s) read, {n_removed} removed)")
         return n_read
 
+    def stale_files(self) -> list[str]:
+        """Re-read every file whose content no longer matches the index; returns their full paths.
+
+        Opening trusts a file's size and modification time; a file replaced with both kept (``touch -r``,
+        coarse network shares, some checkouts) is caught here, by hashing every file.
+        """
+        paths = self._index.stale_paths()
+        if paths:
+            with self._lock():
+                self._index.mark_changed(paths)
+                self.refresh()
+        return [str(self.root / p) for p in paths]
+
     def reindex(self) -> int:
         """Rebuild the whole index from the files (tags come back from tags.json)."""
         with self._lock():
@@ -228,7 +241,10 @@ class Catalog:
             note = f"[added despite errors: {', '.join(sorted({f.code for f in errors}))}]"
             notes = f"{record.provenance.notes} {note}".strip()
             record = replace(record, provenance=replace(record.provenance, notes=notes))
-        data = record_to_bytes(record)
+        try:
+            data = readable_record_bytes(record, source)  # never write a file the catalog could not read back
+        except CurveError as exc:
+            return AddResult(source, "refused", message=str(exc), findings=findings)
         sha256 = hashlib.sha256(data).hexdigest()
         motor_id = sha256[:16]  # motor_id_for(data), without hashing the bytes twice
         # the open transaction shows the rows of this batch too, so duplicates within a batch are caught
@@ -330,7 +346,7 @@ class Catalog:
         """The full record of a motor, read from its file."""
         motor_id = self.resolve(ref)
         (path,) = self._db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
-        return record_from_bytes((self.root / path).read_bytes(), str(self.root / path))
+        return read_record(self.root / path)
 
     def __len__(self) -> int:
         return self._index.n_motors()

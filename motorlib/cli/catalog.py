@@ -303,7 +303,9 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
 def catalog_verify(catalog_dir: str | None) -> None:
     """Re-read every curve file, re-run every check and report problems.
 
-    Exit status 1 when a file is unreadable or a curve has errors.
+    Names every file skipped as unreadable, and re-reads files whose content
+    no longer matches the index. Exit status 1 when a file is unreadable or a
+    curve has errors.
 
     \b
     Example:
@@ -313,8 +315,14 @@ def catalog_verify(catalog_dir: str | None) -> None:
     from ..files.curvefiles import check_file
 
     cat = _open_catalog(catalog_dir)
+    stale = cat.stale_files()  # changed behind the index's back (same size and time): re-read now
     reports = [check_file(cat.root / row["path"], cat.settings) for row in cat.rows()]
     console = _console()
+    for path in stale:
+        console.print(f"[yellow]index was stale[/yellow] {render.escape(path)}: the file changed without a new "
+                      "size or modification time; re-read", soft_wrap=True)
+    for where, problem in cat.problems:
+        console.print(f"[red]skipped[/red] {render.escape(where)}: {render.escape(problem)}", soft_wrap=True)
     bad = [r for r in reports if any(f.severity != "note" for f in r.findings)]
     for report in bad:
         console.print(f"[bold]{render.escape(report.source)}[/bold]")

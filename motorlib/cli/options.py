@@ -214,8 +214,11 @@ def _open_catalog(folder: str | None) -> Any:
     for notice in catalog.notices:
         if not catalog.read_only:
             err.print(f"[dim]note: {notice}[/dim]")
-    for where, problem in catalog.problems:
-        err.print(f"[yellow]skipped[/yellow] {where}: {problem}", markup=True, highlight=False)
+    from rich.markup import escape
+
+    for where, problem in catalog.problems:  # paths and messages are user text: never read as markup
+        err.print(f"[yellow]skipped[/yellow] {escape(where)}: {escape(problem)}", markup=True, highlight=False,
+                  soft_wrap=True)
     return catalog
 
 
