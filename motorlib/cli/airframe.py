@@ -7,7 +7,7 @@ import os
 
 import click
 
-from .output import _EPILOG, _caution, _console
+from .output import _EPILOG, _caution, _check_outputs, _console
 
 
 @click.command()
@@ -51,8 +51,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
                                    "airframe's shape (see data_schema/AIRFRAME.md)")
     motor = None if motor_ref is None else _load_motor(motor_ref, catalog_dir)[0]
     inputs = [airframe_file] + ([motor_ref] if motor_ref is not None and os.path.isfile(motor_ref) else [])
-    if plot_path:
-        _refuse_input_as_output(plot_path, inputs)
+    _check_outputs({"--plot": plot_path}, overwrite, inputs)
     summary = airframe_summary(frame, motor, mach=mach, required_margin_cal=min_stability_cal)
     written = None
     if plot_path:
@@ -73,11 +72,3 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
     if written is not None:
         console.print(f"Wrote {render.escape(str(written))}")
     _caution(console)
-
-
-def _refuse_input_as_output(path: str, inputs: list[str]) -> None:
-    """A plot never replaces one of the command's input files, --overwrite or not."""
-    target = os.path.realpath(path)
-    for source in inputs:
-        if os.path.realpath(source) == target:
-            raise click.UsageError(f"--plot {path}: that is an input file; choose another name")

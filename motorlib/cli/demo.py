@@ -12,8 +12,9 @@ from .output import _console
 @click.command()
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default="motorlib-demo.png", show_default=True,
               help="Where to write the chart of apogee per motor.")
+@click.option("--overwrite", is_flag=True, help="Replace the --plot file if it exists.")
 @_units_option
-def demo(plot_path: str, units: str | None) -> None:
+def demo(plot_path: str, overwrite: bool, units: str | None) -> None:
     """Run the main job end to end on bundled data: rank the sample motors for a demo airframe.
 
     The demo airframe (a 41.6 mm sport model with a 29 mm mount) aims at 400 m
@@ -35,7 +36,7 @@ def demo(plot_path: str, units: str | None) -> None:
     opts = dict(target_m=target, ceiling_m=ceiling, max_class=None, min_rail_exit=None, min_thrust_to_weight=5.0,
                 delay_slack=None, allow_smaller_motors=True, tag=None, top=None, show_rejected=False, ballast=True,
                 units=shown.system, as_json=False, as_csv=False, plot_path=plot_path, report_path=None,
-                overwrite=False)
+                overwrite=overwrite)
     _console().print(f"Demo: airframe {airframe.name}, bundled sample catalog, target {target.text}, ceiling "
                      f"{ceiling.text}, 24 and 29 mm motors (adapters allowed), with ballast.")
     _run_match(str(airframe), _open_catalog(str(sample_catalog_dir())), opts)

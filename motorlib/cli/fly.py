@@ -7,7 +7,7 @@ from typing import Any
 import click
 
 from .options import _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
-from .output import _EPILOG, _caution, _card_units, _console, _json_text
+from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _json_text
 
 
 @click.command()
@@ -31,7 +31,7 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
                    "to this PNG file.")
 @click.option("--report", "report_path", type=click.Path(dir_okay=False),
               help="Write a printable pre-flight report (one self-contained HTML file, at most two pages).")
-@click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists.")
+@click.option("--overwrite", is_flag=True, help="Replace the --csv, --plot and --report files if they exist.")
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
         units: str | None, as_json: bool, csv_path: str | None, plot_path: str | None, report_path: str | None,
         overwrite: bool) -> None:
@@ -59,6 +59,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     delay_s = None if delay_s is None else float(delay_s)
     frame = load_airframe(airframe_file)
     motor, motor_file = _load_motor(motor_ref, catalog_dir)
+    _check_outputs({"--csv": csv_path, "--plot": plot_path}, overwrite, [airframe_file, motor_file])
     if report_path:
         from .output import _write_report
 
@@ -75,7 +76,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
     written = []
     if csv_path:
-        written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))
+        written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown, overwrite))
     if plot_path:
         from ..present.plots import flight_plot
 
@@ -143,11 +144,11 @@ def _record_for_delay(motor: Any, delay_s: float | None) -> Any:
     return motor
 
 
-def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any) -> Any:
+def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any, overwrite: bool) -> Any:
     from ..files.fsio import write_atomic
     from ..present.csvout import rows_csv
 
     names = ["time_s", "x_m", "altitude_m", "vx_m_s", "vz_m_s", "ax_m_s2", "az_m_s2"]
     rows = [{**{n: float(trajectory[n][row]) for n in names},
              "phase": "descent" if trajectory["descent"][row] else "ascent"} for row in range(len(trajectory["time_s"]))]
-    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode())
+    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode(), overwrite=overwrite)

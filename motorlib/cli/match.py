@@ -7,7 +7,7 @@ from typing import Any
 import click
 
 from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
-from .output import _EPILOG, _card_units, _console, _json_text
+from .output import _EPILOG, _card_units, _check_outputs, _console, _json_text
 from .robust import pop_robust, robust_options, run_robust
 
 
@@ -39,7 +39,7 @@ def _match_options(func: Any) -> Any:
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
         click.option("--report", "report_path", type=click.Path(dir_okay=False),
                      help="Write a printable ranking report (one self-contained HTML file, at most two pages)."),
-        click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists."),
+        click.option("--overwrite", is_flag=True, help="Replace the --plot and --report files if they exist."),
     ]
     for option in reversed(options):
         func = option(func)
@@ -53,6 +53,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
     units = display_units(opts.get("units"))
     frame = load_airframe(airframe_file)
+    _check_outputs({"--plot": opts["plot_path"]}, opts["overwrite"], [airframe_file])
     if opts.get("report_path"):
         from .output import _write_report
 

@@ -8,13 +8,13 @@ from typing import Any
 import click
 
 from .options import _metadata, _metadata_options, _units_option, display_units
-from .output import _console
+from .output import _check_outputs, _console
 
 
 @click.command()
 @click.argument("logs", nargs=-1, required=True, type=click.Path(exists=True, dir_okay=False))
 @click.option("-o", "--output", type=click.Path(dir_okay=False), help="Motor-record XML file to write (atomically).")
-@click.option("--overwrite", is_flag=True, help="Replace OUTPUT (and the --report file) if it exists.")
+@click.option("--overwrite", is_flag=True, help="Replace OUTPUT, the --plot and --report files if they exist.")
 @click.option("--force", is_flag=True, help="Write OUTPUT even when the checks find errors.")
 @click.option("--combine", is_flag=True, help="Several firings of one motor: write their mean curve and report the spread.")
 @click.option("--scale", type=float, help="Calibration for a raw-count column: newtons per count.")
@@ -63,6 +63,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
+    _check_outputs({"--output": output, "--plot": plot_path}, overwrite, logs)
     settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
     if report_path:
         from .output import _write_report

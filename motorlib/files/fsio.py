@@ -80,12 +80,23 @@ def _reason(exc: OSError) -> str:
 def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool = True) -> Path:
     """Write ``data`` to ``path`` atomically and return the path.
 
+    A pipe or device (``/dev/null``) is written into, never replaced by a regular file.
+
     Raises
     ------
     FileExistsError
         When ``overwrite`` is False and ``path`` exists.
     """
     target = Path(path)
+    try:
+        mode = os.stat(target).st_mode
+    except OSError:
+        mode = None
+    if mode is not None and not stat.S_ISREG(mode) and not stat.S_ISDIR(mode):
+        # a pipe or device (/dev/null, a FIFO a reader waits on): write into it, never rename over it
+        with open(target, "wb") as handle:
+            handle.write(data)
+        return target
     if not overwrite and target.exists():
         raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
     folder = target.parent if str(target.parent) else Path(".")
