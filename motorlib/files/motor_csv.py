@@ -26,7 +26,10 @@ __all__ = ["CsvCurve", "CurveMetadata", "read_csv_curve", "record_from_csv"]
 DEFAULT_MAX_BYTES: Final = 64 * 1024 * 1024  # a long 10 kHz log is a few MB; refuse what cannot be a log
 _TIME_NAME = re.compile(r"^(t|time|zeit|temps|tiempo)(?![a-z])", re.IGNORECASE)
 _THRUST_NAME = re.compile(r"^(thrust|force|f|load|schub|weight|mass|counts|raw|adc)(?![a-z])", re.IGNORECASE)
-_UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|[_\s]([A-Za-z/·*.-]+))\s*$")
+_UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|([_\s])([^\s_()\[\]]+))\s*$")
+# Words after an underscore that name no unit ("time_stamp"); any other word there is a unit, known or refused
+_NOT_UNITS = frozenset({"stamp", "value", "data", "reading", "filtered", "measured"})
+_COUNT_NAMES = re.compile(r"^(counts|raw|adc)$", re.IGNORECASE)
 
 
 @dataclass(frozen=True)
@@ -102,9 +105,11 @@ def _header_unit(name: str, kind: str, source: str, line: int) -> str | None:
     match = _UNIT_IN_NAME.search(name)
     if not match:
         return None
-    token = next(g for g in match.groups() if g is not None).strip()
-    if not token or (match.group(3) and _unit_for(kind, token) is None and not match.group(1)):
-        # "time_stamp" or "thrust value": a trailing word, not a unit
+    token = (match.group(1) or match.group(2) or match.group(4) or "").strip()
+    if not token:
+        return None
+    if match.group(4) and _unit_for(kind, token) is None and (match.group(3) != "_" or token.lower() in _NOT_UNITS):
+        # "thrust value" or "time_stamp": a trailing word, not a unit ("thrust_ozf" names a unit: read or refused)
         return None
     unit = _unit_for(kind, token)
     if unit is None:
@@ -193,6 +198,8 @@ def read_csv_curve(
                                  line=header_line)
         header_units = [_header_unit(header[time_col], "time", source, header_line),
                         _header_unit(header[thrust_col], "force", source, header_line)]
+        if header_units[1] is None and _COUNT_NAMES.match(header[thrust_col]):
+            header_units[1] = "counts"  # a column named "counts" is raw counts, never newtons
     units = []
     for given, from_header, kind, default in ((time_unit, header_units[0], "time", "s"),
                                               (thrust_unit, header_units[1], "force", "N")):
