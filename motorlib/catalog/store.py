@@ -58,7 +58,7 @@ from ..files.motor_xml import read_record, readable_record_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
 from ..motor.record import MotorRecord
 from . import query as _query
-from .index import INDEX_DIR, CatalogIndex
+from .index import INDEX_DIR, CatalogIndex, file_stamp
 from .query import CatalogFilter
 from .tags import TagFile, check_tag_name
 
@@ -224,10 +224,13 @@ class Catalog:
         batch = NewFileBatch(self.root / INDEX_DIR / "staging")
         batch.clear_staging()  # left by a writer killed mid-batch; we hold the lock, so nobody else is staging
         self._safe_folders = set()
+        self._batch_paths: list[str] = []
         try:
             with self._index.transaction():
                 yield batch
                 batch.commit()  # the files are on disk under their names before the index commits
+                for path in self._batch_paths:  # linking a file to its name changed its status-change time
+                    self._index.restamp(path, file_stamp(os.stat(self.root / path)))
         finally:
             batch.discard()  # after an error: drop the staged files that never got their names
 
@@ -255,7 +258,8 @@ class Catalog:
         near = tuple(h for (h,) in self._db.execute(_SAME_NAME_SQL, (record.maker, record.designation)))
         path = self._free_path(record, batch)
         st = batch.write(self.root / path, data)
-        self._index.insert_file(path, (st.st_size, st.st_mtime_ns), sha256, record, findings)
+        self._index.insert_file(path, file_stamp(st), sha256, record, findings)
+        self._batch_paths.append(path)
         message = f"same maker and designation as {', '.join(near)}" if near else ""
         return AddResult(source, "added", motor_id, path[:-4], message, near, findings)
 
@@ -308,9 +312,14 @@ class Catalog:
         return results
 
     def remove(self, ref: str) -> str:
-        """Delete a motor's file and its index rows and tags; returns its handle."""
-        motor_id = self.resolve(ref)
+        """Delete a motor's file and its index rows and tags; returns its handle.
+
+        The reference is resolved under the writer lock, after a refresh: a motor another process removed
+        meanwhile is not found (MotorNotFoundError), never half-removed.
+        """
         with self._lock():
+            self.refresh()
+            motor_id = self.resolve(ref)
             path, handle = self._db.execute("SELECT path, handle FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
             with contextlib.suppress(FileNotFoundError):
                 os.unlink(self.root / path)
