@@ -7,6 +7,7 @@ import os
 
 import click
 
+from .options import _Finite
 from .output import _EPILOG, _caution, _check_outputs, _console
 
 
@@ -17,9 +18,9 @@ from .output import _EPILOG, _caution, _check_outputs, _console
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
                    "else the bundled sample curves).")
-@click.option("--mach", type=click.FloatRange(0.0, 5.0), default=0.3, show_default=True,
+@click.option("--mach", type=_Finite(0.0, 5.0), default=0.3, show_default=True,
               help="Mach number of the drag build-up.")
-@click.option("--min-stability", "min_stability_cal", type=click.FloatRange(0.0, 10.0), default=1.0, show_default=True,
+@click.option("--min-stability", "min_stability_cal", type=_Finite(0.0, 10.0), default=1.0, show_default=True,
               help="Margin in calibers the nose-weight solve aims for (1 caliber: common practice, no published "
                    "source).")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False),

@@ -109,7 +109,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     from ..present import tables as render
     from ..files.curvefiles import find_curve_files
 
-    cat = _open_catalog(catalog_dir)
+    cat = _open_catalog(catalog_dir, create=True)
     files = find_curve_files(list(paths))
     console = _console()
     kwargs = dict(metadata=_metadata(opts), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])

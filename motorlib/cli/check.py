@@ -8,7 +8,7 @@ from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options, _units_option, display_units
+from .options import _Finite, _metadata, _metadata_options, _units_option, display_units
 from .output import _console
 
 
@@ -17,9 +17,9 @@ from .output import _console
 @click.option("--json", "as_json", is_flag=True, help="Print a JSON list, one object per file.")
 @click.option("--details/--summary", default=None,
               help="Full metrics per file (default for one file) or one table row per file (default for several).")
-@click.option("--burn-threshold", type=click.FloatRange(0.1, 50.0), default=5.0, show_default=True,
+@click.option("--burn-threshold", type=_Finite(0.1, 50.0), default=5.0, show_default=True,
               help="Burn time starts and ends where thrust crosses this percentage of peak thrust.")
-@click.option("--thrust-tolerance", type=click.FloatRange(1.0, 100.0), default=20.0, show_default=True,
+@click.option("--thrust-tolerance", type=_Finite(1.0, 100.0), default=20.0, show_default=True,
               help="Allowed difference, in percent, between labelled and computed average thrust.")
 @_units_option
 @_metadata_options

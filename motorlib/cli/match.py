@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
+from .options import _Finite, _catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, display_units
 from .output import _EPILOG, _card_units, _check_outputs, _console, _json_text
 from .robust import pop_robust, robust_options, run_robust
 
@@ -22,7 +22,7 @@ def _match_options(func: Any) -> Any:
         click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed"), default=None,
                      help="Minimum rail exit speed, e.g. 15m/s or 50ft/s (default 15 m/s: common practice, "
                           "no published source)."),
-        click.option("--min-thrust-to-weight", type=float, default=5.0, show_default=True,
+        click.option("--min-thrust-to-weight", type=_Finite(min=0.0), default=5.0, show_default=True,
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
         click.option("--delay-slack", type=_Quantity("time"), default=None,
                      help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),

@@ -3,11 +3,12 @@
 from __future__ import annotations
 
 import json
+import math
 from typing import Any
 
 import click
 
-from .options import _metadata, _metadata_options, _units_option, display_units
+from .options import _Finite, _metadata, _metadata_options, _units_option, display_units
 from .output import _check_outputs, _console
 
 
@@ -17,8 +18,8 @@ from .output import _check_outputs, _console
 @click.option("--overwrite", is_flag=True, help="Replace OUTPUT, the --plot and --report files if they exist.")
 @click.option("--force", is_flag=True, help="Write OUTPUT even when the checks find errors.")
 @click.option("--combine", is_flag=True, help="Several firings of one motor: write their mean curve and report the spread.")
-@click.option("--scale", type=float, help="Calibration for a raw-count column: newtons per count.")
-@click.option("--offset", type=float, default=0.0, show_default=True, help="Zero reading of a raw-count column, in counts.")
+@click.option("--scale", type=_Finite(min=0.0, min_open=True), help="Calibration for a raw-count column: newtons per count.")
+@click.option("--offset", type=_Finite(), default=0.0, show_default=True, help="Zero reading of a raw-count column, in counts.")
 @click.option("--cutoff", default=None, metavar="HZ|none",
               help="-3 dB frequency of the zero-phase low-pass filter (default: 100 Hz or a quarter of the sample rate); "
                    "'none' disables it.")
@@ -113,9 +114,12 @@ def _cutoff_hz(cutoff: str | None) -> float | None:
     """The ``--cutoff`` frequency in Hz: None for the default, 0.0 for 'none' (no filter)."""
     try:
         text = None if cutoff is None else cutoff.strip().lower().removesuffix("hz").strip()
-        return None if text is None else (0.0 if text == "none" else float(text))
+        value = None if text is None else (0.0 if text == "none" else float(text))
     except ValueError:
-        raise click.BadParameter("expected a frequency in Hz or 'none'", param_hint="--cutoff") from None
+        value = -1.0
+    if value is not None and not (math.isfinite(value) and value >= 0.0):
+        raise click.BadParameter(f"expected a frequency above 0 Hz or 'none', got {cutoff!r}", param_hint="--cutoff")
+    return value
 
 
 def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, thrust_unit: str | None,

@@ -7,7 +7,7 @@ from typing import Any
 
 import click
 
-from .options import _Quantity, _units_option, display_units
+from .options import _Finite, _Quantity, _units_option, display_units
 from .output import _EPILOG, _caution, _check_outputs, _console
 
 # option name -> (Uncertainty field, kind, default unit); kind "relative" takes 0.03 or 3%
@@ -135,7 +135,7 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
               help="Seed of the random draws; the same seed gives the same flights for any --workers.")
 @click.option("--workers", type=click.IntRange(1), default=None,
               help="Worker processes (default: the machine's cores); the results do not depend on it.")
-@click.option("--delay", "delay_s", type=float, help="Ejection delay fitted before the flight, in s "
+@click.option("--delay", "delay_s", type=_Finite(min=0.0), help="Ejection delay fitted before the flight, in s "
                                                       "(default: the one closest to the nominal optimal delay).")
 @click.option("--target", "target_m", type=_Quantity("length", "m"), help="Aim altitude, marked on the plot.")
 @click.option("--ceiling", "ceiling_m", type=_Quantity("length", "m"), help="Altitude limit; a bare number is m.")

@@ -20,6 +20,7 @@ import numpy as np
 from ..motor.record import MotorRecord, Provenance
 from ..errors import CsvFormatError, CurveDataError, Problem, QuantityError
 from ..units import STANDARD_GRAVITY_M_S2, _canonical_unit, known_units, to_si
+from .fsio import read_text_bounded
 
 __all__ = ["CsvCurve", "CurveMetadata", "read_csv_curve", "record_from_csv"]
 
@@ -159,14 +160,7 @@ def read_csv_curve(
         Unreadable text, no data, a ragged or non-numeric row, conflicting units.
     """
     source = str(path)
-    size = os.stat(path).st_size
-    if size > max_bytes:
-        raise CsvFormatError(source, f"file is {size} bytes, above the {max_bytes}-byte limit")
-    try:
-        with open(path, encoding="utf-8-sig") as handle:
-            text = handle.read()
-    except UnicodeDecodeError as exc:
-        raise CsvFormatError(source, f"not UTF-8 text (byte {exc.start}); save the file as UTF-8 CSV") from exc
+    text = read_text_bounded(path, max_bytes, error=CsvFormatError, hint="save the file as UTF-8 CSV")
     rows: list[tuple[int, str]] = []
     for number, raw in enumerate(text.splitlines(), start=1):
         row = raw.split("#", 1)[0].strip()
