@@ -9,6 +9,7 @@ Standard library only.
 
 from __future__ import annotations
 
+import math
 import re
 from typing import Final
 
@@ -219,7 +220,7 @@ def parse_quantity(
     Raises
     ------
     QuantityError
-        If the text is not a number with a known unit of the expected kind.
+        If the text is not a finite number with a known unit of the expected kind.
 
     >>> parse_quantity("0.5 in", "length")
     0.0127
@@ -245,6 +246,8 @@ def parse_quantity(
             field, f"unknown {kind} unit {unit!r} in {text!r}; expected one of {', '.join(known_units(kind))}"
         )
     value = to_si(number, unit, kind, field=field)
+    if not math.isfinite(value):  # "1e400 m": a number beyond the float range, or nan/inf given as a float
+        raise QuantityError(field, f"{text!r} is not a finite {kind}")
     if keep_text:
         return Quantity(value, f"{typed} {format_unit(_canonical_unit(kind, unit) or unit)}")
     return value
