@@ -127,18 +127,24 @@ def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, th
     """Read and reduce every log; pairs of (path, :class:`~motorlib.motor.reduction.Reduction`)."""
     import numpy as np
 
+    from dataclasses import replace
+
     from ..errors import CurveDataError
     from ..files.motor_csv import read_csv_curve
+    from ..motor.checks import Finding
     from ..motor.reduction import reduce_log
 
     reductions = []
     for path in logs:
         curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit, scale=scale, offset=offset)
         try:
-            reductions.append((path, reduce_log(curve.time_s, curve.thrust_n, settings, lines=np.asarray(curve.lines),
-                                                source=path)))
+            reduction = reduce_log(curve.time_s, curve.thrust_n, settings, lines=np.asarray(curve.lines), source=path)
         except CurveDataError as exc:
             raise click.ClickException(str(exc)) from None
+        if curve.assumption():  # said in the output and the JSON, never silent
+            note = Finding("note", "units-assumed", f"{path}: {curve.assumption()}")
+            reduction = replace(reduction, findings=(note, *reduction.findings))
+        reductions.append((path, reduction))
     return reductions
 
 

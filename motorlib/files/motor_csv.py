@@ -73,6 +73,15 @@ class CsvCurve:
     time_unit: str
     thrust_unit: str
     header: tuple[str, ...] | None
+    assumed: tuple[str, ...] = ()  # the columns ("time", "thrust") whose unit nothing gave: read as s and N
+
+    def assumption(self) -> str | None:
+        """What was assumed about units, as a sentence for output and JSON; None when the units were given."""
+        if not self.assumed:
+            return None
+        units = " and ".join("s" if kind == "time" else "N" for kind in self.assumed)
+        return (f"no unit for the {' and '.join(self.assumed)} column(s) in the header or options: read as "
+                f"{units} (name units in the header, e.g. time_ms, thrust_lbf)")
 
 
 def _split(row: str, delimiter: str | None) -> list[str]:
@@ -194,7 +203,7 @@ def read_csv_curve(
                         _header_unit(header[thrust_col], "force", source, header_line)]
         if header_units[1] is None and _COUNT_NAMES.match(header[thrust_col]):
             header_units[1] = "counts"  # a column named "counts" is raw counts, never newtons
-    units = []
+    units, assumed = [], []
     for given, from_header, kind, default in ((time_unit, header_units[0], "time", "s"),
                                               (thrust_unit, header_units[1], "force", "N")):
         if given is not None:
@@ -210,6 +219,8 @@ def read_csv_curve(
             units.append("counts")
         else:
             units.append(from_header or default)
+            if from_header is None:
+                assumed.append("time" if kind == "time" else "thrust")
     if not rows:
         raise CsvFormatError(source, "a header but no data rows")
     width = len(header) if header is not None else len(_split(rows[0][1], delimiter))
@@ -234,7 +245,7 @@ def read_csv_curve(
         lines.append(number)
     time_s = np.array([to_si(t, units[0], "time") for t in times])
     thrust_n = _thrust_to_newtons(np.array(thrusts, dtype=float), units[1], scale, offset)
-    return CsvCurve(time_s, thrust_n, tuple(lines), units[0], units[1], header)
+    return CsvCurve(time_s, thrust_n, tuple(lines), units[0], units[1], header, tuple(assumed))
 
 
 def record_from_csv(
@@ -243,10 +254,12 @@ def record_from_csv(
     *,
     time_unit: str | None = None,
     thrust_unit: str | None = None,
+    notes: list[str] | None = None,
 ) -> MotorRecord:
     """Build a motor record from a CSV curve and the metadata the file lacks.
 
-    Without a designation the file's stem stands in for it.
+    Without a designation the file's stem stands in for it. What was assumed about units
+    (:meth:`CsvCurve.assumption`) is appended to ``notes`` when given.
 
     Raises
     ------
@@ -255,6 +268,8 @@ def record_from_csv(
     """
     meta = metadata or CurveMetadata()
     curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit)
+    if notes is not None and curve.assumption():
+        notes.append(curve.assumption())
     try:
         return meta.record(curve.time_s, curve.thrust_n,
                            default_designation=os.path.splitext(os.path.basename(path))[0])

@@ -72,3 +72,36 @@ def test_reduce_reads_a_counts_column_with_a_scale(tmp_path: Path) -> None:
     result = run("reduce", _raw_log(tmp_path), "--designation", "E30", "--scale", "0.01", "--offset", "500", "--json")
     assert result.exit_code in (0, 1), result.output
     assert "total_impulse_ns" in result.output
+
+
+@pytest.mark.parametrize("header", ["", "time,thrust\n", "t,force\n"])
+def test_a_header_without_units_gives_a_stated_assumption(tmp_path: Path, header: str) -> None:
+    import json
+
+    path = tmp_path / "plain.csv"
+    path.write_text(header + "0,0\n0.1,30\n0.9,25\n1.0,0\n")
+    result = run("check", path, "--designation", "E25", "--json")
+    codes = [f["code"] for f in json.loads(result.stdout)[0]["findings"]]
+    assert "units-assumed" in codes
+    text = run("check", path, "--designation", "E25").output
+    assert "read as s and N" in text.replace("\n", " ")
+
+
+def test_reduce_states_the_units_it_assumed(tmp_path: Path) -> None:
+    import json
+
+    t = np.arange(-0.3, 1.5, 1e-3)
+    f = np.where((t > 0) & (t < 1.0), 30.0, 0.0) + 5.0
+    log = tmp_path / "plain.csv"
+    log.write_text("time,force\n" + "".join(f"{a:.4f},{b:.3f}\n" for a, b in zip(t, f)))
+    result = run("reduce", log, "--designation", "E30", "--json")
+    codes = [f["code"] for f in json.loads(result.stdout)["findings"]]
+    assert "units-assumed" in codes
+
+
+def test_units_given_are_not_an_assumption(tmp_path: Path) -> None:
+    import json
+
+    result = run("check", _csv(tmp_path, "time_ms,thrust_n"), "--designation", "A1", "--json")
+    codes = [f["code"] for f in json.loads(result.stdout)[0]["findings"]]
+    assert "units-assumed" not in codes
