@@ -144,3 +144,37 @@ def test_force_cannot_write_a_file_the_catalog_cannot_read(tmp_path: Path) -> No
     assert result.exit_code == 1
     assert not list((tmp_path / "cat").rglob("*.xml"))
     assert "h.csv" in result.output
+
+
+def test_a_curve_too_long_for_the_reader_is_refused_before_writing(tmp_path: Path) -> None:
+    """Issue 13 class 4: 400 000 rows made an XML over the reader's cap, accepted by add, gone on reindex."""
+    import numpy as np
+
+    n = 400_000
+    t = np.linspace(0.0, 4.0, n)
+    f = 30.0 * np.sin(np.pi * t / 4.0) + 1.0
+    f[0] = f[-1] = 0.0
+    csv = tmp_path / "long.csv"
+    csv.write_text("time_s,thrust_n\n" + "\n".join(f"{a:.7f},{b:.5f}" for a, b in zip(t, f)) + "\n")
+    root = tmp_path / "cat"
+    result = run("catalog", "add", "--catalog", root, csv, "--designation", "F20", "--force")
+    assert result.exit_code == 1 and "refused" in result.output, result.output
+    assert not list(root.rglob("*.xml"))
+    from motorlib.catalog import Catalog
+    from motorlib.files.motor_csv import CurveMetadata
+
+    (added,) = Catalog(root).add_files([csv], metadata=CurveMetadata(designation="F20"), force=True)
+    assert added.status == "refused" and "reads back" in added.message and "byte limit" in added.message
+    out = tmp_path / "long.xml"
+    result = run("import", csv, "-o", out, "--designation", "F20", "--force")
+    assert result.exit_code != 0 and not out.exists(), result.output
+
+
+def test_a_name_over_the_schema_limit_is_refused_before_writing(tmp_path: Path) -> None:
+    csv = tmp_path / "m.csv"
+    csv.write_text("time_s,thrust_n\n0,0\n0.1,30\n0.9,25\n1.0,0\n")
+    root = tmp_path / "cat"
+    result = run("catalog", "add", "--catalog", root, csv, "--designation", "E25", "--maker", "M" * 600)
+    assert result.exit_code == 1, result.output
+    assert not list(root.rglob("*.xml"))
+    assert run("catalog", "reindex", "--catalog", root).exit_code == 0
