@@ -374,6 +374,10 @@ def _trim(grid: np.ndarray, filtered: np.ndarray, t_ign: float, t_out: float, ra
     if burn_t.size < 8:
         raise CurveDataError(source, [Problem("log-too-short", "samples",
                                               f"only {burn_t.size} samples during the burn at {rate:.3g} Hz; log faster")])
+    if not np.any(burn_f > 0.0):  # a lone spike the filter spread below zero: nothing is left to integrate
+        raise CurveDataError(source, [Problem("log-no-ignition", "samples",
+                                              "no thrust is left between ignition and burnout after filtering "
+                                              "(a single spike, not a firing?)")])
     return burn_t, burn_f
 
 
