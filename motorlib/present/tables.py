@@ -307,7 +307,7 @@ def flight_card_table(card) -> Group:
     from .palette import VERDICT_MARKS
 
     styles = {"ok": "bold blue", "caution": "bold yellow", "fail": "bold red", "info": "dim"}
-    parts: list[object] = [Text.assemble((escape(card.title), "bold"), "  ",
+    parts: list[object] = [Text.assemble((card.title, "bold"), "  ",
                                          (VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result)]
     label_width = max((len(f.label) + 3 for p in card.phases for f in p.figures), default=10)
     for phase in card.phases:

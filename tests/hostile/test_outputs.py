@@ -159,3 +159,16 @@ def test_an_atomic_write_never_replaces_a_pipe_or_device(tmp_path: Path) -> None
     reader.join(timeout=10)
     assert received == [b"chart bytes"]
     assert stat.S_ISFIFO(os.stat(fifo).st_mode)
+
+
+def test_markup_in_user_text_is_shown_verbatim(tmp_path: Path) -> None:
+    """Rich markup in a maker name is text: neither a rich error nor shown with escape backslashes."""
+    csv = tmp_path / "mk.csv"
+    csv.write_text("time_s,thrust_n\n0,0\n0.1,30\n0.9,25\n1.0,0\n")
+    root = tmp_path / "cat"
+    maker = "[/x]Evil[bold"
+    assert run("catalog", "add", "--catalog", root, csv, "--designation", "E25", "--maker", maker,
+               "--total-mass", "40g", "--propellant-mass", "20g").exit_code == 0
+    for args in (["catalog", "show", "--catalog", root, "E25"], ["fly", AIRFRAME, "--motor", "E25", "--catalog", root]):
+        result = run(*args)
+        assert maker in result.output and "\\[" not in result.output, result.output
