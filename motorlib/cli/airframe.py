@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 import os
 
 import click
 
 from .options import _Finite
-from .output import _EPILOG, _caution, _check_outputs, _console
+from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 
 @click.command()
@@ -64,7 +63,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
             raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
     if as_json:
         payload = {**summary, "plot": None if written is None else str(written), "caution": _EPILOG}
-        click.echo(json.dumps(payload, indent=2))
+        click.echo(_strict_json(payload, indent=2))
         return
     from ..present import tables as render
 

@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 import click
 
 from .options import _Quantity
-from .output import _EPILOG, _caution, _check_outputs, _console
+from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 _FLIGHT_KEYS = ("apogee", "wind", "temperature", "pressure", "ballast", "motor", "label")
 
@@ -143,7 +142,7 @@ def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apoge
     payload["written"] = airframe_file if write else None
     payload["backup"] = backup
     if as_json:
-        click.echo(json.dumps({**payload, "caution": _EPILOG}, indent=2))
+        click.echo(_strict_json({**payload, "caution": _EPILOG}, indent=2))
         return
     from rich.markup import escape
 

@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-import json
 import sys
 from typing import Any
 
 import click
 
 from .options import _Finite, _metadata, _metadata_options, _units_option, display_units
-from .output import _console
+from .output import _console, _strict_json
 
 
 @click.command()
@@ -50,7 +49,7 @@ def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_thre
     reports = [check_file(f, settings, metadata, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
                for f in files]
     if as_json:
-        click.echo(json.dumps([r.as_dict() for r in reports], indent=2, default=float))
+        click.echo(_strict_json([r.as_dict() for r in reports], indent=2, default=float))
     else:
         from ..present import tables as render
 

@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-import json
 import math
 from typing import Any
 
 import click
 
 from .options import _Finite, _metadata, _metadata_options, _units_option, display_units
-from .output import _check_outputs, _console
+from .output import _check_outputs, _console, _strict_json
 
 
 @click.command()
@@ -104,7 +103,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         written.append(_write_report(report_doc, report_path, overwrite, inputs))
     summary = _log_summary(reductions)
     if as_json:
-        click.echo(json.dumps({"logs": summary, "combined": spread, **report.as_dict(),
+        click.echo(_strict_json({"logs": summary, "combined": spread, **report.as_dict(),
                                "written": [str(p) for p in written]}, indent=2, default=float))
         return
     _print_reduction(summary, spread, report, written, display_units(units))

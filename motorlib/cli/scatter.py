@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 import click
 
 from .options import _Finite, _Quantity, _units_option, display_units
-from .output import _EPILOG, _caution, _check_outputs, _console
+from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 # option name -> (Uncertainty field, kind, default unit); kind "relative" takes 0.03 or 3%
 _STD_OPTIONS = {
@@ -208,7 +207,7 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
 
         written = scatter_plot(summary, flights, f"{frame.name} with {motor.designation}", plot_path, shown)
     if as_json:
-        click.echo(json.dumps({**summary, "caution": _EPILOG}, indent=2))
+        click.echo(_strict_json({**summary, "caution": _EPILOG}, indent=2))
         return
     from ..present.scatter import scatter_text
 

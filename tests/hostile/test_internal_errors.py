@@ -36,3 +36,17 @@ def test_an_os_error_names_the_path(tmp_path) -> None:
     result = CliRunner().invoke(main, ["new-airframe", str(tmp_path / "missing" / "x.toml")])
     assert result.exit_code == 1
     assert "missing" in result.output and "Traceback" not in result.output
+
+
+def test_json_output_is_always_json() -> None:
+    """Python writes Infinity and NaN, which no JSON reader takes: every JSON output goes through one helper."""
+    import json
+    import math
+
+    import numpy as np
+
+    from motorlib.cli.output import _strict_json
+
+    text = _strict_json({"a": math.inf, "b": [1.0, math.nan, {"c": -math.inf}], "d": np.float64("nan"), "e": 2})
+    assert json.loads(text) == {"a": None, "b": [1.0, None, {"c": None}], "d": None, "e": 2}
+    assert "Infinity" not in text and "NaN" not in text
