@@ -412,15 +412,17 @@ class Catalog:
     def tag(self, refs: Sequence[str], name: str) -> list[str]:
         """Attach tag ``name`` (e.g. ``in-stock``) to motors; returns their ids."""
         check_tag_name(name)
-        ids = [self.resolve(r) for r in refs]
-        with self._lock():
+        with self._lock():  # resolved under the lock: a motor removed meanwhile is not found, never tagged
+            self.refresh()
+            ids = [self.resolve(r) for r in refs]
             self._tags.attach(name, ids)
         return ids
 
     def untag(self, refs: Sequence[str], name: str) -> list[str]:
         """Remove tag ``name`` from motors; returns their ids."""
-        ids = [self.resolve(r) for r in refs]
         with self._lock():
+            self.refresh()
+            ids = [self.resolve(r) for r in refs]
             self._tags.detach(name, ids)
         return ids
 
