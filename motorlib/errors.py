@@ -16,6 +16,7 @@ working. File errors carry the facts as attributes and build their text as
     +-- DesignationError (ValueError)    a motor label that does not follow the trade's pattern
     +-- QuantityError (ValueError)       a quantity with a missing, unknown or wrong-kind unit
     +-- SimulationInputError (ValueError) an airframe, launch condition or setting we cannot fly
+    +-- InputFileError (ValueError)      a file we cannot read at all: missing, not a regular file, too large
     +-- CatalogError                     a catalog that cannot be opened or changed as asked
         +-- MotorNotFoundError (LookupError)     (a duplicate add is data: AddResult status "duplicate")
     MotorlibWarning (UserWarning)        suspicious but usable input; outside the error tree
@@ -34,6 +35,7 @@ __all__ = [
     "CurveError",
     "CurveSyntaxError",
     "DesignationError",
+    "InputFileError",
     "MotorNotFoundError",
     "MotorlibError",
     "MotorlibWarning",
@@ -164,6 +166,17 @@ class SimulationInputError(MotorlibError, ValueError):
     def __init__(self, source: str, field: str, problem: str) -> None:
         self.source, self.field, self.problem = source, field, problem
         super().__init__(f"{source}: {field}: {problem}")
+
+
+class InputFileError(MotorlibError, ValueError):
+    """A file that cannot be read at all: missing, unreadable, not a regular file, too large or not text.
+
+    Readers that have an error class of their own (curves, airframes) raise that one instead, with the same text.
+    """
+
+    def __init__(self, source: str, problem: str) -> None:
+        self.source, self.problem = source, problem
+        super().__init__(f"{source}: {problem}")
 
 
 class CatalogError(MotorlibError):

@@ -9,6 +9,7 @@ Standard library only.
 
 from __future__ import annotations
 
+import math
 import re
 from typing import Final
 
@@ -20,6 +21,7 @@ __all__ = [
     "INCH_M",
     "INCH_OF_MERCURY_PA",
     "KILOGRAM_FORCE_N",
+    "OUNCE_FORCE_N",
     "OUNCE_KG",
     "POUND_FORCE_N",
     "POUND_KG",
@@ -40,6 +42,7 @@ OUNCE_KG: Final = POUND_KG / 16.0  # avoirdupois ounce, 1/16 lb = 28.349523125 g
 GRAM_KG: Final = 1e-3
 POUND_FORCE_N: Final = POUND_KG * STANDARD_GRAVITY_M_S2  # 4.4482216152605 N, lb x g0 by definition
 KILOGRAM_FORCE_N: Final = STANDARD_GRAVITY_M_S2  # 1 kgf = 1 kg x g0 by definition
+OUNCE_FORCE_N: Final = OUNCE_KG * STANDARD_GRAVITY_M_S2  # 0.27801385... N, oz x g0 by definition (small load cells)
 MILE_M: Final = 1609.344  # exact, 5280 ft
 PSI_PA: Final = POUND_FORCE_N / INCH_M**2  # pound-force per square inch, 6894.757... Pa by definition
 INCH_OF_MERCURY_PA: Final = 3386.389  # conventional inch of mercury (NIST SP 811, appendix B.8)
@@ -49,13 +52,14 @@ INCH_OF_MERCURY_PA: Final = 3386.389  # conventional inch of mercury (NIST SP 81
 UNITS: Final[dict[str, dict[str, float]]] = {
     "length": {"m": 1.0, "mm": 1e-3, "cm": 1e-2, "km": 1e3, "in": INCH_M, "ft": FOOT_M},
     "mass": {"kg": 1.0, "g": GRAM_KG, "oz": OUNCE_KG, "lb": POUND_KG},
-    "time": {"s": 1.0, "ms": 1e-3},
+    "time": {"s": 1.0, "ms": 1e-3, "us": 1e-6},
     "force": {
         "N": 1.0,
         "kN": 1e3,
         "lbf": POUND_FORCE_N,
         "kgf": KILOGRAM_FORCE_N,
         "gf": GRAM_KG * KILOGRAM_FORCE_N,
+        "ozf": OUNCE_FORCE_N,
     },
     "impulse": {"Ns": 1.0, "lbfs": POUND_FORCE_N},
     "speed": {"m/s": 1.0, "ft/s": FOOT_M, "km/h": 1000.0 / 3600.0, "mph": MILE_M / 3600.0},
@@ -69,6 +73,7 @@ _ALIASES: Final[dict[str, str]] = {
     "feet": "ft", "foot": "ft", "'": "ft",
     "gram": "g", "grams": "g", "kilogram": "kg", "ounce": "oz", "ounces": "oz", "lbs": "lb",
     "sec": "s", "second": "s", "seconds": "s", "msec": "ms",
+    "µs": "us", "μs": "us", "usec": "us", "microsecond": "us", "microseconds": "us", "oz-force": "ozf",
     "n": "N", "newton": "N", "newtons": "N", "kn": "kN", "lbs-force": "lbf",
     "n*s": "Ns", "n.s": "Ns", "n-s": "Ns", "n·s": "Ns", "ns": "Ns",
     "lbf*s": "lbfs", "lbf.s": "lbfs", "lbf-s": "lbfs", "lbf·s": "lbfs", "lb-s": "lbfs",
@@ -215,7 +220,7 @@ def parse_quantity(
     Raises
     ------
     QuantityError
-        If the text is not a number with a known unit of the expected kind.
+        If the text is not a finite number with a known unit of the expected kind.
 
     >>> parse_quantity("0.5 in", "length")
     0.0127
@@ -241,6 +246,8 @@ def parse_quantity(
             field, f"unknown {kind} unit {unit!r} in {text!r}; expected one of {', '.join(known_units(kind))}"
         )
     value = to_si(number, unit, kind, field=field)
+    if not math.isfinite(value):  # "1e400 m": a number beyond the float range, or nan/inf given as a float
+        raise QuantityError(field, f"{text!r} is not a finite {kind}")
     if keep_text:
         return Quantity(value, f"{typed} {format_unit(_canonical_unit(kind, unit) or unit)}")
     return value

@@ -10,7 +10,7 @@ parses only what changed; a content hash confirms a change before any parsing.
 Tables::
 
     meta    key -> value        schema version; the size:mtime stamp of tags.json last loaded
-    files   path, size, mtime_ns, sha256, motor_id, error   one row per curve file seen
+    files   path, size, mtime_ns, ctime_ns, sha256, motor_id, error   one row per curve file seen
     motors  COLUMNS, time_blob, thrust_blob                 one row per motor (samples as float64 blobs)
     tags    motor_id, tag                                   a copy of tags.json, for queries
 """
@@ -22,18 +22,21 @@ import hashlib
 import json
 import os
 import sqlite3
+from stat import S_ISREG
 from pathlib import Path
 from typing import Callable, ContextManager, Iterator, Sequence
 
-from ..errors import MotorlibError
-from ..files.motor_xml import record_from_bytes
+from ..errors import CurveError, CurveSyntaxError, MotorlibError
+from ..files.fsio import read_bounded
+from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, metrics
 from ..motor.classes import CLASS_LETTERS
 from ..motor.record import MotorRecord
 
 __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
 
-SCHEMA_VERSION = "3"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name lookup and on path
+SCHEMA_VERSION = "4"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name
+# lookup and on path; 4: files.ctime_ns (a file replaced with its old size and modification time changes it)
 INDEX_DIR = ".motorlib"
 COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
            "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
@@ -46,7 +49,7 @@ def create_schema(db: sqlite3.Connection) -> None:
     """Create the tables (if missing) and stamp the schema version."""
     db.execute("CREATE TABLE IF NOT EXISTS meta (key TEXT PRIMARY KEY, value TEXT)")
     db.execute("CREATE TABLE IF NOT EXISTS files (path TEXT PRIMARY KEY, size INTEGER, mtime_ns INTEGER, "
-               "sha256 TEXT, motor_id TEXT, error TEXT)")
+               "ctime_ns INTEGER, sha256 TEXT, motor_id TEXT, error TEXT)")
     cols = ", ".join(f"{c} {'TEXT PRIMARY KEY' if c == 'motor_id' else ''}" for c in COLUMNS)
     db.execute(f"CREATE TABLE IF NOT EXISTS motors ({cols}, time_blob BLOB, thrust_blob BLOB)")
     db.execute("CREATE INDEX IF NOT EXISTS motors_class ON motors (class_index)")
@@ -57,27 +60,54 @@ def create_schema(db: sqlite3.Connection) -> None:
     db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
 
 
-def scan_files(root: Path) -> dict[str, tuple[int, int]]:
-    """Every curve file under ``root`` (hidden files and folders skipped): relative path -> (size, mtime_ns).
+def scan_files(root: Path, problems: list[tuple[str, str]] | None = None) -> dict[str, tuple[int, int]]:
+    """Every curve file under ``root`` (hidden files and folders skipped): relative path -> its stamp.
 
-    Symbolic links to folders are not followed; links to files are (as ``os.walk`` does).
+    A stamp is (size, mtime_ns, ctime_ns): the status-change time moves whenever a file is written or
+    replaced, even when its size and modification time are put back (``touch -r``, some checkouts).
+
+    Symbolic links to folders are not followed; links to files are (as ``os.walk`` does). Entries named
+    ``*.xml`` that are not regular files (a dangling link, a pipe, a device) are appended to ``problems`` as
+    (full path, reason) and left out, so that no reader ever opens them.
     """
     found: dict[str, tuple[int, int]] = {}
     pending = [(str(root), "")]  # (folder, its path relative to root with a trailing "/")
     while pending:
         folder, prefix = pending.pop()
-        with os.scandir(folder) as entries:
-            for entry in entries:
-                name = entry.name
-                if name.startswith("."):
-                    continue
+        try:
+            entries = list(os.scandir(folder))
+        except OSError as exc:
+            if problems is not None:
+                problems.append((folder, f"folder cannot be read: {exc.strerror or exc}"))
+            continue
+        for entry in entries:
+            name = entry.name
+            if name.startswith("."):
+                continue
+            try:
                 if entry.is_dir():
                     if not entry.is_symlink():
                         pending.append((entry.path, f"{prefix}{name}/"))
-                elif name.endswith(".xml"):
-                    st = entry.stat()
-                    found[prefix + name] = (st.st_size, st.st_mtime_ns)
+                    continue
+                if not name.endswith(".xml"):
+                    continue
+                st = entry.stat()
+            except OSError as exc:
+                if problems is not None:
+                    problems.append((entry.path, f"cannot be read: {exc.strerror or exc}"
+                                     + (" (a link to a missing file)" if entry.is_symlink() else "")))
+                continue
+            if not S_ISREG(st.st_mode):
+                if problems is not None:
+                    problems.append((entry.path, "not a regular file (a pipe, device or socket); skipped"))
+                continue
+            found[prefix + name] = file_stamp(st)
     return found
+
+
+def file_stamp(st: os.stat_result) -> tuple[int, int, int]:
+    """(size, mtime_ns, ctime_ns) of a file status: what :meth:`CatalogIndex.refresh` compares."""
+    return (st.st_size, st.st_mtime_ns, st.st_ctime_ns)
 
 
 def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSettings,
@@ -154,43 +184,64 @@ class CatalogIndex:
             notices.append(f"{self.root}: read-only catalog, index kept in memory")
             return db
         (self.root / INDEX_DIR).mkdir(exist_ok=True)
-        existed = self.path.exists()
+        with contextlib.suppress(sqlite3.DatabaseError):
+            return self._open_checked(create=False)  # only a process holding the lock creates the file
+        # Missing, half-built by another process, or damaged: decide under the writer lock, so that a process
+        # never takes an index another one is building for a corrupt one (and moves it aside under it).
+        with self._lock():
+            existed = self.path.exists()
+            try:
+                return self._open_checked(create=False)
+            except sqlite3.DatabaseError as exc:
+                if existed and self.path.exists():
+                    self._move_aside()
+                    notices.append(f"{self.path}: index unusable ({exc}); moved aside and rebuilt from the files")
+                else:
+                    notices.append(f"{self.root}: building the catalog index")
+                db = self._open_file()
+                db.execute("BEGIN IMMEDIATE")
+                create_schema(db)
+                db.execute("COMMIT")
+                return db
+
+    def _open_checked(self, *, create: bool) -> sqlite3.Connection:
+        """The index, opened and checked: schema version, and every page readable (``PRAGMA quick_check``).
+
+        Raises
+        ------
+        sqlite3.DatabaseError
+            No file (unless ``create``), missing tables, another schema version, or damage anywhere in the file.
+        """
+        db = self._open_file(create=create)
         try:
-            db = self._open_file()
             version = db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone()
             if version is None or version[0] != SCHEMA_VERSION:
                 raise sqlite3.DatabaseError("schema version mismatch")
-            db.execute("SELECT count(*) FROM motors").fetchone()
+            # a damaged page the queries of one command never touch would break the next command: check them all
+            verdict = db.execute("PRAGMA quick_check(1)").fetchone()[0]
+            if verdict != "ok":
+                raise sqlite3.DatabaseError(f"damaged: {verdict}")
             return db
-        except sqlite3.DatabaseError as exc:
-            with contextlib.suppress(NameError):
-                db.close()
-            if existed:
-                self._move_aside()
-                notices.append(f"{self.path}: index unusable ({exc}); moved aside and rebuilt from the files")
-            else:
-                notices.append(f"{self.root}: building the catalog index")
-            db = self._open_file()
-            with db:
-                create_schema(db)
-            return db
+        except BaseException:
+            db.close()
+            raise
 
-    def _open_file(self) -> sqlite3.Connection:
-        db = sqlite3.connect(self.path, timeout=60.0, isolation_level=None)
+    def _open_file(self, *, create: bool = True) -> sqlite3.Connection:
+        target = self.path if create else f"{self.path.resolve().as_uri()}?mode=rw"
+        db = sqlite3.connect(target, timeout=60.0, isolation_level=None, uri=not create)
         db.execute("PRAGMA busy_timeout = 60000")
         db.execute("PRAGMA journal_mode = WAL")
         db.execute("PRAGMA synchronous = NORMAL")
         return db
 
     def _move_aside(self) -> None:
-        """Rename an unusable index to ``index.corrupt`` and drop its WAL files, under the writer lock."""
-        with self._lock():
-            aside = self.path.with_suffix(".corrupt")
-            if self.path.exists():
-                os.replace(self.path, aside)
-            for extra in ("-wal", "-shm"):
-                with contextlib.suppress(FileNotFoundError):
-                    os.unlink(str(self.path) + extra)
+        """Rename an unusable index to ``index.corrupt`` and drop its WAL files (the caller holds the writer lock)."""
+        aside = self.path.with_suffix(".corrupt")
+        if self.path.exists():
+            os.replace(self.path, aside)
+        for extra in ("-wal", "-shm"):
+            with contextlib.suppress(FileNotFoundError):
+                os.unlink(str(self.path) + extra)
 
     @contextlib.contextmanager
     def transaction(self) -> Iterator[None]:
@@ -217,13 +268,14 @@ class CatalogIndex:
         had_files : bool
             Whether the index knew any file before (False for a new index).
         """
-        on_disk = scan_files(self.root)
-        known = {row[0]: row[1:] for row in self.db.execute("SELECT path, size, mtime_ns, sha256, error FROM files")}
+        on_disk = scan_files(self.root, problems)
+        known = {row[0]: row[1:] for row in
+                 self.db.execute("SELECT path, size, mtime_ns, ctime_ns, sha256, error FROM files")}
         removed = [p for p in known if p not in on_disk]
-        changed = [p for p, stat in on_disk.items() if p not in known or tuple(known[p][:2]) != stat]
+        changed = [p for p, stat in on_disk.items() if p not in known or tuple(known[p][:3]) != stat]
         for path, row in known.items():  # files that failed before stay reported, without re-reading
-            if path in on_disk and path not in changed and row[3]:
-                problems.append((str(self.root / path), row[3]))
+            if path in on_disk and path not in changed and row[4]:
+                problems.append((str(self.root / path), row[4]))
         if not removed and not changed:
             return 0, 0, bool(known)
         with self.transaction():
@@ -234,38 +286,65 @@ class CatalogIndex:
                 self._index_file(path, on_disk[path], known.get(path), problems)
         return len(changed), len(removed), bool(known)
 
-    def _index_file(self, path: str, stat: tuple[int, int], old: tuple | None,
+    def _index_file(self, path: str, stat: tuple[int, int, int], old: tuple | None,
                     problems: list[tuple[str, str]]) -> None:
         full = self.root / path
         try:
-            data = full.read_bytes()
-        except OSError as exc:
-            problems.append((str(full), exc.strerror or str(exc)))
+            data = read_bounded(full, DEFAULT_MAX_BYTES, error=CurveSyntaxError)
+        except MotorlibError as exc:
+            problems.append((str(full), exc.problem if isinstance(exc, CurveError) else str(exc)))
             return
         digest = hashlib.sha256(data).hexdigest()
-        if old is not None and old[2] == digest and not old[3]:  # touched, not changed
-            self.db.execute("UPDATE files SET size = ?, mtime_ns = ? WHERE path = ?", (*stat, path))
+        if old is not None and old[3] == digest and not old[4]:  # touched, not changed
+            self.restamp(path, stat)
             return
         motor_id = digest[:16]
         self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
         try:
             record = record_from_bytes(data, str(full))
-        except MotorlibError as exc:
-            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, str(exc)))
+            row = motor_row(motor_id, path, record, self.settings)
+        except Exception as exc:  # noqa: BLE001 - one bad file, even one that trips a bug, must not break the catalog
+            if not isinstance(exc, MotorlibError):
+                exc = MotorlibError(f"{full}: internal error while reading this file ({type(exc).__name__}: {exc}); "
+                                    "please report it")
+            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL, ?)", (path, *stat, digest, str(exc)))
             problems.append((str(full), str(exc)))
             return
         twin = self.db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
         if twin is not None:
             message = f"an exact copy of {twin[0]}; skipped"
-            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, NULL, ?)", (path, *stat, digest, message))
+            self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL, ?)", (path, *stat, digest, message))
             problems.append((str(full), message))
             return
-        self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
-        self._insert_motor(motor_id, path, record)
+        self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
+        self._insert_row(row)
+
+    def restamp(self, path: str, stat: tuple[int, int, int]) -> None:
+        """Record a file's new stamp (its content is unchanged: touched, or linked to its name by the store)."""
+        self.db.execute("UPDATE files SET size = ?, mtime_ns = ?, ctime_ns = ? WHERE path = ?", (*stat, path))
+
+    def stale_paths(self) -> list[str]:
+        """Indexed files whose content no longer matches the index (hashed: changed without a new size or time)."""
+        stale = []
+        for path, sha256 in self.db.execute("SELECT path, sha256 FROM files WHERE error IS NULL").fetchall():
+            try:
+                data = read_bounded(self.root / path, DEFAULT_MAX_BYTES, error=CurveSyntaxError)
+            except MotorlibError:
+                continue  # gone or unreadable: the next refresh reports it
+            if hashlib.sha256(data).hexdigest() != sha256:
+                stale.append(path)
+        return stale
+
+    def mark_changed(self, paths: Sequence[str]) -> None:
+        """Make the next :meth:`refresh` re-read ``paths`` (their stamps no longer match any file)."""
+        with self.transaction():
+            self.db.executemany("UPDATE files SET size = -1 WHERE path = ?", [(p,) for p in paths])
 
     def _insert_motor(self, motor_id: str, path: str, record: MotorRecord,
                       findings: Sequence[Finding] | None = None) -> None:
-        values = motor_row(motor_id, path, record, self.settings, findings)
+        self._insert_row(motor_row(motor_id, path, record, self.settings, findings))
+
+    def _insert_row(self, values: list[object]) -> None:
         marks = ", ".join("?" * len(values))
         self.db.execute(f"INSERT OR REPLACE INTO motors VALUES ({marks})", values)
 
@@ -277,16 +356,16 @@ class CatalogIndex:
         self.db.execute("COMMIT")
 
     # ------------------------------------------------------------------ rows written by the store
-    def insert_file(self, path: str, stat: tuple[int, int], sha256: str, record: MotorRecord,
+    def insert_file(self, path: str, stat: tuple[int, int, int], sha256: str, record: MotorRecord,
                     findings: Sequence[Finding]) -> None:
         """Index a file the store is writing, inside the store's :meth:`transaction`.
 
-        ``stat`` is its (size, mtime_ns), ``sha256`` the hex digest of its bytes
+        ``stat`` is its :func:`file_stamp`, ``sha256`` the hex digest of its bytes
         and ``findings`` its checks: the store has them already, so nothing is
         read, hashed or checked again.
         """
         motor_id = sha256[:16]
-        self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL)", (path, *stat, sha256, motor_id))
+        self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, ?, NULL)", (path, *stat, sha256, motor_id))
         self._insert_motor(motor_id, path, record, findings)
 
     def delete_motor(self, motor_id: str, path: str) -> None:

@@ -52,13 +52,13 @@ from typing import Any, Callable, Iterator, Sequence
 
 import numpy as np
 
-from ..errors import CatalogError, CurveDataError, MotorlibError, MotorNotFoundError
+from ..errors import CatalogError, CurveDataError, CurveError, MotorlibError, MotorNotFoundError
 from ..files.fsio import NewFileBatch, slug
-from ..files.motor_xml import record_from_bytes, record_to_bytes
+from ..files.motor_xml import read_record, readable_record_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
 from ..motor.record import MotorRecord
 from . import query as _query
-from .index import INDEX_DIR, CatalogIndex
+from .index import INDEX_DIR, CatalogIndex, file_stamp
 from .query import CatalogFilter
 from .tags import TagFile, check_tag_name
 
@@ -136,6 +136,7 @@ class Catalog:
                                    notices=self.notices)
         self._db = self._index.db  # lookups below read it; the index module owns its schema
         self._tags = TagFile(self.root, self._db)
+        self._remove_leftovers()
         self.refresh(report=True)
         self.refresh_tags()
 
@@ -163,6 +164,35 @@ class Catalog:
             finally:
                 fcntl.flock(handle.fileno(), fcntl.LOCK_UN)
 
+    def _remove_leftovers(self) -> None:
+        """Remove temporary files a killed writer left (staged curves, ``.name.*.tmp``), if no writer is at work.
+
+        Only when the writer lock is free at once: a live writer holds it while its temporary files exist.
+        """
+        if self.read_only:
+            return
+        try:
+            import fcntl
+        except ImportError:  # pragma: no cover - not POSIX: leave them; they are hidden and never read
+            return
+        path = self.root / INDEX_DIR / "lock"
+        with open(path, "a+b") as handle:
+            try:
+                fcntl.flock(handle.fileno(), fcntl.LOCK_EX | fcntl.LOCK_NB)
+            except OSError:
+                return  # a writer is at work
+            try:
+                staging = self.root / INDEX_DIR / "staging"
+                if staging.is_dir():
+                    NewFileBatch(staging).clear_staging()
+                for folder in [self.root, *(p for p in self.root.iterdir()
+                                            if p.is_dir() and not p.is_symlink() and not p.name.startswith("."))]:
+                    for entry in folder.iterdir():
+                        if entry.name.startswith(".") and entry.name.endswith(".tmp") and entry.is_file():
+                            entry.unlink(missing_ok=True)
+            finally:
+                fcntl.flock(handle.fileno(), fcntl.LOCK_UN)
+
     def close(self) -> None:
         self._index.close()
 
@@ -185,6 +215,19 @@ class Catalog:
         if report and had_files and (n_read or n_removed):
             self.notices.append(f"{self.root}: index refreshed ({n_read} file(s) read, {n_removed} removed)")
         return n_read
+
+    def stale_files(self) -> list[str]:
+        """Re-read every file whose content no longer matches the index; returns their full paths.
+
+        Opening trusts a file's size and modification time; a file replaced with both kept (``touch -r``,
+        coarse network shares, some checkouts) is caught here, by hashing every file.
+        """
+        paths = self._index.stale_paths()
+        if paths:
+            with self._lock():
+                self._index.mark_changed(paths)
+                self.refresh()
+        return [str(self.root / p) for p in paths]
 
     def reindex(self) -> int:
         """Rebuild the whole index from the files (tags come back from tags.json)."""
@@ -211,10 +254,13 @@ class Catalog:
         batch = NewFileBatch(self.root / INDEX_DIR / "staging")
         batch.clear_staging()  # left by a writer killed mid-batch; we hold the lock, so nobody else is staging
         self._safe_folders = set()
+        self._batch_paths: list[str] = []
         try:
             with self._index.transaction():
                 yield batch
                 batch.commit()  # the files are on disk under their names before the index commits
+                for path in self._batch_paths:  # linking a file to its name changed its status-change time
+                    self._index.restamp(path, file_stamp(os.stat(self.root / path)))
         finally:
             batch.discard()  # after an error: drop the staged files that never got their names
 
@@ -228,7 +274,10 @@ class Catalog:
             note = f"[added despite errors: {', '.join(sorted({f.code for f in errors}))}]"
             notes = f"{record.provenance.notes} {note}".strip()
             record = replace(record, provenance=replace(record.provenance, notes=notes))
-        data = record_to_bytes(record)
+        try:
+            data = readable_record_bytes(record, source)  # never write a file the catalog could not read back
+        except CurveError as exc:
+            return AddResult(source, "refused", message=str(exc), findings=findings)
         sha256 = hashlib.sha256(data).hexdigest()
         motor_id = sha256[:16]  # motor_id_for(data), without hashing the bytes twice
         # the open transaction shows the rows of this batch too, so duplicates within a batch are caught
@@ -239,7 +288,8 @@ class Catalog:
         near = tuple(h for (h,) in self._db.execute(_SAME_NAME_SQL, (record.maker, record.designation)))
         path = self._free_path(record, batch)
         st = batch.write(self.root / path, data)
-        self._index.insert_file(path, (st.st_size, st.st_mtime_ns), sha256, record, findings)
+        self._index.insert_file(path, file_stamp(st), sha256, record, findings)
+        self._batch_paths.append(path)
         message = f"same maker and designation as {', '.join(near)}" if near else ""
         return AddResult(source, "added", motor_id, path[:-4], message, near, findings)
 
@@ -296,9 +346,14 @@ class Catalog:
         return results
 
     def remove(self, ref: str) -> str:
-        """Delete a motor's file and its index rows and tags; returns its handle."""
-        motor_id = self.resolve(ref)
+        """Delete a motor's file and its index rows and tags; returns its handle.
+
+        The reference is resolved under the writer lock, after a refresh: a motor another process removed
+        meanwhile is not found (MotorNotFoundError), never half-removed.
+        """
         with self._lock():
+            self.refresh()
+            motor_id = self.resolve(ref)
             path, handle = self._db.execute("SELECT path, handle FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
             with contextlib.suppress(FileNotFoundError):
                 os.unlink(self.root / path)
@@ -334,7 +389,7 @@ class Catalog:
         """The full record of a motor, read from its file."""
         motor_id = self.resolve(ref)
         (path,) = self._db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
-        return record_from_bytes((self.root / path).read_bytes(), str(self.root / path))
+        return read_record(self.root / path)
 
     def __len__(self) -> int:
         return self._index.n_motors()
@@ -361,15 +416,17 @@ class Catalog:
     def tag(self, refs: Sequence[str], name: str) -> list[str]:
         """Attach tag ``name`` (e.g. ``in-stock``) to motors; returns their ids."""
         check_tag_name(name)
-        ids = [self.resolve(r) for r in refs]
-        with self._lock():
+        with self._lock():  # resolved under the lock: a motor removed meanwhile is not found, never tagged
+            self.refresh()
+            ids = [self.resolve(r) for r in refs]
             self._tags.attach(name, ids)
         return ids
 
     def untag(self, refs: Sequence[str], name: str) -> list[str]:
         """Remove tag ``name`` from motors; returns their ids."""
-        ids = [self.resolve(r) for r in refs]
         with self._lock():
+            self.refresh()
+            ids = [self.resolve(r) for r in refs]
             self._tags.detach(name, ids)
         return ids
 

@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-import json
 import os
 
 import click
 
-from .output import _EPILOG, _caution, _console
+from .options import _Finite
+from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 
 @click.command()
@@ -17,9 +17,9 @@ from .output import _EPILOG, _caution, _console
 @click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
               help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
                    "else the bundled sample curves).")
-@click.option("--mach", type=click.FloatRange(0.0, 5.0), default=0.3, show_default=True,
+@click.option("--mach", type=_Finite(0.0, 5.0), default=0.3, show_default=True,
               help="Mach number of the drag build-up.")
-@click.option("--min-stability", "min_stability_cal", type=click.FloatRange(0.0, 10.0), default=1.0, show_default=True,
+@click.option("--min-stability", "min_stability_cal", type=_Finite(0.0, 10.0), default=1.0, show_default=True,
               help="Margin in calibers the nose-weight solve aims for (1 caliber: common practice, no published "
                    "source).")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
@@ -52,8 +52,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
                                    "commented example block to start from)")
     motor = None if motor_ref is None else _load_motor(motor_ref, catalog_dir)[0]
     inputs = [airframe_file] + ([motor_ref] if motor_ref is not None and os.path.isfile(motor_ref) else [])
-    if plot_path:
-        _refuse_input_as_output(plot_path, inputs)
+    _check_outputs({"--plot": plot_path}, overwrite, inputs)
     summary = airframe_summary(frame, motor, mach=mach, required_margin_cal=min_stability_cal)
     written = None
     if plot_path:
@@ -65,7 +64,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
             raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
     if as_json:
         payload = {**summary, "plot": None if written is None else str(written), "caution": _EPILOG}
-        click.echo(json.dumps(payload, indent=2))
+        click.echo(_strict_json(payload, indent=2))
         return
     from ..present import tables as render
 
@@ -74,11 +73,3 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
     if written is not None:
         console.print(f"Wrote {render.escape(str(written))}")
     _caution(console)
-
-
-def _refuse_input_as_output(path: str, inputs: list[str]) -> None:
-    """A plot never replaces one of the command's input files, --overwrite or not."""
-    target = os.path.realpath(path)
-    for source in inputs:
-        if os.path.realpath(source) == target:
-            raise click.UsageError(f"--plot {path}: that is an input file; choose another name")

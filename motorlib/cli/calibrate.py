@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 import click
 
 from .options import _Quantity
-from .output import _EPILOG, _caution, _console
+from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 _FLIGHT_KEYS = ("apogee", "wind", "temperature", "pressure", "ballast", "motor", "label")
 
@@ -89,13 +88,12 @@ def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apoge
     from ..files.airframe_toml import load_airframe, write_drag
     from ..flight import calibration as cal
     from .fly import _load_motor
-    from .scatter import _check_output
 
     if log_path and (apogees_m or flights):
         raise click.UsageError("give either --log or measured apogees (--apogee, --flight), not both")
     if not log_path and not (apogees_m or flights):
         raise click.UsageError("give measured apogees (--apogee, --flight) or an altimeter log (--log)")
-    _check_output(plot_path, overwrite)
+    _check_outputs({"--plot": plot_path}, overwrite, [airframe_file])
     frame = load_airframe(airframe_file)
     motor = _load_motor(motor_ref, catalog_dir)[0]
     try:
@@ -151,7 +149,7 @@ def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apoge
     payload["written"] = airframe_file if write else None
     payload["backup"] = backup
     if as_json:
-        click.echo(json.dumps({**payload, "caution": _EPILOG}, indent=2))
+        click.echo(_strict_json({**payload, "caution": _EPILOG}, indent=2))
         return
     from rich.markup import escape
 

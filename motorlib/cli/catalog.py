@@ -10,8 +10,9 @@ import click
 
 from ..errors import QuantityError
 from .group import _Group
-from .options import _catalog_option, _metadata_for, _metadata_options, _open_catalog, _Quantity, _units_option, display_units
-from .output import _console, _err_console, _json_text
+from .options import (_catalog_option, _metadata_for, _metadata_options, _open_catalog, _Quantity,
+                      _units_option, display_units)
+from .output import _check_outputs, _console, _err_console, _json_text
 
 
 @click.group(cls=_Group)
@@ -110,7 +111,7 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     from ..present import tables as render
     from ..files.curvefiles import find_curve_files
 
-    cat = _open_catalog(catalog_dir)
+    cat = _open_catalog(catalog_dir, create=True)
     files = find_curve_files(list(paths))
     console = _console()
     kwargs = dict(metadata=_metadata_for(opts, files, report_unused=True), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
@@ -173,8 +174,10 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
 @_catalog_option
 @click.argument("refs", nargs=-1, required=True)
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), help="Write the curve(s) to this PNG file.")
+@click.option("--overwrite", is_flag=True, help="Replace the --plot file if it exists.")
 @_units_option
-def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str | None, units: str | None) -> None:
+def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str | None, overwrite: bool,
+                 units: str | None) -> None:
     """Show motors by id, handle or designation: metadata, provenance, metrics, findings and the curve.
 
     Several motors are also compared in one table, and --plot overlays their curves.
@@ -189,6 +192,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
 
     shown = display_units(units)
     cat = _open_catalog(catalog_dir)
+    _check_outputs({"--plot": plot_path}, overwrite)
     console = _console()
     records = []
     for ref in refs:
@@ -271,7 +275,9 @@ def catalog_remove(catalog_dir: str | None, refs: tuple[str, ...]) -> None:
 @click.option("--to", "folder", required=True, type=click.Path(file_okay=False), help="Folder to write into.")
 @click.option("--format", "fmt", type=click.Choice(["xml", "csv", "json"]), default="xml", show_default=True,
               help="xml: our format; csv: time_s,thrust_n per motor; json: one file with every motor.")
-def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, fmt: str, **opts: Any) -> None:
+@click.option("--overwrite", is_flag=True, help="Replace files of the same names in the folder.")
+def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, fmt: str, overwrite: bool,
+                   **opts: Any) -> None:
     """Export motors (the REFs given, else those passing the filters) to a folder.
 
     \b
@@ -284,19 +290,15 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     cat = _open_catalog(catalog_dir)
     ids = [cat.resolve(r) for r in refs] if refs else [r["motor_id"] for r in cat.rows(_filter(opts))]
     rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
-    written, items = [], []
-    with _progress("exporting curves", len(rows)) as advance:
-        for r in rows:
-            item = (r["handle"], cat.get(r["motor_id"]))
-            if fmt == "json":  # one file with every motor, written at the end
-                items.append(item)
-            else:
-                written += export_records([item], folder, fmt)
-            if advance:
-                advance(1)
-    if fmt == "json" or not rows:
-        written += export_records(items, folder, fmt)
-    _console().print(f"Exported {len(rows)} motor(s) to {len(written)} file(s) in {folder}")
+    items = [(r["handle"], cat.get(r["motor_id"])) for r in rows]
+    try:
+        with _progress("exporting curves", len(rows)) as advance:
+            written = export_records(items, folder, fmt, overwrite=overwrite, progress=advance)
+    except FileExistsError as exc:
+        raise click.ClickException(f"{exc}; use --overwrite to replace them") from None
+    from rich.markup import escape
+
+    _console().print(f"Exported {len(rows)} motor(s) to {len(written)} file(s) in {escape(folder)}")
 
 
 @catalog.command("verify")
@@ -304,7 +306,9 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
 def catalog_verify(catalog_dir: str | None) -> None:
     """Re-read every curve file, re-run every check and report problems.
 
-    Exit status 1 when a file is unreadable or a curve has errors.
+    Names every file skipped as unreadable, and re-reads files whose content
+    no longer matches the index. Exit status 1 when a file is unreadable or a
+    curve has errors.
 
     \b
     Example:
@@ -314,8 +318,14 @@ def catalog_verify(catalog_dir: str | None) -> None:
     from ..files.curvefiles import check_file
 
     cat = _open_catalog(catalog_dir)
+    stale = cat.stale_files()  # changed behind the index's back (same size and time): re-read now
     reports = [check_file(cat.root / row["path"], cat.settings) for row in cat.rows()]
     console = _console()
+    for path in stale:
+        console.print(f"[yellow]index was stale[/yellow] {render.escape(path)}: the file changed without a new "
+                      "size or modification time; re-read", soft_wrap=True)
+    for where, problem in cat.problems:
+        console.print(f"[red]skipped[/red] {render.escape(where)}: {render.escape(problem)}", soft_wrap=True)
     bad = [r for r in reports if any(f.severity != "note" for f in r.findings)]
     for report in bad:
         console.print(f"[bold]{render.escape(report.source)}[/bold]")

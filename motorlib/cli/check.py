@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-import json
 import sys
 from typing import Any
 
 import click
 
-from .options import _metadata_for, _metadata_options, _units_option, display_units
-from .output import _console
+from .options import _Finite, _metadata_for, _metadata_options, _units_option, display_units
+from .output import _console, _strict_json
 
 
 @click.command()
@@ -17,9 +16,9 @@ from .output import _console
 @click.option("--json", "as_json", is_flag=True, help="Print a JSON list, one object per file.")
 @click.option("--details/--summary", default=None,
               help="Full metrics per file (default for one file) or one table row per file (default for several).")
-@click.option("--burn-threshold", type=click.FloatRange(0.1, 50.0), default=5.0, show_default=True,
+@click.option("--burn-threshold", type=_Finite(0.1, 50.0), default=5.0, show_default=True,
               help="Burn time starts and ends where thrust crosses this percentage of peak thrust.")
-@click.option("--thrust-tolerance", type=click.FloatRange(1.0, 100.0), default=20.0, show_default=True,
+@click.option("--thrust-tolerance", type=_Finite(1.0, 100.0), default=20.0, show_default=True,
               help="Allowed difference, in percent, between labelled and computed average thrust.")
 @_units_option
 @_metadata_options
@@ -50,7 +49,7 @@ def check(paths: tuple[str, ...], as_json: bool, details: bool | None, burn_thre
     reports = [check_file(f, settings, metadata(f) if callable(metadata) else metadata, time_unit=opts["time_unit"],
                           thrust_unit=opts["thrust_unit"]) for f in files]
     if as_json:
-        click.echo(json.dumps([r.as_dict() for r in reports], indent=2, default=float))
+        click.echo(_strict_json([r.as_dict() for r in reports], indent=2, default=float))
     else:
         from ..present import tables as render
 

@@ -13,8 +13,9 @@ from .output import _console
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False), default=None,
               help="Where to write the chart of apogee per motor (default: motorlib-demo.png, or the first free "
                    "motorlib-demo-N.png: the demo never replaces a file).")
+@click.option("--overwrite", is_flag=True, help="Replace the --plot file if it exists.")
 @_units_option
-def demo(plot_path: str | None, units: str | None) -> None:
+def demo(plot_path: str | None, overwrite: bool, units: str | None) -> None:
     """Run the main job end to end on bundled data: rank the sample motors for a demo airframe.
 
     The demo airframe (a 41.6 mm sport model with a 29 mm mount) aims at 400 m
@@ -40,7 +41,7 @@ def demo(plot_path: str | None, units: str | None) -> None:
                 delay_slack=None, allow_smaller_motors=True, adapter_steps=1, target_tolerance=None, tag=None,
                 top=None, show_rejected=False, ballast=True,
                 units=shown.system, as_json=False, as_csv=False, plot_path=plot_path, report_path=None,
-                overwrite=False)
+                overwrite=overwrite)
     _console().print(f"Demo: airframe {airframe.name}, bundled sample catalog, target {target.text}, ceiling "
                      f"{ceiling.text}, motors for the 29 mm mount and 24 mm ones through an adapter, with ballast.")
     _run_match(str(airframe), _open_catalog(str(sample_catalog_dir())), opts)

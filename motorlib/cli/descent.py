@@ -6,7 +6,7 @@ import json
 
 import click
 
-from .options import _Quantity, _units_option, display_units
+from .options import _Finite, _Quantity, _units_option, display_units
 from .output import _caution, _console
 
 
@@ -15,7 +15,7 @@ from .output import _caution, _console
               help="Mass under the device, with a unit (e.g. 450g, 1.2kg, 16oz).")
 @click.option("--drag-area", "drag_area_m2", type=_Quantity("area", minimum=0.0),
               help="Cd·A of the device, e.g. 0.18m2 or 280in2; a bare number is m².")
-@click.option("--cd", "drag_coefficient", type=click.FloatRange(min=0, min_open=True),
+@click.option("--cd", "drag_coefficient", type=_Finite(min=0, min_open=True),
               help="Drag coefficient of the device (with --diameter).")
 @click.option("--diameter", "diameter_m", type=_Quantity("length", minimum=0.0, strict=True),
               help="Device diameter (with --cd), e.g. 0.6m or 24in; a bare number is m.")
@@ -51,8 +51,13 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
     from ..flight.atmosphere import Site
     from ..flight.descent import drag_area_from_fall_m2, fall_through_air, pad_terminal_speed_m_s
 
-    if fall_time_s is not None and not fall_time_s > 0:
-        raise click.BadParameter("must be above 0 s", param_hint="--fall-time")
+    for option, value, least in (("--fall-time", fall_time_s, 0.0), ("--mass", mass_kg, 0.0),
+                                 ("--drag-area", drag_area_m2, None), ("--diameter", diameter_m, 0.0),
+                                 ("--height", height_m, 0.0)):
+        # a zero or negative size printed 0, inf or nan with exit 0; no drag at all (Cd·A = 0) is a free fall
+        if value is not None and not (value > least if least is not None else value >= 0.0):
+            above = "above 0" if least is not None else "0 or more"
+            raise click.BadParameter(f"must be {above}, got {getattr(value, 'text', value)}", param_hint=option)
     if elevation_m is None:
         elevation_m = 0.0
     if drag_area_m2 is None and drag_coefficient is not None and diameter_m is not None:

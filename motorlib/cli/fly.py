@@ -8,7 +8,7 @@ import click
 
 from .options import (_catalog_or_samples, _open_catalog, _Quantity, _units_option, apply_field_day, display_units,
                       field_day_options, pop_field_day)
-from .output import _EPILOG, _caution, _card_units, _console, _json_text
+from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _json_text
 
 
 @click.command()
@@ -36,8 +36,8 @@ from .output import _EPILOG, _caution, _card_units, _console, _json_text
                    "to this PNG file.")
 @click.option("--report", "report_path", type=click.Path(dir_okay=False),
               help="Write a printable pre-flight report (one self-contained HTML file, at most two pages).")
-@click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists.")
-@click.option("--field-radius", "field_radius", type=_Quantity("length"), default=None,
+@click.option("--overwrite", is_flag=True, help="Replace the --csv, --plot and --report files if they exist.")
+@click.option("--field-radius", "field_radius", type=_Quantity("length", minimum=0.0, strict=True), default=None,
               help="Warn when the rocket lands farther from the pad than this, e.g. 600m.")
 @field_day_options
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
@@ -76,6 +76,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     delay_s = None if delay_s is None else float(delay_s)
     frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
     motor, motor_file = _load_motor(motor_ref, catalog_dir)
+    _check_outputs({"--csv": csv_path, "--plot": plot_path}, overwrite, [airframe_file, motor_file])
     if report_path:
         from .output import _write_report
 
@@ -100,7 +101,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
                     for code, message in warnings]
     written = []
     if csv_path:
-        written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown))
+        written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown, overwrite))
     if plot_path:
         from ..present.plots import flight_plot
 
@@ -190,7 +191,7 @@ def _record_for_delay(motor: Any, delay_s: float | None) -> Any:
     return motor
 
 
-def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any) -> Any:
+def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any, overwrite: bool) -> Any:
     from ..files.fsio import write_atomic
     from ..present.csvout import rows_csv
 
@@ -198,4 +199,4 @@ def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any) -> 
              "ay_m_s2", "az_m_s2"]
     rows = [{**{n: float(trajectory[n][row]) for n in names},
              "phase": "descent" if trajectory["descent"][row] else "ascent"} for row in range(len(trajectory["time_s"]))]
-    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode())
+    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode(), overwrite=overwrite)

@@ -5,8 +5,8 @@ entry point) with its version option and safety epilog, and registers the comman
 ``check``, ``import`` (:mod:`.importing`), ``fly``, ``airframe``, ``descent``, ``catalog``, ``match``, ``demo``,
 ``reduce``, ``new-airframe``, ``scatter`` and ``calibrate``.
 Shared option types and catalog lookup live in :mod:`.options`, consoles and the caution in :mod:`.output`.
-Library errors reach the terminal in one place, :class:`.group._Group`, as ``Error: path:line: field: problem``
-with exit 1. Command modules import only click and the standard library at start-up; each command imports
+Library errors, OSErrors and bugs reach the terminal in one place, :class:`.group._Group`, as
+``Error: path:line: field: problem`` with exit 1 (``--debug`` shows the traceback of a bug). Command modules import only click and the standard library at start-up; each command imports
 the library modules it needs (numpy, lxml, rich, matplotlib behind them) when it runs.
 """
 
@@ -34,8 +34,10 @@ from .scatter import scatter
 
 @click.group(cls=_Group, epilog=_EPILOG, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="motorlib")
+@click.option("--debug", is_flag=True, envvar="MOTORLIB_DEBUG",
+              help="Show the Python traceback of an internal error (a bug in motorlib).")
 @_units_option
-def main(units: str | None) -> None:
+def main(units: str | None, debug: bool) -> None:
     """motorlib: thrust-curve catalog, checks and flight tools for rocket flyers.
 
     Quantities take units (800ft, 29mm, 25g, 9.5s); a bare number is the SI

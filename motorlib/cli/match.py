@@ -6,9 +6,9 @@ from typing import Any
 
 import click
 
-from .options import (_catalog_option, _catalog_or_samples, _open_catalog, _Quantity, _units_option, apply_field_day,
-                      display_units, field_day_options, pop_field_day)
-from .output import _EPILOG, _card_units, _console, _json_text
+from .options import (_catalog_option, _catalog_or_samples, _Finite, _open_catalog, _Quantity, _units_option,
+                      apply_field_day, display_units, field_day_options, pop_field_day)
+from .output import _EPILOG, _card_units, _check_outputs, _console, _json_text
 from .robust import pop_robust, robust_options, run_robust
 
 
@@ -51,7 +51,7 @@ def _match_options(func: Any) -> Any:
         click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed", minimum=0.0, strict=True), default=None,
                      help="Minimum rail exit speed, e.g. 15m/s or 50ft/s (default 15 m/s: common practice, "
                           "no published source)."),
-        click.option("--min-thrust-to-weight", type=float, default=5.0, show_default=True,
+        click.option("--min-thrust-to-weight", type=_Finite(min=0.0), default=5.0, show_default=True,
                      help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
         click.option("--delay-slack", type=_Quantity("time", minimum=0.0), default=None,
                      help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
@@ -85,7 +85,7 @@ def _match_options(func: Any) -> Any:
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
         click.option("--report", "report_path", type=click.Path(dir_okay=False),
                      help="Write a printable ranking report (one self-contained HTML file, at most two pages)."),
-        click.option("--overwrite", is_flag=True, help="Replace the --report file if it exists."),
+        click.option("--overwrite", is_flag=True, help="Replace the --plot and --report files if they exist."),
     ]
     for option in reversed(options):
         func = option(func)
@@ -99,6 +99,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
     units = display_units(opts.get("units"))
     frame = apply_field_day(load_airframe(airframe_file), opts.get("_field_day") or {})
+    _check_outputs({"--plot": opts["plot_path"]}, opts["overwrite"], [airframe_file])
     if opts.get("report_path"):
         from .output import _write_report
 

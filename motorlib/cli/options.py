@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import datetime as _dt
+import math
 import sys
 from typing import Any
 
@@ -42,10 +43,24 @@ class _Quantity(click.ParamType):
             quantity = parse_quantity(value, self.kind, field=name, keep_text=True, default_unit=self.default_unit)
         except QuantityError as exc:
             self.fail(exc.problem, param, ctx)
+        if not math.isfinite(quantity):
+            self.fail(f"{text!r} is not a finite number", param, ctx)
         low = self.minimum
         if low is not None and (quantity < low or (self.strict and quantity == low)):
             self.fail(f"{text!r} must be {'more than' if self.strict else 'at least'} {low:g}", param, ctx)
         return quantity
+
+
+class _Finite(click.FloatRange):
+    """A float option that refuses nan and inf (a NaN limit silently switched a rule off), optionally in a range."""
+
+    name = "number"
+
+    def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> Any:
+        number = super().convert(value, param, ctx)
+        if not math.isfinite(number):
+            self.fail(f"{value!r} is not a finite number", param, ctx)
+        return number
 
 
 _UNIT_EXAMPLES = {"length": "24mm or 0.95in", "mass": "25g or 0.9oz", "time": "6s", "speed": "15m/s",
@@ -304,21 +319,35 @@ def default_catalog_dir() -> str:
     return os.path.join(base, "motorlib", "catalog")
 
 
-def _open_catalog(folder: str | None) -> Any:
+def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
+    """Open a catalog for a command; only ``catalog add`` (``create``) makes a missing folder.
+
+    A read-only command never creates one: a typo in ``--catalog`` is an error naming the folder, and the
+    user catalog is not made empty by a ``list`` (after which ``match`` would find "no motors" instead of
+    using the bundled samples).
+    """
     import os
     from pathlib import Path
 
     from ..catalog import Catalog
+    from ..errors import CatalogError
 
     path = Path(folder or default_catalog_dir())
+    if not create and not path.exists():
+        hint = ("; add curves with 'motorlib catalog add' (match and fly use the bundled samples until then)"
+                if folder is None else "; check the name, or create it with 'motorlib catalog add --catalog ...'")
+        raise CatalogError(f"{path}: no such catalog folder{hint}")
     read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker
-    catalog = Catalog(path, read_only=read_only)
+    catalog = Catalog(path, read_only=read_only, create=create)
     err = _err_console()
     for notice in catalog.notices:
         if not catalog.read_only:
             err.print(f"[dim]note: {notice}[/dim]")
-    for where, problem in catalog.problems:
-        err.print(f"[yellow]skipped[/yellow] {where}: {problem}", markup=True, highlight=False)
+    from rich.markup import escape
+
+    for where, problem in catalog.problems:  # paths and messages are user text: never read as markup
+        err.print(f"[yellow]skipped[/yellow] {escape(where)}: {escape(problem)}", markup=True, highlight=False,
+                  soft_wrap=True)
     return catalog
 
 

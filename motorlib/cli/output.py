@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import json
 import sys
-from typing import Any
+from typing import Any, Sequence
 
 from ..safety import SAFETY_CAUTION as _EPILOG
 
@@ -27,7 +27,30 @@ def _json_text(data: Any) -> str:
     Indenting costs: at 5,000 match candidates it switches ``json`` from its C
     encoder to the pure-Python one, about 2.5 times the time (120 ms more).
     """
-    return json.dumps(data, indent=2 if sys.stdout.isatty() else None)
+    return _strict_json(data, indent=2 if sys.stdout.isatty() else None)
+
+
+def _strict_json(data: Any, **kwargs: Any) -> str:
+    """``json.dumps`` that always gives JSON: a non-finite number (which Python writes as ``Infinity`` or
+    ``NaN``, which no JSON reader takes) becomes ``null``. Costs nothing when every number is finite."""
+    try:
+        return json.dumps(data, allow_nan=False, **kwargs)
+    except ValueError:
+        return json.dumps(_finite_or_none(data), allow_nan=False, **kwargs)
+
+
+def _finite_or_none(data: Any) -> Any:
+    import math
+
+    if isinstance(data, float):
+        return data if math.isfinite(data) else None
+    if isinstance(data, dict):
+        return {k: _finite_or_none(v) for k, v in data.items()}
+    if isinstance(data, (list, tuple)):
+        return [_finite_or_none(v) for v in data]
+    if hasattr(data, "dtype") and hasattr(data, "tolist"):  # numpy scalars and arrays
+        return _finite_or_none(data.tolist())
+    return data
 
 
 def _caution(console: Any) -> None:
@@ -52,6 +75,55 @@ def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *,
         raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
     except ValueError as exc:
         raise click.ClickException(str(exc)) from exc
+
+
+def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequence[Any] = ()) -> None:
+    """Refuse, before any work, output paths a command must not write: the one check every output option uses.
+
+    ``outputs`` maps an option (``--plot``) to its path or None. Refused: a path that is one of ``inputs``
+    (even with ``--overwrite``), two options naming one file, an existing file without ``--overwrite``,
+    a folder, and a parent folder that does not exist. Raises ``click.ClickException`` (exit status 1).
+    """
+    import os
+
+    import click
+
+    def same(a: str, b: Any) -> bool:
+        try:
+            if os.path.exists(a) and os.path.exists(b) and os.path.samefile(a, b):
+                return True
+        except OSError:
+            pass
+        return os.path.realpath(a) == os.path.realpath(b)
+
+    claimed: dict[str, str] = {}
+    for option, path in outputs.items():
+        if not path:
+            continue
+        if any(same(path, source) for source in inputs if source):
+            raise click.ClickException(f"{option} {path}: is an input of this command; choose another file name")
+        for other, taken in claimed.items():
+            if same(path, taken):
+                raise click.ClickException(f"{option} {path}: also given to {other}; choose another file name")
+        claimed[option] = path
+        if os.path.isdir(path):
+            raise click.ClickException(f"{option} {path}: is a folder; give a file name")
+        if os.path.lexists(path) and not overwrite and _is_regular(path):
+            raise click.ClickException(f"{option} {path}: already exists; use --overwrite to replace it")
+        parent = os.path.dirname(path) or "."
+        if not os.path.isdir(parent):
+            raise click.ClickException(f"{option} {path}: folder {parent} does not exist")
+
+
+def _is_regular(path: str) -> bool:
+    """Whether ``path`` is a regular file (or a link to none): a pipe or device such as /dev/null is written into."""
+    import os
+    import stat
+
+    try:
+        return stat.S_ISREG(os.stat(path).st_mode)
+    except OSError:
+        return True
 
 
 def _card_units(units: Any) -> str:

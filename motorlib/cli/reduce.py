@@ -2,23 +2,23 @@
 
 from __future__ import annotations
 
-import json
+import math
 from typing import Any
 
 import click
 
-from .options import _metadata_for, _metadata_options, _units_option, display_units
-from .output import _console
+from .options import _Finite, _metadata_for, _metadata_options, _units_option, display_units
+from .output import _check_outputs, _console, _strict_json
 
 
 @click.command()
 @click.argument("logs", nargs=-1, required=True, type=click.Path(exists=True, dir_okay=False))
 @click.option("-o", "--output", type=click.Path(dir_okay=False), help="Motor-record XML file to write (atomically).")
-@click.option("--overwrite", is_flag=True, help="Replace OUTPUT (and the --report file) if it exists.")
+@click.option("--overwrite", is_flag=True, help="Replace OUTPUT, the --plot and --report files if they exist.")
 @click.option("--force", is_flag=True, help="Write OUTPUT even when the checks find errors.")
 @click.option("--combine", is_flag=True, help="Several firings of one motor: write their mean curve and report the spread.")
-@click.option("--scale", type=float, help="Calibration for a raw-count column: newtons per count.")
-@click.option("--offset", type=float, default=0.0, show_default=True, help="Zero reading of a raw-count column, in counts.")
+@click.option("--scale", type=_Finite(min=0.0, min_open=True), help="Calibration for a raw-count column: newtons per count.")
+@click.option("--offset", type=_Finite(), default=0.0, show_default=True, help="Zero reading of a raw-count column, in counts.")
 @click.option("--cutoff", default=None, metavar="HZ|none",
               help="-3 dB frequency of the zero-phase low-pass filter (default: 100 Hz or a quarter of the sample rate); "
                    "'none' disables it.")
@@ -66,6 +66,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
+    _check_outputs({"--output": output, "--plot": plot_path}, overwrite, logs)
     settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
     if report_path:
         from .output import _write_report
@@ -120,8 +121,8 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
             entry.update(ok=log_report.ok, findings=[f.as_dict() for f in log_report.findings])
     failed = [r for r in log_reports if not r.ok] + ([] if report.ok else [report])
     if as_json:
-        click.echo(json.dumps({"logs": summary, "combined": spread, "series_findings": [f.as_dict() for f in series],
-                               **report.as_dict(), "written": [str(p) for p in written]}, indent=2, default=float))
+        click.echo(_strict_json({"logs": summary, "combined": spread, "series_findings": [f.as_dict() for f in series],
+                                 **report.as_dict(), "written": [str(p) for p in written]}, indent=2, default=float))
     else:
         _print_reduction(summary, spread, report, written, display_units(units), log_reports, combine)
     if failed:
@@ -132,9 +133,12 @@ def _cutoff_hz(cutoff: str | None) -> float | None:
     """The ``--cutoff`` frequency in Hz: None for the default, 0.0 for 'none' (no filter)."""
     try:
         text = None if cutoff is None else cutoff.strip().lower().removesuffix("hz").strip()
-        return None if text is None else (0.0 if text == "none" else float(text))
+        value = None if text is None else (0.0 if text == "none" else float(text))
     except ValueError:
-        raise click.BadParameter("expected a frequency in Hz or 'none'", param_hint="--cutoff") from None
+        value = -1.0
+    if value is not None and not (math.isfinite(value) and value >= 0.0):
+        raise click.BadParameter(f"expected a frequency above 0 Hz or 'none', got {cutoff!r}", param_hint="--cutoff")
+    return value
 
 
 def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, thrust_unit: str | None,
@@ -142,18 +146,24 @@ def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, th
     """Read and reduce every log; pairs of (path, :class:`~motorlib.motor.reduction.Reduction`)."""
     import numpy as np
 
+    from dataclasses import replace
+
     from ..errors import CurveDataError
     from ..files.motor_csv import read_csv_curve
+    from ..motor.checks import Finding
     from ..motor.reduction import reduce_log
 
     reductions = []
     for path in logs:
         curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit, scale=scale, offset=offset)
         try:
-            reductions.append((path, reduce_log(curve.time_s, curve.thrust_n, settings, lines=np.asarray(curve.lines),
-                                                source=path)))
+            reduction = reduce_log(curve.time_s, curve.thrust_n, settings, lines=np.asarray(curve.lines), source=path)
         except CurveDataError as exc:
             raise click.ClickException(str(exc)) from None
+        if curve.assumption():  # said in the output and the JSON, never silent
+            note = Finding("note", "units-assumed", f"{path}: {curve.assumption()}")
+            reduction = replace(reduction, findings=(note, *reduction.findings))
+        reductions.append((path, reduction))
     return reductions
 
 

@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from typing import Any
 
 import click
 
 from .options import _Quantity, display_units
-from .output import _EPILOG, _caution, _console
+from .output import _EPILOG, _caution, _console, _strict_json
 
 
 class _Window(click.ParamType):
@@ -113,7 +112,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
                              "catalog": str(cat.root)},
               "caution": _EPILOG}
     if opts["as_json"]:
-        click.echo(json.dumps(result, indent=2))
+        click.echo(_strict_json(result, indent=2))
         return
     from rich.markup import escape
 

@@ -2,14 +2,12 @@
 
 from __future__ import annotations
 
-import json
-import os
 from typing import Any
 
 import click
 
 from .options import _Quantity, _units_option, display_units
-from .output import _EPILOG, _caution, _console
+from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 # option name -> (Uncertainty field, kind, default unit); kind "relative" takes 0.03 or 3%
 _STD_OPTIONS = {
@@ -100,11 +98,6 @@ def uncertainty_from_options(airframe_file: str, opts: dict[str, Any]) -> Any:
         raise click.UsageError(str(exc).replace("`", "")) from None
 
 
-def _check_output(path: str | None, overwrite: bool) -> None:
-    if path and os.path.exists(path) and not overwrite:
-        raise click.UsageError(f"{path} exists; add --overwrite to replace it")
-
-
 def run_with_progress(call: Any, total: int, label: str) -> Any:
     """``call(progress)``, with a rich progress bar on stderr when it is a terminal (else ``progress`` is None)."""
     from .output import _err_console
@@ -191,7 +184,7 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
     from .fly import _load_motor
     from .options import _catalog_or_samples, _open_catalog
 
-    _check_output(plot_path, overwrite)
+    _check_outputs({"--plot": plot_path}, overwrite, [airframe_file])
     shown = display_units(units)
     frame = load_airframe(airframe_file)
     uncertainty = uncertainty_from_options(airframe_file, opts)
@@ -218,7 +211,7 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
 
         written = scatter_plot(summary, flights, f"{frame.name} with {motor.designation}", plot_path, shown)
     if as_json:
-        click.echo(json.dumps({**summary, "caution": _EPILOG}, indent=2))
+        click.echo(_strict_json({**summary, "caution": _EPILOG}, indent=2))
         return
     from ..present.scatter import scatter_text
 

@@ -21,6 +21,7 @@ from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Tran
 from ..flight.wind import MeasuredWind
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
+from .fsio import read_text_bounded
 
 __all__ = ["airframe_from_dict", "airframe_template", "load_airframe", "load_uncertainty", "uncertainty_from_dict",
            "write_drag"]
@@ -54,18 +55,6 @@ _DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "degF": 5.0 / 9.0}
 _PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
-def _read_toml(path: str | os.PathLike[str]) -> dict[str, Any]:
-    """The TOML document at ``path``; a syntax or file error names the file."""
-    source = str(path)
-    try:
-        with open(path, "rb") as handle:
-            return tomllib.load(handle)
-    except tomllib.TOMLDecodeError as exc:
-        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
-    except OSError as exc:
-        raise SimulationInputError(source, "file", exc.strerror or str(exc)) from exc
-
-
 def load_airframe(path: str | os.PathLike[str]) -> Airframe:
     """Read an airframe TOML file.
 
@@ -75,7 +64,25 @@ def load_airframe(path: str | os.PathLike[str]) -> Airframe:
         Naming the file and the key: a missing key, a wrong unit, a value out of range.
     """
     source = str(path)
-    return airframe_from_dict(_read_toml(path), source)
+    data = _load_toml(path)
+    return airframe_from_dict(data, source)
+
+
+MAX_AIRFRAME_BYTES = 4 * 1024 * 1024  # a detailed airframe file is a few kB; refuse what cannot be one
+
+
+def _load_toml(path: str | os.PathLike[str]) -> dict[str, Any]:
+    """The tables of a TOML file, read within :data:`MAX_AIRFRAME_BYTES` (a regular UTF-8 file only)."""
+    source = str(path)
+
+    def error(where: str, problem: str) -> SimulationInputError:
+        return SimulationInputError(where, "file", problem)
+
+    text = read_text_bounded(path, MAX_AIRFRAME_BYTES, error=error, hint="save the file as UTF-8")
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise SimulationInputError(source, "TOML", f"not valid TOML: {exc}") from exc
 
 
 def _quantity(source: str, table: dict[str, Any], section: str, key: str, kind: str, *,
@@ -464,7 +471,8 @@ def load_uncertainty(path: str | os.PathLike[str], base: Any = None) -> Any:
         Naming the file and the key.
     """
     source = str(path)
-    return uncertainty_from_dict(_read_toml(path), source, base)
+    data = _load_toml(path)
+    return uncertainty_from_dict(data, source, base)
 
 
 def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: Any = None) -> Any:
@@ -540,8 +548,8 @@ def write_drag(path: str | os.PathLike[str], kind: str, value: float) -> tuple[s
     from .fsio import write_atomic
 
     source = str(path)
-    with open(path, encoding="utf-8") as handle:
-        text = handle.read()
+    text = read_text_bounded(path, MAX_AIRFRAME_BYTES, error=lambda where, problem: SimulationInputError(
+        where, "file", problem), hint="save the file as UTF-8")
     lines = text.splitlines(keepends=True)
     section = ""
     key = "drag_coefficient" if kind == "drag_coefficient" else "drag_table"

@@ -19,7 +19,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import CsvFormatError
+from .fsio import read_text_bounded
 from ..flight.calibration import altitude_from_pressure_m
+
+MAX_LOG_BYTES = 64 * 1024 * 1024  # an hour at 100 Hz is a few MB; refuse what cannot be an altimeter log
 
 __all__ = ["AltimeterLog", "read_altimeter_csv"]
 
@@ -63,11 +66,7 @@ def read_altimeter_csv(path: str | os.PathLike[str]) -> AltimeterLog:
         an unknown unit, a value that is not a number, times not increasing.
     """
     source = str(path)
-    try:
-        with open(path, encoding="utf-8-sig") as handle:
-            text = handle.read()
-    except OSError as exc:
-        raise CsvFormatError(source, exc.strerror or str(exc)) from exc
+    text = read_text_bounded(path, MAX_LOG_BYTES, error=CsvFormatError, hint="save the log as UTF-8 CSV")
     lines = [(n, line) for n, line in enumerate(text.splitlines(), start=1) if line.strip() and not line.lstrip().startswith("#")]
     if len(lines) < 2:
         raise CsvFormatError(source, "expected a header line and data lines")

@@ -30,13 +30,17 @@ def load_curve_file(
     *,
     time_unit: str | None = None,
     thrust_unit: str | None = None,
+    notes: list[str] | None = None,
 ) -> MotorRecord:
-    """Read a motor record from ``.xml`` (our format) or ``.csv`` (with ``metadata``)."""
+    """Read a motor record from ``.xml`` (our format) or ``.csv`` (with ``metadata``).
+
+    ``notes`` receives what was assumed while reading (units a CSV file does not name).
+    """
     suffix = Path(path).suffix.lower()
     if suffix == ".xml":
         return read_record(path)
     if suffix in (".csv", ".txt", ".tsv"):
-        return record_from_csv(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit)
+        return record_from_csv(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit, notes=notes)
     raise CurveError(str(path), f"unknown file type {suffix!r}; expected .xml (motor record) or .csv")
 
 
@@ -98,12 +102,14 @@ def check_file(
     """Read and check one curve file; never raises for a bad file."""
     source = str(path)
     settings = settings or CheckSettings()
+    notes: list[str] = []
     try:
-        record = load_curve_file(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit)
+        record = load_curve_file(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit, notes=notes)
     except CurveDataError as exc:
         return CheckReport(source, True, None, tuple(findings_from_problems(exc)), None)
     except (MotorlibError, OSError) as exc:
         message = str(exc) if isinstance(exc, MotorlibError) else f"{source}: {exc.strerror or exc}"
         return CheckReport(source, False, None, (Finding("error", "unreadable", message),), None)
-    return CheckReport(source, True, record, tuple(check_record(record, settings)),
+    assumed = tuple(Finding("note", "units-assumed", note) for note in notes)
+    return CheckReport(source, True, record, assumed + tuple(check_record(record, settings)),
                        metrics(record, settings.burn_threshold))

@@ -13,15 +13,74 @@ import errno
 import functools
 import os
 import re
+import stat
 import tempfile
 from pathlib import Path
 from typing import Callable, Sequence
 
-__all__ = ["NewFileBatch", "slug", "write_atomic"]
+from ..errors import InputFileError, MotorlibError
+
+__all__ = ["NewFileBatch", "read_bounded", "read_text_bounded", "slug", "write_atomic"]
+
+
+def read_bounded(path: str | os.PathLike[str], max_bytes: int, *,
+                 error: Callable[[str, str], MotorlibError] = InputFileError) -> bytes:
+    """The bytes of a regular file, refusing more than ``max_bytes`` by the bytes actually read.
+
+    The size on disk is not trusted (``/dev/zero`` and a growing file report 0 or less than they give), a
+    FIFO or device is refused without blocking (opened non-blocking, then checked with ``fstat``), and every
+    ``OSError`` becomes ``error(path, reason)``, so every reader fails the same clean way.
+
+    Raises
+    ------
+    MotorlibError
+        ``error(source, problem)`` (:class:`~motorlib.errors.InputFileError` by default).
+    """
+    source = str(path)
+    try:
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0))
+    except OSError as exc:
+        raise error(source, _reason(exc)) from None
+    try:
+        mode = os.fstat(fd).st_mode
+        if not stat.S_ISREG(mode):
+            kind = "a folder" if stat.S_ISDIR(mode) else "a pipe" if stat.S_ISFIFO(mode) else "a device or socket"
+            raise error(source, f"is {kind}, not a regular file")
+        chunks, total = [], 0
+        while total <= max_bytes:
+            chunk = os.read(fd, min(1 << 20, max_bytes + 1 - total))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            total += len(chunk)
+    except OSError as exc:
+        raise error(source, _reason(exc)) from None
+    finally:
+        os.close(fd)
+    if total > max_bytes:
+        raise error(source, f"larger than the {max_bytes}-byte limit for this kind of file")
+    return b"".join(chunks)
+
+
+def read_text_bounded(path: str | os.PathLike[str], max_bytes: int, *,
+                      error: Callable[[str, str], MotorlibError] = InputFileError, hint: str = "") -> str:
+    """:func:`read_bounded`, decoded as UTF-8 (a byte-order mark is dropped); other encodings are refused."""
+    data = read_bounded(path, max_bytes, error=error)
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise error(str(path), f"not UTF-8 text (byte {exc.start + 1}){'; ' + hint if hint else ''}") from None
+
+
+def _reason(exc: OSError) -> str:
+    """The system's words for an OSError, e.g. 'No such file or directory'."""
+    return exc.strerror or str(exc)
 
 
 def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool = True) -> Path:
     """Write ``data`` to ``path`` atomically and return the path.
+
+    A pipe or device (``/dev/null``) is written into, never replaced by a regular file.
 
     Raises
     ------
@@ -29,6 +88,15 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
         When ``overwrite`` is False and ``path`` exists.
     """
     target = Path(path)
+    try:
+        mode = os.stat(target).st_mode
+    except OSError:
+        mode = None
+    if mode is not None and not stat.S_ISREG(mode) and not stat.S_ISDIR(mode):
+        # a pipe or device (/dev/null, a FIFO a reader waits on): write into it, never rename over it
+        with open(target, "wb") as handle:
+            handle.write(data)
+        return target
     if not overwrite and target.exists():
         raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
     folder = target.parent if str(target.parent) else Path(".")

@@ -20,13 +20,17 @@ import numpy as np
 from ..motor.record import MotorRecord, Provenance
 from ..errors import CsvFormatError, CurveDataError, Problem, QuantityError
 from ..units import STANDARD_GRAVITY_M_S2, _canonical_unit, known_units, to_si
+from .fsio import read_text_bounded
 
 __all__ = ["CsvCurve", "CurveMetadata", "read_csv_curve", "record_from_csv"]
 
 DEFAULT_MAX_BYTES: Final = 64 * 1024 * 1024  # a long 10 kHz log is a few MB; refuse what cannot be a log
 _TIME_NAME = re.compile(r"^(t|time|zeit|temps|tiempo)(?![a-z])", re.IGNORECASE)
 _THRUST_NAME = re.compile(r"^(thrust|force|f|load|schub|weight|mass|counts|raw|adc)(?![a-z])", re.IGNORECASE)
-_UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|[_\s]([A-Za-z/·*.-]+))\s*$")
+_UNIT_IN_NAME = re.compile(r"(?:\(([^)]*)\)|\[([^\]]*)\]|([_\s])([^\s_()\[\]]+))\s*$")
+# Words after an underscore that name no unit ("time_stamp"); any other word there is a unit, known or refused
+_NOT_UNITS = frozenset({"stamp", "value", "data", "reading", "filtered", "measured"})
+_COUNT_NAMES = re.compile(r"^(counts|raw|adc)$", re.IGNORECASE)
 
 
 @dataclass(frozen=True)
@@ -69,6 +73,15 @@ class CsvCurve:
     time_unit: str
     thrust_unit: str
     header: tuple[str, ...] | None
+    assumed: tuple[str, ...] = ()  # the columns ("time", "thrust") whose unit nothing gave: read as s and N
+
+    def assumption(self) -> str | None:
+        """What was assumed about units, as a sentence for output and JSON; None when the units were given."""
+        if not self.assumed:
+            return None
+        units = " and ".join("s" if kind == "time" else "N" for kind in self.assumed)
+        return (f"no unit for the {' and '.join(self.assumed)} column(s) in the header or options: read as "
+                f"{units} (name units in the header, e.g. time_ms, thrust_lbf)")
 
 
 def _split(row: str, delimiter: str | None) -> list[str]:
@@ -102,9 +115,11 @@ def _header_unit(name: str, kind: str, source: str, line: int) -> str | None:
     match = _UNIT_IN_NAME.search(name)
     if not match:
         return None
-    token = next(g for g in match.groups() if g is not None).strip()
-    if not token or (match.group(3) and _unit_for(kind, token) is None and not match.group(1)):
-        # "time_stamp" or "thrust value": a trailing word, not a unit
+    token = (match.group(1) or match.group(2) or match.group(4) or "").strip()
+    if not token:
+        return None
+    if match.group(4) and _unit_for(kind, token) is None and (match.group(3) != "_" or token.lower() in _NOT_UNITS):
+        # "thrust value" or "time_stamp": a trailing word, not a unit ("thrust_ozf" names a unit: read or refused)
         return None
     unit = _unit_for(kind, token)
     if unit is None:
@@ -154,14 +169,7 @@ def read_csv_curve(
         Unreadable text, no data, a ragged or non-numeric row, conflicting units.
     """
     source = str(path)
-    size = os.stat(path).st_size
-    if size > max_bytes:
-        raise CsvFormatError(source, f"file is {size} bytes, above the {max_bytes}-byte limit")
-    try:
-        with open(path, encoding="utf-8-sig") as handle:
-            text = handle.read()
-    except UnicodeDecodeError as exc:
-        raise CsvFormatError(source, f"not UTF-8 text (byte {exc.start}); save the file as UTF-8 CSV") from exc
+    text = read_text_bounded(path, max_bytes, error=CsvFormatError, hint="save the file as UTF-8 CSV")
     rows: list[tuple[int, str]] = []
     for number, raw in enumerate(text.splitlines(), start=1):
         row = raw.split("#", 1)[0].strip()
@@ -193,7 +201,9 @@ def read_csv_curve(
                                  line=header_line)
         header_units = [_header_unit(header[time_col], "time", source, header_line),
                         _header_unit(header[thrust_col], "force", source, header_line)]
-    units = []
+        if header_units[1] is None and _COUNT_NAMES.match(header[thrust_col]):
+            header_units[1] = "counts"  # a column named "counts" is raw counts, never newtons
+    units, assumed = [], []
     for given, from_header, kind, default in ((time_unit, header_units[0], "time", "s"),
                                               (thrust_unit, header_units[1], "force", "N")):
         if given is not None:
@@ -209,6 +219,8 @@ def read_csv_curve(
             units.append("counts")
         else:
             units.append(from_header or default)
+            if from_header is None:
+                assumed.append("time" if kind == "time" else "thrust")
     if not rows:
         raise CsvFormatError(source, "a header but no data rows")
     width = len(header) if header is not None else len(_split(rows[0][1], delimiter))
@@ -233,7 +245,7 @@ def read_csv_curve(
         lines.append(number)
     time_s = np.array([to_si(t, units[0], "time") for t in times])
     thrust_n = _thrust_to_newtons(np.array(thrusts, dtype=float), units[1], scale, offset)
-    return CsvCurve(time_s, thrust_n, tuple(lines), units[0], units[1], header)
+    return CsvCurve(time_s, thrust_n, tuple(lines), units[0], units[1], header, tuple(assumed))
 
 
 def record_from_csv(
@@ -242,10 +254,12 @@ def record_from_csv(
     *,
     time_unit: str | None = None,
     thrust_unit: str | None = None,
+    notes: list[str] | None = None,
 ) -> MotorRecord:
     """Build a motor record from a CSV curve and the metadata the file lacks.
 
-    Without a designation the file's stem stands in for it.
+    Without a designation the file's stem stands in for it. What was assumed about units
+    (:meth:`CsvCurve.assumption`) is appended to ``notes`` when given.
 
     Raises
     ------
@@ -254,6 +268,8 @@ def record_from_csv(
     """
     meta = metadata or CurveMetadata()
     curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit)
+    if notes is not None and curve.assumption():
+        notes.append(curve.assumption())
     try:
         return meta.record(curve.time_s, curve.thrust_n,
                            default_designation=os.path.splitext(os.path.basename(path))[0])

@@ -32,11 +32,12 @@ from lxml import etree
 
 from . import schema
 from ..motor.record import FORMER_PROVENANCE_KINDS, FiringSpread, MotorRecord, Provenance
-from ..errors import CurveDataError, CurveSyntaxError, Problem, SchemaValidationError
-from .fsio import write_atomic
+from ..errors import CurveDataError, CurveError, CurveSyntaxError, MotorlibError, Problem, SchemaValidationError
+from .fsio import read_bounded, write_atomic
 from ..units import to_si
 
-__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "record_from_bytes", "record_to_bytes", "write_record"]
+__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "readable_record_bytes", "record_from_bytes",
+           "record_to_bytes", "write_record"]
 
 FORMAT_VERSION: Final = "1.1"  # written always, whichever 1.1 features a record uses (FORMAT.md)
 DEFAULT_MAX_BYTES: Final = 8 * 1024 * 1024  # a 100 000-sample curve is about 3 MB; anything far larger is not a curve
@@ -63,22 +64,35 @@ def read_record(path: str | os.PathLike[str], *, max_bytes: int = DEFAULT_MAX_BY
         Not a motor record of format version 1.x.
     CurveDataError
         Valid XML whose samples or hardware break a record invariant.
-    OSError
-        The file cannot be read.
+    CurveSyntaxError
+        Also when the file cannot be read, is not a regular file (a pipe, a device) or is too large.
     """
-    source = str(path)
-    size = os.stat(path).st_size
-    if size > max_bytes:
-        raise CurveSyntaxError(source, f"file is {size} bytes, above the {max_bytes}-byte limit for one curve")
-    with open(path, "rb") as handle:
-        data = handle.read(max_bytes + 1)
-    return record_from_bytes(data, source, max_bytes=max_bytes)
+    return record_from_bytes(read_bounded(path, max_bytes, error=CurveSyntaxError), str(path), max_bytes=max_bytes)
 
 
 def record_from_bytes(data: bytes, source: str = "<bytes>", *, max_bytes: int = DEFAULT_MAX_BYTES) -> MotorRecord:
-    """Parse a motor record from the bytes of an XML document (see :func:`read_record`)."""
+    """Parse a motor record from the bytes of an XML document (see :func:`read_record`).
+
+    Motor records are UTF-8 (FORMAT.md): a document in any other encoding is refused before parsing, so
+    that the refusal of declarations below sees the text as it is (a UTF-16 ``<!DOCTYPE`` has no ASCII bytes).
+    Any value the reader cannot convert becomes a :class:`~motorlib.errors.CurveError` naming the element.
+    """
+    root = _valid_tree(data, source, max_bytes)
+    try:
+        return _record_from_tree(root, source)
+    except MotorlibError:
+        raise
+    except (ValueError, TypeError, ArithmeticError) as exc:  # a value the schema allows and Python cannot take
+        raise SchemaValidationError(source, f"a value cannot be read: {exc}") from None
+
+
+def _valid_tree(data: bytes, source: str, max_bytes: int) -> etree._Element:
+    """The root of a well-formed, safe, schema-valid document (the checks of :func:`record_from_bytes`)."""
     if len(data) > max_bytes:
         raise CurveSyntaxError(source, f"document is above the {max_bytes}-byte limit for one curve")
+    if data[:4] in (b"\xff\xfe\x00\x00", b"\x00\x00\xfe\xff") or data[:2] in (b"\xff\xfe", b"\xfe\xff") \
+            or b"\x00" in data[:1024]:
+        raise CurveSyntaxError(source, "not UTF-8: motor records are UTF-8 text (save the file as UTF-8)", line=1)
     declaration = _DECLARATION.search(data)
     if declaration:
         line = data.count(b"\n", 0, declaration.start()) + 1
@@ -90,9 +104,12 @@ def record_from_bytes(data: bytes, source: str = "<bytes>", *, max_bytes: int = 
     except etree.XMLSyntaxError as exc:
         line = exc.lineno if exc.lineno else None
         raise CurveSyntaxError(source, f"not well-formed XML: {exc.msg}", line=line) from exc
+    if root.getroottree().docinfo.doctype:  # belt and braces: an encoding lxml decodes that we did not foresee
+        raise CurveSyntaxError(source, "<!DOCTYPE> declarations are not allowed in motor records "
+                               "(refused for safety: no DTDs, no entities)", line=1)
     _check_root(root, source)
     schema.validate(root.getroottree(), source)
-    return _record_from_tree(root, source)
+    return root
 
 
 def _check_root(root: etree._Element, source: str) -> None:
@@ -123,6 +140,21 @@ def _quantity(parent: etree._Element | None, name: str, kind: str) -> float | No
     if element is None:
         return None
     return to_si(float(element.text), element.get("unit"), kind, field=name)
+
+
+_XS_DATE = re.compile(r"(\d{4}-\d{2}-\d{2})(?:Z|[+-]\d{2}:\d{2})?")
+
+
+def _xs_date(text: str, source: str, line: int | None) -> _dt.date:
+    """An xs:date such as ``2026-12-01`` or ``2026-12-01Z`` / ``2026-12-01+02:00``; a time zone is dropped."""
+    match = _XS_DATE.fullmatch(text.strip())
+    try:
+        if match is None:
+            raise ValueError(text)
+        return _dt.date.fromisoformat(match.group(1))
+    except ValueError:
+        raise SchemaValidationError(source, f"expected a date YYYY-MM-DD, got {text!r}",
+                                    field="/motor-record/provenance/@date", line=line) from None
 
 
 def _minor_version(root: etree._Element) -> int:
@@ -164,7 +196,7 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
         kind = provenance_el.get("kind")
         provenance = Provenance(
             kind=FORMER_PROVENANCE_KINDS.get(kind, kind),
-            date=_dt.date.fromisoformat(date_text) if date_text else None,
+            date=_xs_date(date_text, source, provenance_el.sourceline) if date_text else None,
             notes=_text(provenance_el, "notes") or "",
         )
     try:
@@ -311,6 +343,27 @@ def record_to_bytes(record: MotorRecord) -> bytes:
     return etree.tostring(root, xml_declaration=True, encoding="UTF-8", pretty_print=True)
 
 
+def readable_record_bytes(record: MotorRecord, source: str = "<record>") -> bytes:
+    """:func:`record_to_bytes`, checked with the reader's own limits before anything is written.
+
+    Whatever motorlib writes, it reads back: the document goes through the reader's size cap, safety checks
+    and XSD (a name over the schema's length, a curve too long for the cap) here, so a file the reader would
+    refuse is never written.
+
+    Raises
+    ------
+    CurveError
+        Naming ``source``: what the reader would refuse.
+    """
+    data = record_to_bytes(record)
+    try:
+        _valid_tree(data, source, DEFAULT_MAX_BYTES)
+    except CurveError as exc:
+        raise type(exc)(source, f"cannot be written as a motor record that motorlib reads back: {exc.problem}",
+                        field=exc.field) from None
+    return data
+
+
 def write_record(record: MotorRecord, path: str | os.PathLike[str], *, overwrite: bool = True) -> Path:
-    """Write ``record`` to ``path`` atomically (temporary file, fsync, rename)."""
-    return write_atomic(path, record_to_bytes(record), overwrite=overwrite)
+    """Write ``record`` to ``path`` atomically (temporary file, fsync, rename); see :func:`readable_record_bytes`."""
+    return write_atomic(path, readable_record_bytes(record, str(path)), overwrite=overwrite)

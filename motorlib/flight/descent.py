@@ -40,7 +40,6 @@ numpy only.
 
 from __future__ import annotations
 
-import math
 from typing import Final, NamedTuple
 
 import numpy as np

@@ -439,14 +439,19 @@ def _crossing(t0: float, f0: float, t1: float, f1: float, level: float) -> float
 
 
 MIN_SAMPLES: Final = 2  # fewer cannot describe any curve; check.py warns below a larger count
+# Bounds that keep every derived figure (impulse, mass flow, grids) finite and every file readable: the largest
+# solid motors ever fired give about 16 MN and burn about two minutes; these limits are far above both
+# (common practice, no published source), and their product (1e13 N·s) is far below the float64 range.
+MAX_THRUST_N: Final = 1e8
+MAX_TIME_S: Final = 1e5
 
 
 def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     """Every broken invariant of a sampled curve, with the first offending sample index.
 
     Codes: ``shape-mismatch``, ``too-few-samples``, ``time-not-finite``,
-    ``time-negative``, ``time-not-increasing``, ``thrust-not-finite``,
-    ``thrust-negative``, ``no-thrust``.
+    ``time-negative``, ``time-too-large``, ``time-not-increasing``, ``thrust-not-finite``,
+    ``thrust-negative``, ``thrust-too-large``, ``no-thrust`` (limits: :data:`MAX_TIME_S`, :data:`MAX_THRUST_N`).
     """
     problems: list[Problem] = []
     if time_s.ndim != 1 or thrust_n.ndim != 1 or time_s.shape != thrust_n.shape:
@@ -464,6 +469,9 @@ def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     elif (i := first(time_s < 0.0)) is not None:
         problems.append(Problem("time-negative", "time_s",
                                 f"sample {i + 1}: time {float(time_s[i])!r} s is before ignition (t < 0)", i))
+    elif (i := first(time_s > MAX_TIME_S)) is not None:
+        problems.append(Problem("time-too-large", "time_s", f"sample {i + 1}: time {float(time_s[i])!r} s is "
+                                f"above {MAX_TIME_S:g} s, far beyond any motor's burn (a wrong timestamp?)", i))
     if (i := first(~(np.diff(time_s) > 0.0))) is not None and np.all(np.isfinite(time_s)):
         problems.append(Problem(
             "time-not-increasing", "time_s",
@@ -475,6 +483,9 @@ def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     elif (i := first(thrust_n < 0.0)) is not None:
         problems.append(Problem("thrust-negative", "thrust_n",
                                 f"sample {i + 1}: thrust {float(thrust_n[i])!r} N is negative (tare the load cell)", i))
+    elif (i := first(thrust_n > MAX_THRUST_N)) is not None:
+        problems.append(Problem("thrust-too-large", "thrust_n", f"sample {i + 1}: thrust {float(thrust_n[i])!r} N "
+                                f"is above {MAX_THRUST_N:g} N, far beyond any motor (a wrong unit or scale?)", i))
     elif not np.any(thrust_n > 0.0):
         problems.append(Problem("no-thrust", "thrust_n", "every thrust sample is zero"))
     return problems

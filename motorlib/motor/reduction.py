@@ -165,7 +165,7 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     Raises
     ------
     CurveDataError
-        Codes ``log-too-short``, ``log-time-backwards``, ``log-no-baseline``, ``log-no-ignition``, with rows.
+        Codes ``log-too-short``, ``log-time-backwards``, ``log-time-gap``, ``log-no-baseline``, ``log-no-ignition``, with rows.
     """
     s = settings or ReductionSettings()
     t = np.asarray(time_s, dtype=float)
@@ -196,6 +196,9 @@ def reduce_log(time_s: np.ndarray, force_n: np.ndarray, settings: ReductionSetti
     )
 
 
+MAX_GRID_PER_ROW = 20  # grid points per log row at most: resampling fills gaps, it does not invent a log
+
+
 def _check_rows(t: np.ndarray, f: np.ndarray, rows: np.ndarray, min_samples: int, source: str) -> None:
     """Step 1: enough rows, all finite, time strictly increasing; raise CurveDataError naming the rows otherwise."""
     if t.size < min_samples:
@@ -210,6 +213,16 @@ def _check_rows(t: np.ndarray, f: np.ndarray, rows: np.ndarray, min_samples: int
         where = np.concatenate(([False], backwards))
         raise CurveDataError(source, [Problem("log-time-backwards", "time_s",
                                               f"time does not increase at {_rows(rows, where)}", line=int(rows[where][0]))])
+    # The uniform grid of step 3 has (span / median step) points: bound it by the rows, so that one wrong
+    # timestamp cannot ask for 1e8 points (gigabytes); a log with gaps this large needs its times fixed first.
+    steps = np.diff(t)
+    median_step = float(np.median(steps))
+    if (t[-1] - t[0]) / median_step > MAX_GRID_PER_ROW * t.size + 1000:
+        i = int(np.argmax(steps)) + 1
+        raise CurveDataError(source, [Problem(
+            "log-time-gap", "time_s", f"time jumps by {float(steps[i - 1]):.6g} s at row {int(rows[i])} "
+            f"({float(steps[i - 1]) / median_step:.3g} times the usual step of {median_step:.3g} s); "
+            "a wrong timestamp?", line=int(rows[i]))])
 
 
 def _firing_span(f: np.ndarray, source: str) -> float:
@@ -406,6 +419,10 @@ def _trim(grid: np.ndarray, filtered: np.ndarray, t_ign: float, t_out: float, ra
     if burn_t.size < 8:
         raise CurveDataError(source, [Problem("log-too-short", "samples",
                                               f"only {burn_t.size} samples during the burn at {rate:.3g} Hz; log faster")])
+    if not np.any(burn_f > 0.0):  # a lone spike the filter spread below zero: nothing is left to integrate
+        raise CurveDataError(source, [Problem("log-no-ignition", "samples",
+                                              "no thrust is left between ignition and burnout after filtering "
+                                              "(a single spike, not a firing?)")])
     return burn_t, burn_f
 
 

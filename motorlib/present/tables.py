@@ -309,7 +309,7 @@ def flight_card_table(card) -> Group:
     from .palette import VERDICT_MARKS
 
     styles = {"ok": "bold blue", "caution": "bold yellow", "fail": "bold red", "info": "dim"}
-    parts: list[object] = [Text.assemble((escape(card.title), "bold"), "  ",
+    parts: list[object] = [Text.assemble((card.title, "bold"), "  ",
                                          (VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result)]
     label_width = max((len(f.label) + 3 for p in card.phases for f in p.figures), default=10)
     for phase in card.phases:
@@ -486,7 +486,7 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
     A figure that breaks a rule is rounded so that it never reads as within the limit. From :data:`WIDE`
     columns on, the maker and the loaded mass are added.
     """
-    u, c_all = units, result.candidates
+    u = units
     shown = _shown(result, top, show_rejected)
     cond = result.conditions
     wide = width >= WIDE

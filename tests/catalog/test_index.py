@@ -59,4 +59,4 @@ def test_scan_finds_curve_files_below_the_root_and_skips_hidden_and_linked_folde
     found = scan_files(tmp_path)
     assert sorted(found) == ["a/b/two.xml", "a/one.xml", "top.xml"]
     st = (tmp_path / "a" / "one.xml").stat()
-    assert found["a/one.xml"] == (5, st.st_mtime_ns)
+    assert found["a/one.xml"] == (5, st.st_mtime_ns, st.st_ctime_ns)

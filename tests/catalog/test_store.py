@@ -166,13 +166,13 @@ def test_a_failed_batch_leaves_neither_files_nor_rows(tmp_path: Path, monkeypatc
     paths = _write_synthetic(tmp_path / "in", 5, seed=4)
     calls = []
 
-    def fail_on_the_fifth(record: MotorRecord) -> bytes:
+    def fail_on_the_fifth(record: MotorRecord, source: str = "") -> bytes:
         calls.append(record)
         if len(calls) == 5:
             raise OSError(28, "No space left on device")
         return record_to_bytes(record)
 
-    monkeypatch.setattr(store, "record_to_bytes", fail_on_the_fifth)
+    monkeypatch.setattr(store, "readable_record_bytes", fail_on_the_fifth)
     catalog = Catalog(tmp_path / "c")
     with pytest.raises(OSError, match="No space"):
         catalog.add_files(paths)

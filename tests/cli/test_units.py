@@ -102,8 +102,9 @@ def test_check_catalog_and_reduce_follow_the_switch(tmp_path: Path) -> None:
     assert code == 0 and " oz" in out
 
 
-def test_demo_in_imperial_units() -> None:
-    code, out = run("--units", "imperial", "demo", "--plot", os.devnull)
+def test_demo_in_imperial_units(tmp_path: Path) -> None:
+    # not os.devnull: before issue 13 the chart's atomic rename replaced /dev/null itself when run as root
+    code, out = run("--units", "imperial", "demo", "--plot", str(tmp_path / "demo.png"))
     assert code == 0, out
     assert "target 1300 ft" in out and "ft/s" in out and "Caution" in out
 
