@@ -278,7 +278,7 @@ def _build(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Seque
         total_impulse_ns=nominal.total_impulse_ns[rows] * impulse, total_mass_kg=total,
         propellant_mass_kg=np.minimum(nominal.propellant_mass_kg[rows] * impulse, 0.999 * total),
         burnout_s=nominal.burnout_s[rows] * burn, delays_s=nominal.delays_s[rows], has_mass=nominal.has_mass[rows])
-    return frames, pack, {"downwind_rad": downwind, "cg_shift_m": u0.cg_std_m * col["cg"]}
+    return frames, pack, {"downwind_rad": downwind, "cg_shift_m": u0.cg_std_m * col["cg"], "wind_speed_m_s": wind}
 
 
 def _copy_with(record: Any, **values: Any) -> Any:
@@ -366,7 +366,7 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
         "deploy_speed_m_s": deploy_speed, "landing_time_s": res.landing_time_s,
         "landing_speed_m_s": res.landing_speed_m_s, "flight_duration_s": res.landing_time_s - res.liftoff_time_s,
         "landing_east_m": res.drift_m * np.sin(downwind), "landing_north_m": res.drift_m * np.cos(downwind),
-        "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach,
+        "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach, "wind_speed_m_s": extra["wind_speed_m_s"],
     }
 
 

@@ -55,6 +55,16 @@ class LaunchRules:
     field_radius_m: float | None = None
     max_constant_cd_mach: float = 0.8
 
+    def rail_exit_needed_m_s(self, wind_speed_m_s: float = 0.0) -> float:
+        """The rail exit speed a flight needs [m/s]: the minimum, or the wind ratio times the wind if higher.
+
+        One rule for ``fly``'s warnings and ``match``'s reasons.
+
+        >>> LaunchRules().rail_exit_needed_m_s(5.0)
+        20.0
+        """
+        return max(self.min_rail_exit_speed_m_s, self.rail_exit_wind_ratio * max(0.0, float(wind_speed_m_s)))
+
     def deployment_limit_m_s(self, kind: str) -> float:
         """The deployment-speed limit of a device kind [m/s] (that of a parachute for a kind not listed)."""
         limits = dict(self.max_deployment_speed_m_s)

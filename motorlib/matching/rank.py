@@ -442,8 +442,11 @@ def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: floa
         return [(_STATUS_CODES.get(int(results.status[i]), "not flown"), results.message(i))]
     out = []
     exit_speed = results.rail_exit_speed_m_s[i]
-    if exit_speed < r.min_rail_exit_speed_m_s:
-        out.append(("rail", f"rail exit too slow: {exit_speed:.1f} m/s, below {r.min_rail_exit_speed_m_s:g} m/s"))
+    wind = recovered.frame.launch.wind_speed_m_s if recovered is not None else 0.0
+    need = r.rail_exit_needed_m_s(wind)
+    if exit_speed < need:
+        why = "" if need == r.min_rail_exit_speed_m_s else f" ({r.rail_exit_wind_ratio:g} x the {wind:g} m/s wind)"
+        out.append(("rail", f"rail exit too slow: {exit_speed:.1f} m/s, below {need:g} m/s{why}"))
     ttw = results.liftoff_thrust_to_weight[i]
     if ttw < r.min_liftoff_thrust_to_weight:
         out.append(("T/W", f"thrust-to-weight too low: {ttw:.1f}, below {r.min_liftoff_thrust_to_weight:g}"))
@@ -623,6 +626,8 @@ def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
     return {
         "target_m": s.target_m, "ceiling_m": s.ceiling_m, "max_class": s.max_class,
         "min_rail_exit_speed_m_s": s.rules.min_rail_exit_speed_m_s,
+        "rail_exit_needed_m_s": s.rules.rail_exit_needed_m_s(launch.wind_speed_m_s),
+        "wind_m_s": launch.wind_speed_m_s, "rail_exit_wind_ratio": s.rules.rail_exit_wind_ratio,
         "min_liftoff_thrust_to_weight": s.rules.min_liftoff_thrust_to_weight,
         "delay_slack_s": s.delay_slack_s, "max_ejection_speed_m_s": s.rules.max_ejection_speed_m_s,
         "max_landing_speed_m_s": s.rules.max_landing_speed_m_s, "allow_smaller_motors": s.allow_smaller_motors,

@@ -84,7 +84,9 @@ def _success(flights: dict[str, np.ndarray], frame: Airframe, match: MatchSettin
         return flown & bad  # comparisons with NaN are False: a missing figure fails only where stated
 
     out = {"flight": ~flown,
-           "rail": fails(~(flights["rail_exit_speed_m_s"] >= r.min_rail_exit_speed_m_s)),
+           # the rule fly and match apply: the minimum, or the wind ratio times each sample's wind if higher
+           "rail": fails(~(flights["rail_exit_speed_m_s"] >= np.maximum(
+               r.min_rail_exit_speed_m_s, r.rail_exit_wind_ratio * flights["wind_speed_m_s"]))),
            "T/W": fails(~(flights["liftoff_thrust_to_weight"] >= r.min_liftoff_thrust_to_weight))}
     if match.ceiling_m is not None:
         out["ceiling"] = fails(flights["apogee_m"] > match.ceiling_m)

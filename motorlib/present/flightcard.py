@@ -173,7 +173,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
 
 def _pad(s: dict[str, Any], r: Any, u: str, wind: float, warnings: list[tuple[str, str]]) -> Phase:
     exit_speed = s.get("rail_exit_speed_m_s")
-    need = max(r.min_rail_exit_speed_m_s, r.rail_exit_wind_ratio * wind)
+    need = r.rail_exit_needed_m_s(wind)
     figures = [
         CardFigure("liftoff mass", quantity(s.get("liftoff_mass_kg"), "mass", u)),
         CardFigure("thrust-to-weight", "-" if s.get("liftoff_thrust_to_weight") is None

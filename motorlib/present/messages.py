@@ -77,8 +77,12 @@ def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any]
     """One failed rule in display units, from the candidate's figures (``prefix``: ``ballast_`` after ballast)."""
     get = lambda key: c.get(prefix + key)  # noqa: E731
     if code == "rail" and get("rail_exit_speed_m_s") is not None:
-        v, lim = u.beyond(get("rail_exit_speed_m_s"), cond["min_rail_exit_speed_m_s"], "speed", above=False)
-        return f"rail exit too slow: {v}, below {lim}"
+        need = cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"])
+        v, lim = u.beyond(get("rail_exit_speed_m_s"), need, "speed", above=False)
+        wind = cond.get("wind_m_s") or 0.0
+        why = f" ({need / wind:g} x the {u.quantity(wind, 'speed')} wind)" if need > cond["min_rail_exit_speed_m_s"] \
+            and wind > 0 else ""
+        return f"rail exit too slow: {v}, below {lim}{why}"
     if code == "T/W" and get("liftoff_thrust_to_weight") is not None:
         v, lim = u.beyond(get("liftoff_thrust_to_weight"), cond["min_liftoff_thrust_to_weight"], "ratio", above=False)
         return f"thrust-to-weight too low: {v}, below {lim}"

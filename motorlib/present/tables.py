@@ -520,7 +520,8 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
                 f"{c['chosen_delay_s']:g}{'d' if c['delay_adjusted'] else ''}/{c['optimal_delay_s']:.1f}")
             cells = [
                 _cell(u, c["apogee_m"], cond.get("ceiling_m"), "length", True, "ceiling" in codes),
-                _cell(u, c["rail_exit_speed_m_s"], cond["min_rail_exit_speed_m_s"], "speed", False, "rail" in codes),
+                _cell(u, c["rail_exit_speed_m_s"], cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
+                      False, "rail" in codes),
                 _cell(u, c["liftoff_thrust_to_weight"], cond["min_liftoff_thrust_to_weight"], "ratio", False,
                       "T/W" in codes),
                 delay,
@@ -645,7 +646,10 @@ def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = Non
         text.append(f"{drag}; {air}; wind {wind}; rail {rail}; recovery {c['recovery']}. ")
     else:
         text.append(f"{c['drag']}; {c['atmosphere']}; wind {c['wind']}; rail {c['rail']}; recovery {c['recovery']}. ")
-    text.append(f"Rules: rail exit >= {u.limit(c['min_rail_exit_speed_m_s'], 'speed')}, liftoff T/W >= "
+    need = c.get("rail_exit_needed_m_s", c["min_rail_exit_speed_m_s"])
+    rail_rule = u.limit(c["min_rail_exit_speed_m_s"], "speed") + (
+        f" and {c.get('rail_exit_wind_ratio', 4):g} x the wind: {u.limit(need, 'speed')}" if need > c["min_rail_exit_speed_m_s"] else "")
+    text.append(f"Rules: rail exit >= {rail_rule}, liftoff T/W >= "
                 f"{u.limit(c['min_liftoff_thrust_to_weight'], 'ratio')}, delay within {u.limit(c['delay_slack_s'], 'time')} "
                 f"of optimal, ejection <= {u.limit(c['max_ejection_speed_m_s'], 'speed')}, descent <= "
                 f"{u.limit(c['max_landing_speed_m_s'], 'speed')}"

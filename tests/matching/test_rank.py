@@ -311,3 +311,25 @@ def test_match_recovery_options_fail_motors_with_the_reason() -> None:
     assert tight["conditions"]["field_radius_m"] == 1.0
     bad = runner.invoke(main, [*args, "--max-deploy-speed", "kite=3m/s"])
     assert bad.exit_code == 2 and "KIND=SPEED" in bad.output
+
+
+def test_match_applies_the_rail_exit_wind_rule_that_fly_warns_about(tmp_path) -> None:
+    # One rule book: in a 5 m/s wind the rail exit must reach 4 x 5 = 20 m/s ("Launching Safely in the 21st
+    # Century" (2005) 7.4.3, as LaunchRules cites it). fly warned about E25-7 leaving at about 16 m/s while
+    # match passed it.
+    windy = tmp_path / "windy.toml"
+    windy.write_text(AIRFRAME.read_text().replace('wind_speed = "3 m/s"', 'wind_speed = "5 m/s"'))
+    assert 'wind_speed = "5 m/s"' in windy.read_text()
+    runner = CliRunner()
+    out = runner.invoke(main, ["match", str(windy), "--catalog", str(SAMPLE_DIR), "--target", "400",
+                               "--ceiling", "600", "--allow-smaller-motors", "--json"]).output
+    data = json.loads(out)
+    assert data["conditions"]["rail_exit_needed_m_s"] == pytest.approx(20.0)
+    for c in data["candidates"]:
+        speed = c["rail_exit_speed_m_s"]
+        if speed is not None and 15.0 <= speed < 20.0:
+            assert "rail" in c["reason_codes"] and c["verdict"] != "pass", c["designation"]
+    e25 = next(c for c in data["candidates"] if c["designation"] == "E25-7")
+    assert e25["rail_exit_speed_m_s"] < 20.0 and "rail" in e25["reason_codes"]
+    fly = runner.invoke(main, ["fly", str(windy), "--motor", "E25-7", "--json"]).output
+    assert "rail-exit-slow-for-wind" in [w["code"] for w in json.loads(fly)["warnings"]]
