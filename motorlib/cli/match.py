@@ -139,6 +139,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
                                     for code, text in zip(c["note_codes"], c["notes"]))}
                 for c in result.candidates]
         click.echo(rows_csv(rows, columns, units), nl=False)
+        click.echo(f"Caution: {_EPILOG}", err=True)  # beside the data, never inside it
         return
     from ..present import tables as render
 

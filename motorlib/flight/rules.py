@@ -107,7 +107,7 @@ def flight_warnings(flight: dict[str, object], rules: LaunchRules | None = None,
     landing = flight.get("landing_descent_rate_m_s")
     if landing is not None and float(landing) > r.max_landing_speed_m_s:
         out.append(("descent-fast", f"descent rate at landing {float(landing):.1f} m/s is above {r.max_landing_speed_m_s:g} m/s: "
-                                    "use a larger parachute"))
+                                    "use a larger recovery device"))
     mach = flight.get("max_mach")
     if constant_drag and mach is not None and float(mach) > r.max_constant_cd_mach:  # type: ignore[arg-type]
         out.append(("constant-cd-past-mach", f"the rocket reaches Mach {float(mach):.2f} with a constant drag "  # type: ignore[arg-type]

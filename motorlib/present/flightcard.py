@@ -208,7 +208,8 @@ def _drag_figure(drag: dict[str, Any]) -> CardFigure:
     """Where the drag came from, with the shape's estimate beside a given Cd."""
     mach = f"Mach {float(drag['mach']):g}"
     if drag.get("drag_source") == "estimated":
-        return CardFigure("drag", f"estimated from the shape, Cd {float(drag['cd_flown']):.2f} at {mach}")
+        return CardFigure("drag", f"estimated from the shape, Cd {float(drag['cd_flown']):.2f} at {mach} "
+                                  "(an estimate: expect 10-20 % either way; calibrate it with flown apogees)")
     text = f"given, Cd {float(drag['cd_flown']):.2f} at {mach}"
     if drag.get("cd_estimated") is not None:
         text += f" (shape estimate {float(drag['cd_estimated']):.2f})"

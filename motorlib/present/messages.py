@@ -114,5 +114,5 @@ def warning_message(code: str, message: str, s: dict[str, Any], rules: Any, u: D
         return f"the rocket moves at {v} at ejection (above {lim}): risk of damage or a torn canopy"
     if code == "descent-fast":
         v, lim = u.beyond(s["landing_descent_rate_m_s"], rules.max_landing_speed_m_s, "speed", above=True)
-        return f"descent rate at landing {v} is above {lim}: use a larger parachute"
+        return f"descent rate at landing {v} is above {lim}: use a larger recovery device"
     return message

@@ -655,7 +655,8 @@ def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = Non
                 f"{u.limit(c['max_landing_speed_m_s'], 'speed')}"
                 + (f", ceiling {u.given(c['ceiling_m'], 'length')}" if c.get("ceiling_m") else "")
                 + (f", classes up to {c['max_class']}" if c.get("max_class") else "")
-                + (f", stability >= {c['min_stability_cal']:g} cal" if c.get("min_stability_cal") is not None else "")
+                + (f", stability >= {c['min_stability_cal']:g} cal" if c.get("min_stability_cal") is not None
+                   else "; stability not checked (the airframe file has no [geometry])")
                 + ". ")
     text.append("Delay column: chosen/optimal; 'd' = drilled (adjustable motor).", style="dim")
     return text

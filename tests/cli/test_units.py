@@ -273,3 +273,16 @@ def test_the_template_geometry_block_loads_when_uncommented(tmp_path: Path, syst
 def test_signs_that_make_no_sense_are_refused_with_the_option_name(args: tuple[str, ...], option: str) -> None:
     code, out = run(*args)
     assert code == 2 and option in out and "_m" not in out and "_kg" not in out, out
+
+
+def test_match_csv_carries_the_caution_on_stderr_and_says_when_stability_is_not_checked() -> None:
+    from click.testing import CliRunner
+
+    from motorlib.cli.main import main
+
+    result = CliRunner().invoke(main, ["match", QUIBBLE, "--target", "400", "--csv"])
+    assert result.exit_code == 0
+    assert "Caution" in result.stderr and "Caution" not in result.stdout  # the CSV stays clean data
+    plain = str(SAMPLE_DIR / "airframes" / "fennelwick-24.toml")  # no [geometry]
+    code, out = run("match", plain, "--target", "200", "--min-stability", "2", "--allow-smaller-motors")
+    assert code == 0 and "stability not checked" in " ".join(out.split())
