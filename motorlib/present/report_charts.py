@@ -19,6 +19,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
+from .messages import match_count
 from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TINT, PAPER, RULE
 from .report import ChartBlock
 from .svgcharts import SvgChart, thin
@@ -170,8 +171,7 @@ def match_chart(result: Any, key: str = "match") -> ChartBlock | None:
     top = max([c["apogee_m"] for c in flown] + [ceiling or 0.0, (target or 0.0) * (1 + tolerance)]) * 1.12
     order = "by closeness to the target" if target else "by apogee"
     chart = SvgChart(title=f"Apogee per motor, in rank order (passing first, then {order})",
-                     description=(f"{sum(c['passes'] for c in flown)} of {len(flown)} flown motors pass every rule "
-                                  "on target. "
+                     description=(f"{match_count(result)} ({len(flown)} flown). "
                                   + (f"Target {target:.0f} m. " if target else "") + (f"Ceiling {ceiling:.0f} m. " if ceiling else "")
                                   + "; ".join(f"{c['designation']} {c['apogee_m']:.0f} m {c['verdict'] if c['verdict'] != 'fail' else 'fail: ' + ', '.join(dict.fromkeys(c['reason_codes']))}"
                                               for c in flown[:12]) + ("; ..." if len(flown) > 12 else ".")),

@@ -242,7 +242,8 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
                      quantity(cand["rail_exit_speed_m_s"], "speed", u),
                      "-" if cand["liftoff_thrust_to_weight"] is None else f"{cand['liftoff_thrust_to_weight']:.1f}",
                      delay, quantity(cand["ejection_speed_m_s"], "speed", u),
-                     "; ".join([cand["verdict"]] + cand["reasons"] + [f"note: {n}" for n in cand["notes"]])))
+                     "; ".join([cand["verdict"]] + cand["reasons"] + [f"note: {n}" for n in cand["notes"]]
+                               + _extra_mass_words(cand, u))))
         marks.append(_VERDICT_MARK.get(cand["verdict"], "fail"))
     ranking = TableBlock(
         f"Ranking: {match_count(result)}",
@@ -257,7 +258,9 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
          f"{quantity(c['target_m'], 'length', u)} ±{c.get('target_tolerance', 0.05) * 100:g} %"),
         ("ceiling", "-" if not c.get("ceiling_m") else quantity(c["ceiling_m"], "length", u)),
         ("class limit", c.get("max_class") or "none"),
-        ("rail exit", f">= {quantity(c['min_rail_exit_speed_m_s'], 'speed', u)}"),
+        ("rail exit", f">= {quantity(c.get('rail_exit_needed_m_s', c['min_rail_exit_speed_m_s']), 'speed', u)}"
+                      + ("" if c.get("rail_exit_needed_m_s", 0.0) <= c["min_rail_exit_speed_m_s"]
+                         else f" ({c.get('rail_exit_wind_ratio', 4):g} x the wind)")),
         ("thrust-to-weight", f">= {c['min_liftoff_thrust_to_weight']:g} at liftoff"),
         ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
         ("ejection speed", f"<= {quantity(c['max_ejection_speed_m_s'], 'speed', u)}"),
@@ -275,11 +278,29 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
 
 
 def _stability_rule(conditions: dict[str, Any]) -> tuple[tuple[str, str], ...]:
-    """The stability rule of a ranking, when the airframe has a shape to check it with."""
+    """The stability rule of a ranking, or that it was not checked (no shape to check it with)."""
     need = conditions.get("min_stability_cal")
     if need is None:
-        return ()
+        return (("stability", "not checked: the airframe file has no [geometry]"),)
     return (("stability", f">= {float(need):g} calibers over the powered flight"),)
+
+
+def _extra_mass_words(cand: dict[str, Any], u: str) -> list[str]:
+    """What added mass does for a candidate: the ballast solved for the target, the nose weight for stability."""
+    out = []
+    if cand.get("ballast_kg") is not None:
+        later = cand.get("ballast_reasons") or []
+        out.append(f"with {quantity(cand['ballast_kg'], 'mass', u)} of ballast: apogee "
+                   f"{quantity(cand.get('ballast_apogee_m'), 'length', u)}, delay "
+                   + ("-" if cand.get("ballast_chosen_delay_s") is None else f"{cand['ballast_chosen_delay_s']:g} s")
+                   + (", every rule met" if not later else " but " + ", ".join(later)))
+    if cand.get("nose_weight_for_stability_kg"):
+        later = cand.get("nose_weight_reasons") or []
+        out.append(f"with {quantity(cand['nose_weight_for_stability_kg'], 'mass', u)} of nose weight: stability "
+                   + ("-" if cand.get("nose_weight_stability_margin_cal") is None
+                      else f"{cand['nose_weight_stability_margin_cal']:.2f} cal")
+                   + (", every rule met" if not later else " but " + ", ".join(later)))
+    return out
 
 
 # ----------------------------------------------------------------------------- reduce
