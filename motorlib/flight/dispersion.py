@@ -20,12 +20,12 @@ A drag scale and the pad-density ratio both act on the body's drag area, so they
 are flown as a scaled reference area (A·k, the diameter times √k); this is exact
 for drag, which is the only use of the reference area in the point-mass model.
 
-Phase-1 simplifications (2-D integrator), stated so that results are read with them:
+Simplifications, stated so that results are read with them:
 
-* the flight stays in the vertical plane of the wind; the landing point is the
-  downrange drift placed along the downwind azimuth (east = x·sin ψ, north = x·cos ψ);
-* the rail tilt enters as its component in that plane, tan θ' = tan θ·cos(ψ_rail − ψ_wind),
-  clipped at 0 (the 2-D model cannot tilt a rail upwind); the cross-wind tilt is dropped;
+* every sample is a 3-D point-mass flight with its own wind direction and rail azimuth and tilt (a rail
+  across or into the wind carries the landing point off the downwind line); the wind's direction is
+  sampled once per flight, the same at every height (a measured profile is flown as the file gives it,
+  unscaled);
 * the pad temperature acts on the density of the body drag only (not on the speed of sound
   nor on the device's drag): at ±3 K the density aloft differs from the pad ratio by
   under 0.1 % per 500 m;
@@ -152,10 +152,10 @@ class DispersionSettings:
         Sampled flights per motor (default 2,000).
     seed : int
         Seed of the draws (any non-negative integer).
-    wind_from_rad : float
-        Azimuth the wind blows from, clockwise from north [rad]; the flight drifts the other way.
+    wind_from_rad : float or None
+        Azimuth the wind blows from, clockwise from north [rad]; None: the airframe file's.
     rail_azimuth_rad : float or None
-        Azimuth the rail leans towards [rad]; None: downwind, as the 2-D model assumes.
+        Azimuth the rail leans towards [rad]; None: the airframe file's, else downwind.
     ceiling_m, field_radius_m : float or None
         Altitude limit, and radius of the field around the pad [m].
     max_deploy_speed_m_s : float
@@ -167,7 +167,7 @@ class DispersionSettings:
 
     n_samples: int = 2000
     seed: int = 0
-    wind_from_rad: float = 0.0
+    wind_from_rad: float | None = None
     rail_azimuth_rad: float | None = None
     ceiling_m: float | None = None
     field_radius_m: float | None = None
@@ -224,8 +224,13 @@ def catalog_spread(records: Sequence[MotorRecord]) -> FiringSpread | None:
                         float(burn.mean()), float(burn.std(ddof=1)))
 
 
-def _downwind_rad(settings: DispersionSettings, z: np.ndarray, u: Uncertainty) -> np.ndarray:
-    return settings.wind_from_rad + math.pi + u.wind_direction_std_rad * z[:, VARIABLES.index("wind_direction")]
+def _nominal_wind_from_rad(settings: DispersionSettings, frame: Airframe) -> float:
+    return frame.launch.wind_direction_rad if settings.wind_from_rad is None else settings.wind_from_rad
+
+
+def _downwind_rad(settings: DispersionSettings, frame: Airframe, z: np.ndarray, u: Uncertainty) -> np.ndarray:
+    return (_nominal_wind_from_rad(settings, frame) + math.pi
+            + u.wind_direction_std_rad * z[:, VARIABLES.index("wind_direction")])
 
 
 def _build(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Sequence[Uncertainty],
@@ -254,18 +259,18 @@ def _build(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Seque
         area_factor, cd = density_ratio, frame.drag_coefficient * drag
     diameter = frame.diameter_m * np.sqrt(area_factor)
     wind = np.clip(frame.launch.wind_speed_m_s + u0.wind_speed_std_m_s * col["wind_speed"], 0.0, _MAX_WIND_M_S)
-    downwind = _downwind_rad(settings, z, u0)
-    rail_az_nominal = (settings.wind_from_rad + math.pi if settings.rail_azimuth_rad is None
-                       else settings.rail_azimuth_rad)
+    downwind = _downwind_rad(settings, frame, z, u0)
+    rail_az_nominal = (settings.rail_azimuth_rad if settings.rail_azimuth_rad is not None
+                       else frame.launch.rail_azimuth_rad if frame.launch.rail_azimuth_rad is not None
+                       else _nominal_wind_from_rad(settings, frame) + math.pi)
     rail_az = rail_az_nominal + u0.rail_azimuth_std_rad * col["rail_azimuth"]
     tilt = np.clip(frame.launch.rail_angle_rad + u0.rail_angle_std_rad * col["rail_angle"], 0.0, _MAX_RAIL_RAD)
-    in_plane = np.clip(np.arctan(np.tan(tilt) * np.cos(rail_az - downwind)), 0.0, _MAX_RAIL_RAD)
     recoveries = _recoveries(frame.recovery, u0.deploy_altitude_std_m * col["deploy_altitude"], u0.deploy_altitude_std_m)
     base = replace(frame, geometry=None)  # the geometry's nose must match the diameter; the flight never reads it
     frames = [_copy_with(base, mass_kg=float(mass[i]), diameter_m=float(diameter[i]), drag_coefficient=float(cd[i]),
-                         # flown in the plane of the sampled wind (turned to east/north by ``downwind`` below)
-                         launch=_copy_with(frame.launch, rail_angle_rad=float(in_plane[i]), wind_speed_m_s=float(wind[i]),
-                                           wind_direction_rad=1.5 * math.pi, rail_azimuth_rad=None),
+                         launch=_copy_with(frame.launch, rail_angle_rad=float(tilt[i]), wind_speed_m_s=float(wind[i]),
+                                           wind_direction_rad=float((downwind[i] - math.pi) % (2.0 * math.pi)),
+                                           rail_azimuth_rad=float(rail_az[i] % (2.0 * math.pi))),
                          recovery=recoveries[i])
               for i in range(n)]
     # the motors: each record packed once, then its rows scaled per flight (time by b, thrust by i/b)
@@ -357,7 +362,6 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
             col = np.argmax(hit, axis=1)
             fired = hit.any(axis=1) & (res.ejection_altitude_m[rows, col] > 0.0)  # not after touchdown
             deploy_speed = np.where(fired, res.ejection_speed_m_s[rows, col], np.nan)
-    downwind = extra["downwind_rad"]
     return {
         "status": res.status, "apogee_m": res.apogee_m, "apogee_time_s": res.apogee_time_s,
         "liftoff_time_s": res.liftoff_time_s, "rail_exit_speed_m_s": res.rail_exit_speed_m_s,
@@ -365,7 +369,7 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
         "deploy_delay_s": (res.deploy_delay_s if wanted is None or descent else wanted),
         "deploy_speed_m_s": deploy_speed, "landing_time_s": res.landing_time_s,
         "landing_speed_m_s": res.landing_speed_m_s, "flight_duration_s": res.landing_time_s - res.liftoff_time_s,
-        "landing_east_m": res.drift_m * np.sin(downwind), "landing_north_m": res.drift_m * np.cos(downwind),
+        "landing_east_m": res.landing_east_m, "landing_north_m": res.landing_north_m,
         "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach, "wind_speed_m_s": extra["wind_speed_m_s"],
     }
 
@@ -563,6 +567,6 @@ def run_scatter(frame: Airframe, record: MotorRecord, uncertainty: Uncertainty, 
         "n_firings": used.n_firings, "total_impulse_relative_std": used.total_impulse_relative_std,
         "burn_time_relative_std": used.burn_time_relative_std,
         "source": "motor record" if record.firing_spread is not None else "catalog records"}
-    summary["landing_model"] = ("2-D: drift along the sampled downwind azimuth; cross-wind and cross-plane rail "
-                                "tilt not modelled")
+    summary["landing_model"] = ("3-D: each sample flown with its own wind direction, rail tilt and rail azimuth; "
+                                "the wind's direction is the same at every height")
     return summary, flights

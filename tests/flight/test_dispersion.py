@@ -54,9 +54,10 @@ def test_zero_uncertainty_gives_the_nominal_flight_exactly(quibble, f29) -> None
                        ("landing_time_s", nominal.landing_time_s), ("landing_speed_m_s", nominal.landing_speed_m_s),
                        ("rail_exit_speed_m_s", nominal.rail_exit_speed_m_s)):
         assert np.array_equal(flights[key], np.repeat(value, 6)), key
-    # wind from the north by default: the rocket drifts south by the nominal drift
-    assert np.array_equal(flights["landing_north_m"], np.repeat(-nominal.drift_m, 6))
-    assert np.all(np.abs(flights["landing_east_m"]) < 1e-9 * nominal.drift_m[0])
+    # the file's own wind direction by default: the samples land where the nominal 3-D flight lands
+    for key in ("landing_east_m", "landing_north_m"):
+        assert flights[key] == pytest.approx(np.repeat(getattr(nominal, key), 6), rel=1e-12, abs=1e-9), key
+    assert math.hypot(nominal.landing_east_m[0], nominal.landing_north_m[0]) == pytest.approx(nominal.drift_m[0])
 
 
 def test_zero_uncertainty_with_a_drag_table_and_altitude_deployment() -> None:
@@ -200,3 +201,23 @@ def test_altitude_deployments_do_not_depend_on_the_chunks() -> None:
     for key in runs[0]:
         np.testing.assert_allclose(runs[1][key], runs[0][key], rtol=1e-12, atol=1e-9, err_msg=key)
     assert np.unique(runs[0]["landing_time_s"]).size > 1
+
+
+def test_samples_fly_in_3d_so_a_rail_across_the_wind_lands_off_the_wind_line(quibble, f29) -> None:
+    # With no uncertainty every sample is the nominal flight, which must equal one 3-D simulate() of the same
+    # airframe: a rail leaning across the wind carries the landing point off the downwind line (issue 12 with
+    # the 3-D model of issue 10), and the file's own wind direction is used when none is given.
+    from dataclasses import replace
+
+    from motorlib.flight.dispersion import Uncertainty
+
+    zero = Uncertainty(**{name: 0.0 for name in Uncertainty.__dataclass_fields__})
+    launch = replace(quibble.launch, wind_direction_rad=math.radians(270.0), rail_azimuth_rad=math.radians(0.0),
+                     rail_angle_rad=math.radians(10.0))
+    frame = replace(quibble, launch=launch)
+    summary, flights = run_scatter(frame, f29, zero, DispersionSettings(n_samples=4, seed=1, wind_from_rad=None))
+    one = simulate(frame, [f29], deploy_delay_s=np.array([flights["deploy_delay_s"][0]]))
+    assert flights["landing_east_m"] == pytest.approx(np.full(4, one.landing_east_m[0]), rel=1e-9, abs=1e-9)
+    assert flights["landing_north_m"] == pytest.approx(np.full(4, one.landing_north_m[0]), rel=1e-9, abs=1e-9)
+    assert one.landing_north_m[0] > 5.0  # the rail leans north, across the west wind: the rocket lands north too
+    assert summary["landing_model"].startswith("3-D")
