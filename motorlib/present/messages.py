@@ -72,6 +72,16 @@ def note_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], 
     return message
 
 
+def small_mass(u: DisplayUnits, mass_kg: float) -> str:
+    """A mass that may be a fraction of a gram or an ounce, with the digits it needs (never "0.0 oz")."""
+    shown = u.quantity(mass_kg, "mass")
+    digits = 1
+    while mass_kg > 0 and not any(ch in "123456789" for ch in shown.split(" ")[0]) and digits < 4:
+        digits += 1
+        shown = u.quantity(mass_kg, "mass", decimals=digits)
+    return shown
+
+
 def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits,
                 prefix: str = "") -> str:
     """One failed rule in display units, from the candidate's figures (``prefix``: ``ballast_`` after ballast)."""
@@ -83,6 +93,12 @@ def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any]
         why = f" ({need / wind:g} x the {u.quantity(wind, 'speed')} wind)" if need > cond["min_rail_exit_speed_m_s"] \
             and wind > 0 else ""
         return f"rail exit too slow: {v}, below {lim}{why}"
+    if code == "stability" and get("stability_margin_cal") is not None and cond.get("min_stability_cal") is not None:
+        margin, need = get("stability_margin_cal"), cond["min_stability_cal"]
+        what = (f"unstable: stability margin {margin:.2f} cal, the CG lies behind the CP" if margin < 0.0
+                else f"stability margin {margin:.2f} cal, below {need:g} cal")
+        weight = get("nose_weight_for_stability_kg")
+        return what + ("" if weight is None else f"; {small_mass(u, weight)} of nose weight restores it")
     if code == "T/W" and get("liftoff_thrust_to_weight") is not None:
         v, lim = u.beyond(get("liftoff_thrust_to_weight"), cond["min_liftoff_thrust_to_weight"], "ratio", above=False)
         return f"thrust-to-weight too low: {v}, below {lim}"

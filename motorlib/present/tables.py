@@ -27,7 +27,7 @@ from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
 from .display import DisplayUnits
 from ..matching.verdicts import VERDICTS
-from .messages import match_count, note_text, reason_text, short_code, verdict_text, warning_message
+from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text, warning_message
 
 __all__ = ["WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
            "findings_text", "flight_table", "impulse_text", "match_table"]
@@ -620,7 +620,7 @@ def _nose_weight_line(text: Text, rank: int, c: dict[str, Any], cond: dict[str, 
     later = [reason_text(code, message, c, cond, u, "nose_weight_")
              for code, message in zip(c.get("nose_weight_reason_codes") or [], c.get("nose_weight_reasons") or [])]
     text.append(f"  #{rank} {c['designation']}: ", style="bold")
-    text.append(f"with {u.quantity(c['nose_weight_for_stability_kg'], 'mass')} of nose weight: stability "
+    text.append(f"with {small_mass(u, c['nose_weight_for_stability_kg'])} of nose weight: stability "
                 f"{c['nose_weight_stability_margin_cal']:.2f} cal, apogee {u.quantity(c['nose_weight_apogee_m'], 'length')}"
                 + (" but " + "; ".join(later) if later else ", every rule met") + "\n",
                 style="yellow" if later else "green")

@@ -286,3 +286,13 @@ def test_match_csv_carries_the_caution_on_stderr_and_says_when_stability_is_not_
     plain = str(SAMPLE_DIR / "airframes" / "fennelwick-24.toml")  # no [geometry]
     code, out = run("match", plain, "--target", "200", "--min-stability", "2", "--allow-smaller-motors")
     assert code == 0 and "stability not checked" in " ".join(out.split())
+
+
+def test_nose_weight_reasons_follow_the_units_and_never_read_zero() -> None:
+    from motorlib.present.messages import reason_text, small_mass
+
+    u = DisplayUnits("imperial")
+    assert small_mass(u, 0.0008) == "0.03 oz"  # 0.8 g = 0.0282 oz (avoirdupois ounce, exact in grams)
+    c = {"stability_margin_cal": 0.98, "nose_weight_for_stability_kg": 0.0327}
+    text = reason_text("stability", "library text in g", c, {"min_stability_cal": 1.0}, u)
+    assert text == "stability margin 0.98 cal, below 1 cal; 1.2 oz of nose weight restores it"
