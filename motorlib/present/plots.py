@@ -321,6 +321,32 @@ def _fins_polygons(geometry, diameter_m: float) -> list[np.ndarray]:
     return shapes
 
 
+def _drag_panel(ax_cd, airframe, given: dict) -> None:
+    """The lower panel of :func:`airframe_plot`: the estimated Cd against Mach, powered and coasting, beside
+    the drag the airframe file gives (held constant beyond a table's ends, as the flight uses it)."""
+    from ..flight.drag import drag_table_for
+
+    mach, powered, coasting = drag_table_for(airframe)
+    ax_cd.plot(mach, powered, color=_INK, linewidth=1.8, linestyle="-", label="estimate, motor burning")
+    ax_cd.plot(mach, coasting, color=_MID, linewidth=1.8, linestyle="--", label="estimate, coasting")
+    if given["drag_table"]:
+        table = np.array(given["drag_table"])
+        # held constant beyond the table's ends, as the flight uses it
+        ax_cd.plot(np.concatenate(([0.0], table[:, 0], [mach[-1]])),
+                   np.concatenate(([table[0, 1]], table[:, 1], [table[-1, 1]])), color=_LIGHT, linewidth=1.4,
+                   linestyle=":", label="given in the airframe file")
+        ax_cd.plot(table[:, 0], table[:, 1], color=_LIGHT, linestyle="none", marker="s", markersize=3)
+    else:
+        ax_cd.axhline(given["drag_coefficient"], color=_LIGHT, linewidth=1.4, linestyle=":",
+                      label=f"given in the airframe file (Cd {given['drag_coefficient']:g})")
+    ax_cd.set_xlabel("Mach number")
+    ax_cd.set_ylabel("Cd (on the reference area)")
+    ax_cd.set_xlim(0.0, float(mach[-1]))
+    ax_cd.set_ylim(bottom=0.0)
+    ax_cd.grid(alpha=0.3, color=_MID)
+    ax_cd.legend(fontsize=8, loc="upper right")
+
+
 def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
     """The rocket's side profile to scale with its CG and CP marked, and the estimated Cd against Mach.
 
@@ -332,7 +358,6 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
     FileExistsError
         When ``path`` exists and ``overwrite`` is False.
     """
-    from ..flight.drag import drag_table_for
     from ..flight.geometry import outline_m
 
     plt = _figure()
@@ -395,26 +420,7 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
     ax.set_title(f"{summary['airframe']}: side profile to scale; {what} "
                  + ("unknown" if margin is None else f"{margin:.2f} cal"), fontsize=10)
 
-    mach, powered, coasting = drag_table_for(airframe)
-    ax_cd.plot(mach, powered, color=_INK, linewidth=1.8, linestyle="-", label="estimate, motor burning")
-    ax_cd.plot(mach, coasting, color=_MID, linewidth=1.8, linestyle="--", label="estimate, coasting")
-    given = summary["drag_given"]
-    if given["drag_table"]:
-        table = np.array(given["drag_table"])
-        # held constant beyond the table's ends, as the flight uses it
-        ax_cd.plot(np.concatenate(([0.0], table[:, 0], [mach[-1]])),
-                   np.concatenate(([table[0, 1]], table[:, 1], [table[-1, 1]])), color=_LIGHT, linewidth=1.4,
-                   linestyle=":", label="given in the airframe file")
-        ax_cd.plot(table[:, 0], table[:, 1], color=_LIGHT, linestyle="none", marker="s", markersize=3)
-    else:
-        ax_cd.axhline(given["drag_coefficient"], color=_LIGHT, linewidth=1.4, linestyle=":",
-                      label=f"given in the airframe file (Cd {given['drag_coefficient']:g})")
-    ax_cd.set_xlabel("Mach number")
-    ax_cd.set_ylabel("Cd (on the reference area)")
-    ax_cd.set_xlim(0.0, float(mach[-1]))
-    ax_cd.set_ylim(bottom=0.0)
-    ax_cd.grid(alpha=0.3, color=_MID)
-    ax_cd.legend(fontsize=8, loc="upper right")
+    _drag_panel(ax_cd, airframe, summary["drag_given"])
     fig.tight_layout()
     fig.text(0.01, 0.002, _CAUTION, fontsize=7, color=_MID)
     try:
