@@ -1,4 +1,7 @@
-"""Rank candidate motors for an airframe: fit, one batched flight of all, delays, pass/fail reasons, ballast.
+"""Rank candidate motors for an airframe: fit, one batched flight of all, verdicts and the ranking order.
+
+The figures and reasons of each flight are in :mod:`.figures`, the ballast and the nose weight in
+:mod:`.ballast`.
 
 Every candidate gets the list of reasons it fails; a failed safety rule is never
 dropped to improve a ranking. The rules are settings (:class:`MatchSettings`);
@@ -26,18 +29,16 @@ import math
 from dataclasses import dataclass, field
 from typing import Any, Sequence
 
-import numpy as np
-
 from ..flight.airframe import Airframe
 from ..motor.classes import CLASS_LETTERS
 from ..motor.record import MotorRecord
 from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
-from ..flight.results import NO_LIFTOFF, OK, STUCK_ON_RAIL, FlightResults
 from ..flight.rules import LaunchRules
-from ..flight.stability import MIN_STABILITY_CAL, nose_weight_kg, stability_for_pack
-from ..units import STANDARD_GRAVITY_M_S2
+from ..flight.stability import MIN_STABILITY_CAL
 from .adapters import adapter_steps, adapter_text
+from .ballast import _check_stability, _solve_ballast
+from .figures import _STABILITY_KEYS, _figures
 from .verdicts import classify, verdict_order
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "rank"]
@@ -287,8 +288,6 @@ def _judge(c: dict[str, Any], s: MatchSettings) -> None:
     classify(c, s.target_m, s.target_tolerance)
 
 
-_STABILITY_KEYS = ("stability_margin_cal", "nose_weight_for_stability_kg", "nose_weight_apogee_m",
-                   "nose_weight_stability_margin_cal", "nose_weight_reasons", "nose_weight_reason_codes")
 _FIGURE_KEYS += _STABILITY_KEYS
 
 
@@ -303,321 +302,6 @@ def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
     if s.target_m is not None:
         return (group, abs(apogee - s.target_m), c["designation"])
     return (group, -apogee, c["designation"])
-
-
-def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[float]]) -> tuple[np.ndarray, ...]:
-    """For every flight: the reported delay closest to the optimal one and its ejection state (vectorised)."""
-    delays = pack.delays_s
-    optimal = results.optimal_delay_s
-    distance = np.abs(delays - optimal[:, None])
-    distance = np.where(np.isnan(distance), np.inf, distance)
-    col = np.argmin(distance, axis=1)
-    rows = np.arange(delays.shape[0])
-    has = np.isfinite(distance[rows, col])
-    chosen = np.where(has, delays[rows, col], np.nan)
-    altitude = np.where(has, results.ejection_altitude_m[rows, col], np.nan)
-    speed = np.where(has, results.ejection_speed_m_s[rows, col], np.nan)
-    vertical = np.where(has, results.ejection_vertical_speed_m_s[rows, col], np.nan)
-    adjusted = np.array([bool(np.isfinite(c)) and c not in lst for c, lst in zip(chosen, listed)])
-    return chosen, altitude, speed, vertical, adjusted
-
-
-def _landing_speed(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
-    if not frame.recovery_devices:
-        return np.full(results.n_flights, np.nan)
-    _, _, rho, _ = frame.launch.site.air(0.0)
-    burnt_mass = results.liftoff_mass_kg - pack.propellant_mass_kg
-    body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
-    extra = 0.0
-    for device in frame.recovery_devices:  # the drag area open at landing: every device, or the last that replaces
-        extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
-    return np.sqrt(2.0 * burnt_mass * STANDARD_GRAVITY_M_S2 / (float(rho) * (extra + body)))
-
-
-def _deployment_speeds(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
-    """Opening speed of every device [m/s], shape (n, n_devices): the first from the flight, a later one the
-    terminal speed under the devices before it at its opening height (NaN where the first never opens)."""
-    devices = frame.recovery_devices
-    n = results.n_flights
-    out = np.full((n, max(len(devices), 1)), np.nan)
-    if not devices:
-        return out
-    out[:, 0] = results.deployment_speed_m_s[:, 0]
-    weight = (results.liftoff_mass_kg - pack.propellant_mass_kg) * STANDARD_GRAVITY_M_S2
-    body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
-    height = results.deployment_altitude_m[:, 0]
-    extra = 0.0
-    for k in range(1, len(devices)):
-        before = devices[k - 1]
-        extra = before.drag_area_m2 + (0.0 if before.replaces else extra)
-        if devices[k].deploy == "altitude":
-            height = np.minimum(height, float(devices[k].deploy_altitude_m))  # type: ignore[arg-type]
-        _, _, rho, _ = frame.launch.site.air(np.maximum(height, 0.0))
-        out[:, k] = np.where(np.isfinite(out[:, 0]), np.sqrt(2.0 * weight / (rho * (body + extra))), np.nan)
-    return out
-
-
-def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
-    """Estimated landing distance from the pad [m]: the apogee's downrange distance plus the drift under
-    each device falling at its terminal speed (pad density) through the power-law wind w10·(z/10 m)^α,
-    integrated in closed form over each device's height band. NaN where nothing opens."""
-    devices = frame.recovery_devices
-    n = results.n_flights
-    if not devices:
-        return np.full(n, np.nan)
-    alpha = FlightSettings().wind_exponent
-    _, _, rho0, _ = frame.launch.site.air(0.0)
-    weight = (results.liftoff_mass_kg - pack.propellant_mass_kg) * STANDARD_GRAVITY_M_S2
-    body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
-    tops = [np.maximum(results.deployment_altitude_m[:, 0], 0.0)]
-    for device in devices[1:]:
-        below = float(device.deploy_altitude_m) if device.deploy == "altitude" else np.inf  # type: ignore[arg-type]
-        tops.append(np.minimum(tops[-1], below))
-    drift = np.zeros(n)
-    extra = 0.0
-    for k, device in enumerate(devices):
-        extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
-        top, bottom = tops[k], (tops[k + 1] if k + 1 < len(devices) else np.zeros(n))
-        v_t = np.sqrt(2.0 * weight / (float(rho0) * (body + extra)))
-        # ∫ w(z) dz / v_t over [bottom, top] with w(z) = w10·(z/10)^α
-        band = (top ** (alpha + 1.0) - bottom ** (alpha + 1.0)) / ((alpha + 1.0) * 10.0**alpha)
-        drift += frame.launch.wind_speed_m_s * band / v_t
-    return np.abs(results.apogee_downrange_m + drift)
-
-
-def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
-             s: MatchSettings) -> dict[str, Any]:
-    chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r["delays_s"] for r in rows])
-    landing = _landing_speed(frame, results, pack)
-    deploy = _deployment_speeds(frame, results, pack)
-    distance = _landing_distance(frame, results, pack)
-    uses_charge = frame.recovery is None or frame.recovery.deploy == "ejection"
-    reasons = [_reasons(results, i, chosen[i], speed[i], landing[i], uses_charge, s, rows[i],
-                        _Recovered(frame, deploy[i], distance[i])) for i in range(len(rows))]
-
-    def col(values: np.ndarray) -> list[float | None]:
-        return [float(v) if np.isfinite(v) else None for v in values]
-
-    return {
-        "apogee_m": col(results.apogee_m), "time_to_apogee_s": col(results.apogee_time_s),
-        "rail_exit_speed_m_s": col(results.rail_exit_speed_m_s),
-        "liftoff_thrust_to_weight": col(results.liftoff_thrust_to_weight),
-        "max_speed_m_s": col(results.max_speed_m_s), "max_mach": col(results.max_mach),
-        "burnout_time_s": col(results.burnout_time_s), "optimal_delay_s": col(results.optimal_delay_s),
-        "chosen_delay_s": col(chosen), "delay_adjusted": [bool(a) for a in adjusted],
-        "ejection_altitude_m": col(altitude), "ejection_speed_m_s": col(speed),
-        "ejection_vertical_speed_m_s": col(vertical), "landing_speed_m_s": col(landing),
-        "max_deployment_speed_m_s": col(np.max(np.where(np.isnan(deploy), -np.inf, deploy), axis=1)),
-        "landing_distance_m": col(distance),
-        "liftoff_mass_kg": col(results.liftoff_mass_kg),
-        "ballast_kg": [None] * len(rows), "ballast_apogee_m": [None] * len(rows),
-        "ballast_rail_exit_speed_m_s": [None] * len(rows), "ballast_liftoff_thrust_to_weight": [None] * len(rows),
-        "ballast_chosen_delay_s": [None] * len(rows), "ballast_optimal_delay_s": [None] * len(rows),
-        "ballast_ejection_speed_m_s": [None] * len(rows), "ballast_landing_speed_m_s": [None] * len(rows),
-        "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
-        "_reasons": reasons, "_status": list(results.status),
-    }
-
-
-# Flight status -> the reason code (and verdict word) a flyer reads at a glance.
-_STATUS_CODES = {NO_LIFTOFF: "no liftoff", STUCK_ON_RAIL: "stuck on rail"}
-
-
-@dataclass(frozen=True)
-class _Recovered:
-    """One flight's recovery figures checked by :func:`_reasons`: each device's opening speed [m/s] and the
-    landing distance [m] (NaN: unknown)."""
-
-    frame: Airframe
-    deployment_speeds_m_s: np.ndarray
-    landing_distance_m: float
-
-
-def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: float, landing: float,
-             uses_charge: bool, s: MatchSettings, row: dict[str, Any], recovered: _Recovered | None = None
-             ) -> list[tuple[str, str]]:
-    """(short code, message) for every rule the flight breaks."""
-    r = s.rules
-    if results.status[i] != OK:
-        return [(_STATUS_CODES.get(int(results.status[i]), "not flown"), results.message(i))]
-    out = []
-    exit_speed = results.rail_exit_speed_m_s[i]
-    wind = recovered.frame.launch.wind_speed_m_s if recovered is not None else 0.0
-    need = r.rail_exit_needed_m_s(wind)
-    if exit_speed < need:
-        why = "" if need == r.min_rail_exit_speed_m_s else f" ({r.rail_exit_wind_ratio:g} x the {wind:g} m/s wind)"
-        out.append(("rail", f"rail exit too slow: {exit_speed:.1f} m/s, below {need:g} m/s{why}"))
-    ttw = results.liftoff_thrust_to_weight[i]
-    if ttw < r.min_liftoff_thrust_to_weight:
-        out.append(("T/W", f"thrust-to-weight too low: {ttw:.1f}, below {r.min_liftoff_thrust_to_weight:g}"))
-    apogee = results.apogee_m[i]
-    if s.ceiling_m is not None and apogee > s.ceiling_m:
-        out.append(("ceiling", f"over the ceiling: apogee {apogee:.0f} m above {s.ceiling_m:.0f} m"))
-    if uses_charge:
-        optimal = results.optimal_delay_s[i]
-        if not np.isfinite(chosen) and row.get("ejection") == "unknown":
-            out.append(("delays unknown", "the motor's ejection delays are not given (add them to its record) and "
-                                          "the airframe file has no electronics deployment"))
-        elif not np.isfinite(chosen):
-            out.append(("no charge", "no ejection charge (plugged or booster) and no electronics deployment in the airframe file"))
-        elif abs(chosen - optimal) > s.delay_slack_s:
-            out.append(("delay", f"no delay within {s.delay_slack_s:g} s of the optimal {optimal:.1f} s "
-                       f"(closest {chosen:g} s)"))
-        charged_device = recovered is not None and recovered.frame.recovery_devices and uses_charge
-        if np.isfinite(ejection_speed) and ejection_speed > r.max_ejection_speed_m_s and not charged_device:
-            out.append(("eject", f"ejection too fast: {ejection_speed:.0f} m/s at the {chosen:g} s delay "
-                       f"(limit {r.max_ejection_speed_m_s:g} m/s)"))
-        if np.isfinite(chosen) and not np.isfinite(ejection_speed):
-            out.append(("lands first", f"lands before the {chosen:g} s delay fires"))
-    if np.isfinite(landing) and landing > r.max_landing_speed_m_s:
-        out.append(("descent", f"descent too fast: {landing:.1f} m/s under the device (limit {r.max_landing_speed_m_s:g} m/s)"))
-    if recovered is not None:
-        for device, speed in zip(recovered.frame.recovery_devices, recovered.deployment_speeds_m_s):
-            limit = r.deployment_limit_m_s(device.device)
-            if np.isfinite(speed) and speed > limit:
-                out.append(("deploy", f"the {device.device} opens too fast: {speed:.0f} m/s (limit {limit:g} m/s)"))
-        distance = recovered.landing_distance_m
-        if r.field_radius_m is not None and np.isfinite(distance) and distance > r.field_radius_m:
-            out.append(("field", f"lands outside the field: about {distance:.0f} m from the pad "
-                                 f"(field radius {r.field_radius_m:.0f} m)"))
-    return out
-
-
-def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, figures: dict[str, Any],
-                   s: MatchSettings, fs: FlightSettings) -> None:
-    """Added mass that brings every motor too strong for the target down to it, all motors solved together.
-
-    Every completed flight above the target is solved, whatever rules it breaks without
-    ballast (over the ceiling, an ejection too fast): the rules are re-checked with the
-    solved mass, so the ranking shows which motors then pass. Apogee falls monotonically
-    with added mass. A bracket [0, hi] is found by doubling, then the Illinois variant of
-    regula falsi runs on every motor at once, one batched simulation per iteration, to
-    0.02 % of the target.
-    """
-    target = s.target_m
-    apogee0 = np.array([a if a is not None else np.nan for a in figures["apogee_m"]])
-    flew = np.array([status == OK for status in figures["_status"]])
-    idx = np.flatnonzero(flew & (apogee0 > target))
-    if idx.size == 0:
-        return
-    sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
-    liftoff = np.array([figures["liftoff_mass_kg"][i] for i in idx])
-
-    def apogee_with(mass: np.ndarray) -> np.ndarray:
-        return simulate(frame, sub, fs, added_mass_kg=mass, descent=False).apogee_m
-
-    lo, f_lo = np.zeros(idx.size), apogee0[idx] - target
-    hi = 0.25 * liftoff
-    f_hi = np.nan_to_num(apogee_with(hi), nan=-target) - target
-    for _ in range(12):  # widen where the bracket does not hold the root yet
-        short = f_hi > 0
-        if not short.any():
-            break
-        hi = np.where(short, hi * 2.0, hi)
-        f_hi = np.where(short, np.nan_to_num(apogee_with(hi), nan=-target) - target, f_hi)
-    side = np.zeros(idx.size)
-    mass = hi.copy()
-    for _ in range(40):
-        mass = np.where(f_lo != f_hi, (lo * f_hi - hi * f_lo) / (f_hi - f_lo), 0.5 * (lo + hi))
-        f = np.nan_to_num(apogee_with(mass), nan=-target) - target
-        if np.all(np.abs(f) <= 2e-4 * target):
-            break
-        right = f < 0  # too heavy: the root lies between lo and mass
-        hi, f_hi = np.where(right, mass, hi), np.where(right, f, f_hi)
-        lo, f_lo = np.where(right, lo, mass), np.where(right, f_lo, f)
-        # Illinois: halve the stale end's value so that both ends keep moving
-        f_lo = np.where(right & (side == 1), f_lo / 2, f_lo)
-        f_hi = np.where(~right & (side == -1), f_hi / 2, f_hi)
-        side = np.where(right, 1, -1)
-    final = simulate(frame, sub, fs, added_mass_kg=mass, descent=False)
-    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i]["delays_s"] for i in idx])
-    landing = _landing_speed(frame, final, sub)
-    deploy, distance = _deployment_speeds(frame, final, sub), _landing_distance(frame, final, sub)
-    uses_charge = frame.recovery is None or frame.recovery.deploy == "ejection"
-    for k, i in enumerate(idx):
-        figures["ballast_kg"][i] = float(mass[k])
-        figures["ballast_apogee_m"][i] = float(final.apogee_m[k])
-        figures["ballast_rail_exit_speed_m_s"][i] = float(final.rail_exit_speed_m_s[k])
-        figures["ballast_liftoff_thrust_to_weight"][i] = float(final.liftoff_thrust_to_weight[k])
-        figures["ballast_chosen_delay_s"][i] = float(chosen[k]) if np.isfinite(chosen[k]) else None
-        figures["ballast_optimal_delay_s"][i] = float(final.optimal_delay_s[k])
-        figures["ballast_ejection_speed_m_s"][i] = float(speed[k]) if np.isfinite(speed[k]) else None
-        figures["ballast_landing_speed_m_s"][i] = float(landing[k]) if np.isfinite(landing[k]) else None
-        broken = _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i],
-                          _Recovered(frame, deploy[k], distance[k]))
-        figures["ballast_reasons"][i] = [text for _, text in broken]
-        figures["ballast_reason_codes"][i] = [code for code, _ in broken]
-
-
-# ----------------------------------------------------------------------------- stability (issue 11)
-_NOSE_WEIGHT_STEP_KG = 1e-4  # the solved nose weight is rounded up to 0.1 g: it then meets the margin, never misses
-
-
-def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
-                     figures: dict[str, Any], s: MatchSettings, fs: FlightSettings) -> None:
-    """Fail every motor that leaves the rocket under ``s.min_stability_cal``; solve its nose weight and re-fly.
-
-    The margin is the smallest of liftoff, rail exit and burnout (:mod:`motorlib.flight.stability`),
-    with the subsonic CP. A motor below it gets a reason with the code ``stability``; the nose
-    weight that restores the margin (closed form, at half the nose length) is flown again with
-    every motor that needs one, in one batch, and every rule is checked again on that flight
-    (``nose_weight_reasons``). The motor's own reason stays: a solved weight is advice, not a pass.
-    Without a geometry the keys are None and nothing is checked.
-    """
-    n = len(rows)
-    for key in _STABILITY_KEYS:
-        figures[key] = [None] * n
-    if frame.geometry is None:
-        return
-    lengths = np.array([np.nan if r["length_m"] is None else r["length_m"] for r in rows], dtype=float)
-    stability = stability_for_pack(frame, pack, lengths, rail_exit_time_s=results.rail_exit_time_s)
-    margin = stability.min_margin_cal
-    weight = nose_weight_kg(stability, s.min_stability_cal)
-    weight = np.where(weight > 0.0, np.ceil(weight / _NOSE_WEIGHT_STEP_KG) * _NOSE_WEIGHT_STEP_KG, weight)
-    for i in range(n):
-        figures["stability_margin_cal"][i] = float(margin[i]) if np.isfinite(margin[i]) else None
-        reason = _stability_reason(margin[i], s.min_stability_cal, weight[i])
-        if reason is not None:
-            figures["_reasons"][i].append(reason)
-    need = np.flatnonzero(np.isfinite(weight) & (weight > 0.0))
-    if need.size:
-        _refly_with_nose_weight(frame, rows, pack, lengths, need, weight[need], figures, s, fs)
-
-
-def _stability_reason(margin_cal: float, required_cal: float, weight_kg: float) -> tuple[str, str] | None:
-    """("stability", message) when the least margin is unknown or below ``required_cal``; None when it holds."""
-    if not np.isfinite(margin_cal):
-        return ("stability", "stability unknown: the motor's length or masses are not given")
-    if margin_cal >= required_cal:
-        return None
-    what = (f"unstable: stability margin {margin_cal:.2f} cal, the CG lies behind the CP" if margin_cal < 0.0
-            else f"stability margin {margin_cal:.2f} cal, below {required_cal:g} cal")
-    if np.isinf(weight_kg):
-        return ("stability", what + "; no nose weight can restore it (enlarge the fins)")
-    return ("stability", what + f"; {weight_kg * 1e3:.1f} g of nose weight restores it")
-
-
-def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, lengths: np.ndarray,
-                            idx: np.ndarray, weight_kg: np.ndarray, figures: dict[str, Any], s: MatchSettings,
-                            fs: FlightSettings) -> None:
-    """Fly the motors ``idx`` again carrying their nose weight and check every rule, stability included."""
-    sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
-    sub_rows = [rows[i] for i in idx]
-    final = simulate(frame, sub, fs, added_mass_kg=weight_kg, descent=False)
-    again = _figures(frame, sub_rows, sub, final, s)
-    stability = stability_for_pack(frame, sub, lengths[idx], rail_exit_time_s=final.rail_exit_time_s,
-                                   added_mass_kg=weight_kg)
-    for k, i in enumerate(idx):
-        margin = float(stability.min_margin_cal[k])
-        broken = list(again["_reasons"][k])
-        reason = _stability_reason(margin, s.min_stability_cal, np.inf)
-        if reason is not None:  # the solve aims at the margin: this would be a defect, never hidden
-            broken.append(reason)
-        figures["nose_weight_for_stability_kg"][i] = float(weight_kg[k])
-        figures["nose_weight_apogee_m"][i] = again["apogee_m"][k]
-        figures["nose_weight_stability_margin_cal"][i] = margin if np.isfinite(margin) else None
-        figures["nose_weight_reasons"][i] = [text for _, text in broken]
-        figures["nose_weight_reason_codes"][i] = [code for code, _ in broken]
 
 
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
