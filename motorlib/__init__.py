@@ -76,7 +76,7 @@ _EXPORTS = {
     "impulse_class_for": ".motor.classes",
     "load_airframe": ".files.airframe_toml",
     "load_curve_file": ".files.curvefiles",
-    "load_uncertainty": ".files.airframe_toml",
+    "load_uncertainty": ".files.uncertainty_toml",
     "metrics": ".motor.checks",
     "nose_weight_kg": ".flight.stability",
     "parse_designation": ".motor.classes",
@@ -144,7 +144,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
     from .flight.calibration import fit_apogees, fit_log
     from .flight.dispersion import DispersionSettings, Uncertainty, run_scatter
     from .matching.robust import RobustSettings, robust_rank
-    from .files.airframe_toml import load_uncertainty
+    from .files.uncertainty_toml import load_uncertainty
     from .files.altimeter_csv import read_altimeter_csv
     from .units import parse_quantity
     from .files.motor_xml import read_record, record_from_bytes, record_to_bytes, write_record

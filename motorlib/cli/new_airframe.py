@@ -26,7 +26,7 @@ def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
     """
     from pathlib import Path
 
-    from ..files.airframe_toml import airframe_template
+    from ..files.airframe_template import airframe_template
     from ..files.fsio import write_atomic
 
     text = airframe_template(display_units(units).system, Path(path).name)

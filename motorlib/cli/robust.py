@@ -67,7 +67,8 @@ def pop_robust(opts: dict[str, Any]) -> dict[str, Any]:
 
 def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[str, Any]) -> None:
     from ..catalog import CatalogFilter
-    from ..files.airframe_toml import load_airframe, load_uncertainty
+    from ..files.airframe_toml import load_airframe
+    from ..files.uncertainty_toml import load_uncertainty
     from ..flight.dispersion import catalog_spread, default_workers
     from ..matching.rank import _fits
     from .match import match_settings

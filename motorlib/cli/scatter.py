@@ -86,7 +86,7 @@ def uncertainty_from_options(airframe_file: str, opts: dict[str, Any]) -> Any:
     """The airframe file's [uncertainty] (or zero with --no-uncertainty), then the command-line overrides."""
     from dataclasses import replace
 
-    from ..files.airframe_toml import load_uncertainty
+    from ..files.uncertainty_toml import load_uncertainty
     from ..flight.dispersion import Uncertainty
 
     base = Uncertainty.zero() if opts.get("no_uncertainty") else None

@@ -23,8 +23,7 @@ from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
 from .fsio import read_text_bounded
 
-__all__ = ["airframe_from_dict", "airframe_template", "load_airframe", "load_uncertainty", "uncertainty_from_dict",
-           "write_drag"]
+__all__ = ["airframe_from_dict", "load_airframe", "write_drag"]
 
 _SECTIONS = {
     "": {"name", "airframe", "launch", "recovery", "geometry", "uncertainty"},
@@ -41,17 +40,6 @@ _SECTIONS = {
     "uncertainty": {"total_impulse", "burn_time", "airframe_mass", "motor_mass", "drag", "wind_speed",
                     "wind_direction", "rail_angle", "rail_azimuth", "temperature", "cg", "deploy_altitude"},
 }
-# [uncertainty] key -> (Uncertainty field, kind); "relative" takes a fraction or a percentage string
-_UNCERTAINTY_KEYS = {
-    "total_impulse": ("total_impulse_relative_std", "relative"), "burn_time": ("burn_time_relative_std", "relative"),
-    "airframe_mass": ("airframe_mass_relative_std", "relative"), "motor_mass": ("motor_mass_relative_std", "relative"),
-    "drag": ("drag_relative_std", "relative"), "wind_speed": ("wind_speed_std_m_s", "speed"),
-    "wind_direction": ("wind_direction_std_rad", "angle"), "rail_angle": ("rail_angle_std_rad", "angle"),
-    "rail_azimuth": ("rail_azimuth_std_rad", "angle"), "temperature": ("pad_temperature_std_k", "temperature difference"),
-    "cg": ("cg_std_m", "length"), "deploy_altitude": ("deploy_altitude_std_m", "length"),
-}
-# a temperature *difference*: 1 degC = 1 K, 1 degF = 5/9 K (exact by the scales' definitions)
-_DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "degF": 5.0 / 9.0}
 _PRESSURE_UNITS = {"Pa": 1.0, "hPa": 100.0, "kPa": 1000.0, "mbar": 100.0, "bar": 1e5, "inHg": INCH_OF_MERCURY_PA}
 
 
@@ -385,149 +373,6 @@ def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:
     if not devices:
         raise SimulationInputError(source, "[[recovery]]", "expected at least one device")
     return tuple(devices)
-
-
-_TEMPLATE = """\
-# Airframe file for motorlib ({system} example values): the rocket without its motor, where it flies and
-# how it comes back. Replace every value with your own. Each quantity takes a unit ("310 g", "1.64 in",
-# "800 ft", "15 degC"); a bare number means the SI unit (m, kg, s, m/s, m²). Keys are described in
-# data_schema/AIRFRAME.md; a key motorlib does not know is refused, so a typo never passes silently.
-# Try it: motorlib fly {file} --motor F29-8      or      motorlib match {file} --target {target}
-
-name = "My rocket"              # shown in reports
-
-[airframe]
-mass = "{mass}"                 # empty: without the motor (weigh it)
-diameter = "{diameter}"         # body tube outside diameter: the drag reference
-drag_coefficient = 0.55         # constant Cd on that area; 0.45-0.75 is typical for a sport model
-# drag_table = [[0.0, 0.5], [0.8, 0.52], [1.05, 0.78], [2.0, 0.55]]   # or Cd against Mach, instead
-mount_diameter = "29 mm"        # motor mount tube: only motors of this size are matched
-mount_length = "{mount_length}"         # the longest motor that fits
-
-[launch]
-rail_length = "{rail}"          # travel along the rail or rod before the rocket is free
-rail_angle = "5 deg"            # tilt from vertical, away from the crowd and downwind; 0 to 30 deg
-elevation = "{elevation}"       # the pad above sea level (air density)
-# temperature = "{temperature}" # measured at the pad; default: the standard atmosphere
-# pressure = "1013 hPa"         # station pressure at the pad; default: the standard atmosphere
-wind_speed = "{wind}"           # at 10 m above the pad; stronger winds need a faster rail exit
-
-[recovery]                      # leave this section out for a rocket without recovery
-device = "parachute"            # parachute | streamer | none
-deploy = "ejection"             # ejection (the motor's delay) | apogee | altitude (electronics)
-drag_coefficient = 0.8          # Cd of the device on the area below (about 0.8 for a round canopy)
-diameter = "{chute}"            # canopy diameter; or for a streamer: area = "0.05 m2"
-# deploy_altitude = "{deploy}"  # with deploy = "altitude": height above the pad on the way down
-
-# The shape, for the stability margin with each motor and a drag estimate (motorlib airframe {file}).
-# Uncomment the whole block and measure your rocket; positions are from the nose tip.
-# [geometry]
-# cg = "{cg}"                   # balance point WITHOUT the motor (measured)
-# [geometry.nose]
-# shape = "ogive"               # conical | ogive | parabolic | elliptical | power (with exponent)
-# length = "{nose}"
-# [geometry.body]
-# length = "{body}"             # body tube(s) behind the nose
-# [geometry.fins]
-# count = 3
-# root_chord = "{root}"
-# tip_chord = "{tip}"
-# span = "{span}"               # from the body surface to the tip
-# sweep = "{sweep}"             # root leading edge to tip leading edge, along the body
-# thickness = "{thick}"
-"""
-
-_TEMPLATE_VALUES = {
-    "metric": dict(target="400m", mass="310 g", diameter="41.6 mm", mount_length="200 mm", rail="1.5 m",
-                   elevation="100 m", temperature="15 degC", wind="3 m/s", chute="0.6 m", deploy="150 m",
-                   cg="520 mm", nose="160 mm", body="700 mm", root="100 mm", tip="50 mm", span="60 mm",
-                   sweep="50 mm", thick="3 mm"),
-    "imperial": dict(target="1300ft", mass="11 oz", diameter="1.64 in", mount_length="7.9 in", rail="6 ft",
-                     elevation="330 ft", temperature="59 degF", wind="7 mph", chute="24 in", deploy="500 ft",
-                     cg="20.5 in", nose="6.3 in", body="27.5 in", root="3.9 in", tip="2 in", span="2.4 in",
-                     sweep="2 in", thick="0.125 in"),
-}
-
-
-def airframe_template(system: str = "metric", file: str = "my-rocket.toml") -> str:
-    """A commented airframe file to start from, with example values in ``metric`` or ``imperial`` units.
-
-    It loads as it is (:func:`load_airframe`), so a new user can fly it at once and then edit it.
-    """
-    if system not in _TEMPLATE_VALUES:
-        raise ValueError(f"`system` must be metric or imperial, got {system!r}")
-    return _TEMPLATE.format(system=system, file=file, **_TEMPLATE_VALUES[system])
-
-
-def load_uncertainty(path: str | os.PathLike[str], base: Any = None) -> Any:
-    """The ``[uncertainty]`` table of an airframe file over ``base`` (default: the documented defaults).
-
-    Returns a :class:`motorlib.flight.dispersion.Uncertainty`; keys the file leaves out keep
-    their value from ``base``. See data_schema/AIRFRAME.md.
-
-    Raises
-    ------
-    SimulationInputError
-        Naming the file and the key.
-    """
-    source = str(path)
-    data = _load_toml(path)
-    return uncertainty_from_dict(data, source, base)
-
-
-def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: Any = None) -> Any:
-    """:func:`load_uncertainty` for parsed TOML data."""
-    from dataclasses import replace
-
-    from ..flight.dispersion import Uncertainty
-
-    base = base if base is not None else Uncertainty()
-    table = _section(source, data, "uncertainty", False)
-    if table is None:
-        return base
-    values = {}
-    for key, raw in table.items():
-        name, kind = _UNCERTAINTY_KEYS[key]
-        where = f"uncertainty.{key}"
-        if kind == "relative":
-            values[name] = _relative(source, where, raw)
-        elif kind == "temperature difference":
-            values[name] = _difference_k(source, where, raw)
-        else:
-            values[name] = _quantity(source, table, "uncertainty", key, kind)
-        if not (math.isfinite(values[name]) and values[name] >= 0.0):
-            raise SimulationInputError(source, where, f"a standard deviation must be at least 0, got {raw!r}")
-    try:
-        return replace(base, **values)
-    except ValueError as exc:
-        raise SimulationInputError(source, "uncertainty", str(exc).replace("`", "")) from None
-
-
-def _relative(source: str, where: str, raw: Any) -> float:
-    """A fraction (0.03) or a percentage string ("3 %")."""
-    if isinstance(raw, (int, float)) and not isinstance(raw, bool):
-        return float(raw)
-    if isinstance(raw, str) and raw.strip().endswith("%"):
-        try:
-            return float(raw.strip()[:-1]) / 100.0
-        except ValueError:
-            pass
-    raise SimulationInputError(source, where, f"expected a fraction such as 0.03 or a percentage such as '3 %', got {raw!r}")
-
-
-def _difference_k(source: str, where: str, raw: Any) -> float:
-    """A temperature difference: a number of kelvin, or "2 K", "2 degC", "3.6 degF"."""
-    if isinstance(raw, (int, float)) and not isinstance(raw, bool):
-        return float(raw)
-    if isinstance(raw, str):
-        text = raw.strip()
-        for unit, factor in _DIFFERENCE_UNITS.items():
-            if text.endswith(unit):
-                try:
-                    return float(text[: -len(unit)]) * factor
-                except ValueError:
-                    break
-    raise SimulationInputError(source, where, f"expected a temperature difference such as '2 K' or '3 degF', got {raw!r}")
 
 
 def write_drag(path: str | os.PathLike[str], kind: str, value: float) -> tuple[str, str]:

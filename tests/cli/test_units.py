@@ -248,7 +248,8 @@ def test_fly_card_warnings_follow_the_units_switch() -> None:
 @pytest.mark.parametrize("system", ["metric", "imperial"])
 def test_the_template_geometry_block_loads_when_uncommented(tmp_path: Path, system: str) -> None:
     # the commented [geometry] block is a complete shape: uncommented, `motorlib airframe` can use it at once
-    from motorlib.files.airframe_toml import airframe_template, load_airframe
+    from motorlib.files.airframe_template import airframe_template
+    from motorlib.files.airframe_toml import load_airframe
 
     text = airframe_template(system)
     head, block = text.split("# [geometry]\n")
