@@ -2,12 +2,14 @@
 
 from __future__ import annotations
 
+import pint
 import pytest
-from hypothesis import example, given, strategies as st
+from hypothesis import example, given, settings, strategies as st
 
 from motorlib.present.display import DisplayUnits, format_number, normalise_system
 from motorlib.units import parse_quantity
 
+UREG = pint.UnitRegistry()
 METRIC, IMPERIAL = DisplayUnits("metric"), DisplayUnits("imperial")
 
 
@@ -71,3 +73,31 @@ def test_a_failing_value_always_reads_beyond_its_limit(limit: float, gap: float,
     value = limit * (1 + gap) if above else limit * (1 - gap)
     shown, limit_shown = units.beyond(value, limit, "speed", above=above)
     assert _number(shown) > _number(limit_shown) if above else _number(shown) < _number(limit_shown)
+
+
+# Reference: pint's unit registry (its own definitions file), one unit of each kind the display converts.
+_PINT_UNITS = {"ft": "foot", "in": "inch", "ft/s": "foot / second", "ft/s²": "foot / second ** 2", "oz": "ounce",
+               "lb": "pound", "psi": "psi", "inHg": "inch_Hg", "in²": "inch ** 2", "ft²": "foot ** 2",
+               "lb/ft³": "pound / foot ** 3", "m": "meter", "mm": "millimeter", "g": "gram", "kg": "kilogram",
+               "kPa": "kilopascal", "hPa": "hectopascal", "m/s": "meter / second", "m²": "meter ** 2",
+               "m/s²": "meter / second ** 2", "kg/m³": "kilogram / meter ** 3"}
+_SI_UNITS = {"length": "meter", "size": "meter", "speed": "meter / second", "acceleration": "meter / second ** 2",
+             "mass": "kilogram", "pressure": "pascal", "air_pressure": "pascal", "area": "meter ** 2",
+             "density": "kilogram / meter ** 3"}
+
+
+@pytest.mark.parametrize("units", [METRIC, IMPERIAL])
+@pytest.mark.parametrize("kind", sorted(_SI_UNITS))
+@settings(max_examples=30)
+@given(value=st.floats(min_value=1e-3, max_value=1e5, allow_nan=False))
+def test_conversions_agree_with_pint(units: DisplayUnits, kind: str, value: float) -> None:
+    unit = units.unit(kind, value)
+    expected = UREG.Quantity(value, _SI_UNITS[kind]).to(_PINT_UNITS[unit]).magnitude
+    # pint's inch of mercury (13.5951 g/cm³ at g0) and NIST SP 811's conventional 3386.389 Pa differ by 3e-7
+    assert units.convert(value, kind) == pytest.approx(expected, rel=1e-6 if unit == "inHg" else 1e-12)
+
+
+def test_imperial_lengths_are_shown_in_feet() -> None:
+    # 1 ft = 0.3048 m exactly (international yard and pound agreement, 1959): 304.8 m is 1,000 ft
+    assert IMPERIAL.quantity(304.8, "length") == "1,000 ft" and IMPERIAL.number(304.8, "length") == "1,000"
+    assert IMPERIAL.quantity(3.048, "speed") == "10.0 ft/s"
