@@ -87,3 +87,20 @@ def test_high_power_triggers() -> None:
 
     assert "high-power" not in _codes(box(80.0))
     assert "high-power" in _codes(box(80.1))
+
+
+@pytest.mark.parametrize("name", ["average_thrust_tolerance", "total_impulse_tolerance", "edge_fraction"])
+def test_a_zero_tolerance_is_refused(name: str) -> None:
+    with pytest.raises(ValueError, match=name):
+        CheckSettings(**{name: 0.0})
+    assert getattr(CheckSettings(**{name: 1e-9}), name) == 1e-9
+
+
+def test_settings_and_findings_are_frozen() -> None:
+    import dataclasses
+
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        CheckSettings().edge_fraction = 0.5  # type: ignore[misc]
+    finding = check_record(_flat(7))[0]
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        finding.code = "other"  # type: ignore[misc]
