@@ -26,3 +26,43 @@ def test_the_peak_sample_is_kept(name: str, max_points: int) -> None:
     assert np.max(reduction.thrust_n) == reduction.filtered_thrust_n[peak]
     assert reduction.filtered_time_s[peak] in reduction.time_s
     assert reduction.peak_error == 0.0
+
+
+def _log(name: str = "bramblewick-propulsion_g59-10.xml", rate_hz: float = 1000.0) -> tuple[np.ndarray, np.ndarray]:
+    known = read_record(SAMPLE_DIR / name)
+    t = np.arange(-0.5, known.time_s[-1] + 0.6, 1.0 / rate_hz)
+    rng = np.random.default_rng(4)
+    return t, known.thrust_at_n(t) + 3.0 + rng.normal(0.0, 0.05, t.size)
+
+
+def test_clipping_counts_the_readings_at_full_scale() -> None:
+    # exactly n consecutive readings at the maximum: 3 or more is clipping (the module's rule), 2 is not
+    t, f = _log()
+    peak = int(np.argmax(f))
+    for n, clipped in ((2, False), (3, True), (7, True)):
+        g = f.copy()
+        g[peak + 1: peak + n] = g[peak]  # n readings equal to the top value
+        g[peak + n:] = np.minimum(g[peak + n:], g[peak] - 1.0)
+        findings = [x for x in reduce_log(t, g).findings if x.code == "log-clipped"]
+        assert bool(findings) == clipped
+        if clipped:
+            assert findings[0].message.startswith(f"{n} consecutive readings")
+
+
+def test_a_log_that_ends_while_burning_is_reported() -> None:
+    t, f = _log()
+    burning = t < 1.0  # the G59 burns about 1.9 s
+    reduction = reduce_log(t[burning], f[burning])
+    assert "log-ends-burning" in [x.code for x in reduction.findings]
+    assert "log-ends-burning" not in [x.code for x in reduce_log(t, f).findings]
+
+
+def test_one_firing_has_no_spread() -> None:
+    from motorlib.motor.reduction import combine_reductions
+
+    t, f = _log()
+    reduction = reduce_log(t, f)
+    _, _, spread = combine_reductions([reduction])
+    assert spread["n_firings"] == 1
+    assert spread["total_impulse_ns"]["std"] == 0.0 and spread["event_burn_time_s"]["std"] == 0.0
+    assert spread["total_impulse_ns"]["mean"] == reduction.filtered_impulse_ns
