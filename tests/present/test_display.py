@@ -101,3 +101,25 @@ def test_imperial_lengths_are_shown_in_feet() -> None:
     # 1 ft = 0.3048 m exactly (international yard and pound agreement, 1959): 304.8 m is 1,000 ft
     assert IMPERIAL.quantity(304.8, "length") == "1,000 ft" and IMPERIAL.number(304.8, "length") == "1,000"
     assert IMPERIAL.quantity(3.048, "speed") == "10.0 ft/s"
+
+
+# The display resolution of every unit (module docstring: "resolution that matters to a flyer, no more"); the
+# SI values are exact multiples of each unit (factors from pint, above), so the figures are worked out by hand.
+@pytest.mark.parametrize(("units", "value_si", "kind", "expected"), [
+    (METRIC, 1234.5678, "length", "1,235 m"), (IMPERIAL, 0.3048 * 1234.5678, "length", "1,235 ft"),
+    (METRIC, 0.0412345, "size", "41.2 mm"), (IMPERIAL, 0.0254 * 1.23456, "size", "1.23 in"),
+    (METRIC, 12.345, "speed", "12.3 m/s"), (IMPERIAL, 0.3048 * 12.345, "speed", "12.3 ft/s"),
+    (METRIC, 123.456, "acceleration", "123.5 m/s²"), (IMPERIAL, 0.3048 * 123.456, "acceleration", "123 ft/s²"),
+    (METRIC, 0.123456, "mass", "123 g"), (METRIC, 1.23456, "mass", "1.23 kg"),
+    (IMPERIAL, 0.028349523125 * 3.456, "mass", "3.5 oz"), (IMPERIAL, 0.45359237 * 3.456, "mass", "3.46 lb"),
+    (METRIC, 12.3456, "force", "12.3 N"), (METRIC, 12.3456, "impulse", "12.3 N·s"), (METRIC, 1.23456, "time", "1.23 s"),
+    (METRIC, 12_345.6, "pressure", "12.3 kPa"), (IMPERIAL, 6894.757293168361 * 1.23456, "pressure", "1.23 psi"),
+    (METRIC, 101_325.0, "air_pressure", "1,013 hPa"), (IMPERIAL, 3386.389 * 29.9212, "air_pressure", "29.92 inHg"),
+    (METRIC, 293.456, "temperature", "20.3 °C"), (IMPERIAL, 293.456, "temperature", "69 °F"),
+    (METRIC, 0.0123456, "area", "0.012 m²"), (IMPERIAL, 0.09290304 * 1.23456, "area", "1.23 ft²"),
+    (METRIC, 1.23456, "density", "1.235 kg/m³"), (IMPERIAL, 16.018463373960138 * 0.0765, "density", "0.0765 lb/ft³"),
+    (METRIC, 0.123456, "angle", "7.1 deg"),
+    (METRIC, 12.345, "ratio", "12.3"),
+])
+def test_each_unit_shows_its_resolution(units: DisplayUnits, value_si: float, kind: str, expected: str) -> None:
+    assert units.quantity(value_si, kind) == expected
