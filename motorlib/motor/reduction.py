@@ -107,6 +107,14 @@ class Reduction:
     peak_error: float
     findings: tuple[Finding, ...] = field(default=())
 
+    def __post_init__(self) -> None:
+        # a record, not a workspace: its arrays are our own read-only copies
+        for name, value in list(vars(self).items()):
+            if isinstance(value, np.ndarray):
+                frozen = np.array(value)
+                frozen.flags.writeable = False
+                object.__setattr__(self, name, frozen)
+
 
 def lowpass_design_hz(cutoff_hz: float, order: int, rate_hz: float) -> float:
     """Design frequency of one digital Butterworth pass so that forward-backward filtering is −3 dB at ``cutoff_hz``.

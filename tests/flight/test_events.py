@@ -64,3 +64,13 @@ def test_no_delay_no_choice() -> None:
     motor = MotorRecord("T", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9)
     results = simulate(_vacuum(0.4), [motor], FLAT, descent=False)
     assert math.isnan(results.chosen_delay_s(0)) and results.summary(0)["chosen_delay_s"] is None
+
+
+def test_a_motor_pack_is_a_record_with_read_only_arrays() -> None:
+    from motorlib.flight import MotorPack
+
+    thrust = [30.0, 30.0]
+    pack = MotorPack.from_records([MotorRecord("T", [0.0, 1.2], thrust, total_mass_kg=0.1, propellant_mass_kg=0.04)])
+    for name in ("time_s", "thrust_n", "cumulative_ns", "total_impulse_ns", "delays_s"):
+        with pytest.raises(ValueError, match="read-only"):
+            getattr(pack, name).flat[0] = 1.0

@@ -66,3 +66,11 @@ def test_one_firing_has_no_spread() -> None:
     assert spread["n_firings"] == 1
     assert spread["total_impulse_ns"]["std"] == 0.0 and spread["event_burn_time_s"]["std"] == 0.0
     assert spread["total_impulse_ns"]["mean"] == reduction.filtered_impulse_ns
+
+
+def test_a_reduction_is_a_record_with_read_only_arrays() -> None:
+    t, f = _log()
+    reduction = reduce_log(t, f)
+    for name in ("time_s", "thrust_n", "raw_time_s", "raw_thrust_n", "filtered_time_s", "filtered_thrust_n"):
+        with pytest.raises(ValueError, match="read-only"):
+            getattr(reduction, name)[0] = 1.0
