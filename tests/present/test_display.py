@@ -123,3 +123,20 @@ def test_imperial_lengths_are_shown_in_feet() -> None:
 ])
 def test_each_unit_shows_its_resolution(units: DisplayUnits, value_si: float, kind: str, expected: str) -> None:
     assert units.quantity(value_si, kind) == expected
+
+
+def test_exact_decimals_show_every_value_exactly_or_stop_at_the_limit() -> None:
+    assert METRIC.exact_decimals([29.0, 38.0], "length") == 0
+    assert METRIC.exact_decimals([29.0, 10.5], "length") == 1
+    assert METRIC.exact_decimals([10.25], "length") == 1  # not exact at one decimal: the limit
+    assert METRIC.exact_decimals([10.25], "length", max_decimals=3) == 2
+    assert METRIC.exact_decimals([123_456.0000001], "length") == 0  # within 1e-6 relative: exact
+    assert METRIC.exact_decimals([None, float("nan")], "length") == 0
+
+
+@pytest.mark.parametrize(("value", "expected"), [
+    (100.0, "100"), (6.5, "6.5"), (0.025, "0.025"), (12_345.0, "12,345"), (123.4567, "123.5"),
+    (12.34567, "12.3"), (1.234567, "1.23"), (0.0312345, "0.0312"), (0.0, "0"),
+])
+def test_plain_numbers_keep_about_three_significant_digits(value: float, expected: str) -> None:
+    assert DisplayUnits.plain(value) == expected
