@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from motorlib import MotorRecord
 from motorlib.flight import FlightSettings, simulate
@@ -74,3 +76,20 @@ def test_a_motor_pack_is_a_record_with_read_only_arrays() -> None:
     for name in ("time_s", "thrust_n", "cumulative_ns", "total_impulse_ns", "delays_s"):
         with pytest.raises(ValueError, match="read-only"):
             getattr(pack, name).flat[0] = 1.0
+
+
+@settings(max_examples=200, deadline=None)
+@given(y0=st.floats(0.1, 100.0), y1=st.floats(-100.0, -0.1), d0=st.floats(-50.0, 50.0), d1=st.floats(-50.0, 50.0),
+       h=st.floats(0.01, 2.0), flip=st.booleans())
+def test_the_step_root_is_a_root_of_the_hermite_cubic(y0, y1, d0, d1, h, flip) -> None:
+    # The cubic through (0, y0) and (1, y1) with slopes h·d0 and h·d1, in power form by hand (textbook
+    # Hermite basis), evaluated by numpy.polyval: the returned fraction must be one of its roots in [0, 1].
+    from motorlib.flight.events import _hermite_root
+
+    if flip:
+        y0, y1 = -y0, -y1
+    coefficients = [2 * y0 + h * d0 - 2 * y1 + h * d1, -3 * y0 - 2 * h * d0 + 3 * y1 - h * d1, h * d0, y0]
+    tau = float(_hermite_root(np.array([y0]), np.array([d0]), np.array([y1]), np.array([d1]), np.array([h]))[0])
+    assert 0.0 <= tau <= 1.0
+    scale = max(abs(y0), abs(y1), abs(h * d0), abs(h * d1))
+    assert abs(np.polyval(coefficients, tau)) <= 1e-10 * scale
