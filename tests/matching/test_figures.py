@@ -65,3 +65,32 @@ def test_a_motor_exactly_at_each_limit_passes() -> None:
     assert rank(frame, _motor(), MatchSettings(rules=past), flight_settings=FLAT).candidates[0]["reason_codes"] == ["rail"]
     past_ttw = LaunchRules(min_rail_exit_speed_m_s=exit_speed, min_liftoff_thrust_to_weight=ttw * (1 + 1e-9))
     assert rank(frame, _motor(), MatchSettings(rules=past_ttw), flight_settings=FLAT).candidates[0]["reason_codes"] == ["T/W"]
+
+
+def test_ballast_for_a_target_in_vacuum_matches_the_closed_form() -> None:
+    # Vacuum, constant thrust T for t_b, constant mass m (textbook): apogee H = a t_b²/2 (1 + a/g), a = T/m - g.
+    # Solved for the target: a = g (sqrt(1 + 8 H / (g t_b²)) - 1) / 2, m = T / (a + g). For 60 m that is a
+    # ballast of about 77 % of the 0.5 kg liftoff mass, past the solver's first bracket.
+    frame = Airframe("test", 0.4, 1e-6, 0.5, launch=Launch(rail_length_m=3.0), mount_diameter_m=0.024,
+                     mount_length_m=0.2)
+    target = 60.0
+    candidate = rank(frame, _motor(), MatchSettings(target_m=target, ballast=True), flight_settings=FLAT).candidates[0]
+    a = G0 * (math.sqrt(1.0 + 8.0 * target / (G0 * 1.2**2)) - 1.0) / 2.0
+    mass = 30.0 / (a + G0)
+    assert candidate["ballast_kg"] == pytest.approx(mass - (0.4 + 0.1 - 1e-9), rel=1e-3)
+    assert candidate["ballast_apogee_m"] == pytest.approx(target, rel=2e-4)
+    assert candidate["ballast_optimal_delay_s"] == pytest.approx(a * 1.2 / G0, rel=1e-3)  # coast v_b / g
+    assert candidate["ballast_liftoff_thrust_to_weight"] == pytest.approx(30.0 / (mass * G0), rel=1e-3)
+
+
+@pytest.mark.parametrize(("motor_diameter_m", "smaller_allowed", "fits"), [
+    (0.0244, False, True), (0.0246, False, False), (0.0236, False, True), (0.0234, False, False),
+    (0.0234, True, True), (0.018, True, True),
+])
+def test_a_motor_fits_a_mount_within_half_a_millimetre(motor_diameter_m: float, smaller_allowed: bool,
+                                                       fits: bool) -> None:
+    motor = MotorRecord("F30-7", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9,
+                        delays_s=(7.0,), diameter_m=motor_diameter_m, length_m=0.1)
+    candidate = rank(_frame(), motor, MatchSettings(allow_smaller_motors=smaller_allowed),
+                     flight_settings=FLAT).candidates[0]
+    assert (not any(r.startswith("does not fit") for r in candidate["reasons"])) == fits
