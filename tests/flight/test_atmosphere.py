@@ -213,3 +213,20 @@ def test_site_elevation_reaches_the_gravity_of_a_flight() -> None:
     assert apogee == pytest.approx(reference_flight(frame, motor)["apogee_m"], rel=1e-6)
     sea = simulate(Airframe("vacuum", 0.4, 1e-6, 0.5), [motor], descent=False).apogee_m[0]
     assert apogee / sea - 1.0 > 2e-3
+
+
+@pytest.mark.parametrize(("kwargs", "field"), [
+    ({"elevation_m": 9000.1}, "elevation_m"), ({"elevation_m": -1000.1}, "elevation_m"),
+    ({"temperature_k": 179.9}, "temperature_k"), ({"temperature_k": 340.1}, "temperature_k"),
+    ({"pressure_pa": 9_999.0}, "pressure_pa"), ({"pressure_pa": 110_001.0}, "pressure_pa"),
+])
+def test_a_site_outside_its_range_is_refused(kwargs: dict, field: str) -> None:
+    with pytest.raises(ValueError, match=field):
+        Site(**kwargs)
+
+
+def test_a_site_at_the_ends_of_its_range_is_accepted() -> None:
+    for site in (Site(elevation_m=9000.0, temperature_k=180.0, pressure_pa=10_000.0),
+                 Site(elevation_m=-1000.0, temperature_k=340.0, pressure_pa=110_000.0)):
+        t, p, rho, a = (float(v) for v in site.air(0.0))
+        assert rho == pytest.approx(p / (R_REF * t), rel=1e-9)  # ideal gas at the pad
