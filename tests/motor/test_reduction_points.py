@@ -74,3 +74,17 @@ def test_a_reduction_is_a_record_with_read_only_arrays() -> None:
     for name in ("time_s", "thrust_n", "raw_time_s", "raw_thrust_n", "filtered_time_s", "filtered_thrust_n"):
         with pytest.raises(ValueError, match="read-only"):
             getattr(reduction, name)[0] = 1.0
+
+
+def test_ignition_and_burnout_on_straight_ramps() -> None:
+    # A noise-free log of straight ramps (0 -> 100 N over 1 s, 0.5 s hold, 100 -> 0 N over 1 s) on a 3 N
+    # offset at 1 kHz. The events are where thrust crosses 2 % of peak (the default event fraction): 2 N, i.e.
+    # 0.02 s and 2.48 s by hand; the area under the ramps is 150 N·s (three pieces of 50 N·s).
+    t = np.arange(-0.5, 3.0, 1e-3)
+    f = np.interp(t, [0.0, 1.0, 1.5, 2.5], [0.0, 100.0, 100.0, 0.0]) + 3.0
+    reduction = reduce_log(t, f)
+    assert reduction.baseline_n == pytest.approx(3.0, abs=1e-12)
+    assert reduction.ignition_time_s == pytest.approx(0.02, abs=1e-4)  # a sample is 1e-3 s
+    assert reduction.burnout_time_s == pytest.approx(2.48, abs=1e-4)
+    assert reduction.filtered_impulse_ns == pytest.approx(150.0 - 2 * 0.02, rel=1e-4)  # minus the corners below 2 N
+    assert reduction.time_s[0] == 0.0 and reduction.time_s[-1] == pytest.approx(2.46, abs=1e-4)
