@@ -211,5 +211,8 @@ def _store_history(history: list, idx: np.ndarray, traj: list, descent: bool) ->
         if traj[k] is None:
             traj[k] = block
         else:
-            traj[k] = {name: np.concatenate((traj[k][name], block[name])) for name in block}
+            # the ascent pass runs on past apogee to the last ejection delay, the descent pass starts at
+            # apogee (or deployment): keep the earlier pass only up to where the later one starts
+            before = traj[k]["time_s"] < block["time_s"][0]
+            traj[k] = {name: np.concatenate((traj[k][name][before], block[name])) for name in block}
 

@@ -93,3 +93,33 @@ def test_the_step_root_is_a_root_of_the_hermite_cubic(y0, y1, d0, d1, h, flip) -
     assert 0.0 <= tau <= 1.0
     scale = max(abs(y0), abs(y1), abs(h * d0), abs(h * d1))
     assert abs(np.polyval(coefficients, tau)) <= 1e-10 * scale
+
+
+def test_results_are_frozen_and_the_summary_lists_the_listed_delays_and_the_chosen_one() -> None:
+    import dataclasses
+
+    # an adjustable 8 s motor drills to 1..8 s; optimal 6.14 s (vacuum closed form above): chosen 6 s, not listed
+    motor = MotorRecord("T", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9, delays_s=(8.0,),
+                        delay_adjustable=True)
+    results = simulate(_vacuum(0.4), [motor], FLAT, descent=False)
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        results.apogee_m = results.apogee_m  # type: ignore[misc]
+    assert results.chosen_delay_s(0) == 6.0
+    assert [e["delay_s"] for e in results.summary(0)["ejections"]] == [1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0]
+    assert [e["delay_s"] for e in results.summary(0, listed_delays_s=(8.0,))["ejections"]] == [6.0, 8.0]
+
+
+def test_trajectories_mark_the_descent_and_keep_time_in_order() -> None:
+    from motorlib.flight.airframe import Recovery
+
+    chute = Recovery(device="parachute", deploy="apogee", drag_area_m2=0.5)
+    frame = Airframe("chute", 0.4, 0.04, 0.5, launch=Launch(rail_length_m=1.0), recovery=chute)
+    motor = MotorRecord("T", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=0.04, delays_s=(5.0,))
+    trajectory = simulate(frame, [motor], trajectories=True).trajectories[0]
+    n = trajectory["time_s"].size
+    assert all(np.asarray(values).shape == (n,) for values in trajectory.values())
+    # found by this test: the ascent rows past apogee (kept for the ejection delays) overlapped the descent,
+    # so time ran backwards where the two passes were joined
+    assert np.all(np.diff(trajectory["time_s"]) > 0)
+    descent = np.asarray(trajectory["descent"])
+    assert not descent[0] and descent[-1] and np.all(np.diff(descent.astype(int)) >= 0)  # ascent, then descent
