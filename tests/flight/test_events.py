@@ -123,3 +123,12 @@ def test_trajectories_mark_the_descent_and_keep_time_in_order() -> None:
     assert np.all(np.diff(trajectory["time_s"]) > 0)
     descent = np.asarray(trajectory["descent"])
     assert not descent[0] and descent[-1] and np.all(np.diff(descent.astype(int)) >= 0)  # ascent, then descent
+
+
+def test_the_summary_says_whether_the_flight_succeeded() -> None:
+    good = MotorRecord("T", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9)
+    weak = MotorRecord("W", [0.0, 1.2], [1.0, 1.0], total_mass_kg=0.1, propellant_mass_kg=1e-9)  # 1 N < 4.9 N weight
+    results = simulate(_vacuum(0.4), [good, weak], FLAT, descent=False)
+    assert results.summary(0)["status"] == "ok" and results.summary(0)["apogee_m"] > 0
+    assert results.summary(1)["status"] == "failed" and results.summary(1)["apogee_m"] is None
+    assert "lift off" in results.summary(1)["message"]

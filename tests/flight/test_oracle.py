@@ -75,12 +75,15 @@ def _mach_case(table: tuple, elevation_m: float):
     return Airframe("mach", 1.0, 0.054, drag_table=table, launch=launch), motor
 
 
-@pytest.mark.parametrize("elevation_m", [0.0, 800.0])
-def test_mach_dependent_drag_agrees_with_the_oracle(elevation_m: float) -> None:
+@pytest.mark.parametrize(("elevation_m", "table"), [
+    (0.0, MACH_TABLE), (800.0, MACH_TABLE),
+    (0.0, ((0.0, 0.45), (0.5, 0.45), (0.9, 0.6), (3.0, 0.6))),  # flies past the table's last inner point
+])
+def test_mach_dependent_drag_agrees_with_the_oracle(elevation_m: float, table: tuple) -> None:
     # Found by this test: at the default step counts the apogee was 0.13 % off (goal 0.01 %), the steps crossing
     # the table's kinks and coasting through the drag rise in long steps; the integrator now ends steps on the
     # table's points and limits the Mach change per step.
-    frame, motor = _mach_case(MACH_TABLE, elevation_m)
+    frame, motor = _mach_case(table, elevation_m)
     flat_frame, _ = _mach_case(((0.0, 0.45), (3.0, 0.45)), elevation_m)
     both = simulate([frame, flat_frame], [motor, motor], descent=False)
     assert both.max_mach[0] > 1.2
@@ -88,4 +91,4 @@ def test_mach_dependent_drag_agrees_with_the_oracle(elevation_m: float) -> None:
         ref = reference_flight(f, motor)
         assert both.apogee_m[i] == pytest.approx(ref["apogee_m"], rel=1e-4)
         assert both.apogee_time_s[i] == pytest.approx(ref["apogee_time_s"], abs=5e-3)
-    assert both.apogee_m[0] < 0.9 * both.apogee_m[1]  # the drag rise costs height
+    assert both.apogee_m[0] < 0.95 * both.apogee_m[1]  # the drag rise costs height
