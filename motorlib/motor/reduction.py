@@ -84,7 +84,8 @@ class ReductionSettings:
 class Reduction:
     """The result of reducing one log. Times [s] of the trimmed curves start at ignition (0 s).
 
-    ``raw_*`` keep the tared log on its own time axis (ignition at 0 s too), ``filtered_*``
+    ``raw_*`` keep the tared log on its own time axis (ignition at 0 s too) from 20 % of the burn
+    time before ignition to 20 % after burnout (the margin a chart shows around the burn), ``filtered_*``
     the filtered uniform series, ``time_s``/``thrust_n`` the reduced curve.
     """
 

@@ -88,3 +88,14 @@ def test_ignition_and_burnout_on_straight_ramps() -> None:
     assert reduction.burnout_time_s == pytest.approx(2.48, abs=1e-4)
     assert reduction.filtered_impulse_ns == pytest.approx(150.0 - 2 * 0.02, rel=1e-4)  # minus the corners below 2 N
     assert reduction.time_s[0] == 0.0 and reduction.time_s[-1] == pytest.approx(2.46, abs=1e-4)
+
+
+def test_the_raw_log_is_kept_with_a_fifth_of_the_burn_either_side() -> None:
+    t = np.arange(-0.5, 3.0, 1e-3)
+    f = np.interp(t, [0.0, 1.0, 1.5, 2.5], [0.0, 100.0, 100.0, 0.0]) + 3.0
+    reduction = reduce_log(t, f)
+    burn = reduction.burnout_time_s - reduction.ignition_time_s  # 2.46 s: ramps crossing 2 N, by hand above
+    assert reduction.raw_time_s[0] == pytest.approx(-0.2 * burn, abs=1e-3)
+    assert reduction.raw_time_s[-1] == pytest.approx(1.2 * burn, abs=1e-3)
+    assert np.all(reduction.raw_thrust_n == f[(t >= reduction.ignition_time_s - 0.2 * burn)
+                                             & (t <= reduction.burnout_time_s + 0.2 * burn)] - 3.0)
