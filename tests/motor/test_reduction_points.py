@@ -99,3 +99,63 @@ def test_the_raw_log_is_kept_with_a_fifth_of_the_burn_either_side() -> None:
     assert reduction.raw_time_s[-1] == pytest.approx(1.2 * burn, abs=1e-3)
     assert np.all(reduction.raw_thrust_n == f[(t >= reduction.ignition_time_s - 0.2 * burn)
                                              & (t <= reduction.burnout_time_s + 0.2 * burn)] - 3.0)
+
+
+def _ramps(rate_hz: float = 1000.0) -> tuple[np.ndarray, np.ndarray]:
+    t = np.arange(-0.5, 3.0, 1.0 / rate_hz)
+    return t, np.interp(t, [0.0, 1.0, 1.5, 2.5], [0.0, 100.0, 100.0, 0.0]) + 3.0
+
+
+@pytest.mark.parametrize("fraction", [0.0, 0.5, -0.1])
+def test_the_event_fraction_must_lie_between_zero_and_a_half(fraction: float) -> None:
+    with pytest.raises(ValueError, match="event_fraction"):
+        ReductionSettings(event_fraction=fraction)
+
+
+def test_a_reduction_is_frozen() -> None:
+    import dataclasses
+
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        reduce_log(*_ramps()).noise_n = 1.0  # type: ignore[misc]
+
+
+@pytest.mark.parametrize(("column", "row"), [(0, 7), (1, 12), (1, 900)])
+def test_a_non_numeric_reading_names_its_row(column: int, row: int) -> None:
+    from motorlib import CurveDataError
+
+    data = list(_ramps())
+    data[column] = data[column].copy()
+    data[column][row - 1] = np.nan  # rows are numbered from 1 without ``lines``
+    with pytest.raises(CurveDataError, match=f"row {row}") as caught:
+        reduce_log(*data)
+    assert [p.code for p in caught.value.problems] == ["log-not-finite"]
+
+
+@pytest.mark.parametrize(("rate_hz", "cutoff_hz"), [(1000.0, 100.0), (200.0, 50.0)])
+def test_the_default_cut_off_is_100_hz_or_a_quarter_of_the_rate(rate_hz: float, cutoff_hz: float) -> None:
+    # ReductionSettings: min(100 Hz, rate / 4), common practice, no published source
+    assert reduce_log(*_ramps(rate_hz)).cutoff_hz == pytest.approx(cutoff_hz, rel=1e-9)  # rate from time stamps
+
+
+def test_a_cut_off_near_nyquist_leaves_the_log_unfiltered_with_a_warning() -> None:
+    t, f = _ramps(1000.0)
+    reduction = reduce_log(t, f, ReductionSettings(cutoff_hz=495.0))
+    assert reduction.cutoff_hz is None
+    assert "log-filter-skipped" in [x.code for x in reduction.findings]
+    assert reduce_log(t, f, ReductionSettings(cutoff_hz=0.0)).cutoff_hz is None  # 0: no filter, no warning
+
+
+def test_two_firings_give_the_sample_standard_deviation() -> None:
+    import statistics
+
+    from motorlib.motor.reduction import combine_reductions
+
+    t, f = _ramps()
+    reductions = [reduce_log(t, f), reduce_log(t, 1.1 * (f - 3.0) + 3.0)]
+    _, _, spread = combine_reductions(reductions)
+    impulses = [r.filtered_impulse_ns for r in reductions]
+    # Python's statistics.stdev: the sample standard deviation (n - 1 in the denominator)
+    assert spread["total_impulse_ns"]["std"] == pytest.approx(statistics.stdev(impulses), rel=1e-12)
+    assert spread["total_impulse_ns"]["std"] > 0.0
+    burns = [r.burnout_time_s - r.ignition_time_s for r in reductions]
+    assert spread["event_burn_time_s"]["std"] == pytest.approx(statistics.stdev(burns), rel=1e-9, abs=1e-12)
