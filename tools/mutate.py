@@ -196,7 +196,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--tests", nargs="+", help="test paths or node ids (default: the mirrored tests/ folder)")
     parser.add_argument("-k", dest="keyword", help="passed to pytest -k")
     parser.add_argument("--timeout", type=float, default=0.0,
-                        help="seconds per mutant (default: 3 x the unmutated run + 10 s)")
+                        help="seconds per mutant (default: 5 x the unmutated run + 60 s)")
     parser.add_argument("--list", action="store_true", help="print the sampled mutation sites and stop")
     args = parser.parse_args(argv)
     signal.signal(signal.SIGTERM, lambda *_: sys.exit(1))  # a stopped run still removes its scratch copy
@@ -233,7 +233,7 @@ def main(argv: list[str] | None = None) -> int:
                 if outcome != "survived":
                     print("the tests fail on the unmutated code; fix that first", file=sys.stderr)
                     return 2
-            timeout_s = args.timeout or 3 * baseline[key] + 10.0
+            timeout_s = args.timeout or 5 * baseline[key] + 60.0
             target = work / module.relative_to(ROOT)
             target.write_text(mutated_source(source, site), encoding="utf-8")
             try:
