@@ -575,8 +575,14 @@ def _step_size(g: _Group, a: dict, s: FlightSettings, deploy_altitude_m: float |
     return h
 
 
+# Largest change of Mach number in one step with a Cd(Mach) table: 0.02 brings the transonic case of
+# tests/flight/test_oracle.py to 1e-7 of the solve_ivp apogee (0.05 gave 2e-5); our choice, no published source.
+_MAX_MACH_STEP = 0.02
+
+
 def _kink_step(g: _Group, a: dict, h: np.ndarray) -> np.ndarray:
-    """Shorten steps to end on the next point of the Cd(Mach) table that the Mach number will cross.
+    """Shorten steps to change Mach by at most ``_MAX_MACH_STEP`` and to end on the next point of the Cd(Mach)
+    table that the Mach number will cross.
 
     Cd is linear between table points, so each point is a kink of the drag; a step
     across one loses RK4's order (up to 1.1e-3 in apogee with a 2x-peaked table). The
@@ -591,6 +597,9 @@ def _kink_step(g: _Group, a: dict, h: np.ndarray) -> np.ndarray:
     dot = a["vx"] * a["ax"] + a["vz"] * a["az"] + (0.0 if g.planar else a["vy"] * a["ay"])
     speed2 = a["vx"] * a["vx"] + a["vz"] * a["vz"] + (0.0 if g.planar else a["vy"] * a["vy"])
     rate = mach * dot / np.maximum(speed2, 1e-300)
+    if np.ptp(g.cds) > 0.0 or (g.cds_powered is not None and np.ptp(g.cds_powered) > 0.0):
+        with np.errstate(divide="ignore"):  # Cd changes with Mach: long coast steps would miss it
+            h = np.minimum(h, _MAX_MACH_STEP / np.abs(rate))
     up = np.searchsorted(kinks, mach, side="right")
     down = np.searchsorted(kinks, mach, side="left") - 1
     rising = rate > 0.0

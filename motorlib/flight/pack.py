@@ -39,6 +39,14 @@ class MotorPack:
     delays_s: np.ndarray
     has_mass: np.ndarray
 
+    def __post_init__(self) -> None:
+        # a record, not a workspace: its arrays are our own read-only copies
+        for name, value in list(vars(self).items()):
+            if isinstance(value, np.ndarray):
+                frozen = np.array(value)
+                frozen.flags.writeable = False
+                object.__setattr__(self, name, frozen)
+
     @property
     def n_motors(self) -> int:
         return int(self.n_samples.size)

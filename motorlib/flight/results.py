@@ -276,8 +276,10 @@ def _store_history(history: list, idx: np.ndarray, traj: list, descent: bool) ->
         if traj[k] is None:
             traj[k] = block
         else:
-            kept = traj[k]["time_s"] < block["time_s"][0]
-            traj[k] = {name: np.concatenate((traj[k][name][kept], block[name])) for name in block}
+            # the ascent pass runs on past apogee to the last ejection delay, the descent pass starts at
+            # apogee (or deployment): keep the earlier pass only up to where the later one starts
+            before = traj[k]["time_s"] < block["time_s"][0]
+            traj[k] = {name: np.concatenate((traj[k][name][before], block[name])) for name in block}
 
 
 def _finish_trajectory(block: dict[str, np.ndarray] | None, t_end_s: float, landing: dict[str, float] | None,

@@ -98,7 +98,8 @@ class ReductionSettings:
 class Reduction:
     """The result of reducing one log. Times [s] of the trimmed curves start at ignition (0 s).
 
-    ``raw_*`` keep the tared log on its own time axis (ignition at 0 s too), ``filtered_*``
+    ``raw_*`` keep the tared log on its own time axis (ignition at 0 s too) from 20 % of the burn
+    time before ignition to 20 % after burnout (the margin a chart shows around the burn), ``filtered_*``
     the filtered uniform series, ``time_s``/``thrust_n`` the reduced curve.
     """
 
@@ -120,6 +121,14 @@ class Reduction:
     impulse_error: float
     peak_error: float
     findings: tuple[Finding, ...] = field(default=())
+
+    def __post_init__(self) -> None:
+        # a record, not a workspace: its arrays are our own read-only copies
+        for name, value in list(vars(self).items()):
+            if isinstance(value, np.ndarray):
+                frozen = np.array(value)
+                frozen.flags.writeable = False
+                object.__setattr__(self, name, frozen)
 
 
 def lowpass_design_hz(cutoff_hz: float, order: int, rate_hz: float) -> float:

@@ -61,3 +61,17 @@ def test_bad_option_values_are_explained() -> None:
     assert code == 2 and "delays in seconds" in out
     code, out = run("check", str(FIXTURE_DIR / "sound_d12.csv"), "--delays", "3", "--plugged")
     assert code == 2 and "exclude each other" in out
+
+
+def test_thrust_tolerance_is_a_percentage(tmp_path) -> None:
+    # 1 % = 0.01 (ISO 80000-1). A 9 N flat curve (about 8.9 N·s, class C) labelled C10: the label is 11 % above
+    # the computed average thrust, inside a 15 % tolerance and outside a 5 % one.
+    curve = tmp_path / "flat.csv"
+    curve.write_text("time_s,thrust_n\n0,0\n0.01,9\n0.99,9\n1.0,0\n", encoding="utf-8")
+
+    def codes(tolerance: str) -> list[str]:
+        code, out = run("check", "--json", str(curve), "--designation", "C10-5", "--thrust-tolerance", tolerance)
+        return [f["code"] for f in json.loads(out)[0]["findings"]]
+
+    assert "average-thrust-mismatch" not in codes("15")
+    assert "average-thrust-mismatch" in codes("5")

@@ -68,3 +68,25 @@ def test_commit_without_syncfs_fsyncs_every_file(tmp_path: Path, monkeypatch: py
         batch.write(tmp_path / f"{k}.xml", b"x")
     batch.commit()
     assert len(synced) >= 3 + 1 and all((tmp_path / f"{k}.xml").exists() for k in range(3))
+
+
+def test_a_no_overwrite_write_never_clobbers_a_file_that_appears_while_it_writes(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # The check "does the target exist?" and the write are two steps; another process can create the target in
+    # between. Simulate that by creating it right after the temporary file is made (POSIX link(2) fails with
+    # EEXIST on an existing target, rename(2) would replace it).
+    import tempfile
+
+    target = tmp_path / "motor.xml"
+    real_mkstemp = tempfile.mkstemp
+
+    def mkstemp_then_race(*args, **kwargs):
+        made = real_mkstemp(*args, **kwargs)
+        target.write_bytes(b"theirs")
+        return made
+
+    monkeypatch.setattr(tempfile, "mkstemp", mkstemp_then_race)
+    with pytest.raises(FileExistsError):
+        write_atomic(target, b"ours", overwrite=False)
+    assert target.read_bytes() == b"theirs"
+    assert [p.name for p in tmp_path.iterdir()] == ["motor.xml"]  # no temporary file left behind

@@ -23,6 +23,7 @@ def _write(tmp_path: Path, text: str, name: str = "curve.csv") -> Path:
     "time_s,thrust_n\n0,0\n0.1,10\n1.0,0\n",
     "t (s);Thrust (N)\n0;0\n0,1;10\n1,0;0\n",
     "time\tthrust\n0\t0\n0.1\t10\n1.0\t0\n",
+    "time\tthrust\n0\t0\n0,1\t10\n1,0\t0\n",  # a spreadsheet in a decimal-comma locale saves tabs too
     "# no header, comments\n0, 0\n0.1, 10  # peak\n\n1.0, 0\n",
     "0 0\n0.1 10\n1.0 0\n",
     "\ufefftime [s],force [N]\n0,0\n0.1,10\n1.0,0\n",

@@ -74,11 +74,15 @@ def test_matches_fluids(z: float) -> None:
     assert float(atm.gravity_m_s2(z)) == pytest.approx(ref.g, rel=1e-12)
 
 
-# Sutherland's law, beta = 1.458e-6, S = 110.4 K: check-values.md 1.5 (D).
-@pytest.mark.parametrize(("t", "mu"), [(200.0, 1.328559e-5), (216.65, 1.421613e-5), (288.15, 1.789380e-5),
-                                       (350.0, 2.073597e-5)])
-def test_sutherland_values(t: float, mu: float) -> None:
-    assert atm.SUTHERLAND_BETA * t**1.5 / (t + atm.SUTHERLAND_S_K) == pytest.approx(mu, rel=5e-7)
+# Sutherland's law, beta = 1.458e-6, S = 110.4 K: check-values.md 1.5 (D), at the standard altitudes whose
+# temperature is t (geopotential H: 288.15 K at 0 m, 216.65 K at 11 km, 200 K at 78,325 m where the 1976
+# model falls by 2.0 K/km from 214.65 K at 71 km).
+@pytest.mark.parametrize(("h", "t", "mu"), [(78_325.0, 200.0, 1.328559e-5), (11_000.0, 216.65, 1.421613e-5),
+                                            (0.0, 288.15, 1.789380e-5)])
+def test_sutherland_values(h: float, t: float, mu: float) -> None:
+    z = R0 * h / (R0 - h)
+    assert float(atm.temperature_k(z)) == pytest.approx(t, abs=1e-9)
+    assert float(atm.dynamic_viscosity_pa_s(z)) == pytest.approx(mu, rel=5e-7)
 
 
 def test_vectorised_equals_scalar() -> None:
@@ -209,3 +213,20 @@ def test_site_elevation_reaches_the_gravity_of_a_flight() -> None:
     assert apogee == pytest.approx(reference_flight(frame, motor)["apogee_m"], rel=1e-6)
     sea = simulate(Airframe("vacuum", 0.4, 1e-6, 0.5), [motor], descent=False).apogee_m[0]
     assert apogee / sea - 1.0 > 2e-3
+
+
+@pytest.mark.parametrize(("kwargs", "field"), [
+    ({"elevation_m": 9000.1}, "elevation_m"), ({"elevation_m": -1000.1}, "elevation_m"),
+    ({"temperature_k": 179.9}, "temperature_k"), ({"temperature_k": 340.1}, "temperature_k"),
+    ({"pressure_pa": 9_999.0}, "pressure_pa"), ({"pressure_pa": 110_001.0}, "pressure_pa"),
+])
+def test_a_site_outside_its_range_is_refused(kwargs: dict, field: str) -> None:
+    with pytest.raises(ValueError, match=field):
+        Site(**kwargs)
+
+
+def test_a_site_at_the_ends_of_its_range_is_accepted() -> None:
+    for site in (Site(elevation_m=9000.0, temperature_k=180.0, pressure_pa=10_000.0),
+                 Site(elevation_m=-1000.0, temperature_k=340.0, pressure_pa=110_000.0)):
+        t, p, rho, a = (float(v) for v in site.air(0.0))
+        assert rho == pytest.approx(p / (R_REF * t), rel=1e-9)  # ideal gas at the pad

@@ -207,3 +207,9 @@ def test_inverse_through_air_rejects_impossible_falls() -> None:
         recovery.fall_through_air(100.0, 1.0, -0.1)
     with pytest.raises(ValueError, match="mass_kg"):
         recovery.fall_through_air(100.0, 0.0, 0.1)
+
+
+@pytest.mark.parametrize(("height", "time"), [(0.0, 5.0), (100.0, 0.0), (-1.0, 5.0)])
+def test_the_inverse_refuses_a_fall_without_height_or_time(height: float, time: float) -> None:
+    with pytest.raises(ValueError, match="must be positive"):
+        recovery.terminal_speed_from_fall_m_s(height, time)

@@ -52,3 +52,11 @@ def test_unknown_motor_length_and_bad_mach() -> None:
         airframe_summary(FRAME, mach=-0.1)
     with pytest.raises(ValueError, match="has no geometry"):
         airframe_summary(Airframe("bare", 0.3, 0.04))
+
+
+@pytest.mark.parametrize("mach", [-0.1, float("nan")])
+def test_a_negative_or_undefined_mach_number_is_refused(mach: float) -> None:
+    with pytest.raises(ValueError, match="must be >= 0"):
+        airframe_summary(FRAME, mach=mach)
+    with pytest.raises(ValueError, match="must be >= 0"):
+        airframe_summary(FRAME, table_machs=(0.0, mach))

@@ -2,12 +2,14 @@
 
 from __future__ import annotations
 
+import pint
 import pytest
-from hypothesis import example, given, strategies as st
+from hypothesis import example, given, settings, strategies as st
 
 from motorlib.present.display import DisplayUnits, format_number, normalise_system
 from motorlib.units import parse_quantity
 
+UREG = pint.UnitRegistry()
 METRIC, IMPERIAL = DisplayUnits("metric"), DisplayUnits("imperial")
 
 
@@ -71,3 +73,70 @@ def test_a_failing_value_always_reads_beyond_its_limit(limit: float, gap: float,
     value = limit * (1 + gap) if above else limit * (1 - gap)
     shown, limit_shown = units.beyond(value, limit, "speed", above=above)
     assert _number(shown) > _number(limit_shown) if above else _number(shown) < _number(limit_shown)
+
+
+# Reference: pint's unit registry (its own definitions file), one unit of each kind the display converts.
+_PINT_UNITS = {"ft": "foot", "in": "inch", "ft/s": "foot / second", "ft/s²": "foot / second ** 2", "oz": "ounce",
+               "lb": "pound", "psi": "psi", "inHg": "inch_Hg", "in²": "inch ** 2", "ft²": "foot ** 2",
+               "lb/ft³": "pound / foot ** 3", "m": "meter", "mm": "millimeter", "g": "gram", "kg": "kilogram",
+               "kPa": "kilopascal", "hPa": "hectopascal", "m/s": "meter / second", "m²": "meter ** 2",
+               "m/s²": "meter / second ** 2", "kg/m³": "kilogram / meter ** 3"}
+_SI_UNITS = {"length": "meter", "size": "meter", "speed": "meter / second", "acceleration": "meter / second ** 2",
+             "mass": "kilogram", "pressure": "pascal", "air_pressure": "pascal", "area": "meter ** 2",
+             "density": "kilogram / meter ** 3"}
+
+
+@pytest.mark.parametrize("units", [METRIC, IMPERIAL])
+@pytest.mark.parametrize("kind", sorted(_SI_UNITS))
+@settings(max_examples=30)
+@given(value=st.floats(min_value=1e-3, max_value=1e5, allow_nan=False))
+def test_conversions_agree_with_pint(units: DisplayUnits, kind: str, value: float) -> None:
+    unit = units.unit(kind, value)
+    expected = UREG.Quantity(value, _SI_UNITS[kind]).to(_PINT_UNITS[unit]).magnitude
+    # pint's inch of mercury (13.5951 g/cm³ at g0) and NIST SP 811's conventional 3386.389 Pa differ by 3e-7
+    assert units.convert(value, kind) == pytest.approx(expected, rel=1e-6 if unit == "inHg" else 1e-12)
+
+
+def test_imperial_lengths_are_shown_in_feet() -> None:
+    # 1 ft = 0.3048 m exactly (international yard and pound agreement, 1959): 304.8 m is 1,000 ft
+    assert IMPERIAL.quantity(304.8, "length") == "1,000 ft" and IMPERIAL.number(304.8, "length") == "1,000"
+    assert IMPERIAL.quantity(3.048, "speed") == "10.0 ft/s"
+
+
+# The display resolution of every unit (module docstring: "resolution that matters to a flyer, no more"); the
+# SI values are exact multiples of each unit (factors from pint, above), so the figures are worked out by hand.
+@pytest.mark.parametrize(("units", "value_si", "kind", "expected"), [
+    (METRIC, 1234.5678, "length", "1,235 m"), (IMPERIAL, 0.3048 * 1234.5678, "length", "1,235 ft"),
+    (METRIC, 0.0412345, "size", "41.2 mm"), (IMPERIAL, 0.0254 * 1.23456, "size", "1.23 in"),
+    (METRIC, 12.345, "speed", "12.3 m/s"), (IMPERIAL, 0.3048 * 12.345, "speed", "12.3 ft/s"),
+    (METRIC, 123.456, "acceleration", "123.5 m/s²"), (IMPERIAL, 0.3048 * 123.456, "acceleration", "123 ft/s²"),
+    (METRIC, 0.123456, "mass", "123 g"), (METRIC, 1.23456, "mass", "1.23 kg"),
+    (IMPERIAL, 0.028349523125 * 3.456, "mass", "3.5 oz"), (IMPERIAL, 0.45359237 * 3.456, "mass", "3.46 lb"),
+    (METRIC, 12.3456, "force", "12.3 N"), (METRIC, 12.3456, "impulse", "12.3 N·s"), (METRIC, 1.23456, "time", "1.23 s"),
+    (METRIC, 12_345.6, "pressure", "12.3 kPa"), (IMPERIAL, 6894.757293168361 * 1.23456, "pressure", "1.23 psi"),
+    (METRIC, 101_325.0, "air_pressure", "1,013 hPa"), (IMPERIAL, 3386.389 * 29.9212, "air_pressure", "29.92 inHg"),
+    (METRIC, 293.456, "temperature", "20.3 °C"), (IMPERIAL, 293.456, "temperature", "69 °F"),
+    (METRIC, 0.0123456, "area", "0.012 m²"), (IMPERIAL, 0.09290304 * 1.23456, "area", "1.23 ft²"),
+    (METRIC, 1.23456, "density", "1.235 kg/m³"), (IMPERIAL, 16.018463373960138 * 0.0765, "density", "0.0765 lb/ft³"),
+    (METRIC, 0.123456, "angle", "7.1 deg"),
+    (METRIC, 12.345, "ratio", "12.3"),
+])
+def test_each_unit_shows_its_resolution(units: DisplayUnits, value_si: float, kind: str, expected: str) -> None:
+    assert units.quantity(value_si, kind) == expected
+
+
+def test_exact_decimals_show_every_value_exactly_or_stop_at_the_limit() -> None:
+    assert METRIC.exact_decimals([29.0, 38.0], "length") == 0
+    assert METRIC.exact_decimals([29.0, 10.5], "length") == 1
+    assert METRIC.exact_decimals([10.25], "length") == 1  # not exact at one decimal: the limit
+    assert METRIC.exact_decimals([10.25], "length", max_decimals=3) == 2
+    assert METRIC.exact_decimals([123_456.0000001], "length") == 0  # within 1e-6 relative: exact
+    assert METRIC.exact_decimals([None, float("nan")], "length") == 0
+
+
+@pytest.mark.parametrize(("value", "expected"), [
+    (100.0, "100"), (6.5, "6.5"), (0.025, "0.025"), (12_345.0, "12,345"), (123.4567, "123.5"),
+    (12.34567, "12.3"), (1.234567, "1.23"), (0.0312345, "0.0312"), (0.0, "0"),
+])
+def test_plain_numbers_keep_about_three_significant_digits(value: float, expected: str) -> None:
+    assert DisplayUnits.plain(value) == expected
