@@ -7,7 +7,9 @@ The one place an error reaches the terminal:
 * anything else is a bug in motorlib: ``Error: internal error (...)`` with a one-line hint, and the
   traceback only with ``motorlib --debug`` (or ``MOTORLIB_DEBUG=1``).
 
-All three exit with status 1; a usage error (a bad option) exits with 2, as click does.
+Exit statuses, the same for every command: 0 done; 1 a check found errors or a flight failed a rule (the
+command says so and has printed its results); 2 unusable input: a bad option (as click does), a file that
+cannot be read or is not what it should be, an output that cannot be written; 3 an internal error (a bug).
 """
 
 from __future__ import annotations
@@ -31,23 +33,35 @@ def _debug(ctx: click.Context) -> bool:
     return bool(ctx.find_root().params.get("debug")) or os.environ.get("MOTORLIB_DEBUG", "") not in ("", "0")
 
 
+class _InputError(click.ClickException):
+    """Unusable input: ``Error: ...`` with exit status 2."""
+
+    exit_code = 2
+
+
+class _InternalError(click.ClickException):
+    """A bug in motorlib: ``Error: internal error ...`` with exit status 3."""
+
+    exit_code = 3
+
+
 class _Group(click.Group):
-    """Turns library errors, OSErrors and bugs into a clean ``Error: ...`` message with exit status 1."""
+    """Turns library errors, OSErrors and bugs into a clean ``Error: ...`` message (exit 2, or 3 for a bug)."""
 
     def invoke(self, ctx: click.Context) -> Any:
         try:
             return super().invoke(ctx)
         except MotorlibError as exc:
-            raise click.ClickException(str(exc)) from exc
+            raise _InputError(str(exc)) from exc
         except (click.exceptions.ClickException, click.exceptions.Exit, click.exceptions.Abort):
             raise
         except OSError as exc:
-            raise click.ClickException(os_error_text(exc)) from exc
+            raise _InputError(os_error_text(exc)) from exc
         except MemoryError as exc:
-            raise click.ClickException("out of memory: the input is far larger than motorlib can handle") from exc
+            raise _InputError("out of memory: the input is far larger than motorlib can handle") from exc
         except Exception as exc:
             if _debug(ctx):
                 raise
-            raise click.ClickException(
+            raise _InternalError(
                 f"internal error ({type(exc).__name__}: {exc}); this is a bug in motorlib. Run again with "
                 "'motorlib --debug ...' to see where it happened, and please report it") from exc

@@ -112,6 +112,6 @@ def test_errors_are_clear(tmp_path: Path) -> None:
     code, out = run("airframe", str(bare))
     assert code == 1 and "[geometry]: missing section" in out
     code, out = run("airframe", QUIBBLE, "--motor", "Z99")
-    assert code == 1 and "no motor with that id, handle or designation" in out
+    assert code == 2 and "no motor with that id, handle or designation" in out
     code, out = run("airframe", QUIBBLE, "--mach", "-1")
     assert code == 2

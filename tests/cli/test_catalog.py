@@ -50,7 +50,7 @@ def test_catalog_commands_end_to_end(tmp_path: Path) -> None:
     code, out = run("catalog", "remove", "--catalog", cat, "G59-10")
     assert code == 0
     code, out = run("catalog", "show", "--catalog", cat, "G59-10")
-    assert code == 1 and "no motor with that id" in out
+    assert code == 2 and "no motor with that id" in out
     code, out = run("catalog", "add", "--catalog", cat, str(FIXTURE_DIR / "class_mismatch.xml"))
     assert code == 1 and "refused" in out
 

@@ -57,7 +57,7 @@ def test_fly_every_bundled_motor_that_fits() -> None:
 
 def test_fly_errors_are_clear() -> None:
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "Z99")
-    assert code == 1 and "no motor with that id, handle or designation" in out
+    assert code == 2 and "no motor with that id, handle or designation" in out
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "20")
     assert code == 2 and "can only be shortened" in out
 

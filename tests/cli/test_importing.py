@@ -37,7 +37,7 @@ def test_import_refuses_errors_unless_forced(tmp_path: Path) -> None:
 
 def test_import_of_broken_csv_names_the_line(tmp_path: Path) -> None:
     code, out = run("import", str(FIXTURE_DIR / "ragged_row.csv"), "-o", str(tmp_path / "x.xml"))
-    assert code == 1 and "ragged_row.csv:4" in out
+    assert code == 2 and "ragged_row.csv:4" in out
 
 
 def test_source_kinds_are_our_own_words(tmp_path: Path) -> None:

@@ -63,10 +63,10 @@ def test_bad_uncertainty_entries_name_the_key(tmp_path: Path) -> None:
     frame = tmp_path / "r.toml"
     frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ndrag = "lots"\n')
     code, out = run("scatter", str(frame), "--motor", "F29-8", "-n", "5")
-    assert code == 1 and "uncertainty.drag" in out
+    assert code == 2 and "uncertainty.drag" in out
     frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ndarg = "5 %"\n')
     code, out = run("fly", str(frame), "--motor", "F29-8")
-    assert code == 1 and "uncertainty.darg" in out
+    assert code == 2 and "uncertainty.darg" in out
 
 
 def test_match_robust_json_and_windows() -> None:

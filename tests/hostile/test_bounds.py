@@ -65,7 +65,7 @@ def test_read_only_commands_never_create_the_user_catalog(tmp_path: Path) -> Non
     from motorlib.cli.options import default_catalog_dir
 
     result = run("catalog", "list")
-    assert result.exit_code in (0, 1), result.output
+    assert result.exit_code in (0, 2), result.output  # 2: no catalog there yet (unusable input), never created
     assert not Path(default_catalog_dir()).exists()
     result = run("match", AIRFRAME, "--target", "300")
     assert result.exit_code == 0, result.output  # the bundled samples, not "no motors"

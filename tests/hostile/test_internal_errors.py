@@ -18,7 +18,7 @@ def test_a_bug_is_an_internal_error_with_a_hint(monkeypatch: pytest.MonkeyPatch)
 
     monkeypatch.setattr(physics, "pad_terminal_speed_m_s", _broken)
     result = CliRunner().invoke(main, ["descent", "--mass", "100g", "--drag-area", "0.1"])
-    assert result.exit_code == 1
+    assert result.exit_code == 3  # a bug: neither findings (1) nor unusable input (2)
     assert "internal error (RuntimeError: simulated bug)" in result.output and "--debug" in result.output
     assert "Traceback" not in result.output
     assert descent_module is not None
@@ -34,7 +34,7 @@ def test_debug_shows_the_traceback(monkeypatch: pytest.MonkeyPatch) -> None:
 
 def test_an_os_error_names_the_path(tmp_path) -> None:
     result = CliRunner().invoke(main, ["new-airframe", str(tmp_path / "missing" / "x.toml")])
-    assert result.exit_code == 1
+    assert result.exit_code == 2
     assert "missing" in result.output and "Traceback" not in result.output
 
 

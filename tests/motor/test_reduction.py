@@ -215,7 +215,7 @@ def test_reduce_command_mass_units_and_counts(tmp_path: Path) -> None:
                                                 "--json"]).output)
     assert data["total_impulse_ns"] == pytest.approx(known.total_impulse_ns, rel=0.01)
     result = CliRunner().invoke(main, ["reduce", str(counts)])
-    assert result.exit_code == 1 and "calibration" in result.output
+    assert result.exit_code == 2 and "calibration" in result.output
 
 
 def test_reduce_command_refuses_a_label_it_does_not_honour(tmp_path: Path) -> None:
