@@ -21,7 +21,7 @@ from ..flight.stability import nose_weight_kg, stability_for_pack
 if TYPE_CHECKING:
     from .rank import MatchSettings
 from .figures import (_STABILITY_KEYS, _choose_delays, _deployment_speeds, _figures, _landing_distance, _landing_speed,
-                      _reasons, _Recovered)
+                      _reasons, _Recovered, flies_descent)
 
 __all__: list[str] = []
 
@@ -72,7 +72,7 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         f_lo = np.where(right & (side == 1), f_lo / 2, f_lo)
         f_hi = np.where(~right & (side == -1), f_hi / 2, f_hi)
         side = np.where(right, 1, -1)
-    final = simulate(frame, sub, fs, added_mass_kg=mass, descent=False)
+    final = simulate(frame, sub, fs, added_mass_kg=mass, descent=flies_descent(frame, s))
     chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i]["delays_s"] for i in idx])
     landing = _landing_speed(frame, final, sub)
     deploy, distance = _deployment_speeds(frame, final, sub), _landing_distance(frame, final, sub)
@@ -146,7 +146,7 @@ def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: M
     """Fly the motors ``idx`` again carrying their nose weight and check every rule, stability included."""
     sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
     sub_rows = [rows[i] for i in idx]
-    final = simulate(frame, sub, fs, added_mass_kg=weight_kg, descent=False)
+    final = simulate(frame, sub, fs, added_mass_kg=weight_kg, descent=flies_descent(frame, s))
     again = _figures(frame, sub_rows, sub, final, s)
     stability = stability_for_pack(frame, sub, lengths[idx], rail_exit_time_s=final.rail_exit_time_s,
                                    added_mass_kg=weight_kg)

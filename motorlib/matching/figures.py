@@ -64,15 +64,26 @@ def _landing_speed(frame: Airframe, results: FlightResults, pack: MotorPack) -> 
     return np.sqrt(2.0 * burnt_mass * STANDARD_GRAVITY_M_S2 / (float(rho) * (extra + body)))
 
 
+def flies_descent(frame: Airframe, s: MatchSettings) -> bool:
+    """Whether the ranking flies the whole descent rather than estimating it: for a recovery sequence, a device
+    opened by electronics, or a field radius to check (then every opening speed and the landing point are the
+    flown ones; a single ejection-charge device without a field radius keeps the fast estimate)."""
+    devices = frame.recovery_devices
+    return bool(devices) and (len(devices) > 1 or any(d.deploy != "ejection" for d in devices)
+                              or s.rules.field_radius_m is not None)
+
+
 def _deployment_speeds(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
-    """Opening speed of every device [m/s], shape (n, n_devices): the first from the flight, a later one the
-    terminal speed under the devices before it at its opening height (NaN where the first never opens)."""
+    """Opening speed of every device [m/s], shape (n, n_devices): the flown one where the descent was flown;
+    else the first from the flight and a later one the terminal speed under the devices before it at its
+    opening height (NaN where the first never opens)."""
     devices = frame.recovery_devices
     n = results.n_flights
     out = np.full((n, max(len(devices), 1)), np.nan)
     if not devices:
         return out
-    out[:, 0] = results.deployment_speed_m_s[:, 0]
+    flown = results.deployment_speed_m_s[:, : len(devices)]
+    out[:, 0] = flown[:, 0]
     weight = (results.liftoff_mass_kg - pack.propellant_mass_kg) * STANDARD_GRAVITY_M_S2
     body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
     height = results.deployment_altitude_m[:, 0]
@@ -84,7 +95,8 @@ def _deployment_speeds(frame: Airframe, results: FlightResults, pack: MotorPack)
             height = np.minimum(height, float(devices[k].deploy_altitude_m))  # type: ignore[arg-type]
         _, _, rho, _ = frame.launch.site.air(np.maximum(height, 0.0))
         out[:, k] = np.where(np.isfinite(out[:, 0]), np.sqrt(2.0 * weight / (rho * (body + extra))), np.nan)
-    return out
+    landed = np.isfinite(results.landing_east_m)[:, None]  # the descent was flown: its own opening speeds
+    return np.where(landed & np.isfinite(flown), flown, out) if flown.shape == out.shape else out
 
 
 def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
@@ -112,7 +124,9 @@ def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) 
         # ∫ w(z) dz / v_t over [bottom, top] with w(z) = w10·(z/10)^α
         band = (top ** (alpha + 1.0) - bottom ** (alpha + 1.0)) / ((alpha + 1.0) * 10.0**alpha)
         drift += frame.launch.wind_speed_m_s * band / v_t
-    return np.abs(results.apogee_downrange_m + drift)
+    estimate = np.abs(results.apogee_downrange_m + drift)
+    flown = np.hypot(results.landing_east_m, results.landing_north_m)
+    return np.where(np.isfinite(flown), flown, estimate)  # the flown landing point where the descent was flown
 
 
 def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,

@@ -38,7 +38,7 @@ from ..flight.rules import LaunchRules
 from ..flight.stability import MIN_STABILITY_CAL
 from .adapters import adapter_steps, adapter_text
 from .ballast import _check_stability, _solve_ballast
-from .figures import _STABILITY_KEYS, _figures
+from .figures import _STABILITY_KEYS, _figures, flies_descent
 from .verdicts import classify, verdict_order
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "rank"]
@@ -224,7 +224,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     if fitting:
         sub = [rows[i] for i in fitting]
         pack = pack_for(sub)
-        results = simulate(frame, pack, fs, descent=False)
+        results = simulate(frame, pack, fs, descent=flies_descent(frame, s))
         figures = _figures(frame, sub, pack, results, s)
         _check_stability(frame, sub, pack, results, figures, s, fs)
         if s.ballast:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import numpy as np
 import pytest
 from click.testing import CliRunner
 
@@ -287,12 +288,21 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
                     recovery_sequence=(drogue, main))
     c = rank(dual, [motor], settings=MatchSettings()).candidates[0]
     assert "deploy" not in c["reason_codes"] and c["max_deployment_speed_m_s"] < 45.0
+    # a sequence is flown to the ground: match's opening speeds are the flight's own (fly shows the same)
+    assert c["max_deployment_speed_m_s"] == pytest.approx(float(np.nanmax(simulate(dual, [motor]).deployment_speed_m_s[0])),
+                                                         rel=1e-9)
     # the field radius fails a motor that lands outside it
     windy = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054,
                      launch=Launch(rail_length_m=3.0, wind_speed_m_s=8.0), recovery_sequence=(drogue, main))
-    tight = MatchSettings(rules=LaunchRules(field_radius_m=50.0))
+    # with a field radius the descent is flown: the landing distance is the flight's own (weathercocked upwind,
+    # then drifted back: it lands near the pad), and a radius below it fails the motor
+    flown = simulate(windy, [motor])
+    distance = float(np.hypot(flown.landing_east_m[0], flown.landing_north_m[0]))
+    tight = MatchSettings(rules=LaunchRules(field_radius_m=0.5 * distance))
     c = rank(windy, [motor], settings=tight).candidates[0]
-    assert c["landing_distance_m"] > 50.0 and "field" in c["reason_codes"]
+    assert c["landing_distance_m"] == pytest.approx(distance, rel=1e-9) and "field" in c["reason_codes"]
+    roomy = rank(windy, [motor], settings=MatchSettings(rules=LaunchRules(field_radius_m=2.0 * distance + 1.0)))
+    assert "field" not in roomy.candidates[0]["reason_codes"]
 
 
 def test_match_recovery_options_fail_motors_with_the_reason() -> None:
