@@ -109,7 +109,13 @@ def apply_field_day(frame: Any, day: dict[str, Any]) -> Any:
         if "temperature_k" in given or "elevation_m" in given:
             site = replace(site, temperature_k=given.get("temperature_k", site.temperature_k),
                            elevation_m=given.get("elevation_m", site.elevation_m))
-        launch = replace(launch, site=site,
+        profile = launch.wind_profile
+        if profile is not None and ("wind_m_s" in given or "wind_from_rad" in given):
+            # today's reading replaces the file's measured profile: flying the profile would ignore the option
+            click.echo("Note: --wind/--wind-from replace the airframe file's measured wind_profile; the wind "
+                       "grows from today's reading by the power law.", err=True)
+            profile = None
+        launch = replace(launch, site=site, wind_profile=profile,
                          wind_speed_m_s=given.get("wind_m_s", launch.wind_speed_m_s),
                          wind_direction_rad=given.get("wind_from_rad", launch.wind_direction_rad),
                          rail_length_m=given.get("rail_length_m", launch.rail_length_m),

@@ -61,6 +61,7 @@ import numpy as np
 
 from .airframe import Airframe, Recovery
 from .integrate import OK, FlightSettings, MotorPack, simulate
+from .rules import LaunchRules
 from ..motor.record import FiringSpread, MotorRecord
 from .sample_stats import CHI2_2DOF_95, _num, _percentiles, _probability, ellipse, inside_ellipse
 
@@ -158,8 +159,9 @@ class DispersionSettings:
         Azimuth the rail leans towards [rad]; None: the airframe file's, else downwind.
     ceiling_m, field_radius_m : float or None
         Altitude limit, and radius of the field around the pad [m].
-    max_deploy_speed_m_s : float
-        Deployment above this speed counts as a failure (25 m/s, common practice; see LaunchRules).
+    max_deploy_speed_m_s : float or None
+        An opening above this speed counts as a failure; None: each device against its own kind's limit
+        (:meth:`~motorlib.flight.rules.LaunchRules.deployment_limit_m_s`, common practice).
     chunk_size : int
         Flights per batched call (memory against per-call overhead); the unit of work of a worker process.
     flight : FlightSettings
@@ -171,7 +173,7 @@ class DispersionSettings:
     rail_azimuth_rad: float | None = None
     ceiling_m: float | None = None
     field_radius_m: float | None = None
-    max_deploy_speed_m_s: float = 25.0
+    max_deploy_speed_m_s: float | None = None
     chunk_size: int = 1000
     flight: FlightSettings = field(default_factory=FlightSettings)
 
@@ -316,9 +318,9 @@ def _recoveries(recovery: Recovery | None, shift_m: np.ndarray, std_m: float) ->
 
 # ----------------------------------------------------------------------------- flying
 _OUTPUTS: Final = ("status", "apogee_m", "apogee_time_s", "liftoff_time_s", "rail_exit_speed_m_s",
-                   "liftoff_thrust_to_weight", "optimal_delay_s", "deploy_delay_s", "deploy_speed_m_s",
+                   "liftoff_thrust_to_weight", "optimal_delay_s", "deploy_delay_s", "deploy_speed_m_s", "deploy_limit_ratio",
                    "landing_time_s", "landing_speed_m_s", "flight_duration_s", "landing_east_m",
-                   "landing_north_m", "cg_shift_m", "max_mach")
+                   "landing_north_m", "cg_shift_m", "max_mach", "wind_speed_m_s")
 
 
 def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Sequence[Uncertainty],
@@ -362,12 +364,23 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
             col = np.argmax(hit, axis=1)
             fired = hit.any(axis=1) & (res.ejection_altitude_m[rows, col] > 0.0)  # not after touchdown
             deploy_speed = np.where(fired, res.ejection_speed_m_s[rows, col], np.nan)
+    devices = frame.recovery_devices
+    limits = np.array([settings.max_deploy_speed_m_s if settings.max_deploy_speed_m_s is not None
+                       else LaunchRules().deployment_limit_m_s(d.device) for d in devices] or [np.inf])
+    ratio = deploy_speed / limits[0]
+    if descent and devices:  # flown to the ground: every device's opening against its own limit
+        speeds = res.deployment_speed_m_s[:, : len(devices)]
+        opened = np.isfinite(speeds).any(axis=1)
+        fastest = np.max(np.where(np.isfinite(speeds), speeds, -np.inf), axis=1)
+        deploy_speed = np.where(opened, fastest, deploy_speed)
+        worst = np.max(np.where(np.isfinite(speeds), speeds / limits[: speeds.shape[1]], -np.inf), axis=1)
+        ratio = np.where(opened, worst, ratio)
     return {
         "status": res.status, "apogee_m": res.apogee_m, "apogee_time_s": res.apogee_time_s,
         "liftoff_time_s": res.liftoff_time_s, "rail_exit_speed_m_s": res.rail_exit_speed_m_s,
         "liftoff_thrust_to_weight": res.liftoff_thrust_to_weight, "optimal_delay_s": res.optimal_delay_s,
         "deploy_delay_s": (res.deploy_delay_s if wanted is None or descent else wanted),
-        "deploy_speed_m_s": deploy_speed, "landing_time_s": res.landing_time_s,
+        "deploy_speed_m_s": deploy_speed, "deploy_limit_ratio": ratio, "landing_time_s": res.landing_time_s,
         "landing_speed_m_s": res.landing_speed_m_s, "flight_duration_s": res.landing_time_s - res.liftoff_time_s,
         "landing_east_m": res.landing_east_m, "landing_north_m": res.landing_north_m,
         "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach, "wind_speed_m_s": extra["wind_speed_m_s"],
@@ -472,7 +485,8 @@ def summarize(flights: dict[str, np.ndarray], settings: DispersionSettings, *, t
     out["p_over_ceiling"], out["p_over_ceiling_standard_error"] = p["p"], p["standard_error"]
     speed = flights["deploy_speed_m_s"]
     known = np.isfinite(speed)
-    p = _probability(speed > settings.max_deploy_speed_m_s, known) if known.any() else {"p": None, "standard_error": None}
+    ratio = flights.get("deploy_limit_ratio", speed / (settings.max_deploy_speed_m_s or 25.0))
+    p = _probability(ratio > 1.0, known) if known.any() else {"p": None, "standard_error": None}
     out["max_deploy_speed_m_s"] = settings.max_deploy_speed_m_s
     out["p_deploy_too_fast"], out["p_deploy_too_fast_standard_error"] = p["p"], p["standard_error"]
     out["deploy_speed_m_s"] = _percentiles(speed)
@@ -567,6 +581,9 @@ def run_scatter(frame: Airframe, record: MotorRecord, uncertainty: Uncertainty, 
         "n_firings": used.n_firings, "total_impulse_relative_std": used.total_impulse_relative_std,
         "burn_time_relative_std": used.burn_time_relative_std,
         "source": "motor record" if record.firing_spread is not None else "catalog records"}
-    summary["landing_model"] = ("3-D: each sample flown with its own wind direction, rail tilt and rail azimuth; "
-                                "the wind's direction is the same at every height")
+    summary["landing_model"] = (
+        "3-D: the airframe file's measured wind profile flown as given in every sample (wind speed and direction "
+        "are not sampled); rail tilt and azimuth sampled" if frame.launch.wind_profile is not None else
+        "3-D: each sample flown with its own wind direction, rail tilt and rail azimuth; the wind's direction is "
+        "the same at every height")
     return summary, flights

@@ -60,7 +60,8 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
     if summary.get("ceiling_m") is not None:
         lines.append(f"Over the ceiling ({u.quantity(summary['ceiling_m'], 'length')}): "
                      f"{_percent(summary['p_over_ceiling'], summary['p_over_ceiling_standard_error'])}\n")
-    lines.append(f"Deployment above {u.quantity(summary['max_deploy_speed_m_s'], 'speed')}: "
+    limit = summary.get("max_deploy_speed_m_s")
+    lines.append(f"Deployment above {u.quantity(limit, 'speed') if limit is not None else 'its device kind' + chr(39) + 's limit'}: "
                  + (_percent(summary["p_deploy_too_fast"], summary["p_deploy_too_fast_standard_error"])
                     if summary["p_deploy_too_fast"] is not None else "not known for this deployment") + "\n")
     if summary.get("field_radius_m") is not None:

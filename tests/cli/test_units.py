@@ -297,3 +297,16 @@ def test_nose_weight_reasons_follow_the_units_and_never_read_zero() -> None:
     c = {"stability_margin_cal": 0.98, "nose_weight_for_stability_kg": 0.0327}
     text = reason_text("stability", "library text in g", c, {"min_stability_cal": 1.0}, u)
     assert text == "stability margin 0.98 cal, below 1 cal; 1.2 oz of nose weight restores it"
+
+
+def test_field_day_wind_replaces_a_measured_profile(tmp_path: Path) -> None:
+    # --wind on a file with a wind_profile changed nothing but the rail rule: the profile was flown regardless
+    frame = tmp_path / "profiled.toml"
+    frame.write_text(Path(QUIBBLE).read_text().replace(
+        "[launch]", '[launch]\nwind_profile = [[0, 2, 270], [500, 6, 270]]', 1))
+    def landing(*extra: str) -> dict:
+        code, out = run("fly", str(frame), "--motor", "F29-8", "--json", *extra)
+        assert code in (0, 1), out
+        return json.loads(out[out.index("{"):])["landing"]
+    calm, strong = landing(), landing("--wind", "9m/s", "--wind-from", "90deg")
+    assert strong["east_m"] < 0 < calm["east_m"]  # the wind now blows from the east: the rocket lands west
