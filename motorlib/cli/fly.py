@@ -94,6 +94,10 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.wind_speed_m_s,
                                constant_drag=not frame.drag_table)
     warnings += _stability_and_drag(frame, record, results, summary, ballast_kg or 0.0, min_stability_cal)
+    from ..matching.rank import mount_problems
+
+    warnings += [("motor-does-not-fit", f"{motor.designation} {text}: flown as asked, but it cannot go in this mount")
+                 for text in mount_problems(frame, motor)]
     if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
         from ..present.messages import warning_message
 

@@ -41,7 +41,7 @@ from .ballast import _check_stability, _solve_ballast
 from .figures import _STABILITY_KEYS, _figures, flies_descent
 from .verdicts import classify, verdict_order
 
-__all__ = ["MatchResult", "MatchSettings", "candidate_rows", "rank"]
+__all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
 
 
 @dataclass(frozen=True)
@@ -143,6 +143,14 @@ def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = N
             "delay_adjustable": r.delay_adjustable, "ejection": r.ejection, "handle": r.designation,
         })
     return rows
+
+
+def mount_problems(frame: Airframe, record: MotorRecord) -> list[str]:
+    """Why ``record`` cannot go into ``frame``'s mount as it is (too wide, too long, or of unknown size); an
+    adapter for a narrower motor is not a problem. Empty when it fits or the airframe states no mount."""
+    settings = MatchSettings(allow_smaller_motors=True, adapter_steps=99)
+    reasons, _ = _fits(frame, candidate_rows([record])[0], settings)
+    return [text for code, text in reasons if code == "no fit"]
 
 
 def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:

@@ -65,8 +65,8 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
         ("drag", _drag_words(frame, summary)),
         ("motor mount", "-" if frame.mount_diameter_m is None else f"{frame.mount_diameter_m * 1e3:.0f} mm"
          + ("" if frame.mount_length_m is None else f", up to {frame.mount_length_m * 1e3:.0f} mm long")),
-        ("recovery", "none given" if frame.recovery is None else
-         f"{frame.recovery.device}, deployed at {frame.recovery.deploy}, Cd·A {frame.recovery.drag_area_m2:.3g} m²"),
+        ("recovery", "none given" if not frame.recovery_devices else
+         "; ".join(f"{d.device}, opened at {d.deploy}, Cd·A {d.drag_area_m2:.3g} m²" for d in frame.recovery_devices)),
     ))
     prov = motor.provenance
     cls = motor.impulse_class
@@ -91,7 +91,7 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
     ))
     site = launch.site
     conditions = Facts("Conditions", (
-        ("rail", f"{quantity(launch.rail_length_m, 'length', u) if u == 'imperial' else f'{launch.rail_length_m:g} m'}"
+        ("rail", f"{quantity(launch.rail_length_m, 'length', u) if u == 'imperial' else f'{launch.rail_length_m:.2f} m'}"
                  f", {math.degrees(launch.rail_angle_rad):g}° from vertical, leaning "
                  + ("downwind" if launch.rail_azimuth_rad is None else
                     f"toward {math.degrees(launch.rail_azimuth_rad) % 360:03.0f}°")),
@@ -127,7 +127,9 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
          if frame.drag_source == "estimated" else "Drag from the airframe's Cd")
         + "; the motor burns as its curve says; propellant mass falls with impulse delivered.",
         *_stability_assumptions(summary),
-        "Standard atmosphere shifted to the pad's measured air; wind grows with height by a power law.",
+        "Standard atmosphere shifted to the pad's measured air; "
+        + ("the wind as the measured profile gives it at each height." if launch.wind_profile is not None
+           else "wind grows with height by a power law."),
         "Recovery device fully open the moment it deploys; no gusts, no weathercocking beyond the model's.",
         "Times count from motor ignition; altitudes are above the pad.",
     ))
@@ -193,10 +195,16 @@ def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
         return None
     from ..flight.rules import LaunchRules
 
-    limit = LaunchRules().max_ejection_speed_m_s
-    marks = ["info" if row[3] == "-" else ("ok" if _speed_ok(row[3], limit, u) else "caution") for row in rows]
+    rules = LaunchRules()
+    kinds = [str(e.get("device") or "parachute") for e in summary.get("deployments") or []]
+    limits = [rules.deployment_limit_m_s(kind) for kind in kinds] or [rules.max_ejection_speed_m_s] * len(rows)
+    limits += [rules.max_ejection_speed_m_s] * (len(rows) - len(limits))
+    marks = ["info" if row[3] == "-" else ("ok" if _speed_ok(row[3], limit, u) else "caution")
+             for row, limit in zip(rows, limits)]
     return TableBlock("Recovery events", ("event", "time", "height", "speed"), tuple(rows), (False, True, True, True),
-                      tuple(marks), f"Speed at each event against {quantity(limit, 'speed', u)} (common practice).")
+                      tuple(marks), "Speed at each event against its device kind's limit: "
+                      + ", ".join(f"{kind} {quantity(rules.deployment_limit_m_s(kind), 'speed', u)}"
+                                  for kind in dict.fromkeys(kinds or ["parachute"])) + " (common practice).")
 
 
 def _speed_ok(text: str, limit_m_s: float, u: str) -> bool:

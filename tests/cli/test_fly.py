@@ -106,3 +106,13 @@ def test_fly_json_has_the_recovery_contract() -> None:
     assert {"apogee_east_m", "apogee_north_m", "deployments", "landing"} <= set(data)
     assert {"device", "trigger", "time_s", "altitude_m", "speed_m_s", "opening_load_n"} <= set(data["deployments"][0])
     assert set(data["landing"]) == {"time_s", "speed_m_s", "east_m", "north_m", "distance_m", "bearing_deg"}
+
+
+def test_fly_says_when_the_motor_cannot_go_in_the_mount() -> None:
+    # a 98 mm, 702 mm motor in the demo's 29 mm, 200 mm mount flew with "flight completed" and no word of it
+    code, out = run("fly", str(SAMPLE_DIR / "airframes" / "quibble-41.toml"), "--motor", "M2578-P", "--json")
+    data = json.loads(out)
+    fit = [w["message"] for w in data["warnings"] if w["code"] == "motor-does-not-fit"]
+    assert any("98 mm motor in a 29 mm mount" in m for m in fit) and any("702 mm long" in m for m in fit)
+    code, out = run("fly", str(SAMPLE_DIR / "airframes" / "quibble-41.toml"), "--motor", "F29-8", "--json")
+    assert "motor-does-not-fit" not in [w["code"] for w in json.loads(out)["warnings"]]

@@ -69,3 +69,11 @@ def test_failed_incomplete_and_undeployed_flights() -> None:
     assert _codes(deploy_time_s=None) == ["no-deployment"]
     assert _codes(deploy_time_s=None, has_recovery=False) == []
     assert _codes(chosen_delay_s=None, chosen_ejection_speed_m_s=None, landing_descent_rate_m_s=None) == []
+
+
+def test_a_fast_charge_that_opens_nothing_is_no_canopy_risk() -> None:
+    # With electronics the motor's charge opens no device: its speed is not a deployment (each device's own
+    # opening is checked as deployment-fast); the warning said "risk of a torn canopy" beside a drogue marked fine.
+    opened = [{"device": "drogue", "trigger": "apogee", "speed_m_s": 30.0}]
+    assert "ejection-fast" not in _codes(chosen_ejection_speed_m_s=30.3, deployments=opened)
+    assert "ejection-fast" in _codes(chosen_ejection_speed_m_s=30.3)  # no device listed: the charge is all there is
