@@ -304,9 +304,13 @@ def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]])
     figures: list[CardFigure] = []
     if isinstance(landing, dict):
         speed = landing.get("speed_m_s")
-        figures.append(CardFigure("touchdown speed", quantity(speed, "speed", u),
-                                  _check(speed, r.max_landing_speed_m_s, False),
+        rate = s.get("landing_descent_rate_m_s")
+        rate = speed if rate is None else rate
+        # the rule is on the descent rate (as match checks it); the speed over the ground adds the wind's drift
+        figures.append(CardFigure("descent rate", quantity(rate, "speed", u),
+                                  _check(rate, r.max_landing_speed_m_s, False),
                                   f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"))
+        figures.append(CardFigure("touchdown speed", quantity(speed, "speed", u) + " (with the wind's drift)"))
         if landing.get("time_s") is not None:
             figures.append(CardFigure("lands at", _seconds(landing.get("time_s"))))
         if landing.get("distance_m") is not None:

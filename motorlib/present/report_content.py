@@ -215,7 +215,8 @@ def _speed_ok(text: str, limit_m_s: float, u: str) -> bool:
 def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
     landing = summary.get("landing")
     if isinstance(landing, dict):
-        rows = [("touchdown speed", quantity(landing.get("speed_m_s"), "speed", u)),
+        rows = [("descent rate", quantity(summary.get("landing_descent_rate_m_s"), "speed", u)),
+                ("touchdown speed", quantity(landing.get("speed_m_s"), "speed", u) + " with the wind's drift"),
                 ("lands at", quantity(landing.get("time_s"), "time")),
                 ("distance from the pad", quantity(landing.get("distance_m"), "length", u))]
         if landing.get("bearing_deg") is not None:
