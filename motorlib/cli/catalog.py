@@ -295,7 +295,9 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
         with _progress("exporting curves", len(rows)) as advance:
             written = export_records(items, folder, fmt, overwrite=overwrite, progress=advance)
     except FileExistsError as exc:
-        raise click.ClickException(f"{exc}; use --overwrite to replace them") from None
+        from .group import _InputError
+
+        raise _InputError(f"{exc}; use --overwrite to replace them") from None
     from rich.markup import escape
 
     _console().print(f"Exported {len(rows)} motor(s) to {len(written)} file(s) in {escape(folder)}")

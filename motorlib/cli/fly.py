@@ -76,7 +76,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     delay_s = None if delay_s is None else float(delay_s)
     frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
     motor, motor_file = _load_motor(motor_ref, catalog_dir)
-    _check_outputs({"--csv": csv_path, "--plot": plot_path}, overwrite, [airframe_file, motor_file])
+    _check_outputs({"--csv": csv_path, "--plot": plot_path, "--report": report_path}, overwrite, [airframe_file, motor_file])
     if report_path:
         from .output import _write_report
 

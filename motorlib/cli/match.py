@@ -99,7 +99,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
     units = display_units(opts.get("units"))
     frame = apply_field_day(load_airframe(airframe_file), opts.get("_field_day") or {})
-    _check_outputs({"--plot": opts["plot_path"]}, opts["overwrite"], [airframe_file])
+    _check_outputs({"--plot": opts["plot_path"], "--report": opts.get("report_path")}, opts["overwrite"], [airframe_file])
     if opts.get("report_path"):
         from .output import _write_report
 

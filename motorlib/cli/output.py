@@ -63,7 +63,6 @@ def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *,
     With ``check_only`` nothing is written: a command calls it first, so that a refused report path stops it
     before it writes anything else.
     """
-    import click
 
     from ..present.report import check_report_target, write_report
 
@@ -72,9 +71,9 @@ def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *,
             return check_report_target(path, overwrite=overwrite, inputs=inputs)
         return write_report(report, path, overwrite=overwrite, inputs=inputs)
     except FileExistsError as exc:
-        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+        raise _report_error(f"{exc}; use --overwrite to replace it") from exc
     except ValueError as exc:
-        raise click.ClickException(str(exc)) from exc
+        raise _report_error(str(exc)) from exc
 
 
 def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequence[Any] = ()) -> None:
@@ -82,11 +81,11 @@ def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequ
 
     ``outputs`` maps an option (``--plot``) to its path or None. Refused: a path that is one of ``inputs``
     (even with ``--overwrite``), two options naming one file, an existing file without ``--overwrite``,
-    a folder, and a parent folder that does not exist. Raises ``click.ClickException`` (exit status 1).
+    a folder, and a parent folder that does not exist. Raises an input error (exit status 2, as for every unusable input).
     """
     import os
 
-    import click
+    from .group import _InputError
 
     def same(a: str, b: Any) -> bool:
         try:
@@ -101,18 +100,18 @@ def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequ
         if not path:
             continue
         if any(same(path, source) for source in inputs if source):
-            raise click.ClickException(f"{option} {path}: is an input of this command; choose another file name")
+            raise _InputError(f"{option} {path}: is an input of this command; choose another file name")
         for other, taken in claimed.items():
             if same(path, taken):
-                raise click.ClickException(f"{option} {path}: also given to {other}; choose another file name")
+                raise _InputError(f"{option} {path}: also given to {other}; choose another file name")
         claimed[option] = path
         if os.path.isdir(path):
-            raise click.ClickException(f"{option} {path}: is a folder; give a file name")
+            raise _InputError(f"{option} {path}: is a folder; give a file name")
         if os.path.lexists(path) and not overwrite and _is_regular(path):
-            raise click.ClickException(f"{option} {path}: already exists; use --overwrite to replace it")
+            raise _InputError(f"{option} {path}: already exists; use --overwrite to replace it")
         parent = os.path.dirname(path) or "."
         if not os.path.isdir(parent):
-            raise click.ClickException(f"{option} {path}: folder {parent} does not exist")
+            raise _InputError(f"{option} {path}: folder {parent} does not exist")
 
 
 def _is_regular(path: str) -> bool:
@@ -130,3 +129,10 @@ def _card_units(units: Any) -> str:
     """The system name the flight card and the reports take ("si" or "imperial") from the display setting."""
     system = getattr(units, "system", units)
     return "imperial" if system == "imperial" else "si"
+
+
+def _report_error(message: str) -> Exception:
+    """An unusable --report path: exit status 2."""
+    from .group import _InputError
+
+    return _InputError(message)

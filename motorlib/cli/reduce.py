@@ -66,7 +66,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
-    _check_outputs({"--output": output, "--plot": plot_path}, overwrite, logs)
+    _check_outputs({"--output": output, "--plot": plot_path, "--report": report_path}, overwrite, logs)
     settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
     if report_path:
         from .output import _write_report

@@ -381,5 +381,5 @@ def check_report_target(path: str | os.PathLike[str], *, overwrite: bool = False
         if same or target.resolve() == Path(source).resolve():
             raise ValueError(f"{target}: is an input of this report; choose another file name")
     if target.exists() and not overwrite:
-        raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
+        raise FileExistsError(f"{target}: already exists")
 

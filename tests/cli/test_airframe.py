@@ -88,7 +88,7 @@ def test_plot_is_a_png_and_never_overwrites_without_asking(tmp_path: Path) -> No
     assert plot.read_bytes()[:8] == PNG and "Wrote" in out
     plot.write_bytes(b"keep me")
     code, out = run("airframe", QUIBBLE, "--plot", str(plot))
-    assert code == 1 and "already exists" in out and "--overwrite" in out
+    assert code == 2 and "already exists" in out and "--overwrite" in out
     assert plot.read_bytes() == b"keep me"
     code, out = run("airframe", QUIBBLE, "--plot", str(plot), "--overwrite", "--json")
     assert code == 0, out
@@ -102,7 +102,7 @@ def test_plot_never_replaces_an_input(tmp_path: Path) -> None:
     for target in (frame, motor):
         before = target.read_bytes()
         code, out = run("airframe", str(frame), "--motor", str(motor), "--plot", str(target), "--overwrite")
-        assert code == 1 and "is an input of this command" in out  # issue 13: one check, one status for outputs
+        assert code == 2 and "is an input of this command" in out  # issue 13: one check, one status for outputs
         assert target.read_bytes() == before
 
 

@@ -37,7 +37,7 @@ def test_a_report_never_replaces_a_file_without_overwrite(tmp_path: Path) -> Non
     report.write_text("keep me")
     args = ["fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", str(MOTOR), "--report", str(report)]
     code, out = run(*args)
-    assert code == 1 and "use --overwrite" in out and report.read_text() == "keep me"
+    assert code == 2 and "use --overwrite" in out and report.read_text() == "keep me"
     code, out = run(*args, "--overwrite")
     assert code == 0 and report.read_text().startswith("<!DOCTYPE html>")
 
@@ -46,7 +46,7 @@ def test_a_report_never_replaces_an_input_even_with_overwrite(tmp_path: Path) ->
     airframe = tmp_path / "rocket.toml"
     airframe.write_bytes((AIRFRAMES / "quibble-41.toml").read_bytes())
     code, out = run("fly", str(airframe), "--motor", str(MOTOR), "--report", str(airframe), "--overwrite")
-    assert code == 1 and "is an input of this report" in out
+    assert code == 2 and "is an input of this" in out
     assert airframe.read_bytes() == (AIRFRAMES / "quibble-41.toml").read_bytes()
 
 
@@ -67,7 +67,7 @@ def test_reduce_refuses_a_report_over_a_log_before_writing_anything(tmp_path: Pa
     before = log.read_bytes()
     out_xml = tmp_path / "out.xml"
     code, out = run("reduce", str(log), "-o", str(out_xml), "--designation", "F30", "--report", str(log), "--overwrite")
-    assert code == 1 and "is an input of this report" in out
+    assert code == 2 and "is an input of this" in out
     assert log.read_bytes() == before and not out_xml.exists()
     report = tmp_path / "series.html"
     code, out = run("reduce", str(log), "--designation", "F30", "--report", str(report))

@@ -46,7 +46,7 @@ def test_an_existing_file_is_never_replaced_without_overwrite(name: str, tmp_pat
     target = tmp_path / "keep.out"
     target.write_bytes(b"precious")
     result = run(*_commands(tmp_path, str(target))[name])
-    assert result.exit_code == 1, result.output
+    assert result.exit_code == 2, result.output
     assert "already exists" in result.output and "--overwrite" in result.output
     assert target.read_bytes() == b"precious"
     result = run(*_commands(tmp_path, str(target))[name], "--overwrite")
@@ -72,7 +72,7 @@ def test_an_input_is_never_replaced_even_with_overwrite(name: str, tmp_path: Pat
     before = Path(victim).read_bytes()
     args = [victim if a == "placeholder" else a for a in args]
     result = run(*args, "--overwrite")
-    assert result.exit_code == 1, result.output
+    assert result.exit_code == 2, result.output
     assert "input" in result.output
     assert Path(victim).read_bytes() == before
 
@@ -125,7 +125,7 @@ def test_export_never_replaces_files_without_overwrite(fmt: str, tmp_path: Path)
     (written,) = list(out.iterdir())
     written.write_bytes(b"edited by hand")
     result = run(*args)
-    assert result.exit_code == 1 and "already exists" in result.output
+    assert result.exit_code == 2 and "already exists" in result.output
     assert written.read_bytes() == b"edited by hand"
     assert run(*args, "--overwrite").exit_code == 0
     assert written.read_bytes() != b"edited by hand"
