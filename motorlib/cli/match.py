@@ -248,6 +248,8 @@ def recovery_rules(max_landing: float | None, deploy: tuple[str, ...], field_rad
                                        f"{', '.join(k for k in RECOVERY_DEVICES if k != 'none')}, e.g. drogue=40m/s")
             try:
                 limits[kind.strip()] = float(parse_quantity(speed, "speed", field="--max-deploy-speed"))
+                if not limits[kind.strip()] > 0.0:
+                    raise ValueError("the speed must be above 0")
             except ValueError as exc:
                 raise click.UsageError(f"--max-deploy-speed {text!r}: {getattr(exc, 'problem', exc)}") from None
         rules["max_deployment_speed_m_s"] = tuple(limits.items())

@@ -94,6 +94,11 @@ def pop_field_day(opts: dict[str, Any]) -> dict[str, Any]:
     return {name: opts.pop(name, None) for _, name, _, _ in _FIELD_DAY}
 
 
+_FIELD_DAY_KEYS = {"wind_m_s": "--wind", "wind_from_rad": "--wind-from", "temperature_k": "--temperature",
+                   "elevation_m": "--elevation", "rail_length_m": "--rail-length", "rail_angle_rad": "--rail-angle",
+                   "rail_azimuth_rad": "--rail-azimuth"}
+
+
 def apply_field_day(frame: Any, day: dict[str, Any]) -> Any:
     """``frame`` with the field-day overrides that were given (the rest as in the file)."""
     from dataclasses import replace
@@ -122,7 +127,19 @@ def apply_field_day(frame: Any, day: dict[str, Any]) -> Any:
                          rail_angle_rad=given.get("rail_angle_rad", launch.rail_angle_rad),
                          rail_azimuth_rad=given.get("rail_azimuth_rad", launch.rail_azimuth_rad))
     except (SimulationInputError, ValueError) as exc:
-        raise click.UsageError(str(getattr(exc, "problem", exc)).replace("`", "")) from None
+        problem = str(getattr(exc, "problem", exc))
+        names = {"temperature_k": "--temperature", "elevation_m": "--elevation", "wind_speed": "--wind",
+                 "wind_direction": "--wind-from", "rail_length": "--rail-length", "rail_angle": "--rail-angle",
+                 "rail_azimuth": "--rail-azimuth"}
+        field = str(getattr(exc, "field", "")) + " " + problem
+        option = next((opt for key, opt in names.items() if key in field), "field-day option")
+        shown = day.get({v: k for k, v in _FIELD_DAY_KEYS.items()}.get(option, ""), None)
+        typed = getattr(shown, "text", None)
+        for key in names:
+            problem = problem.replace(f"`{key}` ", "")
+        if typed:  # the value as typed is shown; the internal SI figure would only confuse (-300 degC is -26.85 K)
+            problem = problem.split(", got ")[0]
+        raise click.UsageError(f"{option}{' ' + typed if typed else ''}: {problem.replace('`', '')}") from None
     return replace(frame, launch=launch)
 
 

@@ -279,12 +279,19 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
                 area = float(rcd) * _quantity(source, recovery_t, "recovery", "area", "area")
             else:
                 diameter = _quantity(source, recovery_t, "recovery", "diameter", "length", required=True)
+                if not diameter > 0.0:
+                    raise SimulationInputError(source, "recovery.diameter", f"must be above 0, got {diameter!r} m")
                 area = float(rcd) * math.pi * diameter**2 / 4.0
         recovery = Recovery(
             device=device, deploy=str(recovery_t.get("deploy", "ejection")), drag_area_m2=area,
             deploy_altitude_m=_quantity(source, recovery_t, "recovery", "deploy_altitude", "length"),
         )
     geometry = _geometry(source, data["geometry"]) if "geometry" in data else None
+    body_m = _quantity(source, body, "airframe", "diameter", "length", required=True)
+    mount_m = _quantity(source, body, "airframe", "mount_diameter", "length")
+    if mount_m is not None and body_m is not None and mount_m > body_m:
+        raise SimulationInputError(source, "airframe.mount_diameter", f"{mount_m:g} m is wider than the body "
+                                   f"({body_m:g} m): a mount sits inside the body; give a unit, e.g. \"54 mm\"")
     return Airframe(
             name=name,
             mass_kg=_quantity(source, body, "airframe", "mass", "mass", required=True),
@@ -357,6 +364,8 @@ def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:
                 raise SimulationInputError(source, f"{where}.drag_coefficient",
                                            f"expected a positive number (or give drag_area), got {cd!r}")
             diameter = _quantity(source, entry, where, "diameter", "length", required=True)
+            if not diameter > 0.0:
+                raise SimulationInputError(source, f"{where}.diameter", f"must be above 0, got {diameter!r} m")
             area = float(cd) * math.pi * diameter**2 / 4.0
         replaces = entry.get("replaces", False)
         if not isinstance(replaces, bool):

@@ -34,7 +34,7 @@ RECOVERY_DEVICES: Final = ("parachute", "drogue", "main", "streamer", "none")
 DRAG_SOURCES: Final = ("given", "estimated")
 DEFAULT_DRAG_COEFFICIENT: Final = 0.5  # the record's long-standing default; sport models run 0.45-0.75 (common practice)
 ESTIMATE_MAX_MACH: Final = 4.0  # the estimated tables reach this Mach number (held constant beyond)
-ESTIMATE_MACH_STEP: Final = 0.02  # their spacing: linear interpolation errs by < 0.3 % (tests/flight/test_drag_flight.py)
+ESTIMATE_MACH_STEP: Final = 0.02  # their spacing: linear interpolation errs by < 0.5 %, most at a cusp near Mach 1.41 (tests/flight/test_drag_flight.py)
 DEPLOY_MODES: Final = ("ejection", "apogee", "altitude", "after")
 
 
@@ -86,7 +86,8 @@ class Launch:
                  f"must lie between 0 and 40 m/s, got {self.wind_speed_m_s!r} m/s")
         for key, value in (("launch.wind_direction", self.wind_direction_rad), ("launch.rail_azimuth", self.rail_azimuth_rad)):
             _require(src, key, value is None or (math.isfinite(value) and 0.0 <= value <= 2.0 * math.pi + 1e-12),
-                     f"must lie between 0 and 360 degrees from north, got {value!r} rad")
+                     "must lie between 0 and 360 degrees from north, got "
+                     + (f"{math.degrees(value):.6g} deg" if value is not None and math.isfinite(value) else repr(value)))
 
 
 @dataclass(frozen=True)

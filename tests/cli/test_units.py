@@ -310,3 +310,13 @@ def test_field_day_wind_replaces_a_measured_profile(tmp_path: Path) -> None:
         return json.loads(out[out.index("{"):])["landing"]
     calm, strong = landing(), landing("--wind", "9m/s", "--wind-from", "90deg")
     assert strong["east_m"] < 0 < calm["east_m"]  # the wind now blows from the east: the rocket lands west
+
+
+@pytest.mark.parametrize(("option", "value", "words"), [
+    ("--rail-azimuth", "400deg", "between 0 and 360 degrees"), ("--temperature", "-300degC", "between 180 and 340 K"),
+    ("--elevation", "40000m", "between -1000 and 9000 m"),
+])
+def test_field_day_values_out_of_range_name_the_option_as_typed(option: str, value: str, words: str) -> None:
+    code, out = run("fly", QUIBBLE, "--motor", "F29-8", option, value)
+    flat = " ".join(out.split())
+    assert code == 2 and option in flat and words in flat and "_k" not in flat and " rad" not in flat, out

@@ -95,3 +95,17 @@ def test_recovery_area_takes_a_unit_and_values_remember_their_text(tmp_path: Pat
     assert frame.launch.site.elevation_m.text == "800 ft" and frame.launch.rail_length_m.text == "1.5 m"
     bare = load_airframe(_write(tmp_path, text.replace('area = "78 in2"', "area = 0.05")))
     assert bare.recovery.drag_area_m2 == pytest.approx(0.8 * 0.05)
+
+
+@pytest.mark.parametrize(("old", "new", "field"), [
+    ('mount_diameter = "29 mm"', "mount_diameter = 54", "airframe.mount_diameter"),  # 54 m: a unit forgotten
+    ('diameter = "0.6 m"', 'diameter = "-0.6 m"', "recovery.diameter"),  # squared into a positive area before
+])
+def test_sizes_that_cannot_be_are_refused_with_the_key(tmp_path: Path, old: str, new: str, field: str) -> None:
+    text = (SAMPLE_DIR / "airframes" / "quibble-41.toml").read_text()
+    assert old in text
+    path = tmp_path / "bad.toml"
+    path.write_text(text.replace(old, new, 1))
+    with pytest.raises(SimulationInputError) as info:
+        load_airframe(path)
+    assert field in str(info.value)
