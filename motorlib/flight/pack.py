@@ -11,7 +11,7 @@ from typing import Final, Sequence
 
 import numpy as np
 
-from ..motor.record import MotorRecord
+from ..motor.record import MotorRecord, freeze_arrays
 
 __all__ = ["MotorPack"]
 
@@ -40,12 +40,7 @@ class MotorPack:
     has_mass: np.ndarray
 
     def __post_init__(self) -> None:
-        # a record, not a workspace: its arrays are our own read-only copies
-        for name, value in list(vars(self).items()):
-            if isinstance(value, np.ndarray):
-                frozen = np.array(value)
-                frozen.flags.writeable = False
-                object.__setattr__(self, name, frozen)
+        freeze_arrays(self)  # a record, not a workspace: its arrays are our own read-only copies
 
     @property
     def n_motors(self) -> int:

@@ -65,6 +65,15 @@ FORMER_PROVENANCE_KINDS: Final = {
 EJECTION_STATES: Final = ("delays", "no-charge", "unknown")  # values of MotorRecord.ejection
 
 
+def freeze_arrays(record: object) -> None:
+    """Replace every numpy array attribute of a frozen dataclass ``record`` by a read-only copy of itself."""
+    for name, value in list(vars(record).items()):
+        if isinstance(value, np.ndarray):
+            frozen = np.array(value)
+            frozen.flags.writeable = False
+            object.__setattr__(record, name, frozen)
+
+
 @dataclass(frozen=True)
 class Provenance:
     """Where a curve comes from.

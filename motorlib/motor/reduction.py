@@ -43,7 +43,7 @@ from typing import Any
 
 from .checks import Finding
 from .classes import CLASS_LETTERS, class_bounds_ns, impulse_class_for
-from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord
+from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord, freeze_arrays
 from ..errors import CurveDataError, Problem
 
 __all__ = ["ReductionSettings", "Reduction", "combine_reductions", "firing_spread", "firing_table", "lowpass_design_hz",
@@ -123,12 +123,7 @@ class Reduction:
     findings: tuple[Finding, ...] = field(default=())
 
     def __post_init__(self) -> None:
-        # a record, not a workspace: its arrays are our own read-only copies
-        for name, value in list(vars(self).items()):
-            if isinstance(value, np.ndarray):
-                frozen = np.array(value)
-                frozen.flags.writeable = False
-                object.__setattr__(self, name, frozen)
+        freeze_arrays(self)  # a record, not a workspace: its arrays are our own read-only copies
 
 
 def lowpass_design_hz(cutoff_hz: float, order: int, rate_hz: float) -> float:
