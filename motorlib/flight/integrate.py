@@ -18,8 +18,9 @@ as k single runs (each flight's steps depend only on its own state).
 
 numpy only (scipy is used by the tests as the reference, never here).
 
-The module runs a little past 500 lines on purpose: the loop and the settings it reads belong together;
-the right-hand side, events, results and the recovery phase live in their own modules.
+The module runs past 500 lines on purpose: the settings, the passes of one flight (ascent, each device,
+landing) and the loop that carries them belong together; the right-hand side (dynamics), events, step sizes
+(steps), results and the recovery phase live in their own modules.
 """
 
 from __future__ import annotations
@@ -35,8 +36,9 @@ from .events import (_deploy_altitude_reached, _ejection_states, _liftoff, _loca
                      _rail_exit, _StepEnds, _thrust_to_weight)
 from .pack import _TINY, MotorPack
 from .wind import DEFAULT_CAP_M
-from .recovery_phase import (_MAXIMA, _STATE, _air_speed, _charge_column, _descent_step, _first_opening,
+from .recovery_phase import (_MAXIMA, _STATE, _air_speed, _charge_column, _first_opening,
                              _fly_sequence, _sub)
+from .steps import _step_size
 from .results import (NO_LIFTOFF, NO_MASS, OK, STEP_LIMIT, FlightResults, _empty_results, _finish_trajectory,
                       _store_history)
 from ..motor.record import MotorRecord
@@ -544,90 +546,6 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     if run.history is not None:
         run.history.append(tuple(a[k].copy() for k in _HISTORY))
     _retire(a, run, s, landed, t1, steps, descent, deploy_altitude_m)
-
-
-def _step_size(g: _Group, a: dict, s: FlightSettings, deploy_altitude_m: float | None, descent: bool) -> np.ndarray:
-    """Step of every active flight [s], shortened to end on rail exit and on the deployment altitude."""
-    t, z, vz = a["t"], a["z"], a["vz"]
-    if descent:
-        h = _descent_step(g, a, s)  # ends on curve samples while burning, and on the stop time
-    else:
-        # coast: a fraction of the drag-free coast time, and of the drag time scale |v|/|a_drag| while drag
-        # decelerates harder than gravity (a fast, draggy rocket: issue 10 defect 7)
-        drag_x, drag_z = a["ax"], a["az"] + STANDARD_GRAVITY_M_S2
-        drag2 = drag_x * drag_x + drag_z * drag_z + (0.0 if g.planar else a["ay"] * a["ay"])
-        speed2 = a["vx"] * a["vx"] + vz * vz + (0.0 if g.planar else a["vy"] * a["vy"])
-        coast = np.minimum(a["coast_h"], np.sqrt(speed2 / np.maximum(drag2, 1e-300)) / s.coast_drag_steps)
-        h = np.where(a["burning"], np.minimum(a["burn_h"], a["seg_end"] - t), coast)
-    if a["any_rail"]:
-        h = _rail_step(a, s, h)
-    if g.table_cd:
-        h = _kink_step(g, a, h)
-    if deploy_altitude_m is not None and a["pending"].any():
-        falling = a["pending"] & a["apogee_found"] & (vz < 0.0)
-        above = z - deploy_altitude_m
-        # z + vz·h + ½·az·h² = altitude, the stable root (as on the rail); linear where it has none
-        disc = vz * vz - 2.0 * a["az"] * above
-        with np.errstate(divide="ignore", invalid="ignore"):
-            h_dep = np.where(disc >= 0.0, 2.0 * above / (-vz + np.sqrt(np.maximum(disc, 0.0))), above / -vz)
-            h_dep = np.where(falling, h_dep, np.inf) * (1.0 + 1e-7)
-        h = np.where(falling & (h_dep < h) & (h_dep > 0.0), h_dep, h)
-    return h
-
-
-# Largest change of Mach number in one step with a Cd(Mach) table: 0.02 brings the transonic case of
-# tests/flight/test_oracle.py to 1e-7 of the solve_ivp apogee (0.05 gave 2e-5); our choice, no published source.
-_MAX_MACH_STEP = 0.02
-
-
-def _kink_step(g: _Group, a: dict, h: np.ndarray) -> np.ndarray:
-    """Shorten steps to change Mach by at most ``_MAX_MACH_STEP`` and to end on the next point of the Cd(Mach)
-    table that the Mach number will cross.
-
-    Cd is linear between table points, so each point is a kink of the drag; a step
-    across one loses RK4's order (up to 1.1e-3 in apogee with a 2x-peaked table). The
-    Mach rate is predicted from the local motion, dM/dt = M·(v·a)/|v|², and the step
-    aimed at the point with a 1e-7 overshoot, as on the rail; a point within 0.1 % of
-    the step is left inside it.
-    """
-    kinks = g.machs[g.machs > 0.0]
-    if kinks.size == 0:
-        return h
-    mach = a["mach"]
-    dot = a["vx"] * a["ax"] + a["vz"] * a["az"] + (0.0 if g.planar else a["vy"] * a["ay"])
-    speed2 = a["vx"] * a["vx"] + a["vz"] * a["vz"] + (0.0 if g.planar else a["vy"] * a["vy"])
-    rate = mach * dot / np.maximum(speed2, 1e-300)
-    if np.ptp(g.cds) > 0.0 or (g.cds_powered is not None and np.ptp(g.cds_powered) > 0.0):
-        with np.errstate(divide="ignore"):  # Cd changes with Mach: long coast steps would miss it
-            h = np.minimum(h, _MAX_MACH_STEP / np.abs(rate))
-    up = np.searchsorted(kinks, mach, side="right")
-    down = np.searchsorted(kinks, mach, side="left") - 1
-    rising = rate > 0.0
-    valid = np.where(rising, up < kinks.size, down >= 0)
-    target = kinks[np.clip(np.where(rising, up, down), 0, kinks.size - 1)]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        h_kink = (target - mach) / rate * (1.0 + 1e-7)
-    return np.where(valid & (h_kink > 1e-3 * h) & (h_kink < h), h_kink, h)
-
-
-def _rail_step(a: dict, s: FlightSettings, h: np.ndarray) -> np.ndarray:
-    """Shorten the steps of flights on the rail to end on rail exit.
-
-    Solves s + v h + a h²/2 = L, overshooting by 1e-7 relative, and covers at most
-    1/rail_steps of the rail per step (the short rail phase sets the exit speed).
-    """
-    on_rail = a["on_rail"]
-    ux, uy, uz = a["ux"], a["uy"], a["uz"]
-    v_along = a["vx"] * ux + a["vy"] * uy + a["vz"] * uz
-    a_along = a["ax"] * ux + a["ay"] * uy + a["az"] * uz
-    remaining = a["rail_m"] - (a["x"] * ux + a["y"] * uy + a["z"] * uz)
-    disc = v_along * v_along + 2.0 * a_along * remaining
-    denom = v_along + np.sqrt(np.maximum(disc, 0.0))
-    piece = a["rail_m"] / s.rail_steps
-    with np.errstate(divide="ignore", invalid="ignore"):
-        h_rail = np.where((disc >= 0.0) & (denom > 0.0), 2.0 * remaining / denom, np.inf) * (1.0 + 1e-7)
-        h_piece = 2.0 * piece / (v_along + np.sqrt(v_along * v_along + 2.0 * np.maximum(a_along, 0.0) * piece))
-    return np.where(on_rail, np.minimum(np.minimum(h, h_piece), h_rail), h)
 
 
 def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple[np.ndarray, ...]:

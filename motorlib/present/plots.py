@@ -3,6 +3,9 @@
 Colours, line styles, hatching and event shapes come from :mod:`.palette` (three inks of different lightness,
 so a grayscale print or a colour-blind reader loses nothing); every line, band and shaded region has a legend
 entry. Files are written atomically.
+
+The module runs a little past 500 lines on purpose: every PNG chart shares one look (palette, marks,
+caution line, safe writing); each function draws one chart.
 """
 
 from __future__ import annotations
