@@ -91,7 +91,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
     rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
-    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.wind_speed_m_s,
+    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.surface_wind_m_s,
                                constant_drag=not frame.drag_table)
     warnings += _stability_and_drag(frame, record, results, summary, ballast_kg or 0.0, min_stability_cal)
     from ..matching.rank import mount_problems
@@ -101,7 +101,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
         from ..present.messages import warning_message
 
-        warnings = [(code, warning_message(code, message, summary, rules, shown, frame.launch.wind_speed_m_s))
+        warnings = [(code, warning_message(code, message, summary, rules, shown, frame.launch.surface_wind_m_s))
                     for code, message in warnings]
     written = []
     if csv_path:
@@ -133,7 +133,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     console = _console()
     card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
-                       units=_card_units(shown), wind_speed_m_s=frame.launch.wind_speed_m_s)
+                       units=_card_units(shown), wind_speed_m_s=frame.launch.surface_wind_m_s)
     console.print(render.flight_card_table(card))
     for path in written:
         console.print(f"Wrote {render.escape(str(path))}")

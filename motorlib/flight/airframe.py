@@ -77,6 +77,14 @@ class Launch:
     rail_azimuth_rad: float | None = None
     wind_profile: MeasuredWind | None = None
 
+    @property
+    def surface_wind_m_s(self) -> float:
+        """The wind 10 m above the pad that the launch rules read [m/s]: the measured profile's when one is
+        flown, else ``wind_speed_m_s``."""
+        if self.wind_profile is not None:
+            return float(self.wind_profile.speed_m_s(10.0))
+        return self.wind_speed_m_s
+
     def __post_init__(self) -> None:
         src = "launch"
         _require(src, "launch.rail_length", 0.0 < self.rail_length_m <= 30.0, f"must be above 0 and at most 30 m, got {self.rail_length_m!r} m")

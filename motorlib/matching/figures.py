@@ -186,7 +186,7 @@ def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: floa
         return [(_STATUS_CODES.get(int(results.status[i]), "not flown"), results.message(i))]
     out = []
     exit_speed = results.rail_exit_speed_m_s[i]
-    wind = recovered.frame.launch.wind_speed_m_s if recovered is not None else 0.0
+    wind = recovered.frame.launch.surface_wind_m_s if recovered is not None else 0.0
     need = r.rail_exit_needed_m_s(wind)
     if exit_speed < need:
         why = "" if need == r.min_rail_exit_speed_m_s else f" ({r.rail_exit_wind_ratio:g} x the {wind:g} m/s wind)"

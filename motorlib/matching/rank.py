@@ -318,8 +318,8 @@ def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
     return {
         "target_m": s.target_m, "ceiling_m": s.ceiling_m, "max_class": s.max_class,
         "min_rail_exit_speed_m_s": s.rules.min_rail_exit_speed_m_s,
-        "rail_exit_needed_m_s": s.rules.rail_exit_needed_m_s(launch.wind_speed_m_s),
-        "wind_m_s": launch.wind_speed_m_s, "rail_exit_wind_ratio": s.rules.rail_exit_wind_ratio,
+        "rail_exit_needed_m_s": s.rules.rail_exit_needed_m_s(launch.surface_wind_m_s),
+        "wind_m_s": launch.surface_wind_m_s, "rail_exit_wind_ratio": s.rules.rail_exit_wind_ratio,
         "min_liftoff_thrust_to_weight": s.rules.min_liftoff_thrust_to_weight,
         "delay_slack_s": s.delay_slack_s, "max_ejection_speed_m_s": s.rules.max_ejection_speed_m_s,
         "max_landing_speed_m_s": s.rules.max_landing_speed_m_s, "allow_smaller_motors": s.allow_smaller_motors,
@@ -333,7 +333,8 @@ def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
         "atmosphere": "U.S. Standard Atmosphere 1976" + (f", {site.elevation_m:.0f} m elevation" if site.elevation_m else "")
                       + (f", {site.temperature_k - 273.15:.1f} degC at the pad" if site.temperature_k else "")
                       + (f", {site.pressure_pa / 100:.0f} hPa at the pad" if site.pressure_pa else ""),
-        "wind": f"{launch.wind_speed_m_s:g} m/s at 10 m, power law 1/7",
+        "wind": ("a measured profile" if launch.wind_profile is not None
+                 else f"{launch.wind_speed_m_s:g} m/s at 10 m, power law 1/7"),
         "rail": f"{launch.rail_length_m:g} m at {math.degrees(launch.rail_angle_rad):g} deg from vertical",
         "recovery": (f"{frame.recovery.device}, deployed at {frame.recovery.deploy}" if frame.recovery else "none given"),
     }

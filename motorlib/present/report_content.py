@@ -57,7 +57,7 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
     """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory)."""
     u = units
     launch = frame.launch
-    card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.wind_speed_m_s)
+    card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.surface_wind_m_s)
     rocket = Facts("Rocket", (
         ("name", frame.name),
         ("empty mass", quantity(frame.mass_kg, "mass", u)),

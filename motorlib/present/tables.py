@@ -641,7 +641,8 @@ def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = Non
             air += f", {u.given(site.temperature_k, 'temperature')} at the pad"
         if site.pressure_pa is not None:
             air += f", {u.given(site.pressure_pa, 'air_pressure')} at the pad"
-        wind = f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7"
+        wind = ("a measured profile" if launch.wind_profile is not None else
+                f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7")
         rail = f"{u.given(launch.rail_length_m, 'length')} at {u.given(launch.rail_angle_rad, 'angle')} from vertical"
         text.append(f"{drag}; {air}; wind {wind}; rail {rail}; recovery {c['recovery']}. ")
     else:

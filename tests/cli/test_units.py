@@ -320,3 +320,14 @@ def test_field_day_values_out_of_range_name_the_option_as_typed(option: str, val
     code, out = run("fly", QUIBBLE, "--motor", "F29-8", option, value)
     flat = " ".join(out.split())
     assert code == 2 and option in flat and words in flat and "_k" not in flat and " rad" not in flat, out
+
+
+def test_the_rail_rule_reads_the_flown_profile_wind_not_the_unused_key(tmp_path: Path) -> None:
+    # with a measured profile flown, the 4 x wind rail rule used the file's wind_speed key (5 m/s: 20 m/s needed)
+    # instead of the profile's 10 m wind (2 m/s here: the 15 m/s minimum rules)
+    frame = tmp_path / "profiled.toml"
+    text = Path(QUIBBLE).read_text()
+    frame.write_text(text.replace("[launch]", '[launch]\nwind_profile = [[0, 2, 270], [500, 2, 270]]', 1)
+                     .replace('wind_speed = "3 m/s"', 'wind_speed = "5 m/s"'))
+    code, out = run("match", str(frame), "--target", "400", "--json")
+    assert json.loads(out)["conditions"]["rail_exit_needed_m_s"] == pytest.approx(15.0)
