@@ -6,17 +6,13 @@ import os
 
 import click
 
-from .options import _Finite
+from .options import _Finite, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 
 @click.command()
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
-@click.option("--motor", "motor_ref",
-              help="Add this motor: a curve file (.xml or .csv), or a motor id, handle or designation in the catalog.")
-@click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
-              help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
-                   "else the bundled sample curves).")
+@motor_options(required=False)
 @click.option("--mach", type=_Finite(0.0, 5.0), default=0.3, show_default=True,
               help="Mach number of the drag build-up.")
 @click.option("--min-stability", "min_stability_cal", type=_Finite(0.0, 10.0), default=1.0, show_default=True,
@@ -43,7 +39,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
     """
     from ..files.airframe_toml import load_airframe
     from ..flight.summary import airframe_summary
-    from .fly import _load_motor
+    from .options import load_motor as _load_motor
 
     frame = load_airframe(airframe_file)
     if frame.geometry is None:

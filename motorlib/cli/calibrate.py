@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import _Quantity
+from .options import _Quantity, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 _FLIGHT_KEYS = ("apogee", "wind", "temperature", "pressure", "ballast", "motor", "label")
@@ -47,10 +47,7 @@ def _parse_flight(spec: str) -> dict[str, Any]:
 
 @click.command()
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
-@click.option("--motor", "motor_ref", required=True,
-              help="The motor flown: a curve file, or a motor id, handle or designation in the catalog.")
-@click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
-              help="Catalog to find motors in (default: $MOTORLIB_CATALOG, else the user catalog, else the samples).")
+@motor_options()
 @click.option("--apogee", "apogees_m", type=_Quantity("length", minimum=0.0, strict=True), multiple=True,
               help="A measured apogee above the pad, flown in the file's conditions (repeat for several flights).")
 @click.option("--flight", "flights", multiple=True, metavar="apogee=..[,KEY=..]",
@@ -87,7 +84,7 @@ def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apoge
     """
     from ..files.airframe_toml import load_airframe, write_drag
     from ..flight import calibration as cal
-    from .fly import _load_motor
+    from .options import load_motor as _load_motor
 
     if log_path and (apogees_m or flights):
         raise click.UsageError("give either --log or measured apogees (--apogee, --flight), not both")

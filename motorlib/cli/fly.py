@@ -6,18 +6,14 @@ from typing import Any
 
 import click
 
-from .options import (_catalog_or_samples, _open_catalog, _Quantity, _units_option, apply_field_day, display_units,
+from .options import (_Quantity, _units_option, apply_field_day, display_units, load_motor, motor_options,
                       field_day_options, pop_field_day)
 from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _json_text
 
 
 @click.command()
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
-@click.option("--motor", "motor_ref", required=True,
-              help="A curve file (.xml or .csv), or a motor id, handle or designation in the catalog (e.g. F29-8).")
-@click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
-              help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if it exists, "
-                   "else the bundled sample curves).")
+@motor_options()
 @click.option("--delay", "delay_s", type=_Quantity("time", minimum=0.0),
               help="Ejection delay to use, e.g. 6s; a bare number is s (default: the listed delay closest to the "
                    "optimal one).")
@@ -75,7 +71,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
     frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
-    motor, motor_file = _load_motor(motor_ref, catalog_dir)
+    motor, motor_file = load_motor(motor_ref, catalog_dir)
     _check_outputs({"--csv": csv_path, "--plot": plot_path, "--report": report_path}, overwrite, [airframe_file, motor_file])
     if report_path:
         from .output import _write_report
@@ -157,20 +153,6 @@ def _stability_and_drag(frame: Any, record: Any, results: Any, summary: dict[str
     if stability is None:
         return []
     return stability_warnings(summary["stability"]["min_margin_cal"], min_margin_cal=required)
-
-
-def _load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:
-    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file."""
-    from pathlib import Path
-
-    from ..files.curvefiles import load_curve_file
-
-    if Path(motor_ref).is_file():
-        return load_curve_file(motor_ref), motor_ref
-    catalog = _open_catalog(_catalog_or_samples(catalog_dir))
-    motor_id = catalog.resolve(motor_ref)
-    path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
-    return catalog.get(motor_id), (str(Path(catalog.root) / path) if path else None)
 
 
 def _command_line() -> str:

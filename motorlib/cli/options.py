@@ -388,3 +388,30 @@ def _catalog_or_samples(catalog_dir: str | None) -> str:
 _catalog_option = click.option(
     "--catalog", "catalog_dir", envvar="MOTORLIB_CATALOG", type=click.Path(file_okay=False),
     help="Catalog folder (default: $MOTORLIB_CATALOG, else the user data folder, e.g. ~/.local/share/motorlib/catalog).")
+
+
+def motor_options(required: bool = True) -> Any:
+    """``--motor`` (a curve file, or a reference in a catalog) and ``--catalog``, as every command that flies one
+    motor takes them; see :func:`load_motor`."""
+    def decorate(func: Any) -> Any:
+        func = click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
+                            help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog if "
+                                 "it exists, else the bundled sample curves).")(func)
+        return click.option("--motor", "motor_ref", required=required,
+                            help="A curve file (.xml or .csv), or a motor id, handle or designation in the catalog "
+                                 "(e.g. F29-8).")(func)
+    return decorate
+
+
+def load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:
+    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file."""
+    from pathlib import Path
+
+    from ..files.curvefiles import load_curve_file
+
+    if Path(motor_ref).is_file():
+        return load_curve_file(motor_ref), motor_ref
+    catalog = _open_catalog(_catalog_or_samples(catalog_dir))
+    motor_id = catalog.resolve(motor_ref)
+    path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
+    return catalog.get(motor_id), (str(Path(catalog.root) / path) if path else None)

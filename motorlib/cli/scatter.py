@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import _Quantity, _units_option, display_units
+from .options import _Quantity, _units_option, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 # option name -> (Uncertainty field, kind, default unit); kind "relative" takes 0.03 or 3%
@@ -127,10 +127,7 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
 
 @click.command()
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
-@click.option("--motor", "motor_ref", required=True,
-              help="A curve file (.xml or .csv), or a motor id, handle or designation in the catalog (e.g. F29-8).")
-@click.option("--catalog", "catalog_dir", type=click.Path(file_okay=False), envvar="MOTORLIB_CATALOG",
-              help="Catalog to find --motor in (default: $MOTORLIB_CATALOG, else the user catalog, else the samples).")
+@motor_options()
 @click.option("-n", "--samples", "n_samples", type=click.IntRange(1, 10_000_000), default=2000, show_default=True,
               help="Number of sampled flights.")
 @click.option("--seed", type=click.IntRange(0), default=0, show_default=True,
@@ -183,7 +180,7 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
     """
     from ..files.airframe_toml import load_airframe
     from ..flight.dispersion import DispersionSettings, default_workers, run_scatter
-    from .fly import _load_motor
+    from .options import load_motor as _load_motor
     from .options import _catalog_or_samples, _open_catalog
 
     _check_outputs({"--plot": plot_path}, overwrite, [airframe_file])
