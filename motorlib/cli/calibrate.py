@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import _Quantity, motor_options
+from .options import _Quantity, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 _FLIGHT_KEYS = ("apogee", "wind", "temperature", "pressure", "ballast", "motor", "label")
@@ -153,7 +153,7 @@ def calibrate(airframe_file: str, motor_ref: str, catalog_dir: str | None, apoge
     from ..present.scatter import calibration_text
 
     console = _console()
-    console.print(calibration_text(result))
+    console.print(calibration_text(result, display_units(None)))
     if log_path:
         e = result["events"]
         console.print(f"Liftoff {e['liftoff_time_s']:.2f} s, burnout {e['burnout_time_s']:.2f} s, apogee "

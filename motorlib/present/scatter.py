@@ -36,8 +36,9 @@ def _triple(block: dict[str, Any], kind: str, u: DisplayUnits) -> list[str]:
 def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") -> Group:
     """Percentile table, probabilities and the landing ellipse of one ``scatter`` run."""
     u = _units(units)
-    title = f"{summary['airframe']} with {summary['motor']}: {summary['n_flights']} sampled flights (seed {summary['seed']})"
-    table = Table(title=escape(title), title_justify="left")
+    from .tables import _table
+
+    table = _table(f"{summary['airframe']} with {summary['motor']}")
     for name in ("", "5 %", "50 %", "95 %"):
         table.add_column(name, justify="right" if name else "left")
     a = summary["apogee_m"]
@@ -52,6 +53,7 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
         table.add_row("stability margin (cal)", *[f"{v:.3g}" if v is not None else "-"
                                                   for v in (stability["margin_cal"].get(k) for k in ("p5", "p50", "p95"))])
     lines = Text()
+    lines.append(f"{summary['n_flights']} sampled flights (seed {summary['seed']}). ")
     lines.append(f"Mean apogee {u.quantity(a['mean'], 'length')} ± {u.quantity(a['standard_error'], 'length')} "
                  f"(standard error), standard deviation {u.quantity(a['std'], 'length')}; nominal "
                  f"{u.quantity(summary.get('nominal_apogee_m'), 'length')}.\n")
@@ -148,8 +150,9 @@ _FAILURE_WORDS = {"flight": "no liftoff or stuck on the rail", "rail": "rail exi
                   "duration window": "flight time outside the window", "field": "lands outside the field"}
 
 
-def calibration_text(result: dict[str, Any]) -> Text:
-    """The fitted drag with its uncertainty and the residuals."""
+def calibration_text(result: dict[str, Any], units: DisplayUnits | str = "metric") -> Text:
+    """The fitted drag with its uncertainty and the residuals (in display units)."""
+    u = _units(units)
     text = Text()
     before = result.get("file_value")
     if "drag_scale" in result:
@@ -159,9 +162,9 @@ def calibration_text(result: dict[str, Any]) -> Text:
         text.append(f"Drag coefficient: {result['drag_coefficient']:.4f} ± {result['uncertainty']:.4f}"
                     + (f" (the file gives {before:.4g})" if before is not None else "") + "\n")
     for label, r in zip(result.get("labels", []), result["residuals_m"]):
-        text.append(f"  {escape(str(label))}: residual {r:+.2f} m\n")
+        text.append(f"  {escape(str(label))}: residual {'+' if r >= 0 else '-'}{u.quantity(abs(r), 'length', 2)}\n")
     if result.get("rms_residual_m") is not None:
-        text.append(f"RMS residual {result['rms_residual_m']:.2f} m over {result.get('n_points', len(result['residuals_m']))} "
+        text.append(f"RMS residual {u.quantity(result['rms_residual_m'], 'length', 2)} over {result.get('n_points', len(result['residuals_m']))} "
                     "point(s).\n")
     for note in result.get("notes", []):
         text.append(note + "\n", style="dim")
