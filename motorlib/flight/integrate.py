@@ -3,12 +3,23 @@
 The model (state, forces, phases) is described in :mod:`motorlib.flight`.
 
 Integrator (the performance core): classic RK4 on arrays of shape
-(n_active,), one numpy loop over time steps and never over motors. Each flight
-has its own step: a fraction of its burn time during the burn, with a step
-boundary at every thrust-curve sample (so thrust is smooth inside every step),
-then a fraction of its estimated coast time. Steps that would cross a change
-of dynamics (rail exit, apogee deployment, altitude deployment) are shortened
-to end on it (predicted from the local motion, with a tiny overshoot).
+(n_active,), one numpy loop over time steps and never over motors, with a
+per-flight step controller. Error control: each step's local error is
+estimated from the embedded third-order solution that shares RK4's stages and
+the derivative at the step's end (FSAL: b̂ = (1/6, 1/3, 1/3, 0, 1/6), so the
+estimate is h/6·(k4 − k5) and costs no extra evaluation). The error of each
+speed component is measured against ``tolerance`` times the flight's speed
+scale (its fastest speed so far, at least 1 m/s), and of each position
+component against ``tolerance`` times the matching length scale (speed
+scale²/g0, the height that speed buys): the same relative accuracy in apogee
+for a 60 m and a 6,000 m flight. A step whose error exceeds that is rejected
+(the flight stays where it was, in the arrays, and retries with a shorter
+step); the next step is h·clip(0.9·err^(-1/4), 0.2, 5). Steps that would cross a
+change of dynamics end on it: every thrust-curve sample during the burn (thrust
+is smooth inside every step), rail exit, each point of a Cd(Mach) table, the
+deployment altitude and a pass's stop time (predicted from the local motion,
+with a tiny overshoot); a step that switches the dynamics (rail exit, burnout)
+is not error-tested, since no smooth solution joins its two ends.
 Apogee, landing and ejection-delay instants are located inside a step by
 cubic Hermite interpolation of position and speed, using the derivatives at
 both ends. Finished flights are compacted out of the arrays.
@@ -26,7 +37,7 @@ landing) and the loop that carries them belong together; the right-hand side (dy
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Sequence
+from typing import Final, Sequence
 
 import numpy as np
 
@@ -54,20 +65,13 @@ class FlightSettings:
 
     Attributes
     ----------
+    tolerance : float
+        Local error allowed per step, relative to the flight's speed scale (speeds) and
+        length scale (positions); see the module docstring. 1e-6 keeps the worst apogee of
+        1,000 synthetic flights within 1e-5 of a DOP853 reference at rtol 1e-10 (measured
+        by tests/benchmarks/bench_flight.py; 1e-5 gave X, 1e-7 Y); our choice, no published source.
     burn_steps : int
-        Steps per burn time (plus one step boundary at every curve sample).
-    coast_steps : int
-        Steps per estimated coast time (v_burnout / g).
-    coast_drag_steps : int
-        Steps per drag time scale |v|/|a_drag| while coasting; binds only while drag
-        decelerates the rocket much harder than gravity (fast, draggy flights). 8 keeps
-        Mach 2.4-3.2 darts within 3e-5 of the reference apogee (they erred up to 7.5e-3
-        without it) for 4 % more CPU on 1,000 synthetic subsonic-to-supersonic ascents
-        (5: 1.3e-4, no cost; 12: 9e-6, 13 %; 20: 2e-6, 26 %).
-    rail_steps : int
-        On the rail, a step covers at most this fraction of the rail's length.
-    post_apogee_steps : int
-        Steps from apogee to the last ejection delay (ejection states only).
+        The first step is the burn time over this (the controller then adapts it).
     descent_step_fraction : float
         Under a deployed device, a step is at most this fraction of the drag
         time scale m/(½ρ·Cd·A·v) (v_t/g at terminal speed).
@@ -94,11 +98,8 @@ class FlightSettings:
         Safety limits of one flight.
     """
 
-    burn_steps: int = 80
-    coast_steps: int = 60
-    coast_drag_steps: int = 8
-    rail_steps: int = 20
-    post_apogee_steps: int = 20
+    tolerance: float = 3e-7
+    burn_steps: int = 40
     descent_step_fraction: float = 0.8
     opening_step_fraction: float = 0.1
     wind_exponent: float = 1.0 / 7.0
@@ -111,8 +112,10 @@ class FlightSettings:
     max_steps: int = 200_000
 
     def __post_init__(self) -> None:
-        if self.burn_steps < 4 or self.coast_steps < 4:
-            raise ValueError("`burn_steps` and `coast_steps` must be at least 4")
+        if self.burn_steps < 4:
+            raise ValueError("`burn_steps` must be at least 4")
+        if not 0.0 < self.tolerance < 0.1:
+            raise ValueError("`tolerance` must lie in (0, 0.1)")
         if not (0.0 < self.descent_step_fraction <= 1.0 and 0.0 < self.opening_step_fraction <= 1.0):
             raise ValueError("`descent_step_fraction` and `opening_step_fraction` must lie in (0, 1]")
 
@@ -487,8 +490,10 @@ def _active_arrays(run: _Pass, state0: dict[str, np.ndarray], seg0: np.ndarray, 
         a["next_q"] = run.queries_s.min(axis=1)
     a["stop_t"] = np.full(n_all, np.inf) if stop_time_s is None else np.asarray(stop_time_s, dtype=float).copy()
     a["any_rail"] = bool(a["on_rail"].any())
-    a["burn_h"] = np.maximum(run.burnout_s - a["t"], 1e-3) / s.burn_steps
-    a["coast_h"] = np.full(n_all, 1.0 / s.coast_steps)
+    # the controller's next step [s]: a fraction of the burn at first; a pass after the ascent starts from its
+    # own step rules (the descent time scale) and the controller takes over after one step
+    a["h"] = np.maximum(run.burnout_s - a["t"], 1e-3) / s.burn_steps if not descent else np.full(n_all, np.inf)
+    a["after_apogee_factor"] = 1.0 if descent else _AFTER_APOGEE_TOLERANCE_FACTOR
     a["stop_after"] = run.stop_after_s
     for name in _MAXIMA:
         a[name] = np.zeros(n_all)
@@ -511,24 +516,44 @@ def _load_segment(a: dict, run: _Pass, mask: np.ndarray | None) -> None:
 
 def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: float | None, descent: bool,
           steps: int) -> None:
-    """Advance every active flight by one RK4 step, then record its events and retire finished flights."""
+    """Advance every active flight by one RK4 step (or reject it), record its events, retire finished flights."""
     t = a["t"]
     burning = a["burning"]
     h = _step_size(g, a, s, deploy_altitude_m, descent)
     hit_seg = burning & (h >= a["seg_end"] - t)
-    x1, y1, z1, vx1, vy1, vz1 = _rk4(g, a, h)
+    x1, y1, z1, vx1, vy1, vz1, stage4 = _rk4(g, a, h)
     t1 = np.where(hit_seg, a["seg_end"], t + h)
     if descent:
         t1 = np.where(h >= a["stop_t"] - t, a["stop_t"], t1)  # a step aimed at the stop time ends on it
     # ---- phase changes at the step end ----
+    was_on_rail = a["on_rail"]
+    ended = np.zeros(t.size, dtype=bool)
     if hit_seg.any():
-        _next_segment(a, run, s, hit_seg, burning, t1, vz1)
+        ended = _next_segment(a, run, hit_seg, burning, t1)
     if a["any_rail"]:
         _rail_exit(a, run.rail_exit_t, run.rail_exit_v, run.status, t1, x1, y1, z1, vx1, vy1, vz1)
-    # ---- derivative at the new state: the next step's first stage ----
+    # ---- derivative at the new state: the error estimate's last stage and the next step's first ----
     ax1, ay1, az1, mach1, q1 = _accel(g, a, t1, x1, y1, z1, vx1, vy1, vz1)
     if ay1 is None:
         ay1 = a["zeros"]
+    # ---- error control: a step that switched the dynamics (rail exit, burnout, failure) is taken as it is ----
+    switched = ended | (was_on_rail & ~a["on_rail"]) | (run.status[a["ref"]] != OK)
+    err = _error_ratio(g, a, s, h, stage4, vx1, vy1, vz1, ax1, ay1, az1)
+    err[switched] = 0.0
+    rejected = err > 1.0
+    grow = np.minimum(np.maximum(0.9 * np.maximum(err, 1e-12) ** -0.25, 0.2), 5.0) * h
+    # a step cut short by a step rule keeps the controller's longer proposal when it passes
+    a["h"] = np.where(rejected, grow, np.maximum(grow, np.where(h < a["h"], a["h"], 0.0)))
+    if rejected.any():  # the flight stays where it was: a step of length zero
+        x1, y1, z1, vx1, vy1, vz1, ax1, ay1, az1, t1 = (
+            np.where(rejected, old, new) for old, new in
+            ((a["x"], x1), (a["y"], y1), (a["z"], z1), (a["vx"], vx1), (a["vy"], vy1), (a["vz"], vz1),
+             (a["ax"], ax1), (a["ay"], ay1), (a["az"], az1), (t, t1)))
+        mach1, q1 = np.where(rejected, a["mach"], mach1), np.where(rejected, 0.0, q1)
+        back = rejected & hit_seg
+        if back.any():  # back to the segment the flight is still in
+            a["seg"] = np.where(back, a["seg"] - 1, a["seg"])
+            _load_segment(a, run, back)
     ends = _StepEnds(t, t1, t1 - t, a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"], a["ax"], a["ay"], a["az"],
                      x1, y1, z1, vx1, vy1, vz1, ax1, ay1, az1)
     landed = _record_events(a, run, ends, s, deploy_altitude_m, descent)
@@ -544,12 +569,43 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     np.maximum(a["max_acc"], np.sqrt(acc2), out=a["max_acc"], where=flown)  # kinematic, gravity included
     a.update(t=t1, x=x1, y=y1, z=z1, vx=vx1, vy=vy1, vz=vz1, ax=ax1, ay=ay1, az=az1, mach=mach1)
     if run.history is not None:
-        run.history.append(tuple(a[k].copy() for k in _HISTORY))
+        run.history.append(tuple(a[k][~rejected] if rejected.any() else a[k].copy() for k in _HISTORY))
     _retire(a, run, s, landed, t1, steps, descent, deploy_altitude_m)
 
 
-def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple[np.ndarray, ...]:
-    """Classic RK4 from the active state with first stage (ax, ay, az) over steps h; the new x, y, z, vx, vy, vz.
+# The ascent pass flies on past apogee only to the ejection instants, whose states start the descent and give the
+# ejection speed (unless a deployment altitude is still ahead: the full tolerance then); 100 x the tolerance there keeps them within about 1e-4 relative (measured against the tight run
+# of tests/flight/test_integrate.py) for half the steps after apogee. Our choice, no published source.
+_AFTER_APOGEE_TOLERANCE_FACTOR: Final = 100.0
+# During the burn most steps end on curve samples anyway; 3 x the tolerance there cost 1e-7 in median apogee and
+# saved 10 % of the steps on 300 synthetic flights (tests/benchmarks/bench_flight.py). Our choice, no published source.
+_BURN_TOLERANCE_FACTOR: Final = 3.0
+
+
+def _error_ratio(g: _Group, a: dict, s: FlightSettings, h: np.ndarray, stage4: tuple[np.ndarray, ...],
+                 vx1: np.ndarray, vy1: np.ndarray, vz1: np.ndarray, ax1: np.ndarray, ay1: np.ndarray,
+                 az1: np.ndarray) -> np.ndarray:
+    """Each flight's estimated local error over its allowed error (≤ 1 passes): the embedded third-order
+    estimate h/6·(k4 − k5), speeds against ``tolerance`` × the speed scale, positions against ``tolerance`` ×
+    the length scale speed²/g0."""
+    vx4, vy4, vz4, kx4, ky4, kz4 = stage4
+    v_scale = np.maximum(a["max_speed"], 1.0)
+    dv = np.maximum(np.abs(kx4 - ax1), np.abs(kz4 - az1))
+    dx = np.maximum(np.abs(vx4 - vx1), np.abs(vz4 - vz1))
+    if not g.planar:
+        dv = np.maximum(dv, np.abs(ky4 - ay1))
+        dx = np.maximum(dx, np.abs(vy4 - vy1))
+    # |h/6·Δk| / (tol·v) for speeds and |h/6·Δv| / (tol·v²/g0) for positions
+    tol = s.tolerance * np.where(a["burning"], _BURN_TOLERANCE_FACTOR, 1.0)
+    if a["after_apogee_factor"] != 1.0:
+        tol = np.where(a["apogee_found"] & ~a["pending"], tol * a["after_apogee_factor"], tol)
+    scale = (h * (1.0 / 6.0) / tol) / v_scale
+    return scale * np.maximum(dv, dx * STANDARD_GRAVITY_M_S2 / v_scale)
+
+
+def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple:
+    """Classic RK4 from the active state with first stage (ax, ay, az) over steps h: the new x, y, z, vx, vy, vz
+    and the fourth stage (its speeds and accelerations), which the error estimate needs.
 
     In a planar group y and its speed stay as they are (0).
     """
@@ -564,7 +620,7 @@ def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple[np.ndarray, ...]:
         k3x, _, k3z, _, _ = _accel(g, a, t + half, x + half * vx2, y, z + half * vz2, vx3, vy, vz3)
         vx4, vz4 = vx + h * k3x, vz + h * k3z
         k4x, _, k4z, _, _ = _accel(g, a, t + h, x + h * vx3, y, z + h * vz3, vx4, vy, vz4)
-        y1, vy1 = y, vy
+        y1, vy1, vy4, k4y = y, vy, vy, ay
     else:
         vy2 = vy + half * ay
         k2x, k2y, k2z, _, _ = _accel(g, a, t + half, x + half * vx, y + half * vy, z + half * vz, vx2, vy2, vz2)
@@ -578,19 +634,18 @@ def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple[np.ndarray, ...]:
     z1 = z + sixth * (vz + 2.0 * (vz2 + vz3) + vz4)
     vx1 = vx + sixth * (ax + 2.0 * (k2x + k3x) + k4x)
     vz1 = vz + sixth * (az + 2.0 * (k2z + k3z) + k4z)
-    return x1, y1, z1, vx1, vy1, vz1
+    return x1, y1, z1, vx1, vy1, vz1, (vx4, vy4, vz4, k4x, k4y, k4z)
 
 
-def _next_segment(a: dict, run: _Pass, s: FlightSettings, hit_seg: np.ndarray, burning: np.ndarray,
-                  t1: np.ndarray, vz1: np.ndarray) -> None:
-    """Flights whose step ended on a curve sample move to the next segment; past the last, the burn ends."""
+def _next_segment(a: dict, run: _Pass, hit_seg: np.ndarray, burning: np.ndarray, t1: np.ndarray) -> np.ndarray:
+    """Flights whose step ended on a curve sample move to the next segment; past the last, the burn ends.
+    Returns which flights burned out in this step."""
     a["seg"] = np.where(hit_seg, a["seg"] + 1, a["seg"])
     ended = hit_seg & ((a["seg"] >= run.last_seg[a["ref"]]) | (t1 >= run.burnout_s[a["ref"]]))
     _load_segment(a, run, hit_seg & ~ended)
-    if ended.any():  # coast steps: a fraction of the drag-free coast time v/g
+    if ended.any():
         a["burning"] = burning & ~ended
-        a["coast_h"] = np.where(ended, np.maximum(np.abs(vz1), 10.0) / STANDARD_GRAVITY_M_S2 / s.coast_steps,
-                                a["coast_h"])
+    return ended
 
 
 def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_altitude_m: float | None,
@@ -608,9 +663,6 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
         for name in _MAXIMA:  # the maxima before apogee (step ends up to this step's start)
             run.apogee[name][a["ref"][c]] = a[name][c]
         a["apogee_found"] = a["apogee_found"] | crossing
-        if not descent:  # after apogee only the ejection states are wanted: 1/post_apogee_steps of the wait
-            wait = a["stop_after"][c] - e.t1[c]
-            a["coast_h"][c] = np.maximum(a["coast_h"][c], np.where(np.isfinite(wait), wait, 0.0) / s.post_apogee_steps)
     _ejection_states(a, run.queries_s, run.ejection, e)
     if deploy_altitude_m is not None and a["pending"].any():
         _deploy_altitude_reached(a, run.at_deploy, deploy_altitude_m, e)

@@ -200,8 +200,8 @@ def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.
     while the rocket is still much faster than terminal speed, just after an opening). A step is
     also at most 1/30 of the time left to fall (at terminal speed, or the drag-free
     speed at the ground when that is lower: a ballistic fall). While the motor still burns, a
-    step also ends on every thrust-curve sample and covers at most 1/burn_steps
-    of the burn; a step never passes the pass's stop time.
+    step also ends on every thrust-curve sample; a step never passes the pass's stop time (the error
+    controller's step also bounds every step).
     """
     z, vz = a["z"], a["vz"]
     rho, _, grav, shape = g.lookup(z)
@@ -222,6 +222,6 @@ def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.
     h = np.clip(np.minimum(fraction * time_scale, time_left / 30.0), 1e-5, 10.0)
     t = a["t"]
     if a["burning"].any():
-        h = np.where(a["burning"], np.minimum(h, np.minimum(a["burn_h"], a["seg_end"] - t)), h)
+        h = np.where(a["burning"], np.minimum(h, a["seg_end"] - t), h)
     stop = a["stop_t"]
     return np.where(stop > t, np.minimum(h, stop - t), h)

@@ -89,7 +89,7 @@ def test_quadratic_drag_boost_and_coast_in_uniform_air() -> None:
     assert results.apogee_m[0] == pytest.approx(apogee, rel=1e-5)  # default steps: about 1.5e-6 here
     assert results.optimal_delay_s[0] == pytest.approx(t_c, rel=1e-5)
     assert results.max_speed_m_s[0] == pytest.approx(v_b, rel=1e-6)
-    fine = FlightSettings(vary_gravity=False, uniform_air=True, burn_steps=240, coast_steps=240)
+    fine = FlightSettings(vary_gravity=False, uniform_air=True, tolerance=1e-9)
     finer = simulate(frame, [constant_motor(thrust, burn, 0.01, delays=())], fine, descent=False)
     # RK4 converges: four times the steps cut the error by far more than four
     assert abs(finer.apogee_m[0] - apogee) < abs(results.apogee_m[0] - apogee) / 30
