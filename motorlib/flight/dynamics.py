@@ -75,15 +75,17 @@ class _Group:
         """
         u = (z - self.base_m) * (1.0 / self.step_m)
         i = np.minimum(np.maximum(u.astype(np.int64), 0), self.rho.size - 2)
-        w = u - i
-        out = []
-        for table in (self.rho, self.sound, self.gravity):
-            lo = table[i]
-            out.append(lo + w * (table[i + 1] - lo))
+        air = self.table.take(i, axis=1)  # rows: density, speed of sound, gravity
+        air += (u - i) * self.slope.take(i, axis=1)
         # 0.1 = 1 / (10 m reference); held above the cap
         # (np.minimum/np.maximum: np.clip costs several times more per call on arrays this size)
         shape = (np.minimum(np.maximum(z, self.wind_floor_m), self.wind_cap_m) * 0.1) ** self.wind_exponent
-        return out[0], out[1], out[2], shape
+        return air[0], air[1], air[2], shape
+
+    def __post_init__(self) -> None:
+        # density, speed of sound and gravity stacked with their slopes per table step: one gather reads all
+        self.table = np.stack((self.rho, self.sound, self.gravity))
+        self.slope = np.diff(self.table, axis=1, append=self.table[:, -1:])
 
 
 def _basis(launch: Launch) -> tuple[float, float, float, float, float]:
@@ -126,11 +128,9 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz):
     ``a`` holds the active flights' parameters and phase flags (compacted with the state). In a
     planar group ``ay`` is None (y and its speed stay 0).
     """
-    burning = a["burning"]
     dt = t - a["seg_t"]
-    thrust = np.where(burning, a["seg_f"] + a["seg_s"] * dt, 0.0)
-    impulse = np.where(burning, a["seg_c"] + (a["seg_f"] + 0.5 * a["seg_s"] * dt) * dt, a["itot"])
-    inv_mass = 1.0 / (a["m_full"] - a["m_prop"] * (impulse / a["itot"]))
+    thrust = a["seg_f"] + a["seg_s"] * dt  # the segment's coefficients: 0 while coasting
+    inv_mass = 1.0 / (a["seg_m0"] + (a["seg_m1"] + a["seg_m2"] * dt) * dt)
     rho, sound, grav, shape = g.lookup(z)
     wind_x, wind_y = g.wind(a, z, shape)
     vrx = vx - wind_x
@@ -143,7 +143,7 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz):
     mach = speed / sound
     cd = np.interp(mach, g.machs, g.cds) if g.table_cd else a["cd"]
     if g.cds_powered is not None:  # smaller base drag while the exhaust fills part of the base
-        cd = np.where(burning, np.interp(mach, g.machs, g.cds_powered), cd)
+        cd = np.where(a["burning"], np.interp(mach, g.machs, g.cds_powered), cd)
     half_rho_v = 0.5 * rho * speed
     drag_per_v = half_rho_v * (cd * a["area"] + a["extra"])  # drag force / |v_rel|
     # free flight: thrust along v_rel (weathercocking), drag against it

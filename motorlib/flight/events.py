@@ -188,25 +188,39 @@ def _rail_exit(a: dict, rail_exit_t: np.ndarray, rail_exit_v: np.ndarray, status
     a["any_rail"] = bool(a["on_rail"].any())
 
 
-def _ejection_states(a: dict, queries_s: np.ndarray, ejection: dict[str, np.ndarray], e: _StepEnds) -> None:
-    """Interpolate the state at every ejection instant that falls inside this step.
+_EJECTION_MAXIMA = ("max_speed", "max_mach", "max_acc", "max_q")
+
+
+def _ejection_steps(a: dict, queries_s: np.ndarray, e: _StepEnds, steps: list) -> None:
+    """Record the steps that hold an ejection instant (located after the loop by :func:`_locate_ejections`).
 
     ``queries_s`` has shape (n_flights, n_delays): burnout plus each delay [s],
     inf where a motor has fewer delays; ``a["next_q"]`` is each active flight's
-    next instant, so only flights with one due are looked at.
+    next instant, so only flights with one due are looked at. The maxima of the
+    step ends so far are kept with each step.
     """
     due = a["next_q"] <= e.t1
     if not due.any():
         return
     rows_d = np.flatnonzero(due)
     r_all = a["ref"][rows_d]
+    steps.append((r_all, e.select(rows_d), np.stack([a[name][rows_d] for name in _EJECTION_MAXIMA])))
     q_rows = queries_s[r_all]
-    inside = (q_rows > e.t0[rows_d, None]) & (q_rows <= e.t1[rows_d, None])
-    a_i, b_i = np.nonzero(inside)
-    li = rows_d[a_i]  # local (active) positions
+    a["next_q"][rows_d] = np.where(q_rows > e.t1[rows_d, None], q_rows, np.inf).min(axis=1)
+
+
+def _locate_ejections(steps: list, queries_s: np.ndarray, ejection: dict[str, np.ndarray]) -> None:
+    """Interpolate (cubic Hermite) the state at every ejection instant inside the recorded steps, all at once."""
+    if not steps:
+        return
+    refs, e = _stacked([(r, ends) for r, ends, _ in steps])
+    maxima = np.concatenate([m for _, _, m in steps], axis=1)
+    q_rows = queries_s[refs]
+    inside = (q_rows > e.t0[:, None]) & (q_rows <= e.t1[:, None])
+    li, b_i = np.nonzero(inside)
     hq = e.h[li]
-    tau = (q_rows[a_i, b_i] - e.t0[li]) / hq
-    r = a["ref"][li]
+    tau = (q_rows[li, b_i] - e.t0[li]) / hq
+    r = refs[li]
     for axis in "xyz":
         ejection[axis][r, b_i] = _hermite(getattr(e, f"{axis}0")[li], getattr(e, f"v{axis}0")[li],
                                           getattr(e, f"{axis}1")[li], getattr(e, f"v{axis}1")[li], hq, tau)
@@ -214,11 +228,9 @@ def _ejection_states(a: dict, queries_s: np.ndarray, ejection: dict[str, np.ndar
                                                 getattr(e, f"v{axis}1")[li], getattr(e, f"a{axis}1")[li], hq, tau)
     ejection["speed"][r, b_i] = np.sqrt(ejection["vx"][r, b_i] ** 2 + ejection["vy"][r, b_i] ** 2
                                         + ejection["vz"][r, b_i] ** 2)
-    ejection["t"][r, b_i] = q_rows[a_i, b_i]
-    for name in ("max_speed", "max_mach", "max_acc", "max_q"):  # maxima of the step ends before the instant
-        ejection[name][r, b_i] = a[name][li]
-    later = np.where(q_rows > e.t1[rows_d, None], q_rows, np.inf)
-    a["next_q"][rows_d] = later.min(axis=1)
+    ejection["t"][r, b_i] = q_rows[li, b_i]
+    for k, name in enumerate(_EJECTION_MAXIMA):  # maxima of the step ends before the instant
+        ejection[name][r, b_i] = maxima[k, li]
 
 
 def _deploy_altitude_reached(a: dict, at_deploy: dict[str, np.ndarray], deploy_altitude_m: float,

@@ -45,7 +45,8 @@ import numpy as np
 
 from .airframe import Airframe, Recovery
 from .dynamics import _accel, _basis, _Group, _make_group
-from .events import (_deploy_altitude_reached, _ejection_states, _liftoff, _locate_apogee, _locate_landing,
+from .events import (_deploy_altitude_reached, _ejection_steps, _liftoff, _locate_apogee, _locate_ejections,
+                     _locate_landing,
                      _rail_exit, _StepEnds, _thrust_to_weight)
 from .pack import _TINY, MotorPack
 from .wind import DEFAULT_CAP_M
@@ -382,6 +383,7 @@ class _Pass:
     history: list[tuple[np.ndarray, ...]] | None
     apogee_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)  # steps that hold an apogee
     landing_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)
+    ejection_steps: list[tuple[np.ndarray, _StepEnds, np.ndarray]] = field(default_factory=list)
 
     @classmethod
     def start(cls, pack: MotorPack, idx: np.ndarray, keep_history: bool, timer_s: np.ndarray | None = None,
@@ -455,6 +457,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         _locate_apogee(run.apogee_steps, run.apogee)
     if run.landing_steps:
         _locate_landing(run.landing_steps, run.landing)
+    _locate_ejections(run.ejection_steps, run.queries_s, run.ejection)
     _write_results(run, idx, out, descent)
     if traj is not None:
         _store_history(run.history, idx, traj, under_device)
@@ -506,17 +509,39 @@ def _active_arrays(run: _Pass, state0: dict[str, np.ndarray], seg0: np.ndarray, 
 
 
 def _load_segment(a: dict, run: _Pass, mask: np.ndarray | None) -> None:
-    """Coefficients of the current curve segment of the flights in ``mask`` (all when None)."""
+    """Coefficients of the current curve segment of the flights in ``mask`` (all when None): start and end [s],
+    thrust F + S·dt [N] and mass m0 + m1·dt + m2·dt² [kg] in dt = t − start, mass falling with the impulse
+    delivered (as :mod:`motorlib.flight` states). Flights that no longer burn get the coast's: no thrust,
+    the burnt-out mass."""
     rows = a["ref"] if mask is None else a["ref"][mask]
     j = np.minimum(a["seg"] if mask is None else a["seg"][mask], run.last_seg[rows] - 1)
     times, thrust = run.times_s, run.thrust_n
     t_a, t_b, f_a = times[rows, j], times[rows, j + 1], thrust[rows, j]
-    values = (t_a, t_b, f_a, (thrust[rows, j + 1] - f_a) / np.maximum(t_b - t_a, _TINY), run.cumulative_ns[rows, j])
-    for name, value in zip(("seg_t", "seg_end", "seg_f", "seg_s", "seg_c"), values):
+    slope = (thrust[rows, j + 1] - f_a) / np.maximum(t_b - t_a, _TINY)
+    pick = (lambda name: a[name]) if mask is None else (lambda name: a[name][mask])
+    per_ns = pick("m_prop") / pick("itot")  # propellant burnt per N·s [kg/(N·s)]
+    values = (t_a, t_b, f_a, slope, pick("m_full") - per_ns * run.cumulative_ns[rows, j], -per_ns * f_a,
+              -0.5 * per_ns * slope)
+    for name, value in zip(_SEGMENT, values):
         if mask is None:
             a[name] = value
         else:
             a[name][mask] = value
+    burning = pick("burning")
+    if not burning.all():
+        _coast_segment(a, ~burning if mask is None else mask & ~a["burning"])
+
+
+_SEGMENT = ("seg_t", "seg_end", "seg_f", "seg_s", "seg_m0", "seg_m1", "seg_m2")
+
+
+def _coast_segment(a: dict, mask: np.ndarray) -> None:
+    """The coast's 'segment' for the flights in ``mask``: no thrust, the burnt-out mass."""
+    a["seg_f"][mask] = 0.0
+    a["seg_s"][mask] = 0.0
+    a["seg_m0"][mask] = (a["m_full"] - a["m_prop"])[mask]
+    a["seg_m1"][mask] = 0.0
+    a["seg_m2"][mask] = 0.0
 
 
 def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: float | None, descent: bool,
@@ -674,6 +699,7 @@ def _next_segment(a: dict, run: _Pass, hit_seg: np.ndarray, burning: np.ndarray,
     _load_segment(a, run, hit_seg & ~ended)
     if ended.any():
         a["burning"] = burning & ~ended
+        _coast_segment(a, ended)
     return ended
 
 
@@ -683,7 +709,7 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
 
     Apogee and landing are located after the loop, all at once (one vectorised
     root solve instead of one per step); here the steps that hold them are only
-    recorded. Ejection states are interpolated now (cubic Hermite).
+    recorded, as are the steps that hold an ejection instant.
     """
     crossing = (e.vz1 <= 0.0) & (e.vz0 > 0.0) & ~a["apogee_found"] & ~a["on_rail"]
     if crossing.any():
@@ -692,7 +718,7 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
         for name in _MAXIMA:  # the maxima before apogee (step ends up to this step's start)
             run.apogee[name][a["ref"][c]] = a[name][c]
         a["apogee_found"] = a["apogee_found"] | crossing
-    _ejection_states(a, run.queries_s, run.ejection, e)
+    _ejection_steps(a, run.queries_s, e, run.ejection_steps)
     if deploy_altitude_m is not None and a["pending"].any():
         _deploy_altitude_reached(a, run.at_deploy, deploy_altitude_m, e)
     landed = (e.z1 <= 0.0) & (e.z0 > 0.0) & ~a["on_rail"]
