@@ -14,7 +14,7 @@ negligible for the flights motorlib simulates.
 
 Constants: g0 = 9.80665 m/s², R* = 8314.32 J/(kmol·K), M0 = 28.9644 kg/kmol,
 r0 = 6 356 766 m, γ = 1.4, β = 1.458e-6 kg/(m·s·K^½), S = 110.4 K
-(check-values.md section 1.1).
+(tests/reference/check_values.md#atm-constants).
 
 Launch sites (:class:`Site`): a measured temperature shifts the temperature
 profile by the constant offset ΔT = T_site − T_std(elevation), T(H) = T_std(H) + ΔT;
@@ -59,7 +59,8 @@ __all__ = [
     "temperature_k",
 ]
 
-UNIVERSAL_GAS_CONSTANT_J_KMOL_K: Final = 8314.32  # USSA 1976 value, not CODATA (check-values.md 1.1)
+# USSA 1976 values (tests/reference/check_values.md#atm-constants); R* is the 1976 value, not CODATA's.
+UNIVERSAL_GAS_CONSTANT_J_KMOL_K: Final = 8314.32
 MOLAR_MASS_KG_KMOL: Final = 28.9644  # sea-level mean molar mass of air, USSA 1976
 GAS_CONSTANT_J_KG_K: Final = UNIVERSAL_GAS_CONSTANT_J_KMOL_K / MOLAR_MASS_KG_KMOL  # 287.053072
 GAMMA: Final = 1.4  # ratio of specific heats of air, USSA 1976

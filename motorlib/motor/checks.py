@@ -55,7 +55,7 @@ __all__ = ["CheckSettings", "Finding", "SEVERITIES", "check_record", "findings_f
 
 SEVERITIES: Final = ("error", "warning", "note")
 
-# High-power triggers as secondary sources summarise NFPA 1127 (check-values.md section 2.3, C2).
+# High-power triggers as secondary sources summarise NFPA 1127 (tests/reference/check_values.md#high-power).
 HIGH_POWER_IMPULSE_NS: Final = 160.0
 HIGH_POWER_AVERAGE_THRUST_N: Final = 80.0
 HIGH_POWER_PROPELLANT_KG: Final = 0.0625
@@ -80,10 +80,10 @@ class CheckSettings:
     ----------
     burn_threshold : float
         Burn-time threshold as a fraction of peak thrust. 0.05: NFPA 1125 as
-        summarised by secondary sources (check-values.md 3.1, C2).
+        summarised by secondary sources (tests/reference/check_values.md#motor-testing).
     average_thrust_tolerance : float
         Allowed relative difference between labelled and computed average
-        thrust. 0.20: NFPA 1125 via the same secondary sources (C2).
+        thrust. 0.20: NFPA 1125 via the same secondary sources (same entry).
     total_impulse_tolerance : float
         Allowed relative difference to a leading labelled impulse (``120G40``).
         0.10: common practice, no published source.
@@ -98,8 +98,8 @@ class CheckSettings:
         liftoff and the delay from it). 0.1 s: common practice, no published source.
     isp_range_s : (float, float)
         Plausible specific impulse of hobby propellants [s]. 50-300 s: common
-        practice, no published source (check-values.md 4.1: black powder about
-        80 s, composite 180-260 s).
+        practice, no published source (tests/reference/check_values.md#specific-impulse: black
+        powder about 80 s from memory, composite 180-260 s from a secondary copy).
     burn_time_range_s : (float, float)
         Plausible burn time of hobby motors [s]. Common practice, no published source.
     """

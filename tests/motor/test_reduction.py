@@ -268,7 +268,8 @@ def test_firing_table_gives_each_firings_figures() -> None:
         assert row["peak_thrust_n"] == pytest.approx(known.peak_thrust_n * scale, rel=0.02)
         assert row["burn_time_s"] == pytest.approx(known.burn_time_s(), rel=0.02)
         assert row["average_thrust_n"] == pytest.approx(known.average_thrust_n() * scale, rel=0.02)
-        # Class G spans 80.00-160.00 N·s (NFPA 1122 §4.9.2; check-values.md 2.1): percent into class by hand.
+        # Class G spans 80.00-160.00 N·s (NFPA 1122 §4.9.2; tests/reference/check_values.md#impulse-classes):
+        # percent into class by hand.
         assert row["impulse_class"] == "G"
         assert row["class_percent"] == pytest.approx(100.0 * (row["total_impulse_ns"] - 80.0) / 80.0, abs=0.02)
 
