@@ -169,6 +169,11 @@ class Site:
     pressure_pa: float | None = None
 
     def __post_init__(self) -> None:
+        # Ranges wide enough for any launch site and narrow enough to catch a wrong unit (from memory: the lowest
+        # dry land lies about 430 m below sea level, the highest summit 8849 m above; surface temperatures have
+        # been measured from about 184 K to 330 K; sea-level pressure stays below about 108.4 kPa, while the
+        # standard pressure at 9000 m is 30.8 kPa). A temperature in °C or °F given as K, a pressure in hPa or
+        # inHg given as Pa, an elevation in feet of a high site fail.
         if not -1000.0 <= self.elevation_m <= 9000.0:
             raise ValueError(f"`elevation_m` must lie between -1000 and 9000 m, got {self.elevation_m!r}")
         if self.temperature_k is not None and not 180.0 <= self.temperature_k <= 340.0:

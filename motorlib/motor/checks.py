@@ -86,12 +86,15 @@ class CheckSettings:
         thrust. 0.20: NFPA 1125 via the same secondary sources (same entry).
     total_impulse_tolerance : float
         Allowed relative difference to a leading labelled impulse (``120G40``).
-        0.10: common practice, no published source.
+        0.10: common practice, no published source (no source gives a tolerance on the
+        labelled impulse: tests/reference/check_values.md#motor-testing).
     edge_fraction : float
         First/last sample must not exceed this fraction of peak thrust.
-        0.05: common practice, no published source.
+        0.05: common practice, no published source; the same 5 % as the burn-time
+        threshold, so a curve that starts or ends above it is cut inside its own burn.
     min_samples : int
-        Fewer samples draw a warning. 8: common practice, no published source.
+        Fewer samples draw a warning. 8: common practice, no published source (a rise,
+        a peak, a plateau and a tail-off need a few points each).
     max_ignition_delay_s : float
         Longest time from the first sample to the start of the burn window [s] before the curve is taken for a
         raw log whose run-up was kept (time 0 of a thrust curve is ignition, and a simulation counts the
@@ -99,9 +102,13 @@ class CheckSettings:
     isp_range_s : (float, float)
         Plausible specific impulse of hobby propellants [s]. 50-300 s: common
         practice, no published source (tests/reference/check_values.md#specific-impulse: black
-        powder about 80 s from memory, composite 180-260 s from a secondary copy).
+        powder about 80 s from memory, composite 180-260 s from a secondary copy). Chosen so
+        that a thrust unit mix-up leaves it: lbf read as N divides Isp by 4.45 (200 s to 45 s),
+        N read as lbf multiplies it (80 s to 356 s).
     burn_time_range_s : (float, float)
-        Plausible burn time of hobby motors [s]. Common practice, no published source.
+        Plausible burn time of hobby motors [s]. 0.02-30 s: common practice, no published
+        source. Chosen so that a time unit mix-up leaves it: a typical 0.1-10 s burn scaled
+        by 1000 either way (s and ms confused) lasts 100 s or more, or 0.01 s or less.
     """
 
     burn_threshold: float = DEFAULT_BURN_THRESHOLD
