@@ -44,8 +44,12 @@ POUND_FORCE_N: Final = POUND_KG * STANDARD_GRAVITY_M_S2  # 4.4482216152605 N, lb
 KILOGRAM_FORCE_N: Final = STANDARD_GRAVITY_M_S2  # 1 kgf = 1 kg x g0 by definition
 OUNCE_FORCE_N: Final = OUNCE_KG * STANDARD_GRAVITY_M_S2  # 0.27801385... N, oz x g0 by definition (small load cells)
 MILE_M: Final = 1609.344  # exact, 5280 ft
-PSI_PA: Final = POUND_FORCE_N / INCH_M**2  # pound-force per square inch, 6894.757... Pa by definition
-INCH_OF_MERCURY_PA: Final = 3386.389  # conventional inch of mercury (NIST SP 811, appendix B.8)
+# Pound-force per square inch from the exact pound, g0 and inch: 6894.757293... Pa.
+PSI_PA: Final = POUND_FORCE_N / INCH_M**2
+# Conventional inch of mercury, 1 in x 13 595.1 kg/m³ (mercury near 0 °C) x g0 = 3386.38864 Pa, to the seven
+# digits NIST SP 811 (2008), appendix B.8 prints (3.386 389 E+03 Pa); barometers and altimeter logs give inHg.
+# Both checked against pint: tests/reference/check_values.md#units-pressure.
+INCH_OF_MERCURY_PA: Final = 3386.389
 
 # kind -> unit symbol -> factor to the SI unit of that kind (value_si = value * factor).
 # Aliases are listed separately so that every factor is written once.

@@ -51,7 +51,7 @@ def fixture_dir() -> Path:
 
 @pytest.fixture
 def triangle() -> MotorRecord:
-    """check-values.md 3.3: (0 s, 0 N), (0.1 s, 10 N), (1.0 s, 0 N)."""
+    """The triangle of tests/reference/check_values.md#curve-oracles: (0 s, 0 N), (0.1 s, 10 N), (1.0 s, 0 N)."""
     return MotorRecord("B5", [0.0, 0.1, 1.0], [0.0, 10.0, 0.0])
 
 

@@ -6,11 +6,14 @@ import pint
 import pytest
 
 from motorlib import QuantityError
-from motorlib.units import UNITS, parse_quantity, to_si
+from motorlib.units import INCH_OF_MERCURY_PA, PSI_PA, UNITS, parse_quantity, to_si
+
+from .reference.values import PRESSURE_UNITS
 
 UREG = pint.UnitRegistry()
 
-# Our symbol -> pint expression; reference: pint's default registry (check-values.md section 8, L).
+# Our symbol -> pint expression; reference library: pint's default registry
+# (tests/reference/check_values.md#units-pint).
 PINT_NAMES = {
     ("length", "in"): "inch", ("length", "ft"): "foot", ("length", "mm"): "millimeter", ("length", "cm"): "centimeter",
     ("length", "km"): "kilometer", ("length", "m"): "meter",
@@ -41,9 +44,26 @@ def test_every_factor_matches_pint(kind: str, unit: str) -> None:
     ("5 deg", "angle", 5 * 3.141592653589793 / 180), ("1.5 lbf", "force", 1.5 * 4.4482216152605),
 ])
 def test_parse_quantity_with_units(text: str, kind: str, expected: float) -> None:
-    # Reference values: pint 0.25.3 as listed in check-values.md section 8 (L).
+    # Reference values: pint 0.25.3 (reference library, tests/reference/check_values.md#units-pint).
     assert parse_quantity(text, kind) == pytest.approx(expected, rel=1e-12)
     assert parse_quantity(text, kind) == pytest.approx(UREG.Quantity(text).to(SI[kind]).magnitude, rel=1e-12)
+
+
+def test_psi_is_a_pound_force_per_square_inch() -> None:
+    # Exact definitions: 0.45359237 kg x 9.80665 m/s² / (0.0254 m)² = 6894.757293168361... Pa
+    # (tests/reference/check_values.md#units-pressure); pint gives the same.
+    assert PSI_PA == pytest.approx(PRESSURE_UNITS.value("psi"), rel=1e-15)
+    assert PSI_PA == pytest.approx(UREG.Quantity(1.0, "psi").to("pascal").magnitude, rel=1e-15)
+
+
+def test_inch_of_mercury_is_the_conventional_one_to_seven_digits() -> None:
+    # pint: inch x conventional mercury density 13 595.1 kg/m³ x g0 = 3386.388640341 Pa (reference library);
+    # NIST SP 811, appendix B.8 prints it to seven digits, 3.386 389 E+03 Pa (from memory). Not the inch of
+    # mercury at 60 °F (pint: about 3376.85 Pa).
+    exact = UREG.Quantity(1.0, "inHg").to("pascal").magnitude
+    assert exact == pytest.approx(PRESSURE_UNITS.value("inHg"), rel=1e-12)
+    assert INCH_OF_MERCURY_PA == round(exact, 3) == PRESSURE_UNITS.value("inHg_nist")
+    assert INCH_OF_MERCURY_PA != pytest.approx(UREG.Quantity(1.0, "inHg_60F").to("pascal").magnitude, rel=1e-3)
 
 
 def test_temperatures_match_pint() -> None:

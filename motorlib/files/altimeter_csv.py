@@ -21,15 +21,16 @@ import numpy as np
 from ..errors import CsvFormatError
 from .fsio import read_text_bounded
 from ..flight.calibration import altitude_from_pressure_m
+from ..units import FOOT_M, INCH_OF_MERCURY_PA
 
 MAX_LOG_BYTES = 64 * 1024 * 1024  # an hour at 100 Hz is a few MB; refuse what cannot be an altimeter log
 
 __all__ = ["AltimeterLog", "read_altimeter_csv"]
 
-# factors to SI; ft and inHg from units.py's sources (international foot, exact; inHg at 0 degC)
+# factors to SI; ft and inHg are units.py's (international foot, exact; conventional inHg, its sources there)
 _TIME_UNITS = {"s": 1.0, "ms": 1e-3, "us": 1e-6}
-_LENGTH_UNITS = {"m": 1.0, "ft": 0.3048, "km": 1000.0}
-_PRESSURE_UNITS = {"pa": 1.0, "hpa": 100.0, "kpa": 1000.0, "mbar": 100.0, "bar": 1e5, "inhg": 3386.389}
+_LENGTH_UNITS = {"m": 1.0, "ft": FOOT_M, "km": 1000.0}
+_PRESSURE_UNITS = {"pa": 1.0, "hpa": 100.0, "kpa": 1000.0, "mbar": 100.0, "bar": 1e5, "inhg": INCH_OF_MERCURY_PA}
 _NAMES = {"time": ("time", "t", "seconds", "timestamp"), "altitude": ("altitude", "alt", "height", "agl"),
           "pressure": ("pressure", "baro", "p")}
 

@@ -86,6 +86,10 @@ class Launch:
         return self.wind_speed_m_s
 
     def __post_init__(self) -> None:
+        # Ranges: bounds beyond any hobby launch that catch a unit mix-up before it is flown (common practice, no
+        # published source): a 30 m rail (a length in feet or mm read as m fails); 30° from vertical, the limit of
+        # the NAR Model Rocket Safety Code (published, tests/reference/check_values.md#launch-rules); a 40 m/s
+        # wind, four times the 20 mph surface-wind limit of the same entry (a speed in km/h or mph may pass).
         src = "launch"
         _require(src, "launch.rail_length", 0.0 < self.rail_length_m <= 30.0, f"must be above 0 and at most 30 m, got {self.rail_length_m!r} m")
         _require(src, "launch.rail_angle", 0.0 <= self.rail_angle_rad <= math.radians(30.0),
@@ -131,6 +135,8 @@ class Recovery:
     replaces: bool = False
 
     def __post_init__(self) -> None:
+        # 600 s for a delay: ten minutes, longer than any ejection delay or recovery timer; a delay in ms given as
+        # s (5000) fails. Common practice, no published source.
         src = "recovery"
         _require(src, "recovery.device", self.device in RECOVERY_DEVICES, f"must be one of {', '.join(RECOVERY_DEVICES)}, got {self.device!r}")
         _require(src, "recovery.deploy", self.deploy in DEPLOY_MODES, f"must be one of {', '.join(DEPLOY_MODES)}, got {self.deploy!r}")
@@ -203,6 +209,9 @@ class Airframe:
             _require(src, "recovery", all(d.device != "none" for d in sequence),
                      "every device of a sequence needs a kind other than none")
             object.__setattr__(self, "recovery", sequence[0])
+        # Ranges (common practice, no published source): 2000 kg and 2 m lie far above the hobby and high-power
+        # rockets this library models (grams to tens of kilograms), so a mass in g or a diameter in mm read as SI
+        # fails; Cd below 5 leaves room for draggy shapes, while a percentage (75 for 0.75) fails.
         _require(src, "airframe.mass", 0.0 < self.mass_kg <= 2000.0, f"must be above 0 and at most 2000 kg, got {self.mass_kg!r} kg")
         _require(src, "airframe.diameter", 0.0 < self.diameter_m <= 2.0, f"must be above 0 and at most 2 m, got {self.diameter_m!r} m")
         if self.geometry is not None:

@@ -14,7 +14,7 @@ negligible for the flights motorlib simulates.
 
 Constants: g0 = 9.80665 m/s², R* = 8314.32 J/(kmol·K), M0 = 28.9644 kg/kmol,
 r0 = 6 356 766 m, γ = 1.4, β = 1.458e-6 kg/(m·s·K^½), S = 110.4 K
-(check-values.md section 1.1).
+(tests/reference/check_values.md#atm-constants).
 
 Launch sites (:class:`Site`): a measured temperature shifts the temperature
 profile by the constant offset ΔT = T_site − T_std(elevation), T(H) = T_std(H) + ΔT;
@@ -59,7 +59,8 @@ __all__ = [
     "temperature_k",
 ]
 
-UNIVERSAL_GAS_CONSTANT_J_KMOL_K: Final = 8314.32  # USSA 1976 value, not CODATA (check-values.md 1.1)
+# USSA 1976 values (tests/reference/check_values.md#atm-constants); R* is the 1976 value, not CODATA's.
+UNIVERSAL_GAS_CONSTANT_J_KMOL_K: Final = 8314.32
 MOLAR_MASS_KG_KMOL: Final = 28.9644  # sea-level mean molar mass of air, USSA 1976
 GAS_CONSTANT_J_KG_K: Final = UNIVERSAL_GAS_CONSTANT_J_KMOL_K / MOLAR_MASS_KG_KMOL  # 287.053072
 GAMMA: Final = 1.4  # ratio of specific heats of air, USSA 1976
@@ -168,6 +169,11 @@ class Site:
     pressure_pa: float | None = None
 
     def __post_init__(self) -> None:
+        # Ranges wide enough for any launch site and narrow enough to catch a wrong unit (from memory: the lowest
+        # dry land lies about 430 m below sea level, the highest summit 8849 m above; surface temperatures have
+        # been measured from about 184 K to 330 K; sea-level pressure stays below about 108.4 kPa, while the
+        # standard pressure at 9000 m is 30.8 kPa). A temperature in °C or °F given as K, a pressure in hPa or
+        # inHg given as Pa, an elevation in feet of a high site fail.
         if not -1000.0 <= self.elevation_m <= 9000.0:
             raise ValueError(f"`elevation_m` must lie between -1000 and 9000 m, got {self.elevation_m!r}")
         if self.temperature_k is not None and not 180.0 <= self.temperature_k <= 340.0:

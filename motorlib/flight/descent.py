@@ -6,7 +6,7 @@ Constant density (the closed forms): m·dv/dt = m·g − k·v², k = ½·ρ·(Cd
 Terminal speed v_t = √(m·g/k) = √(2·m·g/(ρ·Cd·A)).
 From rest: v(t) = v_t·tanh(g·t/v_t) and the distance fallen
 y(t) = (v_t²/g)·ln cosh(g·t/v_t), so the time to fall a height h is
-t = (v_t/g)·arccosh(exp(g·h/v_t²)) (textbook closed form; check-values.md 6.1).
+t = (v_t/g)·arccosh(exp(g·h/v_t²)) (textbook closed form; tests/reference/check_values.md#fall-from-rest).
 The inverse (from a drop height and an observed fall time, the terminal speed
 that explains them) solves y(t; v_t) = h for v_t exactly, by safeguarded Newton
 iterations on arrays; it is not the terminal-speed shortcut h/t.

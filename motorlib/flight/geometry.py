@@ -119,6 +119,9 @@ class Nose:
     exponent: float | None = None
 
     def __post_init__(self) -> None:
+        # Length bounds here and in the other shape records (20 m nose, 50 m body, 10 m fins and transitions, 2 m
+        # diameters) lie far above hobby rockets and catch lengths in mm read as m: common practice, no published
+        # source.
         _require("geometry.nose.shape", self.shape in NOSE_SHAPES, f"must be one of {', '.join(NOSE_SHAPES)}, got {self.shape!r}")
         _require("geometry.nose.length", 0.0 < self.length_m <= 20.0, f"must be above 0 and at most 20 m, got {self.length_m!r} m")
         if self.shape == "power":
@@ -217,6 +220,7 @@ class Fins:
 
     def __post_init__(self) -> None:
         p = "geometry.fins."
+        # 2 to 8 fins, a thickness below 0.2 m: the fin sets hobby rockets fly (common practice, no published source).
         _require(p + "count", isinstance(self.count, int) and not isinstance(self.count, bool) and 2 <= self.count <= 8,
                  f"must be a whole number from 2 to 8, got {self.count!r}")
         _require(p + "root_chord", 0.0 < self.root_chord_m <= 10.0, f"must be above 0 and at most 10 m, got {self.root_chord_m!r} m")

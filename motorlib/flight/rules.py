@@ -18,19 +18,20 @@ class LaunchRules:
     Attributes
     ----------
     min_rail_exit_speed_m_s : float
-        15 m/s (about 50 ft/s): common practice, no published source (check-values.md 5).
+        15 m/s (about 50 ft/s): common practice, no published source (tests/reference/check_values.md#launch-rules).
     rail_exit_wind_ratio : float
         Rail exit speed at least 4 x wind speed: the report "Launching Safely in the
-        21st Century" (2005), section 7.4.3, as quoted by a secondary source (C2).
+        21st Century" (2005), section 7.4.3, as quoted by a secondary source (same entry).
     min_liftoff_thrust_to_weight : float
-        5: common practice, no published source (NFPA 1127 section 4.9.1 is quoted as a 3:1 minimum, C2).
+        5: common practice, no published source (NFPA 1127 section 4.9.1 is quoted as a 3:1 minimum by a
+        secondary source; same entry).
     max_delay_error_s : float
         Ejection within 2 s of apogee: common practice, no published source.
     max_ejection_speed_m_s : float
         Deployment above this speed risks a zipper or a torn canopy: 25 m/s, common practice, no published source.
     max_landing_speed_m_s : float
         6.5 m/s (about 21 ft/s) under the main device: common practice, no published source
-        (a club wiki gives 3-4.6 m/s as ideal and about 9 m/s as the upper limit, C2).
+        (a club wiki gives 3-4.6 m/s as ideal and about 9 m/s as the upper limit; same entry).
     max_deployment_speed_m_s : tuple of (kind, speed)
         Highest air-relative speed at which each kind of device may open [m/s], whatever opens
         it: a main or a single parachute 25 m/s (as ejection), a drogue 45 m/s and a streamer

@@ -55,7 +55,7 @@ __all__ = ["CheckSettings", "Finding", "SEVERITIES", "check_record", "findings_f
 
 SEVERITIES: Final = ("error", "warning", "note")
 
-# High-power triggers as secondary sources summarise NFPA 1127 (check-values.md section 2.3, C2).
+# High-power triggers as secondary sources summarise NFPA 1127 (tests/reference/check_values.md#high-power).
 HIGH_POWER_IMPULSE_NS: Final = 160.0
 HIGH_POWER_AVERAGE_THRUST_N: Final = 80.0
 HIGH_POWER_PROPELLANT_KG: Final = 0.0625
@@ -80,28 +80,35 @@ class CheckSettings:
     ----------
     burn_threshold : float
         Burn-time threshold as a fraction of peak thrust. 0.05: NFPA 1125 as
-        summarised by secondary sources (check-values.md 3.1, C2).
+        summarised by secondary sources (tests/reference/check_values.md#motor-testing).
     average_thrust_tolerance : float
         Allowed relative difference between labelled and computed average
-        thrust. 0.20: NFPA 1125 via the same secondary sources (C2).
+        thrust. 0.20: NFPA 1125 via the same secondary sources (same entry).
     total_impulse_tolerance : float
         Allowed relative difference to a leading labelled impulse (``120G40``).
-        0.10: common practice, no published source.
+        0.10: common practice, no published source (no source gives a tolerance on the
+        labelled impulse: tests/reference/check_values.md#motor-testing).
     edge_fraction : float
         First/last sample must not exceed this fraction of peak thrust.
-        0.05: common practice, no published source.
+        0.05: common practice, no published source; the same 5 % as the burn-time
+        threshold, so a curve that starts or ends above it is cut inside its own burn.
     min_samples : int
-        Fewer samples draw a warning. 8: common practice, no published source.
+        Fewer samples draw a warning. 8: common practice, no published source (a rise,
+        a peak, a plateau and a tail-off need a few points each).
     max_ignition_delay_s : float
         Longest time from the first sample to the start of the burn window [s] before the curve is taken for a
         raw log whose run-up was kept (time 0 of a thrust curve is ignition, and a simulation counts the
         liftoff and the delay from it). 0.1 s: common practice, no published source.
     isp_range_s : (float, float)
         Plausible specific impulse of hobby propellants [s]. 50-300 s: common
-        practice, no published source (check-values.md 4.1: black powder about
-        80 s, composite 180-260 s).
+        practice, no published source (tests/reference/check_values.md#specific-impulse: black
+        powder about 80 s from memory, composite 180-260 s from a secondary copy). Chosen so
+        that a thrust unit mix-up leaves it: lbf read as N divides Isp by 4.45 (200 s to 45 s),
+        N read as lbf multiplies it (80 s to 356 s).
     burn_time_range_s : (float, float)
-        Plausible burn time of hobby motors [s]. Common practice, no published source.
+        Plausible burn time of hobby motors [s]. 0.02-30 s: common practice, no published
+        source. Chosen so that a time unit mix-up leaves it: a typical 0.1-10 s burn scaled
+        by 1000 either way (s and ms confused) lasts 100 s or more, or 0.01 s or less.
     """
 
     burn_threshold: float = DEFAULT_BURN_THRESHOLD

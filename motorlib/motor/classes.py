@@ -7,8 +7,8 @@ each letter doubles the one before. Below A come the fractional classes
 1/2A (0.625, 1.25], 1/4A (0.3125, 0.625] and 1/8A (0, 0.3125]. The upper bound is
 inclusive, the lower exclusive, as the published class lists write them
 (A = 1.26-2.50 N·s, two-decimal lower bounds). Published in NFPA 1122 / 1125 /
-1127 and reproduced by the national associations' codes; see
-``shared/reference/check-values.md`` section 2.1.
+1127 and reproduced by the national associations' codes (secondary copies; see
+``tests/reference/check_values.md#impulse-classes``).
 
 Boundary decision (tested; issue 14): the published class lists state their
 ranges to 0.01 N·s (A = 1.26-2.50, B = 2.51-5.00, G = 80.01-160.00), so an
@@ -61,10 +61,12 @@ CLASS_LETTERS: Final[tuple[str, ...]] = (
     "1/8A", "1/4A", "1/2A", "A", "B", "C", "D", "E", "F", "G", "H", "I", "J", "K", "L", "M", "N", "O",
 )
 _A_INDEX: Final = CLASS_LETTERS.index("A")
-# Published class lists give their ranges to two decimals of a newton-second (check-values.md 2.1, C2).
+# Published class lists give their ranges to two decimals of a newton-second (secondary copies;
+# tests/reference/check_values.md#impulse-classes).
 CLASS_RESOLUTION_NS: Final = 0.01
 # Below 1.25 N·s the bounds 0.3125 and 0.625 N·s need four decimals; no published list was seen that
-# states them at a coarser resolution (check-values.md 2.1: 1/4A's bounds are derived, D).
+# states them at a coarser resolution (tests/reference/check_values.md#impulse-classes: 1/4A's bounds follow from the
+# doubling rule, 1/8A's are from memory).
 FRACTIONAL_CLASS_RESOLUTION_NS: Final = 0.0001
 _DECIMALS: Final = 2  # decimals of CLASS_RESOLUTION_NS
 _FRACTIONAL_DECIMALS: Final = 4  # decimals of FRACTIONAL_CLASS_RESOLUTION_NS

@@ -11,7 +11,7 @@ for piecewise-linear integrands).
 Burn time is the *threshold burn time*: from the moment thrust first rises to a
 threshold fraction of peak thrust to the moment it last falls to it, crossings
 located by linear interpolation. The default threshold, 5 % of peak, is the one
-secondary sources attribute to NFPA 1125 (check-values.md section 3.1, C2).
+secondary sources attribute to NFPA 1125 (tests/reference/check_values.md#motor-testing).
 Average thrust is the impulse delivered inside that window divided by the burn
 time (same source). Both keep the threshold as a parameter.
 
@@ -48,7 +48,8 @@ __all__ = [
     "Provenance",
 ]
 
-DEFAULT_BURN_THRESHOLD: Final = 0.05  # fraction of peak thrust; NFPA 1125 via secondary sources (C2)
+# Fraction of peak thrust; NFPA 1125 as secondary sources summarise it (tests/reference/check_values.md#motor-testing).
+DEFAULT_BURN_THRESHOLD: Final = 0.05
 # Where a curve comes from, in our own words (format 1.1; data_schema/FORMAT.md has the table):
 #   approval-firing   fired by a body that tests motors for approval before sale, as that body published it
 #   maker-published   published by the motor's maker (data sheet, instructions, maker's own files)

@@ -29,7 +29,7 @@ def test_pressure_becomes_height_above_the_pad(tmp_path: Path) -> None:
     log = read_altimeter_csv(_write(tmp_path, "time_s,pressure_hPa\n" + rows + "\n"))
     assert log.pad_pressure_pa == pytest.approx(101_325.0)
     assert log.altitude_m[0] == pytest.approx(0.0, abs=1e-6)
-    assert log.altitude_m[-1] == pytest.approx(1000.2, abs=0.1)  # check-values.md 1.3
+    assert log.altitude_m[-1] == pytest.approx(1000.2, abs=0.1)  # tests/reference/check_values.md#atm-table
 
 
 @pytest.mark.parametrize(("text", "match"), [

@@ -15,25 +15,15 @@ from motorlib.flight import simulate
 from motorlib.flight.airframe import Airframe, Launch
 from motorlib.flight.atmosphere import Site
 
+from ..reference.values import ATM_CONSTANTS, ATM_HANDBOOK, ATM_LAYERS, ATM_SUTHERLAND, ATM_TABLE
 from ..reference_flight import reference_flight
 
-R0 = 6_356_766.0
+R0 = ATM_CONSTANTS.value("earth_radius_m")
 
-# Source: USSA 1976 values computed with the 1976 constants, check-values.md section 1.3 (D; `fluids` 1.3.1
-# reproduces them to 7e-16). Columns: geopotential H (m), T (K), p (Pa), rho (kg/m3), a (m/s), mu (Pa s).
-TABLE_1_3 = [
-    (0, 288.150, 101325.00, 1.224999, 340.294, 1.78938e-5),
-    (500, 284.900, 95460.84, 1.167268, 338.370, 1.77366e-5),
-    (1000, 281.650, 89874.57, 1.111642, 336.434, 1.75785e-5),
-    (2000, 275.150, 79495.22, 1.006490, 332.529, 1.72596e-5),
-    (3000, 268.650, 70108.54, 0.909121, 328.578, 1.69372e-5),
-    (5000, 255.650, 54019.91, 0.736115, 320.530, 1.62812e-5),
-    (8000, 236.150, 35599.81, 0.525167, 308.063, 1.52677e-5),
-    (11000, 216.650, 22632.06, 0.363918, 295.070, 1.42161e-5),
-    (15000, 216.650, 12044.57, 0.193674, 295.070, 1.42161e-5),
-    (20000, 216.650, 5474.89, 0.088035, 295.070, 1.42161e-5),
-    (25000, 221.650, 2511.02, 0.039466, 298.455, 1.44896e-5),
-]
+# The 1976 table by geopotential H (textbook closed form; `fluids` 1.3.1 reproduces it to 7e-16):
+# tests/reference/check_values.md#atm-table. Columns: H (m), T (K), p (Pa), rho (kg/m3), a (m/s), mu (Pa s).
+TABLE_1_3 = ATM_TABLE.select("height_h_m", "temperature_k", "pressure_pa", "density_kg_m3", "speed_of_sound_m_s",
+                             "viscosity_pa_s")
 
 
 @pytest.mark.parametrize(("h", "t", "p", "rho", "a", "mu"), TABLE_1_3)
@@ -46,13 +36,9 @@ def test_matches_the_1976_table(h: float, t: float, p: float, rho: float, a: flo
     assert float(atm.dynamic_viscosity_pa_s(z)) == pytest.approx(mu, rel=5e-6)
 
 
-# Source: Mechanical Engineers' Handbook (Kutz), "Thermophysical Properties of the U.S. Standard Atmosphere",
-# by geometric altitude (check-values.md 1.4, C); rounded to the printed digits.
-@pytest.mark.parametrize(("z", "t", "p_bar", "rho", "a", "g"), [
-    (1000, 281.65, 0.8988, 1.1117, 336.4, 9.8036),
-    (5000, 255.68, 0.5405, 0.7364, 320.6, 9.7912),
-    (11000, 216.77, 0.2270, 0.3648, 295.2, 9.7728),
-])
+# Published: a handbook's table of the U.S. Standard Atmosphere by geometric altitude, rounded to the printed
+# digits (tests/reference/check_values.md#atm-handbook).
+@pytest.mark.parametrize(("z", "t", "p_bar", "rho", "a", "g"), ATM_HANDBOOK.rows)
 def test_matches_the_handbook_by_geometric_altitude(z, t, p_bar, rho, a, g) -> None:
     assert float(atm.temperature_k(z)) == pytest.approx(t, abs=0.006)
     assert float(atm.pressure_pa(z)) / 1e5 == pytest.approx(p_bar, abs=6e-5)
@@ -64,7 +50,7 @@ def test_matches_the_handbook_by_geometric_altitude(z, t, p_bar, rho, a, g) -> N
 @pytest.mark.parametrize("z", [0.0, 250.0, 999.0, 4321.0, 10_999.0, 11_050.0, 19_900.0, 32_500.0, 47_100.0,
                                60_000.0, 75_000.0, 85_500.0])
 def test_matches_fluids(z: float) -> None:
-    # Reference library: fluids 1.3.1, ATMOSPHERE_1976 (geometric altitude), check-values.md section 8.
+    # Reference library: fluids 1.3.1, ATMOSPHERE_1976 (geometric altitude), tests/reference/check_values.md#atm-fluids.
     ref = ATMOSPHERE_1976(z)
     assert float(atm.temperature_k(z)) == pytest.approx(ref.T, rel=1e-12)
     assert float(atm.pressure_pa(z)) == pytest.approx(ref.P, rel=1e-10)
@@ -74,11 +60,11 @@ def test_matches_fluids(z: float) -> None:
     assert float(atm.gravity_m_s2(z)) == pytest.approx(ref.g, rel=1e-12)
 
 
-# Sutherland's law, beta = 1.458e-6, S = 110.4 K: check-values.md 1.5 (D), at the standard altitudes whose
-# temperature is t (geopotential H: 288.15 K at 0 m, 216.65 K at 11 km, 200 K at 78,325 m where the 1976
-# model falls by 2.0 K/km from 214.65 K at 71 km).
-@pytest.mark.parametrize(("h", "t", "mu"), [(78_325.0, 200.0, 1.328559e-5), (11_000.0, 216.65, 1.421613e-5),
-                                            (0.0, 288.15, 1.789380e-5)])
+# Sutherland's law, beta = 1.458e-6, S = 110.4 K (textbook closed form, tests/reference/check_values.md#atm-sutherland),
+# at the standard altitudes whose temperature is t (geopotential H: 200 K at 78,325 m where the 1976 model falls
+# by 2.0 K/km from 214.65 K at 71 km, 216.65 K at 11 km, 288.15 K at 0 m; #atm-layers).
+@pytest.mark.parametrize(("h", "t", "mu"), [(h, t, mu) for h, (t, mu) in zip((78_325.0, 11_000.0, 0.0),
+                                                                             ATM_SUTHERLAND.rows)])
 def test_sutherland_values(h: float, t: float, mu: float) -> None:
     z = R0 * h / (R0 - h)
     assert float(atm.temperature_k(z)) == pytest.approx(t, abs=1e-9)
@@ -108,14 +94,15 @@ def test_site_offsets() -> None:
 
 # ---- issue 10, defect 5: an off-standard day is hydrostatic --------------------------------------------------
 # The reference below is written independently of motorlib.flight.atmosphere: its own constants and its own
-# standard temperature (check-values.md 1.1 and 1.2), and scipy quadrature of the hydrostatic equation in
-# GEOMETRIC height with inverse-square gravity, d ln p / dZ = -g(Z) / (R T(Z)), g(Z) = g0 (r0 / (r0 + Z))^2.
-G0_REF = 9.80665  # m/s^2, check-values.md 1.1
-R_REF = 8314.32 / 28.9644  # J/(kg K), USSA 1976 R*/M0
-GAMMA_REF = 1.4
-R0_REF = 6_356_766.0  # m
-LAYERS_REF = [(0.0, 288.15, -6.5e-3), (11_000.0, 216.65, 0.0), (20_000.0, 216.65, 1.0e-3),
-              (32_000.0, 228.65, 2.8e-3)]  # (Hb m, Tb K, lapse K/m), check-values.md 1.2
+# standard temperature (tests/reference/check_values.md#atm-constants and #atm-layers), and scipy quadrature
+# of the hydrostatic equation in GEOMETRIC height with inverse-square gravity,
+# d ln p / dZ = -g(Z) / (R T(Z)), g(Z) = g0 (r0 / (r0 + Z))^2.
+G0_REF = ATM_CONSTANTS.value("g0_m_s2")  # m/s^2
+R_REF = ATM_CONSTANTS.value("universal_gas_constant_j_kmol_k") / ATM_CONSTANTS.value("molar_mass_kg_kmol")  # R*/M0
+GAMMA_REF = ATM_CONSTANTS.value("gamma")
+R0_REF = ATM_CONSTANTS.value("earth_radius_m")  # m
+LAYERS_REF = [(1000.0 * hb_km, tb, 1e-3 * lapse_k_km)  # (Hb m, Tb K, lapse K/m) up to 47 km
+              for hb_km, tb, lapse_k_km in ATM_LAYERS.rows if hb_km < 47.0]
 
 
 def _t_std_ref(z: float) -> float:
@@ -126,7 +113,7 @@ def _t_std_ref(z: float) -> float:
 
 def _p_std_ref(z: float) -> float:
     """Standard pressure by quadrature from sea level (the 1976 model is this integral)."""
-    return 101_325.0 * math.exp(_log_ratio_ref(0.0, z, 0.0))
+    return ATM_CONSTANTS.value("p0_pa") * math.exp(_log_ratio_ref(0.0, z, 0.0))
 
 
 def _log_ratio_ref(z_from: float, z_to: float, offset_k: float) -> float:
@@ -159,9 +146,10 @@ def test_standard_day_site_reproduces_the_standard_atmosphere(elevation: float) 
 
 
 def test_reference_quadrature_reproduces_the_published_standard() -> None:
-    # the test's own hydrostatic integral, checked on check-values.md 1.3 (H = 3000 m and 15000 m)
-    assert _p_std_ref(R0_REF * 3000.0 / (R0_REF - 3000.0)) == pytest.approx(70_108.54, abs=5e-3)
-    assert _p_std_ref(R0_REF * 15_000.0 / (R0_REF - 15_000.0)) == pytest.approx(12_044.57, abs=5e-3)
+    # the test's own hydrostatic integral, checked on tests/reference/check_values.md#atm-table (H = 3000 m, 15000 m)
+    published = dict(ATM_TABLE.select("height_h_m", "pressure_pa"))
+    for h in (3000.0, 15_000.0):
+        assert _p_std_ref(R0_REF * h / (R0_REF - h)) == pytest.approx(published[h], abs=5e-3)
 
 
 @pytest.mark.parametrize("height", HOT_HEIGHTS)

@@ -79,7 +79,7 @@ def test_a_noisy_20_hz_barometric_log_recovers_the_drag_within_2_percent(quibble
 
 
 def test_pressure_to_altitude_matches_the_standard_atmosphere_table() -> None:
-    # check-values.md 1.3: p(1000.2 m geometric) = 89 874.57 Pa, p(5003.9 m) = 54 019.91 Pa
+    # tests/reference/check_values.md#atm-table: p(1000.2 m geometric) = 89 874.57 Pa, p(5003.9 m) = 54 019.91 Pa
     z = cal.altitude_from_pressure_m(np.array([89_874.57, 54_019.91]), 101_325.0)
     assert z == pytest.approx([1000.2, 5003.9], abs=0.1)
 

@@ -13,12 +13,14 @@ from scipy.integrate import solve_ivp
 from motorlib.flight import descent as recovery
 from motorlib.flight.atmosphere import Site
 
+from ..reference.values import DESCENT_RATE, FALL_FROM_REST, FALL_FROM_REST_POINTS
+
 G = 9.80665
 
 
-# Fall from rest with v_t = 50 m/s: check-values.md 6.2 (V: closed form checked against solve_ivp DOP853).
-@pytest.mark.parametrize(("t", "v", "x"), [(1, 9.6828073444, 4.8722067898), (2, 18.6656040785, 19.1300291159),
-                                           (5, 37.6676816872, 106.8496081241), (10, 48.0595594336, 328.2920166520)])
+# Fall from rest with v_t = 50 m/s: textbook closed form checked against solve_ivp DOP853
+# (tests/reference/check_values.md#fall-from-rest).
+@pytest.mark.parametrize(("t", "v", "x"), FALL_FROM_REST.rows)
 def test_fall_from_rest_table(t: float, v: float, x: float) -> None:
     assert float(recovery.fall_speed_m_s(t, 50.0)) == pytest.approx(v, rel=1e-10)
     assert float(recovery.fall_distance_m(t, 50.0)) == pytest.approx(x, rel=1e-10)
@@ -26,17 +28,23 @@ def test_fall_from_rest_table(t: float, v: float, x: float) -> None:
 
 
 def test_ninety_nine_percent_of_terminal_speed() -> None:
-    # check-values.md 6.2: 99 % of v_t at 13.4941718750 s after 499.2830818 m; after 100 m, 36.8668816 m/s.
-    assert float(recovery.fall_time_s(499.2830818, 50.0)) == pytest.approx(13.4941718750, rel=1e-8)
-    t100 = float(recovery.fall_time_s(100.0, 50.0))
-    assert float(recovery.fall_speed_m_s(t100, 50.0)) == pytest.approx(36.8668816, rel=1e-8)
+    # tests/reference/check_values.md#fall-from-rest: 99 % of v_t = 50 m/s at 13.4941718750 s after 499.2830818 m;
+    # after 100 m, 36.8668816 m/s.
+    point = FALL_FROM_REST_POINTS.value
+    v_t = point("terminal_speed_m_s")
+    assert float(recovery.fall_time_s(point("distance_to_99_percent_m"), v_t)) == pytest.approx(
+        point("time_to_99_percent_s"), rel=1e-8)
+    t100 = float(recovery.fall_time_s(100.0, v_t))
+    assert float(recovery.fall_speed_m_s(t100, v_t)) == pytest.approx(point("speed_after_100_m_m_s"), rel=1e-8)
 
 
 def test_descent_rate_oracle() -> None:
-    # check-values.md 4.3 (D): m = 1 kg, D = 0.9 m flat canopy, Cd = 0.75, rho = 1.225 -> 5.7928 m/s.
-    area = 0.75 * math.pi * 0.9**2 / 4
-    assert float(recovery.terminal_speed_m_s(1.0, area, 1.225)) == pytest.approx(5.7928, abs=5e-5)
-    assert float(recovery.drag_area_m2(1.0, 5.7928, 1.225)) == pytest.approx(area, rel=1e-4)
+    # tests/reference/check_values.md#descent-rate (textbook closed form): m = 1 kg, D = 0.9 m flat canopy,
+    # Cd = 0.75, rho = 1.225 -> 5.7928 m/s.
+    ((mass, diameter, cd, rho, speed),) = DESCENT_RATE.rows
+    area = cd * math.pi * diameter**2 / 4
+    assert float(recovery.terminal_speed_m_s(mass, area, rho)) == pytest.approx(speed, abs=5e-5)
+    assert float(recovery.drag_area_m2(mass, speed, rho)) == pytest.approx(area, rel=1e-4)
 
 
 @pytest.mark.parametrize(("time", "speed"), [(9.5, 9.2), (18.2, 4.6)])

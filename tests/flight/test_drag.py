@@ -24,15 +24,13 @@ from motorlib.flight.drag import (
 from motorlib.flight.airframe import Airframe
 from motorlib.flight.geometry import Body, Finish, Fins, Geometry, Nose, Transition
 
-# check-values.md section 7, skin-friction check values (status D, recomputable from the formulas).
+from ..reference.values import SKIN_FRICTION
+
+# tests/reference/check_values.md#skin-friction (textbook closed form, recomputable from the formulas).
 # All three are plate-mean coefficients: Blasius 1.328/√Re, Prandtl 0.074·Re^-0.2, Prandtl–Schlichting
 # 0.455/(log10 Re)^2.58 (Schlichting, Boundary-Layer Theory).
-SKIN_FRICTION_TABLE = [
-    (1e5, 4.199505e-3, 7.400000e-3, 7.155975e-3),
-    (5e5, 1.878076e-3, 5.363370e-3, 5.105717e-3),
-    (1e6, 1.328000e-3, 4.669084e-3, 4.470758e-3),
-    (1e7, 4.199505e-4, 2.945993e-3, 3.003713e-3),
-]
+SKIN_FRICTION_TABLE = SKIN_FRICTION.rows
+FRICTION = {row[0]: row[1:] for row in SKIN_FRICTION_TABLE}  # Re -> (Blasius, Prandtl, Prandtl-Schlichting)
 
 
 @pytest.mark.parametrize(("reynolds", "blasius", "prandtl", "schlichting"), SKIN_FRICTION_TABLE)
@@ -43,13 +41,13 @@ def test_flat_plate_friction_matches_check_values(reynolds: float, blasius: floa
 
 
 def test_laminar_run_and_transition() -> None:
-    # below the transition Reynolds number the plate is laminar (Blasius, check-values.md section 7)
-    assert float(friction_coefficient(1e5)) == pytest.approx(4.199505e-3, rel=1e-6)
+    # below the transition Reynolds number the plate is laminar (Blasius, tests/reference/check_values.md#skin-friction)
+    assert float(friction_coefficient(1e5)) == pytest.approx(FRICTION[1e5][0], rel=1e-6)
     # continuous at the transition: turbulent minus A/Re with A chosen for continuity
     below, above = friction_coefficient(np.array([TRANSITION_REYNOLDS * (1 - 1e-9), TRANSITION_REYNOLDS]))
     assert above == pytest.approx(below, rel=1e-6)
-    run = 5e5 * (5.105717e-3 - 1.878076e-3)
-    assert float(friction_coefficient(1e7)) == pytest.approx(3.003713e-3 - run / 1e7, rel=1e-6)
+    run = 5e5 * (FRICTION[5e5][2] - FRICTION[5e5][0])
+    assert float(friction_coefficient(1e7)) == pytest.approx(FRICTION[1e7][2] - run / 1e7, rel=1e-6)
     # Schlichting tabulates A = 1700 for transition at 5e5 (from memory); ours, from continuity, is 1614
     assert run == pytest.approx(1700, rel=0.06)
     # far above transition the laminar run no longer matters: within 1 % of fully turbulent at 1e9
@@ -104,7 +102,7 @@ def _small_model(diameter_m: float = 0.0416, guide: str = "auto", finish: str = 
 @pytest.mark.parametrize("diameter_m", [0.0248, 0.0416])
 def test_typical_small_model_lands_in_the_measured_range(diameter_m: float) -> None:
     # A smooth small model with three fins: measured Cd of about 0.3–0.6 near Mach 0.3 (from memory;
-    # check-values.md 4.2 gives 0.3–0.8 for the realistic subsonic range, status M).
+    # tests/reference/check_values.md#drag-typical gives 0.3–0.8 for the realistic subsonic range, also from memory).
     cd = drag_breakdown(_small_model(diameter_m), diameter_m, 0.3)["total, coasting"]
     assert 0.3 <= cd <= 0.6
 
@@ -143,7 +141,8 @@ def test_powered_base_is_smaller_by_the_exhaust_area() -> None:
 
 
 def test_low_speed_base_drag_follows_hoerner() -> None:
-    # Hoerner, Fluid-Dynamic Drag, ch. 3 (check-values.md section 7, from memory): C_base = 0.029/√C_D,forebody
+    # Hoerner, Fluid-Dynamic Drag, ch. 3 (from memory, tests/reference/check_values.md#base-drag):
+    # C_base = 0.029/√C_D,forebody
     g = _small_model()
     parts = drag_components(g, 0.0416, np.array([0.0]))
     forebody = parts.body_friction[0] + parts.nose_pressure[0] + parts.transition_pressure[0]

@@ -2,7 +2,7 @@
 
 Hand-worked checks use the equations of J. S. Barrowman, *The Practical Calculation of the
 Aerodynamic Characteristics of Slender Finned Vehicles*, M.S. thesis, Catholic University of
-America, 1967 (check-values.md section 7, status C for the thesis), written out again below
+America, 1967 (published; tests/reference/check_values.md#barrowman), written out again below
 independently of motorlib's code. We know no published worked example well enough to quote.
 """
 

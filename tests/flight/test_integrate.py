@@ -12,6 +12,7 @@ from motorlib.flight.airframe import Airframe, Launch, Recovery
 from motorlib.flight import NO_LIFTOFF, NO_MASS, OK, STUCK_ON_RAIL, FlightSettings, MotorPack, simulate
 
 from ..conftest import SAMPLE_DIR
+from ..reference.values import BOOST_COAST_C1, RAIL_EXIT
 from ..reference_flight import reference_flight
 from ..synthetic import synthetic_flights
 
@@ -52,15 +53,19 @@ def test_vacuum_flight_with_constant_thrust_and_mass() -> None:
         assert results.ejection_speed_m_s[0, k] == pytest.approx(abs(v_b - G * d), rel=2e-8, abs=1e-7)
 
 
-@pytest.mark.parametrize(("angle", "expected"), [(0, 7.770888), (10, 7.790037), (20, 7.846625), (30, 7.938160)])
+@pytest.mark.parametrize(("angle", "expected"), RAIL_EXIT.rows)
 def test_rail_exit_speed_on_a_tilted_rail(angle: float, expected: float) -> None:
-    # check-values.md 6.2 (D): T = 20 N, m = 0.5 kg, L = 1 m, v = sqrt(2 L (T/m - g cos θ)).
+    # tests/reference/check_values.md#rail-exit (textbook closed form): T = 20 N, m = 0.5 kg, L = 1 m,
+    # v = sqrt(2 L (T/m - g cos θ)).
     results = simulate(vacuum_frame(0.4, 1.0, angle), [constant_motor(20.0, 1.0, 0.1)], FLAT, descent=False)
     assert results.rail_exit_speed_m_s[0] == pytest.approx(expected, abs=5e-7)
 
 
 def _boost_coast(thrust: float, mass: float, burn: float, k: float, coast_mass: float) -> tuple[float, float, float]:
-    """Fehskens-Malewicki constant-mass boost and coast (check-values.md 6.1, C2): apogee, v_b, t_c."""
+    """Fehskens-Malewicki constant-mass boost and coast: apogee, v_b, t_c.
+
+    The equations of tests/reference/check_values.md#boost-coast (secondary copies of the method).
+    """
     q = math.sqrt((thrust - mass * G) / k)
     x = 2 * k * q / mass
     v_b = q * math.tanh(x * burn / 2)
@@ -71,12 +76,12 @@ def _boost_coast(thrust: float, mass: float, burn: float, k: float, coast_mass: 
 
 
 def test_quadratic_drag_boost_and_coast_in_uniform_air() -> None:
-    # The closed form as written above reproduces case C1 of check-values.md 6.2 (apogee 542.7223222368 m, v_b
-    # 169.2574910455 m/s, t_c 8.1070592639 s); the library is then checked against it with the coast mass equal
-    # to the boost mass (our motor keeps its mass).
-    published = _boost_coast(10.0, 0.05, 1.0, 1.0e-4, 0.045)
-    assert published == (pytest.approx(542.7223222368, rel=1e-10), pytest.approx(169.2574910455, rel=1e-10),
-                         pytest.approx(8.1070592639, rel=1e-10))
+    # The closed form as written above reproduces case C1 of tests/reference/check_values.md#boost-coast
+    # (apogee 542.7223222368 m, v_b 169.2574910455 m/s, t_c 8.1070592639 s); the library is then checked
+    # against it with the coast mass equal to the boost mass (our motor keeps its mass).
+    ((*case, apogee, v_b, t_c),) = BOOST_COAST_C1.rows  # T, M, t_b, k, M_c; then the three results
+    published = _boost_coast(*case)
+    assert published == (pytest.approx(apogee, rel=1e-10), pytest.approx(v_b, rel=1e-10), pytest.approx(t_c, rel=1e-10))
     thrust, burn, mass = 10.0, 1.0, 0.05
     k = 1.0e-4  # = ½ ρ Cd A with ρ = 1.225 kg/m³ at the pad
     cd = 0.5
@@ -227,8 +232,8 @@ def test_pack_matches_records() -> None:
 
 def test_descent_from_apogee_follows_the_closed_form_fall() -> None:
     # Vertical flight, no wind, uniform air, constant g: after deployment at apogee the rocket falls from rest
-    # under quadratic drag, y(t) = (v_t²/g) ln cosh(g t / v_t) (check-values.md 6.1), so it lands after
-    # (v_t/g) arccosh(exp(g h / v_t²)) at v_t tanh(g t / v_t).
+    # under quadratic drag, y(t) = (v_t²/g) ln cosh(g t / v_t) (tests/reference/check_values.md#fall-from-rest),
+    # so it lands after (v_t/g) arccosh(exp(g h / v_t²)) at v_t tanh(g t / v_t).
     from motorlib.flight.descent import fall_speed_m_s, fall_time_s
 
     chute = Recovery(device="parachute", deploy="apogee", drag_area_m2=0.25)

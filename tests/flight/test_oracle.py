@@ -16,23 +16,26 @@ from motorlib.flight import OK, simulate
 from motorlib.flight.airframe import Airframe, Launch
 from motorlib.flight.atmosphere import Site
 
+from ..reference.values import ATM_CONSTANTS, ATM_TABLE
 from ..reference_flight import OwnAir, OwnMotor, reference_flight
 from ..synthetic import synthetic_flights
 
 
 @pytest.mark.parametrize(("height_h", "rho", "a"), [
-    (0.0, 1.224999, 340.294), (3000.0, 0.909121, 328.578), (11_000.0, 0.363918, 295.070),
-    (20_000.0, 0.088035, 295.070), (25_000.0, 0.039466, 298.455),
+    row for row in ATM_TABLE.select("height_h_m", "density_kg_m3", "speed_of_sound_m_s")
+    if row[0] in (0.0, 3000.0, 11_000.0, 20_000.0, 25_000.0)
 ])
 def test_the_oracles_own_air_reproduces_the_1976_table(height_h: float, rho: float, a: float) -> None:
-    # USSA 1976 values by geopotential height (check-values.md 1.3, D)
-    z = 6_356_766.0 * height_h / (6_356_766.0 - height_h)
+    # USSA 1976 values by geopotential height (textbook closed form, tests/reference/check_values.md#atm-table)
+    r0 = ATM_CONSTANTS.value("earth_radius_m")
+    z = r0 * height_h / (r0 - height_h)
     got_rho, got_a = OwnAir(Site())(z)
     assert got_rho == pytest.approx(rho, abs=5e-7, rel=1e-6) and got_a == pytest.approx(a, abs=5e-4)
 
 
 def test_the_oracles_own_impulse_is_the_area_under_the_samples() -> None:
-    # the check-values.md 3.3 triangle: (0, 0), (0.1, 10), (1.0, 0): 0.5 N·s by 0.1 s, 5.0 N·s in all
+    # the triangle of tests/reference/check_values.md#curve-oracles: (0, 0), (0.1, 10), (1.0, 0): 0.5 N·s by 0.1 s,
+    # 5.0 N·s in all
     from motorlib import MotorRecord
 
     own = OwnMotor(MotorRecord("B5", [0.0, 0.1, 1.0], [0.0, 10.0, 0.0]))

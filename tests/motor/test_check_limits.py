@@ -78,8 +78,8 @@ def test_a_leading_total_impulse_within_ten_percent() -> None:
 
 
 def test_high_power_triggers() -> None:
-    # NFPA 1127 as secondary sources summarise it (check-values.md 2.3, C2): above 160 N·s, above 80 N average
-    # thrust, or above 62.5 g of propellant
+    # NFPA 1127 as secondary sources summarise it (tests/reference/check_values.md#high-power): above 160 N·s,
+    # above 80 N average thrust, or above 62.5 g of propellant
     assert "high-power" not in _codes(_flat(total_mass_kg=0.1, propellant_mass_kg=0.0625))
     assert "high-power" in _codes(_flat(total_mass_kg=0.1, propellant_mass_kg=0.0626))
     def box(level_n: float) -> MotorRecord:  # vertical edges within 10 µs: the average is the level

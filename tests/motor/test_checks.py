@@ -95,7 +95,8 @@ def test_average_thrust_tolerance_is_a_setting(demo_record: MotorRecord) -> None
 
 
 def test_twenty_percent_rule_boundary() -> None:
-    # NFPA 1125 as summarised by secondary sources (C2): labelled average within 20 % of measured.
+    # NFPA 1125 as summarised by secondary sources (tests/reference/check_values.md#motor-testing): labelled
+    # average within 20 % of measured.
     record = MotorRecord("C10-3", [0.0, 1e-9, 0.75, 0.75 + 1e-9], [0.0, 10.0, 10.0, 0.0])  # 7.5 N·s, 10 N
     assert "average-thrust-mismatch" not in [f.code for f in check_record(record)]
     assert "average-thrust-mismatch" in [f.code for f in check_record(

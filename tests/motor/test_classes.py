@@ -14,13 +14,12 @@ from motorlib.motor.classes import (
     rounded_impulse_ns,
 )
 
-# Source: class table of NFPA 1122/1125/1127 as reproduced in check-values.md section 2.1
-# (C2 for A..O, M for 1/8A's bounds; the doubling rule gives the rest). Upper bound inclusive.
-PUBLISHED_UPPER_NS = {
-    "1/8A": 0.3125, "1/4A": 0.625, "1/2A": 1.25, "A": 2.5, "B": 5.0, "C": 10.0, "D": 20.0, "E": 40.0,
-    "F": 80.0, "G": 160.0, "H": 320.0, "I": 640.0, "J": 1280.0, "K": 2560.0, "L": 5120.0, "M": 10240.0,
-    "N": 20480.0, "O": 40960.0,
-}
+from ..reference.values import CLASS_BOUNDARIES, CLASS_UPPER_BOUNDS
+
+# Source: class table of NFPA 1122/1125/1127 as published lists reproduce it (secondary copies for 1/2A..O,
+# from memory for 1/8A's bounds; the doubling rule gives 1/4A): tests/reference/check_values.md#impulse-classes.
+# Upper bound inclusive.
+PUBLISHED_UPPER_NS = dict(CLASS_UPPER_BOUNDS.rows)
 
 
 @pytest.mark.parametrize(("letter", "upper"), PUBLISHED_UPPER_NS.items())
@@ -43,19 +42,16 @@ def test_values_just_inside_and_outside_each_boundary(letter: str, upper: float)
         assert above.letter != letter
 
 
-# Boundary rows from check-values.md section 2.1 (C2 published two-decimal lists).
-@pytest.mark.parametrize(("impulse", "letter"), [
-    (0.3125, "1/8A"), (1.25, "1/2A"), (1.26, "A"), (2.50, "A"), (2.51, "B"), (5.00, "B"), (10.00, "C"),
-    (20.00, "D"), (20.01, "E"), (160.00, "G"), (160.01, "H"), (40960.00, "O"),
-])
+# Boundary rows of the published two-decimal lists (secondary copies), tests/reference/check_values.md#class-boundaries.
+@pytest.mark.parametrize(("impulse", "letter"), CLASS_BOUNDARIES.rows)
 def test_published_boundary_rows(impulse: float, letter: str) -> None:
     assert impulse_class_for(impulse).letter == letter
 
 
 def test_boundary_decision_is_the_published_resolution() -> None:
     # Issue 14: published class lists state their ranges to 0.01 N·s (A = 1.26-2.50, B = 2.51-5.00), so the
-    # impulse is rounded to 0.01 N·s (ties to even) before it is compared; check-values.md 2.1 asks for the
-    # decision to be explicit. Fractional classes: next test.
+    # impulse is rounded to 0.01 N·s (ties to even) before it is compared. The lists leave the rounding open
+    # (tests/reference/check_values.md#impulse-classes), hence this explicit decision. Fractional classes: next test.
     assert CLASS_RESOLUTION_NS == 0.01
     assert impulse_class_for(2.5000001).letter == "A"
     assert impulse_class_for(2.504).letter == "A"

@@ -12,28 +12,33 @@ from motorlib import CheckSettings, CurveDataError, FiringSpread, MotorRecord, c
 from motorlib.units import STANDARD_GRAVITY_M_S2
 
 from ..conftest import curves
+from ..reference.values import TRIANGLE
 
 
-# Triangle oracle: check-values.md section 3.3 (D, exact).
+# Triangle oracle: textbook closed form, exact (tests/reference/check_values.md#curve-oracles).
 def test_triangle_curve_is_exact(triangle: MotorRecord) -> None:
-    assert triangle.total_impulse_ns == pytest.approx(5.0, rel=1e-15)
+    ref = TRIANGLE.value
+    assert triangle.total_impulse_ns == pytest.approx(ref("total_impulse_ns"), rel=1e-15)
     assert triangle.impulse_class.letter == "B"  # 5.000 N·s is the top of class B
-    assert triangle.peak_thrust_n == 10.0 and triangle.peak_time_s == 0.1
+    assert triangle.peak_thrust_n == ref("peak_thrust_n") and triangle.peak_time_s == 0.1
     start, end = triangle.burn_window_s()
-    assert (start, end) == (pytest.approx(0.005, abs=1e-15), pytest.approx(0.955, abs=1e-15))
-    assert triangle.burn_time_s() == pytest.approx(0.950, abs=1e-14)
-    assert triangle.average_thrust_n() == pytest.approx(5.250, rel=1e-12)  # window impulse 4.9875 / 0.95
+    assert (start, end) == (pytest.approx(ref("burn_start_s"), abs=1e-15), pytest.approx(ref("burn_end_s"), abs=1e-15))
+    assert triangle.burn_time_s() == pytest.approx(ref("burn_time_s"), abs=1e-14)
+    # average thrust: the impulse inside the burn window (4.9875 N·s) over the burn time
+    assert triangle.average_thrust_n() == pytest.approx(ref("average_thrust_n"), rel=1e-12)
     assert triangle.computed_designation() == "B5"
 
 
 def test_triangle_cumulative_impulse_is_the_area_under_the_curve(triangle: MotorRecord) -> None:
-    # check-values.md 3.3: [0, 0.5, 5.0] N·s, the areas of the two triangles by hand (0.1 x 10 / 2, then
-    # + 0.9 x 10 / 2); the rule is exact for a piecewise-linear curve.
-    np.testing.assert_allclose(triangle.cumulative_impulse_ns(), [0.0, 0.5, 5.0], rtol=1e-15)
+    # tests/reference/check_values.md#curve-oracles: [0, 0.5, 5.0] N·s, the areas of the two triangles by hand
+    # (0.1 x 10 / 2, then + 0.9 x 10 / 2); the rule is exact for a piecewise-linear curve.
+    expected = [0.0, TRIANGLE.value("impulse_at_peak_ns"), TRIANGLE.value("total_impulse_ns")]
+    np.testing.assert_allclose(triangle.cumulative_impulse_ns(), expected, rtol=1e-15)
 
 
 def test_rectangle_curve_is_exact() -> None:
-    # check-values.md 3.3: 10 N from 0 to 2 s with vertical edges: 20.00 N·s, top of class D; burn 2 s; 10 N.
+    # tests/reference/check_values.md#curve-oracles: 10 N from 0 to 2 s with vertical edges: 20.00 N·s, top of
+    # class D; burn 2 s; 10 N.
     rect = MotorRecord("D10", [0.0, 1e-12, 2.0 - 1e-12, 2.0], [0.0, 10.0, 10.0, 0.0])
     assert rect.total_impulse_ns == pytest.approx(20.0, rel=1e-11)
     assert rect.burn_time_s() == pytest.approx(2.0, rel=1e-11)
@@ -124,7 +129,8 @@ def test_mass_falls_in_proportion_to_impulse(demo_record: MotorRecord) -> None:
 
 
 def test_specific_impulse_and_mass_fraction(demo_record: MotorRecord) -> None:
-    # Definition: Isp = I / (m_p g0) (Sutton & Biblarz ch. 2; check-values.md 3.2).
+    # Definition: Isp = I / (m_p g0) (Sutton & Biblarz ch. 2, chapter from memory;
+    # tests/reference/check_values.md#specific-impulse).
     assert demo_record.specific_impulse_s == pytest.approx(demo_record.total_impulse_ns / (0.021 * STANDARD_GRAVITY_M_S2))
     assert demo_record.propellant_mass_fraction == pytest.approx(0.021 / 0.044)
     assert demo_record.burnout_mass_kg == pytest.approx(0.023)
@@ -133,7 +139,8 @@ def test_specific_impulse_and_mass_fraction(demo_record: MotorRecord) -> None:
 
 
 def test_tsiolkovsky_with_a_record_isp() -> None:
-    # Tsiolkovsky: dv = Isp g0 ln(m0/mf); check-values.md 6.2: Isp 200 s, 1.0 -> 0.8 kg gives 437.65814 m/s.
+    # Tsiolkovsky: dv = Isp g0 ln(m0/mf); Isp 200 s, 1.0 -> 0.8 kg gives 437.65814 m/s (textbook closed form,
+    # tests/reference/check_values.md#specific-impulse).
     impulse = 200.0 * 0.2 * STANDARD_GRAVITY_M_S2
     record = MotorRecord("x", [0.0, 1.0, 2.0], [0.0, impulse, 0.0], total_mass_kg=1.0, propellant_mass_kg=0.2)
     dv = record.specific_impulse_s * STANDARD_GRAVITY_M_S2 * np.log(1.0 / record.burnout_mass_kg)
