@@ -99,7 +99,7 @@ def full_records(draw: st.DrawFn) -> MotorRecord:
     propellant = None
     if draw(st.booleans()):
         propellant = draw(st.floats(1e-7, total, **_finite)) if total is not None else draw(positive)
-    delays = draw(st.lists(st.floats(0.01, 30.0, **_finite), max_size=4, unique=True))
+    delays = draw(st.lists(st.floats(0.01, 30.0, **_finite), max_size=4, unique_by=lambda d: f"{d:.10g}"))  # distinct as a file keeps them
     adjustable = draw(st.booleans())
     no_charge = not delays and not adjustable and draw(st.booleans())
     return MotorRecord(

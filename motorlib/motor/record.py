@@ -245,7 +245,9 @@ class MotorRecord:
             if not (math.isfinite(delay) and delay > 0.0):
                 problems.append(Problem("delay-not-positive", "delays_s",
                                         f"ejection delays must be positive seconds, got {delay!r}"))
-        if len(set(delays)) != len(delays):
+        # compared at the ten significant digits a catalog file keeps (files/motor_xml.py), or a record could
+        # list two delays that its own file lists as one twice
+        if len({f"{d:.10g}" for d in delays}) != len(delays):
             problems.append(Problem("delay-repeated", "delays_s", f"a delay is listed twice in {delays}"))
         object.__setattr__(self, "no_ejection_charge", bool(self.no_ejection_charge))
         object.__setattr__(self, "delay_adjustable", bool(self.delay_adjustable))

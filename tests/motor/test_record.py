@@ -170,6 +170,8 @@ def test_records_are_frozen_and_compare_by_value(demo_record: MotorRecord) -> No
     (dict(total_mass_kg=0.01, propellant_mass_kg=0.02), "propellant-exceeds-total-mass"),
     (dict(delays_s=(-3.0,)), "delay-not-positive"),
     (dict(delays_s=(5.0, 5.0)), "delay-repeated"),
+    # equal at the ten significant digits a catalog file keeps: the file would list one delay twice
+    (dict(delays_s=(0.010000000000000002, 0.01)), "delay-repeated"),
     (dict(designation=" "), "designation-missing"),
     (dict(delays_s=(5.0,), no_ejection_charge=True), "no-charge-with-delays"),
     (dict(delay_adjustable=True, no_ejection_charge=True), "no-charge-with-delays"),
