@@ -202,7 +202,8 @@ def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
         # a device the charge opens is checked as deployment-fast; a charge that opens nothing listed is checked here
         "ejection-fast": charge & ~x.devices_listed & (x.ejection_speed_m_s > r.max_ejection_speed_m_s),
         "lands-before-ejection": lands_first,
-        "descent-fast": past(x.landing_descent_rate_m_s, r.max_landing_speed_m_s),
+        # under a device: a rocket that opens none falls ballistically, and the rules above say why
+        "descent-fast": past(x.landing_descent_rate_m_s, r.max_landing_speed_m_s) & opened,
         "constant-cd-past-mach": judged & x.constant_drag & (x.max_mach > r.max_constant_cd_mach),
         "deployment-fast": judged[:, None] & (x.deployment_speed_m_s > limits),
         "deployment-while-burning": judged[:, None] & (x.deployment_time_s < x.burnout_time_s[:, None]),

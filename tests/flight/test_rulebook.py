@@ -111,6 +111,13 @@ def test_the_charge_rules_say_why_nothing_fires() -> None:
     assert _codes(uses_charge=False, chosen_delay_s=20.0) == []
 
 
+def test_the_descent_rate_is_judged_under_a_device_only() -> None:
+    # a device that never opens: the rocket falls ballistically, and the charge rule says why
+    assert _codes(landing_descent_rate_m_s=40.0) == ["descent-fast"]
+    assert _codes(landing_descent_rate_m_s=40.0, ejection_speed_m_s=NAN, deployment_time_s=[[NAN]]) == \
+        ["lands-before-ejection"]
+
+
 def test_missing_figures_break_no_threshold() -> None:
     assert _codes(landing_descent_rate_m_s=NAN, landing_distance_m=NAN, max_mach=NAN, deployment_speed_m_s=[[NAN]],
                   rules=LaunchRules(field_radius_m=1.0)) == []
