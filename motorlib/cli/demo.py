@@ -37,7 +37,7 @@ def demo(plot_path: str | None, overwrite: bool, units: str | None) -> None:
     shown = display_units(units)
     target, ceiling = (parse_quantity(t, "length", keep_text=True) for t in
                        (("400 m", "600 m") if shown.system == "metric" else ("1300 ft", "2000 ft")))
-    opts = dict(target_m=target, ceiling_m=ceiling, max_class=None, min_rail_exit=None, min_thrust_to_weight=5.0,
+    opts = dict(target_m=target, ceiling_m=ceiling, max_class=None, min_rail_exit=None, min_thrust_to_weight=None,
                 delay_slack=None, allow_smaller_motors=True, adapter_steps=1, target_tolerance=None, tag=None,
                 top=None, show_rejected=False, ballast=True,
                 units=shown.system, as_json=False, as_csv=False, plot_path=plot_path, report_path=None,

@@ -35,16 +35,19 @@ from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _j
 @click.option("--overwrite", is_flag=True, help="Replace the --csv, --plot and --report files if they exist.")
 @click.option("--field-radius", "field_radius", type=_Quantity("length", minimum=0.0, strict=True), default=None,
               help="Warn when the rocket lands farther from the pad than this, e.g. 600m.")
+@click.option("--ceiling", "ceiling_m", type=_Quantity("length", minimum=0.0, strict=True), default=None,
+              help="Warn when the apogee is above this altitude (the field's limit), e.g. 600m or 2000ft; a bare "
+                   "number is m.")
 @field_day_options
 def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: float | None, ballast_kg: float | None,
         min_stability_cal: float | None, units: str | None, as_json: bool, csv_path: str | None,
         plot_path: str | None, report_path: str | None, overwrite: bool, field_radius: float | None,
-        **day: Any) -> None:
+        ceiling_m: float | None, **day: Any) -> None:
     """Simulate one flight of AIRFRAME_FILE (TOML) with one motor.
 
     Prints rail exit speed, apogee, optimal delay, the ejection altitude and
     speed at each delay, and descent figures when the airframe has recovery,
-    with warnings from launch rules of thumb. Times count from motor ignition.
+    with warnings from the launch rules of thumb that match applies too. Times count from motor ignition.
     With a [geometry] in the airframe file it also gives the stability margin
     at liftoff, rail exit and burnout, and, when the file gives no Cd, flies
     the drag estimated from the shape.
@@ -66,7 +69,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     from ..files.airframe_toml import load_airframe
     from ..flight.integrate import simulate
-    from ..flight.rules import LaunchRules, flight_warnings
+    from ..flight.rulebook import evaluate_rules, flown_rule_inputs
+    from ..flight.rules import LaunchRules
 
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
@@ -87,18 +91,19 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
     rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
-    warnings = flight_warnings(summary, rules, wind_speed_m_s=frame.launch.surface_wind_m_s,
-                               constant_drag=not frame.drag_table)
+    inputs = flown_rule_inputs(frame, results, chosen_delay_s=np.array([summary["chosen_delay_s"]], dtype=float),
+                               delays_known=motor.ejection != "unknown")
+    warnings = [(f.code, f.message) for f in evaluate_rules(inputs, rules, ceiling_m=ceiling_m)[0]]
     warnings += _stability_and_drag(frame, record, results, summary, ballast_kg or 0.0, min_stability_cal)
     from ..matching.rank import mount_problems
 
     warnings += [("motor-does-not-fit", f"{motor.designation} {text}: flown as asked, but it cannot go in this mount")
                  for text in mount_problems(frame, motor)]
     if not as_json:  # the JSON keeps the library's SI text; people read the figures in their display units
-        from ..present.messages import warning_message
+        from ..present.messages import reason_text
 
-        warnings = [(code, warning_message(code, message, summary, rules, shown, frame.launch.surface_wind_m_s))
-                    for code, message in warnings]
+        limits = {**rules.conditions(frame.launch.surface_wind_m_s), "ceiling_m": ceiling_m}
+        warnings = [(code, reason_text(code, message, summary, limits, shown)) for code, message in warnings]
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown, overwrite))

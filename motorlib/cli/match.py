@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import (_catalog_option, _catalog_or_samples, _Finite, _open_catalog, _Quantity, _units_option,
+from .options import (DEPLOY_LIMITS_TEXT as _DEPLOY_LIMITS, RULES as _RULES, _catalog_option, _catalog_or_samples, _Finite, _open_catalog, _Quantity, _units_option,
                       apply_field_day, display_units, field_day_options, pop_field_day)
 from .output import _EPILOG, _card_units, _check_outputs, _console, _json_text
 from .robust import pop_robust, robust_options, run_robust
@@ -49,19 +49,22 @@ def _match_options(func: Any) -> Any:
         click.option("--max-class", type=click.Choice(["1/8A", "1/4A", "1/2A", *"ABCDEFGHIJKLMNO"]),
                      help="Highest impulse class you may fly (your certification)."),
         click.option("--min-rail-exit", "min_rail_exit", type=_Quantity("speed", minimum=0.0, strict=True), default=None,
-                     help="Minimum rail exit speed, e.g. 15m/s or 50ft/s (default 15 m/s: common practice, "
-                          "no published source)."),
-        click.option("--min-thrust-to-weight", type=_Finite(min=0.0), default=5.0, show_default=True,
-                     help="Minimum liftoff thrust-to-weight (common practice, no published source)."),
+                     help=f"Minimum rail exit speed, e.g. 15m/s or 50ft/s (default {_RULES.min_rail_exit_speed_m_s:g} "
+                          f"m/s, or {_RULES.rail_exit_wind_ratio:g} x the wind if higher: common practice, no "
+                          "published source)."),
+        click.option("--min-thrust-to-weight", type=_Finite(min=0.0), default=None,
+                     help=f"Minimum liftoff thrust-to-weight (default {_RULES.min_liftoff_thrust_to_weight:g}: common "
+                          "practice, no published source)."),
         click.option("--delay-slack", type=_Quantity("time", minimum=0.0), default=None,
-                     help="How far the chosen delay may be from the optimal one, e.g. 2s (default 2 s)."),
+                     help=f"How far the chosen delay may be from the optimal one, e.g. 2s (default "
+                          f"{_RULES.max_delay_error_s:g} s: common practice, no published source)."),
         click.option("--max-landing-speed", "max_landing_speed", type=_Quantity("speed", minimum=0.0, strict=True),
                      default=None,
-                     help="Highest descent rate at landing, e.g. 6.5m/s (default 6.5 m/s: common practice, "
-                          "no published source)."),
+                     help=f"Highest descent rate at landing, e.g. 6.5m/s (default {_RULES.max_landing_speed_m_s:g} "
+                          "m/s: common practice, no published source)."),
         click.option("--max-deploy-speed", "max_deploy_speed", multiple=True, metavar="KIND=SPEED",
-                     help="Highest opening speed of a device kind, e.g. drogue=40m/s (defaults: parachute and "
-                          "main 25 m/s, drogue and streamer 45 m/s: common practice, no published source)."),
+                     help=f"Highest opening speed of a device kind, e.g. drogue=40m/s (defaults: {_DEPLOY_LIMITS}: "
+                          "common practice, no published source)."),
         click.option("--field-radius", "field_radius", type=_Quantity("length", minimum=0.0, strict=True), default=None,
                      help="Fail motors whose estimated landing point lies farther from the pad, e.g. 600m."),
         click.option("--allow-smaller-motors", is_flag=True,
@@ -161,15 +164,16 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
 def match_settings(opts: dict[str, Any]) -> Any:
     """The :class:`MatchSettings` the match options ask for (options left out keep the library's defaults)."""
-    from ..flight.rules import LaunchRules
+    from dataclasses import replace
+
     from ..matching.rank import MatchSettings
 
-    rules: dict[str, Any] = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"]}
-    if opts["min_rail_exit"] is not None:
-        rules["min_rail_exit_speed_m_s"] = opts["min_rail_exit"]
+    given = {"min_liftoff_thrust_to_weight": opts["min_thrust_to_weight"], "min_rail_exit_speed_m_s": opts["min_rail_exit"],
+             "max_delay_error_s": opts["delay_slack"]}
+    rules: dict[str, Any] = {name: float(value) for name, value in given.items() if value is not None}
     rules.update(recovery_rules(opts.get("max_landing_speed"), opts.get("max_deploy_speed") or (),
                                 opts.get("field_radius")))
-    extra = {} if opts["delay_slack"] is None else {"delay_slack_s": opts["delay_slack"]}
+    extra: dict[str, Any] = {}
     tolerance = opts.get("target_tolerance")
     if tolerance is not None:
         kind, value = tolerance
@@ -180,7 +184,7 @@ def match_settings(opts: dict[str, Any]) -> Any:
         extra["min_stability_cal"] = opts["min_stability_cal"]
     try:
         return MatchSettings(target_m=opts["target_m"], ceiling_m=opts["ceiling_m"], max_class=opts["max_class"],
-                             rules=LaunchRules(**rules), allow_smaller_motors=opts["allow_smaller_motors"],
+                             rules=replace(_RULES, **rules), allow_smaller_motors=opts["allow_smaller_motors"],
                              adapter_steps=opts.get("adapter_steps", 2), ballast=opts.get("ballast", False), **extra)
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
@@ -231,7 +235,6 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
 def recovery_rules(max_landing: float | None, deploy: tuple[str, ...], field_radius: float | None) -> dict[str, Any]:
     """The :class:`~motorlib.flight.rules.LaunchRules` fields that the recovery options set."""
     from ..flight.airframe import RECOVERY_DEVICES
-    from ..flight.rules import LaunchRules
     from ..units import parse_quantity
 
     rules: dict[str, Any] = {}
@@ -240,7 +243,7 @@ def recovery_rules(max_landing: float | None, deploy: tuple[str, ...], field_rad
     if field_radius is not None:
         rules["field_radius_m"] = float(field_radius)
     if deploy:
-        limits = dict(LaunchRules().max_deployment_speed_m_s)
+        limits = dict(_RULES.max_deployment_speed_m_s)
         for text in deploy:
             kind, _, speed = text.partition("=")
             if kind.strip() not in RECOVERY_DEVICES or not speed:

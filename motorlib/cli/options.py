@@ -10,7 +10,11 @@ from typing import Any
 import click
 
 from ..errors import QuantityError
+from ..flight.rules import LaunchRules  # standard library only: help texts quote the rules' defaults
 from .output import _err_console
+
+RULES = LaunchRules()  # the defaults every option's help quotes (they live only in LaunchRules)
+DEPLOY_LIMITS_TEXT = ", ".join(f"{kind} {speed:g} m/s" for kind, speed in RULES.max_deployment_speed_m_s)
 
 
 class _Quantity(click.ParamType):

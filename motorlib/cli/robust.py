@@ -105,7 +105,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
         total, f"{len(records)} motors x {settings.n_samples} flights")
     result = {"airframe": frame.name, **result,
               "conditions": {"target_m": match.target_m, "ceiling_m": match.ceiling_m,
-                             "delay_slack_s": match.delay_slack_s,
+                             "delay_slack_s": match.rules.max_delay_error_s,
                              "min_rail_exit_speed_m_s": match.rules.min_rail_exit_speed_m_s,
                              "min_liftoff_thrust_to_weight": match.rules.min_liftoff_thrust_to_weight,
                              "max_ejection_speed_m_s": match.rules.max_ejection_speed_m_s,

@@ -6,7 +6,7 @@ from typing import Any
 
 import click
 
-from .options import _Quantity, _units_option, display_units, motor_options
+from .options import DEPLOY_LIMITS_TEXT, _Quantity, _units_option, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 # option name -> (Uncertainty field, kind, default unit); kind "relative" takes 0.03 or 3%
@@ -143,7 +143,7 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
               help="Radius of the recovery field around the pad; a bare number is m.")
 @click.option("--max-deploy-speed", "max_deploy_speed", type=_Quantity("speed", minimum=0.0, strict=True), default=None,
               help="An opening faster than this counts as a failure (default: each device against its kind's "
-                   "limit: parachute and main 25 m/s, drogue and streamer 45 m/s; common practice).")
+                   f"limit: {DEPLOY_LIMITS_TEXT}; common practice).")
 @click.option("--wind-from", "wind_from_rad", type=_Quantity("angle", default_unit="deg"), default=None,
               help="Direction the wind blows from, clockwise from north; a bare number is degrees (default: the "
                    "airframe file's wind_direction).")

@@ -37,15 +37,46 @@ Modules
 * ``recovery_phase``: where each device opens, the passes between openings, landing;
 * ``wind``: the capped power law and measured wind profiles;
 * ``results``: status codes, ``MESSAGES`` and :class:`FlightResults`;
-* ``descent``: closed-form fall under quadratic drag; ``rules``: launch rules of thumb.
+* ``descent``: closed-form fall under quadratic drag; ``rules``: the launch rules' thresholds (standard
+  library only); ``rulebook``: their one vectorised evaluation for ``fly`` and ``match``.
 """
 
-from .airframe import Airframe, Launch, Recovery
-from .atmosphere import Site
-from .integrate import FlightSettings, simulate
-from .pack import MotorPack
-from .results import MESSAGES, NO_LIFTOFF, NO_MASS, OK, STUCK_ON_RAIL, FlightResults
-from .rules import LaunchRules, flight_warnings
+from __future__ import annotations
+
+import importlib as _importlib
+import typing as _typing
+
+# Each name and the module that defines it, imported on first use (PEP 562), so that reading the launch rules'
+# defaults (``motorlib.flight.rules``, standard library only) for the command line's help loads no numpy.
+_EXPORTS = {
+    "Airframe": ".airframe", "Launch": ".airframe", "Recovery": ".airframe", "Site": ".atmosphere",
+    "FlightSettings": ".integrate", "simulate": ".integrate", "MotorPack": ".pack",
+    "MESSAGES": ".results", "NO_LIFTOFF": ".results", "NO_MASS": ".results", "OK": ".results",
+    "STUCK_ON_RAIL": ".results", "FlightResults": ".results", "LaunchRules": ".rules",
+    "RuleInputs": ".rulebook", "evaluate_rules": ".rulebook", "flown_rule_inputs": ".rulebook",
+}
+
+if _typing.TYPE_CHECKING:
+    from .airframe import Airframe, Launch, Recovery
+    from .atmosphere import Site
+    from .integrate import FlightSettings, simulate
+    from .pack import MotorPack
+    from .results import MESSAGES, NO_LIFTOFF, NO_MASS, OK, STUCK_ON_RAIL, FlightResults
+    from .rulebook import RuleInputs, evaluate_rules, flown_rule_inputs
+    from .rules import LaunchRules
+
+
+def __getattr__(name: str) -> object:
+    if name not in _EXPORTS:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(_importlib.import_module(_EXPORTS[name], __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_EXPORTS))
+
 
 __all__ = [
     "Airframe",
@@ -59,8 +90,10 @@ __all__ = [
     "NO_MASS",
     "OK",
     "Recovery",
+    "RuleInputs",
     "STUCK_ON_RAIL",
     "Site",
-    "flight_warnings",
+    "evaluate_rules",
+    "flown_rule_inputs",
     "simulate",
 ]

@@ -190,7 +190,8 @@ class FlightResults:
             "ejections": ejections,
             "deploy_time_s": num(self.deploy_time_s[i]),
             "deploy_altitude_m": num(self.deploy_altitude_m[i]),
-            "landing_speed_m_s": num(self.landing_speed_m_s[i]),
+            # the descent rate under the device, as match reports it (the speed over the ground is landing.speed_m_s)
+            "landing_speed_m_s": num(self.landing_descent_rate_m_s[i]),
             "landing_descent_rate_m_s": num(self.landing_descent_rate_m_s[i]),
             "descent_time_s": num(self.descent_time_s[i]),
             "drift_m": num(self.drift_m[i]),

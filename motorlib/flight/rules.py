@@ -1,14 +1,67 @@
-"""Launch rules of thumb that turn a simulated flight into warnings and pass/fail reasons.
+"""The launch rules of thumb: their thresholds (:class:`LaunchRules`) and their codes, one book for every command.
 
-These are settings, not physics; each default names its source. They never
-decide whether a rocket flies: the range safety officer does.
+These are settings, not physics; each default names its source, and this is the
+one place they live (the command line reads its option defaults and help texts
+from here). They never decide whether a rocket flies: the range safety officer
+does. ``fly`` lists a broken rule as a warning, ``match`` as a reason the motor
+fails; both get them from :func:`motorlib.flight.rulebook.evaluate_rules`.
+
+Standard library only, so that the command line's help can quote the defaults without loading numpy.
+
+Codes (stable, lower-case, hyphenated; :data:`RULE_CODES` holds their meanings):
+
+==========================  ============================================================
+code                        the flight (or the motor) ...
+==========================  ============================================================
+no-liftoff                  never lifts off (thrust never exceeds the weight)
+stuck-on-rail               stops and slides back before leaving the rail
+not-flown                   could not be flown to the end (any other failed status)
+flight-incomplete           ends without a rail exit or an apogee
+rail-exit-slow              leaves the rail slower than the minimum, or than 4 x the wind
+thrust-to-weight-low        has a liftoff thrust-to-weight below the minimum
+over-ceiling                climbs above the field's ceiling
+delays-unknown              needs the motor's charge, but the record gives no delays
+no-ejection-charge          needs the motor's charge, but the motor has none (plugged)
+ejection-far-from-apogee    fires its charge farther from apogee than the delay tolerance
+ejection-fast               moves faster than the limit when the charge fires (no device listed)
+lands-before-ejection       lands before the delay fires
+descent-fast                lands faster than the limit under its device
+constant-cd-past-mach       flies past Mach 0.8 with one drag coefficient (a note on the model)
+deployment-fast             opens a device faster than that kind's limit
+deployment-while-burning    opens a device while the motor still burns
+lands-outside-field         lands outside the recovery field
+no-deployment               lists a device that never opens
+motor-does-not-fit          has a motor that cannot go in the mount (matching)
+above-class                 has a motor above the flyer's class limit (matching)
+no-masses                   has a motor whose total or propellant mass is unknown (matching)
+stability-low               has less stability margin than asked, or an unknown one (matching)
+==========================  ============================================================
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
+from typing import Final
 
-__all__ = ["LaunchRules", "flight_warnings"]
+__all__ = ["LaunchRules", "NOTE_CODES", "RULE_CODES"]
+
+# Every code a broken rule can carry, and what it means (the legend of match's table keys on these).
+RULE_CODES: Final = {
+    "no-liftoff": "no liftoff", "stuck-on-rail": "stuck on the rail", "not-flown": "flight not completed",
+    "flight-incomplete": "flight ends before apogee", "rail-exit-slow": "rail exit too slow",
+    "thrust-to-weight-low": "thrust-to-weight too low", "over-ceiling": "over the ceiling",
+    "delays-unknown": "ejection delays not given", "no-ejection-charge": "plugged: no ejection charge and no electronics",
+    "ejection-far-from-apogee": "no delay near the optimal one", "ejection-fast": "ejection too fast",
+    "lands-before-ejection": "lands before the delay fires", "descent-fast": "descends too fast under the device",
+    "constant-cd-past-mach": "constant drag coefficient past Mach 0.8",
+    "deployment-fast": "a recovery device opens too fast", "deployment-while-burning": "a device opens under thrust",
+    "lands-outside-field": "lands outside the field", "no-deployment": "nothing deploys recovery",
+    "motor-does-not-fit": "does not fit the mount", "above-class": "above your class limit",
+    "no-masses": "masses unknown", "stability-low": "too little stability margin (CG too far aft)",
+}
+# Codes about the model rather than the flight: ``fly`` warns, ``match`` lists them as notes, not failures.
+NOTE_CODES: Final = frozenset({"constant-cd-past-mach"})
 
 
 @dataclass(frozen=True)
@@ -26,7 +79,8 @@ class LaunchRules:
         5: common practice, no published source (NFPA 1127 section 4.9.1 is quoted as a 3:1 minimum by a
         secondary source; same entry).
     max_delay_error_s : float
-        Ejection within 2 s of apogee: common practice, no published source.
+        Ejection within 2 s of apogee: common practice, no published source. ``fly`` checks the delay
+        flown, ``match`` the listed delay closest to the optimal one (its ``--delay-slack``).
     max_ejection_speed_m_s : float
         Deployment above this speed risks a zipper or a torn canopy: 25 m/s, common practice, no published source.
     max_landing_speed_m_s : float
@@ -59,86 +113,40 @@ class LaunchRules:
     def rail_exit_needed_m_s(self, wind_speed_m_s: float = 0.0) -> float:
         """The rail exit speed a flight needs [m/s]: the minimum, or the wind ratio times the wind if higher.
 
-        One rule for ``fly``'s warnings and ``match``'s reasons.
+        One rule for ``fly``'s warnings and ``match``'s reasons; a NaN wind counts as calm.
 
-        >>> LaunchRules().rail_exit_needed_m_s(5.0)
-        20.0
+        >>> LaunchRules().rail_exit_needed_m_s(5.0), LaunchRules().rail_exit_needed_m_s(2.0)
+        (20.0, 15.0)
         """
-        return max(self.min_rail_exit_speed_m_s, self.rail_exit_wind_ratio * max(0.0, float(wind_speed_m_s)))
+        wind = float(wind_speed_m_s)
+        return max(self.min_rail_exit_speed_m_s, self.rail_exit_wind_ratio * (wind if wind > 0.0 else 0.0))
 
     def deployment_limit_m_s(self, kind: str) -> float:
         """The deployment-speed limit of a device kind [m/s] (that of a parachute for a kind not listed)."""
         limits = dict(self.max_deployment_speed_m_s)
         return float(limits.get(kind, limits.get("parachute", self.max_ejection_speed_m_s)))
 
+    def conditions(self, wind_speed_m_s: float = 0.0) -> dict[str, object]:
+        """The limits as the JSON ``conditions`` of ``match`` name them (SI), for the wind flown [m/s at 10 m].
 
-def flight_warnings(flight: dict[str, object], rules: LaunchRules | None = None, *,
-                    wind_speed_m_s: float = 0.0, constant_drag: bool = False) -> list[tuple[str, str]]:
-    """(code, message) warnings for one flight summary (:meth:`motorlib.flight.FlightResults.summary`).
+        >>> LaunchRules().conditions(5.0)["rail_exit_needed_m_s"]
+        20.0
+        """
+        return {
+            "min_rail_exit_speed_m_s": self.min_rail_exit_speed_m_s,
+            "rail_exit_needed_m_s": self.rail_exit_needed_m_s(wind_speed_m_s),
+            "wind_m_s": wind_speed_m_s, "rail_exit_wind_ratio": self.rail_exit_wind_ratio,
+            "min_liftoff_thrust_to_weight": self.min_liftoff_thrust_to_weight,
+            "delay_slack_s": self.max_delay_error_s, "max_ejection_speed_m_s": self.max_ejection_speed_m_s,
+            "max_landing_speed_m_s": self.max_landing_speed_m_s,
+            "max_deployment_speed_m_s": dict(self.max_deployment_speed_m_s), "field_radius_m": self.field_radius_m,
+        }
 
-    ``constant_drag`` says the airframe flew with one drag coefficient at every Mach number.
-    """
-    r = rules or LaunchRules()
-    out: list[tuple[str, str]] = []
-    if flight["status"] != "ok":
-        return [("flight-failed", str(flight["message"]))]
-    if flight["rail_exit_speed_m_s"] is None or flight["apogee_m"] is None:
-        return [("flight-incomplete", "the flight did not reach apogee")]
-    exit_speed = float(flight["rail_exit_speed_m_s"])
-    if exit_speed < r.min_rail_exit_speed_m_s:
-        out.append(("rail-exit-slow", f"rail exit speed {exit_speed:.1f} m/s is below {r.min_rail_exit_speed_m_s:g} m/s: "
-                                      "the rocket may not fly straight; use a longer rail or a stronger motor"))
-    if wind_speed_m_s > 0 and exit_speed < r.rail_exit_wind_ratio * wind_speed_m_s:
-        out.append(("rail-exit-slow-for-wind", f"rail exit speed {exit_speed:.1f} m/s is less than "
-                                               f"{r.rail_exit_wind_ratio:g} x the wind speed {wind_speed_m_s:.1f} m/s"))
-    ttw = float(flight["liftoff_thrust_to_weight"])
-    if ttw < r.min_liftoff_thrust_to_weight:
-        out.append(("thrust-to-weight-low", f"liftoff thrust-to-weight {ttw:.1f} is below {r.min_liftoff_thrust_to_weight:g}"))
-    chosen = flight.get("chosen_delay_s")
-    optimal = float(flight["optimal_delay_s"])  # type: ignore[arg-type]
-    if chosen is not None and abs(float(chosen) - optimal) > r.max_delay_error_s:
-        when = "before" if float(chosen) < optimal else "after"
-        out.append(("ejection-far-from-apogee", f"the {float(chosen):g} s delay fires {abs(float(chosen) - optimal):.1f} s "
-                                               f"{when} apogee (optimal delay {optimal:.1f} s)"))
-    speed = flight.get("chosen_ejection_speed_m_s")
-    # a device the charge opens is checked as deployment-fast; with electronics the charge opens nothing, so its
-    # speed is no risk to a canopy: only a flight that lists no device at all gets this warning
-    listed = bool(flight.get("deployments"))
-    if speed is not None and float(speed) > r.max_ejection_speed_m_s and not listed:
-        out.append(("ejection-fast", f"the rocket moves at {float(speed):.0f} m/s at ejection (above "
-                                     f"{r.max_ejection_speed_m_s:g} m/s): risk of damage or a torn canopy"))
-    landing = flight.get("landing_descent_rate_m_s")
-    if landing is not None and float(landing) > r.max_landing_speed_m_s:
-        out.append(("descent-fast", f"descent rate at landing {float(landing):.1f} m/s is above {r.max_landing_speed_m_s:g} m/s: "
-                                    "use a larger recovery device"))
-    mach = flight.get("max_mach")
-    if constant_drag and mach is not None and float(mach) > r.max_constant_cd_mach:  # type: ignore[arg-type]
-        out.append(("constant-cd-past-mach", f"the rocket reaches Mach {float(mach):.2f} with a constant drag "  # type: ignore[arg-type]
-                                             "coefficient, which ignores the transonic drag rise and overstates "
-                                             "apogee and the optimal delay; give a drag_table or a [geometry]"))
-    out += _recovery_warnings(flight, r)
-    if flight.get("has_recovery") and flight.get("deploy_time_s") is None:
-        out.append(("no-deployment", "nothing deploys recovery on this flight (plugged motor without electronics, or "
-                                     "the rocket lands first): it would fall ballistically"))
-    return out
-
-
-def _recovery_warnings(flight: dict[str, object], r: LaunchRules) -> list[tuple[str, str]]:
-    """Every device's opening speed against its kind's limit, an opening under thrust, the landing distance."""
-    out: list[tuple[str, str]] = []
-    burnout = flight.get("burnout_time_s")
-    for event in flight.get("deployments") or []:  # type: ignore[union-attr]
-        kind, speed, load = str(event.get("device", "parachute")), event.get("speed_m_s"), event.get("opening_load_n")
-        limit = r.deployment_limit_m_s(kind)
-        if speed is not None and float(speed) > limit:
-            out.append(("deployment-fast", f"the {kind} opens at {float(speed):.0f} m/s (above {limit:g} m/s for a "
-                                           f"{kind}" + ("" if load is None else f"; opening load up to {float(load):,.0f} N")
-                                           + "): risk of a torn canopy, a zipper or a broken harness"))
-        if burnout is not None and event.get("time_s") is not None and float(event["time_s"]) < float(burnout):
-            out.append(("deployment-while-burning", f"the {kind} opens at {float(event['time_s']):.2f} s, while the "
-                                                    f"motor still burns (burnout {float(burnout):.2f} s)"))
-    landing = flight.get("landing")
-    if isinstance(landing, dict) and r.field_radius_m is not None and landing["distance_m"] > r.field_radius_m:
-        out.append(("lands-outside-field", f"lands {float(landing['distance_m']):,.0f} m from the pad, outside the "
-                                           f"{r.field_radius_m:,.0f} m field"))
-    return out
+    def __post_init__(self) -> None:
+        for name in ("min_rail_exit_speed_m_s", "rail_exit_wind_ratio", "min_liftoff_thrust_to_weight",
+                     "max_delay_error_s", "max_ejection_speed_m_s", "max_landing_speed_m_s", "max_constant_cd_mach"):
+            value = getattr(self, name)
+            if not (isinstance(value, (int, float)) and math.isfinite(value) and value >= 0.0):
+                raise ValueError(f"`{name}` must be a finite number >= 0, got {value!r}")
+        if self.field_radius_m is not None and not self.field_radius_m >= 0.0:
+            raise ValueError(f"`field_radius_m` must be >= 0 or None, got {self.field_radius_m!r}")

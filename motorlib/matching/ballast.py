@@ -20,8 +20,8 @@ from ..flight.stability import nose_weight_kg, stability_for_pack
 
 if TYPE_CHECKING:
     from .rank import MatchSettings
-from .figures import (_STABILITY_KEYS, _choose_delays, _deployment_speeds, _figures, _landing_distance, _landing_speed,
-                      _reasons, _Recovered, flies_descent)
+from .figures import (_STABILITY_KEYS, _broken, _choose_delays, _deployment_speeds, _figures, _landing_descent_rate,
+                      _landing_distance, _rule_findings, flies_descent)
 
 __all__: list[str] = []
 
@@ -74,9 +74,9 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         side = np.where(right, 1, -1)
     final = simulate(frame, sub, fs, added_mass_kg=mass, descent=flies_descent(frame, s))
     chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i]["delays_s"] for i in idx])
-    landing = _landing_speed(frame, final, sub)
+    landing = _landing_descent_rate(frame, final, sub)
     deploy, distance = _deployment_speeds(frame, final, sub), _landing_distance(frame, final, sub)
-    uses_charge = frame.recovery is None or frame.recovery.deploy == "ejection"
+    findings = _rule_findings(frame, [rows[i] for i in idx], final, s, chosen, speed, landing, deploy, distance)
     for k, i in enumerate(idx):
         figures["ballast_kg"][i] = float(mass[k])
         figures["ballast_apogee_m"][i] = float(final.apogee_m[k])
@@ -86,8 +86,7 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         figures["ballast_optimal_delay_s"][i] = float(final.optimal_delay_s[k])
         figures["ballast_ejection_speed_m_s"][i] = float(speed[k]) if np.isfinite(speed[k]) else None
         figures["ballast_landing_speed_m_s"][i] = float(landing[k]) if np.isfinite(landing[k]) else None
-        broken = _reasons(final, k, chosen[k], speed[k], landing[k], uses_charge, s, rows[i],
-                          _Recovered(frame, deploy[k], distance[k]))
+        broken = _broken(findings[k])
         figures["ballast_reasons"][i] = [text for _, text in broken]
         figures["ballast_reason_codes"][i] = [code for code, _ in broken]
 
@@ -101,7 +100,7 @@ def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPac
     """Fail every motor that leaves the rocket under ``s.min_stability_cal``; solve its nose weight and re-fly.
 
     The margin is the smallest of liftoff, rail exit and burnout (:mod:`motorlib.flight.stability`),
-    with the subsonic CP. A motor below it gets a reason with the code ``stability``; the nose
+    with the subsonic CP. A motor below it gets a reason with the code ``stability-low`` (``unstable`` below zero); the nose
     weight that restores the margin (closed form, at half the nose length) is flown again with
     every motor that needs one, in one batch, and every rule is checked again on that flight
     (``nose_weight_reasons``). The motor's own reason stays: a solved weight is advice, not a pass.
@@ -128,16 +127,19 @@ def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPac
 
 
 def _stability_reason(margin_cal: float, required_cal: float, weight_kg: float) -> tuple[str, str] | None:
-    """("stability", message) when the least margin is unknown or below ``required_cal``; None when it holds."""
+    """(code, message) when the least margin is unknown or below ``required_cal`` (the codes of ``fly``'s
+    :func:`~motorlib.flight.stability.stability_warnings`: ``stability-unknown``, ``unstable``, ``stability-low``),
+    with the nose weight that restores it; None when it holds (an over-stable rocket is not failed here)."""
     if not np.isfinite(margin_cal):
-        return ("stability", "stability unknown: the motor's length or masses are not given")
+        return ("stability-unknown", "stability unknown: the motor's length or masses are not given")
     if margin_cal >= required_cal:
         return None
+    code = "unstable" if margin_cal < 0.0 else "stability-low"
     what = (f"unstable: stability margin {margin_cal:.2f} cal, the CG lies behind the CP" if margin_cal < 0.0
             else f"stability margin {margin_cal:.2f} cal, below {required_cal:g} cal")
     if np.isinf(weight_kg):
-        return ("stability", what + "; no nose weight can restore it (enlarge the fins)")
-    return ("stability", what + f"; {weight_kg * 1e3:.1f} g of nose weight restores it")
+        return (code, what + "; no nose weight can restore it (enlarge the fins)")
+    return (code, what + f"; {weight_kg * 1e3:.1f} g of nose weight restores it")
 
 
 def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, lengths: np.ndarray,

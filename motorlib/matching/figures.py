@@ -1,20 +1,21 @@
 """The figures and reasons of flown candidates: the delay each motor gets, the speeds at each opening and at
 landing, the landing distance, and every rule a flight breaks (one rule set: :class:`~motorlib.flight.rules.LaunchRules`).
 
-Landing speed under the recovery device is the terminal descent rate at the pad,
-√(2·m·g/(ρ·(Cd·A_device + Cd·A_body))), which the descent approaches well before
-landing; the ``fly`` command integrates the whole descent instead. The first device's
+Landing speed under the recovery device is the descent rate at landing: where the descent is
+not flown, the terminal descent rate at the pad, √(2·m·g/(ρ·(Cd·A_device + Cd·A_body))), which
+the descent approaches well before landing (``fly`` integrates the whole descent). The first device's
 opening speed comes from the flight; a later device's is the terminal speed under the
 devices open before it, at the density of its opening height. The landing distance is
 an estimate: the apogee's distance plus the drift under each device at that terminal
-speed in the power-law wind.
+speed in the power-law wind. Where the descent was flown, every figure is the flown one.
+The rules are those ``fly`` applies, evaluated once for all candidates
+(:mod:`motorlib.flight.rulebook`).
 
 numpy only.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -22,7 +23,9 @@ import numpy as np
 from ..flight.airframe import Airframe
 from ..flight.integrate import FlightSettings
 from ..flight.pack import MotorPack
-from ..flight.results import NO_LIFTOFF, OK, STUCK_ON_RAIL, FlightResults
+from ..flight.results import FlightResults
+from ..flight.rulebook import evaluate_rules, flown_rule_inputs
+from ..motor.checks import Finding
 from ..units import STANDARD_GRAVITY_M_S2
 
 if TYPE_CHECKING:
@@ -132,12 +135,10 @@ def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) 
 def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
              s: MatchSettings) -> dict[str, Any]:
     chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r["delays_s"] for r in rows])
-    landing = _landing_speed(frame, results, pack)
+    landing = _landing_descent_rate(frame, results, pack)
     deploy = _deployment_speeds(frame, results, pack)
     distance = _landing_distance(frame, results, pack)
-    uses_charge = frame.recovery is None or frame.recovery.deploy == "ejection"
-    reasons = [_reasons(results, i, chosen[i], speed[i], landing[i], uses_charge, s, rows[i],
-                        _Recovered(frame, deploy[i], distance[i])) for i in range(len(rows))]
+    findings = _rule_findings(frame, rows, results, s, chosen, speed, landing, deploy, distance)
 
     def col(values: np.ndarray) -> list[float | None]:
         return [float(v) if np.isfinite(v) else None for v in values]
@@ -159,69 +160,32 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
         "ballast_chosen_delay_s": [None] * len(rows), "ballast_optimal_delay_s": [None] * len(rows),
         "ballast_ejection_speed_m_s": [None] * len(rows), "ballast_landing_speed_m_s": [None] * len(rows),
         "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
-        "_reasons": reasons, "_status": list(results.status),
+        "_reasons": [_broken(f) for f in findings],
+        "_notes": [[(n.code, n.message) for n in f if n.severity == "note"] for f in findings],
+        "_status": list(results.status),
     }
 
 
-# Flight status -> the reason code (and verdict word) a flyer reads at a glance.
-_STATUS_CODES = {NO_LIFTOFF: "no liftoff", STUCK_ON_RAIL: "stuck on rail"}
+def _rule_findings(frame: Airframe, rows: list[dict[str, Any]], results: FlightResults, s: MatchSettings,
+                   chosen: np.ndarray, speed: np.ndarray, landing: np.ndarray, deploy: np.ndarray,
+                   distance: np.ndarray) -> list[list[Finding]]:
+    """Every rule each flight breaks (:func:`motorlib.flight.rulebook.evaluate_rules`, the rules ``fly`` applies),
+    with this module's figures where the descent was not flown."""
+    inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed,
+                               landing_descent_rate_m_s=landing, landing_distance_m=distance,
+                               deployment_speed_m_s=deploy,
+                               delays_known=np.array([r.get("ejection") != "unknown" for r in rows], dtype=bool))
+    return evaluate_rules(inputs, s.rules, ceiling_m=s.ceiling_m)
 
 
-@dataclass(frozen=True)
-class _Recovered:
-    """One flight's recovery figures checked by :func:`_reasons`: each device's opening speed [m/s] and the
-    landing distance [m] (NaN: unknown)."""
-
-    frame: Airframe
-    deployment_speeds_m_s: np.ndarray
-    landing_distance_m: float
+def _broken(findings: list[Finding]) -> list[tuple[str, str]]:
+    """(code, message) of the findings that fail a motor (notes on the model apart)."""
+    return [(f.code, f.message) for f in findings if f.severity != "note"]
 
 
-def _reasons(results: FlightResults, i: int, chosen: float, ejection_speed: float, landing: float,
-             uses_charge: bool, s: MatchSettings, row: dict[str, Any], recovered: _Recovered | None = None
-             ) -> list[tuple[str, str]]:
-    """(short code, message) for every rule the flight breaks."""
-    r = s.rules
-    if results.status[i] != OK:
-        return [(_STATUS_CODES.get(int(results.status[i]), "not flown"), results.message(i))]
-    out = []
-    exit_speed = results.rail_exit_speed_m_s[i]
-    wind = recovered.frame.launch.surface_wind_m_s if recovered is not None else 0.0
-    need = r.rail_exit_needed_m_s(wind)
-    if exit_speed < need:
-        why = "" if need == r.min_rail_exit_speed_m_s else f" ({r.rail_exit_wind_ratio:g} x the {wind:g} m/s wind)"
-        out.append(("rail", f"rail exit too slow: {exit_speed:.1f} m/s, below {need:g} m/s{why}"))
-    ttw = results.liftoff_thrust_to_weight[i]
-    if ttw < r.min_liftoff_thrust_to_weight:
-        out.append(("T/W", f"thrust-to-weight too low: {ttw:.1f}, below {r.min_liftoff_thrust_to_weight:g}"))
-    apogee = results.apogee_m[i]
-    if s.ceiling_m is not None and apogee > s.ceiling_m:
-        out.append(("ceiling", f"over the ceiling: apogee {apogee:.0f} m above {s.ceiling_m:.0f} m"))
-    if uses_charge:
-        optimal = results.optimal_delay_s[i]
-        if not np.isfinite(chosen) and row.get("ejection") == "unknown":
-            out.append(("delays unknown", "the motor's ejection delays are not given (add them to its record) and "
-                                          "the airframe file has no electronics deployment"))
-        elif not np.isfinite(chosen):
-            out.append(("no charge", "no ejection charge (plugged or booster) and no electronics deployment in the airframe file"))
-        elif abs(chosen - optimal) > s.delay_slack_s:
-            out.append(("delay", f"no delay within {s.delay_slack_s:g} s of the optimal {optimal:.1f} s "
-                       f"(closest {chosen:g} s)"))
-        charged_device = recovered is not None and recovered.frame.recovery_devices and uses_charge
-        if np.isfinite(ejection_speed) and ejection_speed > r.max_ejection_speed_m_s and not charged_device:
-            out.append(("eject", f"ejection too fast: {ejection_speed:.0f} m/s at the {chosen:g} s delay "
-                       f"(limit {r.max_ejection_speed_m_s:g} m/s)"))
-        if np.isfinite(chosen) and not np.isfinite(ejection_speed):
-            out.append(("lands first", f"lands before the {chosen:g} s delay fires"))
-    if np.isfinite(landing) and landing > r.max_landing_speed_m_s:
-        out.append(("descent", f"descent too fast: {landing:.1f} m/s under the device (limit {r.max_landing_speed_m_s:g} m/s)"))
-    if recovered is not None:
-        for device, speed in zip(recovered.frame.recovery_devices, recovered.deployment_speeds_m_s):
-            limit = r.deployment_limit_m_s(device.device)
-            if np.isfinite(speed) and speed > limit:
-                out.append(("deploy", f"the {device.device} opens too fast: {speed:.0f} m/s (limit {limit:g} m/s)"))
-        distance = recovered.landing_distance_m
-        if r.field_radius_m is not None and np.isfinite(distance) and distance > r.field_radius_m:
-            out.append(("field", f"lands outside the field: about {distance:.0f} m from the pad "
-                                 f"(field radius {r.field_radius_m:.0f} m)"))
-    return out
+def _landing_descent_rate(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
+    """Descent rate under the device(s) at landing [m/s]: the flown one where the descent was flown, else the
+    terminal estimate at the pad; the figure ``fly`` reports as ``landing_speed_m_s`` too."""
+    estimate = _landing_speed(frame, results, pack)
+    flown = results.landing_descent_rate_m_s
+    return np.where(np.isfinite(flown), flown, estimate) if frame.recovery_devices else estimate

@@ -55,9 +55,9 @@ class MatchSettings:
     max_class : str or None
         Highest impulse class allowed (the flyer's certification).
     rules : LaunchRules
-        Rail exit speed, thrust-to-weight, ejection speed and descent rules (defaults: common practice).
-    delay_slack_s : float
-        How far the chosen delay may be from the optimal one [s]; default 2 s (common practice, no published source).
+        Every launch rule and its threshold (rail exit speed, thrust-to-weight, how far the chosen delay may be
+        from the optimal one, ejection, deployment and descent speeds, the field): the rules ``fly`` applies,
+        with their defaults and sources in :class:`~motorlib.flight.rules.LaunchRules`.
     allow_smaller_motors : bool
         Motors narrower than the mount fit with an adapter, up to ``adapter_steps`` standard sizes down.
     adapter_steps : int
@@ -80,7 +80,6 @@ class MatchSettings:
     ceiling_m: float | None = None
     max_class: str | None = None
     rules: LaunchRules = field(default_factory=LaunchRules)
-    delay_slack_s: float = 2.0
     allow_smaller_motors: bool = False
     diameter_tolerance_m: float = 0.0005
     ballast: bool = False
@@ -150,7 +149,7 @@ def mount_problems(frame: Airframe, record: MotorRecord) -> list[str]:
     adapter for a narrower motor is not a problem. Empty when it fits or the airframe states no mount."""
     settings = MatchSettings(allow_smaller_motors=True, adapter_steps=99)
     reasons, _ = _fits(frame, candidate_rows([record])[0], settings)
-    return [text for code, text in reasons if code == "no fit"]
+    return [text for code, text in reasons if code == "motor-does-not-fit"]
 
 
 def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:
@@ -160,31 +159,31 @@ def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[
     if s.max_class is not None:
         cls = row["impulse_class"]
         if cls is None or CLASS_LETTERS.index(cls) > CLASS_LETTERS.index(s.max_class):
-            reasons.append(("above class", f"class {cls or 'above O'} is above the limit {s.max_class}"))
+            reasons.append(("above-class", f"class {cls or 'above O'} is above the limit {s.max_class}"))
     d, mount = row["diameter_m"], frame.mount_diameter_m
     if mount is not None:
         size = f"{d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount" if d is not None else ""
         if d is None:
-            reasons.append(("no fit", "does not fit: the motor's diameter is unknown"))
+            reasons.append(("motor-does-not-fit", "does not fit: the motor's diameter is unknown"))
         elif d > mount + s.diameter_tolerance_m:
-            reasons.append(("no fit", f"does not fit: {size}"))
+            reasons.append(("motor-does-not-fit", f"does not fit: {size}"))
         elif d < mount - s.diameter_tolerance_m:
             steps = adapter_steps(d, mount, s.diameter_tolerance_m)
             if not s.allow_smaller_motors:
-                reasons.append(("no fit", f"does not fit: {size} (adapters not allowed)"))
+                reasons.append(("motor-does-not-fit", f"does not fit: {size} (adapters not allowed)"))
             elif steps > s.adapter_steps:
-                reasons.append(("no fit", f"does not fit: {size} is {steps} standard sizes down (adapters up to "
+                reasons.append(("motor-does-not-fit", f"does not fit: {size} is {steps} standard sizes down (adapters up to "
                                           f"{s.adapter_steps} allowed)"))
             else:
                 adapter = adapter_text(d, mount)
     if frame.mount_length_m is not None:
         if row["length_m"] is None:
-            reasons.append(("no fit", "does not fit: the motor's length is unknown"))
+            reasons.append(("motor-does-not-fit", "does not fit: the motor's length is unknown"))
         elif row["length_m"] > frame.mount_length_m + 1e-9:
-            reasons.append(("no fit", f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes "
+            reasons.append(("motor-does-not-fit", f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes "
                                       f"{frame.mount_length_m * 1e3:.4g} mm"))
     if row["total_mass_kg"] is None or row["propellant_mass_kg"] is None:
-        reasons.append(("no masses", "cannot be flown: no total or propellant mass"))
+        reasons.append(("no-masses", "cannot be flown: no total or propellant mass"))
     return reasons, adapter
 
 
@@ -250,6 +249,8 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
             base.update({k: v for k, v in f.items() if not k.startswith("_")})
             base["reasons"] = [text for _, text in f["_reasons"]]
             base["reason_codes"] = [code for code, _ in f["_reasons"]]
+            base["notes"] = [text for _, text in f["_notes"]]
+            base["note_codes"] = [code for code, _ in f["_notes"]]
         else:
             base.update({k: None for k in _FIGURE_KEYS})
             base["reasons"] = [text for _, text in fit_reasons[i]]
@@ -292,7 +293,8 @@ _FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_
 def _judge(c: dict[str, Any], s: MatchSettings) -> None:
     """The candidate's verdict and notes (:func:`.verdicts.classify`), with the adapter it needs as a note."""
     if c["adapter"] is not None and c["fits"]:
-        c["notes"], c["note_codes"] = [f"needs a {c['adapter']} adapter"], ["adapter"]
+        c["notes"] = [f"needs a {c['adapter']} adapter"] + c.get("notes", [])
+        c["note_codes"] = ["adapter"] + c.get("note_codes", [])
     classify(c, s.target_m, s.target_tolerance)
 
 
@@ -317,14 +319,8 @@ def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
     site = launch.site
     return {
         "target_m": s.target_m, "ceiling_m": s.ceiling_m, "max_class": s.max_class,
-        "min_rail_exit_speed_m_s": s.rules.min_rail_exit_speed_m_s,
-        "rail_exit_needed_m_s": s.rules.rail_exit_needed_m_s(launch.surface_wind_m_s),
-        "wind_m_s": launch.surface_wind_m_s, "rail_exit_wind_ratio": s.rules.rail_exit_wind_ratio,
-        "min_liftoff_thrust_to_weight": s.rules.min_liftoff_thrust_to_weight,
-        "delay_slack_s": s.delay_slack_s, "max_ejection_speed_m_s": s.rules.max_ejection_speed_m_s,
-        "max_landing_speed_m_s": s.rules.max_landing_speed_m_s, "allow_smaller_motors": s.allow_smaller_motors,
+        **s.rules.conditions(launch.surface_wind_m_s), "allow_smaller_motors": s.allow_smaller_motors,
         "adapter_steps": s.adapter_steps, "target_tolerance": s.target_tolerance,
-        "max_deployment_speed_m_s": dict(s.rules.max_deployment_speed_m_s), "field_radius_m": s.rules.field_radius_m,
         "drag": ("estimated from the shape, Cd(Mach) powered and coasting" if frame.drag_source == "estimated"
                  else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
                  else f"Cd {frame.drag_coefficient:g}") + f" on {frame.diameter_m * 1e3:.4g} mm",

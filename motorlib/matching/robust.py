@@ -92,7 +92,7 @@ def _success(flights: dict[str, np.ndarray], frame: Airframe, match: MatchSettin
         out["ceiling"] = fails(flights["apogee_m"] > match.ceiling_m)
     if frame.recovery is None or frame.recovery.deploy == "ejection":
         delay = flights["deploy_delay_s"]
-        out["delay"] = fails(~(np.abs(delay - flights["optimal_delay_s"]) <= match.delay_slack_s))
+        out["delay"] = fails(~(np.abs(delay - flights["optimal_delay_s"]) <= r.max_delay_error_s))
         out["eject"] = fails(~(flights["deploy_limit_ratio"] <= 1.0))  # each opening against its limit
     if np.isfinite(flights["landing_speed_m_s"]).any():
         out["descent"] = fails(flights["landing_speed_m_s"] > r.max_landing_speed_m_s)

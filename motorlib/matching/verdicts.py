@@ -31,8 +31,10 @@ VERDICTS: Final = {
 }
 GOOD_VERDICTS: Final = ("pass", "pass with ballast")
 
-# Reason codes that stop a candidate before or at liftoff: the verdict is the code itself.
-_STOPPING: Final = ("no fit", "above class", "no masses", "no liftoff", "stuck on rail", "not flown")
+# Reason codes that stop a candidate before or at liftoff (codes of :mod:`motorlib.flight.rules`) -> the verdict.
+_STOPPING: Final = {"motor-does-not-fit": "no fit", "above-class": "above class", "no-masses": "no masses",
+                    "no-liftoff": "no liftoff", "stuck-on-rail": "stuck on rail", "not-flown": "not flown",
+                    "flight-incomplete": "not flown"}
 
 
 def miss_percent(miss: float, tolerance: float) -> str:
@@ -85,7 +87,7 @@ def classify(c: dict[str, Any], target_m: float | None, tolerance: float) -> Non
     if c.get("ballast_kg") is not None:
         ballast_passes = not c.get("ballast_reasons")
     if stopping:
-        verdict = stopping[0]
+        verdict = _STOPPING[stopping[0]]
     elif not c["reason_codes"] and on_target:
         verdict = "pass"
     elif ballast_passes:

@@ -38,13 +38,15 @@ _UNITS: Final = {
 
 # Which phase a warning code belongs to; codes not listed go to the card's general warnings.
 _PHASE_OF_WARNING: Final = {
-    "rail-exit-slow": "pad", "rail-exit-slow-for-wind": "pad", "thrust-to-weight-low": "pad",
+    "rail-exit-slow": "pad", "thrust-to-weight-low": "pad",
     "unstable": "pad", "stability-low": "pad", "over-stable": "pad", "stability-unknown": "pad",
-    "ejection-far-from-apogee": "coast", "ejection-fast": "recovery", "no-deployment": "recovery",
+    "over-ceiling": "coast", "ejection-far-from-apogee": "coast", "delays-unknown": "coast",
+    "no-ejection-charge": "recovery", "lands-before-ejection": "recovery",
+    "ejection-fast": "recovery", "no-deployment": "recovery",
     "deployment-fast": "recovery", "descent-fast": "landing", "deployment-while-burning": "recovery",
     "lands-outside-field": "landing", "constant-cd-past-mach": "boost",
 }
-_FAILING_WARNINGS: Final = {"unstable", "flight-failed", "flight-incomplete"}
+_FAILING_WARNINGS: Final = {"unstable", "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete"}
 
 
 def quantity(value: Any, kind: str, units: str = "si") -> str:
@@ -138,7 +140,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
         ``speed_m_s`` and a ``name`` or ``event``) and ``landing`` (``speed_m_s``, ``distance_m``,
         ``bearing_deg``, ...) are used when present.
     warnings : sequence of (code, message)
-        From :func:`motorlib.flight.rules.flight_warnings` (and stability warnings); each lands in its phase.
+        From :func:`motorlib.flight.rulebook.evaluate_rules` (and stability warnings); each lands in its phase.
     title : str
     units : str
         ``si`` or ``imperial``.
@@ -322,7 +324,6 @@ def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]])
         figures += [
             CardFigure("descent rate", quantity(rate, "speed", u), _check(rate, r.max_landing_speed_m_s, False),
                        f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"),
-            CardFigure("speed over ground", quantity(s.get("landing_speed_m_s"), "speed", u)),
             CardFigure("descent time", _seconds(s.get("descent_time_s"))),
             CardFigure("from the pad", f"{quantity(s.get('drift_m'), 'length', u)} downwind"),
         ]

@@ -13,20 +13,26 @@ from typing import Any
 from ..matching.verdicts import miss_percent
 from .display import DisplayUnits
 
-__all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text", "warning_message"]
+__all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text"]
 
-# Library reason code (optionally ":" and the start of its text) -> (short code, legend).
+# Rule code (:data:`motorlib.flight.rules.RULE_CODES`; optionally ":" and the start of its text) -> (the one-letter
+# code of match's result column, its legend).
 REASON_CODES = {
-    "rail": ("R", "rail exit too slow"), "T/W": ("T", "thrust-to-weight too low"), "ceiling": ("C", "over the ceiling"),
-    "delay": ("D", "no delay near the optimal one"), "eject": ("E", "ejection too fast"),
-    "lands first": ("L", "lands before the delay fires"), "descent": ("S", "descends too fast under the device"),
-    "no charge": ("P", "plugged: no ejection charge and no electronics"),
-    "deploy": ("O", "a recovery device opens too fast"), "field": ("F", "lands outside the field"),
-    "delays unknown": ("W", "ejection delays not given"),
-    "no liftoff": ("N", "no liftoff"), "stuck on rail": ("K", "stuck on the rail"),
-    "not flown": ("X", "flight not completed"), "above class": ("A", "above your class limit"),
-    "no masses": ("U", "masses unknown"), "no fit": ("M", "does not fit the mount"),
-    "stability": ("B", "too little stability margin (CG too far aft)"),
+    "rail-exit-slow": ("R", "rail exit too slow"), "thrust-to-weight-low": ("T", "thrust-to-weight too low"),
+    "over-ceiling": ("C", "over the ceiling"), "ejection-far-from-apogee": ("D", "no delay near the optimal one"),
+    "ejection-fast": ("E", "ejection too fast"), "lands-before-ejection": ("L", "lands before the delay fires"),
+    "descent-fast": ("S", "descends too fast under the device"),
+    "no-ejection-charge": ("P", "plugged: no ejection charge and no electronics"),
+    "deployment-fast": ("O", "a recovery device opens too fast"), "lands-outside-field": ("F", "lands outside the field"),
+    "deployment-while-burning": ("H", "a recovery device opens while the motor burns"),
+    "no-deployment": ("Y", "nothing deploys recovery"), "delays-unknown": ("W", "ejection delays not given"),
+    "no-liftoff": ("N", "no liftoff"), "stuck-on-rail": ("K", "stuck on the rail"),
+    "not-flown": ("X", "flight not completed"), "flight-incomplete": ("X", "flight not completed"),
+    "above-class": ("A", "above your class limit"), "no-masses": ("U", "masses unknown"),
+    "motor-does-not-fit": ("M", "does not fit the mount"),
+    "stability-low": ("B", "too little stability margin (CG too far aft)"),
+    "unstable": ("B", "too little stability margin (CG too far aft)"),
+    "stability-unknown": ("B", "too little stability margin (CG too far aft)"),
 }
 
 # Verdict word -> the word in the match table's result column (at most 12 characters, so it fits 80 columns).
@@ -84,51 +90,35 @@ def small_mass(u: DisplayUnits, mass_kg: float) -> str:
 
 def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits,
                 prefix: str = "") -> str:
-    """One failed rule in display units, from the candidate's figures (``prefix``: ``ballast_`` after ballast)."""
+    """One broken rule in display units, from a flight's figures: a match candidate's (``prefix``: ``ballast_``
+    after ballast) or ``fly``'s summary; ``cond`` holds the limits as match's conditions name them
+    (:meth:`motorlib.flight.rules.LaunchRules.conditions`, with ``ceiling_m`` and ``min_stability_cal``)."""
     get = lambda key: c.get(prefix + key)  # noqa: E731
-    if code == "rail" and get("rail_exit_speed_m_s") is not None:
+    if code == "rail-exit-slow" and get("rail_exit_speed_m_s") is not None:
         need = cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"])
         v, lim = u.beyond(get("rail_exit_speed_m_s"), need, "speed", above=False)
         wind = cond.get("wind_m_s") or 0.0
         why = f" ({need / wind:g} x the {u.quantity(wind, 'speed')} wind)" if need > cond["min_rail_exit_speed_m_s"] \
             and wind > 0 else ""
-        return f"rail exit too slow: {v}, below {lim}{why}"
-    if code == "stability" and get("stability_margin_cal") is not None and cond.get("min_stability_cal") is not None:
+        return f"rail exit too slow: {v}, below {lim}{why}: the rocket may not fly straight; use a longer rail or a stronger motor"
+    if code in ("stability-low", "unstable") and get("stability_margin_cal") is not None \
+            and cond.get("min_stability_cal") is not None:
         margin, need = get("stability_margin_cal"), cond["min_stability_cal"]
         what = (f"unstable: stability margin {margin:.2f} cal, the CG lies behind the CP" if margin < 0.0
                 else f"stability margin {margin:.2f} cal, below {need:g} cal")
         weight = get("nose_weight_for_stability_kg")
         return what + ("" if weight is None else f"; {small_mass(u, weight)} of nose weight restores it")
-    if code == "T/W" and get("liftoff_thrust_to_weight") is not None:
+    if code == "thrust-to-weight-low" and get("liftoff_thrust_to_weight") is not None:
         v, lim = u.beyond(get("liftoff_thrust_to_weight"), cond["min_liftoff_thrust_to_weight"], "ratio", above=False)
         return f"thrust-to-weight too low: {v}, below {lim}"
-    if code == "ceiling" and get("apogee_m") is not None and cond.get("ceiling_m"):
+    if code == "over-ceiling" and get("apogee_m") is not None and cond.get("ceiling_m"):
         v, lim = u.beyond(get("apogee_m"), cond["ceiling_m"], "length", above=True)
         return f"over the ceiling: apogee {v} above {lim}"
-    if code == "eject" and get("ejection_speed_m_s") is not None:
-        v, lim = u.beyond(get("ejection_speed_m_s"), cond["max_ejection_speed_m_s"], "speed", above=True, decimals=0)
-        return f"ejection too fast: {v} at the {get('chosen_delay_s'):g} s delay (limit {lim})"
-    if code == "descent" and get("landing_speed_m_s") is not None:
+    speed = get("ejection_speed_m_s") if get("ejection_speed_m_s") is not None else get("chosen_ejection_speed_m_s")
+    if code == "ejection-fast" and speed is not None:
+        v, lim = u.beyond(speed, cond["max_ejection_speed_m_s"], "speed", above=True, decimals=0)
+        return f"ejection too fast: {v} at the {get('chosen_delay_s'):g} s delay (limit {lim}): risk of damage or a torn canopy"
+    if code == "descent-fast" and get("landing_speed_m_s") is not None:
         v, lim = u.beyond(get("landing_speed_m_s"), cond["max_landing_speed_m_s"], "speed", above=True)
-        return f"descent too fast: {v} under the device (limit {lim})"
-    return message
-
-
-def warning_message(code: str, message: str, s: dict[str, Any], rules: Any, u: DisplayUnits, wind: float) -> str:
-    """One flight warning (:func:`motorlib.flight.rules.flight_warnings`) in display units."""
-    if code == "rail-exit-slow":
-        v, lim = u.beyond(s["rail_exit_speed_m_s"], rules.min_rail_exit_speed_m_s, "speed", above=False)
-        return f"rail exit speed {v} is below {lim}: the rocket may not fly straight; use a longer rail or a stronger motor"
-    if code == "rail-exit-slow-for-wind":
-        return (f"rail exit speed {u.quantity(s['rail_exit_speed_m_s'], 'speed')} is less than "
-                f"{rules.rail_exit_wind_ratio:g} x the wind speed {u.given(wind, 'speed')}")
-    if code == "thrust-to-weight-low":
-        v, lim = u.beyond(s["liftoff_thrust_to_weight"], rules.min_liftoff_thrust_to_weight, "ratio", above=False)
-        return f"liftoff thrust-to-weight {v} is below {lim}"
-    if code == "ejection-fast":
-        v, lim = u.beyond(s["chosen_ejection_speed_m_s"], rules.max_ejection_speed_m_s, "speed", above=True, decimals=0)
-        return f"the rocket moves at {v} at ejection (above {lim}): risk of damage or a torn canopy"
-    if code == "descent-fast":
-        v, lim = u.beyond(s["landing_descent_rate_m_s"], rules.max_landing_speed_m_s, "speed", above=True)
-        return f"descent rate at landing {v} is above {lim}: use a larger recovery device"
+        return f"descent too fast: {v} under the device (limit {lim}): use a larger recovery device"
     return message

@@ -19,6 +19,7 @@ import numpy as np
 from ..files.fsio import write_atomic
 from ..safety import CHART_CAUTION as _CAUTION
 from .display import DisplayUnits
+from .messages import short_code
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE
 
 __all__ = ["airframe_plot", "calibration_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot",
@@ -206,7 +207,8 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     for i, c in enumerate(flown):
         passes = c["passes"]
         fill, hatch, mark = _VERDICT_BARS.get(c["verdict"], (ORANGE, "///", None))
-        mark = mark or "✗ " + ", ".join(dict.fromkeys(c["reason_codes"]))
+        mark = mark or "✗ " + " ".join(dict.fromkeys(short_code(code, text)[0]  # the table's letters
+                                                     for code, text in zip(c["reason_codes"], c["reasons"])))
         ax.bar(i, c["apogee_m"], color=fill, hatch=hatch, edgecolor=INK, linewidth=0.8, zorder=2)
         ax.text(i, c["apogee_m"] + top * 0.01, f"{c['apogee_m']:.0f}", ha="center", va="bottom", fontsize=7.5, color=INK)
         tall = c["apogee_m"] > top * (0.012 * len(mark) + 0.04)
@@ -234,8 +236,11 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
                  loc="left", fontsize=10)
     ax.legend(handles=handles, fontsize=7.5, loc="upper left", framealpha=0.95)
     ax.grid(axis="y")
-    fig.text(0.01, -0.06, f"Numbers: apogee in {unit}. Reasons: rail = rail exit too slow, T/W = thrust-to-weight, delay, "
-                          "eject = ejection speed, descent, ceiling. " + _CAUTION, fontsize=7, color=MUTED)
+    letters = dict(short_code(code, text) for c in flown if not c["passes"]
+                   for code, text in zip(c["reason_codes"], c["reasons"]))
+    reasons = "; ".join(f"{letter} {meaning}" for letter, meaning in letters.items())
+    fig.text(0.01, -0.09, f"Numbers: apogee in {unit}." + (f" Fail codes: {reasons}." if reasons else "") + " "
+             + _CAUTION, fontsize=7, color=MUTED, wrap=True, va="top")
     out = _save(fig, path)
     plt.close(fig)
     return out

@@ -19,7 +19,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from .messages import match_count
+from .messages import match_count, short_code
 from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TINT, PAPER, RULE
 from .report import ChartBlock
 from .svgcharts import SvgChart, thin
@@ -184,7 +184,7 @@ def match_chart(result: Any, key: str = "match") -> ChartBlock | None:
     if ceiling:
         chart.band_y(ceiling, top, "above the ceiling: not allowed", fill=ORANGE_TINT, hatch="cross")
     for i, c in enumerate(flown):
-        codes = ", ".join(dict.fromkeys(c["reason_codes"]))
+        codes = " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(c["reason_codes"], c["reasons"])))
         if c["passes"]:
             chart.bar(i, c["apogee_m"], fill=BLUE, top_text=f"{c['apogee_m']:.0f}", inside_text="✓")
         elif c["verdict"] == "pass with ballast":

@@ -226,7 +226,6 @@ def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
         return None
     return Facts("Landing", (
         ("descent rate", quantity(summary.get("landing_descent_rate_m_s"), "speed", u)),
-        ("speed over ground", quantity(summary.get("landing_speed_m_s"), "speed", u)),
         ("descent time", quantity(summary.get("descent_time_s"), "time")),
         ("distance from the pad", quantity(summary.get("drift_m"), "length", u) + " downwind"),
         ("bearing", "downwind (the model flies in the plane of the wind)"),

@@ -27,7 +27,7 @@ from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
 from .display import DisplayUnits
 from ..matching.verdicts import VERDICTS
-from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text, warning_message
+from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
 
 __all__ = ["WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
            "findings_text", "flight_table", "impulse_text", "match_table"]
@@ -277,9 +277,9 @@ def flight_table(summary: dict[str, Any], title: str, units: DisplayUnits = _MET
                      if ej["altitude_m"] is not None else "after landing"))
     if s.get("deploy_time_s") is not None:
         rows.append(("deployment", f"{sec('deploy_time_s')} at {u.quantity(s['deploy_altitude_m'], 'length')}"))
-    if s.get("landing_speed_m_s") is not None:
-        rows.append(("landing", f"descending at {u.quantity(s['landing_descent_rate_m_s'], 'speed')} "
-                                f"({u.quantity(s['landing_speed_m_s'], 'speed')} over ground) after "
+    if s.get("landing_speed_m_s") is not None and isinstance(s.get("landing"), dict):
+        rows.append(("landing", f"descending at {u.quantity(s['landing_speed_m_s'], 'speed')} "
+                                f"({u.quantity(s['landing']['speed_m_s'], 'speed')} over ground) after "
                                 f"{sec('descent_time_s')} of descent, {u.quantity(s['drift_m'], 'length')} from the pad"))
     for key, value in rows:
         table.add_row(key, escape(value))
@@ -331,13 +331,10 @@ def flight_card_table(card) -> Group:
     return Group(*parts)  # type: ignore[arg-type]
 
 
-def warnings_text(warnings: list[tuple[str, str]], summary: dict[str, Any] | None = None, rules: Any = None,
-                  units: DisplayUnits = _METRIC, wind_speed_m_s: float = 0.0) -> Text:
-    """Flight warnings, one a line; with the summary and rules their figures follow the display units."""
+def warnings_text(warnings: list[tuple[str, str]]) -> Text:
+    """Flight warnings, one a line (already in display units: :func:`.messages.reason_text`)."""
     text = Text()
     for code, message in warnings:
-        if summary is not None and rules is not None:
-            message = warning_message(code, message, summary, rules, units, wind_speed_m_s)
         text.append("  warning ", style="yellow")
         text.append(f"{code}: ", style="bold")
         text.append(message + "\n")
@@ -519,13 +516,13 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
             delay = "-" if c["chosen_delay_s"] is None else (
                 f"{c['chosen_delay_s']:g}{'d' if c['delay_adjusted'] else ''}/{c['optimal_delay_s']:.1f}")
             cells = [
-                _cell(u, c["apogee_m"], cond.get("ceiling_m"), "length", True, "ceiling" in codes),
+                _cell(u, c["apogee_m"], cond.get("ceiling_m"), "length", True, "over-ceiling" in codes),
                 _cell(u, c["rail_exit_speed_m_s"], cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
-                      False, "rail" in codes),
+                      False, "rail-exit-slow" in codes),
                 _cell(u, c["liftoff_thrust_to_weight"], cond["min_liftoff_thrust_to_weight"], "ratio", False,
-                      "T/W" in codes),
+                      "thrust-to-weight-low" in codes),
                 delay,
-                _cell(u, c["ejection_speed_m_s"], cond["max_ejection_speed_m_s"], "speed", True, "eject" in codes),
+                _cell(u, c["ejection_speed_m_s"], cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
             ]
         row: list[Any] = [str(rank), escape(name)]
         if wide:

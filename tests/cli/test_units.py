@@ -112,10 +112,10 @@ def test_demo_in_imperial_units(tmp_path: Path) -> None:
 def test_rounding_never_hides_a_failure_in_a_reason() -> None:
     # Issue 14: "descent too fast: 6.5 m/s (limit 6.5 m/s)" when the value is 6.52.
     candidate, conditions = {"landing_speed_m_s": 6.52}, {"max_landing_speed_m_s": 6.5}
-    assert reason_text("descent", "", candidate, conditions, DisplayUnits()) == \
-        "descent too fast: 6.52 m/s under the device (limit 6.5 m/s)"
+    assert reason_text("descent-fast", "", candidate, conditions, DisplayUnits()).startswith(
+        "descent too fast: 6.52 m/s under the device (limit 6.5 m/s)")
     candidate = {"apogee_m": 600.2}
-    assert reason_text("ceiling", "", candidate, {"ceiling_m": 600.0}, DisplayUnits()) == \
+    assert reason_text("over-ceiling", "", candidate, {"ceiling_m": 600.0}, DisplayUnits()) == \
         "over the ceiling: apogee 600.2 m above 600 m"
 
 
@@ -226,14 +226,15 @@ def test_progress_bars_only_on_a_terminal_and_for_long_work(monkeypatch: pytest.
 
 def test_flight_warnings_follow_the_units_and_never_round_a_failure_away() -> None:
     from motorlib.flight.rules import LaunchRules
-    from motorlib.present.messages import warning_message
+    from motorlib.present.messages import reason_text
 
-    summary = {"landing_descent_rate_m_s": 6.52, "rail_exit_speed_m_s": 14.96}
-    assert warning_message("descent-fast", "", summary, LaunchRules(), DisplayUnits(), 0.0).startswith(
-        "descent rate at landing 6.52 m/s is above 6.5 m/s")
-    assert warning_message("rail-exit-slow", "", summary, LaunchRules(), DisplayUnits("imperial"), 0.0).startswith(
-        "rail exit speed 49.1 ft/s is below 49.2 ft/s")
-    assert warning_message("new-code", "library words", summary, LaunchRules(), DisplayUnits(), 0.0) == "library words"
+    summary = {"landing_speed_m_s": 6.52, "rail_exit_speed_m_s": 14.96}
+    limits = LaunchRules().conditions(0.0)
+    assert reason_text("descent-fast", "", summary, limits, DisplayUnits()).startswith(
+        "descent too fast: 6.52 m/s under the device (limit 6.5 m/s)")
+    assert reason_text("rail-exit-slow", "", summary, limits, DisplayUnits("imperial")).startswith(
+        "rail exit too slow: 49.1 ft/s, below 49.2 ft/s")
+    assert reason_text("new-code", "library words", summary, limits, DisplayUnits()) == "library words"
 
 
 def test_fly_card_warnings_follow_the_units_switch() -> None:
@@ -241,7 +242,7 @@ def test_fly_card_warnings_follow_the_units_switch() -> None:
     code, out = run("--units", "imperial", "fly", QUIBBLE, "--motor", "F29-8", "--ballast", "10oz")
     assert code == 0, out
     flat = " ".join(out.split())
-    assert "descent rate at landing" in flat and "ft/s" in flat
+    assert "descent too fast" in flat and "ft/s" in flat
     assert " m/s" not in flat.split("Assumptions")[0]
 
 
@@ -295,7 +296,7 @@ def test_nose_weight_reasons_follow_the_units_and_never_read_zero() -> None:
     u = DisplayUnits("imperial")
     assert small_mass(u, 0.0008) == "0.03 oz"  # 0.8 g = 0.0282 oz (avoirdupois ounce, exact in grams)
     c = {"stability_margin_cal": 0.98, "nose_weight_for_stability_kg": 0.0327}
-    text = reason_text("stability", "library text in g", c, {"min_stability_cal": 1.0}, u)
+    text = reason_text("stability-low", "library text in g", c, {"min_stability_cal": 1.0}, u)
     assert text == "stability margin 0.98 cal, below 1 cal; 1.2 oz of nose weight restores it"
 
 

@@ -15,7 +15,8 @@ import pytest
 from scipy.integrate import solve_ivp
 
 from motorlib import MotorRecord
-from motorlib.flight import Airframe, FlightSettings, Launch, LaunchRules, Recovery, flight_warnings, simulate
+from motorlib.flight import Airframe, FlightSettings, Launch, LaunchRules, Recovery, simulate
+from motorlib.flight.rulebook import evaluate_rules, flown_rule_inputs
 
 G = 9.80665
 UNIFORM = FlightSettings(vary_gravity=False, uniform_air=True)
@@ -138,8 +139,7 @@ def test_a_device_opened_while_the_motor_burns_keeps_it_burning() -> None:
     # costs accuracy, hence 1e-3; dropping the thrust (the defect) lands about 20 % later
     assert res.landing_time_s[0] == pytest.approx(ref["landing_time_s"], rel=1e-3)
     assert res.landing_speed_m_s[0] == pytest.approx(ref["landing_speed_m_s"], rel=1e-3)
-    summary = res.summary(0)
-    codes = [code for code, _ in flight_warnings({**summary, "has_recovery": True})]
+    codes = [f.code for f in evaluate_rules(flown_rule_inputs(frame, res))[0]]
     assert "deployment-while-burning" in codes
 
 
@@ -174,14 +174,19 @@ def test_an_altitude_deployment_after_a_ballistic_fall_reports_its_speed() -> No
     assert res.max_speed_m_s[0] == pytest.approx(ref["max_speed"], rel=1e-5)
     summary = res.summary(0)
     assert summary["deployments"][0]["speed_m_s"] == pytest.approx(v_open, rel=1e-5)
-    codes = [code for code, _ in flight_warnings({**summary, "has_recovery": True}, LaunchRules())]
+    codes = [f.code for f in evaluate_rules(flown_rule_inputs(frame, res), LaunchRules())[0]]
     assert "deployment-fast" in codes
 
 
 def test_a_constant_cd_flown_past_mach_0_8_is_warned_about() -> None:
-    summary = {"status": "ok", "rail_exit_speed_m_s": 30.0, "apogee_m": 3000.0, "liftoff_thrust_to_weight": 10.0,
-               "optimal_delay_s": 12.0, "max_mach": 1.4}
-    assert "constant-cd-past-mach" in [c for c, _ in flight_warnings(summary, constant_drag=True)]
-    assert "constant-cd-past-mach" not in [c for c, _ in flight_warnings(summary, constant_drag=False)]
-    assert "constant-cd-past-mach" not in [c for c, _ in flight_warnings({**summary, "max_mach": 0.7},
-                                                                         constant_drag=True)]
+    # a K motor in a light, slim rocket: past Mach 0.8 with one Cd, a note (the rule book's only one)
+    motor = MotorRecord("K", [0.0, 2.0], [900.0, 900.0], total_mass_kg=1.2, propellant_mass_kg=0.6, delays_s=())
+    frame = Airframe("fast", 2.0, 0.05, 0.45, launch=Launch(rail_length_m=3.0))
+    res = simulate(frame, [motor], UNIFORM, descent=False)
+    assert res.max_mach[0] > 0.8
+    findings = evaluate_rules(flown_rule_inputs(frame, res))[0]
+    assert ("constant-cd-past-mach", "note") in [(f.code, f.severity) for f in findings]
+    tabled = Airframe("fast", 2.0, 0.05, None, drag_table=((0.0, 0.45), (2.0, 0.45)),
+                      launch=Launch(rail_length_m=3.0))
+    res = simulate(tabled, [motor], UNIFORM, descent=False)
+    assert "constant-cd-past-mach" not in [f.code for f in evaluate_rules(flown_rule_inputs(tabled, res))[0]]

@@ -34,9 +34,9 @@ def test_the_chosen_delay_is_the_listed_one_closest_to_the_closed_form_optimum()
     candidate = rank(_frame(), _motor(), MatchSettings(), flight_settings=FLAT).candidates[0]
     assert candidate["optimal_delay_s"] == pytest.approx((30.0 / 0.5 - G0) * 1.2 / G0, rel=1e-7)
     assert candidate["chosen_delay_s"] == 7.0
-    assert "delay" not in candidate["reason_codes"]
+    assert "ejection-far-from-apogee" not in candidate["reason_codes"]
     far = rank(_frame(), _motor((2.0, 12.0)), MatchSettings(), flight_settings=FLAT).candidates[0]
-    assert far["chosen_delay_s"] == 2.0 and "delay" in far["reason_codes"]  # 4.1 s early, 5.9 s late
+    assert far["chosen_delay_s"] == 2.0 and "ejection-far-from-apogee" in far["reason_codes"]  # 4.1 s early, 5.9 s late
 
 
 def test_landing_speed_is_the_terminal_descent_rate_at_sea_level() -> None:
@@ -50,7 +50,7 @@ def test_landing_speed_is_the_terminal_descent_rate_at_sea_level() -> None:
     expected = math.sqrt(2 * mass * G0 / (RHO_SEA_LEVEL * drag_area))
     assert candidate["landing_speed_m_s"] == pytest.approx(expected, rel=1e-5)
     slow = LaunchRules(max_landing_speed_m_s=expected * 0.99)
-    assert "descent" in rank(frame, _motor(), MatchSettings(rules=slow), flight_settings=FLAT).candidates[0]["reason_codes"]
+    assert "descent-fast" in rank(frame, _motor(), MatchSettings(rules=slow), flight_settings=FLAT).candidates[0]["reason_codes"]
 
 
 def test_a_motor_exactly_at_each_limit_passes() -> None:
@@ -62,9 +62,9 @@ def test_a_motor_exactly_at_each_limit_passes() -> None:
     at_limit = LaunchRules(min_rail_exit_speed_m_s=exit_speed, min_liftoff_thrust_to_weight=ttw)
     assert rank(frame, _motor(), MatchSettings(rules=at_limit), flight_settings=FLAT).candidates[0]["passes"]
     past = LaunchRules(min_rail_exit_speed_m_s=exit_speed * (1 + 1e-9))
-    assert rank(frame, _motor(), MatchSettings(rules=past), flight_settings=FLAT).candidates[0]["reason_codes"] == ["rail"]
+    assert rank(frame, _motor(), MatchSettings(rules=past), flight_settings=FLAT).candidates[0]["reason_codes"] == ["rail-exit-slow"]
     past_ttw = LaunchRules(min_rail_exit_speed_m_s=exit_speed, min_liftoff_thrust_to_weight=ttw * (1 + 1e-9))
-    assert rank(frame, _motor(), MatchSettings(rules=past_ttw), flight_settings=FLAT).candidates[0]["reason_codes"] == ["T/W"]
+    assert rank(frame, _motor(), MatchSettings(rules=past_ttw), flight_settings=FLAT).candidates[0]["reason_codes"] == ["thrust-to-weight-low"]
 
 
 def test_ballast_for_a_target_in_vacuum_matches_the_closed_form() -> None:

@@ -13,6 +13,7 @@ from motorlib.files.airframe_toml import load_airframe
 from motorlib.catalog import Catalog, CatalogFilter
 from motorlib.cli.main import main
 from motorlib.flight import simulate
+from motorlib.flight.rules import LaunchRules
 from motorlib.matching import MatchSettings, rank
 from motorlib.flight.rules import LaunchRules
 
@@ -82,7 +83,7 @@ def test_just_below_the_rail_exit_rule_fails_with_that_reason(sample_catalog: Ca
     strict = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3,
                    rules=LaunchRules(min_rail_exit_speed_m_s=speed + 0.01))
     failed = next(c for c in strict.candidates if c["designation"] == "F29-8")
-    assert not failed["passes"] and failed["reason_codes"] == ["rail"]
+    assert not failed["passes"] and failed["reason_codes"] == ["rail-exit-slow"]
     assert failed["reasons"][0].startswith("rail exit too slow")
     lenient = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3,
                     rules=LaunchRules(min_rail_exit_speed_m_s=speed - 0.01))
@@ -94,7 +95,7 @@ def test_over_the_ceiling_fails_even_when_closest_to_the_target(sample_catalog: 
     f51 = next(c for c in result.candidates if c["designation"] == "F51-10")  # apogee about 706 m
     closest = min((c for c in result.candidates if c["apogee_m"]), key=lambda c: abs(c["apogee_m"] - 690.0))
     assert closest is f51
-    assert not f51["passes"] and "ceiling" in f51["reason_codes"]
+    assert not f51["passes"] and "over-ceiling" in f51["reason_codes"]
     safe = [c for c in result.candidates if not c["reasons"]]  # on target or not, every safe motor ranks higher
     assert safe and result.candidates.index(f51) > max(result.candidates.index(c) for c in safe)
 
@@ -127,13 +128,13 @@ def test_ballast_brings_apogee_to_the_target(sample_catalog: Catalog) -> None:
 
 
 def test_delay_and_ejection_reasons(sample_catalog: Catalog) -> None:
-    result = _rank(sample_catalog, target_m=400.0, delay_slack_s=0.05)
+    result = _rank(sample_catalog, target_m=400.0, rules=LaunchRules(max_delay_error_s=0.05))
     codes = {code for c in result.candidates for code in c["reason_codes"]}
-    assert "delay" in codes
+    assert "ejection-far-from-apogee" in codes
     for c in result.candidates:
         if c["chosen_delay_s"] is not None and c["optimal_delay_s"] is not None:
-            assert ("delay" in c["reason_codes"]) == (abs(c["chosen_delay_s"] - c["optimal_delay_s"]) > 0.05) or \
-                c["reason_codes"][:1] in (["no liftoff"], ["stuck on rail"], ["not flown"])
+            assert ("ejection-far-from-apogee" in c["reason_codes"]) == (abs(c["chosen_delay_s"] - c["optimal_delay_s"]) > 0.05) or \
+                c["reason_codes"][:1] in (["no-liftoff"], ["stuck-on-rail"], ["not-flown"])
 
 
 def test_settings_are_validated() -> None:
@@ -252,8 +253,8 @@ def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> 
 
     result = rank(frame, candidate_rows(records), pack_for, MatchSettings(target_m=400.0, allow_smaller_motors=True))
     reasons = {c["motor_id"]: dict(zip(c["reason_codes"], c["reasons"])) for c in result.candidates}
-    assert "plugged" in reasons["record-0"]["no charge"]
-    assert "delays unknown" in reasons["record-1"] and "plugged" not in reasons["record-1"]["delays unknown"]
+    assert "plugged" in reasons["record-0"]["no-ejection-charge"]
+    assert "delays-unknown" in reasons["record-1"] and "plugged" not in reasons["record-1"]["delays-unknown"]
 
 
 def test_a_target_above_the_ceiling_is_refused() -> None:
@@ -279,7 +280,7 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
     result = rank(frame, [motor], settings=MatchSettings())
     c = result.candidates[0]
     assert c["max_deployment_speed_m_s"] > 80.0
-    assert "deploy" in c["reason_codes"] and not c["passes"]
+    assert "deployment-fast" in c["reason_codes"] and not c["passes"]
     assert c["max_deployment_speed_m_s"] == pytest.approx(
         simulate(frame, [motor]).deployment_speed_m_s[0, 0], rel=1e-9)  # the flight's own opening speed
     # a drogue at apogee slows the fall: the main then opens at the drogue's terminal speed, and passes
@@ -287,7 +288,7 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
     dual = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0),
                     recovery_sequence=(drogue, main))
     c = rank(dual, [motor], settings=MatchSettings()).candidates[0]
-    assert "deploy" not in c["reason_codes"] and c["max_deployment_speed_m_s"] < 45.0
+    assert "deployment-fast" not in c["reason_codes"] and c["max_deployment_speed_m_s"] < 45.0
     # a sequence is flown to the ground: match's opening speeds are the flight's own (fly shows the same)
     assert c["max_deployment_speed_m_s"] == pytest.approx(float(np.nanmax(simulate(dual, [motor]).deployment_speed_m_s[0])),
                                                          rel=1e-9)
@@ -300,9 +301,9 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
     distance = float(np.hypot(flown.landing_east_m[0], flown.landing_north_m[0]))
     tight = MatchSettings(rules=LaunchRules(field_radius_m=0.5 * distance))
     c = rank(windy, [motor], settings=tight).candidates[0]
-    assert c["landing_distance_m"] == pytest.approx(distance, rel=1e-9) and "field" in c["reason_codes"]
+    assert c["landing_distance_m"] == pytest.approx(distance, rel=1e-9) and "lands-outside-field" in c["reason_codes"]
     roomy = rank(windy, [motor], settings=MatchSettings(rules=LaunchRules(field_radius_m=2.0 * distance + 1.0)))
-    assert "field" not in roomy.candidates[0]["reason_codes"]
+    assert "lands-outside-field" not in roomy.candidates[0]["reason_codes"]
 
 
 def test_match_recovery_options_fail_motors_with_the_reason() -> None:
@@ -315,9 +316,9 @@ def test_match_recovery_options_fail_motors_with_the_reason() -> None:
                                             "--wind", "9m/s"]).output)
     for c in tight["candidates"]:
         if c["landing_distance_m"] is not None and c["landing_distance_m"] > 1.0:
-            assert "field" in c["reason_codes"] and not c["passes"]
+            assert "lands-outside-field" in c["reason_codes"] and not c["passes"]
         if c["max_deployment_speed_m_s"] is not None and c["max_deployment_speed_m_s"] > 1.0:
-            assert "deploy" in c["reason_codes"]
+            assert "deployment-fast" in c["reason_codes"]
     assert tight["conditions"]["field_radius_m"] == 1.0
     bad = runner.invoke(main, [*args, "--max-deploy-speed", "kite=3m/s"])
     assert bad.exit_code == 2 and "KIND=SPEED" in bad.output
@@ -338,8 +339,8 @@ def test_match_applies_the_rail_exit_wind_rule_that_fly_warns_about(tmp_path) ->
     for c in data["candidates"]:
         speed = c["rail_exit_speed_m_s"]
         if speed is not None and 15.0 <= speed < 20.0:
-            assert "rail" in c["reason_codes"] and c["verdict"] != "pass", c["designation"]
+            assert "rail-exit-slow" in c["reason_codes"] and c["verdict"] != "pass", c["designation"]
     e25 = next(c for c in data["candidates"] if c["designation"] == "E25-7")
-    assert e25["rail_exit_speed_m_s"] < 20.0 and "rail" in e25["reason_codes"]
+    assert e25["rail_exit_speed_m_s"] < 20.0 and "rail-exit-slow" in e25["reason_codes"]
     fly = runner.invoke(main, ["fly", str(windy), "--motor", "E25-7", "--json"]).output
-    assert "rail-exit-slow-for-wind" in [w["code"] for w in json.loads(fly)["warnings"]]
+    assert "rail-exit-slow" in [w["code"] for w in json.loads(fly)["warnings"]]

@@ -1,5 +1,5 @@
 """The matcher and the stability margin (issue 11): motors that leave the rocket under the margin fail with a
-"stability" reason; the nose weight that restores it is flown again and every rule checked again.
+"stability-low" reason; the nose weight that restores it is flown again and every rule checked again.
 
 The margins are checked against a hand computation written here: Barrowman's centre of pressure (nose CN_α = 2
 at L − V/A, the tangent ogive's volume by scipy's quad; trapezoidal fins with the interference factor
@@ -29,6 +29,16 @@ from ..conftest import SAMPLE_DIR
 D_M, NOSE_M, BODY_M, CG_M, MASS_KG = 0.0416, 0.16, 0.74, 0.58, 0.31
 ROOT_M, TIP_M, SPAN_M, SWEEP_M = 0.09, 0.04, 0.05, 0.06
 NOSE_WEIGHT_AT_M = NOSE_M / 2  # the documented default position: half the nose length
+
+STABILITY_CODES = ("stability-low", "unstable", "stability-unknown")  # the codes fly's stability warnings use too
+
+
+def _fails_stability(codes: list[str]) -> bool:
+    return any(code in STABILITY_CODES for code in codes)
+
+
+def _stability_index(codes: list[str]) -> int:
+    return next(k for k, code in enumerate(codes) if code in STABILITY_CODES)
 
 
 def _frame(**extra) -> Airframe:
@@ -86,10 +96,10 @@ def test_a_heavy_motor_behind_the_cp_fails_with_the_stability_reason() -> None:
     assert light["stability_margin_cal"] == pytest.approx(min(_margin_by_hand(LIGHT, 0), _margin_by_hand(LIGHT, 1)),
                                                           abs=1e-9)
     assert heavy["stability_margin_cal"] < 1.0 <= light["stability_margin_cal"]
-    assert not heavy["passes"] and "stability" in heavy["reason_codes"]
-    text = heavy["reasons"][heavy["reason_codes"].index("stability")]
+    assert not heavy["passes"] and _fails_stability(heavy["reason_codes"])
+    text = heavy["reasons"][_stability_index(heavy["reason_codes"])]
     assert "stability margin" in text and "nose weight restores it" in text
-    assert "stability" not in light["reason_codes"] and light["nose_weight_for_stability_kg"] is None
+    assert not _fails_stability(light["reason_codes"]) and light["nose_weight_for_stability_kg"] is None
 
 
 def test_the_solved_nose_weight_restores_the_margin_when_flown_again() -> None:
@@ -104,7 +114,7 @@ def test_the_solved_nose_weight_restores_the_margin_when_flown_again() -> None:
     assert heavy["nose_weight_stability_margin_cal"] >= 1.0
     again = simulate(frame, [HEAVY], added_mass_kg=weight, descent=False)
     assert heavy["nose_weight_apogee_m"] == pytest.approx(float(again.apogee_m[0]), rel=1e-9)
-    assert "stability" not in heavy["nose_weight_reason_codes"]
+    assert not _fails_stability(heavy["nose_weight_reason_codes"])
     assert not heavy["passes"]  # the weight is advice: the motor as flown keeps its failed check
 
 
@@ -112,13 +122,13 @@ def test_every_rule_is_checked_again_with_the_nose_weight() -> None:
     # a heavy, weak motor: its thrust-to-weight passes bare and fails once the nose weight is added
     weak = _motor("WEAK", 0.45, 0.20, 0.20, 38.5)  # T/W 5.17 bare, 4.88 with 44 g more
     c = _candidate(rank(_frame(), [weak], settings=MatchSettings(min_stability_cal=1.0)), "WEAK")
-    assert "T/W" not in c["reason_codes"] and "stability" in c["reason_codes"]
-    assert c["nose_weight_for_stability_kg"] > 0 and "T/W" in c["nose_weight_reason_codes"]
+    assert "thrust-to-weight-low" not in c["reason_codes"] and _fails_stability(c["reason_codes"])
+    assert c["nose_weight_for_stability_kg"] > 0 and "thrust-to-weight-low" in c["nose_weight_reason_codes"]
 
 
 def test_the_required_margin_is_a_setting() -> None:
     light = _candidate(rank(_frame(), [LIGHT], settings=MatchSettings(min_stability_cal=3.5)), "LIGHT")
-    assert light["stability_margin_cal"] < 3.5 and "stability" in light["reason_codes"]
+    assert light["stability_margin_cal"] < 3.5 and _fails_stability(light["reason_codes"])
     with pytest.raises(ValueError, match="min_stability_cal"):
         MatchSettings(min_stability_cal=-1.0)
 
@@ -126,11 +136,11 @@ def test_the_required_margin_is_a_setting() -> None:
 def test_unknown_length_fails_and_no_geometry_checks_nothing() -> None:
     unknown = _motor("NOLEN", 0.06, 0.03, None, 45.0)
     c = _candidate(rank(_frame(), [unknown]), "NOLEN")
-    assert c["stability_margin_cal"] is None and "stability" in c["reason_codes"]
-    assert "stability unknown" in c["reasons"][c["reason_codes"].index("stability")]
+    assert c["stability_margin_cal"] is None and _fails_stability(c["reason_codes"])
+    assert "stability unknown" in c["reasons"][_stability_index(c["reason_codes"])]
     plain = Airframe("plain", MASS_KG, D_M, drag_coefficient=0.5, mount_diameter_m=0.029)
     result = rank(plain, [HEAVY])
-    assert result.candidates[0]["stability_margin_cal"] is None and "stability" not in result.candidates[0]["reason_codes"]
+    assert result.candidates[0]["stability_margin_cal"] is None and not _fails_stability(result.candidates[0]["reason_codes"])
     assert result.conditions["min_stability_cal"] is None
 
 
@@ -138,7 +148,7 @@ def test_no_nose_weight_can_help_when_the_cp_is_too_far_forward() -> None:
     # a required margin that puts the CG ahead of the nose weight's own position: out of reach
     far = (_cp_by_hand() - NOSE_WEIGHT_AT_M) / D_M + 0.5
     c = _candidate(rank(_frame(), [LIGHT], settings=MatchSettings(min_stability_cal=far)), "LIGHT")
-    assert "no nose weight can restore it" in c["reasons"][c["reason_codes"].index("stability")]
+    assert "no nose weight can restore it" in c["reasons"][_stability_index(c["reason_codes"])]
     assert c["nose_weight_for_stability_kg"] is None
 
 
@@ -152,7 +162,7 @@ def test_match_json_carries_the_keys_and_the_option() -> None:
     flown = [c for c in data["candidates"] if c["apogee_m"] is not None]
     assert all("stability_margin_cal" in c and "nose_weight_for_stability_kg" in c for c in data["candidates"])
     low = [c for c in flown if c["stability_margin_cal"] is not None and c["stability_margin_cal"] < 1.6]
-    assert low and all("stability" in c["reason_codes"] and c["nose_weight_for_stability_kg"] > 0 for c in low)
+    assert low and all(_fails_stability(c["reason_codes"]) and c["nose_weight_for_stability_kg"] > 0 for c in low)
     text = CliRunner(env={"COLUMNS": "100"}).invoke(main, ["match", str(airframe), "--catalog", str(SAMPLE_DIR),
                                                            "--target", "400", "--min-stability", "1.6"]).output
     assert "of nose weight: stability" in text and "stability >= 1.6 cal" in text

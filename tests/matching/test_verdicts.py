@@ -54,16 +54,16 @@ def test_a_motor_over_the_ceiling_gets_ballast_and_is_rechecked(catalog: Catalog
     frame = load_airframe(QUIBBLE)
     result = _rank(catalog, target_m=400.0, ceiling_m=600.0, allow_smaller_motors=True, ballast=True)
     f51 = _by_name(result, "F51-10")
-    assert f51["apogee_m"] > 600.0 and "ceiling" in f51["reason_codes"]
+    assert f51["apogee_m"] > 600.0 and "over-ceiling" in f51["reason_codes"]
     assert f51["ballast_kg"] is not None and f51["ballast_kg"] > 0
     alone = simulate(frame, [catalog.get(f51["motor_id"])], added_mass_kg=f51["ballast_kg"], descent=False)
     assert alone.apogee_m[0] == pytest.approx(400.0, rel=1e-3)  # the single flight with the mass, to 0.1 %
-    assert "ceiling" not in f51["ballast_reason_codes"]
+    assert "over-ceiling" not in f51["ballast_reason_codes"]
     # The descent rule is re-checked with the added mass (closed form above).
     burnt_kg = float(alone.liftoff_mass_kg[0]) - catalog.get(f51["motor_id"]).propellant_mass_kg
     landing = _landing_speed_m_s(frame, burnt_kg)
     assert f51["ballast_landing_speed_m_s"] == pytest.approx(landing, rel=2e-3)
-    assert ("descent" in f51["ballast_reason_codes"]) == (landing > 6.5)
+    assert ("descent-fast" in f51["ballast_reason_codes"]) == (landing > 6.5)
     assert f51["ballast_passes"] == (not f51["ballast_reason_codes"])
     assert f51["verdict"] == ("pass with ballast" if f51["ballast_passes"] else "fail")
 
@@ -73,7 +73,7 @@ def test_a_too_strong_motor_that_passes_with_ballast_says_so(catalog: Catalog) -
     result = _rank(catalog, target_m=500.0, ceiling_m=700.0, allow_smaller_motors=True, ballast=True,
                    rules=replace(MatchSettings().rules, max_landing_speed_m_s=8.0))
     f51 = _by_name(result, "F51-10")  # about 706 m without ballast: over the ceiling
-    assert "ceiling" in f51["reason_codes"] and f51["reasons"]  # the failure without ballast stays listed
+    assert "over-ceiling" in f51["reason_codes"] and f51["reasons"]  # the failure without ballast stays listed
     assert f51["ballast_passes"] is True and f51["verdict"] == "pass with ballast"
     assert f51 in result.with_ballast and f51 not in result.passing
     order = [c["verdict"] for c in result.candidates]
@@ -130,7 +130,7 @@ def test_stopped_flights_and_misfits_have_their_own_words(catalog: Catalog) -> N
     assert {"stuck on rail", "no fit"} <= words
     heavy = replace(load_airframe(QUIBBLE), mass_kg=5.0)  # a C6's ~15 N peak never lifts 5 kg
     c6 = _by_name(_rank(catalog, heavy, allow_smaller_motors=True), "C6-3,5,7")
-    assert c6["verdict"] == "no liftoff" and c6["reason_codes"] == ["no liftoff"]
+    assert c6["verdict"] == "no liftoff" and c6["reason_codes"] == ["no-liftoff"]
     for c in result.candidates:
         assert set(c["verdict"].split()) <= set(" ".join(VERDICTS).split())
         assert "fit" not in c["reason_codes"] and "flight" not in c["reason_codes"]
@@ -140,7 +140,7 @@ def test_stopped_flights_and_misfits_have_their_own_words(catalog: Catalog) -> N
 
 def test_class_limit_has_its_own_word(catalog: Catalog) -> None:
     g59 = _by_name(_rank(catalog, target_m=400.0, max_class="F"), "G59-10")
-    assert g59["verdict"] == "above class" and g59["reason_codes"] == ["above class"]
+    assert g59["verdict"] == "above class" and g59["reason_codes"] == ["above-class"]
 
 
 def test_show_rejected_never_labels_a_misfit_fit(catalog: Catalog) -> None:

@@ -6,7 +6,9 @@ from typing import Any
 
 import pytest
 
-from motorlib.flight.rules import LaunchRules, flight_warnings
+from motorlib.flight.results import OK, STUCK_ON_RAIL
+from motorlib.flight.rulebook import RuleInputs, evaluate_rules
+from motorlib.flight.rules import LaunchRules
 from motorlib.present.flightcard import flight_card, quantity
 
 
@@ -24,8 +26,27 @@ def _summary(**changes: Any) -> dict[str, Any]:
     return {**base, **changes}
 
 
+def _warnings(s: dict[str, Any], wind: float) -> list[tuple[str, str]]:
+    """The rule book's warnings for a summary's figures (one flight; the charge opens the device, if any)."""
+    def num(key: str) -> float:
+        return float("nan") if s.get(key) is None else float(s[key])
+
+    recovery = bool(s.get("has_recovery"))
+    inputs = RuleInputs(
+        status=OK if s["status"] == "ok" else STUCK_ON_RAIL, rail_exit_speed_m_s=num("rail_exit_speed_m_s"),
+        wind_speed_m_s=wind, liftoff_thrust_to_weight=num("liftoff_thrust_to_weight"), apogee_m=num("apogee_m"),
+        max_mach=num("max_mach"), burnout_time_s=num("burnout_time_s"), optimal_delay_s=num("optimal_delay_s"),
+        chosen_delay_s=num("chosen_delay_s"), ejection_speed_m_s=num("chosen_ejection_speed_m_s"),
+        uses_charge=recovery, devices_listed=recovery, delays_known=True, constant_drag=False,
+        landing_descent_rate_m_s=num("landing_descent_rate_m_s"), landing_distance_m=float("nan"),
+        deployment_time_s=[[num("deploy_time_s")]] if recovery else [],
+        deployment_speed_m_s=[[num("chosen_ejection_speed_m_s")]] if recovery else [],
+        opening_load_n=[[float("nan")]] if recovery else [], device_kinds=("parachute",) if recovery else ())
+    return [(f.code, f.message) for f in evaluate_rules(inputs)[0]]
+
+
 def _card(summary: dict[str, Any], wind: float = 3.0):
-    return flight_card(summary, flight_warnings(summary, wind_speed_m_s=wind), title="t", wind_speed_m_s=wind)
+    return flight_card(summary, _warnings(summary, wind), title="t", wind_speed_m_s=wind)
 
 
 def test_phases_come_in_flight_order_and_a_sound_flight_is_all_ticks() -> None:

@@ -76,7 +76,7 @@ def _fly_3d_report(folder: Path) -> Path:
     from motorlib.files.airframe_toml import load_airframe
     from motorlib.files.motor_xml import read_record
     from motorlib.flight.integrate import simulate
-    from motorlib.flight.rules import flight_warnings
+    from motorlib.flight.rulebook import evaluate_rules, flown_rule_inputs
     from motorlib.present.report import write_report
     from motorlib.present.report_content import fly_report
 
@@ -92,7 +92,7 @@ def _fly_3d_report(folder: Path) -> Path:
     ]
     summary["landing"] = {"time_s": 70.3, "speed_m_s": 5.1, "east_m": 300.0, "north_m": -120.0,
                           "distance_m": 323.1, "bearing_deg": 112.0}
-    warnings = flight_warnings(summary, wind_speed_m_s=frame.launch.wind_speed_m_s)
+    warnings = [(f.code, f.message) for f in evaluate_rules(flown_rule_inputs(frame, results))[0]]
     report = fly_report(frame, motor, summary, warnings, results.trajectories[0], inputs=[str(AIRFRAME)],
                         command="test", made_at="2026-12-02 00:00 UTC")
     return write_report(report, folder / "fly-3d.html")

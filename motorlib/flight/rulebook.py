@@ -1,0 +1,309 @@
+"""One evaluation of the launch rules for many flights at once: ``fly`` (one flight) and ``match`` (every motor).
+
+A flight's figures reach the rules as a :class:`RuleInputs` record (arrays of shape
+``(n_flights,)``); :func:`broken_rules` compares every figure with its threshold in
+:class:`~motorlib.flight.rules.LaunchRules` for all flights at once, and
+:func:`evaluate_rules` turns each broken rule into a
+:class:`~motorlib.motor.checks.Finding` (severity ``warning``; ``note`` for the codes in
+:data:`~motorlib.flight.rules.NOTE_CODES`) with an SI message. The codes are listed in
+:mod:`motorlib.flight.rules`.
+
+Vectorisation contract: k flights evaluated together give the findings of k evaluations of one
+flight each (``inputs.take(i)``). A figure that is NaN (not known, or the event never happened)
+breaks no threshold rule: comparisons with NaN are false; the rules that are about a missing
+event (``no-ejection-charge``, ``lands-before-ejection``, ``no-deployment``) say so.
+
+numpy only.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, fields
+from typing import TYPE_CHECKING, Callable
+
+import numpy as np
+
+from ..motor.checks import Finding
+from .results import MESSAGES, NO_LIFTOFF, OK, STUCK_ON_RAIL
+from .rules import NOTE_CODES, LaunchRules
+
+if TYPE_CHECKING:
+    from .airframe import Airframe
+    from .results import FlightResults
+
+__all__ = ["RuleInputs", "broken_rules", "evaluate_rules", "flown_rule_inputs"]
+
+# Failed flight status -> its code; any other failed status is "not-flown".
+_STATUS_CODES = {NO_LIFTOFF: "no-liftoff", STUCK_ON_RAIL: "stuck-on-rail"}
+
+
+@dataclass(frozen=True, eq=False)
+class RuleInputs:
+    """What the rules read of each flight; arrays have shape (n_flights,) unless stated; SI; NaN: not known.
+
+    Attributes
+    ----------
+    status : ndarray of int
+        Flight status (:data:`~motorlib.flight.results.OK` or a failure code).
+    rail_exit_speed_m_s, wind_speed_m_s : ndarray
+        Speed at rail exit, and the surface wind (at 10 m) it is compared with [m/s].
+    liftoff_thrust_to_weight, apogee_m, max_mach, burnout_time_s, optimal_delay_s : ndarray
+        As in :class:`~motorlib.flight.results.FlightResults` (apogee above the pad [m], times from ignition [s]).
+    chosen_delay_s, ejection_speed_m_s : ndarray
+        The delay the charge fires at [s] (NaN: none, the motor is plugged or its delays are unknown) and the
+        air-relative speed then [m/s] (NaN: the rocket lands first).
+    uses_charge, devices_listed, delays_known, constant_drag : ndarray of bool
+        The motor's charge deploys recovery (or is all there is); the airframe lists recovery devices; the
+        motor record states its delays; the airframe flies one drag coefficient at every Mach number.
+    landing_descent_rate_m_s, landing_distance_m : ndarray
+        Descent rate under the device(s) at landing [m/s]; landing distance from the pad [m].
+    deployment_time_s, deployment_speed_m_s, opening_load_n : ndarray, shape (n_flights, n_devices)
+        Each device's opening: time from ignition [s], air-relative speed [m/s], load estimate [N]
+        (NaN: it never opens, or unknown).
+    device_kinds : tuple of str, length n_devices
+        Each device's kind (``parachute``, ``drogue``, ...), which sets its deployment-speed limit.
+    """
+
+    status: np.ndarray
+    rail_exit_speed_m_s: np.ndarray
+    wind_speed_m_s: np.ndarray
+    liftoff_thrust_to_weight: np.ndarray
+    apogee_m: np.ndarray
+    max_mach: np.ndarray
+    burnout_time_s: np.ndarray
+    optimal_delay_s: np.ndarray
+    chosen_delay_s: np.ndarray
+    ejection_speed_m_s: np.ndarray
+    uses_charge: np.ndarray
+    devices_listed: np.ndarray
+    delays_known: np.ndarray
+    constant_drag: np.ndarray
+    landing_descent_rate_m_s: np.ndarray
+    landing_distance_m: np.ndarray
+    deployment_time_s: np.ndarray
+    deployment_speed_m_s: np.ndarray
+    opening_load_n: np.ndarray
+    device_kinds: tuple[str, ...] = ()
+
+    def __post_init__(self) -> None:
+        n = np.size(self.status)
+        kinds = {"status": np.int64, "uses_charge": bool, "devices_listed": bool, "delays_known": bool,
+                 "constant_drag": bool}
+        for f in fields(self):
+            if f.name == "device_kinds":
+                continue
+            values = np.array(getattr(self, f.name), dtype=kinds.get(f.name, float))  # our own copy, frozen below
+            if f.name.startswith(("deployment_", "opening_")):
+                values = values.reshape(n, -1) if values.size else np.full((n, len(self.device_kinds)), np.nan)
+                if values.shape[1] < len(self.device_kinds):  # columns for devices that never open
+                    values = np.hstack([values, np.full((n, len(self.device_kinds) - values.shape[1]), np.nan)])
+            else:
+                values = np.broadcast_to(values, (n,)).copy()
+            values.flags.writeable = False
+            object.__setattr__(self, f.name, values)
+        object.__setattr__(self, "device_kinds", tuple(str(k) for k in self.device_kinds))
+
+    @property
+    def n_flights(self) -> int:
+        return int(self.status.size)
+
+    def take(self, index: np.ndarray | list[int] | int) -> RuleInputs:
+        """The flights at ``index`` (an int gives one flight), in that order."""
+        rows = np.atleast_1d(np.asarray(index, dtype=np.int64))
+        return RuleInputs(**{f.name: getattr(self, f.name) if f.name == "device_kinds" else getattr(self, f.name)[rows]
+                             for f in fields(self)})
+
+
+def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s: np.ndarray | None = None,
+                      ejection_speed_m_s: np.ndarray | None = None, landing_descent_rate_m_s: np.ndarray | None = None,
+                      landing_distance_m: np.ndarray | None = None, deployment_speed_m_s: np.ndarray | None = None,
+                      delays_known: np.ndarray | bool = True) -> RuleInputs:
+    """The rule inputs of ``frame`` flown as ``results``: the flown figures unless an estimate is given.
+
+    Parameters
+    ----------
+    frame : Airframe
+    results : FlightResults
+    chosen_delay_s : ndarray, optional
+        The delay each charge fires at [s]; default :meth:`FlightResults.chosen_delay_s` (the delay deployed,
+        else the listed one closest to the optimal delay).
+    ejection_speed_m_s : ndarray, optional
+        Speed at the chosen delay [m/s]; default the flown one at that delay.
+    landing_descent_rate_m_s, landing_distance_m, deployment_speed_m_s : ndarray, optional
+        Estimates where the descent was not flown (``match`` without a field radius); default the flown ones:
+        the descent rate at landing, the distance of the landing point, each device's opening speed.
+    delays_known : bool or ndarray of bool
+        Whether each motor record states its delays.
+    """
+    n = results.n_flights
+    devices = frame.recovery_devices
+    if chosen_delay_s is None:
+        chosen_delay_s = np.array([results.chosen_delay_s(i) for i in range(n)])
+    if ejection_speed_m_s is None:
+        hit = results.ejection_delay_s == np.asarray(chosen_delay_s, dtype=float)[:, None]
+        column = np.argmax(hit, axis=1)
+        ejection_speed_m_s = np.where(hit.any(axis=1), results.ejection_speed_m_s[np.arange(n), column], np.nan)
+    if landing_distance_m is None:
+        landing_distance_m = np.hypot(results.landing_east_m, results.landing_north_m)
+    k = len(devices)
+    return RuleInputs(
+        status=results.status, rail_exit_speed_m_s=results.rail_exit_speed_m_s,
+        wind_speed_m_s=np.full(n, frame.launch.surface_wind_m_s),
+        liftoff_thrust_to_weight=results.liftoff_thrust_to_weight, apogee_m=results.apogee_m, max_mach=results.max_mach,
+        burnout_time_s=results.burnout_time_s, optimal_delay_s=results.optimal_delay_s, chosen_delay_s=chosen_delay_s,
+        ejection_speed_m_s=ejection_speed_m_s,
+        uses_charge=np.full(n, frame.recovery is None or frame.recovery.deploy == "ejection"),
+        devices_listed=np.full(n, bool(devices)), delays_known=delays_known,
+        constant_drag=np.full(n, not frame.drag_table),
+        landing_descent_rate_m_s=(results.landing_descent_rate_m_s if landing_descent_rate_m_s is None
+                                  else landing_descent_rate_m_s),
+        landing_distance_m=landing_distance_m,
+        deployment_time_s=results.deployment_time_s[:, :k],
+        deployment_speed_m_s=(results.deployment_speed_m_s[:, :k] if deployment_speed_m_s is None
+                              else np.asarray(deployment_speed_m_s, dtype=float)[:, :k]),
+        opening_load_n=results.opening_load_n[:, :k], device_kinds=tuple(d.device for d in devices))
+
+
+def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None
+                 ) -> dict[str, np.ndarray]:
+    """Which flights break which rule: code -> bool array of shape (n_flights,), or (n_flights, n_devices) for
+    ``deployment-fast`` and ``deployment-while-burning``; every rule evaluated for all flights at once.
+
+    A flight that failed (status) or ended before apogee breaks only that: its other figures are not judged.
+    ``ceiling_m`` [m above the pad] adds the ceiling rule.
+    """
+    r = rules or LaunchRules()
+    x = inputs
+    failed = x.status != OK
+    incomplete = ~failed & ~(np.isfinite(x.rail_exit_speed_m_s) & np.isfinite(x.apogee_m))
+    judged = ~failed & ~incomplete
+
+    def past(values: np.ndarray, limit: float) -> np.ndarray:  # above the limit; NaN is not
+        return judged & (values > limit)
+
+    needed = np.maximum(r.min_rail_exit_speed_m_s, r.rail_exit_wind_ratio * np.where(x.wind_speed_m_s > 0.0,
+                                                                                      x.wind_speed_m_s, 0.0))
+    charge = judged & x.uses_charge
+    has_delay = np.isfinite(x.chosen_delay_s)
+    no_delay = charge & ~has_delay
+    lands_first = charge & has_delay & ~np.isfinite(x.ejection_speed_m_s)
+    limits = np.array([r.deployment_limit_m_s(kind) for kind in x.device_kinds])
+    opened = np.isfinite(x.deployment_time_s).any(axis=1) if x.device_kinds else np.zeros(x.n_flights, bool)
+    out = {
+        "not-flown": failed,
+        "flight-incomplete": incomplete,
+        "rail-exit-slow": judged & (x.rail_exit_speed_m_s < needed),
+        "thrust-to-weight-low": judged & (x.liftoff_thrust_to_weight < r.min_liftoff_thrust_to_weight),
+        "over-ceiling": past(x.apogee_m, math.inf if ceiling_m is None else ceiling_m),
+        "delays-unknown": no_delay & ~x.delays_known,
+        "no-ejection-charge": no_delay & x.delays_known,
+        "ejection-far-from-apogee": charge & (np.abs(x.chosen_delay_s - x.optimal_delay_s) > r.max_delay_error_s),
+        # a device the charge opens is checked as deployment-fast; a charge that opens nothing listed is checked here
+        "ejection-fast": charge & ~x.devices_listed & (x.ejection_speed_m_s > r.max_ejection_speed_m_s),
+        "lands-before-ejection": lands_first,
+        # under a device: a rocket that opens none falls ballistically, and the rules above say why
+        "descent-fast": past(x.landing_descent_rate_m_s, r.max_landing_speed_m_s) & opened,
+        "constant-cd-past-mach": judged & x.constant_drag & (x.max_mach > r.max_constant_cd_mach),
+        "deployment-fast": judged[:, None] & (x.deployment_speed_m_s > limits),
+        "deployment-while-burning": judged[:, None] & (x.deployment_time_s < x.burnout_time_s[:, None]),
+        "lands-outside-field": past(x.landing_distance_m, math.inf if r.field_radius_m is None else r.field_radius_m),
+        # nothing opens, and no rule above says why
+        "no-deployment": judged & x.devices_listed & ~opened & ~no_delay & ~lands_first,
+    }
+    return out
+
+
+def evaluate_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None
+                   ) -> list[list[Finding]]:
+    """Every rule each flight breaks, as findings (code and SI message) in the order of the rule book.
+
+    Parameters
+    ----------
+    inputs : RuleInputs
+        The figures of ``n_flights`` flights.
+    rules : LaunchRules, optional
+        The thresholds (default :class:`LaunchRules`).
+    ceiling_m : float, optional
+        The field's altitude limit [m above the pad]; None: no ceiling rule.
+
+    Returns
+    -------
+    list of list of Finding
+        One list per flight, empty for a flight that breaks no rule; severity ``warning``, or ``note`` for a code
+        about the model (:data:`~motorlib.flight.rules.NOTE_CODES`).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> nan = np.nan
+    >>> x = RuleInputs(status=[0, 0], rail_exit_speed_m_s=[15.0, 14.9], wind_speed_m_s=0.0,
+    ...                liftoff_thrust_to_weight=8.0, apogee_m=300.0, max_mach=0.3, burnout_time_s=1.5,
+    ...                optimal_delay_s=6.0, chosen_delay_s=6.0, ejection_speed_m_s=3.0, uses_charge=True,
+    ...                devices_listed=False, delays_known=True, constant_drag=True, landing_descent_rate_m_s=nan,
+    ...                landing_distance_m=nan, deployment_time_s=[], deployment_speed_m_s=[], opening_load_n=[])
+    >>> [[f.code for f in flight] for flight in evaluate_rules(x)]
+    [[], ['rail-exit-slow']]
+    """
+    r = rules or LaunchRules()
+    broken = broken_rules(inputs, r, ceiling_m=ceiling_m)
+    out: list[list[Finding]] = [[] for _ in range(inputs.n_flights)]
+    for code, mask in broken.items():
+        for i, column in zip(*np.nonzero(mask.reshape(inputs.n_flights, -1))):
+            code_i = _STATUS_CODES.get(int(inputs.status[i]), code) if code == "not-flown" else code
+            severity = "note" if code in NOTE_CODES else "warning"
+            out[int(i)].append(Finding(severity, code_i, _MESSAGES[code](inputs, int(i), int(column), r, ceiling_m)))
+    return out
+
+
+def _rail(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    wind = float(x.wind_speed_m_s[i])
+    need = r.rail_exit_needed_m_s(wind)
+    why = "" if need == r.min_rail_exit_speed_m_s else f" ({r.rail_exit_wind_ratio:g} x the {wind:g} m/s wind)"
+    return (f"rail exit too slow: {x.rail_exit_speed_m_s[i]:.1f} m/s, below {need:g} m/s{why}: the rocket may not fly "
+            "straight; use a longer rail or a stronger motor")
+
+
+def _delay(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    chosen, optimal = float(x.chosen_delay_s[i]), float(x.optimal_delay_s[i])
+    return (f"the {chosen:g} s delay fires {abs(chosen - optimal):.1f} s {'before' if chosen < optimal else 'after'} "
+            f"apogee (optimal delay {optimal:.1f} s; limit {r.max_delay_error_s:g} s)")
+
+
+def _deployment_fast(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    kind, load = x.device_kinds[k], x.opening_load_n[i, k]
+    return (f"the {kind} opens too fast: {x.deployment_speed_m_s[i, k]:.0f} m/s (limit {r.deployment_limit_m_s(kind):g} "
+            f"m/s for a {kind}" + ("" if not np.isfinite(load) else f"; opening load up to {float(load):,.0f} N")
+            + "): risk of a torn canopy, a zipper or a broken harness")
+
+
+_Message = Callable[[RuleInputs, int, int, LaunchRules, "float | None"], str]
+_MESSAGES: dict[str, _Message] = {
+    "not-flown": lambda x, i, k, r, c: MESSAGES[int(x.status[i])],
+    "flight-incomplete": lambda x, i, k, r, c: "the flight ends before a rail exit or an apogee",
+    "rail-exit-slow": _rail,
+    "thrust-to-weight-low": lambda x, i, k, r, c: (f"thrust-to-weight too low: {x.liftoff_thrust_to_weight[i]:.1f}, "
+                                                   f"below {r.min_liftoff_thrust_to_weight:g}"),
+    "over-ceiling": lambda x, i, k, r, c: f"over the ceiling: apogee {x.apogee_m[i]:.0f} m above {c:.0f} m",
+    "delays-unknown": lambda x, i, k, r, c: ("the motor's ejection delays are not given (add them to its record) and "
+                                             "the airframe file has no electronics deployment"),
+    "no-ejection-charge": lambda x, i, k, r, c: ("no ejection charge (plugged or booster) and no electronics deployment "
+                                                 "in the airframe file: nothing deploys recovery"),
+    "ejection-far-from-apogee": _delay,
+    "ejection-fast": lambda x, i, k, r, c: (f"ejection too fast: {x.ejection_speed_m_s[i]:.0f} m/s at the "
+                                            f"{x.chosen_delay_s[i]:g} s delay (limit {r.max_ejection_speed_m_s:g} m/s): "
+                                            "risk of damage or a torn canopy"),
+    "lands-before-ejection": lambda x, i, k, r, c: f"lands before the {x.chosen_delay_s[i]:g} s delay fires",
+    "descent-fast": lambda x, i, k, r, c: (f"descent too fast: {x.landing_descent_rate_m_s[i]:.1f} m/s under the device "
+                                           f"(limit {r.max_landing_speed_m_s:g} m/s): use a larger recovery device"),
+    "constant-cd-past-mach": lambda x, i, k, r, c: (f"the rocket reaches Mach {x.max_mach[i]:.2f} with a constant drag "
+                                                    "coefficient, which ignores the transonic drag rise and overstates "
+                                                    "apogee and the optimal delay; give a drag_table or a [geometry]"),
+    "deployment-fast": _deployment_fast,
+    "deployment-while-burning": lambda x, i, k, r, c: (f"the {x.device_kinds[k]} opens at {x.deployment_time_s[i, k]:.2f} s, "
+                                                       f"while the motor still burns (burnout {x.burnout_time_s[i]:.2f} s)"),
+    "lands-outside-field": lambda x, i, k, r, c: (f"lands outside the field: about {x.landing_distance_m[i]:,.0f} m from "
+                                                  f"the pad (field radius {r.field_radius_m:,.0f} m)"),
+    "no-deployment": lambda x, i, k, r, c: ("nothing deploys recovery on this flight (the device never opens): it would "
+                                            "fall ballistically"),
+}
