@@ -15,6 +15,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
+from ..flight.delays import offers_delay
 from ..motor.classes import CLASS_LETTERS
 from .index import COLUMNS
 
@@ -68,7 +69,8 @@ def parse_class_range(text: str) -> tuple[str, str]:
 
 
 def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
-    """SQL conditions and their arguments for every criterion of ``f`` except ``delay_s`` (checked per row)."""
+    """SQL conditions and their arguments for every criterion of ``f`` except ``delay_s`` (checked per row with
+    the flight's rule: :func:`motorlib.flight.delays.offers_delay`)."""
     clauses: list[str] = []
     args: list[Any] = []
     if f.class_range:
@@ -107,14 +109,6 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
     return clauses, args
 
 
-def _offers_delay(row: dict[str, Any], delay_s: float) -> bool:
-    """A listed delay of ``delay_s``, or an adjustable delay whose longest setting reaches it."""
-    delays = row["delays_s"]
-    if any(abs(d - delay_s) < 1e-9 for d in delays):
-        return True
-    return bool(row["delay_adjustable"]) and bool(delays) and delay_s <= max(delays)
-
-
 def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
                 descending: bool = False) -> list[dict[str, Any]]:
     """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort`` then id."""
@@ -132,7 +126,7 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
         row["delays_s"] = json.loads(row["delays_s"])
         row["delay_adjustable"] = bool(row["delay_adjustable"])
         row["findings"] = json.loads(row["findings"])
-        if f.delay_s is not None and not _offers_delay(row, f.delay_s):
+        if f.delay_s is not None and not offers_delay(f.delay_s, row["delays_s"], row["delay_adjustable"]):
             continue
         out.append(row)
     return out

@@ -403,15 +403,25 @@ def motor_options(required: bool = True) -> Any:
     return decorate
 
 
-def load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:
-    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file."""
+def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = None) -> tuple[Any, str | None]:
+    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file.
+
+    Refuses a ``--delay`` of ``delay_s`` [s] that the motor does not offer (one rule with the flight's:
+    :func:`motorlib.flight.delays.delay_problem`).
+    """
     from pathlib import Path
 
     from ..files.curvefiles import load_curve_file
+    from ..flight.delays import delay_problem
 
     if Path(motor_ref).is_file():
-        return load_curve_file(motor_ref), motor_ref
-    catalog = _open_catalog(_catalog_or_samples(catalog_dir))
-    motor_id = catalog.resolve(motor_ref)
-    path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
-    return catalog.get(motor_id), (str(Path(catalog.root) / path) if path else None)
+        motor, path = load_curve_file(motor_ref), motor_ref
+    else:
+        catalog = _open_catalog(_catalog_or_samples(catalog_dir))
+        motor_id = catalog.resolve(motor_ref)
+        row_path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
+        motor, path = catalog.get(motor_id), (str(Path(catalog.root) / row_path) if row_path else None)
+    problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable)
+    if problem:
+        raise click.UsageError(f"--delay {float(delay_s):g}: {motor.designation} {problem}")
+    return motor, path

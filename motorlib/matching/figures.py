@@ -20,6 +20,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..flight.airframe import Airframe
+from ..flight.delays import nearest_delay_column
 from ..flight.integrate import FlightSettings
 from ..flight.pack import MotorPack
 from ..flight.results import NO_LIFTOFF, OK, STUCK_ON_RAIL, FlightResults
@@ -38,12 +39,8 @@ _STABILITY_KEYS = ("stability_margin_cal", "nose_weight_for_stability_kg", "nose
 def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[float]]) -> tuple[np.ndarray, ...]:
     """For every flight: the reported delay closest to the optimal one and its ejection state (vectorised)."""
     delays = pack.delays_s
-    optimal = results.optimal_delay_s
-    distance = np.abs(delays - optimal[:, None])
-    distance = np.where(np.isnan(distance), np.inf, distance)
-    col = np.argmin(distance, axis=1)
+    col, has = nearest_delay_column(delays, results.optimal_delay_s)
     rows = np.arange(delays.shape[0])
-    has = np.isfinite(distance[rows, col])
     chosen = np.where(has, delays[rows, col], np.nan)
     altitude = np.where(has, results.ejection_altitude_m[rows, col], np.nan)
     speed = np.where(has, results.ejection_speed_m_s[rows, col], np.nan)
