@@ -17,7 +17,7 @@ from typing import Any
 
 from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
-from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition
+from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition, disc_drag_area_m2
 from ..flight.wind import MeasuredWind
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
@@ -281,7 +281,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
                 diameter = _quantity(source, recovery_t, "recovery", "diameter", "length", required=True)
                 if not diameter > 0.0:
                     raise SimulationInputError(source, "recovery.diameter", f"must be above 0, got {diameter!r} m")
-                area = float(rcd) * math.pi * diameter**2 / 4.0
+                area = disc_drag_area_m2(float(rcd), diameter)
         recovery = Recovery(
             device=device, deploy=str(recovery_t.get("deploy", "ejection")), drag_area_m2=area,
             deploy_altitude_m=_quantity(source, recovery_t, "recovery", "deploy_altitude", "length"),
@@ -366,7 +366,7 @@ def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:
             diameter = _quantity(source, entry, where, "diameter", "length", required=True)
             if not diameter > 0.0:
                 raise SimulationInputError(source, f"{where}.diameter", f"must be above 0, got {diameter!r} m")
-            area = float(cd) * math.pi * diameter**2 / 4.0
+            area = disc_drag_area_m2(float(cd), diameter)
         replaces = entry.get("replaces", False)
         if not isinstance(replaces, bool):
             raise SimulationInputError(source, f"{where}.replaces", f"expected true or false, got {replaces!r}")
