@@ -11,7 +11,7 @@ from typing import Final, Sequence
 
 import numpy as np
 
-from ..motor.record import MotorRecord, freeze_arrays
+from ..motor.record import MotorRecord, cumulative_impulse_ns, freeze_arrays
 from .delays import DEFAULT_DRILL_STEP_S, offered_delays_s
 
 __all__ = ["MotorPack"]
@@ -89,8 +89,7 @@ class MotorPack:
         has_mass = np.array([m is not None and p is not None for m, p in zip(total_mass_kg, propellant_mass_kg)])
         total = np.array([m if ok else 1.0 for m, ok in zip(total_mass_kg, has_mass)], dtype=float)
         propellant = np.array([p if ok else 0.0 for p, ok in zip(propellant_mass_kg, has_mass)], dtype=float)
-        steps = 0.5 * (thrust[:, 1:] + thrust[:, :-1]) * np.diff(time, axis=1)
-        cumulative = np.concatenate((np.zeros((n, 1)), np.cumsum(steps, axis=1)), axis=1)
+        cumulative = cumulative_impulse_ns(time, thrust)
         last_burning = width - 1 - np.argmax((thrust > 0.0)[:, ::-1], axis=1)
         burnout = time[np.arange(n), np.minimum(last_burning + 1, counts - 1)]
         return cls(time, thrust, cumulative, counts, cumulative[:, -1].copy(), total, propellant, burnout, delays,
