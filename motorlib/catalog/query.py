@@ -35,8 +35,6 @@ class CatalogFilter:
     class_range: tuple[str, str] | None = None
     diameter_m: float | None = None
     diameter_tolerance_m: float = 0.0005
-    max_diameter_m: float | None = None
-    max_length_m: float | None = None
     maker: str | None = None
     impulse_range_ns: tuple[float | None, float | None] = (None, None)
     burn_range_s: tuple[float | None, float | None] = (None, None)
@@ -44,7 +42,6 @@ class CatalogFilter:
     text: str | None = None
     tag: str | None = None
     ids: tuple[str, ...] | None = None
-    hide_errors: bool = False
 
     def __post_init__(self) -> None:
         if self.class_range is not None:
@@ -79,12 +76,6 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
     if f.diameter_m is not None:
         clauses.append("abs(diameter_m - ?) <= ?")
         args += [f.diameter_m, f.diameter_tolerance_m]
-    if f.max_diameter_m is not None:
-        clauses.append("diameter_m <= ?")
-        args.append(f.max_diameter_m + f.diameter_tolerance_m)
-    if f.max_length_m is not None:
-        clauses.append("length_m <= ?")
-        args.append(f.max_length_m)
     if f.maker:
         clauses.append("lower(maker) LIKE ?")
         args.append(f"%{f.maker.lower()}%")
@@ -104,8 +95,6 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
     if f.ids is not None:
         clauses.append(f"motor_id IN ({', '.join('?' * len(f.ids))})")
         args += list(f.ids)
-    if f.hide_errors:
-        clauses.append("n_errors = 0")
     return clauses, args
 
 
