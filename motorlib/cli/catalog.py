@@ -158,10 +158,9 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
     if as_json:
         click.echo(_json_text(rows))
     elif as_csv:
-        from ..present.csvout import rows_csv
+        from ..present.csvout import catalog_csv
 
-        columns = [c for c in rows[0] if c != "findings"] if rows else []
-        click.echo(rows_csv(rows, columns, shown), nl=False)
+        click.echo(catalog_csv(rows, shown), nl=False)
     else:
         from ..present import tables as render
 

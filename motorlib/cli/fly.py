@@ -164,10 +164,6 @@ def _command_line() -> str:
 
 def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any, overwrite: bool) -> Any:
     from ..files.fsio import write_atomic
-    from ..present.csvout import rows_csv
+    from ..present.csvout import trajectory_csv
 
-    names = ["time_s", "x_m", "y_m", "altitude_m", "east_m", "north_m", "vx_m_s", "vy_m_s", "vz_m_s", "ax_m_s2",
-             "ay_m_s2", "az_m_s2"]
-    rows = [{**{n: float(trajectory[n][row]) for n in names},
-             "phase": "descent" if trajectory["descent"][row] else "ascent"} for row in range(len(trajectory["time_s"]))]
-    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode(), overwrite=overwrite)
+    return write_atomic(path, trajectory_csv(trajectory, units).encode(), overwrite=overwrite)
