@@ -167,16 +167,26 @@ def config_file() -> Any:
     It may hold ``units = "imperial"`` (or ``"metric"``). Only the command line reads it; the library reads no
     configuration.
     """
-    import os
     from pathlib import Path
 
+    return Path(_user_dir("config")) / "motorlib" / "config.toml"
+
+
+# The user folders the command line reads: (Windows variable, its fallback, XDG variable, its fallback)
+_USER_DIRS = {"config": ("APPDATA", "~\\AppData\\Roaming", "XDG_CONFIG_HOME", "~/.config"),
+              "data": ("LOCALAPPDATA", "~\\AppData\\Local", "XDG_DATA_HOME", "~/.local/share")}
+
+
+def _user_dir(kind: str) -> str:
+    """The platform's user folder for ``kind`` (``config`` or ``data``): XDG on Linux, the usual ones elsewhere."""
+    import os
+
+    windows, windows_default, xdg, xdg_default = _USER_DIRS[kind]
     if sys.platform == "win32":
-        base = os.environ.get("APPDATA") or os.path.expanduser("~\\AppData\\Roaming")
-    elif sys.platform == "darwin":
-        base = os.path.expanduser("~/Library/Application Support")
-    else:
-        base = os.environ.get("XDG_CONFIG_HOME") or os.path.expanduser("~/.config")
-    return Path(base) / "motorlib" / "config.toml"
+        return os.environ.get(windows) or os.path.expanduser(windows_default)
+    if sys.platform == "darwin":
+        return os.path.expanduser("~/Library/Application Support")
+    return os.environ.get(xdg) or os.path.expanduser(xdg_default)
 
 
 _CONFIG_KEYS = ("units",)
@@ -333,13 +343,7 @@ def default_catalog_dir() -> str:
     """The platform's user data folder for the catalog (XDG on Linux)."""
     import os
 
-    if sys.platform == "win32":
-        base = os.environ.get("LOCALAPPDATA") or os.path.expanduser("~\\AppData\\Local")
-    elif sys.platform == "darwin":
-        base = os.path.expanduser("~/Library/Application Support")
-    else:
-        base = os.environ.get("XDG_DATA_HOME") or os.path.expanduser("~/.local/share")
-    return os.path.join(base, "motorlib", "catalog")
+    return os.path.join(_user_dir("data"), "motorlib", "catalog")
 
 
 def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
