@@ -1,4 +1,4 @@
-"""The one exception tree of motorlib, and its warning class.
+"""The one exception tree of motorlib.
 
 Every error a user can meet is a :class:`MotorlibError`; each concrete error
 also inherits the builtin a caller would expect, so ``except ValueError`` keeps
@@ -19,7 +19,8 @@ working. File errors carry the facts as attributes and build their text as
     +-- InputFileError (ValueError)      a file we cannot read at all: missing, not a regular file, too large
     +-- CatalogError                     a catalog that cannot be opened or changed as asked
         +-- MotorNotFoundError (LookupError)     (a duplicate add is data: AddResult status "duplicate")
-    MotorlibWarning (UserWarning)        suspicious but usable input; outside the error tree
+
+Suspicious but usable input is data, not a warning: a :class:`~motorlib.motor.checks.Finding`.
 
 Only the standard library is imported here.
 """
@@ -38,7 +39,6 @@ __all__ = [
     "InputFileError",
     "MotorNotFoundError",
     "MotorlibError",
-    "MotorlibWarning",
     "Problem",
     "QuantityError",
     "SchemaValidationError",
@@ -63,10 +63,6 @@ class MotorlibError(Exception):
 
     def __reduce__(self) -> tuple:
         return (_rebuild_error, (type(self), self.args, dict(self.__dict__)))
-
-
-class MotorlibWarning(UserWarning):
-    """Suspicious but usable input (kept outside the error tree on purpose)."""
 
 
 @dataclass(frozen=True)

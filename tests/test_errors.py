@@ -12,7 +12,6 @@ def test_tree_and_builtins() -> None:
         assert issubclass(cls, errors.CurveError) and issubclass(cls, ValueError)
         assert issubclass(cls, errors.MotorlibError)
     assert issubclass(errors.DesignationError, ValueError) and issubclass(errors.QuantityError, ValueError)
-    assert not issubclass(errors.MotorlibWarning, errors.MotorlibError)
 
 
 def test_message_layout() -> None:

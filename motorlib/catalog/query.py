@@ -15,6 +15,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
+from ..flight.delays import offers_delay
 from ..motor.classes import CLASS_LETTERS
 from .index import COLUMNS
 
@@ -34,8 +35,6 @@ class CatalogFilter:
     class_range: tuple[str, str] | None = None
     diameter_m: float | None = None
     diameter_tolerance_m: float = 0.0005
-    max_diameter_m: float | None = None
-    max_length_m: float | None = None
     maker: str | None = None
     impulse_range_ns: tuple[float | None, float | None] = (None, None)
     burn_range_s: tuple[float | None, float | None] = (None, None)
@@ -43,7 +42,6 @@ class CatalogFilter:
     text: str | None = None
     tag: str | None = None
     ids: tuple[str, ...] | None = None
-    hide_errors: bool = False
 
     def __post_init__(self) -> None:
         if self.class_range is not None:
@@ -68,7 +66,8 @@ def parse_class_range(text: str) -> tuple[str, str]:
 
 
 def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
-    """SQL conditions and their arguments for every criterion of ``f`` except ``delay_s`` (checked per row)."""
+    """SQL conditions and their arguments for every criterion of ``f`` except ``delay_s`` (checked per row with
+    the flight's rule: :func:`motorlib.flight.delays.offers_delay`)."""
     clauses: list[str] = []
     args: list[Any] = []
     if f.class_range:
@@ -77,12 +76,6 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
     if f.diameter_m is not None:
         clauses.append("abs(diameter_m - ?) <= ?")
         args += [f.diameter_m, f.diameter_tolerance_m]
-    if f.max_diameter_m is not None:
-        clauses.append("diameter_m <= ?")
-        args.append(f.max_diameter_m + f.diameter_tolerance_m)
-    if f.max_length_m is not None:
-        clauses.append("length_m <= ?")
-        args.append(f.max_length_m)
     if f.maker:
         clauses.append("lower(maker) LIKE ?")
         args.append(f"%{f.maker.lower()}%")
@@ -102,17 +95,7 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
     if f.ids is not None:
         clauses.append(f"motor_id IN ({', '.join('?' * len(f.ids))})")
         args += list(f.ids)
-    if f.hide_errors:
-        clauses.append("n_errors = 0")
     return clauses, args
-
-
-def _offers_delay(row: dict[str, Any], delay_s: float) -> bool:
-    """A listed delay of ``delay_s``, or an adjustable delay whose longest setting reaches it."""
-    delays = row["delays_s"]
-    if any(abs(d - delay_s) < 1e-9 for d in delays):
-        return True
-    return bool(row["delay_adjustable"]) and bool(delays) and delay_s <= max(delays)
 
 
 def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
@@ -132,7 +115,7 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
         row["delays_s"] = json.loads(row["delays_s"])
         row["delay_adjustable"] = bool(row["delay_adjustable"])
         row["findings"] = json.loads(row["findings"])
-        if f.delay_s is not None and not _offers_delay(row, f.delay_s):
+        if f.delay_s is not None and not offers_delay(f.delay_s, row["delays_s"], row["delay_adjustable"]):
             continue
         out.append(row)
     return out

@@ -434,6 +434,13 @@ class Catalog:
         """Tag name -> motor ids (as stored in tags.json)."""
         return self._tags.as_lists()
 
+    def orphan_tags(self) -> dict[str, list[str]]:
+        """Tag name -> the ids it names that are no longer in the catalog (a curve file deleted by hand);
+        only tags that name at least one such id."""
+        known = {row["motor_id"] for row in self.rows()}
+        orphans = {name: [i for i in ids if i not in known] for name, ids in self.tags().items()}
+        return {name: ids for name, ids in orphans.items() if ids}
+
     def refresh_tags(self) -> None:
         """Load tags.json into the index when it changed since the index last saw it (checked on open)."""
         if self.read_only:

@@ -158,10 +158,9 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
     if as_json:
         click.echo(_json_text(rows))
     elif as_csv:
-        from ..present.csvout import rows_csv
+        from ..present.csvout import catalog_csv
 
-        columns = [c for c in rows[0] if c != "findings"] if rows else []
-        click.echo(rows_csv(rows, columns, shown), nl=False)
+        click.echo(catalog_csv(rows, shown), nl=False)
     else:
         from ..present import tables as render
 
@@ -332,11 +331,8 @@ def catalog_verify(catalog_dir: str | None) -> None:
     for report in bad:
         console.print(f"[bold]{render.escape(report.source)}[/bold]")
         console.print(render.findings_text(report, include_notes=False), end="")
-    known = {row["motor_id"] for row in cat.rows()}
-    orphans = {t: [i for i in ids if i not in known] for t, ids in cat.tags().items()}
-    for tag, ids in orphans.items():
-        if ids:
-            console.print(f"[yellow]tag {tag!r} names {len(ids)} motor id(s) no longer in the catalog[/yellow]")
+    for tag, ids in cat.orphan_tags().items():
+        console.print(f"[yellow]tag {tag!r} names {len(ids)} motor id(s) no longer in the catalog[/yellow]")
     n_errors = sum(not r.ok for r in reports) + len(cat.problems)
     console.print(f"{len(reports)} curve(s) verified: {n_errors} with errors, {len(cat.problems)} file(s) skipped.")
     if n_errors:

@@ -50,6 +50,7 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
 
     from ..flight.atmosphere import Site
     from ..flight.descent import drag_area_from_fall_m2, fall_through_air, pad_terminal_speed_m_s
+    from ..flight.geometry import disc_drag_area_m2
 
     for option, value, least in (("--fall-time", fall_time_s, 0.0), ("--mass", mass_kg, 0.0),
                                  ("--drag-area", drag_area_m2, None), ("--diameter", diameter_m, 0.0),
@@ -61,7 +62,7 @@ def descent(mass_kg: float | None, drag_area_m2: float | None, drag_coefficient:
     if elevation_m is None:
         elevation_m = 0.0
     if drag_area_m2 is None and drag_coefficient is not None and diameter_m is not None:
-        drag_area_m2 = drag_coefficient * math.pi * diameter_m**2 / 4.0
+        drag_area_m2 = disc_drag_area_m2(drag_coefficient, diameter_m)
     elif drag_area_m2 is None and (drag_coefficient is not None or diameter_m is not None):
         raise click.UsageError("--cd and --diameter go together")
     try:

@@ -75,7 +75,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
     frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
-    motor, motor_file = load_motor(motor_ref, catalog_dir)
+    motor, motor_file = load_motor(motor_ref, catalog_dir, delay_s)
     _check_outputs({"--csv": csv_path, "--plot": plot_path, "--report": report_path}, overwrite, [airframe_file, motor_file])
     if report_path:
         from .output import _write_report
@@ -83,10 +83,9 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         _write_report(None, report_path, overwrite, [airframe_file] + ([motor_file] if motor_file else []),
                       check_only=True)
     wanted = None if delay_s is None else np.array([delay_s])
-    record = _record_for_delay(motor, delay_s)
-    results = simulate(frame, [record], added_mass_kg=ballast_kg or 0.0, deploy_delay_s=wanted,
+    results = simulate(frame, [motor], added_mass_kg=ballast_kg or 0.0, deploy_delay_s=wanted,
                        trajectories=bool(csv_path or plot_path or report_path))
-    summary = results.summary(0, record.delays_s)
+    summary = results.summary(0, motor.delays_s)
     summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
     if delay_s is not None and frame.recovery is None:
         summary["chosen_delay_s"] = delay_s
@@ -94,7 +93,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=np.array([summary["chosen_delay_s"]], dtype=float),
                                delays_known=motor.ejection != "unknown")
     warnings = [(f.code, f.message) for f in evaluate_rules(inputs, rules, ceiling_m=ceiling_m)[0]]
-    warnings += _stability_and_drag(frame, record, results, summary, ballast_kg or 0.0, min_stability_cal)
+    warnings += _stability_and_drag(frame, motor, results, summary, ballast_kg or 0.0, min_stability_cal)
     from ..matching.rank import mount_problems
 
     warnings += [("motor-does-not-fit", f"{motor.designation} {text}: flown as asked, but it cannot go in this mount")
@@ -168,26 +167,8 @@ def _command_line() -> str:
     return "motorlib " + " ".join(shlex.quote(a) for a in sys.argv[1:])
 
 
-def _record_for_delay(motor: Any, delay_s: float | None) -> Any:
-    """``motor`` to fly with ``--delay``: refuses a delay not on offer; adds a shortened adjustable delay."""
-    if delay_s is not None and motor.delays_s and not motor.delay_adjustable and delay_s not in motor.delays_s:
-        raise click.UsageError(f"--delay {delay_s:g}: {motor.designation} offers {', '.join(f'{d:g}' for d in motor.delays_s)} s")
-    if delay_s is not None and motor.delay_adjustable and delay_s not in motor.delays_s:
-        if not motor.delays_s or delay_s > max(motor.delays_s):
-            raise click.UsageError(f"--delay {delay_s:g}: an adjustable delay can only be shortened below "
-                                   f"{max(motor.delays_s or (0,)):g} s")
-        from dataclasses import replace
-
-        return replace(motor, delays_s=tuple(sorted(set(motor.delays_s) | {delay_s})))
-    return motor
-
-
 def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any, overwrite: bool) -> Any:
     from ..files.fsio import write_atomic
-    from ..present.csvout import rows_csv
+    from ..present.csvout import trajectory_csv
 
-    names = ["time_s", "x_m", "y_m", "altitude_m", "east_m", "north_m", "vx_m_s", "vy_m_s", "vz_m_s", "ax_m_s2",
-             "ay_m_s2", "az_m_s2"]
-    rows = [{**{n: float(trajectory[n][row]) for n in names},
-             "phase": "descent" if trajectory["descent"][row] else "ascent"} for row in range(len(trajectory["time_s"]))]
-    return write_atomic(path, rows_csv(rows, names + ["phase"], units).encode(), overwrite=overwrite)
+    return write_atomic(path, trajectory_csv(trajectory, units).encode(), overwrite=overwrite)

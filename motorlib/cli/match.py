@@ -130,18 +130,9 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         click.echo(_json_text({"airframe": result.airframe, "conditions": conditions, "candidates": result.candidates}))
         return
     if opts["as_csv"]:
-        from ..present.csvout import rows_csv
-        from ..present.messages import note_text, reason_text
+        from ..present.csvout import candidates_csv
 
-        skip = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "notes", "note_codes",
-                "nose_weight_reasons", "nose_weight_reason_codes")
-        columns = [k for k in result.candidates[0] if k not in skip] + ["reasons", "notes"]
-        rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, result.conditions, units)
-                                           for code, text in zip(c["reason_codes"], c["reasons"])),
-                 "notes": "; ".join(note_text(code, text, c, result.conditions, units)
-                                    for code, text in zip(c["note_codes"], c["notes"]))}
-                for c in result.candidates]
-        click.echo(rows_csv(rows, columns, units), nl=False)
+        click.echo(candidates_csv(result.candidates, result.conditions, units), nl=False)
         click.echo(f"Caution: {_EPILOG}", err=True)  # beside the data, never inside it
         return
     from ..present import tables as render

@@ -171,16 +171,26 @@ def config_file() -> Any:
     It may hold ``units = "imperial"`` (or ``"metric"``). Only the command line reads it; the library reads no
     configuration.
     """
-    import os
     from pathlib import Path
 
+    return Path(_user_dir("config")) / "motorlib" / "config.toml"
+
+
+# The user folders the command line reads: (Windows variable, its fallback, XDG variable, its fallback)
+_USER_DIRS = {"config": ("APPDATA", "~\\AppData\\Roaming", "XDG_CONFIG_HOME", "~/.config"),
+              "data": ("LOCALAPPDATA", "~\\AppData\\Local", "XDG_DATA_HOME", "~/.local/share")}
+
+
+def _user_dir(kind: str) -> str:
+    """The platform's user folder for ``kind`` (``config`` or ``data``): XDG on Linux, the usual ones elsewhere."""
+    import os
+
+    windows, windows_default, xdg, xdg_default = _USER_DIRS[kind]
     if sys.platform == "win32":
-        base = os.environ.get("APPDATA") or os.path.expanduser("~\\AppData\\Roaming")
-    elif sys.platform == "darwin":
-        base = os.path.expanduser("~/Library/Application Support")
-    else:
-        base = os.environ.get("XDG_CONFIG_HOME") or os.path.expanduser("~/.config")
-    return Path(base) / "motorlib" / "config.toml"
+        return os.environ.get(windows) or os.path.expanduser(windows_default)
+    if sys.platform == "darwin":
+        return os.path.expanduser("~/Library/Application Support")
+    return os.environ.get(xdg) or os.path.expanduser(xdg_default)
 
 
 _CONFIG_KEYS = ("units",)
@@ -337,13 +347,7 @@ def default_catalog_dir() -> str:
     """The platform's user data folder for the catalog (XDG on Linux)."""
     import os
 
-    if sys.platform == "win32":
-        base = os.environ.get("LOCALAPPDATA") or os.path.expanduser("~\\AppData\\Local")
-    elif sys.platform == "darwin":
-        base = os.path.expanduser("~/Library/Application Support")
-    else:
-        base = os.environ.get("XDG_DATA_HOME") or os.path.expanduser("~/.local/share")
-    return os.path.join(base, "motorlib", "catalog")
+    return os.path.join(_user_dir("data"), "motorlib", "catalog")
 
 
 def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
@@ -407,15 +411,25 @@ def motor_options(required: bool = True) -> Any:
     return decorate
 
 
-def load_motor(motor_ref: str, catalog_dir: str | None) -> tuple[Any, str | None]:
-    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file."""
+def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = None) -> tuple[Any, str | None]:
+    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file.
+
+    Refuses a ``--delay`` of ``delay_s`` [s] that the motor does not offer (one rule with the flight's:
+    :func:`motorlib.flight.delays.delay_problem`).
+    """
     from pathlib import Path
 
     from ..files.curvefiles import load_curve_file
+    from ..flight.delays import delay_problem
 
     if Path(motor_ref).is_file():
-        return load_curve_file(motor_ref), motor_ref
-    catalog = _open_catalog(_catalog_or_samples(catalog_dir))
-    motor_id = catalog.resolve(motor_ref)
-    path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
-    return catalog.get(motor_id), (str(Path(catalog.root) / path) if path else None)
+        motor, path = load_curve_file(motor_ref), motor_ref
+    else:
+        catalog = _open_catalog(_catalog_or_samples(catalog_dir))
+        motor_id = catalog.resolve(motor_ref)
+        row_path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
+        motor, path = catalog.get(motor_id), (str(Path(catalog.root) / row_path) if row_path else None)
+    problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable)
+    if problem:
+        raise click.UsageError(f"--delay {float(delay_s):g}: {motor.designation} {problem}")
+    return motor, path

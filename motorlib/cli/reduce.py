@@ -56,13 +56,11 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
       motorlib reduce f1.csv f2.csv f3.csv --combine --designation F30-6 \\
           -o F30-6-mean.xml --report series.html
     """
-    from dataclasses import replace
     from pathlib import Path
 
-    from ..motor.checks import check_record, metrics
-    from ..files.curvefiles import CheckReport
-    from ..motor.reduction import (ReductionSettings, combine_reductions, firing_spread, firing_table,
-                                   series_findings)
+    from ..errors import CurveDataError
+    from ..files.stand_logs import read_stand_logs, settings_note, stand_series
+    from ..motor.reduction import ReductionSettings
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
@@ -75,25 +73,14 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     # a log from our own stand, unless the option or the side file says otherwise
     meta = _metadata_for(opts, list(logs), default_kind="own-firing")
     meta = meta(logs[0]) if callable(meta) else meta  # a series is one motor: the first log's entry
-    reductions = _reduce_logs(logs, settings, opts["time_unit"], opts["thrust_unit"], scale, offset)
-    if combine:
-        time_s, thrust_n, spread = combine_reductions([r for _, r in reductions], points)
-    else:
-        time_s, thrust_n, spread = reductions[0][1].time_s, reductions[0][1].thrust_n, None
-    first = reductions[0][1]
-    note = _provenance_note(reductions if combine else reductions[:1], combine,
-                            _settings_text(cutoff, detrend, points, scale, offset))
-    meta = replace(meta, provenance=replace(meta.provenance, notes=f"{meta.provenance.notes} {note}".strip()))
-    record = meta.record(time_s, thrust_n, default_designation=Path(logs[0]).stem)
-    if combine:
-        record = replace(record, firing_spread=firing_spread([r for _, r in reductions]))
-    table = firing_table([r for _, r in reductions])
-    series = series_findings(table) if len(reductions) > 1 else []
-    log_reports = _log_reports(reductions, meta, Path(logs[0]).stem) if len(reductions) > 1 else []
-    log_findings = [f for _, r in reductions for f in r.findings] if combine or len(reductions) == 1 \
-        else list(reductions[0][1].findings)
-    findings = log_findings + series + check_record(record)
-    report = CheckReport(output or logs[0], True, record, tuple(findings), metrics(record))
+    try:
+        reductions = read_stand_logs(logs, settings, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"],
+                                     scale=scale, offset=offset)
+    except CurveDataError as exc:
+        raise click.ClickException(str(exc)) from None
+    series = stand_series(reductions, meta, combine=combine, max_points=points,
+                          settings_text=settings_note(settings, scale=scale, offset=offset), source=output)
+    record, report, spread, first = series.record, series.report, series.spread, reductions[0][1]
     written = []
     if output:
         written.append(_write_checked(record, report, output, overwrite, force))
@@ -115,17 +102,17 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         report_doc = reduce_report(reductions, record, report, spread, inputs=list(logs), command=_command_line())
         written.append(_write_report(report_doc, report_path, overwrite, inputs))
     summary = _log_summary(reductions)
-    for entry, row, log_report in zip(summary, table, log_reports or [None] * len(summary)):
+    for entry, row, log_report in zip(summary, series.table, series.log_reports or [None] * len(summary)):
         entry.update(row)
         if log_report is not None:
             entry.update(ok=log_report.ok, findings=[f.as_dict() for f in log_report.findings])
-    failed = [r for r in log_reports if not r.ok] + ([] if report.ok else [report])
     if as_json:
-        click.echo(_strict_json({"logs": summary, "combined": spread, "series_findings": [f.as_dict() for f in series],
+        click.echo(_strict_json({"logs": summary, "combined": spread,
+                                 "series_findings": [f.as_dict() for f in series.series_findings],
                                  **report.as_dict(), "written": [str(p) for p in written]}, indent=2, default=float))
     else:
-        _print_reduction(summary, spread, report, written, display_units(units), log_reports, combine)
-    if failed:
+        _print_reduction(summary, spread, report, written, display_units(units), series.log_reports, combine)
+    if series.failed:
         raise SystemExit(1)  # the report is printed; the status tells scripts that a check found errors
 
 
@@ -139,68 +126,6 @@ def _cutoff_hz(cutoff: str | None) -> float | None:
     if value is not None and not (math.isfinite(value) and value >= 0.0):
         raise click.BadParameter(f"expected a frequency above 0 Hz or 'none', got {cutoff!r}", param_hint="--cutoff")
     return value
-
-
-def _reduce_logs(logs: tuple[str, ...], settings: Any, time_unit: str | None, thrust_unit: str | None,
-                 scale: float | None, offset: float) -> list[tuple[str, Any]]:
-    """Read and reduce every log; pairs of (path, :class:`~motorlib.motor.reduction.Reduction`)."""
-    import numpy as np
-
-    from dataclasses import replace
-
-    from ..errors import CurveDataError
-    from ..files.motor_csv import read_csv_curve
-    from ..motor.checks import Finding
-    from ..motor.reduction import reduce_log
-
-    reductions = []
-    for path in logs:
-        curve = read_csv_curve(path, time_unit=time_unit, thrust_unit=thrust_unit, scale=scale, offset=offset)
-        try:
-            reduction = reduce_log(curve.time_s, curve.thrust_n, settings, lines=np.asarray(curve.lines), source=path)
-        except CurveDataError as exc:
-            raise click.ClickException(str(exc)) from None
-        if curve.assumption():  # said in the output and the JSON, never silent
-            note = Finding("note", "units-assumed", f"{path}: {curve.assumption()}")
-            reduction = replace(reduction, findings=(note, *reduction.findings))
-        reductions.append((path, reduction))
-    return reductions
-
-
-def _settings_text(cutoff: str | None, detrend: bool, points: int, scale: float | None, offset: float) -> str:
-    """The reduction settings as given, for the record's provenance (so the reduction can be repeated)."""
-    parts = [f"cut-off {cutoff or 'default'}", "detrend on" if detrend else "detrend off", f"at most {points} points"]
-    if scale is not None:
-        parts.append(f"scale {scale:g} N/count, offset {offset:g} counts")
-    return "Settings: " + ", ".join(parts) + "."
-
-
-def _log_reports(reductions: list[tuple[str, Any]], meta: Any, default_designation: str) -> list[Any]:
-    """One check per log of a series: its own reduction findings and the record checks of its own curve."""
-    from ..files.curvefiles import CheckReport
-    from ..motor.checks import check_record, metrics
-
-    reports = []
-    for path, r in reductions:
-        record = meta.record(r.time_s, r.thrust_n, default_designation=default_designation)
-        findings = [f for f in (*r.findings, *check_record(record)) if f.code != "hardware-incomplete"]
-        reports.append(CheckReport(path, True, record, tuple(findings), metrics(record)))
-    return reports
-
-
-def _provenance_note(reductions: list[tuple[str, Any]], combine: bool, settings: str = "") -> str:
-    """The provenance note naming the logs, how the first one was reduced and the settings given."""
-    from pathlib import Path
-
-    from ..present.display import DisplayUnits
-
-    first, u = reductions[0][1], DisplayUnits()
-    return (f"Reduced by motorlib from {', '.join(Path(p).name for p, _ in reductions)}: baseline "
-            f"{u.precise(first.baseline_n, 'force')}, noise {u.precise(first.noise_n, 'force', 2)}, "
-            f"{u.plain(first.sample_rate_hz)} Hz, "
-            + (f"low-pass {u.plain(first.cutoff_hz)} Hz" if first.cutoff_hz else "no filter")
-            + f", events at {u.precise(first.threshold_n, 'force', 2)}." + (f" Mean of {len(reductions)} firings." if combine else "")
-            + (f" {settings}" if settings else ""))
 
 
 def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force: bool) -> Any:

@@ -187,7 +187,7 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
     shown = display_units(units)
     frame = load_airframe(airframe_file)
     uncertainty = uncertainty_from_options(airframe_file, opts)
-    motor = _load_motor(motor_ref, catalog_dir)[0]
+    motor = _load_motor(motor_ref, catalog_dir, delay_s)[0]
     from pathlib import Path
 
     catalog = None if Path(motor_ref).is_file() else _open_catalog(_catalog_or_samples(catalog_dir))

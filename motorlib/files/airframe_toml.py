@@ -17,7 +17,7 @@ from typing import Any
 
 from ..flight.airframe import Airframe, Launch, Recovery
 from ..flight.atmosphere import Site
-from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition
+from ..flight.geometry import FINISHES, Body, Finish, Fins, Geometry, Nose, Transition, disc_drag_area_m2
 from ..flight.wind import MeasuredWind
 from ..errors import QuantityError, SimulationInputError
 from ..units import INCH_OF_MERCURY_PA, parse_quantity
@@ -113,15 +113,19 @@ def _check_keys(source: str, data: dict[str, Any], section: str, where: str | No
                                    f"unknown key; expected one of {', '.join(sorted(_SECTIONS[section]))}")
 
 
-def _section(source: str, data: dict[str, Any], name: str, required: bool) -> dict[str, Any] | None:
+def _section(source: str, data: dict[str, Any], name: str, required: bool, *, parent: str = ""
+             ) -> dict[str, Any] | None:
+    """The table ``name`` of ``data`` (a section, or with ``parent`` a sub-table such as ``geometry.nose``),
+    its keys checked; None when it is missing and not ``required``."""
+    label = f"{parent}.{name}" if parent else name
     if name not in data:
         if required:
-            raise SimulationInputError(source, f"[{name}]", "missing section")
+            raise SimulationInputError(source, f"[{label}]", "missing section")
         return None
     table = data[name]
     if not isinstance(table, dict):
-        raise SimulationInputError(source, f"[{name}]", "expected a table")
-    _check_keys(source, table, name)
+        raise SimulationInputError(source, f"[{label}]", "expected a table")
+    _check_keys(source, table, label)
     return table
 
 
@@ -134,19 +138,6 @@ def _text(source: str, table: dict[str, Any], section: str, key: str, default: s
     if not isinstance(value, str):
         raise SimulationInputError(source, f"{section}.{key}", f"expected a name (a string), got {value!r}")
     return value
-
-
-def _subtable(source: str, table: dict[str, Any], key: str, required: bool) -> dict[str, Any] | None:
-    name = f"geometry.{key}"
-    if key not in table:
-        if required:
-            raise SimulationInputError(source, f"[{name}]", "missing section")
-        return None
-    sub = table[key]
-    if not isinstance(sub, dict):
-        raise SimulationInputError(source, f"[{name}]", "expected a table")
-    _check_keys(source, sub, name)
-    return sub
 
 
 def _finish(source: str, table: dict[str, Any]) -> Finish:
@@ -167,9 +158,9 @@ def _geometry(source: str, table: dict[str, Any]) -> Geometry:
     if not isinstance(table, dict):
         raise SimulationInputError(source, "[geometry]", "expected a table")
     _check_keys(source, table, "geometry")
-    nose_t = _subtable(source, table, "nose", True)
-    body_t = _subtable(source, table, "body", True)
-    fins_t = _subtable(source, table, "fins", False)
+    nose_t = _section(source, table, "nose", True, parent="geometry")
+    body_t = _section(source, table, "body", True, parent="geometry")
+    fins_t = _section(source, table, "fins", False, parent="geometry")
     exponent = nose_t.get("exponent")
     if exponent is not None and (isinstance(exponent, bool) or not isinstance(exponent, (int, float))):
         raise SimulationInputError(source, "geometry.nose.exponent", f"expected a number, got {exponent!r}")
@@ -281,7 +272,7 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
                 diameter = _quantity(source, recovery_t, "recovery", "diameter", "length", required=True)
                 if not diameter > 0.0:
                     raise SimulationInputError(source, "recovery.diameter", f"must be above 0, got {diameter!r} m")
-                area = float(rcd) * math.pi * diameter**2 / 4.0
+                area = disc_drag_area_m2(float(rcd), diameter)
         recovery = Recovery(
             device=device, deploy=str(recovery_t.get("deploy", "ejection")), drag_area_m2=area,
             deploy_altitude_m=_quantity(source, recovery_t, "recovery", "deploy_altitude", "length"),
@@ -366,7 +357,7 @@ def _recovery_sequence(source: str, entries: list[Any]) -> tuple[Recovery, ...]:
             diameter = _quantity(source, entry, where, "diameter", "length", required=True)
             if not diameter > 0.0:
                 raise SimulationInputError(source, f"{where}.diameter", f"must be above 0, got {diameter!r} m")
-            area = float(cd) * math.pi * diameter**2 / 4.0
+            area = disc_drag_area_m2(float(cd), diameter)
         replaces = entry.get("replaces", False)
         if not isinstance(replaces, bool):
             raise SimulationInputError(source, f"{where}.replaces", f"expected true or false, got {replaces!r}")

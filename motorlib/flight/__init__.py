@@ -31,6 +31,7 @@ Modules
 -------
 * ``airframe``, ``atmosphere``: the rocket, launch and recovery records; the air;
 * ``pack``: motors as flat arrays (:class:`MotorPack`);
+* ``delays``: the delays a motor offers and the one a flight uses;
 * ``dynamics``: air, gravity and wind tables on a height grid, and the accelerations;
 * ``events``: the liftoff solve, and Hermite location of apogee, landing, ejection and deployment;
 * ``integrate``: :class:`FlightSettings`, :func:`simulate` and the batched RK4 loop;

@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 from typing import Final
 
 from .atmosphere import Site
-from .geometry import Geometry, check_diameters
+from .geometry import Geometry, check_diameters, disc_area_m2
 from .wind import MeasuredWind
 from ..errors import SimulationInputError
 
@@ -275,7 +275,7 @@ class Airframe:
     @property
     def reference_area_m2(self) -> float:
         """π·d²/4 [m²]."""
-        return math.pi * self.diameter_m**2 / 4.0
+        return disc_area_m2(self.diameter_m)
 
     @property
     def drag_machs(self) -> tuple[float, ...]:

@@ -55,13 +55,17 @@ _MIN_SLABS: Final = 128  # short falls are mostly the start-up transient: resolv
 MAX_FALL_HEIGHT_M: Final = 80_000.0  # the atmosphere model ends at 86 km geometric; nothing falls from higher here
 
 
-def terminal_speed_m_s(mass_kg, drag_area_m2, density_kg_m3=1.225):
-    """Terminal speed [m/s]: √(2·m·g/(ρ·Cd·A)).
+def terminal_speed_m_s(mass_kg, drag_area_m2, density_kg_m3=1.225, gravity_m_s2=G0):
+    """Terminal speed [m/s]: √(2·m·g/(ρ·Cd·A)), where drag ½·ρ·v²·Cd·A balances the weight m·g.
+
+    Every terminal speed of the library comes from here (the pad's in :func:`pad_terminal_speed_m_s`, the
+    matcher's landing and opening speeds); arrays broadcast.
 
     >>> round(float(terminal_speed_m_s(1.0, 0.75 * 3.141592653589793 * 0.9**2 / 4)), 4)
     5.7928
     """
-    return np.sqrt(2.0 * np.asarray(mass_kg) * G0 / (np.asarray(density_kg_m3) * np.asarray(drag_area_m2)))
+    return np.sqrt(2.0 * np.asarray(mass_kg) * np.asarray(gravity_m_s2)
+                   / (np.asarray(density_kg_m3) * np.asarray(drag_area_m2)))
 
 
 def drag_area_m2(mass_kg, terminal_speed, density_kg_m3=1.225):
@@ -301,7 +305,7 @@ def pad_terminal_speed_m_s(mass_kg: np.ndarray | float, drag_area_m2: np.ndarray
     _, m, area = _check_fall_inputs(0.0, mass_kg, drag_area_m2)
     g_pad = _gravity(site, np.zeros(()), vary_gravity)
     with np.errstate(divide="ignore"):
-        return np.sqrt(2.0 * m * g_pad / (float(site.air(0.0)[2]) * area))
+        return terminal_speed_m_s(m, area, float(site.air(0.0)[2]), g_pad)
 
 
 def drag_area_from_fall_m2(height_m: np.ndarray | float, time_s: np.ndarray | float,

@@ -57,7 +57,7 @@ from typing import TYPE_CHECKING, Final
 import numpy as np
 
 from .atmosphere import density_kg_m3, dynamic_viscosity_pa_s, speed_of_sound_m_s
-from .geometry import Geometry, outline_m
+from .geometry import Geometry, disc_area_m2, outline_m
 
 if TYPE_CHECKING:
     from .airframe import Airframe
@@ -304,7 +304,7 @@ def drag_components(geometry: Geometry, diameter_m: float, mach: np.ndarray | fl
     m = np.atleast_1d(np.asarray(mach, dtype=float))
     if m.ndim != 1 or np.any(~(m >= 0.0)):
         raise ValueError("`mach` must be 1-D and >= 0")
-    area_ref = math.pi * diameter_m**2 / 4.0
+    area_ref = disc_area_m2(diameter_m)
     nu = float(dynamic_viscosity_pa_s(altitude_m) / density_kg_m3(altitude_m))
     speed = np.maximum(m, MIN_FRICTION_MACH) * float(speed_of_sound_m_s(altitude_m))
     roughness = geometry.finish.roughness_m
@@ -321,7 +321,7 @@ def drag_components(geometry: Geometry, diameter_m: float, mach: np.ndarray | fl
 
     transition_pressure = zeros.copy()
     for tr in geometry.transitions:
-        a_fore, a_aft = math.pi * tr.fore_diameter_m**2 / 4.0, math.pi * tr.aft_diameter_m**2 / 4.0
+        a_fore, a_aft = disc_area_m2(tr.fore_diameter_m), disc_area_m2(tr.aft_diameter_m)
         if a_aft > a_fore:  # shoulder: like the frustum of a cone
             angle = math.atan((tr.aft_diameter_m - tr.fore_diameter_m) / (2.0 * tr.length_m))
             transition_pressure += _pressure_drag(m, angle, angle) * (a_aft - a_fore) / area_ref
@@ -368,11 +368,11 @@ def drag_components(geometry: Geometry, diameter_m: float, mach: np.ndarray | fl
         launch_guide = 2.0 * _BUTTON_CD * stagnation_pressure_ratio(m) * button / area_ref
 
     aft_diameter = geometry.transitions[-1].aft_diameter_m if geometry.transitions else diameter_m
-    area_base = math.pi * aft_diameter**2 / 4.0
+    area_base = disc_area_m2(aft_diameter)
     forebody = (body_friction + nose_pressure + transition_pressure) * area_ref / area_base
     low_speed = np.minimum(_HOERNER_BASE / np.sqrt(forebody), _SONIC_BASE)
     base = base_drag_coefficient(m, low_speed)
-    filled = 0.0 if exhaust_diameter_m is None else min(math.pi * exhaust_diameter_m**2 / 4.0, area_base)
+    filled = 0.0 if exhaust_diameter_m is None else min(disc_area_m2(exhaust_diameter_m), area_base)
     return DragComponents(
         mach=m, body_friction=body_friction, fin_friction=fin_friction, nose_pressure=nose_pressure,
         transition_pressure=transition_pressure, fin_leading_edge=leading, fin_trailing_edge=trailing, fin_wave=wave,

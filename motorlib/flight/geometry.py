@@ -66,6 +66,8 @@ __all__ = [
     "center_of_pressure_m",
     "check_diameters",
     "diameter_at_m",
+    "disc_area_m2",
+    "disc_drag_area_m2",
     "normal_force_components",
     "outline_m",
 ]
@@ -89,6 +91,24 @@ FINISHES: Final[dict[str, float]] = {
 DEFAULT_FINISH: Final = "paint"
 
 _SRC: Final = "geometry"
+
+
+def disc_area_m2(diameter_m: float) -> float:
+    """Area [m²] of a circle of ``diameter_m`` [m]: π·d²/4 (a body's reference area, a canopy's nominal area).
+
+    >>> round(disc_area_m2(2.0), 6)
+    3.141593
+    """
+    return math.pi * diameter_m**2 / 4.0
+
+
+def disc_drag_area_m2(drag_coefficient: float, diameter_m: float) -> float:
+    """Drag area Cd·A [m²] of a round device, its Cd referred to the disc of ``diameter_m`` [m]: Cd·π·d²/4.
+
+    >>> round(disc_drag_area_m2(0.75, 0.9), 5)
+    0.47713
+    """
+    return drag_coefficient * disc_area_m2(diameter_m)
 
 
 def _require(name: str, ok: bool, problem: str) -> None:
@@ -417,7 +437,7 @@ class NormalForce:
 
 def _fin_cn_alpha(fins: Fins, diameter_m: float, body_radius_m: float, mach: np.ndarray) -> np.ndarray:
     """CN_α of the fin set with body interference; shape as ``mach`` (see the module docstring)."""
-    area_ref = math.pi * diameter_m**2 / 4.0
+    area_ref = disc_area_m2(diameter_m)
     aspect = 2.0 * fins.span_m**2 / fins.area_m2
     cos_midchord = fins.span_m / fins.midchord_length_m
     beta = np.sqrt(1.0 - np.minimum(mach, MAX_CORRECTED_MACH) ** 2)

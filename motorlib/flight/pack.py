@@ -11,7 +11,8 @@ from typing import Final, Sequence
 
 import numpy as np
 
-from ..motor.record import MotorRecord, freeze_arrays
+from ..motor.record import MotorRecord, cumulative_impulse_ns, freeze_arrays
+from .delays import DEFAULT_DRILL_STEP_S, offered_delays_s
 
 __all__ = ["MotorPack"]
 
@@ -24,8 +25,8 @@ class MotorPack:
 
     Arrays of shape (n, n_samples_max) are padded with the last time and zero
     thrust; ``delays_s`` has shape (n, n_delays_max), padded with NaN, and holds
-    every delay an ejection state is reported for (listed delays, plus the
-    drillable ones of adjustable motors).
+    every delay an ejection state is reported for: the delays each motor offers
+    (:func:`~motorlib.flight.delays.offered_delays_s`).
     """
 
     time_s: np.ndarray
@@ -47,7 +48,8 @@ class MotorPack:
         return int(self.n_samples.size)
 
     @classmethod
-    def from_records(cls, records: Sequence[MotorRecord] | MotorRecord, drill_step_s: float = 1.0) -> MotorPack:
+    def from_records(cls, records: Sequence[MotorRecord] | MotorRecord,
+                     drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
         """Pack motor records, or one record (one Python pass to copy samples; the flight loop never iterates motors)."""
         if isinstance(records, MotorRecord):
             records = [records]
@@ -66,14 +68,14 @@ class MotorPack:
     def from_samples(cls, samples: Sequence[tuple[np.ndarray, np.ndarray]], *,
                      total_mass_kg: Sequence[float | None], propellant_mass_kg: Sequence[float | None],
                      delays_s: Sequence[Sequence[float]], delay_adjustable: Sequence[bool],
-                     drill_step_s: float = 1.0) -> MotorPack:
+                     drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
         """Pack (time [s], thrust [N]) arrays of valid curves with their masses [kg] and delays [s]."""
         n = len(samples)
         if n == 0:
             raise ValueError("`samples` must not be empty")
         counts = np.array([t.size for t, _ in samples], dtype=np.int64)
         width = int(counts.max())
-        delay_lists = [_report_delays(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
+        delay_lists = [offered_delays_s(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
         n_delays = max(1, max(len(d) for d in delay_lists))
         time = np.empty((n, width))
         thrust = np.zeros((n, width))
@@ -87,19 +89,9 @@ class MotorPack:
         has_mass = np.array([m is not None and p is not None for m, p in zip(total_mass_kg, propellant_mass_kg)])
         total = np.array([m if ok else 1.0 for m, ok in zip(total_mass_kg, has_mass)], dtype=float)
         propellant = np.array([p if ok else 0.0 for p, ok in zip(propellant_mass_kg, has_mass)], dtype=float)
-        steps = 0.5 * (thrust[:, 1:] + thrust[:, :-1]) * np.diff(time, axis=1)
-        cumulative = np.concatenate((np.zeros((n, 1)), np.cumsum(steps, axis=1)), axis=1)
+        cumulative = cumulative_impulse_ns(time, thrust)
         last_burning = width - 1 - np.argmax((thrust > 0.0)[:, ::-1], axis=1)
         burnout = time[np.arange(n), np.minimum(last_burning + 1, counts - 1)]
         return cls(time, thrust, cumulative, counts, cumulative[:, -1].copy(), total, propellant, burnout, delays,
                    has_mass)
 
-
-def _report_delays(delays_s: Sequence[float], adjustable: bool, drill_step_s: float) -> list[float]:
-    """Delays [s] to report an ejection state for: the listed ones, and for an adjustable motor every
-    multiple of ``drill_step_s`` below the longest."""
-    listed = sorted(delays_s)
-    if not adjustable or not listed:
-        return listed
-    drilled = list(np.arange(drill_step_s, listed[-1], drill_step_s))
-    return sorted(set(listed) | {round(d, 9) for d in drilled})

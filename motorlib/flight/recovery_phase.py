@@ -30,6 +30,7 @@ from typing import TYPE_CHECKING, Callable
 import numpy as np
 
 from .airframe import Recovery
+from .delays import nearest_delay_column
 from .dynamics import _Group
 from .pack import MotorPack
 from .results import OK
@@ -50,7 +51,7 @@ def _charge_column(pack: MotorPack, idx: np.ndarray, apogee_t: np.ndarray, wante
     delays = pack.delays_s[idx]
     optimal = apogee_t - pack.burnout_s[idx]
     target = optimal if wanted_delay is None else wanted_delay[idx]
-    col = np.argmin(np.where(np.isnan(delays), np.inf, np.abs(delays - target[:, None])), axis=1)
+    col, _ = nearest_delay_column(delays, target)
     has = ~np.all(np.isnan(delays), axis=1)  # plugged or booster: no charge
     return col, has, np.where(has, delays[np.arange(idx.size), col], np.nan)
 

@@ -13,6 +13,8 @@ from typing import Final, Sequence
 
 import numpy as np
 
+from .delays import nearest_delay_column
+
 __all__ = ["MESSAGES", "NO_LIFTOFF", "NO_MASS", "OK", "STEP_LIMIT", "STUCK_ON_RAIL", "FlightResults"]
 
 OK: Final = 0
@@ -139,10 +141,8 @@ class FlightResults:
         """The delay used for deployment, else the reported delay closest to the optimal one (NaN if none)."""
         if np.isfinite(self.deploy_delay_s[i]):
             return float(self.deploy_delay_s[i])
-        delays = self.ejection_delay_s[i]
-        if np.all(np.isnan(delays)) or not np.isfinite(self.optimal_delay_s[i]):
-            return math.nan
-        return float(delays[np.nanargmin(np.abs(delays - self.optimal_delay_s[i]))])
+        col, found = nearest_delay_column(self.ejection_delay_s[i:i + 1], self.optimal_delay_s[i:i + 1])
+        return float(self.ejection_delay_s[i, col[0]]) if found[0] else math.nan
 
     def summary(self, i: int, listed_delays_s: Sequence[float] | None = None) -> dict[str, object]:
         """Flight ``i`` as a plain dict of SI figures (the ``fly --json`` layout). Times from ignition.

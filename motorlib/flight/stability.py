@@ -48,6 +48,7 @@ from typing import TYPE_CHECKING, Any, Final
 import numpy as np
 
 from .geometry import Geometry, center_of_pressure_m
+from ..motor.record import cumulative_impulse_ns
 
 if TYPE_CHECKING:  # only for annotations: airframe.py imports geometry, which this module imports
     from ..motor.record import MotorRecord
@@ -377,8 +378,7 @@ def burnt_fraction(time_s: np.ndarray, thrust_n: np.ndarray, at_time_s: np.ndarr
         raise ValueError("`time_s` and `thrust_n` must have the same shape (n_motors, n_samples >= 2)")
     n = time.shape[0]
     rows = np.arange(n)
-    steps = 0.5 * (thrust[:, 1:] + thrust[:, :-1]) * np.diff(time, axis=1)
-    cumulative = np.concatenate((np.zeros((n, 1)), np.cumsum(steps, axis=1)), axis=1)
+    cumulative = cumulative_impulse_ns(time, thrust)
     at = np.clip(np.broadcast_to(np.asarray(at_time_s, dtype=float), (n,)), time[:, 0], time[:, -1])
     k = np.clip(np.sum(time <= at[:, None], axis=1) - 1, 0, time.shape[1] - 2)
     t0, t1, f0, f1 = time[rows, k], time[rows, k + 1], thrust[rows, k], thrust[rows, k + 1]

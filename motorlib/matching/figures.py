@@ -21,12 +21,13 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..flight.airframe import Airframe
+from ..flight.delays import nearest_delay_column
+from ..flight.descent import terminal_speed_m_s
 from ..flight.integrate import FlightSettings
 from ..flight.pack import MotorPack
 from ..flight.results import FlightResults
 from ..flight.rulebook import evaluate_rules, flown_rule_inputs
 from ..motor.checks import Finding
-from ..units import STANDARD_GRAVITY_M_S2
 
 if TYPE_CHECKING:
     from .rank import MatchSettings
@@ -41,12 +42,8 @@ _STABILITY_KEYS = ("stability_margin_cal", "nose_weight_for_stability_kg", "nose
 def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[float]]) -> tuple[np.ndarray, ...]:
     """For every flight: the reported delay closest to the optimal one and its ejection state (vectorised)."""
     delays = pack.delays_s
-    optimal = results.optimal_delay_s
-    distance = np.abs(delays - optimal[:, None])
-    distance = np.where(np.isnan(distance), np.inf, distance)
-    col = np.argmin(distance, axis=1)
+    col, has = nearest_delay_column(delays, results.optimal_delay_s)
     rows = np.arange(delays.shape[0])
-    has = np.isfinite(distance[rows, col])
     chosen = np.where(has, delays[rows, col], np.nan)
     altitude = np.where(has, results.ejection_altitude_m[rows, col], np.nan)
     speed = np.where(has, results.ejection_speed_m_s[rows, col], np.nan)
@@ -64,7 +61,7 @@ def _landing_speed(frame: Airframe, results: FlightResults, pack: MotorPack) -> 
     extra = 0.0
     for device in frame.recovery_devices:  # the drag area open at landing: every device, or the last that replaces
         extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
-    return np.sqrt(2.0 * burnt_mass * STANDARD_GRAVITY_M_S2 / (float(rho) * (extra + body)))
+    return terminal_speed_m_s(burnt_mass, extra + body, float(rho))
 
 
 def flies_descent(frame: Airframe, s: MatchSettings) -> bool:
@@ -87,7 +84,7 @@ def _deployment_speeds(frame: Airframe, results: FlightResults, pack: MotorPack)
         return out
     flown = results.deployment_speed_m_s[:, : len(devices)]
     out[:, 0] = flown[:, 0]
-    weight = (results.liftoff_mass_kg - pack.propellant_mass_kg) * STANDARD_GRAVITY_M_S2
+    burnt_mass = results.liftoff_mass_kg - pack.propellant_mass_kg
     body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
     height = results.deployment_altitude_m[:, 0]
     extra = 0.0
@@ -97,7 +94,7 @@ def _deployment_speeds(frame: Airframe, results: FlightResults, pack: MotorPack)
         if devices[k].deploy == "altitude":
             height = np.minimum(height, float(devices[k].deploy_altitude_m))  # type: ignore[arg-type]
         _, _, rho, _ = frame.launch.site.air(np.maximum(height, 0.0))
-        out[:, k] = np.where(np.isfinite(out[:, 0]), np.sqrt(2.0 * weight / (rho * (body + extra))), np.nan)
+        out[:, k] = np.where(np.isfinite(out[:, 0]), terminal_speed_m_s(burnt_mass, body + extra, rho), np.nan)
     landed = np.isfinite(results.landing_east_m)[:, None]  # the descent was flown: its own opening speeds
     return np.where(landed & np.isfinite(flown), flown, out) if flown.shape == out.shape else out
 
@@ -112,7 +109,7 @@ def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) 
         return np.full(n, np.nan)
     alpha = FlightSettings().wind_exponent
     _, _, rho0, _ = frame.launch.site.air(0.0)
-    weight = (results.liftoff_mass_kg - pack.propellant_mass_kg) * STANDARD_GRAVITY_M_S2
+    burnt_mass = results.liftoff_mass_kg - pack.propellant_mass_kg
     body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
     tops = [np.maximum(results.deployment_altitude_m[:, 0], 0.0)]
     for device in devices[1:]:
@@ -123,7 +120,7 @@ def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) 
     for k, device in enumerate(devices):
         extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
         top, bottom = tops[k], (tops[k + 1] if k + 1 < len(devices) else np.zeros(n))
-        v_t = np.sqrt(2.0 * weight / (float(rho0) * (body + extra)))
+        v_t = terminal_speed_m_s(burnt_mass, body + extra, float(rho0))
         # ∫ w(z) dz / v_t over [bottom, top] with w(z) = w10·(z/10)^α
         band = (top ** (alpha + 1.0) - bottom ** (alpha + 1.0)) / ((alpha + 1.0) * 10.0**alpha)
         drift += frame.launch.wind_speed_m_s * band / v_t

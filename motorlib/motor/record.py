@@ -22,6 +22,10 @@ ejection charge at all (``no_ejection_charge``: plugged or booster), or unknown
 Motor mass is assumed to fall from the loaded mass by the propellant mass in
 proportion to the impulse delivered so far: ``m(t) = m0 - mp * I(t) / I_total``.
 
+The curve arithmetic every module shares lives here with the record it describes: the cumulative trapezoid
+(:func:`cumulative_impulse_ns`, also the flight's pack and the stability code) and the threshold window
+(:func:`threshold_window_s`, also the test-stand reduction). That puts the module a little past 500 lines.
+
 numpy only (no scipy: the flight path imports this module).
 """
 
@@ -46,6 +50,8 @@ __all__ = [
     "MotorRecord",
     "PROVENANCE_KINDS",
     "Provenance",
+    "cumulative_impulse_ns",
+    "threshold_window_s",
 ]
 
 # Fraction of peak thrust; NFPA 1125 as secondary sources summarise it (tests/reference/check_values.md#motor-testing).
@@ -307,8 +313,7 @@ class MotorRecord:
 
     def cumulative_impulse_ns(self) -> np.ndarray:
         """Impulse delivered up to each sample [N·s], shape (n_samples,), starting at 0."""
-        steps = 0.5 * (self.thrust_n[1:] + self.thrust_n[:-1]) * np.diff(self.time_s)
-        return np.concatenate(([0.0], np.cumsum(steps)))
+        return cumulative_impulse_ns(self.time_s, self.thrust_n)
 
     def thrust_at_n(self, time_s: np.ndarray | float) -> np.ndarray:
         """Thrust [N] at any times [s] (linear between samples, 0 outside); vectorised."""
@@ -361,13 +366,7 @@ class MotorRecord:
         """
         if not 0.0 < threshold < 1.0:
             raise ValueError(f"`threshold` must lie strictly between 0 and 1, got {threshold!r}")
-        level = threshold * self.peak_thrust_n
-        t, f = self.time_s, self.thrust_n
-        above = np.flatnonzero(f >= level)
-        first, last = int(above[0]), int(above[-1])
-        start = float(t[first]) if first == 0 else _crossing(t[first - 1], f[first - 1], t[first], f[first], level)
-        end = float(t[last]) if last == f.size - 1 else _crossing(t[last], f[last], t[last + 1], f[last + 1], level)
-        return start, end
+        return threshold_window_s(self.time_s, self.thrust_n, threshold * self.peak_thrust_n)
 
     def burn_time_s(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> float:
         """Threshold burn time [s] (see module docstring); default 5 % of peak."""
@@ -448,6 +447,37 @@ def _crossing(t0: float, f0: float, t1: float, f1: float, level: float) -> float
     if f1 == f0:
         return float(t0)
     return float(t0 + (level - f0) * (t1 - t0) / (f1 - f0))
+
+
+def threshold_window_s(time_s: np.ndarray, thrust_n: np.ndarray, level_n: float) -> tuple[float, float]:
+    """Start and end [s] of the span where thrust is at or above ``level_n`` [N]: where it first reaches the
+    level and where it last falls to it, by linear interpolation in the crossing interval; a curve that starts
+    (ends) at or above the level starts (ends) at its first (last) sample. The level must be reached. The one
+    threshold crossing of the library: a record's burn window, a reduction's ignition and burnout.
+
+    >>> threshold_window_s(np.array([0.0, 1.0, 2.0, 3.0]), np.array([0.0, 10.0, 10.0, 0.0]), 5.0)
+    (0.5, 2.5)
+    """
+    t, f = time_s, thrust_n
+    above = np.flatnonzero(f >= level_n)
+    first, last = int(above[0]), int(above[-1])
+    start = float(t[0]) if first == 0 else _crossing(t[first - 1], f[first - 1], t[first], f[first], level_n)
+    end = float(t[-1]) if last == f.size - 1 else _crossing(t[last], f[last], t[last + 1], f[last + 1], level_n)
+    return start, end
+
+
+def cumulative_impulse_ns(time_s: np.ndarray, thrust_n: np.ndarray) -> np.ndarray:
+    """Impulse [N·s] delivered up to each sample, by the trapezoid rule along the last axis, starting at 0.
+
+    ``time_s`` and ``thrust_n`` have the same shape, (n_samples,) or (n_motors, n_samples); so does the
+    result. The trapezoid rule is the exact integral of the piecewise-linear curve.
+
+    >>> cumulative_impulse_ns(np.array([0.0, 1.0, 3.0]), np.array([0.0, 10.0, 10.0])).tolist()
+    [0.0, 5.0, 25.0]
+    """
+    time, thrust = np.asarray(time_s, dtype=float), np.asarray(thrust_n, dtype=float)
+    steps = 0.5 * (thrust[..., 1:] + thrust[..., :-1]) * np.diff(time, axis=-1)
+    return np.concatenate((np.zeros(steps.shape[:-1] + (1,)), np.cumsum(steps, axis=-1)), axis=-1)
 
 
 MIN_SAMPLES: Final = 2  # fewer cannot describe any curve; check.py warns below a larger count

@@ -46,7 +46,7 @@ from typing import Any
 
 from .checks import Finding
 from .classes import CLASS_LETTERS, class_bounds_ns, impulse_class_for
-from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord, freeze_arrays
+from .record import DEFAULT_BURN_THRESHOLD, FiringSpread, MotorRecord, freeze_arrays, threshold_window_s
 from ..errors import CurveDataError, Problem
 
 __all__ = ["ReductionSettings", "Reduction", "combine_reductions", "firing_spread", "firing_table", "lowpass_design_hz",
@@ -435,12 +435,9 @@ def _find_events(grid: np.ndarray, filtered: np.ndarray, noise: float,
     # 5 σ: normal noise passes it with a probability of about 3e-7 per reading (closed form), so a quiet log
     # cannot fake ignition; on a noisy log it raises the threshold above event_fraction.
     threshold = max(event_fraction * peak, 5.0 * noise)
-    above = np.flatnonzero(filtered >= threshold)
-    i0, i1 = int(above[0]), int(above[-1])
-    t_ign = _cross(grid, filtered, i0 - 1, i0, threshold) if i0 > 0 else float(grid[0])
-    t_out = _cross(grid, filtered, i1, i1 + 1, threshold) if i1 < grid.size - 1 else float(grid[-1])
+    t_ign, t_out = threshold_window_s(grid, filtered, threshold)
     findings: list[Finding] = []
-    if i1 == grid.size - 1:
+    if filtered[-1] >= threshold:
         findings.append(Finding("warning", "log-ends-burning", "the log ends while the motor still burns"))
     return t_ign, t_out, threshold, findings
 
@@ -476,12 +473,6 @@ def _reduce_curve(burn_t: np.ndarray, burn_f: np.ndarray,
                                 f"with {len(keep)} points the reduced curve is off by {100 * impulse_error:.2f} % in "
                                 f"impulse and {100 * peak_error:.2f} % in peak thrust; allow more points"))
     return red_t, red_f, impulse, impulse_error, peak_error, findings
-
-
-def _cross(t: np.ndarray, f: np.ndarray, a: int, b: int, level: float) -> float:
-    if f[b] == f[a]:
-        return float(t[a])
-    return float(t[a] + (level - f[a]) * (t[b] - t[a]) / (f[b] - f[a]))
 
 
 def _longest_run(mask: np.ndarray) -> int:

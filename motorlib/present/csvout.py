@@ -4,6 +4,10 @@ With metric display units the columns stay in SI under their library names (``ap
 exactly as the JSON output; with imperial units each column is converted and renamed after its new unit
 (``apogee_ft``, ``rail_exit_speed_m_s`` -> ``rail_exit_speed_ft_s``, ``total_mass_kg`` -> ``total_mass_oz``).
 Motor sizes become mm and thrust and impulse stay in N and N·s (see :mod:`.display`).
+
+The three tables the commands write, one function each: a flight's trajectory (:func:`trajectory_csv`, ``fly
+--csv``), the ranked candidates (:func:`candidates_csv`, ``match --csv``) and catalog rows (:func:`catalog_csv`,
+``catalog list --csv``). Their column names are a contract (``tests/cli/test_csv_headers.py`` pins them).
 """
 
 from __future__ import annotations
@@ -15,7 +19,14 @@ from typing import Any, Callable, Sequence
 
 from .display import DisplayUnits
 
-__all__ = ["rows_csv"]
+__all__ = ["TRAJECTORY_COLUMNS", "candidates_csv", "catalog_csv", "rows_csv", "trajectory_csv"]
+
+# fly --csv: the trajectory's columns in order, then ``phase`` (ascent or descent)
+TRAJECTORY_COLUMNS = ("time_s", "x_m", "y_m", "altitude_m", "east_m", "north_m", "vx_m_s", "vy_m_s", "vz_m_s",
+                      "ax_m_s2", "ay_m_s2", "az_m_s2")
+# match --csv: the candidate keys left out (codes and texts as lists), their texts given as two columns instead
+_CANDIDATE_LISTS = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "notes", "note_codes",
+                    "nose_weight_reasons", "nose_weight_reason_codes")
 
 _MOTOR_SIZE_KEYS = frozenset({"diameter_m", "length_m", "mount_diameter_m", "mount_length_m"})
 # name suffix -> kind, longest suffix first
@@ -57,3 +68,30 @@ def rows_csv(rows: Sequence[dict[str, Any]], columns: Sequence[str], units: Disp
             cells.append("" if value is None else convert(value))
         writer.writerow(cells)
     return buffer.getvalue()
+
+
+def trajectory_csv(trajectory: dict[str, Any], units: DisplayUnits) -> str:
+    """One flown trajectory (``FlightResults.trajectories[i]``) as CSV: :data:`TRAJECTORY_COLUMNS` and ``phase``."""
+    rows = [{**{name: float(trajectory[name][row]) for name in TRAJECTORY_COLUMNS},
+             "phase": "descent" if trajectory["descent"][row] else "ascent"}
+            for row in range(len(trajectory["time_s"]))]
+    return rows_csv(rows, [*TRAJECTORY_COLUMNS, "phase"], units)
+
+
+def candidates_csv(candidates: Sequence[dict[str, Any]], conditions: dict[str, Any], units: DisplayUnits) -> str:
+    """Ranked candidates (``MatchResult.candidates``) as CSV: every figure, then the reasons and notes as text
+    in the display units, each list joined with ``; ``."""
+    from .messages import note_text, reason_text
+
+    columns = [k for k in candidates[0] if k not in _CANDIDATE_LISTS] + ["reasons", "notes"] if candidates else []
+    rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, conditions, units)
+                                       for code, text in zip(c["reason_codes"], c["reasons"])),
+             "notes": "; ".join(note_text(code, text, c, conditions, units)
+                                for code, text in zip(c["note_codes"], c["notes"]))}
+            for c in candidates]
+    return rows_csv(rows, columns, units)
+
+
+def catalog_csv(rows: Sequence[dict[str, Any]], units: DisplayUnits) -> str:
+    """Catalog rows (``Catalog.rows()``) as CSV: every column but the findings."""
+    return rows_csv(rows, [c for c in rows[0] if c != "findings"] if rows else [], units)

@@ -26,16 +26,10 @@ from typing import Iterable, Sequence
 
 from .flightcard import FlightCard
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE, VERDICT_MARKS
+from ..safety import CAUTIONS  # the reports' "Before you fly" box; the words live in motorlib.safety
 
 __all__ = ["CAUTIONS", "ChartBlock", "Facts", "FlyReport", "MatchReport", "Notes", "ReduceReport", "TableBlock",
            "Trace", "check_report_target", "file_sha256", "render_html", "write_report"]
-
-CAUTIONS = (
-    "Every figure here is a prediction from a simplified model: an estimate, not a promise.",
-    "Follow your national rocketry association's safety code, local law and the launch site's rules.",
-    "The range safety officer decides whether, where and when this rocket flies.",
-    "Fly only motors within your certification.",
-)
 
 
 @dataclass(frozen=True)

@@ -19,6 +19,9 @@ def test_filters_and_sorting(tmp_catalog: Catalog) -> None:
     # listed 6 s, or adjustable with a longest delay of 6 s or more
     assert {r["designation"] for r in delays} >= {"B5-2,4,6", "E9-4,6,8", "G59-10"}
     assert "C6-3,5,7" not in {r["designation"] for r in delays}
+    # one delay rule with the flight (issue 17): an adjustable delay is drilled in whole 1 s steps, so 5.5 s is
+    # offered by no adjustable motor, though G59-10's 10 s reaches it
+    assert "G59-10" not in {r["designation"] for r in tmp_catalog.rows(CatalogFilter(delay_s=5.5))}
     assert tmp_catalog.rows(CatalogFilter(text="boost-sustain"))  # notes are searched
     assert parse_class_range("d..g") == ("D", "G") and parse_class_range("1/2a") == ("1/2A", "1/2A")
     with pytest.raises(ValueError, match="class range"):

@@ -18,3 +18,13 @@ def test_tags_round_trip_and_survive_reindex(tmp_catalog: Catalog) -> None:
         tmp_catalog.tag(["G59-10"], "bad tag!")
     tmp_catalog.remove("G59-10")
     assert tmp_catalog.tags() == {} and len(tmp_catalog) == 26
+
+
+def test_orphan_tags_name_the_ids_whose_files_are_gone(tmp_catalog: Catalog) -> None:
+    ids = tmp_catalog.tag(["G59-10", "F29-8"], "in-stock")
+    tmp_catalog.tag(["F29-8"], "club-box")
+    assert tmp_catalog.orphan_tags() == {}
+    gone = next(r for r in tmp_catalog.rows() if r["motor_id"] == ids[0])
+    (tmp_catalog.root / gone["path"]).unlink()  # deleted by hand, not through remove()
+    tmp_catalog.reindex()
+    assert tmp_catalog.orphan_tags() == {"in-stock": [ids[0]]}

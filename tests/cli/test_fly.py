@@ -62,6 +62,17 @@ def test_fly_errors_are_clear() -> None:
     assert code == 2 and "can only be shortened" in out
 
 
+def test_fly_refuses_a_drilled_delay_the_flight_would_not_offer() -> None:
+    # one delay rule (issue 17): F29-8's adjustable 8 s delay is drilled in 1 s steps, as the flight's pack
+    # reports them; 3.5 s was accepted here and flown at the nearest offered delay instead
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "3.5", "--json")
+    assert code == 2 and "1 s steps" in out
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "3", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["chosen_delay_s"] == 3.0 and [e["delay_s"] for e in data["ejections"]] == [3.0, 8.0]
+
+
 def test_fly_exits_1_when_the_flight_fails(tmp_path: Path) -> None:
     # Issue 10 defect 8: a rocket that never lifts off was reported with exit code 0.
     heavy = tmp_path / "heavy.toml"

@@ -12,6 +12,7 @@ from scipy.integrate import solve_ivp
 
 from motorlib.flight import descent as recovery
 from motorlib.flight.atmosphere import Site
+from motorlib.flight.geometry import disc_drag_area_m2
 
 from ..reference.values import DESCENT_RATE, FALL_FROM_REST, FALL_FROM_REST_POINTS
 
@@ -45,6 +46,25 @@ def test_descent_rate_oracle() -> None:
     area = cd * math.pi * diameter**2 / 4
     assert float(recovery.terminal_speed_m_s(mass, area, rho)) == pytest.approx(speed, abs=5e-5)
     assert float(recovery.drag_area_m2(mass, speed, rho)) == pytest.approx(area, rel=1e-4)
+
+
+def test_descent_rate_oracle_from_the_canopy_size() -> None:
+    # the same canopy given by its Cd and diameter (Cd·π·d²/4, the one drag-area helper): check-values.md 4.3
+    area = disc_drag_area_m2(0.75, 0.9)
+    assert area == pytest.approx(0.4771, abs=5e-5)
+    assert float(recovery.terminal_speed_m_s(1.0, area, 1.225)) == pytest.approx(5.7928, abs=5e-5)
+
+
+def test_terminal_speed_takes_the_local_gravity() -> None:
+    # v = √(2·m·g/(ρ·Cd·A)) with m = 2 kg, Cd·A = 0.5 m², ρ = 1.225 kg/m³: 8.00271 m/s at g0, 3.25764 m/s at
+    # the Moon's 1.625 m/s² (worked by hand); the pad's speed uses the pad's gravity, below g0 at 4 km
+    assert float(recovery.terminal_speed_m_s(2.0, 0.5, 1.225)) == pytest.approx(8.00271, abs=5e-6)
+    assert float(recovery.terminal_speed_m_s(2.0, 0.5, 1.225, 1.625)) == pytest.approx(3.25764, abs=5e-6)
+    high = Site(elevation_m=4000.0)
+    rho = float(high.air(0.0)[2])
+    assert float(recovery.pad_terminal_speed_m_s(2.0, 0.5, high)) < float(recovery.terminal_speed_m_s(2.0, 0.5, rho))
+    assert float(recovery.pad_terminal_speed_m_s(2.0, 0.5, high, vary_gravity=False)) == pytest.approx(
+        float(recovery.terminal_speed_m_s(2.0, 0.5, rho)), rel=1e-12)
 
 
 @pytest.mark.parametrize(("time", "speed"), [(9.5, 9.2), (18.2, 4.6)])

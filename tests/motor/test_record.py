@@ -10,6 +10,7 @@ from scipy.optimize import brentq
 
 from motorlib import CheckSettings, CurveDataError, FiringSpread, MotorRecord, check_record
 from motorlib.units import STANDARD_GRAVITY_M_S2
+from motorlib.motor.record import cumulative_impulse_ns, threshold_window_s
 
 from ..conftest import curves
 from ..reference.values import TRIANGLE
@@ -275,3 +276,23 @@ def test_firing_spread_invariants(kwargs: dict) -> None:
     args.update(kwargs)
     with pytest.raises(CurveDataError, match="firing_spread"):
         FiringSpread(**args)
+
+
+def test_cumulative_impulse_of_a_triangle_is_the_closed_form_and_batches() -> None:
+    # a triangle rising to 30 N at 1 s and back to 0 at 3 s: I(t) = 15 t² up to 1 s, 45 N·s in all (by hand)
+    t = np.array([0.0, 0.5, 1.0, 2.0, 3.0])
+    f = np.array([0.0, 15.0, 30.0, 15.0, 0.0])
+    np.testing.assert_allclose(cumulative_impulse_ns(t, f), [0.0, 3.75, 15.0, 37.5, 45.0], rtol=1e-12)
+    # k curves at once give the numbers of k single ones (the pack and the stability code pass 2-D arrays)
+    both = cumulative_impulse_ns(np.stack([t, 2 * t]), np.stack([f, f]))
+    np.testing.assert_allclose(both, [cumulative_impulse_ns(t, f), cumulative_impulse_ns(2 * t, f)], rtol=1e-12)
+
+
+def test_threshold_window_interpolates_and_keeps_the_ends() -> None:
+    # 10 N line from 0 at t = 0 to 20 N at t = 2 s, flat, down to 0 at t = 4 s: 5 N is reached at 0.5 s, left at 3.75 s
+    t = np.array([0.0, 2.0, 3.0, 4.0])
+    f = np.array([0.0, 20.0, 20.0, 0.0])
+    assert threshold_window_s(t, f, 5.0) == pytest.approx((0.5, 3.75))
+    # starting or ending above the level: the first or last sample
+    assert threshold_window_s(t[1:], f[1:], 5.0) == pytest.approx((2.0, 3.75))
+    assert threshold_window_s(t[:3], f[:3], 5.0) == pytest.approx((0.5, 3.0))
