@@ -49,7 +49,7 @@ def test_descent_rate_oracle() -> None:
 
 
 def test_descent_rate_oracle_from_the_canopy_size() -> None:
-    # the same canopy given by its Cd and diameter (Cd·π·d²/4, the one drag-area helper): check-values.md 4.3
+    # the same canopy given by its Cd and diameter (Cd·π·d²/4, the one drag-area helper): tests/reference/check_values.md#descent-rate
     area = disc_drag_area_m2(0.75, 0.9)
     assert area == pytest.approx(0.4771, abs=5e-5)
     assert float(recovery.terminal_speed_m_s(1.0, area, 1.225)) == pytest.approx(5.7928, abs=5e-5)
