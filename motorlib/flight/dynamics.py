@@ -59,17 +59,21 @@ class _Group:
     cds_powered: np.ndarray | None = None  # Cd while burning on ``machs`` (estimated drag); None: as ``cds``
     profile: MeasuredWind | None = None  # a measured wind profile (east/north against height) for the group
     planar: bool = True  # every flight stays in its x-z plane: y and its speed are not integrated
+    calm: bool = False  # no flight of the group has wind: the wind is not computed at all
 
     def wind(self, a: dict[str, np.ndarray], z: np.ndarray, shape: np.ndarray
              ) -> tuple[np.ndarray, np.ndarray | None]:
         """Wind along each flight's x and y axes [m/s] at heights z (y None for a power law: it has none)."""
+        if self.calm:
+            return 0.0, None
         if self.profile is None:
             return a["wind"] * shape, None
         east, north = self.profile.velocity_m_s(z)
         return east * a["e1e"] + north * a["e1n"], east * a["e2e"] + north * a["e2n"]
 
-    def lookup(self, z: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        """Density, speed of sound, gravity and wind shape w(z)/w(10 m) at heights z above the pad.
+    def lookup(self, z: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
+        """Density, speed of sound, gravity and wind shape w(z)/w(10 m) at heights z above the pad (shape None in
+        a calm group).
 
         The wind power law is computed exactly: it is too curved near the ground for a 5 m table.
         """
@@ -79,6 +83,8 @@ class _Group:
         air += (u - i) * self.slope.take(i, axis=1)
         # 0.1 = 1 / (10 m reference); held above the cap
         # (np.minimum/np.maximum: np.clip costs several times more per call on arrays this size)
+        if self.calm:
+            return air[0], air[1], air[2], None
         shape = (np.minimum(np.maximum(z, self.wind_floor_m), self.wind_cap_m) * 0.1) ** self.wind_exponent
         return air[0], air[1], air[2], shape
 
@@ -133,7 +139,7 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz):
     inv_mass = 1.0 / (a["seg_m0"] + (a["seg_m1"] + a["seg_m2"] * dt) * dt)
     rho, sound, grav, shape = g.lookup(z)
     wind_x, wind_y = g.wind(a, z, shape)
-    vrx = vx - wind_x
+    vrx = vx if g.calm else vx - wind_x
     if g.planar:
         vry = None
         speed = np.sqrt(vrx * vrx + vz * vz)

@@ -200,6 +200,7 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
     dry = np.array([f.mass_kg for f in frames]) + added[idx]
     e1e, e1n, ux, uy, uz = np.array([_basis(f.launch) for f in frames]).T
     g.planar = g.profile is None and not np.any(uy != 0.0)  # 3-D only for a rail across the wind, or a profile
+    g.calm = g.profile is None and not any(f.launch.wind_speed_m_s for f in frames)
     params = {
         "itot": pack.total_impulse_ns[idx], "m_full": dry + pack.total_mass_kg[idx],
         "m_prop": pack.propellant_mass_kg[idx], "area": np.array([f.reference_area_m2 for f in frames]),
@@ -515,12 +516,13 @@ def _load_segment(a: dict, run: _Pass, mask: np.ndarray | None) -> None:
     the burnt-out mass."""
     rows = a["ref"] if mask is None else a["ref"][mask]
     j = np.minimum(a["seg"] if mask is None else a["seg"][mask], run.last_seg[rows] - 1)
-    times, thrust = run.times_s, run.thrust_n
-    t_a, t_b, f_a = times[rows, j], times[rows, j + 1], thrust[rows, j]
-    slope = (thrust[rows, j + 1] - f_a) / np.maximum(t_b - t_a, _TINY)
+    k = rows * run.times_s.shape[1] + j  # flat positions: one take per array beats 2-D fancy indexing
+    times, thrust = run.times_s.ravel(), run.thrust_n.ravel()
+    t_a, t_b, f_a = times.take(k), times.take(k + 1), thrust.take(k)
+    slope = (thrust.take(k + 1) - f_a) / np.maximum(t_b - t_a, _TINY)
     pick = (lambda name: a[name]) if mask is None else (lambda name: a[name][mask])
     per_ns = pick("m_prop") / pick("itot")  # propellant burnt per N·s [kg/(N·s)]
-    values = (t_a, t_b, f_a, slope, pick("m_full") - per_ns * run.cumulative_ns[rows, j], -per_ns * f_a,
+    values = (t_a, t_b, f_a, slope, pick("m_full") - per_ns * run.cumulative_ns.ravel().take(k), -per_ns * f_a,
               -0.5 * per_ns * slope)
     for name, value in zip(_SEGMENT, values):
         if mask is None:

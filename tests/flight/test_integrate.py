@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
@@ -301,3 +302,17 @@ def test_kinks_of_a_peaked_drag_table_are_stepped_onto() -> None:
     assert np.all(results.max_mach > 1.3)
     for i, (frame, motor) in enumerate(cases):
         assert results.apogee_m[i] == pytest.approx(reference_flight(frame, motor)["apogee_m"], rel=1e-4)
+
+
+def test_a_calm_flight_flies_the_same_alone_and_beside_a_windy_one() -> None:
+    """A group with no wind skips the wind altogether; flown in a windy group, the calm flight takes the wind
+    path with zero wind. Both must give the same numbers (each flight's steps depend on its own state only)."""
+    frames, motors = synthetic_flights(2, seed=3)
+    calm = dataclasses.replace(frames[0], launch=dataclasses.replace(frames[0].launch, wind_speed_m_s=0.0))
+    windy = dataclasses.replace(frames[1], launch=dataclasses.replace(frames[1].launch, wind_speed_m_s=6.0,
+                                                                      site=calm.launch.site))
+    alone = simulate(calm, [motors[0]], descent=False)
+    together = simulate([calm, windy], motors, descent=False)
+    assert together.apogee_m[0] == alone.apogee_m[0]
+    assert together.rail_exit_speed_m_s[0] == alone.rail_exit_speed_m_s[0]
+    assert together.apogee_m[1] != alone.apogee_m[0]
