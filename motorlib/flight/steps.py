@@ -79,15 +79,15 @@ def _height_step(a: dict, h: np.ndarray, heights: tuple[float, ...]) -> np.ndarr
     z + vz·h + ½·az·h² (stable root) and aimed at with a 1e-7 overshoot, as the other events.
     """
     z, vz, az = a["z"], a["vz"], a["az"]
-    windy = a["wind"] != 0.0  # a calm flight in a windy group steps as it would alone
+    z_end = z + (vz + 0.5 * az * h) * h
     for height in heights:
         if not np.isfinite(height):
             continue
-        ahead = height - z
-        reached = z + (vz + 0.5 * az * h) * h - height
-        crosses = ((ahead * reached) > 0.0) & windy  # on the other side at the step's end (z − height changes sign)
+        crosses = (z - height) * (z_end - height) < 0.0  # on the other side at the step's end
         if not crosses.any():
             continue
+        crosses &= a["wind"] != 0.0  # a calm flight in a windy group steps as it would alone
+        ahead = height - z
         root = np.sqrt(np.maximum(vz * vz + 2.0 * az * ahead, 0.0))
         denom = vz + np.where(vz >= 0.0, root, -root)
         t_hit = np.where(crosses & (denom != 0.0), 2.0 * ahead / np.where(denom == 0.0, 1.0, denom), np.inf)
