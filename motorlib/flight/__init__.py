@@ -39,7 +39,8 @@ Modules
 * ``wind``: the capped power law and measured wind profiles;
 * ``results``: status codes, ``MESSAGES`` and :class:`FlightResults`;
 * ``descent``: closed-form fall under quadratic drag; ``rules``: the launch rules' thresholds (standard
-  library only); ``rulebook``: their one vectorised evaluation for ``fly`` and ``match``.
+  library only); ``rulebook``: their one vectorised evaluation for ``fly`` and ``match`` (and, as
+  per-code masks, for the sampled flights of ``scatter`` and ``match --robust``).
 """
 
 from __future__ import annotations
@@ -54,7 +55,8 @@ _EXPORTS = {
     "FlightSettings": ".integrate", "simulate": ".integrate", "MotorPack": ".pack",
     "MESSAGES": ".results", "NO_LIFTOFF": ".results", "NO_MASS": ".results", "OK": ".results",
     "STUCK_ON_RAIL": ".results", "FlightResults": ".results", "LaunchRules": ".rules",
-    "RuleInputs": ".rulebook", "evaluate_rules": ".rulebook", "flown_rule_inputs": ".rulebook",
+    "RuleInputs": ".rulebook", "code_masks": ".rulebook", "evaluate_rules": ".rulebook",
+    "flown_rule_inputs": ".rulebook",
 }
 
 if _typing.TYPE_CHECKING:
@@ -63,7 +65,7 @@ if _typing.TYPE_CHECKING:
     from .integrate import FlightSettings, simulate
     from .pack import MotorPack
     from .results import MESSAGES, NO_LIFTOFF, NO_MASS, OK, STUCK_ON_RAIL, FlightResults
-    from .rulebook import RuleInputs, evaluate_rules, flown_rule_inputs
+    from .rulebook import RuleInputs, code_masks, evaluate_rules, flown_rule_inputs
     from .rules import LaunchRules
 
 
@@ -94,6 +96,7 @@ __all__ = [
     "RuleInputs",
     "STUCK_ON_RAIL",
     "Site",
+    "code_masks",
     "evaluate_rules",
     "flown_rule_inputs",
     "simulate",

@@ -40,15 +40,18 @@ numpy only.
 
 from __future__ import annotations
 
-from typing import Final, NamedTuple
+from typing import TYPE_CHECKING, Final, NamedTuple
 
 import numpy as np
 
 from .atmosphere import EARTH_RADIUS_M, Site
 from ..units import STANDARD_GRAVITY_M_S2 as G0
 
+if TYPE_CHECKING:
+    from .airframe import Airframe
+
 __all__ = ["Fall", "drag_area_from_fall_m2", "drag_area_m2", "fall_distance_m", "fall_speed_m_s", "fall_through_air",
-           "fall_time_s", "pad_terminal_speed_m_s", "terminal_speed_from_fall_m_s", "terminal_speed_m_s"]
+           "fall_time_s", "landing_descent_rate_m_s", "pad_terminal_speed_m_s", "terminal_speed_from_fall_m_s", "terminal_speed_m_s"]
 
 SLAB_M: Final = 5.0  # default slab height [m]; error bound in the module docstring
 _MIN_SLABS: Final = 128  # short falls are mostly the start-up transient: resolve it whatever the height
@@ -306,6 +309,38 @@ def pad_terminal_speed_m_s(mass_kg: np.ndarray | float, drag_area_m2: np.ndarray
     g_pad = _gravity(site, np.zeros(()), vary_gravity)
     with np.errstate(divide="ignore"):
         return terminal_speed_m_s(m, area, float(site.air(0.0)[2]), g_pad)
+
+
+def landing_descent_rate_m_s(frame: Airframe, burnt_mass_kg: np.ndarray | float,
+                             body_drag_area_m2: np.ndarray | float | None = None) -> np.ndarray:
+    """Estimated descent rate under the recovery device(s) at landing [m/s]: the terminal speed at the pad,
+    √(2·m·g₀/(ρ_pad·(Cd·A_devices + Cd·A_body))), NaN for an airframe without a device.
+
+    The rate a descent under a device approaches well before landing; ``match`` and ``match --robust`` judge it
+    where they do not fly the descent (``fly`` and ``scatter`` always fly it). The devices open at landing are
+    every device, or the last one that replaces those before it. The body's drag area is its drag coefficient (a
+    table's first entry) times its reference area, unless ``body_drag_area_m2`` gives one per flight (sampled
+    airframes); g₀ is standard gravity and ρ the site's density at the pad.
+
+    Parameters
+    ----------
+    frame : Airframe
+    burnt_mass_kg : float or ndarray, shape (n,)
+        The rocket's mass after burnout [kg].
+    body_drag_area_m2 : float or ndarray, shape (n,), optional
+        The body's Cd·A [m²].
+    """
+    burnt = np.asarray(burnt_mass_kg, dtype=float)
+    devices = frame.recovery_devices
+    if not devices:
+        return np.full(burnt.shape, np.nan)
+    if body_drag_area_m2 is None:
+        body_drag_area_m2 = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
+    open_m2 = 0.0
+    for device in devices:
+        open_m2 = device.drag_area_m2 + (0.0 if device.replaces else open_m2)
+    return terminal_speed_m_s(burnt, open_m2 + np.asarray(body_drag_area_m2, dtype=float),
+                              float(frame.launch.site.air(0.0)[2]))
 
 
 def drag_area_from_fall_m2(height_m: np.ndarray | float, time_s: np.ndarray | float,

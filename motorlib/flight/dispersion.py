@@ -59,11 +59,14 @@ from typing import Any, Callable, Final, Sequence
 
 import numpy as np
 
-from .airframe import Airframe, Recovery
+from .airframe import RECOVERY_DEVICES, Airframe, Recovery
+from .descent import landing_descent_rate_m_s
 from .integrate import OK, FlightSettings, MotorPack, simulate
+from .rulebook import FLIGHT_CODES, code_masks, flown_rule_inputs
 from .rules import LaunchRules
 from ..motor.record import FiringSpread, MotorRecord
-from .sample_stats import CHI2_2DOF_95, _num, _percentiles, _probability, ellipse, inside_ellipse
+from .sample_stats import (CHI2_2DOF_95, _num, _percentiles, _probability, ellipse, failure_shares, inside_ellipse,
+                           rule_masks)
 
 __all__ = ["BLOCK_SIZE", "CHI2_2DOF_95", "VARIABLES", "DispersionSettings", "Uncertainty", "catalog_spread",
            "default_workers", "ellipse", "fly_samples", "inside_ellipse", "nominal_delay_s", "run_samples", "run_scatter", "stability_spread", "standard_normals", "summarize"]
@@ -160,8 +163,12 @@ class DispersionSettings:
     ceiling_m, field_radius_m : float or None
         Altitude limit, and radius of the field around the pad [m].
     max_deploy_speed_m_s : float or None
-        An opening above this speed counts as a failure; None: each device against its own kind's limit
-        (:meth:`~motorlib.flight.rules.LaunchRules.deployment_limit_m_s`, common practice).
+        An opening above this speed counts as a failure, whatever the device; None: each device against its own
+        kind's limit in ``rules`` (:meth:`~motorlib.flight.rules.LaunchRules.deployment_limit_m_s`, common practice).
+    rules : LaunchRules
+        The launch rules every sample is judged by (:func:`motorlib.flight.rulebook.code_masks`, the rule book of
+        ``fly`` and ``match``); ``field_radius_m`` and ``max_deploy_speed_m_s`` above, when given, replace its field
+        radius and deployment limits (:meth:`launch_rules`).
     chunk_size : int
         Flights per batched call (memory against per-call overhead); the unit of work of a worker process.
     flight : FlightSettings
@@ -176,6 +183,7 @@ class DispersionSettings:
     max_deploy_speed_m_s: float | None = None
     chunk_size: int = 1000
     flight: FlightSettings = field(default_factory=FlightSettings)
+    rules: LaunchRules = field(default_factory=LaunchRules)
 
     def __post_init__(self) -> None:
         if self.n_samples < 1:
@@ -188,6 +196,17 @@ class DispersionSettings:
             value = getattr(self, name)
             if value is not None and not value > 0.0:
                 raise ValueError(f"`{name}` must be positive, got {value!r}")
+
+    def launch_rules(self) -> LaunchRules:
+        """``rules`` with this run's field radius and, if given, one deployment limit for every device kind."""
+        r = self.rules
+        if self.field_radius_m is not None:
+            r = replace(r, field_radius_m=self.field_radius_m)
+        if self.max_deploy_speed_m_s is not None:
+            limit = float(self.max_deploy_speed_m_s)
+            kinds = {kind for kind, _ in r.max_deployment_speed_m_s} | set(RECOVERY_DEVICES)
+            r = replace(r, max_ejection_speed_m_s=limit, max_deployment_speed_m_s=tuple((k, limit) for k in sorted(kinds)))
+        return r
 
 
 # ----------------------------------------------------------------------------- sampling
@@ -285,7 +304,7 @@ def _build(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Seque
         total_impulse_ns=nominal.total_impulse_ns[rows] * impulse, total_mass_kg=total,
         propellant_mass_kg=np.minimum(nominal.propellant_mass_kg[rows] * impulse, 0.999 * total),
         burnout_s=nominal.burnout_s[rows] * burn, delays_s=nominal.delays_s[rows], has_mass=nominal.has_mass[rows])
-    return frames, pack, {"downwind_rad": downwind, "cg_shift_m": u0.cg_std_m * col["cg"], "wind_speed_m_s": wind}
+    return frames, pack, {"downwind_rad": downwind, "cg_shift_m": u0.cg_std_m * col["cg"]}
 
 
 def _copy_with(record: Any, **values: Any) -> Any:
@@ -318,15 +337,16 @@ def _recoveries(recovery: Recovery | None, shift_m: np.ndarray, std_m: float) ->
 
 # ----------------------------------------------------------------------------- flying
 _OUTPUTS: Final = ("status", "apogee_m", "apogee_time_s", "liftoff_time_s", "rail_exit_speed_m_s",
-                   "liftoff_thrust_to_weight", "optimal_delay_s", "deploy_delay_s", "deploy_speed_m_s", "deploy_limit_ratio",
+                   "liftoff_thrust_to_weight", "optimal_delay_s", "deploy_delay_s", "deploy_speed_m_s",
                    "landing_time_s", "landing_speed_m_s", "flight_duration_s", "landing_east_m",
-                   "landing_north_m", "cg_shift_m", "max_mach", "wind_speed_m_s")
+                   "landing_north_m", "cg_shift_m", "max_mach", "wind_speed_m_s", "broken")
 
 
 def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Sequence[Uncertainty],
                 motor_index: np.ndarray, sample_index: np.ndarray, settings: DispersionSettings,
                 delays_s: Sequence[float] | None = None, *, descent: bool = True) -> dict[str, np.ndarray]:
-    """Fly the sampled flights (motor ``motor_index[k]``, draw ``sample_index[k]``) in one batched call.
+    """Fly the sampled flights (motor ``motor_index[k]``, draw ``sample_index[k]``) in one batched call, and judge
+    each by the launch rules.
 
     Parameters
     ----------
@@ -342,12 +362,20 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
         The ejection delay chosen before the flight for each record (see :func:`nominal_delay_s`);
         None lets each flight pick its best delay.
     descent : bool
-        Fly the descent (landing point, speed and time).
+        Fly the descent (landing point, speed and time); without it the descent rate under the device is the
+        terminal estimate ``match`` judges (:func:`~motorlib.flight.descent.landing_descent_rate_m_s`) and the
+        landing point unknown.
 
     Returns
     -------
     dict of str to array, shape (n,)
-        The keys of ``_OUTPUTS``: apogee, times, rail exit speed, deployment and landing figures.
+        The keys of ``_OUTPUTS``: apogee, times, rail exit speed, deployment and landing figures
+        (``landing_speed_m_s`` is the descent rate under the device at landing, as ``fly`` and ``match`` report
+        it), and
+        ``broken``, shape (n, len(FLIGHT_CODES)): the codes of :data:`~motorlib.flight.rulebook.FLIGHT_CODES`
+        each flight gets from :func:`~motorlib.flight.rulebook.code_masks` under ``settings.launch_rules()``,
+        with its own wind, exactly as ``fly`` judges one flight (read them with
+        :func:`~motorlib.flight.sample_stats.sample_codes`).
     """
     motor_index = np.asarray(motor_index, dtype=np.int64)
     z = standard_normals(settings.seed, sample_index)
@@ -355,35 +383,32 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
     wanted = None if delays_s is None else np.asarray(delays_s, dtype=float)[motor_index]
     res = simulate(frames, pack, settings.flight, deploy_delay_s=wanted, descent=descent)
     rows = np.arange(res.n_flights)
-    deploy_speed = np.full(res.n_flights, np.nan)
-    if frame.recovery is None or frame.recovery.deploy == "ejection":
-        used = res.deploy_delay_s if descent else (wanted if wanted is not None else
-                                                   np.array([res.chosen_delay_s(i) for i in rows]))
-        if used is not None:
-            hit = res.ejection_delay_s == np.asarray(used)[:, None]
-            col = np.argmax(hit, axis=1)
-            fired = hit.any(axis=1) & (res.ejection_altitude_m[rows, col] > 0.0)  # not after touchdown
-            deploy_speed = np.where(fired, res.ejection_speed_m_s[rows, col], np.nan)
-    devices = frame.recovery_devices
-    limits = np.array([settings.max_deploy_speed_m_s if settings.max_deploy_speed_m_s is not None
-                       else LaunchRules().deployment_limit_m_s(d.device) for d in devices] or [np.inf])
-    ratio = deploy_speed / limits[0]
-    if descent and devices:  # flown to the ground: every device's opening against its own limit
-        speeds = res.deployment_speed_m_s[:, : len(devices)]
-        opened = np.isfinite(speeds).any(axis=1)
-        fastest = np.max(np.where(np.isfinite(speeds), speeds, -np.inf), axis=1)
-        deploy_speed = np.where(opened, fastest, deploy_speed)
-        worst = np.max(np.where(np.isfinite(speeds), speeds / limits[: speeds.shape[1]], -np.inf), axis=1)
-        ratio = np.where(opened, worst, ratio)
+    # the delay each charge fires at: the one fitted before the flight, as `fly --delay` is given it
+    chosen = wanted if wanted is not None else np.array([res.chosen_delay_s(i) for i in rows])
+    rate = res.landing_descent_rate_m_s
+    if not descent:  # the estimate match judges where it does not fly the descent, with each sample's drag
+        body = np.array([(f.drag_cds[0] if f.drag_table else f.drag_coefficient) * f.reference_area_m2 for f in frames])
+        rate = landing_descent_rate_m_s(frame, res.liftoff_mass_kg - pack.propellant_mass_kg, body)
+    inputs = flown_rule_inputs(frame, res, chosen_delay_s=chosen, landing_descent_rate_m_s=rate,
+                               delays_known=np.array([r.ejection != "unknown" for r in records])[motor_index],
+                               wind_speed_m_s=np.array([f.launch.surface_wind_m_s for f in frames]))
+    masks = code_masks(inputs, settings.launch_rules(), ceiling_m=settings.ceiling_m)
+    # the fastest opening: of the devices where the descent was flown, else the charge's (its speed at the delay)
+    speeds = inputs.deployment_speed_m_s
+    opened = np.isfinite(speeds).any(axis=1)
+    fastest = np.max(np.where(np.isfinite(speeds), speeds, -np.inf), axis=1, initial=-np.inf)
+    charge = frame.recovery is None or frame.recovery.deploy == "ejection"
+    deploy_speed = np.where(opened, fastest, inputs.ejection_speed_m_s if charge else np.nan)
     return {
         "status": res.status, "apogee_m": res.apogee_m, "apogee_time_s": res.apogee_time_s,
         "liftoff_time_s": res.liftoff_time_s, "rail_exit_speed_m_s": res.rail_exit_speed_m_s,
         "liftoff_thrust_to_weight": res.liftoff_thrust_to_weight, "optimal_delay_s": res.optimal_delay_s,
         "deploy_delay_s": (res.deploy_delay_s if wanted is None or descent else wanted),
-        "deploy_speed_m_s": deploy_speed, "deploy_limit_ratio": ratio, "landing_time_s": res.landing_time_s,
-        "landing_speed_m_s": res.landing_speed_m_s, "flight_duration_s": res.landing_time_s - res.liftoff_time_s,
+        "deploy_speed_m_s": deploy_speed, "landing_time_s": res.landing_time_s,
+        "landing_speed_m_s": rate, "flight_duration_s": res.landing_time_s - res.liftoff_time_s,
         "landing_east_m": res.landing_east_m, "landing_north_m": res.landing_north_m,
-        "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach, "wind_speed_m_s": extra["wind_speed_m_s"],
+        "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach, "wind_speed_m_s": inputs.wind_speed_m_s,
+        "broken": np.column_stack([masks[code] for code in FLIGHT_CODES]),
     }
 
 
@@ -457,9 +482,12 @@ def summarize(flights: dict[str, np.ndarray], settings: DispersionSettings, *, t
 
     Keys: ``n_flights``, ``n_failed``, ``seed``, ``apogee_m`` (p5, p50, p95, mean, std,
     standard_error), ``p_over_ceiling``, ``p_deploy_too_fast``, ``p_outside_field`` (each
-    with a ``*_standard_error`` twin), ``deploy_speed_m_s`` and ``landing_speed_m_s``
-    percentiles, ``flight_duration_s`` percentiles, and ``landing`` (points' mean and
-    ``ellipse95``). Probabilities are None when they cannot be judged (no ceiling given,
+    with a ``*_standard_error`` twin), ``deploy_speed_m_s`` and ``landing_speed_m_s`` (the
+    descent rate under the device at landing, as in ``fly``) percentiles, ``flight_duration_s``
+    percentiles, ``landing`` (points' mean and ``ellipse95``) and ``failures``: the share of the
+    flights that break each rule, keyed by the rule book's codes (:func:`~motorlib.flight.sample_stats.failure_shares`).
+    The events are the rule book's (``over-ceiling``, ``deployment-fast`` or ``ejection-fast``,
+    ``lands-outside-field``). Probabilities are None when they cannot be judged (no ceiling given,
     no deployment speed known, no landing computed).
     """
     status = flights["status"]
@@ -477,32 +505,32 @@ def summarize(flights: dict[str, np.ndarray], settings: DispersionSettings, *, t
     }
     if target_m is not None:
         out["target_m"] = target_m
+    masks = rule_masks(flights)  # the rule book's codes of every sample (fly_samples)
     out["ceiling_m"] = settings.ceiling_m
     if settings.ceiling_m is not None:
-        p = _probability(apogee > settings.ceiling_m, finite)
+        p = _probability(masks["over-ceiling"], finite)
     else:
         p = {"p": None, "standard_error": None}
     out["p_over_ceiling"], out["p_over_ceiling_standard_error"] = p["p"], p["standard_error"]
     speed = flights["deploy_speed_m_s"]
     known = np.isfinite(speed)
-    ratio = flights.get("deploy_limit_ratio", speed / (settings.max_deploy_speed_m_s or 25.0))
-    p = _probability(ratio > 1.0, known) if known.any() else {"p": None, "standard_error": None}
+    too_fast = masks["deployment-fast"] | masks["ejection-fast"]
+    p = _probability(too_fast, known) if known.any() else {"p": None, "standard_error": None}
     out["max_deploy_speed_m_s"] = settings.max_deploy_speed_m_s
     out["p_deploy_too_fast"], out["p_deploy_too_fast_standard_error"] = p["p"], p["standard_error"]
     out["deploy_speed_m_s"] = _percentiles(speed)
-    if "deploy_delay_s" in flights:  # an ejection delay that fires after touchdown deploys nothing
-        no_charge = ok & np.isfinite(flights["deploy_delay_s"]) & ~known
-        out["n_landed_before_ejection"] = int(no_charge.sum())
-    out["landing_speed_m_s"] = _percentiles(flights["landing_speed_m_s"])
+    out["n_landed_before_ejection"] = int(masks["lands-before-ejection"].sum())  # the charge deploys nothing
+    out["landing_speed_m_s"] = _percentiles(flights["landing_speed_m_s"])  # the descent rate under the device
     out["flight_duration_s"] = _percentiles(flights["flight_duration_s"])
     east, north = flights["landing_east_m"], flights["landing_north_m"]
     landed = np.isfinite(east) & np.isfinite(north)
-    out["field_radius_m"] = settings.field_radius_m
-    if settings.field_radius_m is not None and landed.any():
-        p = _probability(np.hypot(east, north) > settings.field_radius_m, landed)
+    out["field_radius_m"] = radius = settings.launch_rules().field_radius_m
+    if radius is not None and landed.any():
+        p = _probability(masks["lands-outside-field"], landed)
     else:
         p = {"p": None, "standard_error": None}
     out["p_outside_field"], out["p_outside_field_standard_error"] = p["p"], p["standard_error"]
+    out["failures"] = failure_shares(masks)
     distance = np.hypot(east, north)
     out["landing"] = {"n_points": int(landed.sum()), "distance_m": _percentiles(distance),
                       "ellipse95": ellipse(east, north)}

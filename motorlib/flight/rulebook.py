@@ -9,7 +9,8 @@ A flight's figures reach the rules as a :class:`RuleInputs` record (arrays of sh
 :mod:`motorlib.flight.rules`.
 
 Vectorisation contract: k flights evaluated together give the findings of k evaluations of one
-flight each (``inputs.take(i)``). A figure that is NaN (not known, or the event never happened)
+flight each (``inputs.take(i)``). :func:`code_masks` gives the same codes as one boolean array per code, for
+the commands that count them over many sampled flights (``scatter`` and ``match --robust``). A figure that is NaN (not known, or the event never happened)
 breaks no threshold rule: comparisons with NaN are false; the rules that are about a missing
 event (``no-ejection-charge``, ``lands-before-ejection``, ``no-deployment``) say so.
 
@@ -20,7 +21,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, fields
-from typing import TYPE_CHECKING, Callable
+from typing import TYPE_CHECKING, Callable, Final
 
 import numpy as np
 
@@ -32,10 +33,17 @@ if TYPE_CHECKING:
     from .airframe import Airframe
     from .results import FlightResults
 
-__all__ = ["RuleInputs", "broken_rules", "evaluate_rules", "flown_rule_inputs"]
+__all__ = ["FLIGHT_CODES", "RuleInputs", "broken_rules", "code_masks", "evaluate_rules", "flown_rule_inputs"]
 
 # Failed flight status -> its code; any other failed status is "not-flown".
 _STATUS_CODES = {NO_LIFTOFF: "no-liftoff", STUCK_ON_RAIL: "stuck-on-rail"}
+
+FLIGHT_CODES: Final = (
+    "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete", "rail-exit-slow", "thrust-to-weight-low",
+    "over-ceiling", "delays-unknown", "no-ejection-charge", "ejection-far-from-apogee", "ejection-fast",
+    "lands-before-ejection", "descent-fast", "constant-cd-past-mach", "deployment-fast", "deployment-while-burning",
+    "lands-outside-field", "no-deployment")
+"""Every code :func:`evaluate_rules` can give a flight, in the order it lists them (the keys of :func:`code_masks`)."""
 
 
 @dataclass(frozen=True, eq=False)
@@ -118,7 +126,8 @@ class RuleInputs:
 def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s: np.ndarray | None = None,
                       ejection_speed_m_s: np.ndarray | None = None, landing_descent_rate_m_s: np.ndarray | None = None,
                       landing_distance_m: np.ndarray | None = None, deployment_speed_m_s: np.ndarray | None = None,
-                      delays_known: np.ndarray | bool = True) -> RuleInputs:
+                      delays_known: np.ndarray | bool = True, wind_speed_m_s: np.ndarray | None = None
+                      ) -> RuleInputs:
     """The rule inputs of ``frame`` flown as ``results``: the flown figures unless an estimate is given.
 
     Parameters
@@ -135,6 +144,9 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
         the descent rate at landing, the distance of the landing point, each device's opening speed.
     delays_known : bool or ndarray of bool
         Whether each motor record states its delays.
+    wind_speed_m_s : ndarray, optional
+        Each flight's surface wind [m/s at 10 m] where the flights were flown in different winds (sampled
+        flights); default the frame's :attr:`~motorlib.flight.airframe.Launch.surface_wind_m_s` for every flight.
     """
     n = results.n_flights
     devices = frame.recovery_devices
@@ -149,7 +161,7 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
     k = len(devices)
     return RuleInputs(
         status=results.status, rail_exit_speed_m_s=results.rail_exit_speed_m_s,
-        wind_speed_m_s=np.full(n, frame.launch.surface_wind_m_s),
+        wind_speed_m_s=np.full(n, frame.launch.surface_wind_m_s) if wind_speed_m_s is None else wind_speed_m_s,
         liftoff_thrust_to_weight=results.liftoff_thrust_to_weight, apogee_m=results.apogee_m, max_mach=results.max_mach,
         burnout_time_s=results.burnout_time_s, optimal_delay_s=results.optimal_delay_s, chosen_delay_s=chosen_delay_s,
         ejection_speed_m_s=ejection_speed_m_s,
@@ -212,6 +224,32 @@ def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
         "no-deployment": judged & x.devices_listed & ~opened & ~no_delay & ~lands_first,
     }
     return out
+
+
+def code_masks(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None
+               ) -> dict[str, np.ndarray]:
+    """The flights that get each code: code -> bool array of shape (n_flights,), keys :data:`FLIGHT_CODES`.
+
+    Flight i gets a code here exactly when :func:`evaluate_rules` lists a finding with that code for it: a failed
+    status gets its own code (``no-liftoff``, ``stuck-on-rail``, else ``not-flown``) and a device rule counts
+    when any device breaks it. Notes (:data:`~motorlib.flight.rules.NOTE_CODES`) are included; a caller
+    counting failures leaves them out.
+
+    >>> import numpy as np
+    >>> x = RuleInputs(status=[0, 1], rail_exit_speed_m_s=[14.0, np.nan], wind_speed_m_s=0.0,
+    ...                liftoff_thrust_to_weight=8.0, apogee_m=300.0, max_mach=0.3, burnout_time_s=1.5,
+    ...                optimal_delay_s=6.0, chosen_delay_s=6.0, ejection_speed_m_s=3.0, uses_charge=True,
+    ...                devices_listed=False, delays_known=True, constant_drag=True, landing_descent_rate_m_s=np.nan,
+    ...                landing_distance_m=np.nan, deployment_time_s=[], deployment_speed_m_s=[], opening_load_n=[])
+    >>> {code: mask.tolist() for code, mask in code_masks(x).items() if mask.any()}
+    {'no-liftoff': [False, True], 'rail-exit-slow': [True, False]}
+    """
+    broken = broken_rules(inputs, rules, ceiling_m=ceiling_m)
+    failed = broken.pop("not-flown")
+    for status, code in _STATUS_CODES.items():
+        broken[code] = failed & (inputs.status == status)
+    broken["not-flown"] = failed & ~np.isin(inputs.status, list(_STATUS_CODES))
+    return {code: broken[code].any(axis=1) if broken[code].ndim == 2 else broken[code] for code in FLIGHT_CODES}
 
 
 def evaluate_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None

@@ -4,7 +4,9 @@ These are settings, not physics; each default names its source, and this is the
 one place they live (the command line reads its option defaults and help texts
 from here). They never decide whether a rocket flies: the range safety officer
 does. ``fly`` lists a broken rule as a warning, ``match`` as a reason the motor
-fails; both get them from :func:`motorlib.flight.rulebook.evaluate_rules`.
+fails; both get them from :func:`motorlib.flight.rulebook.evaluate_rules`. ``scatter``
+and ``match --robust`` count them over sampled flights with
+:func:`motorlib.flight.rulebook.code_masks` (the same codes, flight by flight).
 
 Standard library only, so that the command line's help can quote the defaults without loading numpy.
 

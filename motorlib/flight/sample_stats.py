@@ -2,7 +2,9 @@
 
 Model: an event's probability is its share p of n valid samples, with the binomial standard error
 √(p(1 − p)/n); a 2-D confidence ellipse comes from the sample mean and covariance and the
-chi-square quantile with 2 degrees of freedom, which is exactly −2 ln(1 − level).
+chi-square quantile with 2 degrees of freedom, which is exactly −2 ln(1 − level). The rules each sample
+breaks are the rule book's codes (:data:`~motorlib.flight.rulebook.FLIGHT_CODES`), kept by
+:func:`motorlib.flight.dispersion.fly_samples` as one boolean column per code and read here.
 
 numpy only.
 """
@@ -14,7 +16,10 @@ from typing import Final, Sequence
 
 import numpy as np
 
-__all__ = ["CHI2_2DOF_95", "ellipse", "inside_ellipse"]
+from .rulebook import FLIGHT_CODES
+from .rules import NOTE_CODES
+
+__all__ = ["CHI2_2DOF_95", "ellipse", "failure_shares", "inside_ellipse", "rule_masks", "sample_codes"]
 
 CHI2_2DOF_95: Final = -2.0 * math.log(0.05)  # 5.991...: chi-square quantile, 2 dof, exact (-2 ln(1 - p))
 
@@ -36,6 +41,30 @@ def _probability(event: np.ndarray, valid: np.ndarray) -> dict[str, float | None
         return {"p": None, "standard_error": None}
     p = float(np.sum(event & valid)) / n
     return {"p": p, "standard_error": math.sqrt(p * (1.0 - p) / n)}
+
+
+def rule_masks(flights: dict[str, np.ndarray]) -> dict[str, np.ndarray]:
+    """The flights that break each rule: code -> bool array of shape (n,), every code of ``FLIGHT_CODES``.
+
+    ``flights`` holds ``broken``, shape (n, len(FLIGHT_CODES)), as :func:`~motorlib.flight.dispersion.fly_samples`
+    returns it.
+    """
+    broken = flights["broken"]
+    return {code: broken[:, k] for k, code in enumerate(FLIGHT_CODES)}
+
+
+def sample_codes(flights: dict[str, np.ndarray], i: int) -> list[str]:
+    """The codes sampled flight ``i`` gets, in the rule book's order: those ``fly`` would warn of for that flight."""
+    return [code for k, code in enumerate(FLIGHT_CODES) if flights["broken"][i, k]]
+
+
+def failure_shares(masks: dict[str, np.ndarray]) -> dict[str, float]:
+    """The share of flights that fail each rule: code -> fraction in [0, 1] (notes on the model left out).
+
+    >>> failure_shares({"rail-exit-slow": np.array([True, False]), "constant-cd-past-mach": np.array([True, True])})
+    {'rail-exit-slow': 0.5}
+    """
+    return {code: float(np.mean(mask)) for code, mask in masks.items() if code not in NOTE_CODES}
 
 
 def ellipse(east_m: np.ndarray, north_m: np.ndarray, level: float = CHI2_2DOF_95) -> dict[str, float] | None:

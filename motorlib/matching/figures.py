@@ -22,7 +22,7 @@ import numpy as np
 
 from ..flight.airframe import Airframe
 from ..flight.delays import nearest_delay_column
-from ..flight.descent import terminal_speed_m_s
+from ..flight.descent import landing_descent_rate_m_s, terminal_speed_m_s
 from ..flight.integrate import FlightSettings
 from ..flight.pack import MotorPack
 from ..flight.results import FlightResults
@@ -50,18 +50,6 @@ def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[fl
     vertical = np.where(has, results.ejection_vertical_speed_m_s[rows, col], np.nan)
     adjusted = np.array([bool(np.isfinite(c)) and c not in lst for c, lst in zip(chosen, listed)])
     return chosen, altitude, speed, vertical, adjusted
-
-
-def _landing_speed(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
-    if not frame.recovery_devices:
-        return np.full(results.n_flights, np.nan)
-    _, _, rho, _ = frame.launch.site.air(0.0)
-    burnt_mass = results.liftoff_mass_kg - pack.propellant_mass_kg
-    body = (frame.drag_cds[0] if frame.drag_table else frame.drag_coefficient) * frame.reference_area_m2
-    extra = 0.0
-    for device in frame.recovery_devices:  # the drag area open at landing: every device, or the last that replaces
-        extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
-    return terminal_speed_m_s(burnt_mass, extra + body, float(rho))
 
 
 def flies_descent(frame: Airframe, s: MatchSettings) -> bool:
@@ -183,6 +171,6 @@ def _broken(findings: list[Finding]) -> list[tuple[str, str]]:
 def _landing_descent_rate(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
     """Descent rate under the device(s) at landing [m/s]: the flown one where the descent was flown, else the
     terminal estimate at the pad; the figure ``fly`` reports as ``landing_speed_m_s`` too."""
-    estimate = _landing_speed(frame, results, pack)
+    estimate = landing_descent_rate_m_s(frame, results.liftoff_mass_kg - pack.propellant_mass_kg)
     flown = results.landing_descent_rate_m_s
     return np.where(np.isfinite(flown), flown, estimate) if frame.recovery_devices else estimate

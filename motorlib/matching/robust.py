@@ -6,11 +6,17 @@ differences between candidates are not sampling noise of their own: the standard
 difference comes from the paired outcomes and is usually much smaller than either
 candidate's own standard error.
 
-A sampled flight succeeds when it flies (status OK) and meets every rule of
-:class:`~motorlib.matching.rank.MatchSettings` (rail exit speed, liftoff thrust-to-weight,
-ceiling, the ejection delay fitted before the flight within the delay slack of that
-flight's optimal delay, deployment speed, landing speed) and every window given here
-(apogee, flight duration from liftoff to landing, landing inside the field).
+A sampled flight succeeds when it flies (status OK), breaks no launch rule of
+:class:`~motorlib.matching.rank.MatchSettings` and lands inside every window given here
+(apogee, flight duration from liftoff to landing). The rules are the rule book of ``fly`` and
+``match`` (:func:`motorlib.flight.rulebook.code_masks`, evaluated for every sample in
+:func:`~motorlib.flight.dispersion.fly_samples` with its own wind): rail exit, liftoff
+thrust-to-weight, ceiling, the delay fitted before the flight against that flight's optimal
+delay, each device's opening against its kind's limit, the descent rate under the device
+(flown where ``match`` flies the descent, or for a window; else ``match``'s terminal estimate),
+the field; a motor below ``min_stability_cal`` fails ``stability-low`` as in ``match``.
+``failures`` counts each code's share of the samples: the rule book's codes
+(:data:`~motorlib.flight.rules.RULE_CODES`) and :data:`WINDOW_CODES`.
 
 numpy only.
 """
@@ -19,17 +25,20 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Any, Callable, Sequence
+from typing import Any, Callable, Final, Sequence
 
 import numpy as np
 
 from ..flight.airframe import Airframe
 from ..flight.dispersion import DispersionSettings, Uncertainty, _nominal, run_samples
 from ..flight.integrate import OK, FlightSettings
+from ..flight.rules import NOTE_CODES
+from ..flight.sample_stats import rule_masks
 from ..motor.record import FiringSpread, MotorRecord
+from .figures import flies_descent
 from .rank import MatchSettings
 
-__all__ = ["RobustSettings", "robust_rank"]
+__all__ = ["RobustSettings", "WINDOW_CODES", "robust_rank"]
 
 
 @dataclass(frozen=True)
@@ -74,44 +83,31 @@ class RobustSettings:
         return self.duration_window_s is not None or self.field_radius_m is not None
 
 
-def _success(flights: dict[str, np.ndarray], frame: Airframe, match: MatchSettings, robust: RobustSettings
-             ) -> dict[str, np.ndarray]:
-    """Per-flight failure flags by rule, shape (n_flights,) each; a flight succeeds when none is set."""
-    r = match.rules
-    flown = flights["status"] == OK
+WINDOW_CODES: Final = {"apogee-outside-window": "apogee outside the altitude window",
+                       "duration-outside-window": "flight duration (liftoff to landing) outside the window"}
+"""The failure codes of the target windows, which only the robust ranking judges (the rules' codes are
+:data:`~motorlib.flight.rules.RULE_CODES`)."""
 
-    def fails(bad: np.ndarray) -> np.ndarray:
-        return flown & bad  # comparisons with NaN are False: a missing figure fails only where stated
 
-    out = {"flight": ~flown,
-           # the rule fly and match apply: the minimum, or the wind ratio times each sample's wind if higher
-           "rail": fails(~(flights["rail_exit_speed_m_s"] >= np.maximum(
-               r.min_rail_exit_speed_m_s, r.rail_exit_wind_ratio * flights["wind_speed_m_s"]))),
-           "T/W": fails(~(flights["liftoff_thrust_to_weight"] >= r.min_liftoff_thrust_to_weight))}
-    if match.ceiling_m is not None:
-        out["ceiling"] = fails(flights["apogee_m"] > match.ceiling_m)
-    if frame.recovery is None or frame.recovery.deploy == "ejection":
-        delay = flights["deploy_delay_s"]
-        out["delay"] = fails(~(np.abs(delay - flights["optimal_delay_s"]) <= r.max_delay_error_s))
-        out["eject"] = fails(~(flights["deploy_limit_ratio"] <= 1.0))  # each opening against its limit
-    if np.isfinite(flights["landing_speed_m_s"]).any():
-        out["descent"] = fails(flights["landing_speed_m_s"] > r.max_landing_speed_m_s)
+def _failures(flights: dict[str, np.ndarray], robust: RobustSettings) -> dict[str, np.ndarray]:
+    """Per-flight failure masks by code, shape (n_flights,) each: the rule book's codes each sample gets (as ``fly``
+    gives them; notes on the model apart), then the windows; a flight succeeds when none is set."""
+    out = {code: mask for code, mask in rule_masks(flights).items() if code not in NOTE_CODES}
+    flown = flights["status"] == OK  # a window judges a flight that flew; NaN figures fail it
+    apogee, duration = flights["apogee_m"], flights["flight_duration_s"]
     if robust.altitude_window_m is not None:
         low, high = robust.altitude_window_m
-        out["altitude window"] = fails(~((flights["apogee_m"] >= low) & (flights["apogee_m"] <= high)))
+        out["apogee-outside-window"] = flown & ~((apogee >= low) & (apogee <= high))
     if robust.duration_window_s is not None:
         low, high = robust.duration_window_s
-        out["duration window"] = fails(~((flights["flight_duration_s"] >= low) & (flights["flight_duration_s"] <= high)))
-    if robust.field_radius_m is not None:
-        distance = np.hypot(flights["landing_east_m"], flights["landing_north_m"])
-        out["field"] = fails(~(distance <= robust.field_radius_m))
+        out["duration-outside-window"] = flown & ~((duration >= low) & (duration <= high))
     return out
 
 
 def _stability_flags(frame: Airframe, records: Sequence[MotorRecord], match: MatchSettings, n: int
                      ) -> np.ndarray | None:
     """Every sample of a motor whose nominal least margin (liftoff or burnout) is under ``match.min_stability_cal``,
-    or unknown, fails "stability"; shape (n_motors·n,) in the samples' order. None without a geometry."""
+    or unknown, fails ``stability-low`` (as in ``match``); shape (n_motors·n,) in the samples' order. None without a geometry."""
     if frame.geometry is None:
         return None
     from ..flight.stability import stability_for_records
@@ -157,7 +153,7 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
         ``n_samples``, ``seed``, ``windows`` and ``candidates`` (best first), each with
         ``p_success`` and ``p_success_standard_error`` (√(p(1−p)/n)), ``apogee_m`` and
         ``flight_duration_s`` percentiles, the fitted ``delay_s``, the share of flights failing each
-        rule (``failures``) and ``p_difference_to_next_standard_error``, the paired standard
+        rule (``failures``, keyed by rule-book code, :data:`WINDOW_CODES` and ``stability-low``) and ``p_difference_to_next_standard_error``, the paired standard
         error of the difference to the next candidate.
     """
     if len(records) == 0:
@@ -166,21 +162,22 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
     m = len(records)
     ds = DispersionSettings(n_samples=n, seed=settings.seed, wind_from_rad=settings.wind_from_rad,
                             rail_azimuth_rad=settings.rail_azimuth_rad, ceiling_m=match.ceiling_m,
-                            field_radius_m=settings.field_radius_m,
-                            max_deploy_speed_m_s=match.rules.max_ejection_speed_m_s, chunk_size=settings.chunk_size,
-                            flight=settings.flight)
+                            field_radius_m=settings.field_radius_m, rules=match.rules,
+                            chunk_size=settings.chunk_size, flight=settings.flight)
     spreads = list(spreads) if spreads is not None else [None] * m
     uncertainties = [uncertainty.for_motor(r.firing_spread or s) for r, s in zip(records, spreads)]
     delays, nominal_apogee = _nominal(frame, records, ds)
     motor_index = np.repeat(np.arange(m), n)
     sample_index = np.tile(np.arange(n), m)  # common random numbers: sample j is the same draw for every motor
-    descent = settings.needs_descent and frame.recovery is not None and frame.recovery.device != "none"
+    # the descent is flown where match flies it (a sequence, electronics, a field) and for the windows; else the
+    # descent rate under the device is match's terminal estimate (flying every descent costs about 5x the time)
+    descent = flies_descent(frame, match) or settings.needs_descent
     flights = run_samples(frame, records, uncertainties, motor_index, sample_index, ds, delays, descent=descent,
                           workers=workers, progress=progress)
-    flags = _success(flights, frame, match, settings)
+    flags = _failures(flights, settings)
     stability = _stability_flags(frame, records, match, n)
     if stability is not None:
-        flags["stability"] = stability
+        flags["stability-low"] = stability
     failed = np.zeros(m * n, dtype=bool)
     for bad in flags.values():
         failed |= bad

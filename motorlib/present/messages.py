@@ -30,6 +30,9 @@ REASON_CODES = {
     "not-flown": ("X", "flight not completed"), "flight-incomplete": ("X", "flight not completed"),
     "above-class": ("A", "above your class limit"), "no-masses": ("U", "masses unknown"),
     "motor-does-not-fit": ("M", "does not fit the mount"),
+    # the target windows of match --robust (motorlib.matching.robust.WINDOW_CODES)
+    "apogee-outside-window": ("V", "apogee outside the altitude window"),
+    "duration-outside-window": ("Q", "flight duration outside the window"),
     "stability-low": ("B", "too little stability margin (CG too far aft)"),
     "unstable": ("B", "too little stability margin (CG too far aft)"),
     "stability-unknown": ("B", "too little stability margin (CG too far aft)"),

@@ -10,6 +10,7 @@ from rich.table import Table
 from rich.text import Text
 
 from .display import DisplayUnits
+from .messages import short_code
 
 __all__ = ["calibration_text", "robust_key", "robust_table", "scatter_text"]
 
@@ -44,7 +45,7 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
     a = summary["apogee_m"]
     table.add_row("apogee", *_triple(a, "length", u))
     table.add_row("deployment speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
-    table.add_row("landing speed", *_triple(summary["landing_speed_m_s"], "speed", u))
+    table.add_row("descent rate at landing", *_triple(summary["landing_speed_m_s"], "speed", u))
     table.add_row("landing distance", *_triple(summary["landing"]["distance_m"], "length", u))
     table.add_row("flight duration (s)", *[f"{v:.4g}" if v is not None else "-"
                                            for v in (summary["flight_duration_s"].get(k) for k in ("p5", "p50", "p95"))])
@@ -83,6 +84,10 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
         f = summary["firing_spread"]
         lines.append(f"Motor spread measured over {f['n_firings']} firings ({f['source']}): impulse "
                      f"{100 * f['total_impulse_relative_std']:.1f} %, burn time {100 * f['burn_time_relative_std']:.1f} %.\n")
+    broken = [(short_code(code, "")[1], share) for code, share in (summary.get("failures") or {}).items() if share > 0]
+    if broken:  # the rule book's failures, as fly would warn of them flight by flight
+        lines.append("Launch rules broken (share of the flights): "
+                     + "; ".join(f"{meaning} {_percent(share)}" for meaning, share in broken) + ".\n")
     if summary["n_failed"]:
         lines.append(f"{summary['n_failed']} sampled flight(s) failed (no liftoff, stuck on the rail, step limit).\n",
                      style="yellow")
@@ -116,7 +121,7 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
         a = c["apogee_m"]
         spread = "-" if a["p5"] is None else f"{u.number(a['p5'], 'length', 0)}-{u.number(a['p95'], 'length', 0)}"
         worst = max(c["failures"].items(), key=lambda kv: kv[1]) if c["failures"] else ("", 0.0)
-        failure = f"{worst[0]} {100 * worst[1]:.0f} %" if worst[1] > 0 else ""
+        failure = f"{short_code(worst[0], '')[0]} {100 * worst[1]:.0f} %" if worst[1] > 0 else ""
         se = c["p_success_standard_error"]
         cells = [str(i), escape(c["designation"])] + ([escape(c["maker"] or "")] if wide else [])
         cells += [f"{100 * c['p_success']:.1f}" if c["p_success"] is not None else "-",
@@ -128,7 +133,8 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
 
 def robust_key(result: dict[str, Any]) -> str:
     """The words under the robust ranking: what success means and what each failure name stands for."""
-    names = sorted({name for c in result["candidates"] for name, p in c["failures"].items() if p > 0})
+    codes = sorted({code for c in result["candidates"] for code, p in c["failures"].items() if p > 0})
+    legend = dict(short_code(code, "") for code in codes)  # one-letter codes, as in match's table
     windows, conditions = result.get("windows") or {}, result.get("conditions") or {}
     limits = [w for w, on in (("the ceiling", conditions.get("ceiling_m") is not None),
                               ("the altitude window", windows.get("altitude_m") is not None),
@@ -137,17 +143,10 @@ def robust_key(result: dict[str, Any]) -> str:
     text = ("success: the share of sampled flights that meet every launch rule"
             + (" and " + ", ".join(limits) if limits else "; no ceiling or window was given, so apogee is not "
                "judged") + ".")
-    if names:
-        text += " most failed: the rule the motor failed most often, with its share: " + ", ".join(
-            f"{n} ({_FAILURE_WORDS.get(n, n)})" for n in names) + "."
+    if legend:
+        text += " most failed: the rule the motor failed most often, with its share: " + "; ".join(
+            f"{letter} {meaning}" for letter, meaning in sorted(legend.items())) + "."
     return text
-
-
-_FAILURE_WORDS = {"flight": "no liftoff or stuck on the rail", "rail": "rail exit too slow",
-                  "T/W": "liftoff thrust-to-weight too low", "ceiling": "over the ceiling",
-                  "delay": "no delay on offer near the optimal one", "eject": "ejection too fast",
-                  "descent": "landing too fast", "altitude window": "apogee outside the window",
-                  "duration window": "flight time outside the window", "field": "lands outside the field"}
 
 
 def calibration_text(result: dict[str, Any], units: DisplayUnits | str = "metric") -> Text:

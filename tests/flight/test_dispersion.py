@@ -51,7 +51,8 @@ def test_zero_uncertainty_gives_the_nominal_flight_exactly(quibble, f29) -> None
     flights = fly_samples(quibble, [f29], [Uncertainty.zero()], _zeros(6), np.arange(6), settings, delay)
     nominal = simulate(quibble, [f29], settings.flight, deploy_delay_s=np.array(delay))
     for key, value in (("apogee_m", nominal.apogee_m), ("apogee_time_s", nominal.apogee_time_s),
-                       ("landing_time_s", nominal.landing_time_s), ("landing_speed_m_s", nominal.landing_speed_m_s),
+                       ("landing_time_s", nominal.landing_time_s),
+                       ("landing_speed_m_s", nominal.landing_descent_rate_m_s),  # as fly: the descent rate
                        ("rail_exit_speed_m_s", nominal.rail_exit_speed_m_s)):
         assert np.array_equal(flights[key], np.repeat(value, 6)), key
     # the file's own wind direction by default: the samples land where the nominal 3-D flight lands
@@ -221,3 +222,61 @@ def test_samples_fly_in_3d_so_a_rail_across_the_wind_lands_off_the_wind_line(qui
     assert flights["landing_north_m"] == pytest.approx(np.full(4, one.landing_north_m[0]), rel=1e-9, abs=1e-9)
     assert one.landing_north_m[0] > 5.0  # the rail leans north, across the west wind: the rocket lands north too
     assert summary["landing_model"].startswith("3-D")
+
+
+# ------------------------------------------------------------------ one rule book (issue 17)
+def _fly_codes(frame, res, delay_s: float, rules, ceiling_m) -> list[str]:
+    """The codes ``fly`` gives a flight: its rule inputs and evaluate_rules, as motorlib/cli/fly.py calls them."""
+    from motorlib.flight.rulebook import evaluate_rules, flown_rule_inputs
+
+    inputs = flown_rule_inputs(frame, res, chosen_delay_s=np.array([delay_s]), delays_known=True)
+    return [f.code for f in evaluate_rules(inputs, rules, ceiling_m=ceiling_m)[0]]
+
+
+def test_each_sample_gets_the_codes_fly_gives_its_own_flight(quibble, f29) -> None:
+    # Issue 17: scatter judged its samples with its own flags; now every sample must get exactly the codes that
+    # fly's rule evaluation gives the one flight flown under that sample's conditions (its own wind, masses, drag,
+    # rail), here rebuilt one at a time from the sample's draw and flown alone.
+    from dataclasses import replace
+
+    from motorlib.flight.dispersion import _build
+    from motorlib.flight.rules import LaunchRules
+    from motorlib.flight.sample_stats import sample_codes
+
+    # 5 m/s of wind asks 20 m/s at rail exit (F29 leaves at about 19), so the sampled wind decides the rail rule;
+    # the ceiling, field and descent limits sit inside the spread so that each splits the samples
+    frame = replace(quibble, launch=replace(quibble.launch, wind_speed_m_s=5.0))
+    rules = LaunchRules(max_landing_speed_m_s=4.97, field_radius_m=260.0)
+    settings = DispersionSettings(n_samples=24, seed=3, ceiling_m=480.0, rules=rules)
+    u = Uncertainty(wind_speed_std_m_s=1.5)
+    delay = nominal_delay_s(frame, [f29], settings)[0]
+    flights = run_samples(frame, [f29], [u], _zeros(24), np.arange(24), settings, [delay])
+    seen = set()
+    for j in range(24):
+        frames, pack, _ = _build(frame, [f29], [u], _zeros(1), standard_normals(3, [j]), settings)
+        alone = simulate(frames, pack, settings.flight, deploy_delay_s=np.array([delay]))
+        expected = _fly_codes(frames[0], alone, delay, rules, 480.0)
+        assert sample_codes(flights, j) == expected, j
+        seen.add(tuple(expected))
+    assert len(seen) >= 3, seen  # the limits split the samples: the comparison is not of one code set only
+
+
+def test_the_descent_rule_reads_the_descent_rate_under_the_device_as_fly_does(quibble, f29) -> None:
+    # Issue 17: scatter and match --robust compared the touchdown speed (with the wind's share) with the limit,
+    # fly and match the descent rate under the device. In 3 m/s of wind the two differ by about half a metre per
+    # second: a limit between them must pass in every command, a limit below the descent rate fail in every one.
+    from motorlib.flight.rules import LaunchRules
+
+    settings = DispersionSettings(n_samples=3)
+    delay = nominal_delay_s(quibble, [f29], settings)[0]
+    nominal = simulate(quibble, [f29], settings.flight, deploy_delay_s=np.array([delay]))
+    rate, touchdown = nominal.landing_descent_rate_m_s[0], nominal.landing_speed_m_s[0]
+    assert touchdown > rate + 0.3  # the case separates the two meanings
+    for limit, breached in ((0.5 * (rate + touchdown), False), (rate - 0.2, True)):
+        rules = LaunchRules(max_landing_speed_m_s=limit)
+        assert ("descent-fast" in _fly_codes(quibble, nominal, delay, rules, None)) is breached
+        summary, _ = run_scatter(quibble, f29, Uncertainty.zero(),
+                                 DispersionSettings(n_samples=3, rules=rules), delay_s=delay)
+        assert summary["failures"]["descent-fast"] == (1.0 if breached else 0.0), limit
+    # and landing_speed_m_s means what it means in fly: the descent rate (touchdown speed stays in fly's landing)
+    assert summary["landing_speed_m_s"]["p50"] == pytest.approx(rate, rel=1e-12)

@@ -11,7 +11,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from motorlib.flight.results import NO_LIFTOFF, OK, STEP_LIMIT, STUCK_ON_RAIL
-from motorlib.flight.rulebook import RuleInputs, broken_rules, evaluate_rules
+from motorlib.flight.rulebook import FLIGHT_CODES, RuleInputs, broken_rules, code_masks, evaluate_rules
 from motorlib.flight.rules import LaunchRules
 
 NAN = float("nan")
@@ -173,6 +173,30 @@ def test_many_flights_together_give_the_findings_of_each_alone(flights: RuleInpu
     assert together == alone
     order = evaluate_rules(flights.take(np.arange(flights.n_flights)[::-1]), rules, ceiling_m=ceiling_m)
     assert order == together[::-1]
+
+
+@settings(max_examples=60, deadline=None)
+@given(_flights(), st.one_of(st.none(), st.floats(0.0, 60.0)))
+def test_the_code_masks_name_the_flights_each_finding_goes_to(flights: RuleInputs, ceiling_m: float | None) -> None:
+    # scatter and match --robust count failures per sample from these masks: the codes a flight gets there must be
+    # the codes fly and match get from evaluate_rules for the same figures (issue 17, one rule book)
+    rules = LaunchRules(field_radius_m=30.0)
+    masks = code_masks(flights, rules, ceiling_m=ceiling_m)
+    assert tuple(masks) == FLIGHT_CODES
+    findings = evaluate_rules(flights, rules, ceiling_m=ceiling_m)
+    for i in range(flights.n_flights):
+        by_mask = [code for code, mask in masks.items() if mask[i]]
+        assert by_mask == list(dict.fromkeys(f.code for f in findings[i]))
+
+
+def test_a_failed_status_gets_its_own_code_in_the_masks() -> None:
+    flights = RuleInputs(**{**GOOD, "status": [OK, NO_LIFTOFF, STUCK_ON_RAIL, STEP_LIMIT],
+                            **{name: GOOD[name] * 4 for name in ("deployment_time_s", "deployment_speed_m_s",
+                                                                 "opening_load_n")}})
+    masks = code_masks(flights)
+    assert masks["no-liftoff"].tolist() == [False, True, False, False]
+    assert masks["stuck-on-rail"].tolist() == [False, False, True, False]
+    assert masks["not-flown"].tolist() == [False, False, False, True]
 
 
 def test_the_matrix_has_a_row_per_flight_and_a_column_per_device() -> None:

@@ -175,8 +175,8 @@ def test_robust_ranking_fails_every_sample_of_an_unstable_motor() -> None:
     result = robust_rank(_frame(), [LIGHT, HEAVY], MatchSettings(min_stability_cal=1.0), Uncertainty(),
                          RobustSettings(n_samples=8))
     by_name = {c["designation"]: c for c in result["candidates"]}
-    assert by_name["HEAVY"]["failures"]["stability"] == 1.0 and by_name["HEAVY"]["p_success"] == 0.0
-    assert by_name["LIGHT"]["failures"]["stability"] == 0.0
+    assert by_name["HEAVY"]["failures"]["stability-low"] == 1.0 and by_name["HEAVY"]["p_success"] == 0.0
+    assert by_name["LIGHT"]["failures"]["stability-low"] == 0.0
 
 
 def test_the_match_report_states_the_stability_rule() -> None:

@@ -43,7 +43,7 @@ def test_probability_and_standard_error_follow_the_windows(quibble, motors) -> N
                           DispersionSettings(n_samples=60), [7.0], descent=False)
     inside = (flights["apogee_m"] >= 270.0) & (flights["apogee_m"] <= 320.0)
     e = by_id["e"]
-    assert e["failures"]["altitude window"] == pytest.approx(1.0 - inside.mean())
+    assert e["failures"]["apogee-outside-window"] == pytest.approx(1.0 - inside.mean())
     assert e["p_success"] <= inside.mean()
     assert e["p_success_standard_error"] == pytest.approx(math.sqrt(e["p_success"] * (1 - e["p_success"]) / 60))
     assert by_id["f"]["p_success"] == 0.0  # F29 flies near 500 m, far above the window
@@ -61,3 +61,34 @@ def test_a_duration_window_flies_the_descent(quibble, motors) -> None:
 def test_bad_windows_are_refused(window) -> None:
     with pytest.raises(ValueError, match="altitude_window_m"):
         RobustSettings(altitude_window_m=window)
+
+
+def test_a_candidate_fails_the_rules_fly_applies_to_its_flight(quibble, motors) -> None:
+    # Issue 17: match --robust had its own flags ("rail", "T/W", "descent" on the touchdown speed). With no
+    # uncertainty every sample is the nominal flight, so each candidate must fail every sample for exactly the
+    # codes fly's rule evaluation gives that flight, and no sample for any other code.
+    from dataclasses import replace
+
+    from motorlib.flight.integrate import simulate
+    from motorlib.flight.rulebook import evaluate_rules, flown_rule_inputs
+    from motorlib.flight.rules import NOTE_CODES
+
+    frame = replace(quibble, launch=replace(quibble.launch, wind_speed_m_s=5.5))  # asks 22 m/s at rail exit
+    nominal = simulate(frame, motors, descent=False)
+    delays = [nominal.chosen_delay_s(i) for i in range(len(motors))]
+    res = simulate(frame, motors, deploy_delay_s=np.array(delays))
+    rate, touchdown = res.landing_descent_rate_m_s, res.landing_speed_m_s
+    assert np.all(touchdown > rate + 0.3)
+    for limit in (float(np.max(0.5 * (rate + touchdown))), float(np.min(rate)) - 0.2):  # between; below the rate
+        match = MatchSettings(ceiling_m=480.0, rules=replace(MatchSettings().rules, max_landing_speed_m_s=limit))
+        fly = evaluate_rules(flown_rule_inputs(frame, res, chosen_delay_s=np.array(delays)), match.rules,
+                             ceiling_m=480.0)
+        result = robust_rank(frame, motors, match, Uncertainty.zero(), RobustSettings(n_samples=4), ids=["e", "f"])
+        by_id = {c["motor_id"]: c for c in result["candidates"]}
+        for i, motor_id in enumerate(("e", "f")):
+            failures = by_id[motor_id]["failures"]
+            expected = {f.code for f in fly[i]} - NOTE_CODES
+            assert {code for code, share in failures.items() if share == 1.0} == expected, (motor_id, limit)
+            assert all(share in (0.0, 1.0) for share in failures.values())
+            assert ("descent-fast" in expected) is bool(limit < rate[i])
+        assert not result["descent_flown"]  # as match: one charge-opened device, no field: the terminal estimate
