@@ -22,6 +22,7 @@ _EXPORTS = {
     "Catalog": ".catalog",
     "CatalogError": ".errors",
     "CatalogFilter": ".catalog",
+    "CatalogRow": ".motor.listing",
     "CheckReport": ".files.curvefiles",
     "CheckSettings": ".motor.checks",
     "CsvFormatError": ".errors",
@@ -109,6 +110,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
     from .flight.atmosphere import Site
     from .catalog import Catalog, CatalogFilter
     from .motor.checks import CheckSettings, Finding, check_record, metrics
+    from .motor.listing import CatalogRow
     from .motor.classes import (
         CLASS_LETTERS,
         Designation,
@@ -170,6 +172,7 @@ __all__ = [
     "Catalog",
     "CatalogError",
     "CatalogFilter",
+    "CatalogRow",
     "CheckReport",
     "CheckSettings",
     "CsvFormatError",

@@ -17,6 +17,7 @@ from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
 from ..flight.results import OK, FlightResults
 from ..flight.stability import nose_weight_kg, stability_for_pack
+from ..motor.listing import CatalogRow
 
 if TYPE_CHECKING:
     from .rank import MatchSettings
@@ -26,7 +27,7 @@ from .figures import (_STABILITY_KEYS, _broken, _choose_delays, _deployment_spee
 __all__: list[str] = []
 
 
-def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, figures: dict[str, Any],
+def _solve_ballast(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, figures: dict[str, Any],
                    s: MatchSettings, fs: FlightSettings) -> None:
     """Added mass that brings every motor too strong for the target down to it, all motors solved together.
 
@@ -73,7 +74,7 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         f_hi = np.where(~right & (side == -1), f_hi / 2, f_hi)
         side = np.where(right, 1, -1)
     final = simulate(frame, sub, fs, added_mass_kg=mass, descent=flies_descent(frame, s))
-    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i]["delays_s"] for i in idx])
+    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i].delays_s for i in idx])
     landing = _landing_descent_rate(frame, final, sub)
     deploy, distance = _deployment_speeds(frame, final, sub), _landing_distance(frame, final, sub)
     findings = _rule_findings(frame, [rows[i] for i in idx], final, s, chosen, speed, landing, deploy, distance)
@@ -95,7 +96,7 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
 _NOSE_WEIGHT_STEP_KG = 1e-4  # the solved nose weight is rounded up to 0.1 g: it then meets the margin, never misses
 
 
-def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
+def _check_stability(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: FlightResults,
                      figures: dict[str, Any], s: MatchSettings, fs: FlightSettings) -> None:
     """Fail every motor that leaves the rocket under ``s.min_stability_cal``; solve its nose weight and re-fly.
 
@@ -111,7 +112,7 @@ def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPac
         figures[key] = [None] * n
     if frame.geometry is None:
         return
-    lengths = np.array([np.nan if r["length_m"] is None else r["length_m"] for r in rows], dtype=float)
+    lengths = np.array([np.nan if r.length_m is None else r.length_m for r in rows], dtype=float)
     stability = stability_for_pack(frame, pack, lengths, rail_exit_time_s=results.rail_exit_time_s)
     margin = stability.min_margin_cal
     weight = nose_weight_kg(stability, s.min_stability_cal)
@@ -142,7 +143,7 @@ def _stability_reason(margin_cal: float, required_cal: float, weight_kg: float) 
     return (code, what + f"; {weight_kg * 1e3:.1f} g of nose weight restores it")
 
 
-def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, lengths: np.ndarray,
+def _refly_with_nose_weight(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, lengths: np.ndarray,
                             idx: np.ndarray, weight_kg: np.ndarray, figures: dict[str, Any], s: MatchSettings,
                             fs: FlightSettings) -> None:
     """Fly the motors ``idx`` again carrying their nose weight and check every rule, stability included."""

@@ -28,6 +28,7 @@ from ..flight.pack import MotorPack
 from ..flight.results import FlightResults
 from ..flight.rulebook import evaluate_rules, flown_rule_inputs
 from ..motor.checks import Finding
+from ..motor.listing import CatalogRow
 
 if TYPE_CHECKING:
     from .rank import MatchSettings
@@ -129,9 +130,9 @@ def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) 
     return np.where(np.isfinite(flown), flown, estimate)  # the flown landing point where the descent was flown
 
 
-def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
+def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: FlightResults,
              s: MatchSettings) -> dict[str, Any]:
-    chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r["delays_s"] for r in rows])
+    chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r.delays_s for r in rows])
     landing = _landing_descent_rate(frame, results, pack)
     deploy = _deployment_speeds(frame, results, pack)
     distance = _landing_distance(frame, results, pack)
@@ -163,7 +164,7 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
     }
 
 
-def _rule_findings(frame: Airframe, rows: list[dict[str, Any]], results: FlightResults, s: MatchSettings,
+def _rule_findings(frame: Airframe, rows: list[CatalogRow], results: FlightResults, s: MatchSettings,
                    chosen: np.ndarray, speed: np.ndarray, landing: np.ndarray, deploy: np.ndarray,
                    distance: np.ndarray) -> list[list[Finding]]:
     """Every rule each flight breaks (:func:`motorlib.flight.rulebook.evaluate_rules`, the rules ``fly`` applies),
@@ -171,7 +172,7 @@ def _rule_findings(frame: Airframe, rows: list[dict[str, Any]], results: FlightR
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed,
                                landing_descent_rate_m_s=landing, landing_distance_m=distance,
                                deployment_speed_m_s=deploy,
-                               delays_known=np.array([r.get("ejection") != "unknown" for r in rows], dtype=bool))
+                               delays_known=np.array([r.ejection != "unknown" for r in rows], dtype=bool))
     return evaluate_rules(inputs, s.rules, ceiling_m=s.ceiling_m)
 
 

@@ -31,6 +31,7 @@ from typing import Any, Sequence
 
 from ..flight.airframe import Airframe
 from ..motor.classes import CLASS_LETTERS
+from ..motor.listing import CatalogRow
 from ..motor.record import MotorRecord
 from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
@@ -129,19 +130,10 @@ class MatchResult:
         return {"airframe": self.airframe, "conditions": self.conditions, "candidates": self.candidates}
 
 
-def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = None) -> list[dict[str, Any]]:
-    """Rows in the catalog's layout for plain records (for ranking records that are not in a catalog)."""
-    rows = []
-    for i, r in enumerate(records):
-        cls = r.impulse_class
-        rows.append({
-            "motor_id": ids[i] if ids else f"record-{i}", "designation": r.designation, "maker": r.maker,
-            "impulse_class": cls.letter if cls else None, "total_impulse_ns": r.total_impulse_ns,
-            "diameter_m": r.diameter_m, "length_m": r.length_m, "total_mass_kg": r.total_mass_kg,
-            "propellant_mass_kg": r.propellant_mass_kg, "delays_s": list(r.delays_s),
-            "delay_adjustable": r.delay_adjustable, "ejection": r.ejection, "handle": r.designation,
-        })
-    return rows
+def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = None) -> list[CatalogRow]:
+    """Catalog rows for plain records (for ranking records that are not in a catalog); ids ``record-<i>``
+    unless given."""
+    return [CatalogRow.from_record(r, ids[i] if ids else f"record-{i}") for i, r in enumerate(records)]
 
 
 def mount_problems(frame: Airframe, record: MotorRecord) -> list[str]:
@@ -152,15 +144,15 @@ def mount_problems(frame: Airframe, record: MotorRecord) -> list[str]:
     return [text for code, text in reasons if code == "motor-does-not-fit"]
 
 
-def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:
+def _fits(frame: Airframe, row: CatalogRow, s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:
     """(code, message) for every reason the motor cannot be flown in ``frame``, and the adapter it needs."""
     reasons = []
     adapter = None
     if s.max_class is not None:
-        cls = row["impulse_class"]
+        cls = row.impulse_class
         if cls is None or CLASS_LETTERS.index(cls) > CLASS_LETTERS.index(s.max_class):
             reasons.append(("above-class", f"class {cls or 'above O'} is above the limit {s.max_class}"))
-    d, mount = row["diameter_m"], frame.mount_diameter_m
+    d, mount = row.diameter_m, frame.mount_diameter_m
     if mount is not None:
         size = f"{d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount" if d is not None else ""
         if d is None:
@@ -177,12 +169,12 @@ def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[
             else:
                 adapter = adapter_text(d, mount)
     if frame.mount_length_m is not None:
-        if row["length_m"] is None:
+        if row.length_m is None:
             reasons.append(("motor-does-not-fit", "does not fit: the motor's length is unknown"))
-        elif row["length_m"] > frame.mount_length_m + 1e-9:
-            reasons.append(("motor-does-not-fit", f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes "
+        elif row.length_m > frame.mount_length_m + 1e-9:
+            reasons.append(("motor-does-not-fit", f"does not fit: {row.length_m * 1e3:.4g} mm long, the mount takes "
                                       f"{frame.mount_length_m * 1e3:.4g} mm"))
-    if row["total_mass_kg"] is None or row["propellant_mass_kg"] is None:
+    if row.total_mass_kg is None or row.propellant_mass_kg is None:
         reasons.append(("no-masses", "cannot be flown: no total or propellant mass"))
     return reasons, adapter
 
@@ -197,9 +189,9 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     Parameters
     ----------
     frame : Airframe
-    rows : Catalog, MotorRecord, sequence of MotorRecord, or sequence of dict
-        The candidates: a catalog (all its motors), records, or metadata in the catalog's row layout
-        (:meth:`Catalog.rows` or :func:`candidate_rows`), which then needs ``pack_for``.
+    rows : Catalog, MotorRecord, sequence of MotorRecord, or sequence of CatalogRow
+        The candidates: a catalog (all its motors), records, or catalog rows
+        (:meth:`Catalog.rows` or :func:`candidate_rows`), which then need ``pack_for``.
     pack_for : callable, optional
         ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index); not
         needed for a catalog or records. A :class:`MatchSettings` here is taken as ``settings``.
@@ -240,10 +232,10 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
             flown[i] = {key: value[k] for key, value in figures.items()}
     candidates = []
     for i, row in enumerate(rows):
-        base = {"motor_id": row["motor_id"], "handle": row.get("handle"), "designation": row["designation"],
-                "maker": row["maker"], "impulse_class": row["impulse_class"],
-                "total_impulse_ns": row["total_impulse_ns"], "diameter_m": row["diameter_m"],
-                "length_m": row["length_m"], "fits": not fit_reasons[i], "adapter": adapters[i]}
+        base = {"motor_id": row.motor_id, "handle": row.handle, "designation": row.designation,
+                "maker": row.maker, "impulse_class": row.impulse_class,
+                "total_impulse_ns": row.total_impulse_ns, "diameter_m": row.diameter_m,
+                "length_m": row.length_m, "fits": not fit_reasons[i], "adapter": adapters[i]}
         if i in flown:
             f = flown[i]
             base.update({k: v for k, v in f.items() if not k.startswith("_")})
@@ -264,7 +256,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     return MatchResult(airframe, conditions, candidates)
 
 
-def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[dict[str, Any]], Any]:
+def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[CatalogRow], Any]:
     """Rows and a pack function for whatever :func:`rank` was given (a catalog, records or rows)."""
     if hasattr(rows, "rows") and hasattr(rows, "motor_pack"):  # a Catalog (duck-typed: catalog/ is a layer above)
         return rows.rows(), pack_for or rows.motor_pack
@@ -275,7 +267,7 @@ def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[dic
         records = rows
         by_id = {f"record-{i}": r for i, r in enumerate(records)}
         return candidate_rows(records), pack_for or (
-            lambda sub: MotorPack.from_records([by_id[r["motor_id"]] for r in sub], drill_step_s))
+            lambda sub: MotorPack.from_records([by_id[r.motor_id] for r in sub], drill_step_s))
     if pack_for is None:
         raise TypeError("`pack_for` is needed when `rows` are catalog rows (or pass a Catalog or motor records)")
     return rows, pack_for

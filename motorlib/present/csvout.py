@@ -17,6 +17,7 @@ import io
 import math
 from typing import Any, Callable, Sequence
 
+from ..motor.listing import ROW_COLUMNS, CatalogRow
 from .display import DisplayUnits
 
 __all__ = ["TRAJECTORY_COLUMNS", "candidates_csv", "catalog_csv", "rows_csv", "trajectory_csv"]
@@ -92,6 +93,6 @@ def candidates_csv(candidates: Sequence[dict[str, Any]], conditions: dict[str, A
     return rows_csv(rows, columns, units)
 
 
-def catalog_csv(rows: Sequence[dict[str, Any]], units: DisplayUnits) -> str:
+def catalog_csv(rows: Sequence[CatalogRow], units: DisplayUnits) -> str:
     """Catalog rows (``Catalog.rows()``) as CSV: every column but the findings."""
-    return rows_csv(rows, [c for c in rows[0] if c != "findings"] if rows else [], units)
+    return rows_csv([r.as_dict() for r in rows], [c for c in ROW_COLUMNS if c != "findings"] if rows else [], units)

@@ -25,6 +25,7 @@ from rich.text import Text
 
 from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
+from ..motor.listing import CatalogRow
 from .display import DisplayUnits
 from ..matching.verdicts import VERDICTS
 from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
@@ -380,16 +381,17 @@ def _maker_tag(maker: str) -> str:
     return word[:12]
 
 
-def _motor_names(rows: list[dict[str, Any]], with_maker_column: bool) -> list[str]:
-    """Designations, with a maker tag where the same designation comes from several makers."""
+def _motor_names(motors: list[tuple[str, str | None]], with_maker_column: bool) -> list[str]:
+    """Designations of (designation, maker) pairs, with a maker tag where the same designation comes from
+    several makers."""
     makers: dict[str, set[str]] = {}
-    for r in rows:
-        makers.setdefault(r["designation"], set()).add(r.get("maker") or "")
-    return [r["designation"] if with_maker_column or len(makers[r["designation"]]) < 2
-            else f"{r['designation']} {_maker_tag(r.get('maker') or '')}" for r in rows]
+    for designation, maker in motors:
+        makers.setdefault(designation, set()).add(maker or "")
+    return [designation if with_maker_column or len(makers[designation]) < 2
+            else f"{designation} {_maker_tag(maker or '')}" for designation, maker in motors]
 
 
-def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: DisplayUnits = _METRIC,
+def catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: DisplayUnits = _METRIC,
                   width: int = 80) -> Table:
     """One row per motor; headers are the names ``catalog list --sort`` takes.
 
@@ -404,34 +406,34 @@ def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: Dis
     if wide:
         table.add_column("maker", no_wrap=True, overflow="ellipsis", min_width=8)
     table.add_column("class", no_wrap=True)
-    d_impulse = u.column_decimals([r["total_impulse_ns"] for r in rows], "impulse")
-    d_thrust = u.column_decimals([r["average_thrust_n"] for r in rows], "force")
+    d_impulse = u.column_decimals([r.total_impulse_ns for r in rows], "impulse")
+    d_thrust = u.column_decimals([r.average_thrust_n for r in rows], "force")
     _right(table, u.header("impulse", u.unit("impulse")))
     _right(table, u.header("thrust", u.unit("force")))
     _right(table, u.header("burn", "s"))
     _right(table, u.header("dia", u.unit("motor_size")))
-    mass_unit = u.column_unit([r["total_mass_kg"] for r in rows], "mass")
-    d_dia = u.exact_decimals([r["diameter_m"] for r in rows], "motor_size", 1)
-    d_length = u.exact_decimals([r["length_m"] for r in rows], "motor_size", 1)
-    d_mass = u.column_decimals([r["total_mass_kg"] for r in rows], "mass", mass_unit)
+    mass_unit = u.column_unit([r.total_mass_kg for r in rows], "mass")
+    d_dia = u.exact_decimals([r.diameter_m for r in rows], "motor_size", 1)
+    d_length = u.exact_decimals([r.length_m for r in rows], "motor_size", 1)
+    d_mass = u.column_decimals([r.total_mass_kg for r in rows], "mass", mass_unit)
     if wide:
         _right(table, u.header("length", u.unit("motor_size")))
         _right(table, u.header("mass", mass_unit))
     table.add_column(u.header("delays", "s"), no_wrap=True)
     table.add_column("check", no_wrap=True)
-    for r, name in zip(rows, _motor_names(rows, wide)):
-        checks = Text("errors", style="bold red") if r["n_errors"] else (
-            Text("warn", style="yellow") if r["n_warnings"] else Text("ok", style="green"))
-        cells: list[Any] = [r["motor_id"][:6], escape(name)]
+    for r, name in zip(rows, _motor_names([(r.designation, r.maker) for r in rows], wide)):
+        checks = Text("errors", style="bold red") if r.n_errors else (
+            Text("warn", style="yellow") if r.n_warnings else Text("ok", style="green"))
+        cells: list[Any] = [r.motor_id[:6], escape(name)]
         if wide:
-            cells.append(escape(r["maker"] or "-"))
-        cells += [_cls(r["impulse_class"], r["class_percent"]), _impulse(u, r["total_impulse_ns"], d_impulse),
-                  u.number(r["average_thrust_n"], "force", d_thrust), u.number(r["burn_time_s"], "time"),
-                  u.number(r["diameter_m"], "motor_size", d_dia)]
+            cells.append(escape(r.maker or "-"))
+        cells += [_cls(r.impulse_class, r.class_percent), _impulse(u, r.total_impulse_ns, d_impulse),
+                  u.number(r.average_thrust_n, "force", d_thrust), u.number(r.burn_time_s, "time"),
+                  u.number(r.diameter_m, "motor_size", d_dia)]
         if wide:
-            cells += [u.number(r["length_m"], "motor_size", d_length),
-                      u.number(r["total_mass_kg"], "mass", d_mass, unit=mass_unit)]
-        cells += [_delays(r["delays_s"], r["delay_adjustable"], r.get("ejection")), checks]
+            cells += [u.number(r.length_m, "motor_size", d_length),
+                      u.number(r.total_mass_kg, "mass", d_mass, unit=mass_unit)]
+        cells += [_delays(r.delays_s, r.delay_adjustable, r.ejection), checks]
         table.add_row(*cells)
     return _lock_widths(table, "maker", width)
 
@@ -508,7 +510,7 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
     if ballast:
         _right(table, u.header("+mass", ballast_unit))
     table.add_column("result", no_wrap=True)
-    for rank, (c, name) in enumerate(zip(shown, _motor_names(shown, wide)), 1):
+    for rank, (c, name) in enumerate(zip(shown, _motor_names([(c["designation"], c.get("maker")) for c in shown], wide)), 1):
         codes = set(c["reason_codes"])
         if c["apogee_m"] is None:
             cells = ["-"] * 5

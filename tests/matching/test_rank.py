@@ -15,6 +15,7 @@ from motorlib.cli.main import main
 from motorlib.flight import simulate
 from motorlib.flight.rules import LaunchRules
 from motorlib.matching import MatchSettings, rank
+from motorlib.motor import CatalogRow
 from motorlib.flight.rules import LaunchRules
 
 from ..conftest import SAMPLE_DIR
@@ -210,10 +211,10 @@ def test_plain_records_rank_like_the_catalog(sample_catalog: Catalog) -> None:
 
     frame = load_airframe(AIRFRAME)
     rows = sample_catalog.rows()
-    records = [sample_catalog.get(r["motor_id"]) for r in rows]
+    records = [sample_catalog.get(r.motor_id) for r in rows]
     settings = MatchSettings(target_m=400.0, allow_smaller_motors=True)
-    by_records = rank(frame, candidate_rows(records, [r["motor_id"] for r in rows]),
-                      lambda sub: MotorPack.from_records([records[[r["motor_id"] for r in rows].index(x["motor_id"])]
+    by_records = rank(frame, candidate_rows(records, [r.motor_id for r in rows]),
+                      lambda sub: MotorPack.from_records([records[[r.motor_id for r in rows].index(x.motor_id)]
                                                           for x in sub]), settings)
     by_catalog = rank(frame, rows, sample_catalog.motor_pack, settings)
     assert [c["motor_id"] for c in by_records.candidates] == [c["motor_id"] for c in by_catalog.candidates]
@@ -244,12 +245,12 @@ def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> 
     from motorlib.matching import candidate_rows
 
     frame = load_airframe(AIRFRAME)
-    base = sample_catalog.get(sample_catalog.rows(CatalogFilter(text="F29-8"))[0]["motor_id"])
+    base = sample_catalog.get(sample_catalog.rows(CatalogFilter(text="F29-8"))[0].motor_id)
     plugged = replace(base, delays_s=(), delay_adjustable=False, no_ejection_charge=True)
     records = [plugged, replace(plugged, no_ejection_charge=False)]  # record-0 plugged, record-1 delays unknown
 
-    def pack_for(sub: list[dict]) -> MotorPack:
-        return MotorPack.from_records([records[int(x["motor_id"].split("-")[1])] for x in sub])
+    def pack_for(sub: list[CatalogRow]) -> MotorPack:
+        return MotorPack.from_records([records[int(x.motor_id.split("-")[1])] for x in sub])
 
     result = rank(frame, candidate_rows(records), pack_for, MatchSettings(target_m=400.0, allow_smaller_motors=True))
     reasons = {c["motor_id"]: dict(zip(c["reason_codes"], c["reasons"])) for c in result.candidates}
