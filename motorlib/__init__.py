@@ -19,6 +19,7 @@ _EXPORTS = {
     "Airframe": ".flight.airframe",
     "Body": ".flight.geometry",
     "CLASS_LETTERS": ".motor.classes",
+    "Candidate": ".matching.candidate",
     "Catalog": ".catalog",
     "CatalogError": ".errors",
     "CatalogFilter": ".catalog",
@@ -138,6 +139,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
         SimulationInputError,
     )
     from .flight import FlightResults, FlightSettings, MotorPack, simulate
+    from .matching.candidate import Candidate
     from .matching.rank import MatchResult, MatchSettings, rank
     from .motor.reduction import Reduction, ReductionSettings, reduce_log
     from .flight.rules import LaunchRules
@@ -169,6 +171,7 @@ __all__ = [
     "Airframe",
     "Body",
     "CLASS_LETTERS",
+    "Candidate",
     "Catalog",
     "CatalogError",
     "CatalogFilter",

@@ -39,7 +39,8 @@ from ..flight.rules import LaunchRules
 from ..flight.stability import MIN_STABILITY_CAL
 from .adapters import adapter_steps, adapter_text
 from .ballast import _check_stability, _solve_ballast
-from .figures import _STABILITY_KEYS, _figures, flies_descent
+from .figures import _figures, flies_descent
+from .candidate import Candidate
 from .verdicts import classify, verdict_order
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
@@ -110,24 +111,27 @@ class MatchSettings:
 
 @dataclass(frozen=True)
 class MatchResult:
-    """The ranking: ``candidates`` (dicts, good choices first) plus the conditions that produced it."""
+    """The ranking: ``candidates`` (:class:`Candidate` records, good choices first) plus the conditions that
+    produced it."""
 
     airframe: dict[str, Any]
     conditions: dict[str, Any]
-    candidates: list[dict[str, Any]]
+    candidates: tuple[Candidate, ...]
 
     @property
-    def passing(self) -> list[dict[str, Any]]:
+    def passing(self) -> list[Candidate]:
         """Candidates with the verdict ``pass`` (every rule, on target, no ballast needed)."""
-        return [c for c in self.candidates if c["passes"]]
+        return [c for c in self.candidates if c.passes]
 
     @property
-    def with_ballast(self) -> list[dict[str, Any]]:
+    def with_ballast(self) -> list[Candidate]:
         """Candidates with the verdict ``pass with ballast``."""
-        return [c for c in self.candidates if c["verdict"] == "pass with ballast"]
+        return [c for c in self.candidates if c.verdict == "pass with ballast"]
 
     def as_dict(self) -> dict[str, Any]:
-        return {"airframe": self.airframe, "conditions": self.conditions, "candidates": self.candidates}
+        """Plain data (the ``match --json`` layout, without the CLI's additions to the conditions)."""
+        return {"airframe": self.airframe, "conditions": self.conditions,
+                "candidates": [c.as_dict() for c in self.candidates]}
 
 
 def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = None) -> list[CatalogRow]:
@@ -209,7 +213,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     >>> frame = motorlib.load_airframe(sample_catalog_dir() / "airframes" / "quibble-41.toml")
     >>> catalog = motorlib.Catalog(sample_catalog_dir(), read_only=True)
     >>> result = motorlib.rank(frame, catalog, motorlib.MatchSettings(target_m=400.0, ceiling_m=800.0))
-    >>> len(result.candidates), result.candidates[0]["designation"], result.candidates[0]["verdict"]
+    >>> len(result.candidates), result.candidates[0].designation, result.candidates[0].verdict
     (27, 'F51-10', 'off target')
     """
     if isinstance(pack_for, MatchSettings):  # rank(airframe, catalog, settings)
@@ -219,7 +223,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     rows, pack_for = _candidates(rows, pack_for, fs.drill_step_s)
     fit_reasons, adapters = zip(*[_fits(frame, row, s) for row in rows]) if rows else ((), ())
     fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
-    flown: dict[int, dict[str, Any]] = {}
+    flown: dict[int, tuple[dict[str, Any], list[tuple[str, str]], list[tuple[str, str]]]] = {}
     if fitting:
         sub = [rows[i] for i in fitting]
         pack = pack_for(sub)
@@ -229,31 +233,14 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
         if s.ballast:
             _solve_ballast(frame, sub, pack, figures, s, fs)
         for k, i in enumerate(fitting):
-            flown[i] = {key: value[k] for key, value in figures.items()}
-    candidates = []
-    for i, row in enumerate(rows):
-        base = {"motor_id": row.motor_id, "handle": row.handle, "designation": row.designation,
-                "maker": row.maker, "impulse_class": row.impulse_class,
-                "total_impulse_ns": row.total_impulse_ns, "diameter_m": row.diameter_m,
-                "length_m": row.length_m, "fits": not fit_reasons[i], "adapter": adapters[i]}
-        if i in flown:
-            f = flown[i]
-            base.update({k: v for k, v in f.items() if not k.startswith("_")})
-            base["reasons"] = [text for _, text in f["_reasons"]]
-            base["reason_codes"] = [code for code, _ in f["_reasons"]]
-            base["notes"] = [text for _, text in f["_notes"]]
-            base["note_codes"] = [code for code, _ in f["_notes"]]
-        else:
-            base.update({k: None for k in _FIGURE_KEYS})
-            base["reasons"] = [text for _, text in fit_reasons[i]]
-            base["reason_codes"] = [code for code, _ in fit_reasons[i]]
-        _judge(base, s)
-        candidates.append(base)
-    candidates.sort(key=lambda c: _sort_key(c, s))
+            flown[i] = ({key: values[k] for key, values in figures.columns.items()}, figures.reasons[k],
+                        figures.notes[k])
+    candidates = sorted((_candidate(row, fit_reasons[i], adapters[i], flown.get(i), s) for i, row in enumerate(rows)),
+                        key=lambda c: _sort_key(c, s))
     conditions = _conditions(frame, s)
     airframe = {"name": frame.name, "mass_kg": frame.mass_kg, "diameter_m": frame.diameter_m,
                 "mount_diameter_m": frame.mount_diameter_m, "mount_length_m": frame.mount_length_m}
-    return MatchResult(airframe, conditions, candidates)
+    return MatchResult(airframe, conditions, tuple(candidates))
 
 
 def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[CatalogRow], Any]:
@@ -273,37 +260,39 @@ def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[Cat
     return rows, pack_for
 
 
-_FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_thrust_to_weight", "max_speed_m_s",
-                "max_mach", "burnout_time_s", "optimal_delay_s", "chosen_delay_s", "delay_adjusted",
-                "ejection_altitude_m", "ejection_speed_m_s", "ejection_vertical_speed_m_s", "landing_speed_m_s",
-                "max_deployment_speed_m_s", "landing_distance_m",
-                "liftoff_mass_kg", "ballast_kg", "ballast_apogee_m", "ballast_rail_exit_speed_m_s",
-                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_optimal_delay_s",
-                "ballast_ejection_speed_m_s", "ballast_landing_speed_m_s", "ballast_reasons", "ballast_reason_codes")
+def _candidate(row: CatalogRow, fit_reasons: list[tuple[str, str]], adapter: str | None,
+               flown: tuple[dict[str, Any], list[tuple[str, str]], list[tuple[str, str]]] | None,
+               s: MatchSettings) -> Candidate:
+    """The record of one motor: its row, its flown figures (None if it was not flown), the (code, message) of
+    every rule it breaks and every note, and its verdict (:func:`.verdicts.classify`)."""
+    figures, reasons, notes = flown if flown is not None else ({}, fit_reasons, [])
+    fits = not fit_reasons
+    if adapter is not None and fits:
+        notes = [("adapter", f"needs a {adapter} adapter")] + notes
+    codes = [code for code, _ in reasons]
+    verdict = classify(codes, figures.get("apogee_m"), s.target_m, s.target_tolerance,
+                       ballast_kg=figures.get("ballast_kg"), ballast_reasons=figures.get("ballast_reasons"))
+    notes = notes + list(verdict.notes)
+    return Candidate(
+        motor_id=row.motor_id, handle=row.handle, designation=row.designation, maker=row.maker,
+        impulse_class=row.impulse_class, total_impulse_ns=row.total_impulse_ns, diameter_m=row.diameter_m,
+        length_m=row.length_m, fits=fits, adapter=adapter, **figures,
+        reasons=tuple(text for _, text in reasons), reason_codes=tuple(codes),
+        notes=tuple(text for _, text in notes), note_codes=tuple(code for code, _ in notes),
+        verdict=verdict.verdict, passes=verdict.passes, ballast_passes=verdict.ballast_passes)
 
 
-def _judge(c: dict[str, Any], s: MatchSettings) -> None:
-    """The candidate's verdict and notes (:func:`.verdicts.classify`), with the adapter it needs as a note."""
-    if c["adapter"] is not None and c["fits"]:
-        c["notes"] = [f"needs a {c['adapter']} adapter"] + c.get("notes", [])
-        c["note_codes"] = ["adapter"] + c.get("note_codes", [])
-    classify(c, s.target_m, s.target_tolerance)
-
-
-_FIGURE_KEYS += _STABILITY_KEYS
-
-
-def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
+def _sort_key(c: Candidate, s: MatchSettings) -> tuple[int, float, str]:
     """Good choices first (by verdict), then closeness to the target (least ballast with ballast), or apogee."""
-    group = verdict_order(c["verdict"])
-    apogee = c["apogee_m"]
+    group = verdict_order(c.verdict)
+    apogee = c.apogee_m
     if apogee is None or not math.isfinite(apogee):
-        return (group, 0.0, c["designation"])
-    if c["verdict"] == "pass with ballast":
-        return (group, c["ballast_kg"], c["designation"])
+        return (group, 0.0, c.designation)
+    if c.verdict == "pass with ballast" and c.ballast_kg is not None:
+        return (group, c.ballast_kg, c.designation)
     if s.target_m is not None:
-        return (group, abs(apogee - s.target_m), c["designation"])
-    return (group, -apogee, c["designation"])
+        return (group, abs(apogee - s.target_m), c.designation)
+    return (group, -apogee, c.designation)
 
 
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:

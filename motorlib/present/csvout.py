@@ -17,6 +17,7 @@ import io
 import math
 from typing import Any, Callable, Sequence
 
+from ..matching.candidate import Candidate
 from ..motor.listing import ROW_COLUMNS, CatalogRow
 from .display import DisplayUnits
 
@@ -79,16 +80,17 @@ def trajectory_csv(trajectory: dict[str, Any], units: DisplayUnits) -> str:
     return rows_csv(rows, [*TRAJECTORY_COLUMNS, "phase"], units)
 
 
-def candidates_csv(candidates: Sequence[dict[str, Any]], conditions: dict[str, Any], units: DisplayUnits) -> str:
+def candidates_csv(candidates: Sequence[Candidate], conditions: dict[str, Any], units: DisplayUnits) -> str:
     """Ranked candidates (``MatchResult.candidates``) as CSV: every figure, then the reasons and notes as text
     in the display units, each list joined with ``; ``."""
     from .messages import note_text, reason_text
 
-    columns = [k for k in candidates[0] if k not in _CANDIDATE_LISTS] + ["reasons", "notes"] if candidates else []
-    rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, conditions, units)
-                                       for code, text in zip(c["reason_codes"], c["reasons"])),
+    columns = ([k for k in candidates[0].as_dict() if k not in _CANDIDATE_LISTS] + ["reasons", "notes"]
+               if candidates else [])
+    rows = [{**c.as_dict(), "reasons": "; ".join(reason_text(code, text, c, conditions, units)
+                                                 for code, text in zip(c.reason_codes, c.reasons)),
              "notes": "; ".join(note_text(code, text, c, conditions, units)
-                                for code, text in zip(c["note_codes"], c["notes"]))}
+                                for code, text in zip(c.note_codes, c.notes))}
             for c in candidates]
     return rows_csv(rows, columns, units)
 

@@ -20,6 +20,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
+from ..matching.candidate import Candidate
 from .flightcard import FlightCard, flight_card, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
@@ -241,18 +242,18 @@ def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: s
     """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions."""
     u = units
     c = result.conditions
-    shown = [cand for cand in result.candidates if cand["fits"]]
+    shown = [cand for cand in result.candidates if cand.fits]
     rows, marks = [], []
     for rank, cand in enumerate(shown, 1):
-        delay = "-" if cand["chosen_delay_s"] is None else (
-            f"{cand['chosen_delay_s']:g}{' drilled' if cand['delay_adjusted'] else ''}/{cand['optimal_delay_s']:.1f}")
-        rows.append((str(rank), cand["designation"], quantity(cand["apogee_m"], "length", u),
-                     quantity(cand["rail_exit_speed_m_s"], "speed", u),
-                     "-" if cand["liftoff_thrust_to_weight"] is None else f"{cand['liftoff_thrust_to_weight']:.1f}",
-                     delay, quantity(cand["ejection_speed_m_s"], "speed", u),
-                     "; ".join([cand["verdict"]] + cand["reasons"] + [f"note: {n}" for n in cand["notes"]]
+        delay = "-" if cand.chosen_delay_s is None else (
+            f"{cand.chosen_delay_s:g}{' drilled' if cand.delay_adjusted else ''}/{cand.optimal_delay_s:.1f}")
+        rows.append((str(rank), cand.designation, quantity(cand.apogee_m, "length", u),
+                     quantity(cand.rail_exit_speed_m_s, "speed", u),
+                     "-" if cand.liftoff_thrust_to_weight is None else f"{cand.liftoff_thrust_to_weight:.1f}",
+                     delay, quantity(cand.ejection_speed_m_s, "speed", u),
+                     "; ".join([cand.verdict, *cand.reasons] + [f"note: {n}" for n in cand.notes]
                                + _extra_mass_words(cand, u))))
-        marks.append(_VERDICT_MARK.get(cand["verdict"], "fail"))
+        marks.append(_VERDICT_MARK.get(cand.verdict, "fail"))
     ranking = TableBlock(
         f"Ranking: {match_count(result)}",
         ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
@@ -293,20 +294,20 @@ def _stability_rule(conditions: dict[str, Any]) -> tuple[tuple[str, str], ...]:
     return (("stability", f">= {float(need):g} calibers over the powered flight"),)
 
 
-def _extra_mass_words(cand: dict[str, Any], u: str) -> list[str]:
+def _extra_mass_words(cand: Candidate, u: str) -> list[str]:
     """What added mass does for a candidate: the ballast solved for the target, the nose weight for stability."""
     out = []
-    if cand.get("ballast_kg") is not None:
-        later = cand.get("ballast_reasons") or []
-        out.append(f"with {quantity(cand['ballast_kg'], 'mass', u)} of ballast: apogee "
-                   f"{quantity(cand.get('ballast_apogee_m'), 'length', u)}, delay "
-                   + ("-" if cand.get("ballast_chosen_delay_s") is None else f"{cand['ballast_chosen_delay_s']:g} s")
+    if cand.ballast_kg is not None:
+        later = cand.ballast_reasons or []
+        out.append(f"with {quantity(cand.ballast_kg, 'mass', u)} of ballast: apogee "
+                   f"{quantity(cand.ballast_apogee_m, 'length', u)}, delay "
+                   + ("-" if cand.ballast_chosen_delay_s is None else f"{cand.ballast_chosen_delay_s:g} s")
                    + (", every rule met" if not later else " but " + ", ".join(later)))
-    if cand.get("nose_weight_for_stability_kg"):
-        later = cand.get("nose_weight_reasons") or []
-        out.append(f"with {quantity(cand['nose_weight_for_stability_kg'], 'mass', u)} of nose weight: stability "
-                   + ("-" if cand.get("nose_weight_stability_margin_cal") is None
-                      else f"{cand['nose_weight_stability_margin_cal']:.2f} cal")
+    if cand.nose_weight_for_stability_kg:
+        later = cand.nose_weight_reasons or []
+        out.append(f"with {quantity(cand.nose_weight_for_stability_kg, 'mass', u)} of nose weight: stability "
+                   + ("-" if cand.nose_weight_stability_margin_cal is None
+                      else f"{cand.nose_weight_stability_margin_cal:.2f} cal")
                    + (", every rule met" if not later else " but " + ", ".join(later)))
     return out
 

@@ -27,6 +27,7 @@ from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
 from ..motor.listing import CatalogRow
 from .display import DisplayUnits
+from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
 from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
 
@@ -472,8 +473,8 @@ def add_results_table(results: list) -> Table:
 
 
 # ----------------------------------------------------------------------------- matching
-def _shown(result: Any, top: int | None, show_rejected: bool) -> list[dict[str, Any]]:
-    shown = [c for c in result.candidates if c["fits"] or show_rejected]
+def _shown(result: Any, top: int | None, show_rejected: bool) -> list[Candidate]:
+    shown = [c for c in result.candidates if c.fits or show_rejected]
     return shown if top is None else shown[:top]
 
 
@@ -503,39 +504,39 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
     _right(table, "T/W")
     _right(table, u.header("delay", "s"))
     _right(table, u.header("eject", u.unit("speed")))
-    mass_unit = u.column_unit([c.get("liftoff_mass_kg") for c in shown], "mass")
+    mass_unit = u.column_unit([c.liftoff_mass_kg for c in shown], "mass")
     if wide:
         _right(table, u.header("loaded", mass_unit))
-    ballast_unit = u.column_unit([c.get("ballast_kg") for c in shown], "mass")
+    ballast_unit = u.column_unit([c.ballast_kg for c in shown], "mass")
     if ballast:
         _right(table, u.header("+mass", ballast_unit))
     table.add_column("result", no_wrap=True)
-    for rank, (c, name) in enumerate(zip(shown, _motor_names([(c["designation"], c.get("maker")) for c in shown], wide)), 1):
-        codes = set(c["reason_codes"])
-        if c["apogee_m"] is None:
+    for rank, (c, name) in enumerate(zip(shown, _motor_names([(c.designation, c.maker) for c in shown], wide)), 1):
+        codes = set(c.reason_codes)
+        if c.apogee_m is None:
             cells = ["-"] * 5
         else:
-            delay = "-" if c["chosen_delay_s"] is None else (
-                f"{c['chosen_delay_s']:g}{'d' if c['delay_adjusted'] else ''}/{c['optimal_delay_s']:.1f}")
+            delay = "-" if c.chosen_delay_s is None else (
+                f"{c.chosen_delay_s:g}{'d' if c.delay_adjusted else ''}/{c.optimal_delay_s:.1f}")
             cells = [
-                _cell(u, c["apogee_m"], cond.get("ceiling_m"), "length", True, "over-ceiling" in codes),
-                _cell(u, c["rail_exit_speed_m_s"], cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
+                _cell(u, c.apogee_m, cond.get("ceiling_m"), "length", True, "over-ceiling" in codes),
+                _cell(u, c.rail_exit_speed_m_s, cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
                       False, "rail-exit-slow" in codes),
-                _cell(u, c["liftoff_thrust_to_weight"], cond["min_liftoff_thrust_to_weight"], "ratio", False,
+                _cell(u, c.liftoff_thrust_to_weight, cond["min_liftoff_thrust_to_weight"], "ratio", False,
                       "thrust-to-weight-low" in codes),
                 delay,
-                _cell(u, c["ejection_speed_m_s"], cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
+                _cell(u, c.ejection_speed_m_s, cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
             ]
         row: list[Any] = [str(rank), escape(name)]
         if wide:
-            row.append(escape(c.get("maker") or "-"))
+            row.append(escape(c.maker or "-"))
         row += cells
         if wide:
-            row.append(u.number(c.get("liftoff_mass_kg"), "mass", unit=mass_unit))
+            row.append(u.number(c.liftoff_mass_kg, "mass", unit=mass_unit))
         if ballast:
-            row.append(u.number(c.get("ballast_kg"), "mass", unit=ballast_unit))
-        word = verdict_text(c["verdict"], c["reason_codes"], c["reasons"])
-        table.add_row(*row, Text(word, style=_VERDICT_STYLE.get(c["verdict"], "red")))
+            row.append(u.number(c.ballast_kg, "mass", unit=ballast_unit))
+        word = verdict_text(c.verdict, c.reason_codes, c.reasons)
+        table.add_row(*row, Text(word, style=_VERDICT_STYLE.get(c.verdict, "red")))
     return _lock_widths(table, "maker", width)
 
 
@@ -555,10 +556,10 @@ def match_legend(result: Any, top: int | None = None, show_rejected: bool = Fals
     used: dict[str, str] = {}
     words: dict[str, str] = {}
     for c in _shown(result, top, show_rejected):
-        if c["verdict"] != "fail":
-            words.setdefault(verdict_text(c["verdict"], [], []), VERDICTS[c["verdict"]])
+        if c.verdict != "fail":
+            words.setdefault(verdict_text(c.verdict, [], []), VERDICTS[c.verdict])
             continue
-        for code, text in zip(c["reason_codes"], c["reasons"]):
+        for code, text in zip(c.reason_codes, c.reasons):
             letter, meaning = short_code(code, text)
             used.setdefault(letter, meaning)
     text = Text()
@@ -579,48 +580,48 @@ def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = 
     u, cond = units, result.conditions
     text = Text()
     for rank, c in enumerate(_shown(result, top, show_rejected), 1):
-        for code, message in zip(c["reason_codes"], c["reasons"]):
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+        for code, message in zip(c.reason_codes, c.reasons):
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
             text.append(reason_text(code, message, c, cond, u) + "\n", style="red")
-        notes = [note_text(code, message, c, cond, u) for code, message in zip(c["note_codes"], c["notes"])
+        notes = [note_text(code, message, c, cond, u) for code, message in zip(c.note_codes, c.notes)
                  if code != "adapter"]  # adapters are listed together below
         if notes:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
             text.append("note: " + "; ".join(notes) + "\n", style="dim")
-        ballast_reasons = c.get("ballast_reasons") or []
-        codes = c.get("ballast_reason_codes") or [""] * len(ballast_reasons)
+        ballast_reasons = c.ballast_reasons or []
+        codes = c.ballast_reason_codes or [""] * len(ballast_reasons)
         later = [reason_text(code, message, c, cond, u, "ballast_") for code, message in zip(codes, ballast_reasons)]
-        if c.get("ballast_kg") is not None:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
-            text.append(f"with {u.quantity(c['ballast_kg'], 'mass')} of ballast: apogee "
-                        f"{u.quantity(c['ballast_apogee_m'], 'length')}, rail exit "
-                        f"{u.quantity(c['ballast_rail_exit_speed_m_s'], 'speed')}, T/W "
-                        f"{u.number(c['ballast_liftoff_thrust_to_weight'], 'ratio')}"
+        if c.ballast_kg is not None:
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
+            text.append(f"with {u.quantity(c.ballast_kg, 'mass')} of ballast: apogee "
+                        f"{u.quantity(c.ballast_apogee_m, 'length')}, rail exit "
+                        f"{u.quantity(c.ballast_rail_exit_speed_m_s, 'speed')}, T/W "
+                        f"{u.number(c.ballast_liftoff_thrust_to_weight, 'ratio')}"
                         + (": passes every rule" if not later else " but " + "; ".join(later)) + "\n",
                         style="yellow" if later else "green")
         elif later:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
             text.append("; ".join(later) + "\n", style="yellow")
         _nose_weight_line(text, rank, c, cond, u)
     adapters: dict[str, list[str]] = {}
     for rank, c in enumerate(_shown(result, top, show_rejected), 1):
-        if c.get("adapter") and c["fits"]:
-            adapters.setdefault(c["adapter"], []).append(f"#{rank}")
+        if c.adapter and c.fits:
+            adapters.setdefault(c.adapter, []).append(f"#{rank}")
     if adapters:
         text.append("Adapters: ", style="bold")
         text.append("; ".join(f"{size} for {', '.join(ranks)}" for size, ranks in adapters.items()) + ".\n")
     return text
 
 
-def _nose_weight_line(text: Text, rank: int, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits) -> None:
+def _nose_weight_line(text: Text, rank: int, c: Candidate, cond: dict[str, Any], u: DisplayUnits) -> None:
     """What the motor does re-flown with the nose weight that restores its stability margin (issue 11)."""
-    if c.get("nose_weight_for_stability_kg") is None:
+    if c.nose_weight_for_stability_kg is None:
         return
     later = [reason_text(code, message, c, cond, u, "nose_weight_")
-             for code, message in zip(c.get("nose_weight_reason_codes") or [], c.get("nose_weight_reasons") or [])]
-    text.append(f"  #{rank} {c['designation']}: ", style="bold")
-    text.append(f"with {small_mass(u, c['nose_weight_for_stability_kg'])} of nose weight: stability "
-                f"{c['nose_weight_stability_margin_cal']:.2f} cal, apogee {u.quantity(c['nose_weight_apogee_m'], 'length')}"
+             for code, message in zip(c.nose_weight_reason_codes or [], c.nose_weight_reasons or [])]
+    text.append(f"  #{rank} {c.designation}: ", style="bold")
+    text.append(f"with {small_mass(u, c.nose_weight_for_stability_kg)} of nose weight: stability "
+                f"{c.nose_weight_stability_margin_cal:.2f} cal, apogee {u.quantity(c.nose_weight_apogee_m, 'length')}"
                 + (" but " + "; ".join(later) if later else ", every rule met") + "\n",
                 style="yellow" if later else "green")
 
