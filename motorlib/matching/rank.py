@@ -27,7 +27,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any, Sequence
+from typing import Any, Callable, Protocol, Sequence, Union
 
 from ..flight.airframe import Airframe
 from ..motor.classes import CLASS_LETTERS
@@ -44,6 +44,19 @@ from .candidate import Candidate
 from .verdicts import classify, verdict_order
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
+
+PackFor = Callable[[Sequence[CatalogRow]], MotorPack]  # builds the pack of the rows that fit
+
+
+class RowSource(Protocol):
+    """What :func:`rank` needs of a catalog (:class:`motorlib.Catalog`; catalog/ is a layer above, so duck-typed)."""
+
+    def rows(self) -> list[CatalogRow]: ...
+
+    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack: ...
+
+
+Candidates = Union[RowSource, MotorRecord, Sequence[MotorRecord], Sequence[CatalogRow]]
 
 
 @dataclass(frozen=True)
@@ -183,7 +196,8 @@ def _fits(frame: Airframe, row: CatalogRow, s: MatchSettings) -> tuple[list[tupl
     return reasons, adapter
 
 
-def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettings | None = None,
+def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | None = None,
+         settings: MatchSettings | None = None,
          flight_settings: FlightSettings | None = None) -> MatchResult:
     """Rank every candidate for ``frame``.
 
@@ -243,7 +257,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     return MatchResult(airframe, conditions, tuple(candidates))
 
 
-def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[CatalogRow], Any]:
+def _candidates(rows: Candidates, pack_for: PackFor | None, drill_step_s: float) -> tuple[list[CatalogRow], PackFor]:
     """Rows and a pack function for whatever :func:`rank` was given (a catalog, records or rows)."""
     if hasattr(rows, "rows") and hasattr(rows, "motor_pack"):  # a Catalog (duck-typed: catalog/ is a layer above)
         return rows.rows(), pack_for or rows.motor_pack

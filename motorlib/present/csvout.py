@@ -15,11 +15,14 @@ from __future__ import annotations
 import csv
 import io
 import math
-from typing import Any, Callable, Sequence
+from typing import TYPE_CHECKING, Any, Callable, Mapping, Sequence
 
 from ..matching.candidate import Candidate
 from ..motor.listing import ROW_COLUMNS, CatalogRow
 from .display import DisplayUnits
+
+if TYPE_CHECKING:
+    import numpy as np
 
 __all__ = ["TRAJECTORY_COLUMNS", "candidates_csv", "catalog_csv", "rows_csv", "trajectory_csv"]
 
@@ -72,7 +75,7 @@ def rows_csv(rows: Sequence[dict[str, Any]], columns: Sequence[str], units: Disp
     return buffer.getvalue()
 
 
-def trajectory_csv(trajectory: dict[str, Any], units: DisplayUnits) -> str:
+def trajectory_csv(trajectory: Mapping[str, np.ndarray], units: DisplayUnits) -> str:
     """One flown trajectory (``FlightResults.trajectories[i]``) as CSV: :data:`TRAJECTORY_COLUMNS` and ``phase``."""
     rows = [{**{name: float(trajectory[name][row]) for name in TRAJECTORY_COLUMNS},
              "phase": "descent" if trajectory["descent"][row] else "ascent"}

@@ -8,11 +8,14 @@ No rich here, so the CSV output can use the same words.
 
 from __future__ import annotations
 
-from typing import Any, Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from ..matching.candidate import Candidate
 from ..matching.verdicts import miss_percent
 from .display import DisplayUnits
+
+if TYPE_CHECKING:
+    from ..matching.rank import MatchResult
 
 __all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text"]
 
@@ -49,7 +52,7 @@ def short_code(code: str, text: str) -> tuple[str, str]:
     return ("?", code)
 
 
-def match_count(result: Any) -> str:
+def match_count(result: MatchResult) -> str:
     """"2 of 27 pass, 1 more with ballast, 3 off target": only good choices count as passing."""
     verdicts = [c.verdict for c in result.candidates]
     text = f"{verdicts.count('pass')} of {len(verdicts)} pass"

@@ -15,7 +15,7 @@ states the chart's key figures.
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Any, Sequence
+from typing import TYPE_CHECKING, Any, Sequence
 
 import numpy as np
 
@@ -24,13 +24,17 @@ from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TI
 from .report import ChartBlock
 from .svgcharts import SvgChart, thin
 
+if TYPE_CHECKING:
+    from ..matching.rank import MatchResult
+    from ..motor.record import MotorRecord
+
 __all__ = ["flight_chart", "match_chart", "mean_chart", "overlay_chart", "side_chart", "thrust_chart"]
 
 _LINE_STYLES = [(INK, "solid"), (BLUE, "dashed"), (ORANGE, "solid"), (INK, "dotted"), (BLUE, "dashdot"),
                 (ORANGE, "dashed"), (MUTED, "solid"), (BLUE, "dotted")]
 
 
-def thrust_chart(motor: Any, key: str = "thrust") -> ChartBlock:
+def thrust_chart(motor: MotorRecord, key: str = "thrust") -> ChartBlock:
     """The motor's thrust curve with its average thrust and burn window."""
     t, f = np.asarray(motor.time_s, dtype=float), np.asarray(motor.thrust_n, dtype=float)
     start, end = motor.burn_window_s()
@@ -159,7 +163,7 @@ def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_
     return ChartBlock(chart.render(), "Scales differ: the horizontal axis is stretched to show the drift.", wide=False)
 
 
-def match_chart(result: Any, key: str = "match") -> ChartBlock | None:
+def match_chart(result: MatchResult, key: str = "match") -> ChartBlock | None:
     """Apogee of every flown candidate in rank order: plain blue bars with a tick pass, hatched orange bars with a
     cross and the reason fail; the target, its tolerance band, the ceiling and the region above it explained."""
     flown = [c for c in result.candidates if c.apogee_m is not None]

@@ -16,7 +16,7 @@ from __future__ import annotations
 import datetime as _dt
 import math
 from pathlib import Path
-from typing import Any, Sequence
+from typing import TYPE_CHECKING, Any, Sequence
 
 import numpy as np
 
@@ -26,6 +26,11 @@ from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBl
                      file_sha256)
 from .messages import match_count
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
+
+if TYPE_CHECKING:
+    from ..flight.airframe import Airframe
+    from ..matching.rank import MatchResult
+    from ..motor.record import MotorRecord
 
 __all__ = ["fly_report", "match_report", "reduce_report", "trace_for"]
 
@@ -52,7 +57,7 @@ def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -
 
 
 # ----------------------------------------------------------------------------- fly
-def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
+def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
                trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
                made_at: str | None = None) -> FlyReport:
     """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory)."""
@@ -143,7 +148,7 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
         assumptions=assumptions)
 
 
-def _drag_words(frame: Any, summary: dict[str, Any]) -> str:
+def _drag_words(frame: Airframe, summary: dict[str, Any]) -> str:
     """The rocket's drag as the report states it: given or estimated, with the shape's estimate beside a given Cd."""
     drag = summary.get("drag") or {}
     if frame.drag_source == "estimated":
@@ -237,7 +242,7 @@ def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
 _VERDICT_MARK = {"pass": "ok", "pass with ballast": "ok", "off target": "caution"}
 
 
-def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
+def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
                  made_at: str | None = None) -> MatchReport:
     """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions."""
     u = units

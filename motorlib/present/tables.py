@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 
 from pathlib import Path
-from typing import Any, Iterable
+from typing import TYPE_CHECKING, Any, Iterable
 
 from rich import box
 from rich.console import Group
@@ -30,6 +30,11 @@ from .display import DisplayUnits
 from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
 from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
+
+if TYPE_CHECKING:  # annotations only: the table module loads no flight code
+    from ..flight.airframe import Airframe
+    from ..matching.rank import MatchResult
+    from ..motor.record import MotorRecord
 
 __all__ = ["WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
            "findings_text", "flight_table", "impulse_text", "match_table"]
@@ -188,7 +193,7 @@ def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
     return text
 
 
-def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: Any = None) -> Group:
+def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: MotorRecord | None = None) -> Group:
     """Metrics and findings of one file; with its ``record`` also where the curve comes from (provenance)."""
     parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
     m = report.metrics
@@ -234,7 +239,7 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: An
     return Group(*parts)  # type: ignore[arg-type]
 
 
-def _provenance_rows(record: Any) -> list[tuple[str, str]]:
+def _provenance_rows(record: MotorRecord) -> list[tuple[str, str]]:
     """Where a curve comes from: kind, date, notes, and the spread of the firings it was made from."""
     p = record.provenance
     rows = [("source", str(p.kind)), ("test date", p.date.isoformat() if p.date else "not given"),
@@ -473,12 +478,12 @@ def add_results_table(results: list) -> Table:
 
 
 # ----------------------------------------------------------------------------- matching
-def _shown(result: Any, top: int | None, show_rejected: bool) -> list[Candidate]:
+def _shown(result: MatchResult, top: int | None, show_rejected: bool) -> list[Candidate]:
     shown = [c for c in result.candidates if c.fits or show_rejected]
     return shown if top is None else shown[:top]
 
 
-def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
+def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
                 ballast: bool = False, width: int = 80) -> Table:
     """The ranking, good choices first; the result column holds the verdict word, and for ``fail`` one-letter
     reason codes (see :func:`match_legend`).
@@ -551,7 +556,7 @@ def _cell(u: DisplayUnits, value: float | None, limit: float | None, kind: str, 
     return u.number(value, kind)
 
 
-def match_legend(result: Any, top: int | None = None, show_rejected: bool = False) -> Text:
+def match_legend(result: MatchResult, top: int | None = None, show_rejected: bool = False) -> Text:
     """What the result words shown mean, and the one-letter codes after ``fail`` (only those shown)."""
     used: dict[str, str] = {}
     words: dict[str, str] = {}
@@ -573,7 +578,7 @@ def match_legend(result: Any, top: int | None = None, show_rejected: bool = Fals
     return text
 
 
-def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = None,
+def match_reasons(result: MatchResult, units: DisplayUnits = _METRIC, top: int | None = None,
                   show_rejected: bool = False) -> Text:
     """Why each shown candidate fails (and what ballast changes), one line per reason; then its notes on one
     line apart from the failures (an adapter, a missed target)."""
@@ -626,7 +631,7 @@ def _nose_weight_line(text: Text, rank: int, c: Candidate, cond: dict[str, Any],
                 style="yellow" if later else "green")
 
 
-def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = None) -> Text:
+def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: Airframe | None = None) -> Text:
     """The assumptions and rules behind a ranking, echoing the airframe file's and the options' own numbers."""
     c, u = result.conditions, units
     text = Text("Assumptions: ", style="bold")
