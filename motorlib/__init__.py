@@ -19,9 +19,11 @@ _EXPORTS = {
     "Airframe": ".flight.airframe",
     "Body": ".flight.geometry",
     "CLASS_LETTERS": ".motor.classes",
+    "Candidate": ".matching.candidate",
     "Catalog": ".catalog",
     "CatalogError": ".errors",
     "CatalogFilter": ".catalog",
+    "CatalogRow": ".motor.listing",
     "CheckReport": ".files.curvefiles",
     "CheckSettings": ".motor.checks",
     "CsvFormatError": ".errors",
@@ -109,6 +111,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
     from .flight.atmosphere import Site
     from .catalog import Catalog, CatalogFilter
     from .motor.checks import CheckSettings, Finding, check_record, metrics
+    from .motor.listing import CatalogRow
     from .motor.classes import (
         CLASS_LETTERS,
         Designation,
@@ -136,6 +139,7 @@ if _typing.TYPE_CHECKING:  # the same names, for type checkers and editors
         SimulationInputError,
     )
     from .flight import FlightResults, FlightSettings, MotorPack, simulate
+    from .matching.candidate import Candidate
     from .matching.rank import MatchResult, MatchSettings, rank
     from .motor.reduction import Reduction, ReductionSettings, reduce_log
     from .flight.rules import LaunchRules
@@ -167,9 +171,11 @@ __all__ = [
     "Airframe",
     "Body",
     "CLASS_LETTERS",
+    "Candidate",
     "Catalog",
     "CatalogError",
     "CatalogFilter",
+    "CatalogRow",
     "CheckReport",
     "CheckSettings",
     "CsvFormatError",

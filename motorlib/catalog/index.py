@@ -29,8 +29,8 @@ from typing import Callable, ContextManager, Iterator, Sequence
 from ..errors import CurveError, CurveSyntaxError, MotorlibError
 from ..files.fsio import read_bounded
 from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
-from ..motor.checks import CheckSettings, Finding, check_record, metrics
-from ..motor.classes import CLASS_LETTERS
+from ..motor.checks import CheckSettings, Finding
+from ..motor.listing import ROW_COLUMNS, CatalogRow
 from ..motor.record import MotorRecord
 
 __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
@@ -38,11 +38,7 @@ __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_sch
 SCHEMA_VERSION = "4"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name
 # lookup and on path; 4: files.ctime_ns (a file replaced with its old size and modification time changes it)
 INDEX_DIR = ".motorlib"
-COLUMNS = ("motor_id", "handle", "path", "maker", "designation", "computed_designation", "impulse_class",
-           "class_index", "class_percent", "total_impulse_ns", "average_thrust_n", "peak_thrust_n", "burn_time_s",
-           "diameter_m", "length_m", "total_mass_kg", "propellant_mass_kg", "specific_impulse_s", "delays_s",
-           "delay_adjustable", "ejection", "provenance_kind", "provenance_date", "notes", "n_samples", "n_errors",
-           "n_warnings", "findings")
+COLUMNS = ROW_COLUMNS  # the motors table has one column per CatalogRow field, in order
 
 
 def create_schema(db: sqlite3.Connection) -> None:
@@ -116,27 +112,10 @@ def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSett
 
     ``findings`` are ``check_record(record, settings)`` when the caller has them already.
     """
-    m = metrics(record, settings.burn_threshold)
-    if findings is None:
-        findings = check_record(record, settings)
-    cls = m["impulse_class"]
-    row = {
-        "motor_id": motor_id, "handle": path[:-4], "path": path, "maker": record.maker,
-        "designation": record.designation, "computed_designation": m["computed_designation"],
-        "impulse_class": cls, "class_index": CLASS_LETTERS.index(cls) if cls else len(CLASS_LETTERS),
-        "class_percent": m["class_percent"], "total_impulse_ns": m["total_impulse_ns"],
-        "average_thrust_n": m["average_thrust_n"], "peak_thrust_n": m["peak_thrust_n"],
-        "burn_time_s": m["burn_time_s"], "diameter_m": record.diameter_m, "length_m": record.length_m,
-        "total_mass_kg": record.total_mass_kg, "propellant_mass_kg": record.propellant_mass_kg,
-        "specific_impulse_s": record.specific_impulse_s, "delays_s": json.dumps(list(record.delays_s)),
-        "delay_adjustable": int(record.delay_adjustable), "ejection": record.ejection,
-        "provenance_kind": record.provenance.kind,
-        "provenance_date": record.provenance.date.isoformat() if record.provenance.date else None,
-        "notes": record.provenance.notes, "n_samples": record.n_samples,
-        "n_errors": sum(f.severity == "error" for f in findings),
-        "n_warnings": sum(f.severity == "warning" for f in findings),
-        "findings": json.dumps([f.as_dict() for f in findings]),
-    }
+    row = CatalogRow.from_record(record, motor_id, path=path, settings=settings, findings=findings).as_dict()
+    row["delays_s"] = json.dumps(row["delays_s"])
+    row["delay_adjustable"] = int(record.delay_adjustable)
+    row["findings"] = json.dumps(row["findings"])
     return [row[c] for c in COLUMNS] + [record.time_s.astype("<f8").tobytes(), record.thrust_n.astype("<f8").tobytes()]
 
 

@@ -16,7 +16,10 @@ from typing import Any, Sequence
 import numpy as np
 
 from ..flight.delays import offers_delay
+from ..flight.pack import MotorPack
+from ..motor.checks import Finding
 from ..motor.classes import CLASS_LETTERS
+from ..motor.listing import CatalogRow
 from .index import COLUMNS
 
 __all__ = ["SORT_KEYS", "CatalogFilter", "load_samples", "motor_pack", "parse_class_range", "query", "select_rows"]
@@ -99,7 +102,7 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
 
 
 def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
-                descending: bool = False) -> list[dict[str, Any]]:
+                descending: bool = False) -> list[CatalogRow]:
     """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort`` then id."""
     if sort not in SORT_KEYS:
         raise ValueError(f"`sort` must be one of {', '.join(SORT_KEYS)}, got {sort!r}")
@@ -111,11 +114,11 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
     sql += f" ORDER BY {sort} {'DESC' if descending else 'ASC'}, motor_id"
     out = []
     for values in db.execute(sql, args):
-        row = dict(zip(COLUMNS, values))
-        row["delays_s"] = json.loads(row["delays_s"])
-        row["delay_adjustable"] = bool(row["delay_adjustable"])
-        row["findings"] = json.loads(row["findings"])
-        if f.delay_s is not None and not offers_delay(f.delay_s, row["delays_s"], row["delay_adjustable"]):
+        data = dict(zip(COLUMNS, values))
+        data["delays_s"] = json.loads(data["delays_s"])
+        data["findings"] = [Finding(**entry) for entry in json.loads(data["findings"])]
+        row = CatalogRow(**data)
+        if f.delay_s is not None and not offers_delay(f.delay_s, row.delays_s, row.delay_adjustable):
             continue
         out.append(row)
     return out
@@ -125,7 +128,8 @@ def query(db: sqlite3.Connection, where: CatalogFilter | None = None, **kwargs: 
     """The rows of :func:`select_rows` as a pandas DataFrame indexed by motor id (pandas is imported only here)."""
     import pandas as pd
 
-    return pd.DataFrame(select_rows(db, where, **kwargs), columns=list(COLUMNS)).set_index("motor_id")
+    rows = [row.as_dict() for row in select_rows(db, where, **kwargs)]
+    return pd.DataFrame(rows, columns=list(COLUMNS)).set_index("motor_id")
 
 
 def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
@@ -140,16 +144,14 @@ def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[
     return out
 
 
-def motor_pack(db: sqlite3.Connection, rows: Sequence[dict[str, Any]], drill_step_s: float = 1.0) -> Any:
+def motor_pack(db: sqlite3.Connection, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack:
     """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index."""
-    from ..flight import MotorPack
-
-    data = load_samples(db, [r["motor_id"] for r in rows])
+    data = load_samples(db, [r.motor_id for r in rows])
     return MotorPack.from_samples(
-        [data[r["motor_id"]] for r in rows],
-        total_mass_kg=[r["total_mass_kg"] for r in rows],
-        propellant_mass_kg=[r["propellant_mass_kg"] for r in rows],
-        delays_s=[tuple(r["delays_s"]) for r in rows],
-        delay_adjustable=[r["delay_adjustable"] for r in rows],
+        [data[r.motor_id] for r in rows],
+        total_mass_kg=[r.total_mass_kg for r in rows],
+        propellant_mass_kg=[r.propellant_mass_kg for r in rows],
+        delays_s=[r.delays_s for r in rows],
+        delay_adjustable=[r.delay_adjustable for r in rows],
         drill_step_s=drill_step_s,
     )

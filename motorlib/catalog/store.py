@@ -56,6 +56,8 @@ from ..errors import CatalogError, CurveDataError, CurveError, MotorlibError, Mo
 from ..files.fsio import NewFileBatch, slug
 from ..files.motor_xml import read_record, readable_record_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
+from ..flight.pack import MotorPack
+from ..motor.listing import CatalogRow
 from ..motor.record import MotorRecord
 from . import query as _query
 from .index import INDEX_DIR, CatalogIndex, file_stamp
@@ -396,7 +398,7 @@ class Catalog:
 
     # ------------------------------------------------------------------ queries (see .query)
     def rows(self, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
-             descending: bool = False) -> list[dict[str, Any]]:
+             descending: bool = False) -> list[CatalogRow]:
         """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort``."""
         return _query.select_rows(self._db, where, sort=sort, descending=descending)
 
@@ -408,7 +410,7 @@ class Catalog:
         """Time [s] and thrust [N] arrays of the given motors, straight from the index (no XML parsing)."""
         return _query.load_samples(self._db, ids)
 
-    def motor_pack(self, rows: Sequence[dict[str, Any]], drill_step_s: float = 1.0) -> Any:
+    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack:
         """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :meth:`rows`), built from the index."""
         return _query.motor_pack(self._db, rows, drill_step_s)
 
@@ -437,7 +439,7 @@ class Catalog:
     def orphan_tags(self) -> dict[str, list[str]]:
         """Tag name -> the ids it names that are no longer in the catalog (a curve file deleted by hand);
         only tags that name at least one such id."""
-        known = {row["motor_id"] for row in self.rows()}
+        known = {row.motor_id for row in self.rows()}
         orphans = {name: [i for i in ids if i not in known] for name, ids in self.tags().items()}
         return {name: ids for name, ids in orphans.items() if ids}
 

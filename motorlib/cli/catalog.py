@@ -156,7 +156,7 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
     cat = _open_catalog(catalog_dir)
     rows = cat.rows(_filter(opts), sort=key, descending=desc)
     if as_json:
-        click.echo(_json_text(rows))
+        click.echo(_json_text([row.as_dict() for row in rows]))
     elif as_csv:
         from ..present.csvout import catalog_csv
 
@@ -198,7 +198,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
         motor_id = cat.resolve(ref)
         record = cat.get(motor_id)
         records.append((motor_id, record))
-        report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0]['handle']}", True, record,
+        report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0].handle}", True, record,
                              tuple(check_record(record, cat.settings)), metrics(record, cat.settings.burn_threshold))
         console.print(render.check_details(report, shown, record))
         console.print(f"  thrust |{render.sparkline(record.time_s, record.thrust_n, min(60, console.width - 24))}| "
@@ -287,9 +287,9 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     from ..files.export import export_records
 
     cat = _open_catalog(catalog_dir)
-    ids = [cat.resolve(r) for r in refs] if refs else [r["motor_id"] for r in cat.rows(_filter(opts))]
+    ids = [cat.resolve(r) for r in refs] if refs else [r.motor_id for r in cat.rows(_filter(opts))]
     rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
-    items = [(r["handle"], cat.get(r["motor_id"])) for r in rows]
+    items = [(r.handle, cat.get(r.motor_id)) for r in rows]
     try:
         with _progress("exporting curves", len(rows)) as advance:
             written = export_records(items, folder, fmt, overwrite=overwrite, progress=advance)
@@ -320,7 +320,7 @@ def catalog_verify(catalog_dir: str | None) -> None:
 
     cat = _open_catalog(catalog_dir)
     stale = cat.stale_files()  # changed behind the index's back (same size and time): re-read now
-    reports = [check_file(cat.root / row["path"], cat.settings) for row in cat.rows()]
+    reports = [check_file(cat.root / str(row.path), cat.settings) for row in cat.rows()]
     console = _console()
     for path in stale:
         console.print(f"[yellow]index was stale[/yellow] {render.escape(path)}: the file changed without a new "

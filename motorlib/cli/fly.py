@@ -2,13 +2,23 @@
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any, Mapping
 
 import click
 
 from .options import (_Quantity, _units_option, apply_field_day, display_units, load_motor, motor_options,
                       field_day_options, pop_field_day)
 from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _json_text
+
+if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each command, for a fast start
+    from pathlib import Path
+
+    import numpy as np
+
+    from ..flight.airframe import Airframe
+    from ..flight.results import FlightResults
+    from ..motor.record import MotorRecord
+    from ..present.display import DisplayUnits
 
 
 @click.command()
@@ -142,7 +152,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         raise SystemExit(1)
 
 
-def _stability_and_drag(frame: Any, record: Any, results: Any, summary: dict[str, Any], ballast_kg: float,
+def _stability_and_drag(frame: Airframe, record: MotorRecord, results: FlightResults, summary: dict[str, Any], ballast_kg: float,
                         min_stability_cal: float | None) -> list[tuple[str, str]]:
     """Add ``stability``, ``drag_source`` and ``drag`` to ``summary``; return the stability warnings."""
     from ..flight.stability import MIN_STABILITY_CAL, flight_stability, stability_warnings
@@ -167,7 +177,8 @@ def _command_line() -> str:
     return "motorlib " + " ".join(shlex.quote(a) for a in sys.argv[1:])
 
 
-def _write_trajectory_csv(trajectory: dict[str, Any], path: str, units: Any, overwrite: bool) -> Any:
+def _write_trajectory_csv(trajectory: Mapping[str, np.ndarray], path: str, units: DisplayUnits,
+                          overwrite: bool) -> Path:
     from ..files.fsio import write_atomic
     from ..present.csvout import trajectory_csv
 

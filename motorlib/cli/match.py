@@ -127,7 +127,8 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
                               units=_card_units(units))
         written.append(_write_report(report, opts["report_path"], opts["overwrite"], [airframe_file]))
     if opts["as_json"]:
-        click.echo(_json_text({"airframe": result.airframe, "conditions": conditions, "candidates": result.candidates}))
+        click.echo(_json_text({"airframe": result.airframe, "conditions": conditions,
+                               "candidates": [c.as_dict() for c in result.candidates]}))
         return
     if opts["as_csv"]:
         from ..present.csvout import candidates_csv
@@ -142,7 +143,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
                                      console.width))
     console.print(render.match_legend(result, opts["top"], opts["show_rejected"]))
     console.print(render.match_reasons(result, units, opts["top"], opts["show_rejected"]), end="")
-    rejected = sum(not c["fits"] for c in result.candidates)
+    rejected = sum(not c.fits for c in result.candidates)
     if rejected and not opts["show_rejected"]:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
     console.print(render.conditions_text(result, units, frame))

@@ -427,7 +427,7 @@ def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = 
     else:
         catalog = _open_catalog(_catalog_or_samples(catalog_dir))
         motor_id = catalog.resolve(motor_ref)
-        row_path = next((row["path"] for row in catalog.rows() if row["motor_id"] == motor_id), None)
+        row_path = next((row.path for row in catalog.rows() if row.motor_id == motor_id), None)
         motor, path = catalog.get(motor_id), (str(Path(catalog.root) / row_path) if row_path else None)
     problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable)
     if problem:

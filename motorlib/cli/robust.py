@@ -91,7 +91,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     fitting = [r for r in rows if not _fits(frame, r, match)[0]]
     if not fitting:
         raise click.UsageError(f"no motor in {cat.root} fits the airframe")
-    records = [cat.get(r["motor_id"]) for r in fitting]
+    records = [cat.get(r.motor_id) for r in fitting]
     by_name: dict[tuple[str, str], list[Any]] = {}
     for r in records:
         by_name.setdefault((r.maker, r.designation), []).append(r)
@@ -100,7 +100,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     total = settings.n_samples * len(records)
     result = run_with_progress(
         lambda progress: robust_rank(frame, records, match, load_uncertainty(airframe_file), settings,
-                                     ids=[r["motor_id"] for r in fitting], spreads=spreads, workers=k,
+                                     ids=[r.motor_id for r in fitting], spreads=spreads, workers=k,
                                      progress=progress),
         total, f"{len(records)} motors x {settings.n_samples} flights")
     result = {"airframe": frame.name, **result,

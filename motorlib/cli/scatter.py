@@ -119,10 +119,10 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
         return None
     from ..flight.dispersion import catalog_spread
 
-    rows = [r for r in catalog.rows() if r["designation"] == motor.designation and r["maker"] == motor.maker]
+    rows = [r for r in catalog.rows() if r.designation == motor.designation and r.maker == motor.maker]
     if len(rows) < 2:
         return None
-    return catalog_spread([catalog.get(r["motor_id"]) for r in rows])
+    return catalog_spread([catalog.get(r.motor_id) for r in rows])
 
 
 @click.command()

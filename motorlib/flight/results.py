@@ -9,11 +9,13 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Final, Sequence
+from types import MappingProxyType
+from typing import Final, Mapping, Sequence
 
 import numpy as np
 
 from .delays import nearest_delay_column
+from ..motor.record import freeze_arrays, read_only_copy
 
 __all__ = ["MESSAGES", "NO_LIFTOFF", "NO_MASS", "OK", "STEP_LIMIT", "STUCK_ON_RAIL", "FlightResults"]
 
@@ -62,6 +64,9 @@ class FlightResults:
     first device opens (the opening is an instant change of drag in this model:
     its jolt is ``opening_load_n``). ``burnout_time_s`` is where the thrust curve
     reaches zero for good, and ejection delays count from it.
+
+    A record, not a workspace: the arrays are read-only copies, and each trajectory is a read-only
+    mapping of read-only arrays (writing into them raises ``ValueError`` / ``TypeError``).
     """
 
     status: np.ndarray
@@ -102,7 +107,13 @@ class FlightResults:
     opening_load_n: np.ndarray
     deployment_descent_rate_m_s: np.ndarray
     recovery_devices: tuple[tuple[object, ...], ...] = ()
-    trajectories: tuple[dict[str, np.ndarray], ...] | None = None
+    trajectories: tuple[Mapping[str, np.ndarray] | None, ...] | None = None
+
+    def __post_init__(self) -> None:
+        freeze_arrays(self)
+        if self.trajectories is not None:
+            object.__setattr__(self, "trajectories", tuple(None if t is None else _frozen_mapping(t)
+                                                           for t in self.trajectories))
 
     @property
     def n_flights(self) -> int:
@@ -226,6 +237,11 @@ class FlightResults:
         return {"time_s": float(self.landing_time_s[i]), "speed_m_s": float(self.landing_speed_m_s[i]),
                 "east_m": east, "north_m": north, "distance_m": math.hypot(east, north),
                 "bearing_deg": math.degrees(math.atan2(east, north)) % 360.0}
+
+
+def _frozen_mapping(arrays: Mapping[str, np.ndarray]) -> Mapping[str, np.ndarray]:
+    """A read-only view of read-only copies of ``arrays``."""
+    return MappingProxyType({name: read_only_copy(values) for name, values in arrays.items()})
 
 
 def _finite(value: float) -> float | None:

@@ -53,6 +53,8 @@ from ..motor.record import cumulative_impulse_ns
 if TYPE_CHECKING:  # only for annotations: airframe.py imports geometry, which this module imports
     from ..motor.record import MotorRecord
     from .airframe import Airframe
+    from .pack import MotorPack
+    from .results import FlightResults
 
 __all__ = [
     "MIN_STABILITY_CAL",
@@ -389,7 +391,7 @@ def burnt_fraction(time_s: np.ndarray, thrust_n: np.ndarray, at_time_s: np.ndarr
     return np.clip(np.where(total > 0.0, delivered / np.where(total > 0.0, total, 1.0), 0.0), 0.0, 1.0)
 
 
-def stability_for_pack(airframe: Airframe, pack: Any, motor_length_m: np.ndarray, *,
+def stability_for_pack(airframe: Airframe, pack: MotorPack, motor_length_m: np.ndarray, *,
                        rail_exit_time_s: np.ndarray | float | None = None, mach: np.ndarray | float = 0.0,
                        added_mass_kg: np.ndarray | float = 0.0, added_mass_position_m: float | None = None) -> Stability:
     """Stability of each motor of a packed batch, rail exit included when its time is given.
@@ -438,7 +440,7 @@ def stability_for_records(airframe: Airframe, records: list[MotorRecord], *,
                               mach=mach, added_mass_kg=added_mass_kg, added_mass_position_m=added_mass_position_m)
 
 
-def flight_stability(airframe: Airframe, records: list[MotorRecord], results: Any, *,
+def flight_stability(airframe: Airframe, records: list[MotorRecord], results: FlightResults, *,
                      added_mass_kg: np.ndarray | float = 0.0, added_mass_position_m: float | None = None
                      ) -> Stability | None:
     """Stability of flown flights: margins at liftoff, at rail exit (the flight's own) and at burnout.

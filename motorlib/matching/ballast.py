@@ -8,7 +8,7 @@ numpy only.
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -17,16 +17,17 @@ from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
 from ..flight.results import OK, FlightResults
 from ..flight.stability import nose_weight_kg, stability_for_pack
+from ..motor.listing import CatalogRow
 
 if TYPE_CHECKING:
     from .rank import MatchSettings
-from .figures import (_STABILITY_KEYS, _broken, _choose_delays, _deployment_speeds, _figures, _landing_descent_rate,
-                      _landing_distance, _rule_findings, flies_descent)
+from .figures import (_STABILITY_KEYS, _Flown, _broken, _choose_delays, _deployment_speeds, _figures,
+                      _landing_descent_rate, _landing_distance, _rule_findings, flies_descent)
 
 __all__: list[str] = []
 
 
-def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, figures: dict[str, Any],
+def _solve_ballast(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, figures: _Flown,
                    s: MatchSettings, fs: FlightSettings) -> None:
     """Added mass that brings every motor too strong for the target down to it, all motors solved together.
 
@@ -38,13 +39,13 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
     0.02 % of the target.
     """
     target = s.target_m
-    apogee0 = np.array([a if a is not None else np.nan for a in figures["apogee_m"]])
-    flew = np.array([status == OK for status in figures["_status"]])
+    apogee0 = np.array([a if a is not None else np.nan for a in figures.columns["apogee_m"]])
+    flew = np.array([status == OK for status in figures.status])
     idx = np.flatnonzero(flew & (apogee0 > target))
     if idx.size == 0:
         return
     sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
-    liftoff = np.array([figures["liftoff_mass_kg"][i] for i in idx])
+    liftoff = np.array([figures.columns["liftoff_mass_kg"][i] for i in idx])
 
     def apogee_with(mass: np.ndarray) -> np.ndarray:
         return simulate(frame, sub, fs, added_mass_kg=mass, descent=False).apogee_m
@@ -73,30 +74,30 @@ def _solve_ballast(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack,
         f_hi = np.where(~right & (side == -1), f_hi / 2, f_hi)
         side = np.where(right, 1, -1)
     final = simulate(frame, sub, fs, added_mass_kg=mass, descent=flies_descent(frame, s))
-    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i]["delays_s"] for i in idx])
+    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i].delays_s for i in idx])
     landing = _landing_descent_rate(frame, final, sub)
     deploy, distance = _deployment_speeds(frame, final, sub), _landing_distance(frame, final, sub)
     findings = _rule_findings(frame, [rows[i] for i in idx], final, s, chosen, speed, landing, deploy, distance)
     for k, i in enumerate(idx):
-        figures["ballast_kg"][i] = float(mass[k])
-        figures["ballast_apogee_m"][i] = float(final.apogee_m[k])
-        figures["ballast_rail_exit_speed_m_s"][i] = float(final.rail_exit_speed_m_s[k])
-        figures["ballast_liftoff_thrust_to_weight"][i] = float(final.liftoff_thrust_to_weight[k])
-        figures["ballast_chosen_delay_s"][i] = float(chosen[k]) if np.isfinite(chosen[k]) else None
-        figures["ballast_optimal_delay_s"][i] = float(final.optimal_delay_s[k])
-        figures["ballast_ejection_speed_m_s"][i] = float(speed[k]) if np.isfinite(speed[k]) else None
-        figures["ballast_landing_speed_m_s"][i] = float(landing[k]) if np.isfinite(landing[k]) else None
+        figures.columns["ballast_kg"][i] = float(mass[k])
+        figures.columns["ballast_apogee_m"][i] = float(final.apogee_m[k])
+        figures.columns["ballast_rail_exit_speed_m_s"][i] = float(final.rail_exit_speed_m_s[k])
+        figures.columns["ballast_liftoff_thrust_to_weight"][i] = float(final.liftoff_thrust_to_weight[k])
+        figures.columns["ballast_chosen_delay_s"][i] = float(chosen[k]) if np.isfinite(chosen[k]) else None
+        figures.columns["ballast_optimal_delay_s"][i] = float(final.optimal_delay_s[k])
+        figures.columns["ballast_ejection_speed_m_s"][i] = float(speed[k]) if np.isfinite(speed[k]) else None
+        figures.columns["ballast_landing_speed_m_s"][i] = float(landing[k]) if np.isfinite(landing[k]) else None
         broken = _broken(findings[k])
-        figures["ballast_reasons"][i] = [text for _, text in broken]
-        figures["ballast_reason_codes"][i] = [code for code, _ in broken]
+        figures.columns["ballast_reasons"][i] = [text for _, text in broken]
+        figures.columns["ballast_reason_codes"][i] = [code for code, _ in broken]
 
 
 # ----------------------------------------------------------------------------- stability (issue 11)
 _NOSE_WEIGHT_STEP_KG = 1e-4  # the solved nose weight is rounded up to 0.1 g: it then meets the margin, never misses
 
 
-def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
-                     figures: dict[str, Any], s: MatchSettings, fs: FlightSettings) -> None:
+def _check_stability(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: FlightResults,
+                     figures: _Flown, s: MatchSettings, fs: FlightSettings) -> None:
     """Fail every motor that leaves the rocket under ``s.min_stability_cal``; solve its nose weight and re-fly.
 
     The margin is the smallest of liftoff, rail exit and burnout (:mod:`motorlib.flight.stability`),
@@ -108,19 +109,19 @@ def _check_stability(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPac
     """
     n = len(rows)
     for key in _STABILITY_KEYS:
-        figures[key] = [None] * n
+        figures.columns[key] = [None] * n
     if frame.geometry is None:
         return
-    lengths = np.array([np.nan if r["length_m"] is None else r["length_m"] for r in rows], dtype=float)
+    lengths = np.array([np.nan if r.length_m is None else r.length_m for r in rows], dtype=float)
     stability = stability_for_pack(frame, pack, lengths, rail_exit_time_s=results.rail_exit_time_s)
     margin = stability.min_margin_cal
     weight = nose_weight_kg(stability, s.min_stability_cal)
     weight = np.where(weight > 0.0, np.ceil(weight / _NOSE_WEIGHT_STEP_KG) * _NOSE_WEIGHT_STEP_KG, weight)
     for i in range(n):
-        figures["stability_margin_cal"][i] = float(margin[i]) if np.isfinite(margin[i]) else None
+        figures.columns["stability_margin_cal"][i] = float(margin[i]) if np.isfinite(margin[i]) else None
         reason = _stability_reason(margin[i], s.min_stability_cal, weight[i])
         if reason is not None:
-            figures["_reasons"][i].append(reason)
+            figures.reasons[i].append(reason)
     need = np.flatnonzero(np.isfinite(weight) & (weight > 0.0))
     if need.size:
         _refly_with_nose_weight(frame, rows, pack, lengths, need, weight[need], figures, s, fs)
@@ -142,8 +143,8 @@ def _stability_reason(margin_cal: float, required_cal: float, weight_kg: float) 
     return (code, what + f"; {weight_kg * 1e3:.1f} g of nose weight restores it")
 
 
-def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, lengths: np.ndarray,
-                            idx: np.ndarray, weight_kg: np.ndarray, figures: dict[str, Any], s: MatchSettings,
+def _refly_with_nose_weight(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, lengths: np.ndarray,
+                            idx: np.ndarray, weight_kg: np.ndarray, figures: _Flown, s: MatchSettings,
                             fs: FlightSettings) -> None:
     """Fly the motors ``idx`` again carrying their nose weight and check every rule, stability included."""
     sub = MotorPack(*(getattr(pack, f)[idx] for f in pack.__dataclass_fields__))
@@ -154,12 +155,12 @@ def _refly_with_nose_weight(frame: Airframe, rows: list[dict[str, Any]], pack: M
                                    added_mass_kg=weight_kg)
     for k, i in enumerate(idx):
         margin = float(stability.min_margin_cal[k])
-        broken = list(again["_reasons"][k])
+        broken = list(again.reasons[k])
         reason = _stability_reason(margin, s.min_stability_cal, np.inf)
         if reason is not None:  # the solve aims at the margin: this would be a defect, never hidden
             broken.append(reason)
-        figures["nose_weight_for_stability_kg"][i] = float(weight_kg[k])
-        figures["nose_weight_apogee_m"][i] = again["apogee_m"][k]
-        figures["nose_weight_stability_margin_cal"][i] = margin if np.isfinite(margin) else None
-        figures["nose_weight_reasons"][i] = [text for _, text in broken]
-        figures["nose_weight_reason_codes"][i] = [code for code, _ in broken]
+        figures.columns["nose_weight_for_stability_kg"][i] = float(weight_kg[k])
+        figures.columns["nose_weight_apogee_m"][i] = again.columns["apogee_m"][k]
+        figures.columns["nose_weight_stability_margin_cal"][i] = margin if np.isfinite(margin) else None
+        figures.columns["nose_weight_reasons"][i] = [text for _, text in broken]
+        figures.columns["nose_weight_reason_codes"][i] = [code for code, _ in broken]

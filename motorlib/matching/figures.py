@@ -16,6 +16,7 @@ numpy only.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -28,6 +29,7 @@ from ..flight.pack import MotorPack
 from ..flight.results import FlightResults
 from ..flight.rulebook import evaluate_rules, flown_rule_inputs
 from ..motor.checks import Finding
+from ..motor.listing import CatalogRow
 
 if TYPE_CHECKING:
     from .rank import MatchSettings
@@ -117,9 +119,21 @@ def _landing_distance(frame: Airframe, results: FlightResults, pack: MotorPack) 
     return np.where(np.isfinite(flown), flown, estimate)  # the flown landing point where the descent was flown
 
 
-def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, results: FlightResults,
-             s: MatchSettings) -> dict[str, Any]:
-    chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r["delays_s"] for r in rows])
+@dataclass
+class _Flown:
+    """The ranking's workspace for n flown motors: one list of length n per figure (``columns``, keyed by the
+    :class:`~motorlib.matching.candidate.Candidate` field it fills), and per motor the (code, message) of every
+    rule broken, its notes, and the flight's status code. The ballast and stability steps fill it further."""
+
+    columns: dict[str, list[Any]]
+    reasons: list[list[tuple[str, str]]]
+    notes: list[list[tuple[str, str]]]
+    status: list[int]
+
+
+def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: FlightResults,
+             s: MatchSettings) -> _Flown:
+    chosen, altitude, speed, vertical, adjusted = _choose_delays(pack, results, [r.delays_s for r in rows])
     landing = _landing_descent_rate(frame, results, pack)
     deploy = _deployment_speeds(frame, results, pack)
     distance = _landing_distance(frame, results, pack)
@@ -128,7 +142,7 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
     def col(values: np.ndarray) -> list[float | None]:
         return [float(v) if np.isfinite(v) else None for v in values]
 
-    return {
+    columns: dict[str, list[Any]] = {
         "apogee_m": col(results.apogee_m), "time_to_apogee_s": col(results.apogee_time_s),
         "rail_exit_speed_m_s": col(results.rail_exit_speed_m_s),
         "liftoff_thrust_to_weight": col(results.liftoff_thrust_to_weight),
@@ -145,13 +159,13 @@ def _figures(frame: Airframe, rows: list[dict[str, Any]], pack: MotorPack, resul
         "ballast_chosen_delay_s": [None] * len(rows), "ballast_optimal_delay_s": [None] * len(rows),
         "ballast_ejection_speed_m_s": [None] * len(rows), "ballast_landing_speed_m_s": [None] * len(rows),
         "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
-        "_reasons": [_broken(f) for f in findings],
-        "_notes": [[(n.code, n.message) for n in f if n.severity == "note"] for f in findings],
-        "_status": list(results.status),
     }
+    return _Flown(columns, [_broken(f) for f in findings],
+                  [[(n.code, n.message) for n in f if n.severity == "note"] for f in findings],
+                  [int(code) for code in results.status])
 
 
-def _rule_findings(frame: Airframe, rows: list[dict[str, Any]], results: FlightResults, s: MatchSettings,
+def _rule_findings(frame: Airframe, rows: list[CatalogRow], results: FlightResults, s: MatchSettings,
                    chosen: np.ndarray, speed: np.ndarray, landing: np.ndarray, deploy: np.ndarray,
                    distance: np.ndarray) -> list[list[Finding]]:
     """Every rule each flight breaks (:func:`motorlib.flight.rulebook.evaluate_rules`, the rules ``fly`` applies),
@@ -159,7 +173,7 @@ def _rule_findings(frame: Airframe, rows: list[dict[str, Any]], results: FlightR
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed,
                                landing_descent_rate_m_s=landing, landing_distance_m=distance,
                                deployment_speed_m_s=deploy,
-                               delays_known=np.array([r.get("ejection") != "unknown" for r in rows], dtype=bool))
+                               delays_known=np.array([r.ejection != "unknown" for r in rows], dtype=bool))
     return evaluate_rules(inputs, s.rules, ceiling_m=s.ceiling_m)
 
 

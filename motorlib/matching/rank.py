@@ -27,10 +27,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any, Sequence
+from typing import Any, Callable, Protocol, Sequence, Union
 
 from ..flight.airframe import Airframe
 from ..motor.classes import CLASS_LETTERS
+from ..motor.listing import CatalogRow
 from ..motor.record import MotorRecord
 from ..flight.integrate import FlightSettings, simulate
 from ..flight.pack import MotorPack
@@ -38,10 +39,24 @@ from ..flight.rules import LaunchRules
 from ..flight.stability import MIN_STABILITY_CAL
 from .adapters import adapter_steps, adapter_text
 from .ballast import _check_stability, _solve_ballast
-from .figures import _STABILITY_KEYS, _figures, flies_descent
+from .figures import _figures, flies_descent
+from .candidate import Candidate
 from .verdicts import classify, verdict_order
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
+
+PackFor = Callable[[Sequence[CatalogRow]], MotorPack]  # builds the pack of the rows that fit
+
+
+class RowSource(Protocol):
+    """What :func:`rank` needs of a catalog (:class:`motorlib.Catalog`; catalog/ is a layer above, so duck-typed)."""
+
+    def rows(self) -> list[CatalogRow]: ...
+
+    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack: ...
+
+
+Candidates = Union[RowSource, MotorRecord, Sequence[MotorRecord], Sequence[CatalogRow]]
 
 
 @dataclass(frozen=True)
@@ -109,39 +124,33 @@ class MatchSettings:
 
 @dataclass(frozen=True)
 class MatchResult:
-    """The ranking: ``candidates`` (dicts, good choices first) plus the conditions that produced it."""
+    """The ranking: ``candidates`` (:class:`Candidate` records, good choices first) plus the conditions that
+    produced it."""
 
     airframe: dict[str, Any]
     conditions: dict[str, Any]
-    candidates: list[dict[str, Any]]
+    candidates: tuple[Candidate, ...]
 
     @property
-    def passing(self) -> list[dict[str, Any]]:
+    def passing(self) -> list[Candidate]:
         """Candidates with the verdict ``pass`` (every rule, on target, no ballast needed)."""
-        return [c for c in self.candidates if c["passes"]]
+        return [c for c in self.candidates if c.passes]
 
     @property
-    def with_ballast(self) -> list[dict[str, Any]]:
+    def with_ballast(self) -> list[Candidate]:
         """Candidates with the verdict ``pass with ballast``."""
-        return [c for c in self.candidates if c["verdict"] == "pass with ballast"]
+        return [c for c in self.candidates if c.verdict == "pass with ballast"]
 
     def as_dict(self) -> dict[str, Any]:
-        return {"airframe": self.airframe, "conditions": self.conditions, "candidates": self.candidates}
+        """Plain data (the ``match --json`` layout, without the CLI's additions to the conditions)."""
+        return {"airframe": self.airframe, "conditions": self.conditions,
+                "candidates": [c.as_dict() for c in self.candidates]}
 
 
-def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = None) -> list[dict[str, Any]]:
-    """Rows in the catalog's layout for plain records (for ranking records that are not in a catalog)."""
-    rows = []
-    for i, r in enumerate(records):
-        cls = r.impulse_class
-        rows.append({
-            "motor_id": ids[i] if ids else f"record-{i}", "designation": r.designation, "maker": r.maker,
-            "impulse_class": cls.letter if cls else None, "total_impulse_ns": r.total_impulse_ns,
-            "diameter_m": r.diameter_m, "length_m": r.length_m, "total_mass_kg": r.total_mass_kg,
-            "propellant_mass_kg": r.propellant_mass_kg, "delays_s": list(r.delays_s),
-            "delay_adjustable": r.delay_adjustable, "ejection": r.ejection, "handle": r.designation,
-        })
-    return rows
+def candidate_rows(records: Sequence[MotorRecord], ids: Sequence[str] | None = None) -> list[CatalogRow]:
+    """Catalog rows for plain records (for ranking records that are not in a catalog); ids ``record-<i>``
+    unless given."""
+    return [CatalogRow.from_record(r, ids[i] if ids else f"record-{i}") for i, r in enumerate(records)]
 
 
 def mount_problems(frame: Airframe, record: MotorRecord) -> list[str]:
@@ -152,15 +161,15 @@ def mount_problems(frame: Airframe, record: MotorRecord) -> list[str]:
     return [text for code, text in reasons if code == "motor-does-not-fit"]
 
 
-def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:
+def _fits(frame: Airframe, row: CatalogRow, s: MatchSettings) -> tuple[list[tuple[str, str]], str | None]:
     """(code, message) for every reason the motor cannot be flown in ``frame``, and the adapter it needs."""
     reasons = []
     adapter = None
     if s.max_class is not None:
-        cls = row["impulse_class"]
+        cls = row.impulse_class
         if cls is None or CLASS_LETTERS.index(cls) > CLASS_LETTERS.index(s.max_class):
             reasons.append(("above-class", f"class {cls or 'above O'} is above the limit {s.max_class}"))
-    d, mount = row["diameter_m"], frame.mount_diameter_m
+    d, mount = row.diameter_m, frame.mount_diameter_m
     if mount is not None:
         size = f"{d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount" if d is not None else ""
         if d is None:
@@ -177,17 +186,18 @@ def _fits(frame: Airframe, row: dict[str, Any], s: MatchSettings) -> tuple[list[
             else:
                 adapter = adapter_text(d, mount)
     if frame.mount_length_m is not None:
-        if row["length_m"] is None:
+        if row.length_m is None:
             reasons.append(("motor-does-not-fit", "does not fit: the motor's length is unknown"))
-        elif row["length_m"] > frame.mount_length_m + 1e-9:
-            reasons.append(("motor-does-not-fit", f"does not fit: {row['length_m'] * 1e3:.4g} mm long, the mount takes "
+        elif row.length_m > frame.mount_length_m + 1e-9:
+            reasons.append(("motor-does-not-fit", f"does not fit: {row.length_m * 1e3:.4g} mm long, the mount takes "
                                       f"{frame.mount_length_m * 1e3:.4g} mm"))
-    if row["total_mass_kg"] is None or row["propellant_mass_kg"] is None:
+    if row.total_mass_kg is None or row.propellant_mass_kg is None:
         reasons.append(("no-masses", "cannot be flown: no total or propellant mass"))
     return reasons, adapter
 
 
-def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettings | None = None,
+def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | None = None,
+         settings: MatchSettings | None = None,
          flight_settings: FlightSettings | None = None) -> MatchResult:
     """Rank every candidate for ``frame``.
 
@@ -197,9 +207,9 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     Parameters
     ----------
     frame : Airframe
-    rows : Catalog, MotorRecord, sequence of MotorRecord, or sequence of dict
-        The candidates: a catalog (all its motors), records, or metadata in the catalog's row layout
-        (:meth:`Catalog.rows` or :func:`candidate_rows`), which then needs ``pack_for``.
+    rows : Catalog, MotorRecord, sequence of MotorRecord, or sequence of CatalogRow
+        The candidates: a catalog (all its motors), records, or catalog rows
+        (:meth:`Catalog.rows` or :func:`candidate_rows`), which then need ``pack_for``.
     pack_for : callable, optional
         ``pack_for(rows) -> MotorPack`` for the rows that fit (the catalog builds it from its index); not
         needed for a catalog or records. A :class:`MatchSettings` here is taken as ``settings``.
@@ -217,7 +227,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     >>> frame = motorlib.load_airframe(sample_catalog_dir() / "airframes" / "quibble-41.toml")
     >>> catalog = motorlib.Catalog(sample_catalog_dir(), read_only=True)
     >>> result = motorlib.rank(frame, catalog, motorlib.MatchSettings(target_m=400.0, ceiling_m=800.0))
-    >>> len(result.candidates), result.candidates[0]["designation"], result.candidates[0]["verdict"]
+    >>> len(result.candidates), result.candidates[0].designation, result.candidates[0].verdict
     (27, 'F51-10', 'off target')
     """
     if isinstance(pack_for, MatchSettings):  # rank(airframe, catalog, settings)
@@ -227,7 +237,7 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
     rows, pack_for = _candidates(rows, pack_for, fs.drill_step_s)
     fit_reasons, adapters = zip(*[_fits(frame, row, s) for row in rows]) if rows else ((), ())
     fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
-    flown: dict[int, dict[str, Any]] = {}
+    flown: dict[int, tuple[dict[str, Any], list[tuple[str, str]], list[tuple[str, str]]]] = {}
     if fitting:
         sub = [rows[i] for i in fitting]
         pack = pack_for(sub)
@@ -237,34 +247,17 @@ def rank(frame: Airframe, rows: Any, pack_for: Any = None, settings: MatchSettin
         if s.ballast:
             _solve_ballast(frame, sub, pack, figures, s, fs)
         for k, i in enumerate(fitting):
-            flown[i] = {key: value[k] for key, value in figures.items()}
-    candidates = []
-    for i, row in enumerate(rows):
-        base = {"motor_id": row["motor_id"], "handle": row.get("handle"), "designation": row["designation"],
-                "maker": row["maker"], "impulse_class": row["impulse_class"],
-                "total_impulse_ns": row["total_impulse_ns"], "diameter_m": row["diameter_m"],
-                "length_m": row["length_m"], "fits": not fit_reasons[i], "adapter": adapters[i]}
-        if i in flown:
-            f = flown[i]
-            base.update({k: v for k, v in f.items() if not k.startswith("_")})
-            base["reasons"] = [text for _, text in f["_reasons"]]
-            base["reason_codes"] = [code for code, _ in f["_reasons"]]
-            base["notes"] = [text for _, text in f["_notes"]]
-            base["note_codes"] = [code for code, _ in f["_notes"]]
-        else:
-            base.update({k: None for k in _FIGURE_KEYS})
-            base["reasons"] = [text for _, text in fit_reasons[i]]
-            base["reason_codes"] = [code for code, _ in fit_reasons[i]]
-        _judge(base, s)
-        candidates.append(base)
-    candidates.sort(key=lambda c: _sort_key(c, s))
+            flown[i] = ({key: values[k] for key, values in figures.columns.items()}, figures.reasons[k],
+                        figures.notes[k])
+    candidates = sorted((_candidate(row, fit_reasons[i], adapters[i], flown.get(i), s) for i, row in enumerate(rows)),
+                        key=lambda c: _sort_key(c, s))
     conditions = _conditions(frame, s)
     airframe = {"name": frame.name, "mass_kg": frame.mass_kg, "diameter_m": frame.diameter_m,
                 "mount_diameter_m": frame.mount_diameter_m, "mount_length_m": frame.mount_length_m}
-    return MatchResult(airframe, conditions, candidates)
+    return MatchResult(airframe, conditions, tuple(candidates))
 
 
-def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[dict[str, Any]], Any]:
+def _candidates(rows: Candidates, pack_for: PackFor | None, drill_step_s: float) -> tuple[list[CatalogRow], PackFor]:
     """Rows and a pack function for whatever :func:`rank` was given (a catalog, records or rows)."""
     if hasattr(rows, "rows") and hasattr(rows, "motor_pack"):  # a Catalog (duck-typed: catalog/ is a layer above)
         return rows.rows(), pack_for or rows.motor_pack
@@ -275,43 +268,45 @@ def _candidates(rows: Any, pack_for: Any, drill_step_s: float) -> tuple[list[dic
         records = rows
         by_id = {f"record-{i}": r for i, r in enumerate(records)}
         return candidate_rows(records), pack_for or (
-            lambda sub: MotorPack.from_records([by_id[r["motor_id"]] for r in sub], drill_step_s))
+            lambda sub: MotorPack.from_records([by_id[r.motor_id] for r in sub], drill_step_s))
     if pack_for is None:
         raise TypeError("`pack_for` is needed when `rows` are catalog rows (or pass a Catalog or motor records)")
     return rows, pack_for
 
 
-_FIGURE_KEYS = ("apogee_m", "time_to_apogee_s", "rail_exit_speed_m_s", "liftoff_thrust_to_weight", "max_speed_m_s",
-                "max_mach", "burnout_time_s", "optimal_delay_s", "chosen_delay_s", "delay_adjusted",
-                "ejection_altitude_m", "ejection_speed_m_s", "ejection_vertical_speed_m_s", "landing_speed_m_s",
-                "max_deployment_speed_m_s", "landing_distance_m",
-                "liftoff_mass_kg", "ballast_kg", "ballast_apogee_m", "ballast_rail_exit_speed_m_s",
-                "ballast_liftoff_thrust_to_weight", "ballast_chosen_delay_s", "ballast_optimal_delay_s",
-                "ballast_ejection_speed_m_s", "ballast_landing_speed_m_s", "ballast_reasons", "ballast_reason_codes")
+def _candidate(row: CatalogRow, fit_reasons: list[tuple[str, str]], adapter: str | None,
+               flown: tuple[dict[str, Any], list[tuple[str, str]], list[tuple[str, str]]] | None,
+               s: MatchSettings) -> Candidate:
+    """The record of one motor: its row, its flown figures (None if it was not flown), the (code, message) of
+    every rule it breaks and every note, and its verdict (:func:`.verdicts.classify`)."""
+    figures, reasons, notes = flown if flown is not None else ({}, fit_reasons, [])
+    fits = not fit_reasons
+    if adapter is not None and fits:
+        notes = [("adapter", f"needs a {adapter} adapter")] + notes
+    codes = [code for code, _ in reasons]
+    verdict = classify(codes, figures.get("apogee_m"), s.target_m, s.target_tolerance,
+                       ballast_kg=figures.get("ballast_kg"), ballast_reasons=figures.get("ballast_reasons"))
+    notes = notes + list(verdict.notes)
+    return Candidate(
+        motor_id=row.motor_id, handle=row.handle, designation=row.designation, maker=row.maker,
+        impulse_class=row.impulse_class, total_impulse_ns=row.total_impulse_ns, diameter_m=row.diameter_m,
+        length_m=row.length_m, fits=fits, adapter=adapter, **figures,
+        reasons=tuple(text for _, text in reasons), reason_codes=tuple(codes),
+        notes=tuple(text for _, text in notes), note_codes=tuple(code for code, _ in notes),
+        verdict=verdict.verdict, passes=verdict.passes, ballast_passes=verdict.ballast_passes)
 
 
-def _judge(c: dict[str, Any], s: MatchSettings) -> None:
-    """The candidate's verdict and notes (:func:`.verdicts.classify`), with the adapter it needs as a note."""
-    if c["adapter"] is not None and c["fits"]:
-        c["notes"] = [f"needs a {c['adapter']} adapter"] + c.get("notes", [])
-        c["note_codes"] = ["adapter"] + c.get("note_codes", [])
-    classify(c, s.target_m, s.target_tolerance)
-
-
-_FIGURE_KEYS += _STABILITY_KEYS
-
-
-def _sort_key(c: dict[str, Any], s: MatchSettings) -> tuple:
+def _sort_key(c: Candidate, s: MatchSettings) -> tuple[int, float, str]:
     """Good choices first (by verdict), then closeness to the target (least ballast with ballast), or apogee."""
-    group = verdict_order(c["verdict"])
-    apogee = c["apogee_m"]
+    group = verdict_order(c.verdict)
+    apogee = c.apogee_m
     if apogee is None or not math.isfinite(apogee):
-        return (group, 0.0, c["designation"])
-    if c["verdict"] == "pass with ballast":
-        return (group, c["ballast_kg"], c["designation"])
+        return (group, 0.0, c.designation)
+    if c.verdict == "pass with ballast" and c.ballast_kg is not None:
+        return (group, c.ballast_kg, c.designation)
     if s.target_m is not None:
-        return (group, abs(apogee - s.target_m), c["designation"])
-    return (group, -apogee, c["designation"])
+        return (group, abs(apogee - s.target_m), c.designation)
+    return (group, -apogee, c.designation)
 
 
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:

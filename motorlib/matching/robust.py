@@ -195,7 +195,6 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
             "delay_s": float(delays[i]) if np.isfinite(delays[i]) else None,
             "failures": {rule: float(bad[rows].mean()) for rule, bad in flags.items()},
             "firing_spread_used": (record.firing_spread or spreads[i]) is not None,
-            "_ok": ok[i],
         })
     target = None if settings.altitude_window_m is None else 0.5 * sum(settings.altitude_window_m)
     target = target if target is not None else match.target_m
@@ -205,15 +204,14 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
         closeness = abs(median - target) if (target is not None and median is not None) else 0.0
         return (-c["p_success"], closeness, c["designation"])
 
-    candidates.sort(key=key)
-    for a, b in zip(candidates, candidates[1:] + [None]):
-        if b is None:
-            a["p_difference_to_next_standard_error"] = None
+    order = sorted(range(m), key=lambda i: key(candidates[i]))
+    for i, j in zip(order, order[1:] + [None]):
+        if j is None:
+            candidates[i]["p_difference_to_next_standard_error"] = None
         else:
-            diff = a["_ok"].astype(float) - b["_ok"].astype(float)
-            a["p_difference_to_next_standard_error"] = float(np.std(diff, ddof=1) / math.sqrt(n))
-    for c in candidates:
-        del c["_ok"]
+            diff = ok[i].astype(float) - ok[j].astype(float)
+            candidates[i]["p_difference_to_next_standard_error"] = float(np.std(diff, ddof=1) / math.sqrt(n))
+    candidates = [candidates[i] for i in order]
     return {"n_samples": n, "seed": settings.seed, "descent_flown": descent,
             "windows": {"altitude_m": settings.altitude_window_m, "duration_s": settings.duration_window_s,
                         "field_radius_m": settings.field_radius_m},

@@ -7,14 +7,15 @@ so that "N of M pass" counts only good choices. A motor too strong for the targe
 or the ceiling that passes every rule once the solved ballast is aboard is
 ``pass with ballast``; its reasons without ballast stay listed.
 
-stdlib only; works on the candidate dicts of :func:`motorlib.matching.rank.rank`.
+stdlib only; :func:`motorlib.matching.rank.rank` puts the result on each :class:`~.candidate.Candidate`.
 """
 
 from __future__ import annotations
 
-from typing import Any, Final
+from dataclasses import dataclass
+from typing import Final, Sequence
 
-__all__ = ["GOOD_VERDICTS", "VERDICTS", "classify", "miss_percent", "verdict_order"]
+__all__ = ["GOOD_VERDICTS", "VERDICTS", "Verdict", "classify", "miss_percent", "verdict_order"]
 
 # Verdict word -> meaning (the legend of the result column). Order: best first.
 VERDICTS: Final = {
@@ -56,45 +57,57 @@ def verdict_order(verdict: str) -> int:
     return list(VERDICTS).index(verdict)
 
 
-def classify(c: dict[str, Any], target_m: float | None, tolerance: float) -> None:
-    """Set ``verdict``, ``passes``, ``ballast_passes``, ``notes`` and ``note_codes`` on candidate ``c``.
+@dataclass(frozen=True)
+class Verdict:
+    """What :func:`classify` decides: the word, whether it passes (with ballast: None when none was solved),
+    and the (code, message) notes it adds (a missed target)."""
+
+    verdict: str
+    passes: bool
+    ballast_passes: bool | None
+    notes: tuple[tuple[str, str], ...] = ()
+
+
+def classify(reason_codes: Sequence[str], apogee_m: float | None, target_m: float | None, tolerance: float, *,
+             ballast_kg: float | None = None, ballast_reasons: Sequence[str] | None = None) -> Verdict:
+    """The verdict of one candidate.
 
     Parameters
     ----------
-    c : dict
-        A candidate with ``reason_codes``, ``apogee_m`` and the ballast keys (``ballast_kg`` is None when no
-        ballast was solved). ``notes``/``note_codes`` already present (an adapter note) are kept.
+    reason_codes : sequence of str
+        Codes of every rule the candidate breaks (without ballast).
+    apogee_m : float or None
+        Its apogee [m above the pad]; None when not flown.
     target_m : float or None
         Aim altitude [m above the pad].
     tolerance : float
         Half-width of the target band as a fraction of the target (0.05 = ±5 %).
+    ballast_kg, ballast_reasons : float or None, sequence of str or None
+        The solved ballast (None when none was solved) and the rules broken with it aboard.
     """
-    notes = list(c.get("notes") or [])
-    note_codes = list(c.get("note_codes") or [])
-    stopping = [code for code in c["reason_codes"] if code in _STOPPING]
-    apogee = c.get("apogee_m")
+    notes: list[tuple[str, str]] = []
+    stopping = [code for code in reason_codes if code in _STOPPING]
     on_target = True
-    if not stopping and target_m is not None and apogee is not None:
-        miss = (apogee - target_m) / target_m
+    if not stopping and target_m is not None and apogee_m is not None:
+        miss = (apogee_m - target_m) / target_m
         on_target = abs(miss) <= tolerance
-        if not on_target and not c["reason_codes"]:  # a failing motor's reasons say enough
+        if not on_target and not reason_codes:  # a failing motor's reasons say enough
             where = "below" if miss < 0 else "above"
-            note_codes.append(f"{where} target")
-            notes.append(f"apogee {apogee:.0f} m is {miss_percent(miss, tolerance)} % {where} the {target_m:.0f} m target "
-                         f"(tolerance ±{tolerance * 100:g} %)"
-                         + ("; ballast could bring it down" if miss > 0 and c.get("ballast_kg") is None else ""))
+            notes.append((f"{where} target",
+                          f"apogee {apogee_m:.0f} m is {miss_percent(miss, tolerance)} % {where} the {target_m:.0f} m "
+                          f"target (tolerance ±{tolerance * 100:g} %)"
+                          + ("; ballast could bring it down" if miss > 0 and ballast_kg is None else "")))
     ballast_passes = None
-    if c.get("ballast_kg") is not None:
-        ballast_passes = not c.get("ballast_reasons")
+    if ballast_kg is not None:
+        ballast_passes = not ballast_reasons
     if stopping:
         verdict = _STOPPING[stopping[0]]
-    elif not c["reason_codes"] and on_target:
+    elif not reason_codes and on_target:
         verdict = "pass"
     elif ballast_passes:
         verdict = "pass with ballast"
-    elif not c["reason_codes"]:
+    elif not reason_codes:
         verdict = "off target"
     else:
         verdict = "fail"
-    c.update(verdict=verdict, passes=verdict == "pass", ballast_passes=ballast_passes, notes=notes,
-             note_codes=note_codes)
+    return Verdict(verdict, verdict == "pass", ballast_passes, tuple(notes))

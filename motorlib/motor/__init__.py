@@ -17,6 +17,7 @@ from .classes import (
     parse_designation,
     rounded_impulse_ns,
 )
+from .listing import ROW_COLUMNS, CatalogRow
 from .record import (
     DEFAULT_BURN_THRESHOLD,
     EJECTION_STATES,
@@ -38,6 +39,7 @@ from .reduction import (
 __all__ = [
     "CLASS_LETTERS",
     "CLASS_RESOLUTION_NS",
+    "CatalogRow",
     "CheckSettings",
     "DEFAULT_BURN_THRESHOLD",
     "Designation",
@@ -50,6 +52,7 @@ __all__ = [
     "MotorRecord",
     "PROVENANCE_KINDS",
     "Provenance",
+    "ROW_COLUMNS",
     "Reduction",
     "ReductionSettings",
     "check_record",

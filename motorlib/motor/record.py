@@ -72,13 +72,18 @@ FORMER_PROVENANCE_KINDS: Final = {
 EJECTION_STATES: Final = ("delays", "no-charge", "unknown")  # values of MotorRecord.ejection
 
 
+def read_only_copy(values: np.ndarray) -> np.ndarray:
+    """A copy of ``values`` that refuses writes (``ValueError: assignment destination is read-only``)."""
+    frozen = np.array(values)
+    frozen.flags.writeable = False
+    return frozen
+
+
 def freeze_arrays(record: object) -> None:
     """Replace every numpy array attribute of a frozen dataclass ``record`` by a read-only copy of itself."""
     for name, value in list(vars(record).items()):
         if isinstance(value, np.ndarray):
-            frozen = np.array(value)
-            frozen.flags.writeable = False
-            object.__setattr__(record, name, frozen)
+            object.__setattr__(record, name, read_only_copy(value))
 
 
 @dataclass(frozen=True)

@@ -15,9 +15,14 @@ from __future__ import annotations
 import csv
 import io
 import math
-from typing import Any, Callable, Sequence
+from typing import TYPE_CHECKING, Any, Callable, Mapping, Sequence
 
+from ..matching.candidate import Candidate
+from ..motor.listing import ROW_COLUMNS, CatalogRow
 from .display import DisplayUnits
+
+if TYPE_CHECKING:
+    import numpy as np
 
 __all__ = ["TRAJECTORY_COLUMNS", "candidates_csv", "catalog_csv", "rows_csv", "trajectory_csv"]
 
@@ -70,7 +75,7 @@ def rows_csv(rows: Sequence[dict[str, Any]], columns: Sequence[str], units: Disp
     return buffer.getvalue()
 
 
-def trajectory_csv(trajectory: dict[str, Any], units: DisplayUnits) -> str:
+def trajectory_csv(trajectory: Mapping[str, np.ndarray], units: DisplayUnits) -> str:
     """One flown trajectory (``FlightResults.trajectories[i]``) as CSV: :data:`TRAJECTORY_COLUMNS` and ``phase``."""
     rows = [{**{name: float(trajectory[name][row]) for name in TRAJECTORY_COLUMNS},
              "phase": "descent" if trajectory["descent"][row] else "ascent"}
@@ -78,20 +83,21 @@ def trajectory_csv(trajectory: dict[str, Any], units: DisplayUnits) -> str:
     return rows_csv(rows, [*TRAJECTORY_COLUMNS, "phase"], units)
 
 
-def candidates_csv(candidates: Sequence[dict[str, Any]], conditions: dict[str, Any], units: DisplayUnits) -> str:
+def candidates_csv(candidates: Sequence[Candidate], conditions: dict[str, Any], units: DisplayUnits) -> str:
     """Ranked candidates (``MatchResult.candidates``) as CSV: every figure, then the reasons and notes as text
     in the display units, each list joined with ``; ``."""
     from .messages import note_text, reason_text
 
-    columns = [k for k in candidates[0] if k not in _CANDIDATE_LISTS] + ["reasons", "notes"] if candidates else []
-    rows = [{**c, "reasons": "; ".join(reason_text(code, text, c, conditions, units)
-                                       for code, text in zip(c["reason_codes"], c["reasons"])),
+    columns = ([k for k in candidates[0].as_dict() if k not in _CANDIDATE_LISTS] + ["reasons", "notes"]
+               if candidates else [])
+    rows = [{**c.as_dict(), "reasons": "; ".join(reason_text(code, text, c, conditions, units)
+                                                 for code, text in zip(c.reason_codes, c.reasons)),
              "notes": "; ".join(note_text(code, text, c, conditions, units)
-                                for code, text in zip(c["note_codes"], c["notes"]))}
+                                for code, text in zip(c.note_codes, c.notes))}
             for c in candidates]
     return rows_csv(rows, columns, units)
 
 
-def catalog_csv(rows: Sequence[dict[str, Any]], units: DisplayUnits) -> str:
+def catalog_csv(rows: Sequence[CatalogRow], units: DisplayUnits) -> str:
     """Catalog rows (``Catalog.rows()``) as CSV: every column but the findings."""
-    return rows_csv(rows, [c for c in rows[0] if c != "findings"] if rows else [], units)
+    return rows_csv([r.as_dict() for r in rows], [c for c in ROW_COLUMNS if c != "findings"] if rows else [], units)

@@ -8,10 +8,14 @@ No rich here, so the CSV output can use the same words.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
+from ..matching.candidate import Candidate
 from ..matching.verdicts import miss_percent
 from .display import DisplayUnits
+
+if TYPE_CHECKING:
+    from ..matching.rank import MatchResult
 
 __all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text"]
 
@@ -51,9 +55,9 @@ def short_code(code: str, text: str) -> tuple[str, str]:
     return ("?", code)
 
 
-def match_count(result: Any) -> str:
+def match_count(result: MatchResult) -> str:
     """"2 of 27 pass, 1 more with ballast, 3 off target": only good choices count as passing."""
-    verdicts = [c["verdict"] for c in result.candidates]
+    verdicts = [c.verdict for c in result.candidates]
     text = f"{verdicts.count('pass')} of {len(verdicts)} pass"
     if verdicts.count("pass with ballast"):
         text += f", {verdicts.count('pass with ballast')} more with ballast"
@@ -62,22 +66,22 @@ def match_count(result: Any) -> str:
     return text
 
 
-def verdict_text(verdict: str, codes: list[str], texts: list[str]) -> str:
+def verdict_text(verdict: str, codes: Sequence[str], texts: Sequence[str]) -> str:
     """The result column: the verdict word, and for ``fail`` the one-letter codes of the rules broken."""
     if verdict == "fail":
         return "fail " + " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(codes, texts)))
     return _VERDICT_WORDS.get(verdict, verdict)
 
 
-def note_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits) -> str:
+def note_text(code: str, message: str, c: Candidate, cond: dict[str, Any], u: DisplayUnits) -> str:
     """One note (not a failure) in display units: a missed target is echoed in the user's own numbers."""
-    if code in ("below target", "above target") and c.get("apogee_m") is not None and cond.get("target_m"):
-        target, apogee = cond["target_m"], c["apogee_m"]
+    if code in ("below target", "above target") and c.apogee_m is not None and cond.get("target_m"):
+        target, apogee = cond["target_m"], c.apogee_m
         where = code.split()[0]
         miss = miss_percent((apogee - target) / target, cond["target_tolerance"])
         return (f"apogee {u.quantity(apogee, 'length')} is {miss} % {where} the "
                 f"{u.given(target, 'length')} target (tolerance ±{cond['target_tolerance'] * 100:g} %)"
-                + ("; ballast could bring it down" if where == "above" and c.get("ballast_kg") is None else ""))
+                + ("; ballast could bring it down" if where == "above" and c.ballast_kg is None else ""))
     return message
 
 
@@ -91,12 +95,14 @@ def small_mass(u: DisplayUnits, mass_kg: float) -> str:
     return shown
 
 
-def reason_text(code: str, message: str, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits,
+def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond: dict[str, Any], u: DisplayUnits,
                 prefix: str = "") -> str:
     """One broken rule in display units, from a flight's figures: a match candidate's (``prefix``: ``ballast_``
     after ballast) or ``fly``'s summary; ``cond`` holds the limits as match's conditions name them
     (:meth:`motorlib.flight.rules.LaunchRules.conditions`, with ``ceiling_m`` and ``min_stability_cal``)."""
-    get = lambda key: c.get(prefix + key)  # noqa: E731
+    def get(key: str) -> Any:
+        return c.get(prefix + key) if isinstance(c, Mapping) else getattr(c, prefix + key, None)
+
     if code == "rail-exit-slow" and get("rail_exit_speed_m_s") is not None:
         need = cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"])
         v, lim = u.beyond(get("rail_exit_speed_m_s"), need, "speed", above=False)

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import io
 import os
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -185,16 +186,16 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     plt = _figure()
     from matplotlib.patches import Patch
 
-    flown = [c for c in result.candidates if c["apogee_m"] is not None]
+    flown = [c for c in result.candidates if c.apogee_m is not None]
     fig, ax = plt.subplots(figsize=(max(6.5, 0.45 * len(flown) + 2.5), 5.0))
     unit = units.unit("length")
     scale = units.convert(1.0, "length", unit)
-    flown = [{**c, "apogee_m": c["apogee_m"] * scale} for c in flown]  # shown in the display unit from here on
+    flown = [replace(c, apogee_m=c.apogee_m * scale) for c in flown]  # shown in the display unit from here on
     target = result.conditions.get("target_m")
     ceiling = result.conditions.get("ceiling_m")
     target_at = target * scale if target else None  # where the lines go on the axis (display unit)
     ceiling_at = ceiling * scale if ceiling else None
-    apogees = [c["apogee_m"] for c in flown]
+    apogees = [c.apogee_m for c in flown]
     tolerance = result.conditions.get("target_tolerance", 0.05)
     top = max(apogees + [ceiling_at or 0.0, (target_at or 0.0) * (1 + tolerance), 1.0]) * 1.15
     handles = []
@@ -205,14 +206,14 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
         ax.axhspan(ceiling_at, top, facecolor=ORANGE_TINT, hatch="xx", edgecolor=RULE, linewidth=0, zorder=0)
         handles.append(Patch(facecolor=ORANGE_TINT, hatch="xx", edgecolor=RULE, label="above the ceiling: not allowed"))
     for i, c in enumerate(flown):
-        passes = c["passes"]
-        fill, hatch, mark = _VERDICT_BARS.get(c["verdict"], (ORANGE, "///", None))
+        passes = c.passes
+        fill, hatch, mark = _VERDICT_BARS.get(c.verdict, (ORANGE, "///", None))
         mark = mark or "✗ " + " ".join(dict.fromkeys(short_code(code, text)[0]  # the table's letters
-                                                     for code, text in zip(c["reason_codes"], c["reasons"])))
-        ax.bar(i, c["apogee_m"], color=fill, hatch=hatch, edgecolor=INK, linewidth=0.8, zorder=2)
-        ax.text(i, c["apogee_m"] + top * 0.01, f"{c['apogee_m']:.0f}", ha="center", va="bottom", fontsize=7.5, color=INK)
-        tall = c["apogee_m"] > top * (0.012 * len(mark) + 0.04)
-        ax.text(i, (top * 0.015) if tall else c["apogee_m"] + top * 0.06, mark, ha="center", va="bottom",
+                                                     for code, text in zip(c.reason_codes, c.reasons)))
+        ax.bar(i, c.apogee_m, color=fill, hatch=hatch, edgecolor=INK, linewidth=0.8, zorder=2)
+        ax.text(i, c.apogee_m + top * 0.01, f"{c.apogee_m:.0f}", ha="center", va="bottom", fontsize=7.5, color=INK)
+        tall = c.apogee_m > top * (0.012 * len(mark) + 0.04)
+        ax.text(i, (top * 0.015) if tall else c.apogee_m + top * 0.06, mark, ha="center", va="bottom",
                 rotation=0 if passes else 90, fontsize=8, fontweight="bold", color="white" if passes else INK,
                 zorder=3, bbox=None if passes else {"boxstyle": "square,pad=0.1", "fc": "white", "ec": "none", "alpha": 0.75})
     if target:
@@ -221,13 +222,13 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     if ceiling:
         ax.axhline(ceiling_at, color=INK, linestyle=":", linewidth=2.0, zorder=1)
         handles.append(plt.Line2D([], [], color=INK, linestyle=":", linewidth=2.0, label=f"ceiling {units.given(ceiling, 'length')}"))
-    shown = {c["verdict"] for c in flown}
+    shown = {c.verdict for c in flown}
     for verdict, label in _VERDICT_LEGEND.items():
         if verdict in shown or verdict in ("pass", "fail"):
             fill, hatch, _ = _VERDICT_BARS.get(verdict, (ORANGE, "///", None))
             handles.append(Patch(facecolor=fill, hatch=hatch, edgecolor=INK, label=label))
     ax.set_xticks(range(len(flown)))
-    ax.set_xticklabels([c["designation"] for c in flown], rotation=55, ha="right", fontsize=8)
+    ax.set_xticklabels([c.designation for c in flown], rotation=55, ha="right", fontsize=8)
     ax.set_ylim(0, top)
     ax.set_xlim(-0.6, len(flown) - 0.4)
     ax.set_ylabel(f"apogee above the pad ({unit})")
@@ -236,8 +237,8 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
                  loc="left", fontsize=10)
     ax.legend(handles=handles, fontsize=7.5, loc="upper left", framealpha=0.95)
     ax.grid(axis="y")
-    letters = dict(short_code(code, text) for c in flown if not c["passes"]
-                   for code, text in zip(c["reason_codes"], c["reasons"]))
+    letters = dict(short_code(code, text) for c in flown if not c.passes
+                   for code, text in zip(c.reason_codes, c.reasons))
     reasons = "; ".join(f"{letter} {meaning}" for letter, meaning in letters.items())
     fig.text(0.01, -0.09, f"Numbers: apogee in {unit}." + (f" Fail codes: {reasons}." if reasons else "") + " "
              + _CAUTION, fontsize=7, color=MUTED, wrap=True, va="top")

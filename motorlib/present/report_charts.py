@@ -15,7 +15,7 @@ states the chart's key figures.
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Any, Sequence
+from typing import TYPE_CHECKING, Any, Sequence
 
 import numpy as np
 
@@ -24,13 +24,17 @@ from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TI
 from .report import ChartBlock
 from .svgcharts import SvgChart, thin
 
+if TYPE_CHECKING:
+    from ..matching.rank import MatchResult
+    from ..motor.record import MotorRecord
+
 __all__ = ["flight_chart", "match_chart", "mean_chart", "overlay_chart", "side_chart", "thrust_chart"]
 
 _LINE_STYLES = [(INK, "solid"), (BLUE, "dashed"), (ORANGE, "solid"), (INK, "dotted"), (BLUE, "dashdot"),
                 (ORANGE, "dashed"), (MUTED, "solid"), (BLUE, "dotted")]
 
 
-def thrust_chart(motor: Any, key: str = "thrust") -> ChartBlock:
+def thrust_chart(motor: MotorRecord, key: str = "thrust") -> ChartBlock:
     """The motor's thrust curve with its average thrust and burn window."""
     t, f = np.asarray(motor.time_s, dtype=float), np.asarray(motor.thrust_n, dtype=float)
     start, end = motor.burn_window_s()
@@ -159,49 +163,49 @@ def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_
     return ChartBlock(chart.render(), "Scales differ: the horizontal axis is stretched to show the drift.", wide=False)
 
 
-def match_chart(result: Any, key: str = "match") -> ChartBlock | None:
+def match_chart(result: MatchResult, key: str = "match") -> ChartBlock | None:
     """Apogee of every flown candidate in rank order: plain blue bars with a tick pass, hatched orange bars with a
     cross and the reason fail; the target, its tolerance band, the ceiling and the region above it explained."""
-    flown = [c for c in result.candidates if c["apogee_m"] is not None]
+    flown = [c for c in result.candidates if c.apogee_m is not None]
     if not flown:
         return None
     target = result.conditions.get("target_m")
     ceiling = result.conditions.get("ceiling_m")
     tolerance = result.conditions.get("target_tolerance", 0.05)
-    top = max([c["apogee_m"] for c in flown] + [ceiling or 0.0, (target or 0.0) * (1 + tolerance)]) * 1.12
+    top = max([c.apogee_m for c in flown] + [ceiling or 0.0, (target or 0.0) * (1 + tolerance)]) * 1.12
     order = "by closeness to the target" if target else "by apogee"
     chart = SvgChart(title=f"Apogee per motor, in rank order (passing first, then {order})",
                      description=(f"{match_count(result)} ({len(flown)} flown). "
                                   + (f"Target {target:.0f} m. " if target else "") + (f"Ceiling {ceiling:.0f} m. " if ceiling else "")
-                                  + "; ".join(f"{c['designation']} {c['apogee_m']:.0f} m {c['verdict'] if c['verdict'] != 'fail' else 'fail: ' + ', '.join(dict.fromkeys(c['reason_codes']))}"
+                                  + "; ".join(f"{c.designation} {c.apogee_m:.0f} m {c.verdict if c.verdict != 'fail' else 'fail: ' + ', '.join(dict.fromkeys(c.reason_codes))}"
                                               for c in flown[:12]) + ("; ..." if len(flown) > 12 else ".")),
                      x_label="motor", y_label="apogee above the pad (m)", x_range=(-0.5, len(flown) - 0.5),
                      y_range=(0.0, top), width=max(640, 34 * len(flown) + 110), height=400, key=key,
-                     x_categories=[c["designation"] for c in flown])
+                     x_categories=[c.designation for c in flown])
     if target:
         chart.band_y((1 - tolerance) * target, (1 + tolerance) * target, f"within {tolerance * 100:g} % of the target",
                      fill=BLUE_TINT)
     if ceiling:
         chart.band_y(ceiling, top, "above the ceiling: not allowed", fill=ORANGE_TINT, hatch="cross")
     for i, c in enumerate(flown):
-        codes = " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(c["reason_codes"], c["reasons"])))
-        if c["passes"]:
-            chart.bar(i, c["apogee_m"], fill=BLUE, top_text=f"{c['apogee_m']:.0f}", inside_text="✓")
-        elif c["verdict"] == "pass with ballast":
-            chart.bar(i, c["apogee_m"], fill=BLUE, hatch="dots", top_text=f"{c['apogee_m']:.0f}",
+        codes = " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(c.reason_codes, c.reasons)))
+        if c.passes:
+            chart.bar(i, c.apogee_m, fill=BLUE, top_text=f"{c.apogee_m:.0f}", inside_text="✓")
+        elif c.verdict == "pass with ballast":
+            chart.bar(i, c.apogee_m, fill=BLUE, hatch="dots", top_text=f"{c.apogee_m:.0f}",
                       inside_text="✓ with ballast")
-        elif c["verdict"] == "off target":
-            chart.bar(i, c["apogee_m"], fill=PAPER, hatch="dots", top_text=f"{c['apogee_m']:.0f}",
+        elif c.verdict == "off target":
+            chart.bar(i, c.apogee_m, fill=PAPER, hatch="dots", top_text=f"{c.apogee_m:.0f}",
                       inside_text="off target")
         else:
-            chart.bar(i, c["apogee_m"], fill=ORANGE, hatch="diagonal", top_text=f"{c['apogee_m']:.0f}",
+            chart.bar(i, c.apogee_m, fill=ORANGE, hatch="diagonal", top_text=f"{c.apogee_m:.0f}",
                       inside_text=f"✗ {codes}")
     if target:
         chart.hline(target, f"target {target:.0f} m", colour=INK, dash="solid", width=1.8)
     if ceiling:
         chart.hline(ceiling, f"ceiling {ceiling:.0f} m", colour=INK, dash="dotted", width=2.0)
     chart.legend_entry("passes every rule, on target (✓)", kind="fill", fill=BLUE)
-    verdicts = {c["verdict"] for c in flown}
+    verdicts = {c.verdict for c in flown}
     if "pass with ballast" in verdicts:
         chart.legend_entry("passes every rule with the solved ballast", kind="fill", fill=BLUE, hatch="dots")
     if "off target" in verdicts:

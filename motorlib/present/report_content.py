@@ -16,15 +16,21 @@ from __future__ import annotations
 import datetime as _dt
 import math
 from pathlib import Path
-from typing import Any, Sequence
+from typing import TYPE_CHECKING, Any, Sequence
 
 import numpy as np
 
+from ..matching.candidate import Candidate
 from .flightcard import FlightCard, flight_card, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
 from .messages import match_count
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
+
+if TYPE_CHECKING:
+    from ..flight.airframe import Airframe
+    from ..matching.rank import MatchResult
+    from ..motor.record import MotorRecord
 
 __all__ = ["fly_report", "match_report", "reduce_report", "trace_for"]
 
@@ -51,7 +57,7 @@ def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -
 
 
 # ----------------------------------------------------------------------------- fly
-def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
+def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
                trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
                made_at: str | None = None) -> FlyReport:
     """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory)."""
@@ -142,7 +148,7 @@ def fly_report(frame: Any, motor: Any, summary: dict[str, Any], warnings: Sequen
         assumptions=assumptions)
 
 
-def _drag_words(frame: Any, summary: dict[str, Any]) -> str:
+def _drag_words(frame: Airframe, summary: dict[str, Any]) -> str:
     """The rocket's drag as the report states it: given or estimated, with the shape's estimate beside a given Cd."""
     drag = summary.get("drag") or {}
     if frame.drag_source == "estimated":
@@ -236,23 +242,23 @@ def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
 _VERDICT_MARK = {"pass": "ok", "pass with ballast": "ok", "off target": "caution"}
 
 
-def match_report(result: Any, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
+def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
                  made_at: str | None = None) -> MatchReport:
     """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions."""
     u = units
     c = result.conditions
-    shown = [cand for cand in result.candidates if cand["fits"]]
+    shown = [cand for cand in result.candidates if cand.fits]
     rows, marks = [], []
     for rank, cand in enumerate(shown, 1):
-        delay = "-" if cand["chosen_delay_s"] is None else (
-            f"{cand['chosen_delay_s']:g}{' drilled' if cand['delay_adjusted'] else ''}/{cand['optimal_delay_s']:.1f}")
-        rows.append((str(rank), cand["designation"], quantity(cand["apogee_m"], "length", u),
-                     quantity(cand["rail_exit_speed_m_s"], "speed", u),
-                     "-" if cand["liftoff_thrust_to_weight"] is None else f"{cand['liftoff_thrust_to_weight']:.1f}",
-                     delay, quantity(cand["ejection_speed_m_s"], "speed", u),
-                     "; ".join([cand["verdict"]] + cand["reasons"] + [f"note: {n}" for n in cand["notes"]]
+        delay = "-" if cand.chosen_delay_s is None else (
+            f"{cand.chosen_delay_s:g}{' drilled' if cand.delay_adjusted else ''}/{cand.optimal_delay_s:.1f}")
+        rows.append((str(rank), cand.designation, quantity(cand.apogee_m, "length", u),
+                     quantity(cand.rail_exit_speed_m_s, "speed", u),
+                     "-" if cand.liftoff_thrust_to_weight is None else f"{cand.liftoff_thrust_to_weight:.1f}",
+                     delay, quantity(cand.ejection_speed_m_s, "speed", u),
+                     "; ".join([cand.verdict, *cand.reasons] + [f"note: {n}" for n in cand.notes]
                                + _extra_mass_words(cand, u))))
-        marks.append(_VERDICT_MARK.get(cand["verdict"], "fail"))
+        marks.append(_VERDICT_MARK.get(cand.verdict, "fail"))
     ranking = TableBlock(
         f"Ranking: {match_count(result)}",
         ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
@@ -293,20 +299,20 @@ def _stability_rule(conditions: dict[str, Any]) -> tuple[tuple[str, str], ...]:
     return (("stability", f">= {float(need):g} calibers over the powered flight"),)
 
 
-def _extra_mass_words(cand: dict[str, Any], u: str) -> list[str]:
+def _extra_mass_words(cand: Candidate, u: str) -> list[str]:
     """What added mass does for a candidate: the ballast solved for the target, the nose weight for stability."""
     out = []
-    if cand.get("ballast_kg") is not None:
-        later = cand.get("ballast_reasons") or []
-        out.append(f"with {quantity(cand['ballast_kg'], 'mass', u)} of ballast: apogee "
-                   f"{quantity(cand.get('ballast_apogee_m'), 'length', u)}, delay "
-                   + ("-" if cand.get("ballast_chosen_delay_s") is None else f"{cand['ballast_chosen_delay_s']:g} s")
+    if cand.ballast_kg is not None:
+        later = cand.ballast_reasons or []
+        out.append(f"with {quantity(cand.ballast_kg, 'mass', u)} of ballast: apogee "
+                   f"{quantity(cand.ballast_apogee_m, 'length', u)}, delay "
+                   + ("-" if cand.ballast_chosen_delay_s is None else f"{cand.ballast_chosen_delay_s:g} s")
                    + (", every rule met" if not later else " but " + ", ".join(later)))
-    if cand.get("nose_weight_for_stability_kg"):
-        later = cand.get("nose_weight_reasons") or []
-        out.append(f"with {quantity(cand['nose_weight_for_stability_kg'], 'mass', u)} of nose weight: stability "
-                   + ("-" if cand.get("nose_weight_stability_margin_cal") is None
-                      else f"{cand['nose_weight_stability_margin_cal']:.2f} cal")
+    if cand.nose_weight_for_stability_kg:
+        later = cand.nose_weight_reasons or []
+        out.append(f"with {quantity(cand.nose_weight_for_stability_kg, 'mass', u)} of nose weight: stability "
+                   + ("-" if cand.nose_weight_stability_margin_cal is None
+                      else f"{cand.nose_weight_stability_margin_cal:.2f} cal")
                    + (", every rule met" if not later else " but " + ", ".join(later)))
     return out
 

@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 
 from pathlib import Path
-from typing import Any, Iterable
+from typing import TYPE_CHECKING, Any, Iterable
 
 from rich import box
 from rich.console import Group
@@ -25,9 +25,16 @@ from rich.text import Text
 
 from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
+from ..motor.listing import CatalogRow
 from .display import DisplayUnits
+from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
 from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
+
+if TYPE_CHECKING:  # annotations only: the table module loads no flight code
+    from ..flight.airframe import Airframe
+    from ..matching.rank import MatchResult
+    from ..motor.record import MotorRecord
 
 __all__ = ["WIDE", "airframe_report", "catalog_table", "check_details", "check_summary_table", "escape",
            "findings_text", "flight_table", "impulse_text", "match_table"]
@@ -186,7 +193,7 @@ def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
     return text
 
 
-def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: Any = None) -> Group:
+def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: MotorRecord | None = None) -> Group:
     """Metrics and findings of one file; with its ``record`` also where the curve comes from (provenance)."""
     parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
     m = report.metrics
@@ -232,7 +239,7 @@ def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: An
     return Group(*parts)  # type: ignore[arg-type]
 
 
-def _provenance_rows(record: Any) -> list[tuple[str, str]]:
+def _provenance_rows(record: MotorRecord) -> list[tuple[str, str]]:
     """Where a curve comes from: kind, date, notes, and the spread of the firings it was made from."""
     p = record.provenance
     rows = [("source", str(p.kind)), ("test date", p.date.isoformat() if p.date else "not given"),
@@ -380,16 +387,17 @@ def _maker_tag(maker: str) -> str:
     return word[:12]
 
 
-def _motor_names(rows: list[dict[str, Any]], with_maker_column: bool) -> list[str]:
-    """Designations, with a maker tag where the same designation comes from several makers."""
+def _motor_names(motors: list[tuple[str, str | None]], with_maker_column: bool) -> list[str]:
+    """Designations of (designation, maker) pairs, with a maker tag where the same designation comes from
+    several makers."""
     makers: dict[str, set[str]] = {}
-    for r in rows:
-        makers.setdefault(r["designation"], set()).add(r.get("maker") or "")
-    return [r["designation"] if with_maker_column or len(makers[r["designation"]]) < 2
-            else f"{r['designation']} {_maker_tag(r.get('maker') or '')}" for r in rows]
+    for designation, maker in motors:
+        makers.setdefault(designation, set()).add(maker or "")
+    return [designation if with_maker_column or len(makers[designation]) < 2
+            else f"{designation} {_maker_tag(maker or '')}" for designation, maker in motors]
 
 
-def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: DisplayUnits = _METRIC,
+def catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: DisplayUnits = _METRIC,
                   width: int = 80) -> Table:
     """One row per motor; headers are the names ``catalog list --sort`` takes.
 
@@ -404,34 +412,34 @@ def catalog_table(rows: list[dict[str, Any]], title: str = "Catalog", units: Dis
     if wide:
         table.add_column("maker", no_wrap=True, overflow="ellipsis", min_width=8)
     table.add_column("class", no_wrap=True)
-    d_impulse = u.column_decimals([r["total_impulse_ns"] for r in rows], "impulse")
-    d_thrust = u.column_decimals([r["average_thrust_n"] for r in rows], "force")
+    d_impulse = u.column_decimals([r.total_impulse_ns for r in rows], "impulse")
+    d_thrust = u.column_decimals([r.average_thrust_n for r in rows], "force")
     _right(table, u.header("impulse", u.unit("impulse")))
     _right(table, u.header("thrust", u.unit("force")))
     _right(table, u.header("burn", "s"))
     _right(table, u.header("dia", u.unit("motor_size")))
-    mass_unit = u.column_unit([r["total_mass_kg"] for r in rows], "mass")
-    d_dia = u.exact_decimals([r["diameter_m"] for r in rows], "motor_size", 1)
-    d_length = u.exact_decimals([r["length_m"] for r in rows], "motor_size", 1)
-    d_mass = u.column_decimals([r["total_mass_kg"] for r in rows], "mass", mass_unit)
+    mass_unit = u.column_unit([r.total_mass_kg for r in rows], "mass")
+    d_dia = u.exact_decimals([r.diameter_m for r in rows], "motor_size", 1)
+    d_length = u.exact_decimals([r.length_m for r in rows], "motor_size", 1)
+    d_mass = u.column_decimals([r.total_mass_kg for r in rows], "mass", mass_unit)
     if wide:
         _right(table, u.header("length", u.unit("motor_size")))
         _right(table, u.header("mass", mass_unit))
     table.add_column(u.header("delays", "s"), no_wrap=True)
     table.add_column("check", no_wrap=True)
-    for r, name in zip(rows, _motor_names(rows, wide)):
-        checks = Text("errors", style="bold red") if r["n_errors"] else (
-            Text("warn", style="yellow") if r["n_warnings"] else Text("ok", style="green"))
-        cells: list[Any] = [r["motor_id"][:6], escape(name)]
+    for r, name in zip(rows, _motor_names([(r.designation, r.maker) for r in rows], wide)):
+        checks = Text("errors", style="bold red") if r.n_errors else (
+            Text("warn", style="yellow") if r.n_warnings else Text("ok", style="green"))
+        cells: list[Any] = [r.motor_id[:6], escape(name)]
         if wide:
-            cells.append(escape(r["maker"] or "-"))
-        cells += [_cls(r["impulse_class"], r["class_percent"]), _impulse(u, r["total_impulse_ns"], d_impulse),
-                  u.number(r["average_thrust_n"], "force", d_thrust), u.number(r["burn_time_s"], "time"),
-                  u.number(r["diameter_m"], "motor_size", d_dia)]
+            cells.append(escape(r.maker or "-"))
+        cells += [_cls(r.impulse_class, r.class_percent), _impulse(u, r.total_impulse_ns, d_impulse),
+                  u.number(r.average_thrust_n, "force", d_thrust), u.number(r.burn_time_s, "time"),
+                  u.number(r.diameter_m, "motor_size", d_dia)]
         if wide:
-            cells += [u.number(r["length_m"], "motor_size", d_length),
-                      u.number(r["total_mass_kg"], "mass", d_mass, unit=mass_unit)]
-        cells += [_delays(r["delays_s"], r["delay_adjustable"], r.get("ejection")), checks]
+            cells += [u.number(r.length_m, "motor_size", d_length),
+                      u.number(r.total_mass_kg, "mass", d_mass, unit=mass_unit)]
+        cells += [_delays(r.delays_s, r.delay_adjustable, r.ejection), checks]
         table.add_row(*cells)
     return _lock_widths(table, "maker", width)
 
@@ -470,12 +478,12 @@ def add_results_table(results: list) -> Table:
 
 
 # ----------------------------------------------------------------------------- matching
-def _shown(result: Any, top: int | None, show_rejected: bool) -> list[dict[str, Any]]:
-    shown = [c for c in result.candidates if c["fits"] or show_rejected]
+def _shown(result: MatchResult, top: int | None, show_rejected: bool) -> list[Candidate]:
+    shown = [c for c in result.candidates if c.fits or show_rejected]
     return shown if top is None else shown[:top]
 
 
-def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
+def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
                 ballast: bool = False, width: int = 80) -> Table:
     """The ranking, good choices first; the result column holds the verdict word, and for ``fail`` one-letter
     reason codes (see :func:`match_legend`).
@@ -501,39 +509,39 @@ def match_table(result: Any, units: DisplayUnits = _METRIC, top: int | None = No
     _right(table, "T/W")
     _right(table, u.header("delay", "s"))
     _right(table, u.header("eject", u.unit("speed")))
-    mass_unit = u.column_unit([c.get("liftoff_mass_kg") for c in shown], "mass")
+    mass_unit = u.column_unit([c.liftoff_mass_kg for c in shown], "mass")
     if wide:
         _right(table, u.header("loaded", mass_unit))
-    ballast_unit = u.column_unit([c.get("ballast_kg") for c in shown], "mass")
+    ballast_unit = u.column_unit([c.ballast_kg for c in shown], "mass")
     if ballast:
         _right(table, u.header("+mass", ballast_unit))
     table.add_column("result", no_wrap=True)
-    for rank, (c, name) in enumerate(zip(shown, _motor_names(shown, wide)), 1):
-        codes = set(c["reason_codes"])
-        if c["apogee_m"] is None:
+    for rank, (c, name) in enumerate(zip(shown, _motor_names([(c.designation, c.maker) for c in shown], wide)), 1):
+        codes = set(c.reason_codes)
+        if c.apogee_m is None:
             cells = ["-"] * 5
         else:
-            delay = "-" if c["chosen_delay_s"] is None else (
-                f"{c['chosen_delay_s']:g}{'d' if c['delay_adjusted'] else ''}/{c['optimal_delay_s']:.1f}")
+            delay = "-" if c.chosen_delay_s is None else (
+                f"{c.chosen_delay_s:g}{'d' if c.delay_adjusted else ''}/{c.optimal_delay_s:.1f}")
             cells = [
-                _cell(u, c["apogee_m"], cond.get("ceiling_m"), "length", True, "over-ceiling" in codes),
-                _cell(u, c["rail_exit_speed_m_s"], cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
+                _cell(u, c.apogee_m, cond.get("ceiling_m"), "length", True, "over-ceiling" in codes),
+                _cell(u, c.rail_exit_speed_m_s, cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
                       False, "rail-exit-slow" in codes),
-                _cell(u, c["liftoff_thrust_to_weight"], cond["min_liftoff_thrust_to_weight"], "ratio", False,
+                _cell(u, c.liftoff_thrust_to_weight, cond["min_liftoff_thrust_to_weight"], "ratio", False,
                       "thrust-to-weight-low" in codes),
                 delay,
-                _cell(u, c["ejection_speed_m_s"], cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
+                _cell(u, c.ejection_speed_m_s, cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
             ]
         row: list[Any] = [str(rank), escape(name)]
         if wide:
-            row.append(escape(c.get("maker") or "-"))
+            row.append(escape(c.maker or "-"))
         row += cells
         if wide:
-            row.append(u.number(c.get("liftoff_mass_kg"), "mass", unit=mass_unit))
+            row.append(u.number(c.liftoff_mass_kg, "mass", unit=mass_unit))
         if ballast:
-            row.append(u.number(c.get("ballast_kg"), "mass", unit=ballast_unit))
-        word = verdict_text(c["verdict"], c["reason_codes"], c["reasons"])
-        table.add_row(*row, Text(word, style=_VERDICT_STYLE.get(c["verdict"], "red")))
+            row.append(u.number(c.ballast_kg, "mass", unit=ballast_unit))
+        word = verdict_text(c.verdict, c.reason_codes, c.reasons)
+        table.add_row(*row, Text(word, style=_VERDICT_STYLE.get(c.verdict, "red")))
     return _lock_widths(table, "maker", width)
 
 
@@ -548,15 +556,15 @@ def _cell(u: DisplayUnits, value: float | None, limit: float | None, kind: str, 
     return u.number(value, kind)
 
 
-def match_legend(result: Any, top: int | None = None, show_rejected: bool = False) -> Text:
+def match_legend(result: MatchResult, top: int | None = None, show_rejected: bool = False) -> Text:
     """What the result words shown mean, and the one-letter codes after ``fail`` (only those shown)."""
     used: dict[str, str] = {}
     words: dict[str, str] = {}
     for c in _shown(result, top, show_rejected):
-        if c["verdict"] != "fail":
-            words.setdefault(verdict_text(c["verdict"], [], []), VERDICTS[c["verdict"]])
+        if c.verdict != "fail":
+            words.setdefault(verdict_text(c.verdict, [], []), VERDICTS[c.verdict])
             continue
-        for code, text in zip(c["reason_codes"], c["reasons"]):
+        for code, text in zip(c.reason_codes, c.reasons):
             letter, meaning = short_code(code, text)
             used.setdefault(letter, meaning)
     text = Text()
@@ -570,60 +578,60 @@ def match_legend(result: Any, top: int | None = None, show_rejected: bool = Fals
     return text
 
 
-def match_reasons(result: Any, units: DisplayUnits = _METRIC, top: int | None = None,
+def match_reasons(result: MatchResult, units: DisplayUnits = _METRIC, top: int | None = None,
                   show_rejected: bool = False) -> Text:
     """Why each shown candidate fails (and what ballast changes), one line per reason; then its notes on one
     line apart from the failures (an adapter, a missed target)."""
     u, cond = units, result.conditions
     text = Text()
     for rank, c in enumerate(_shown(result, top, show_rejected), 1):
-        for code, message in zip(c["reason_codes"], c["reasons"]):
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+        for code, message in zip(c.reason_codes, c.reasons):
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
             text.append(reason_text(code, message, c, cond, u) + "\n", style="red")
-        notes = [note_text(code, message, c, cond, u) for code, message in zip(c["note_codes"], c["notes"])
+        notes = [note_text(code, message, c, cond, u) for code, message in zip(c.note_codes, c.notes)
                  if code != "adapter"]  # adapters are listed together below
         if notes:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
             text.append("note: " + "; ".join(notes) + "\n", style="dim")
-        ballast_reasons = c.get("ballast_reasons") or []
-        codes = c.get("ballast_reason_codes") or [""] * len(ballast_reasons)
+        ballast_reasons = c.ballast_reasons or []
+        codes = c.ballast_reason_codes or [""] * len(ballast_reasons)
         later = [reason_text(code, message, c, cond, u, "ballast_") for code, message in zip(codes, ballast_reasons)]
-        if c.get("ballast_kg") is not None:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
-            text.append(f"with {u.quantity(c['ballast_kg'], 'mass')} of ballast: apogee "
-                        f"{u.quantity(c['ballast_apogee_m'], 'length')}, rail exit "
-                        f"{u.quantity(c['ballast_rail_exit_speed_m_s'], 'speed')}, T/W "
-                        f"{u.number(c['ballast_liftoff_thrust_to_weight'], 'ratio')}"
+        if c.ballast_kg is not None:
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
+            text.append(f"with {u.quantity(c.ballast_kg, 'mass')} of ballast: apogee "
+                        f"{u.quantity(c.ballast_apogee_m, 'length')}, rail exit "
+                        f"{u.quantity(c.ballast_rail_exit_speed_m_s, 'speed')}, T/W "
+                        f"{u.number(c.ballast_liftoff_thrust_to_weight, 'ratio')}"
                         + (": passes every rule" if not later else " but " + "; ".join(later)) + "\n",
                         style="yellow" if later else "green")
         elif later:
-            text.append(f"  #{rank} {c['designation']}: ", style="bold")
+            text.append(f"  #{rank} {c.designation}: ", style="bold")
             text.append("; ".join(later) + "\n", style="yellow")
         _nose_weight_line(text, rank, c, cond, u)
     adapters: dict[str, list[str]] = {}
     for rank, c in enumerate(_shown(result, top, show_rejected), 1):
-        if c.get("adapter") and c["fits"]:
-            adapters.setdefault(c["adapter"], []).append(f"#{rank}")
+        if c.adapter and c.fits:
+            adapters.setdefault(c.adapter, []).append(f"#{rank}")
     if adapters:
         text.append("Adapters: ", style="bold")
         text.append("; ".join(f"{size} for {', '.join(ranks)}" for size, ranks in adapters.items()) + ".\n")
     return text
 
 
-def _nose_weight_line(text: Text, rank: int, c: dict[str, Any], cond: dict[str, Any], u: DisplayUnits) -> None:
+def _nose_weight_line(text: Text, rank: int, c: Candidate, cond: dict[str, Any], u: DisplayUnits) -> None:
     """What the motor does re-flown with the nose weight that restores its stability margin (issue 11)."""
-    if c.get("nose_weight_for_stability_kg") is None:
+    if c.nose_weight_for_stability_kg is None:
         return
     later = [reason_text(code, message, c, cond, u, "nose_weight_")
-             for code, message in zip(c.get("nose_weight_reason_codes") or [], c.get("nose_weight_reasons") or [])]
-    text.append(f"  #{rank} {c['designation']}: ", style="bold")
-    text.append(f"with {small_mass(u, c['nose_weight_for_stability_kg'])} of nose weight: stability "
-                f"{c['nose_weight_stability_margin_cal']:.2f} cal, apogee {u.quantity(c['nose_weight_apogee_m'], 'length')}"
+             for code, message in zip(c.nose_weight_reason_codes or [], c.nose_weight_reasons or [])]
+    text.append(f"  #{rank} {c.designation}: ", style="bold")
+    text.append(f"with {small_mass(u, c.nose_weight_for_stability_kg)} of nose weight: stability "
+                f"{c.nose_weight_stability_margin_cal:.2f} cal, apogee {u.quantity(c.nose_weight_apogee_m, 'length')}"
                 + (" but " + "; ".join(later) if later else ", every rule met") + "\n",
                 style="yellow" if later else "green")
 
 
-def conditions_text(result: Any, units: DisplayUnits = _METRIC, frame: Any = None) -> Text:
+def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: Airframe | None = None) -> Text:
     """The assumptions and rules behind a ranking, echoing the airframe file's and the options' own numbers."""
     c, u = result.conditions, units
     text = Text("Assumptions: ", style="bold")

@@ -58,7 +58,7 @@ def main() -> None:
         query_s = _median(lambda: catalog.rows(where, sort="average_thrust_n"))
         n_rows = len(catalog.rows(where))
         rows = catalog.rows()
-        ids = [r["motor_id"] for r in rows]
+        ids = [r.motor_id for r in rows]
         samples_s = _median(lambda: catalog.samples(ids))
         pack_s = _median(lambda: catalog.motor_pack(rows))
         start = time.perf_counter()

@@ -25,7 +25,7 @@ def test_index_follows_changes_behind_its_back(tmp_catalog: Catalog) -> None:
     assert len(reopened) == 27  # +1 new, -1 removed, broken one skipped
     assert any("refreshed" in n for n in reopened.notices)
     assert [Path(p).name for p, _ in reopened.problems] == ["broken.xml"]
-    assert reopened.rows(CatalogFilter(maker="renamed"))[0]["designation"] == "C6-3,5,7"
+    assert reopened.rows(CatalogFilter(maker="renamed"))[0].designation == "C6-3,5,7"
     assert reopened.resolve("D10-3")
     again = Catalog(root)
     assert not any("refreshed" in n for n in again.notices)  # nothing changed: no file re-read
@@ -42,7 +42,7 @@ def test_corrupt_index_is_rebuilt(tmp_catalog: Catalog) -> None:
     reopened = Catalog(root)
     assert len(reopened) == 27
     assert any("moved aside and rebuilt" in n for n in reopened.notices)
-    assert [r["designation"] for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]  # tags survive
+    assert [r.designation for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]  # tags survive
 
 
 def test_scan_finds_curve_files_below_the_root_and_skips_hidden_and_linked_folders(tmp_path: Path) -> None:

@@ -28,16 +28,16 @@ def test_a_change_that_keeps_the_file_size_is_noticed(tmp_path: Path) -> None:
     os.utime(path, ns=(before.st_atime_ns, before.st_mtime_ns + 2_000_000_000))
     assert path.stat().st_size == before.st_size
     reopened = Catalog(root)
-    assert [r["maker"] for r in reopened.rows()] == ["Bbbb Motors (fictional)"]
+    assert [r.maker for r in reopened.rows()] == ["Bbbb Motors (fictional)"]
     assert reopened.rows(CatalogFilter(maker="aaaa")) == []
 
 
 def test_a_touched_but_unchanged_file_keeps_its_motor(tmp_path: Path) -> None:
     root, path = _catalog_with(tmp_path, "Aaaa Motors (fictional)")
-    first = Catalog(root).rows()[0]["motor_id"]
+    first = Catalog(root).rows()[0].motor_id
     stat = path.stat()
     os.utime(path, ns=(stat.st_atime_ns, stat.st_mtime_ns + 2_000_000_000))
-    assert Catalog(root).rows()[0]["motor_id"] == first
+    assert Catalog(root).rows()[0].motor_id == first
 
 
 def test_a_broken_file_is_reported_on_every_opening_until_fixed(tmp_path: Path) -> None:

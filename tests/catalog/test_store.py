@@ -32,8 +32,8 @@ def _write_synthetic(folder: Path, n: int, seed: int) -> list[Path]:
 def test_add_list_get(tmp_catalog: Catalog) -> None:
     assert len(tmp_catalog) == 27
     rows = tmp_catalog.rows(CatalogFilter(class_range=("D", "G"), diameter_m=0.029))
-    assert [r["designation"] for r in rows] == ["F51-10", "G59-10", "G25-4,7,10", "G99-14"]
-    assert all(29 == round(r["diameter_m"] * 1e3) for r in rows)
+    assert [r.designation for r in rows] == ["F51-10", "G59-10", "G25-4,7,10", "G99-14"]
+    assert all(29 == round(r.diameter_m * 1e3) for r in rows)
     record = tmp_catalog.get("G59-10")
     assert record == read_record(SAMPLE_DIR / "bramblewick-propulsion_g59-10.xml")
     motor_id = tmp_catalog.resolve("G59-10")
@@ -62,7 +62,7 @@ def test_errors_refused_unless_forced(tmp_path: Path) -> None:
     forced = catalog.add(bad, force=True)
     assert forced.status == "added"
     assert "[added despite errors: class-mismatch]" in catalog.get(forced.motor_id).provenance.notes
-    assert catalog.rows()[0]["n_errors"] == 1
+    assert catalog.rows()[0].n_errors == 1
     results = catalog.add_files([FIXTURE_DIR / "bad_time_order.xml", FIXTURE_DIR / "billion_laughs.xml"])
     assert [r.status for r in results] == ["refused", "unreadable"]
 
@@ -158,7 +158,7 @@ def test_batched_add_catches_duplicates_within_a_batch_and_indexes_what_it_wrote
     catalog.close()
     reopened = Catalog(tmp_path / "c")  # sizes and times stored while staging match the files: nothing re-read
     assert reopened.refresh() == 0 and not reopened.problems
-    assert {r["motor_id"] for r in reopened.rows()} == {r.motor_id for r in results if r.status == "added"}
+    assert {r.motor_id for r in reopened.rows()} == {r.motor_id for r in results if r.status == "added"}
 
 
 def test_a_failed_batch_leaves_neither_files_nor_rows(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:

@@ -12,7 +12,7 @@ def test_tags_round_trip_and_survive_reindex(tmp_catalog: Catalog) -> None:
     tmp_catalog.tag(["G59-10", "F29-8"], "in-stock")
     tmp_catalog.untag(["F29-8"], "in-stock")
     assert tmp_catalog.reindex() == 27
-    assert [r["designation"] for r in tmp_catalog.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
+    assert [r.designation for r in tmp_catalog.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
     assert list(tmp_catalog.tags()) == ["in-stock"]
     with pytest.raises(CatalogError, match="tag"):
         tmp_catalog.tag(["G59-10"], "bad tag!")
@@ -24,7 +24,7 @@ def test_orphan_tags_name_the_ids_whose_files_are_gone(tmp_catalog: Catalog) -> 
     ids = tmp_catalog.tag(["G59-10", "F29-8"], "in-stock")
     tmp_catalog.tag(["F29-8"], "club-box")
     assert tmp_catalog.orphan_tags() == {}
-    gone = next(r for r in tmp_catalog.rows() if r["motor_id"] == ids[0])
-    (tmp_catalog.root / gone["path"]).unlink()  # deleted by hand, not through remove()
+    gone = next(r for r in tmp_catalog.rows() if r.motor_id == ids[0])
+    (tmp_catalog.root / gone.path).unlink()  # deleted by hand, not through remove()
     tmp_catalog.reindex()
     assert tmp_catalog.orphan_tags() == {"in-stock": [ids[0]]}

@@ -262,6 +262,18 @@ def test_results_have_a_short_repr_and_a_data_frame() -> None:
     assert frame.loc["A", "message"] == "flight completed"
 
 
+def test_results_are_a_record_with_read_only_arrays() -> None:
+    # Issue 17: a caller could overwrite a flight's figures (results.apogee_m[0] = ...) after the rules read them.
+    results = simulate(vacuum_frame(0.4), [constant_motor(50.0, 1.0, 0.1)], FLAT, trajectories=True)
+    for name in ("status", "apogee_m", "rail_exit_speed_m_s", "ejection_altitude_m", "deployment_time_s"):
+        with pytest.raises(ValueError, match="read-only"):
+            getattr(results, name).flat[0] = 1.0
+    with pytest.raises(ValueError, match="read-only"):
+        results.trajectories[0]["altitude_m"][0] = 1.0
+    with pytest.raises(TypeError):
+        results.trajectories[0]["altitude_m"] = np.zeros(3)  # type: ignore[index]
+
+
 def test_a_single_record_is_accepted_where_a_list_is_expected() -> None:
     motor = constant_motor(50.0, 1.0, 0.1)
     one = simulate(vacuum_frame(0.4), motor, FLAT)

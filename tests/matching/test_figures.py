@@ -32,11 +32,11 @@ def test_the_chosen_delay_is_the_listed_one_closest_to_the_closed_form_optimum()
     # Vacuum closed form (textbook): optimal delay v_b / g = (T/m - g) t_b / g = 6.14 s; of 3, 5, 7, 12 s the
     # closest is 7 s (by hand).
     candidate = rank(_frame(), _motor(), MatchSettings(), flight_settings=FLAT).candidates[0]
-    assert candidate["optimal_delay_s"] == pytest.approx((30.0 / 0.5 - G0) * 1.2 / G0, rel=1e-7)
-    assert candidate["chosen_delay_s"] == 7.0
-    assert "ejection-far-from-apogee" not in candidate["reason_codes"]
+    assert candidate.optimal_delay_s == pytest.approx((30.0 / 0.5 - G0) * 1.2 / G0, rel=1e-7)
+    assert candidate.chosen_delay_s == 7.0
+    assert "ejection-far-from-apogee" not in candidate.reason_codes
     far = rank(_frame(), _motor((2.0, 12.0)), MatchSettings(), flight_settings=FLAT).candidates[0]
-    assert far["chosen_delay_s"] == 2.0 and "ejection-far-from-apogee" in far["reason_codes"]  # 4.1 s early, 5.9 s late
+    assert far.chosen_delay_s == 2.0 and "ejection-far-from-apogee" in far.reason_codes  # 4.1 s early, 5.9 s late
 
 
 def test_landing_speed_is_the_terminal_descent_rate_at_sea_level() -> None:
@@ -48,9 +48,9 @@ def test_landing_speed_is_the_terminal_descent_rate_at_sea_level() -> None:
     mass = 0.4 + 0.1 - 1e-9
     drag_area = 0.25 + 0.5 * math.pi * 0.04**2 / 4
     expected = math.sqrt(2 * mass * G0 / (RHO_SEA_LEVEL * drag_area))
-    assert candidate["landing_speed_m_s"] == pytest.approx(expected, rel=1e-5)
+    assert candidate.landing_speed_m_s == pytest.approx(expected, rel=1e-5)
     slow = LaunchRules(max_landing_speed_m_s=expected * 0.99)
-    assert "descent-fast" in rank(frame, _motor(), MatchSettings(rules=slow), flight_settings=FLAT).candidates[0]["reason_codes"]
+    assert "descent-fast" in rank(frame, _motor(), MatchSettings(rules=slow), flight_settings=FLAT).candidates[0].reason_codes
 
 
 def test_a_motor_exactly_at_each_limit_passes() -> None:
@@ -60,11 +60,11 @@ def test_a_motor_exactly_at_each_limit_passes() -> None:
     ttw = float(flight.liftoff_thrust_to_weight[0])
     assert exit_speed == pytest.approx(math.sqrt(2 * 1.0 * (30.0 / 0.5 - G0)), rel=1e-8)  # v² = 2 L a, textbook
     at_limit = LaunchRules(min_rail_exit_speed_m_s=exit_speed, min_liftoff_thrust_to_weight=ttw)
-    assert rank(frame, _motor(), MatchSettings(rules=at_limit), flight_settings=FLAT).candidates[0]["passes"]
+    assert rank(frame, _motor(), MatchSettings(rules=at_limit), flight_settings=FLAT).candidates[0].passes
     past = LaunchRules(min_rail_exit_speed_m_s=exit_speed * (1 + 1e-9))
-    assert rank(frame, _motor(), MatchSettings(rules=past), flight_settings=FLAT).candidates[0]["reason_codes"] == ["rail-exit-slow"]
+    assert rank(frame, _motor(), MatchSettings(rules=past), flight_settings=FLAT).candidates[0].reason_codes == ("rail-exit-slow",)
     past_ttw = LaunchRules(min_rail_exit_speed_m_s=exit_speed, min_liftoff_thrust_to_weight=ttw * (1 + 1e-9))
-    assert rank(frame, _motor(), MatchSettings(rules=past_ttw), flight_settings=FLAT).candidates[0]["reason_codes"] == ["thrust-to-weight-low"]
+    assert rank(frame, _motor(), MatchSettings(rules=past_ttw), flight_settings=FLAT).candidates[0].reason_codes == ("thrust-to-weight-low",)
 
 
 def test_ballast_for_a_target_in_vacuum_matches_the_closed_form() -> None:
@@ -77,10 +77,10 @@ def test_ballast_for_a_target_in_vacuum_matches_the_closed_form() -> None:
     candidate = rank(frame, _motor(), MatchSettings(target_m=target, ballast=True), flight_settings=FLAT).candidates[0]
     a = G0 * (math.sqrt(1.0 + 8.0 * target / (G0 * 1.2**2)) - 1.0) / 2.0
     mass = 30.0 / (a + G0)
-    assert candidate["ballast_kg"] == pytest.approx(mass - (0.4 + 0.1 - 1e-9), rel=1e-3)
-    assert candidate["ballast_apogee_m"] == pytest.approx(target, rel=2e-4)
-    assert candidate["ballast_optimal_delay_s"] == pytest.approx(a * 1.2 / G0, rel=1e-3)  # coast v_b / g
-    assert candidate["ballast_liftoff_thrust_to_weight"] == pytest.approx(30.0 / (mass * G0), rel=1e-3)
+    assert candidate.ballast_kg == pytest.approx(mass - (0.4 + 0.1 - 1e-9), rel=1e-3)
+    assert candidate.ballast_apogee_m == pytest.approx(target, rel=2e-4)
+    assert candidate.ballast_optimal_delay_s == pytest.approx(a * 1.2 / G0, rel=1e-3)  # coast v_b / g
+    assert candidate.ballast_liftoff_thrust_to_weight == pytest.approx(30.0 / (mass * G0), rel=1e-3)
 
 
 @pytest.mark.parametrize(("motor_diameter_m", "smaller_allowed", "fits"), [
@@ -93,4 +93,4 @@ def test_a_motor_fits_a_mount_within_half_a_millimetre(motor_diameter_m: float, 
                         delays_s=(7.0,), diameter_m=motor_diameter_m, length_m=0.1)
     candidate = rank(_frame(), motor, MatchSettings(allow_smaller_motors=smaller_allowed),
                      flight_settings=FLAT).candidates[0]
-    assert (not any(r.startswith("does not fit") for r in candidate["reasons"])) == fits
+    assert (not any(r.startswith("does not fit") for r in candidate.reasons)) == fits

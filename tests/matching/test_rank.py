@@ -15,6 +15,7 @@ from motorlib.cli.main import main
 from motorlib.flight import simulate
 from motorlib.flight.rules import LaunchRules
 from motorlib.matching import MatchSettings, rank
+from motorlib.motor import CatalogRow
 from motorlib.flight.rules import LaunchRules
 
 from ..conftest import SAMPLE_DIR
@@ -36,15 +37,15 @@ def test_ranking_equals_single_flights(sample_catalog: Catalog) -> None:
     # Each candidate's figures equal those of flying that motor alone (the `fly` computation), to 1e-9.
     frame = load_airframe(AIRFRAME)
     result = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)
-    flown = [c for c in result.candidates if c["apogee_m"] is not None]
+    flown = [c for c in result.candidates if c.apogee_m is not None]
     assert len(flown) >= 10
     for c in flown:
-        alone = simulate(frame, [sample_catalog.get(c["motor_id"])], descent=False)
-        assert c["apogee_m"] == pytest.approx(alone.apogee_m[0], rel=1e-9)
-        assert c["time_to_apogee_s"] == pytest.approx(alone.apogee_time_s[0], rel=1e-9)
-        assert c["rail_exit_speed_m_s"] == pytest.approx(alone.rail_exit_speed_m_s[0], rel=1e-9)
-        assert c["liftoff_thrust_to_weight"] == pytest.approx(alone.liftoff_thrust_to_weight[0], rel=1e-9)
-        assert c["optimal_delay_s"] == pytest.approx(alone.optimal_delay_s[0], rel=1e-9)
+        alone = simulate(frame, [sample_catalog.get(c.motor_id)], descent=False)
+        assert c.apogee_m == pytest.approx(alone.apogee_m[0], rel=1e-9)
+        assert c.time_to_apogee_s == pytest.approx(alone.apogee_time_s[0], rel=1e-9)
+        assert c.rail_exit_speed_m_s == pytest.approx(alone.rail_exit_speed_m_s[0], rel=1e-9)
+        assert c.liftoff_thrust_to_weight == pytest.approx(alone.liftoff_thrust_to_weight[0], rel=1e-9)
+        assert c.optimal_delay_s == pytest.approx(alone.optimal_delay_s[0], rel=1e-9)
 
 
 def test_ranking_equals_the_fly_command(sample_catalog: Catalog) -> None:
@@ -61,80 +62,80 @@ def test_ranking_equals_the_fly_command(sample_catalog: Catalog) -> None:
 
 def test_passing_first_ordered_by_closeness_to_target(sample_catalog: Catalog) -> None:
     result = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3)
-    passes = [c["passes"] for c in result.candidates]
+    passes = [c.passes for c in result.candidates]
     assert passes == sorted(passes, reverse=True)
     passing = result.passing
-    gaps = [abs(c["apogee_m"] - 400.0) for c in passing]
+    gaps = [abs(c.apogee_m - 400.0) for c in passing]
     assert gaps == sorted(gaps) and len(passing) >= 2
-    assert all(c["fits"] for c in passing)
+    assert all(c.fits for c in passing)
 
 
 def test_without_target_ranked_by_apogee_under_the_ceiling(sample_catalog: Catalog) -> None:
     result = _rank(sample_catalog, ceiling_m=800.0, allow_smaller_motors=True)
-    apogees = [c["apogee_m"] for c in result.passing]
+    apogees = [c.apogee_m for c in result.passing]
     assert apogees == sorted(apogees, reverse=True) and max(apogees) <= 800.0
 
 
 def test_just_below_the_rail_exit_rule_fails_with_that_reason(sample_catalog: Catalog) -> None:
     base = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3)  # F29-8: 24 mm
-    f29 = next(c for c in base.candidates if c["designation"] == "F29-8")
-    assert f29["passes"]
-    speed = f29["rail_exit_speed_m_s"]
+    f29 = next(c for c in base.candidates if c.designation == "F29-8")
+    assert f29.passes
+    speed = f29.rail_exit_speed_m_s
     strict = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3,
                    rules=LaunchRules(min_rail_exit_speed_m_s=speed + 0.01))
-    failed = next(c for c in strict.candidates if c["designation"] == "F29-8")
-    assert not failed["passes"] and failed["reason_codes"] == ["rail-exit-slow"]
-    assert failed["reasons"][0].startswith("rail exit too slow")
+    failed = next(c for c in strict.candidates if c.designation == "F29-8")
+    assert not failed.passes and failed.reason_codes == ("rail-exit-slow",)
+    assert failed.reasons[0].startswith("rail exit too slow")
     lenient = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3,
                     rules=LaunchRules(min_rail_exit_speed_m_s=speed - 0.01))
-    assert next(c for c in lenient.candidates if c["designation"] == "F29-8")["passes"]
+    assert next(c for c in lenient.candidates if c.designation == "F29-8").passes
 
 
 def test_over_the_ceiling_fails_even_when_closest_to_the_target(sample_catalog: Catalog) -> None:
     result = _rank(sample_catalog, target_m=690.0, ceiling_m=700.0, allow_smaller_motors=True)
-    f51 = next(c for c in result.candidates if c["designation"] == "F51-10")  # apogee about 706 m
-    closest = min((c for c in result.candidates if c["apogee_m"]), key=lambda c: abs(c["apogee_m"] - 690.0))
+    f51 = next(c for c in result.candidates if c.designation == "F51-10")  # apogee about 706 m
+    closest = min((c for c in result.candidates if c.apogee_m), key=lambda c: abs(c.apogee_m - 690.0))
     assert closest is f51
-    assert not f51["passes"] and "over-ceiling" in f51["reason_codes"]
-    safe = [c for c in result.candidates if not c["reasons"]]  # on target or not, every safe motor ranks higher
+    assert not f51.passes and "over-ceiling" in f51.reason_codes
+    safe = [c for c in result.candidates if not c.reasons]  # on target or not, every safe motor ranks higher
     assert safe and result.candidates.index(f51) > max(result.candidates.index(c) for c in safe)
 
 
 def test_fit_filter_and_class_limit(sample_catalog: Catalog) -> None:
     result = _rank(sample_catalog, target_m=400.0)
-    rejected = [c for c in result.candidates if not c["fits"]]
-    assert all(any(r.startswith("does not fit") for r in c["reasons"]) for c in rejected)
-    assert {c["designation"] for c in rejected} >= {"C6-3,5,7", "M2158-P"}
+    rejected = [c for c in result.candidates if not c.fits]
+    assert all(any(r.startswith("does not fit") for r in c.reasons) for c in rejected)
+    assert {c.designation for c in rejected} >= {"C6-3,5,7", "M2158-P"}
     adapters = _rank(sample_catalog, target_m=400.0, allow_smaller_motors=True)
-    assert any(c["designation"] == "C6-3,5,7" and c["fits"] for c in adapters.candidates)
+    assert any(c.designation == "C6-3,5,7" and c.fits for c in adapters.candidates)
     limited = _rank(sample_catalog, target_m=400.0, max_class="F")
-    g59 = next(c for c in limited.candidates if c["designation"] == "G59-10")
-    assert not g59["fits"] and "above the limit F" in g59["reasons"][0]
+    g59 = next(c for c in limited.candidates if c.designation == "G59-10")
+    assert not g59.fits and "above the limit F" in g59.reasons[0]
 
 
 def test_ballast_brings_apogee_to_the_target(sample_catalog: Catalog) -> None:
     frame = load_airframe(AIRFRAME)
     result = _rank(sample_catalog, target_m=400.0, ballast=True, allow_smaller_motors=True)
-    solved = [c for c in result.candidates if c["ballast_kg"] is not None]
+    solved = [c for c in result.candidates if c.ballast_kg is not None]
     assert solved
     for c in solved:
-        check = simulate(frame, [sample_catalog.get(c["motor_id"])], added_mass_kg=c["ballast_kg"], descent=False)
+        check = simulate(frame, [sample_catalog.get(c.motor_id)], added_mass_kg=c.ballast_kg, descent=False)
         assert check.apogee_m[0] == pytest.approx(400.0, rel=1e-3)  # re-simulated: within 0.1 % of the target
-        assert c["ballast_rail_exit_speed_m_s"] < c["rail_exit_speed_m_s"]  # heavier: slower off the rail
-    low = [c for c in result.candidates if c["apogee_m"] is not None and c["apogee_m"] < 400.0]
-    assert low and all(c["ballast_kg"] is None for c in low)  # ballast cannot lift a motor to the target
-    short = next(c for c in low if c["designation"] == "E25-7")  # safe, but short: a note, not a failure
-    assert short["reasons"] == [] and "below target" in short["note_codes"] and short["verdict"] == "off target"
+        assert c.ballast_rail_exit_speed_m_s < c.rail_exit_speed_m_s  # heavier: slower off the rail
+    low = [c for c in result.candidates if c.apogee_m is not None and c.apogee_m < 400.0]
+    assert low and all(c.ballast_kg is None for c in low)  # ballast cannot lift a motor to the target
+    short = next(c for c in low if c.designation == "E25-7")  # safe, but short: a note, not a failure
+    assert short.reasons == () and "below target" in short.note_codes and short.verdict == "off target"
 
 
 def test_delay_and_ejection_reasons(sample_catalog: Catalog) -> None:
     result = _rank(sample_catalog, target_m=400.0, rules=LaunchRules(max_delay_error_s=0.05))
-    codes = {code for c in result.candidates for code in c["reason_codes"]}
+    codes = {code for c in result.candidates for code in c.reason_codes}
     assert "ejection-far-from-apogee" in codes
     for c in result.candidates:
-        if c["chosen_delay_s"] is not None and c["optimal_delay_s"] is not None:
-            assert ("ejection-far-from-apogee" in c["reason_codes"]) == (abs(c["chosen_delay_s"] - c["optimal_delay_s"]) > 0.05) or \
-                c["reason_codes"][:1] in (["no-liftoff"], ["stuck-on-rail"], ["not-flown"])
+        if c.chosen_delay_s is not None and c.optimal_delay_s is not None:
+            assert ("ejection-far-from-apogee" in c.reason_codes) == (abs(c.chosen_delay_s - c.optimal_delay_s) > 0.05) or \
+                c.reason_codes[:1] in (["no-liftoff"], ["stuck-on-rail"], ["not-flown"])
 
 
 def test_settings_are_validated() -> None:
@@ -210,14 +211,14 @@ def test_plain_records_rank_like_the_catalog(sample_catalog: Catalog) -> None:
 
     frame = load_airframe(AIRFRAME)
     rows = sample_catalog.rows()
-    records = [sample_catalog.get(r["motor_id"]) for r in rows]
+    records = [sample_catalog.get(r.motor_id) for r in rows]
     settings = MatchSettings(target_m=400.0, allow_smaller_motors=True)
-    by_records = rank(frame, candidate_rows(records, [r["motor_id"] for r in rows]),
-                      lambda sub: MotorPack.from_records([records[[r["motor_id"] for r in rows].index(x["motor_id"])]
+    by_records = rank(frame, candidate_rows(records, [r.motor_id for r in rows]),
+                      lambda sub: MotorPack.from_records([records[[r.motor_id for r in rows].index(x.motor_id)]
                                                           for x in sub]), settings)
     by_catalog = rank(frame, rows, sample_catalog.motor_pack, settings)
-    assert [c["motor_id"] for c in by_records.candidates] == [c["motor_id"] for c in by_catalog.candidates]
-    assert [c["apogee_m"] for c in by_records.candidates] == [c["apogee_m"] for c in by_catalog.candidates]
+    assert [c.motor_id for c in by_records.candidates] == [c.motor_id for c in by_catalog.candidates]
+    assert [c.apogee_m for c in by_records.candidates] == [c.apogee_m for c in by_catalog.candidates]
 
 
 def test_one_call_rank_for_the_common_case(sample_catalog: Catalog) -> None:
@@ -228,12 +229,12 @@ def test_one_call_rank_for_the_common_case(sample_catalog: Catalog) -> None:
     settings = MatchSettings(target_m=400.0, allow_smaller_motors=True)
     easy = motorlib.rank(frame, sample_catalog, settings)
     full = rank(frame, sample_catalog.rows(), sample_catalog.motor_pack, settings)
-    assert [c["motor_id"] for c in easy.candidates] == [c["motor_id"] for c in full.candidates]
+    assert [c.motor_id for c in easy.candidates] == [c.motor_id for c in full.candidates]
     record = sample_catalog.get("F29-8")
     single = motorlib.rank(frame, record, settings)
-    assert len(single.candidates) == 1 and single.candidates[0]["apogee_m"] == pytest.approx(
-        next(c["apogee_m"] for c in full.candidates if c["designation"] == "F29-8"), rel=1e-12)
-    assert [c["designation"] for c in motorlib.rank(frame, [record, record], settings).candidates] == ["F29-8"] * 2
+    assert len(single.candidates) == 1 and single.candidates[0].apogee_m == pytest.approx(
+        next(c.apogee_m for c in full.candidates if c.designation == "F29-8"), rel=1e-12)
+    assert [c.designation for c in motorlib.rank(frame, [record, record], settings).candidates] == ["F29-8"] * 2
 
 
 def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> None:
@@ -244,15 +245,15 @@ def test_unknown_delays_are_not_reported_as_plugged(sample_catalog: Catalog) -> 
     from motorlib.matching import candidate_rows
 
     frame = load_airframe(AIRFRAME)
-    base = sample_catalog.get(sample_catalog.rows(CatalogFilter(text="F29-8"))[0]["motor_id"])
+    base = sample_catalog.get(sample_catalog.rows(CatalogFilter(text="F29-8"))[0].motor_id)
     plugged = replace(base, delays_s=(), delay_adjustable=False, no_ejection_charge=True)
     records = [plugged, replace(plugged, no_ejection_charge=False)]  # record-0 plugged, record-1 delays unknown
 
-    def pack_for(sub: list[dict]) -> MotorPack:
-        return MotorPack.from_records([records[int(x["motor_id"].split("-")[1])] for x in sub])
+    def pack_for(sub: list[CatalogRow]) -> MotorPack:
+        return MotorPack.from_records([records[int(x.motor_id.split("-")[1])] for x in sub])
 
     result = rank(frame, candidate_rows(records), pack_for, MatchSettings(target_m=400.0, allow_smaller_motors=True))
-    reasons = {c["motor_id"]: dict(zip(c["reason_codes"], c["reasons"])) for c in result.candidates}
+    reasons = {c.motor_id: dict(zip(c.reason_codes, c.reasons)) for c in result.candidates}
     assert "plugged" in reasons["record-0"]["no-ejection-charge"]
     assert "delays-unknown" in reasons["record-1"] and "plugged" not in reasons["record-1"]["delays-unknown"]
 
@@ -279,18 +280,18 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
     frame = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0), recovery=main)
     result = rank(frame, [motor], settings=MatchSettings())
     c = result.candidates[0]
-    assert c["max_deployment_speed_m_s"] > 80.0
-    assert "deployment-fast" in c["reason_codes"] and not c["passes"]
-    assert c["max_deployment_speed_m_s"] == pytest.approx(
+    assert c.max_deployment_speed_m_s > 80.0
+    assert "deployment-fast" in c.reason_codes and not c.passes
+    assert c.max_deployment_speed_m_s == pytest.approx(
         simulate(frame, [motor]).deployment_speed_m_s[0, 0], rel=1e-9)  # the flight's own opening speed
     # a drogue at apogee slows the fall: the main then opens at the drogue's terminal speed, and passes
     drogue = Recovery(device="drogue", deploy="apogee", drag_area_m2=0.25)
     dual = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054, launch=Launch(rail_length_m=3.0),
                     recovery_sequence=(drogue, main))
     c = rank(dual, [motor], settings=MatchSettings()).candidates[0]
-    assert "deployment-fast" not in c["reason_codes"] and c["max_deployment_speed_m_s"] < 45.0
+    assert "deployment-fast" not in c.reason_codes and c.max_deployment_speed_m_s < 45.0
     # a sequence is flown to the ground: match's opening speeds are the flight's own (fly shows the same)
-    assert c["max_deployment_speed_m_s"] == pytest.approx(float(np.nanmax(simulate(dual, [motor]).deployment_speed_m_s[0])),
+    assert c.max_deployment_speed_m_s == pytest.approx(float(np.nanmax(simulate(dual, [motor]).deployment_speed_m_s[0])),
                                                          rel=1e-9)
     # the field radius fails a motor that lands outside it
     windy = Airframe("heavy", 8.0, 0.1, 0.45, mount_diameter_m=0.054,
@@ -301,9 +302,9 @@ def test_a_fast_electronics_opening_fails_the_motor() -> None:
     distance = float(np.hypot(flown.landing_east_m[0], flown.landing_north_m[0]))
     tight = MatchSettings(rules=LaunchRules(field_radius_m=0.5 * distance))
     c = rank(windy, [motor], settings=tight).candidates[0]
-    assert c["landing_distance_m"] == pytest.approx(distance, rel=1e-9) and "lands-outside-field" in c["reason_codes"]
+    assert c.landing_distance_m == pytest.approx(distance, rel=1e-9) and "lands-outside-field" in c.reason_codes
     roomy = rank(windy, [motor], settings=MatchSettings(rules=LaunchRules(field_radius_m=2.0 * distance + 1.0)))
-    assert "lands-outside-field" not in roomy.candidates[0]["reason_codes"]
+    assert "lands-outside-field" not in roomy.candidates[0].reason_codes
 
 
 def test_match_recovery_options_fail_motors_with_the_reason() -> None:

@@ -22,7 +22,7 @@ from motorlib.cli.main import main
 from motorlib.flight.airframe import Airframe
 from motorlib.flight.geometry import Body, Fins, Geometry, Nose
 from motorlib.flight.integrate import simulate
-from motorlib.matching import MatchSettings, rank
+from motorlib.matching import Candidate, MatchSettings, rank
 
 from ..conftest import SAMPLE_DIR
 
@@ -83,52 +83,52 @@ LIGHT = _motor("LIGHT", 0.06, 0.03, 0.10, 45.0)
 HEAVY = _motor("HEAVY", 0.45, 0.20, 0.20, 250.0)
 
 
-def _candidate(result, name: str) -> dict:
-    return next(c for c in result.candidates if c["designation"] == name)
+def _candidate(result, name: str) -> Candidate:
+    return next(c for c in result.candidates if c.designation == name)
 
 
 def test_a_heavy_motor_behind_the_cp_fails_with_the_stability_reason() -> None:
     result = rank(_frame(), [LIGHT, HEAVY], settings=MatchSettings())
     heavy, light = _candidate(result, "HEAVY"), _candidate(result, "LIGHT")
     # the least margin of the powered flight is at liftoff or burnout (the CG moves one way as propellant burns)
-    assert heavy["stability_margin_cal"] == pytest.approx(min(_margin_by_hand(HEAVY, 0), _margin_by_hand(HEAVY, 1)),
+    assert heavy.stability_margin_cal == pytest.approx(min(_margin_by_hand(HEAVY, 0), _margin_by_hand(HEAVY, 1)),
                                                           abs=1e-9)
-    assert light["stability_margin_cal"] == pytest.approx(min(_margin_by_hand(LIGHT, 0), _margin_by_hand(LIGHT, 1)),
+    assert light.stability_margin_cal == pytest.approx(min(_margin_by_hand(LIGHT, 0), _margin_by_hand(LIGHT, 1)),
                                                           abs=1e-9)
-    assert heavy["stability_margin_cal"] < 1.0 <= light["stability_margin_cal"]
-    assert not heavy["passes"] and _fails_stability(heavy["reason_codes"])
-    text = heavy["reasons"][_stability_index(heavy["reason_codes"])]
+    assert heavy.stability_margin_cal < 1.0 <= light.stability_margin_cal
+    assert not heavy.passes and _fails_stability(heavy.reason_codes)
+    text = heavy.reasons[_stability_index(heavy.reason_codes)]
     assert "stability margin" in text and "nose weight restores it" in text
-    assert not _fails_stability(light["reason_codes"]) and light["nose_weight_for_stability_kg"] is None
+    assert not _fails_stability(light.reason_codes) and light.nose_weight_for_stability_kg is None
 
 
 def test_the_solved_nose_weight_restores_the_margin_when_flown_again() -> None:
     frame = _frame()
     heavy = _candidate(rank(frame, [LIGHT, HEAVY], settings=MatchSettings()), "HEAVY")
-    weight = heavy["nose_weight_for_stability_kg"]
+    weight = heavy.nose_weight_for_stability_kg
     assert weight > 0
     # hand moments: the weight brings both ends of the burn to at least 1 caliber, and it is no more than
     # 0.1 g above the least weight that does (it is rounded up to 0.1 g)
     assert min(_margin_by_hand(HEAVY, 0, weight), _margin_by_hand(HEAVY, 1, weight)) >= 1.0
     assert min(_margin_by_hand(HEAVY, 0, weight - 1e-4), _margin_by_hand(HEAVY, 1, weight - 1e-4)) < 1.0
-    assert heavy["nose_weight_stability_margin_cal"] >= 1.0
+    assert heavy.nose_weight_stability_margin_cal >= 1.0
     again = simulate(frame, [HEAVY], added_mass_kg=weight, descent=False)
-    assert heavy["nose_weight_apogee_m"] == pytest.approx(float(again.apogee_m[0]), rel=1e-9)
-    assert not _fails_stability(heavy["nose_weight_reason_codes"])
-    assert not heavy["passes"]  # the weight is advice: the motor as flown keeps its failed check
+    assert heavy.nose_weight_apogee_m == pytest.approx(float(again.apogee_m[0]), rel=1e-9)
+    assert not _fails_stability(heavy.nose_weight_reason_codes)
+    assert not heavy.passes  # the weight is advice: the motor as flown keeps its failed check
 
 
 def test_every_rule_is_checked_again_with_the_nose_weight() -> None:
     # a heavy, weak motor: its thrust-to-weight passes bare and fails once the nose weight is added
     weak = _motor("WEAK", 0.45, 0.20, 0.20, 38.5)  # T/W 5.17 bare, 4.88 with 44 g more
     c = _candidate(rank(_frame(), [weak], settings=MatchSettings(min_stability_cal=1.0)), "WEAK")
-    assert "thrust-to-weight-low" not in c["reason_codes"] and _fails_stability(c["reason_codes"])
-    assert c["nose_weight_for_stability_kg"] > 0 and "thrust-to-weight-low" in c["nose_weight_reason_codes"]
+    assert "thrust-to-weight-low" not in c.reason_codes and _fails_stability(c.reason_codes)
+    assert c.nose_weight_for_stability_kg > 0 and "thrust-to-weight-low" in c.nose_weight_reason_codes
 
 
 def test_the_required_margin_is_a_setting() -> None:
     light = _candidate(rank(_frame(), [LIGHT], settings=MatchSettings(min_stability_cal=3.5)), "LIGHT")
-    assert light["stability_margin_cal"] < 3.5 and _fails_stability(light["reason_codes"])
+    assert light.stability_margin_cal < 3.5 and _fails_stability(light.reason_codes)
     with pytest.raises(ValueError, match="min_stability_cal"):
         MatchSettings(min_stability_cal=-1.0)
 
@@ -136,11 +136,11 @@ def test_the_required_margin_is_a_setting() -> None:
 def test_unknown_length_fails_and_no_geometry_checks_nothing() -> None:
     unknown = _motor("NOLEN", 0.06, 0.03, None, 45.0)
     c = _candidate(rank(_frame(), [unknown]), "NOLEN")
-    assert c["stability_margin_cal"] is None and _fails_stability(c["reason_codes"])
-    assert "stability unknown" in c["reasons"][_stability_index(c["reason_codes"])]
+    assert c.stability_margin_cal is None and _fails_stability(c.reason_codes)
+    assert "stability unknown" in c.reasons[_stability_index(c.reason_codes)]
     plain = Airframe("plain", MASS_KG, D_M, drag_coefficient=0.5, mount_diameter_m=0.029)
     result = rank(plain, [HEAVY])
-    assert result.candidates[0]["stability_margin_cal"] is None and not _fails_stability(result.candidates[0]["reason_codes"])
+    assert result.candidates[0].stability_margin_cal is None and not _fails_stability(result.candidates[0].reason_codes)
     assert result.conditions["min_stability_cal"] is None
 
 
@@ -148,8 +148,8 @@ def test_no_nose_weight_can_help_when_the_cp_is_too_far_forward() -> None:
     # a required margin that puts the CG ahead of the nose weight's own position: out of reach
     far = (_cp_by_hand() - NOSE_WEIGHT_AT_M) / D_M + 0.5
     c = _candidate(rank(_frame(), [LIGHT], settings=MatchSettings(min_stability_cal=far)), "LIGHT")
-    assert "no nose weight can restore it" in c["reasons"][_stability_index(c["reason_codes"])]
-    assert c["nose_weight_for_stability_kg"] is None
+    assert "no nose weight can restore it" in c.reasons[_stability_index(c.reason_codes)]
+    assert c.nose_weight_for_stability_kg is None
 
 
 def test_match_json_carries_the_keys_and_the_option() -> None:

@@ -14,7 +14,7 @@ from motorlib.catalog import Catalog
 from motorlib.cli.main import main
 from motorlib.files.airframe_toml import load_airframe
 from motorlib.flight import simulate
-from motorlib.matching import MatchSettings, rank
+from motorlib.matching import Candidate, MatchSettings, rank
 from motorlib.matching.adapters import STANDARD_MOTOR_DIAMETERS_M, adapter_steps
 from motorlib.matching.verdicts import VERDICTS
 
@@ -33,8 +33,8 @@ def _rank(catalog: Catalog, frame=None, **kwargs):
     return rank(frame or load_airframe(QUIBBLE), catalog, MatchSettings(**kwargs))
 
 
-def _by_name(result, designation: str) -> dict:
-    return next(c for c in result.candidates if c["designation"] == designation)
+def _by_name(result, designation: str) -> Candidate:
+    return next(c for c in result.candidates if c.designation == designation)
 
 
 def _landing_speed_m_s(frame, mass_kg: float) -> float:
@@ -54,18 +54,18 @@ def test_a_motor_over_the_ceiling_gets_ballast_and_is_rechecked(catalog: Catalog
     frame = load_airframe(QUIBBLE)
     result = _rank(catalog, target_m=400.0, ceiling_m=600.0, allow_smaller_motors=True, ballast=True)
     f51 = _by_name(result, "F51-10")
-    assert f51["apogee_m"] > 600.0 and "over-ceiling" in f51["reason_codes"]
-    assert f51["ballast_kg"] is not None and f51["ballast_kg"] > 0
-    alone = simulate(frame, [catalog.get(f51["motor_id"])], added_mass_kg=f51["ballast_kg"], descent=False)
+    assert f51.apogee_m > 600.0 and "over-ceiling" in f51.reason_codes
+    assert f51.ballast_kg is not None and f51.ballast_kg > 0
+    alone = simulate(frame, [catalog.get(f51.motor_id)], added_mass_kg=f51.ballast_kg, descent=False)
     assert alone.apogee_m[0] == pytest.approx(400.0, rel=1e-3)  # the single flight with the mass, to 0.1 %
-    assert "over-ceiling" not in f51["ballast_reason_codes"]
+    assert "over-ceiling" not in f51.ballast_reason_codes
     # The descent rule is re-checked with the added mass (closed form above).
-    burnt_kg = float(alone.liftoff_mass_kg[0]) - catalog.get(f51["motor_id"]).propellant_mass_kg
+    burnt_kg = float(alone.liftoff_mass_kg[0]) - catalog.get(f51.motor_id).propellant_mass_kg
     landing = _landing_speed_m_s(frame, burnt_kg)
-    assert f51["ballast_landing_speed_m_s"] == pytest.approx(landing, rel=2e-3)
-    assert ("descent-fast" in f51["ballast_reason_codes"]) == (landing > 6.5)
-    assert f51["ballast_passes"] == (not f51["ballast_reason_codes"])
-    assert f51["verdict"] == ("pass with ballast" if f51["ballast_passes"] else "fail")
+    assert f51.ballast_landing_speed_m_s == pytest.approx(landing, rel=2e-3)
+    assert ("descent-fast" in f51.ballast_reason_codes) == (landing > 6.5)
+    assert f51.ballast_passes == (not f51.ballast_reason_codes)
+    assert f51.verdict == ("pass with ballast" if f51.ballast_passes else "fail")
 
 
 def test_a_too_strong_motor_that_passes_with_ballast_says_so(catalog: Catalog) -> None:
@@ -73,17 +73,17 @@ def test_a_too_strong_motor_that_passes_with_ballast_says_so(catalog: Catalog) -
     result = _rank(catalog, target_m=500.0, ceiling_m=700.0, allow_smaller_motors=True, ballast=True,
                    rules=replace(MatchSettings().rules, max_landing_speed_m_s=8.0))
     f51 = _by_name(result, "F51-10")  # about 706 m without ballast: over the ceiling
-    assert "over-ceiling" in f51["reason_codes"] and f51["reasons"]  # the failure without ballast stays listed
-    assert f51["ballast_passes"] is True and f51["verdict"] == "pass with ballast"
+    assert "over-ceiling" in f51.reason_codes and f51.reasons  # the failure without ballast stays listed
+    assert f51.ballast_passes is True and f51.verdict == "pass with ballast"
     assert f51 in result.with_ballast and f51 not in result.passing
-    order = [c["verdict"] for c in result.candidates]
+    order = [c.verdict for c in result.candidates]
     assert order.index("pass with ballast") < order.index("fail")
 
 
 def test_without_ballast_no_motor_is_solved(catalog: Catalog) -> None:
     result = _rank(catalog, target_m=400.0, ceiling_m=600.0, allow_smaller_motors=True)
-    assert all(c["ballast_kg"] is None and c["ballast_passes"] is None for c in result.candidates)
-    assert "pass with ballast" not in {c["verdict"] for c in result.candidates}
+    assert all(c.ballast_kg is None and c.ballast_passes is None for c in result.candidates)
+    assert "pass with ballast" not in {c.verdict for c in result.candidates}
 
 
 # ---------------------------------------------------------------- the target as a tolerance band
@@ -91,30 +91,30 @@ def test_a_safe_motor_far_below_the_target_is_off_target_not_pass(catalog: Catal
     # Issue 14: a motor at 126 m "passed" a 500 m target.
     result = _rank(catalog, target_m=400.0, allow_smaller_motors=True)
     e25 = _by_name(result, "E25-7")  # about 297 m, breaks no rule
-    assert e25["reasons"] == [] and e25["verdict"] == "off target" and not e25["passes"]
+    assert e25.reasons == () and e25.verdict == "off target" and not e25.passes
     assert e25 not in result.passing
-    assert "below target" in e25["note_codes"]
-    assert any("below the 400 m target" in n for n in e25["notes"])
+    assert "below target" in e25.note_codes
+    assert any("below the 400 m target" in n for n in e25.notes)
     for c in result.candidates:  # notes never count as failures, failures never hide in notes
-        assert not set(c["note_codes"]) & set(c["reason_codes"])
-        if c["passes"]:
-            assert abs(c["apogee_m"] - 400.0) <= 0.05 * 400.0
+        assert not set(c.note_codes) & set(c.reason_codes)
+        if c.passes:
+            assert abs(c.apogee_m - 400.0) <= 0.05 * 400.0
 
 
 def test_tolerance_is_an_option(catalog: Catalog) -> None:
     e25 = _by_name(_rank(catalog, target_m=400.0, allow_smaller_motors=True), "E25-7")
-    miss = abs(e25["apogee_m"] - 400.0) / 400.0
+    miss = abs(e25.apogee_m - 400.0) / 400.0
     wide = _by_name(_rank(catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=miss + 1e-6), "E25-7")
     narrow = _by_name(_rank(catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=miss - 1e-6), "E25-7")
-    assert wide["verdict"] == "pass" and narrow["verdict"] == "off target"
+    assert wide.verdict == "pass" and narrow.verdict == "off target"
 
 
 def test_count_of_passes_counts_only_good_choices(catalog: Catalog) -> None:
     result = _rank(catalog, target_m=400.0, allow_smaller_motors=True, target_tolerance=0.3)
-    assert [c["verdict"] for c in result.passing] == ["pass"] * len(result.passing)
-    assert {c["designation"] for c in result.passing} == {
-        c["designation"] for c in result.candidates
-        if not c["reasons"] and c["apogee_m"] is not None and abs(c["apogee_m"] - 400.0) <= 120.0}
+    assert [c.verdict for c in result.passing] == ["pass"] * len(result.passing)
+    assert {c.designation for c in result.passing} == {
+        c.designation for c in result.candidates
+        if not c.reasons and c.apogee_m is not None and abs(c.apogee_m - 400.0) <= 120.0}
 
 
 @pytest.mark.parametrize("bad", [0.0, 1.0, -0.1])
@@ -126,21 +126,21 @@ def test_tolerance_is_validated(bad: float) -> None:
 # ---------------------------------------------------------------- words a user reads at a glance
 def test_stopped_flights_and_misfits_have_their_own_words(catalog: Catalog) -> None:
     result = _rank(catalog, target_m=400.0, allow_smaller_motors=True)
-    words = {c["verdict"] for c in result.candidates}
+    words = {c.verdict for c in result.candidates}
     assert {"stuck on rail", "no fit"} <= words
     heavy = replace(load_airframe(QUIBBLE), mass_kg=5.0)  # a C6's ~15 N peak never lifts 5 kg
     c6 = _by_name(_rank(catalog, heavy, allow_smaller_motors=True), "C6-3,5,7")
-    assert c6["verdict"] == "no liftoff" and c6["reason_codes"] == ["no-liftoff"]
+    assert c6.verdict == "no liftoff" and c6.reason_codes == ("no-liftoff",)
     for c in result.candidates:
-        assert set(c["verdict"].split()) <= set(" ".join(VERDICTS).split())
-        assert "fit" not in c["reason_codes"] and "flight" not in c["reason_codes"]
-        if not c["fits"]:
-            assert c["verdict"] in ("no fit", "above class", "no masses")
+        assert set(c.verdict.split()) <= set(" ".join(VERDICTS).split())
+        assert "fit" not in c.reason_codes and "flight" not in c.reason_codes
+        if not c.fits:
+            assert c.verdict in ("no fit", "above class", "no masses")
 
 
 def test_class_limit_has_its_own_word(catalog: Catalog) -> None:
     g59 = _by_name(_rank(catalog, target_m=400.0, max_class="F"), "G59-10")
-    assert g59["verdict"] == "above class" and g59["reason_codes"] == ["above-class"]
+    assert g59.verdict == "above class" and g59.reason_codes == ("above-class",)
 
 
 def test_show_rejected_never_labels_a_misfit_fit(catalog: Catalog) -> None:
@@ -170,21 +170,21 @@ def test_adapter_steps_count_standard_sizes(motor: int, mount: int) -> None:
 def test_adapters_limited_to_two_sizes_down_by_default(catalog: Catalog) -> None:
     # Issue 14: --allow-smaller-motors put 10.5 mm motors in a 98 mm airframe.
     result = _rank(catalog, load_airframe(TOLLGATE), allow_smaller_motors=True)
-    fitting = {round(c["diameter_m"] * 1e3) for c in result.candidates if c["fits"]}
+    fitting = {round(c.diameter_m * 1e3) for c in result.candidates if c.fits}
     assert fitting == {54, 75, 98}
-    assert _by_name(result, "1/4A2-2,3")["verdict"] == "no fit"
-    assert "8 standard sizes down" in _by_name(result, "1/4A2-2,3")["reasons"][0]
+    assert _by_name(result, "1/4A2-2,3").verdict == "no fit"
+    assert "8 standard sizes down" in _by_name(result, "1/4A2-2,3").reasons[0]
     one = _rank(catalog, load_airframe(TOLLGATE), allow_smaller_motors=True, adapter_steps=1)
-    assert {round(c["diameter_m"] * 1e3) for c in one.candidates if c["fits"]} == {75, 98}
+    assert {round(c.diameter_m * 1e3) for c in one.candidates if c.fits} == {75, 98}
 
 
 def test_each_motor_says_which_adapter_it_needs(catalog: Catalog) -> None:
     result = _rank(catalog, target_m=400.0, allow_smaller_motors=True)
-    assert _by_name(result, "F29-8")["adapter"] == "24 to 29 mm"
-    assert _by_name(result, "C6-3,5,7")["adapter"] == "18 to 29 mm"
-    assert _by_name(result, "F51-10")["adapter"] is None
-    assert "needs a 24 to 29 mm adapter" in _by_name(result, "F29-8")["notes"]
-    assert _by_name(result, "1/2A3-2,4")["adapter"] is None  # 13 mm: three sizes down, does not fit
+    assert _by_name(result, "F29-8").adapter == "24 to 29 mm"
+    assert _by_name(result, "C6-3,5,7").adapter == "18 to 29 mm"
+    assert _by_name(result, "F51-10").adapter is None
+    assert "needs a 24 to 29 mm adapter" in _by_name(result, "F29-8").notes
+    assert _by_name(result, "1/2A3-2,4").adapter is None  # 13 mm: three sizes down, does not fit
 
 
 def test_match_json_carries_verdicts_and_options() -> None:

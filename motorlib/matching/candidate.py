@@ -1,0 +1,116 @@
+"""One ranked motor: the :class:`Candidate` record, what :func:`motorlib.rank` returns for every motor.
+
+A candidate is frozen and typed; it becomes a dict only where it is written out (``match --json`` and
+``--csv``, the report): :meth:`Candidate.as_dict`, whose keys and their order are a contract of the JSON
+output. Figures are SI and None where the motor was not flown (it does not fit, or no such figure exists).
+stdlib only.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, fields
+from typing import Final
+
+__all__ = ["Candidate"]
+
+# Fields that hold a sequence: tuples on the record, lists in :meth:`Candidate.as_dict` (as JSON has them)
+_SEQUENCES: Final = frozenset({"ballast_reasons", "ballast_reason_codes", "nose_weight_reasons",
+                               "nose_weight_reason_codes", "reasons", "reason_codes", "notes", "note_codes"})
+_NOTES: Final = ("notes", "note_codes")
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One motor as the ranking judged it.
+
+    Identity (from the catalog row): ``motor_id``, ``handle``, ``designation``, ``maker``, ``impulse_class``,
+    ``total_impulse_ns``, ``diameter_m``, ``length_m``; ``fits`` (the mount and the class limit) and the
+    ``adapter`` it needs (None if none).
+
+    Flown figures, None when not flown: apogee [m above the pad] and its time [s], rail exit speed [m/s],
+    liftoff thrust-to-weight, maximum speed [m/s] and Mach number, burnout time [s], the optimal and the
+    chosen delay [s] (``delay_adjusted`` when an adjustable delay was drilled), the state at ejection [m, m/s],
+    the descent rate at landing [m/s], the fastest device opening [m/s], the landing distance [m] and the
+    liftoff mass [kg]. ``ballast_*``: with the solved ballast aboard (``ballast_kg`` None when none was
+    solved); ``stability_margin_cal`` and ``nose_weight_*``: the least static margin and the nose weight
+    that restores it, flown again (None without a geometry).
+
+    ``reasons``/``reason_codes``: every rule broken, in order, with its code; ``notes``/``note_codes`` what
+    does not fail a motor (an adapter, a missed target). ``verdict`` is a word of
+    :data:`~motorlib.matching.verdicts.VERDICTS`; ``passes`` is ``verdict == "pass"``; ``ballast_passes``
+    whether it passes with its ballast (None without ballast).
+    """
+
+    motor_id: str
+    handle: str | None
+    designation: str
+    maker: str
+    impulse_class: str | None
+    total_impulse_ns: float
+    diameter_m: float | None
+    length_m: float | None
+    fits: bool
+    adapter: str | None
+    apogee_m: float | None = None
+    time_to_apogee_s: float | None = None
+    rail_exit_speed_m_s: float | None = None
+    liftoff_thrust_to_weight: float | None = None
+    max_speed_m_s: float | None = None
+    max_mach: float | None = None
+    burnout_time_s: float | None = None
+    optimal_delay_s: float | None = None
+    chosen_delay_s: float | None = None
+    delay_adjusted: bool | None = None
+    ejection_altitude_m: float | None = None
+    ejection_speed_m_s: float | None = None
+    ejection_vertical_speed_m_s: float | None = None
+    landing_speed_m_s: float | None = None
+    max_deployment_speed_m_s: float | None = None
+    landing_distance_m: float | None = None
+    liftoff_mass_kg: float | None = None
+    ballast_kg: float | None = None
+    ballast_apogee_m: float | None = None
+    ballast_rail_exit_speed_m_s: float | None = None
+    ballast_liftoff_thrust_to_weight: float | None = None
+    ballast_chosen_delay_s: float | None = None
+    ballast_optimal_delay_s: float | None = None
+    ballast_ejection_speed_m_s: float | None = None
+    ballast_landing_speed_m_s: float | None = None
+    ballast_reasons: tuple[str, ...] | None = None
+    ballast_reason_codes: tuple[str, ...] | None = None
+    stability_margin_cal: float | None = None
+    nose_weight_for_stability_kg: float | None = None
+    nose_weight_apogee_m: float | None = None
+    nose_weight_stability_margin_cal: float | None = None
+    nose_weight_reasons: tuple[str, ...] | None = None
+    nose_weight_reason_codes: tuple[str, ...] | None = None
+    reasons: tuple[str, ...] = ()
+    reason_codes: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
+    note_codes: tuple[str, ...] = ()
+    verdict: str = ""
+    passes: bool = False
+    ballast_passes: bool | None = None
+
+    def __post_init__(self) -> None:
+        for name in _SEQUENCES:  # our own immutable copies of the lists the ranking built
+            value = getattr(self, name)
+            if value is not None:
+                object.__setattr__(self, name, tuple(value))
+        if len(self.reasons) != len(self.reason_codes) or len(self.notes) != len(self.note_codes):
+            raise ValueError(f"{self.designation}: every reason and note needs its code")
+
+    def as_dict(self) -> dict[str, object]:
+        """The candidate as plain data (the ``match --json`` layout): every field, sequences as lists.
+
+        The key order is part of that output: a motor that does not fit lists ``notes`` and ``note_codes``
+        after ``ballast_passes``, one that fits before ``verdict`` (the layout of earlier versions).
+        """
+        out: dict[str, object] = {}
+        for f in fields(self):
+            value = getattr(self, f.name)
+            out[f.name] = list(value) if f.name in _SEQUENCES and value is not None else value
+        if not self.fits:
+            for name in _NOTES:
+                out[name] = out.pop(name)
+        return out

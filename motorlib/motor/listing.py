@@ -1,0 +1,132 @@
+"""One motor as a catalog lists it: the :class:`CatalogRow` record, every figure named with its unit.
+
+The catalog's index keeps one row per motor and hands them out as these records (``Catalog.rows()``);
+the matcher fits and ranks them; a plain :class:`~motorlib.motor.record.MotorRecord` becomes one with
+:meth:`CatalogRow.from_record`. A row turns into a dict only where it is written out (JSON, CSV, a
+DataFrame, the index's SQL row): :meth:`CatalogRow.as_dict`, whose keys are :data:`ROW_COLUMNS` in order.
+
+The record sits here, below ``flight`` and ``matching``, because both the catalog (a layer above) and the
+matcher (a layer below the catalog) read it. numpy is not needed; no file formats.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, fields
+from typing import Sequence
+
+from .checks import CheckSettings, Finding, check_record
+from .classes import CLASS_LETTERS
+from .record import MotorRecord
+
+__all__ = ["ROW_COLUMNS", "CatalogRow"]
+
+
+@dataclass(frozen=True)
+class CatalogRow:
+    """Metadata and derived figures of one motor (SI; no samples).
+
+    Attributes
+    ----------
+    motor_id : str
+        The catalog's id (a content hash), or ``record-<i>`` for a record ranked outside a catalog.
+    handle, path : str, str or None
+        The file's path in the catalog without and with ``.xml``; outside a catalog the handle is the
+        designation and the path None.
+    maker, designation, computed_designation : str
+        As the file gives them, and the designation computed from the curve.
+    impulse_class : str or None
+        Impulse class letter (None above the last class); ``class_index`` its position in
+        :data:`~motorlib.motor.classes.CLASS_LETTERS` (one past the end for None), ``class_percent`` how far
+        into the class the impulse lies.
+    total_impulse_ns, average_thrust_n, peak_thrust_n, burn_time_s : float
+        Figures of the curve (average thrust and burn time at the catalog's burn threshold).
+    diameter_m, length_m, total_mass_kg, propellant_mass_kg, specific_impulse_s : float or None
+        Hardware figures, None where the file does not give them.
+    delays_s : tuple of float
+        Listed ejection delays [s]; ``delay_adjustable`` when they can be drilled shorter; ``ejection`` one of
+        :data:`~motorlib.motor.record.EJECTION_STATES`.
+    provenance_kind, provenance_date, notes : str, str or None, str
+        Provenance; the date in ISO form (as JSON carries it).
+    n_samples, n_errors, n_warnings : int
+        Curve samples, and error and warning findings.
+    findings : tuple of Finding
+        Every check result, most severe first.
+    """
+
+    motor_id: str
+    handle: str
+    path: str | None
+    maker: str
+    designation: str
+    computed_designation: str
+    impulse_class: str | None
+    class_index: int
+    class_percent: float | None
+    total_impulse_ns: float
+    average_thrust_n: float
+    peak_thrust_n: float
+    burn_time_s: float
+    diameter_m: float | None
+    length_m: float | None
+    total_mass_kg: float | None
+    propellant_mass_kg: float | None
+    specific_impulse_s: float | None
+    delays_s: tuple[float, ...]
+    delay_adjustable: bool
+    ejection: str
+    provenance_kind: str
+    provenance_date: str | None
+    notes: str
+    n_samples: int
+    n_errors: int
+    n_warnings: int
+    findings: tuple[Finding, ...]
+
+    def __post_init__(self) -> None:
+        # sequences from JSON arrive as lists: keep our own immutable copies
+        object.__setattr__(self, "delays_s", tuple(float(d) for d in self.delays_s))
+        object.__setattr__(self, "delay_adjustable", bool(self.delay_adjustable))
+        object.__setattr__(self, "findings", tuple(self.findings))
+
+    @classmethod
+    def from_record(cls, record: MotorRecord, motor_id: str, *, path: str | None = None,
+                    settings: CheckSettings | None = None,
+                    findings: Sequence[Finding] | None = None) -> CatalogRow:
+        """The row of ``record``: its figures at ``settings.burn_threshold`` and its findings.
+
+        ``path`` is the file's path in a catalog (ending in ``.xml``; the handle drops the suffix); without
+        it the handle is the designation. ``findings`` are ``check_record(record, settings)`` when the
+        caller has them already.
+        """
+        s = settings or CheckSettings()
+        start_s, end_s = record.burn_window_s(s.burn_threshold)
+        if findings is None:
+            findings = check_record(record, s)
+        impulse_class = record.impulse_class
+        letter = impulse_class.letter if impulse_class else None
+        return cls(
+            motor_id=motor_id, handle=path[:-4] if path else record.designation, path=path, maker=record.maker,
+            designation=record.designation, computed_designation=record.computed_designation(s.burn_threshold),
+            impulse_class=letter, class_index=CLASS_LETTERS.index(letter) if letter else len(CLASS_LETTERS),
+            class_percent=impulse_class.percent if impulse_class else None,
+            total_impulse_ns=record.total_impulse_ns, average_thrust_n=record.average_thrust_n(s.burn_threshold),
+            peak_thrust_n=record.peak_thrust_n, burn_time_s=end_s - start_s,
+            diameter_m=record.diameter_m, length_m=record.length_m, total_mass_kg=record.total_mass_kg,
+            propellant_mass_kg=record.propellant_mass_kg, specific_impulse_s=record.specific_impulse_s,
+            delays_s=record.delays_s, delay_adjustable=record.delay_adjustable, ejection=record.ejection,
+            provenance_kind=record.provenance.kind,
+            provenance_date=record.provenance.date.isoformat() if record.provenance.date else None,
+            notes=record.provenance.notes, n_samples=record.n_samples,
+            n_errors=sum(f.severity == "error" for f in findings),
+            n_warnings=sum(f.severity == "warning" for f in findings), findings=tuple(findings))
+
+    def as_dict(self) -> dict[str, object]:
+        """The row as plain data for JSON, CSV or a DataFrame: keys :data:`ROW_COLUMNS` in order, delays a
+        list, findings a list of dicts (:meth:`Finding.as_dict`)."""
+        out: dict[str, object] = {name: getattr(self, name) for name in ROW_COLUMNS}
+        out["delays_s"] = list(self.delays_s)
+        out["findings"] = [f.as_dict() for f in self.findings]
+        return out
+
+
+ROW_COLUMNS: tuple[str, ...] = tuple(f.name for f in fields(CatalogRow))

@@ -1,0 +1,76 @@
+"""Refactoring guard for the JSON edge of ``catalog list`` and ``match`` (issue 17, records at the seams).
+
+These snapshots are NOT a truth test: they were written by the code as it stood before the catalog rows and
+the match candidates became typed records, and they only say that the refactoring changed no key, no order
+and no value of the ``--json`` output. Whether a figure in them is right is checked elsewhere, against closed
+forms and published values. When a change means to alter this output, regenerate the files in
+tests/snapshots/ with the commands below and say why in the commit.
+
+Numbers are compared to 1e-12 relative (an exact match on the machine that wrote them; the slack only absorbs
+a different CPU's last-bit rounding in numpy's elementwise functions); keys, their order, strings, booleans
+and nulls must match exactly.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+
+from ..conftest import SAMPLE_DIR
+from .conftest import AIRFRAMES, run
+
+SNAPSHOTS = Path(__file__).resolve().parent.parent / "snapshots"
+
+CASES = {
+    "catalog_list.json": ("catalog", "list", "--catalog", str(SAMPLE_DIR), "--json"),
+    "match_quibble.json": ("match", str(AIRFRAMES / "quibble-41.toml"), "--catalog", str(SAMPLE_DIR), "--target",
+                           "400", "--ceiling", "600", "--ballast", "--allow-smaller-motors", "--show-rejected",
+                           "--json"),
+    "match_fennelwick.json": ("match", str(AIRFRAMES / "fennelwick-24.toml"), "--catalog", str(SAMPLE_DIR), "--json"),
+    "match_tollgate.json": ("match", str(AIRFRAMES / "tollgate-98.toml"), "--catalog", str(SAMPLE_DIR), "--target",
+                            "1500", "--max-class", "K", "--json"),
+}
+
+
+def _same(got: object, want: object, where: str = "$") -> None:
+    """Assert ``got`` equals ``want``: dict keys in the same order, numbers to 1e-12 relative."""
+    if isinstance(want, dict):
+        assert isinstance(got, dict) and list(got) == list(want), f"{where}: keys {list(got)} != {list(want)}"
+        for key in want:
+            _same(got[key], want[key], f"{where}.{key}")
+    elif isinstance(want, list):
+        assert isinstance(got, list) and len(got) == len(want), f"{where}: list length differs"
+        for i, (a, b) in enumerate(zip(got, want)):
+            _same(a, b, f"{where}[{i}]")
+    elif isinstance(want, float):
+        assert type(got) is float and math.isclose(got, want, rel_tol=1e-12, abs_tol=1e-12), f"{where}: {got!r} != {want!r}"
+    else:
+        assert type(got) is type(want) and got == want, f"{where}: {got!r} != {want!r}"
+
+
+@pytest.mark.parametrize("name", sorted(CASES))
+def test_json_output_is_unchanged_by_the_records_refactoring(name: str) -> None:
+    code, out = run(*CASES[name])
+    assert code == 0, out
+    got = json.loads(out)
+    if name.startswith("match"):
+        assert got["conditions"]["catalog"] == str(SAMPLE_DIR)
+        got["conditions"]["catalog"] = "<catalog>"  # the snapshot was written with a relative path
+    _same(got, json.loads((SNAPSHOTS / name).read_text()))
+
+
+def test_the_guard_can_fail() -> None:
+    # a changed number, a renamed key and a reordered dict must each be caught
+    with pytest.raises(AssertionError):
+        _same({"a": 1.0}, {"a": 1.0 + 1e-9})
+    with pytest.raises(AssertionError):
+        _same({"b": 1.0}, {"a": 1.0})
+    with pytest.raises(AssertionError):
+        _same({"a": 1, "b": 2}, {"b": 2, "a": 1})
+    with pytest.raises(AssertionError):
+        _same([1.0], [1])  # an int turned float is a changed output
+    with pytest.raises(AssertionError):
+        _same([1], [1.0])

@@ -1,0 +1,59 @@
+"""The ranked candidate record: frozen, typed, a dict only at the JSON edge (issue 17)."""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+
+import pytest
+
+from motorlib.files.airframe_toml import load_airframe
+from motorlib.files.motor_xml import read_record
+from motorlib.matching import Candidate, MatchSettings, rank
+
+from ..conftest import SAMPLE_DIR
+
+
+def _candidate(**kwargs) -> Candidate:
+    base = dict(motor_id="m", handle="h", designation="F10-4", maker="", impulse_class="F", total_impulse_ns=60.0,
+                diameter_m=0.024, length_m=0.07, fits=True, adapter=None)
+    return Candidate(**{**base, **kwargs})
+
+
+def test_a_candidate_is_frozen_and_owns_its_sequences() -> None:
+    reasons = ["ejection too fast"]
+    c = _candidate(reasons=reasons, reason_codes=["ejection-fast"])
+    reasons.append("later")
+    assert c.reasons == ("ejection too fast",) and c.reason_codes == ("ejection-fast",)
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        c.apogee_m = 1.0  # type: ignore[misc]
+
+
+def test_every_reason_and_note_needs_its_code() -> None:
+    with pytest.raises(ValueError, match="F10-4: every reason and note needs its code"):
+        _candidate(reasons=("a", "b"), reason_codes=("x",))
+    with pytest.raises(ValueError, match="needs its code"):
+        _candidate(notes=("n",))
+
+
+def test_as_dict_is_plain_json_with_the_notes_where_the_output_had_them() -> None:
+    fits = _candidate(notes=("needs an adapter",), note_codes=("adapter",), verdict="pass", passes=True)
+    data = fits.as_dict()
+    assert data["notes"] == ["needs an adapter"] and json.loads(json.dumps(data)) == data
+    keys = list(data)
+    assert keys.index("notes") < keys.index("verdict") and keys[-1] == "ballast_passes"
+    rejected = list(_candidate(fits=False, reasons=("too wide",), reason_codes=("motor-does-not-fit",)).as_dict())
+    assert rejected[-2:] == ["notes", "note_codes"] and set(rejected) == set(keys)
+
+
+def test_rank_returns_records_whose_figures_match_their_flight() -> None:
+    # the record carries what the flight gave: apogee from the same batched simulation, not a copy of a dict
+    from motorlib.flight import simulate
+
+    frame = load_airframe(SAMPLE_DIR / "airframes" / "quibble-41.toml")
+    motor = read_record(SAMPLE_DIR / "bramblewick-propulsion_g59-10.xml")
+    (c,) = rank(frame, [motor], settings=MatchSettings(target_m=400.0)).candidates
+    assert isinstance(c, Candidate) and c.fits and c.designation == motor.designation
+    alone = simulate(frame, [motor], descent=False)
+    assert c.apogee_m == pytest.approx(float(alone.apogee_m[0]), rel=1e-12)
+    assert c.verdict in ("pass", "off target", "fail") and c.passes == (c.verdict == "pass")
