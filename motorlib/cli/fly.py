@@ -61,7 +61,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     With a [geometry] in the airframe file it also gives the stability margin
     at liftoff, rail exit and burnout, and, when the file gives no Cd, flies
     the drag estimated from the shape.
-    Exits with status 1 when the flight fails (no liftoff, stuck on the rail).
+    Exits with status 1 when the flight fails or breaks a launch rule (the
+    figures and warnings are printed first).
 
     \b
     Example:
@@ -80,12 +81,16 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     from ..files.airframe_toml import load_airframe
     from ..flight.integrate import simulate
     from ..flight.rulebook import evaluate_rules, flown_rule_inputs
-    from ..flight.rules import LaunchRules
+    from ..flight.rules import RULE_CODES, LaunchRules
 
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
     frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
     motor, motor_file = load_motor(motor_ref, catalog_dir, delay_s)
+    lead = frame.recovery_devices[0] if frame.recovery_devices else None
+    if delay_s is not None and lead is not None and lead.deploy != "ejection":
+        raise click.UsageError(f"--delay {delay_s:g}: the airframe file opens its {lead.device} by electronics "
+                               f"(deploy = \"{lead.deploy}\"), so the motor's delay opens nothing; leave out --delay")
     _check_outputs({"--csv": csv_path, "--plot": plot_path, "--report": report_path}, overwrite, [airframe_file, motor_file])
     if report_path:
         from .output import _write_report
@@ -129,7 +134,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         report = fly_report(frame, motor, summary, warnings, results.trajectories[0], inputs=inputs,
                             command=_command_line(), units=_card_units(shown))
         written.append(_write_report(report, report_path, overwrite, inputs))
-    failed = summary["status"] != "ok"
+    # status 1 when the flight fails or breaks a launch rule (README, "When something goes wrong"); notes do not count
+    failed = summary["status"] != "ok" or any(code in RULE_CODES for code, _ in warnings)
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}

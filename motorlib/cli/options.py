@@ -429,7 +429,8 @@ def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = 
         motor_id = catalog.resolve(motor_ref)
         row_path = next((row.path for row in catalog.rows() if row.motor_id == motor_id), None)
         motor, path = catalog.get(motor_id), (str(Path(catalog.root) / row_path) if row_path else None)
-    problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable)
+    problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable,
+                                                     plugged=motor.no_ejection_charge)
     if problem:
         raise click.UsageError(f"--delay {float(delay_s):g}: {motor.designation} {problem}")
     return motor, path

@@ -60,6 +60,11 @@ def robust_options(func: Any) -> Any:
 _ROBUST_ONLY = ("n_samples", "seed", "workers", "altitude_window", "duration_window")
 
 
+# options of the plain ranking that the robust one has no use for: refused, never silently dropped
+_PLAIN_ONLY = (("--ballast", "ballast"), ("--csv", "as_csv"), ("--show-rejected", "show_rejected"),
+               ("--report", "report_path"), ("--plot", "plot_path"))
+
+
 def pop_robust(opts: dict[str, Any]) -> dict[str, Any]:
     """Remove the robust options from ``opts`` (the plain ranking never sees them)."""
     return {name: opts.pop(name) for name in ("robust", *_ROBUST_ONLY)}
@@ -77,6 +82,11 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
 
     from .options import apply_field_day
 
+    unused = [flag for flag, key in _PLAIN_ONLY if opts.get(key)]
+    if unused:
+        raise click.UsageError(f"{', '.join(unused)}: not used with --robust (it ranks by the share of sampled flights "
+                               "that meet every rule; give --altitude-window to judge apogee); leave "
+                               f"{'it' if len(unused) == 1 else 'them'} out or drop --robust")
     frame = apply_field_day(load_airframe(airframe_file), opts.get("_field_day") or {})
     match = match_settings(opts)
     try:

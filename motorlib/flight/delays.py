@@ -52,16 +52,22 @@ def offers_delay(delay_s: float, listed_delays_s: Sequence[float], adjustable: b
 
 
 def delay_problem(delay_s: float, listed_delays_s: Sequence[float], adjustable: bool,
-                  drill_step_s: float = DEFAULT_DRILL_STEP_S) -> str | None:
+                  drill_step_s: float = DEFAULT_DRILL_STEP_S, *, plugged: bool = False) -> str | None:
     """Why ``delay_s`` [s] cannot be fitted to a motor, in words that follow its name; None when it can.
 
-    A motor with no listed delays (plugged, or delays unknown) has nothing to check against: None.
+    A plugged motor (``plugged``: no ejection charge) has no delay to choose. A motor whose delays are
+    unknown has nothing to check against: None.
+
+    >>> delay_problem(6.0, [], False, plugged=True)
+    'has no ejection charge (plugged): there is no delay to choose'
 
     >>> delay_problem(5.0, [4.0, 8.0], False)
     'offers 4, 8 s'
     >>> delay_problem(20.0, [8.0], True)
     'has an adjustable delay: it can only be shortened below 8 s'
     """
+    if plugged:
+        return "has no ejection charge (plugged): there is no delay to choose"
     listed = sorted(float(d) for d in listed_delays_s)
     if not listed or offers_delay(delay_s, listed, adjustable, drill_step_s):
         return None

@@ -146,7 +146,7 @@ def _hermite_root(y0: np.ndarray, d0: np.ndarray, y1: np.ndarray, d1: np.ndarray
     a, b = y0 - level, y1 - level
     tau = np.clip(a / np.where(a - b == 0.0, 1.0, a - b), 0.0, 1.0)  # secant start
     lo, hi = np.zeros_like(tau), np.ones_like(tau)
-    for _ in range(12):  # Newton, safeguarded by bisection bounds; converges in 3-4 steps here
+    for _ in range(12):  # Newton, safeguarded by bisection bounds; converges in 3-4 steps here, then stays put
         value = _hermite(y0, d0, y1, d1, h, tau) - level
         t2 = tau * tau
         slope = ((6 * t2 - 6 * tau) * y0 + (3 * t2 - 4 * tau + 1) * h * d0
@@ -159,11 +159,8 @@ def _hermite_root(y0: np.ndarray, d0: np.ndarray, y1: np.ndarray, d1: np.ndarray
         candidate = tau - step
         bad = (candidate < lo) | (candidate > hi) | ~np.isfinite(candidate)  # on a bound: converged
         new = np.where(exact, tau, np.where(bad, 0.5 * (lo + hi), candidate))
-        done = np.max(np.abs(new - tau)) < 1e-13
-        tau = new
-        if done:
-            break
-    return tau
+        tau = new  # a fixed count for every flight: a batch-wide early stop would make a flight's root depend on
+    return tau  # the others in its batch (in the last bit), against the vectorisation contract
 
 
 # ----------------------------------------------------------------------------- events inside a step

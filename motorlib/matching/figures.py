@@ -184,7 +184,11 @@ def _broken(findings: list[Finding]) -> list[tuple[str, str]]:
 
 def _landing_descent_rate(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:
     """Descent rate under the device(s) at landing [m/s]: the flown one where the descent was flown, else the
-    terminal estimate at the pad; the figure ``fly`` reports as ``landing_speed_m_s`` too."""
+    terminal estimate at the pad; the figure ``fly`` reports as ``landing_speed_m_s`` too. NaN where no device
+    opened (plugged, landed before the charge, no liftoff): there is no descent under a device to rate."""
     estimate = landing_descent_rate_m_s(frame, results.liftoff_mass_kg - pack.propellant_mass_kg)
+    if not frame.recovery_devices:
+        return estimate
     flown = results.landing_descent_rate_m_s
-    return np.where(np.isfinite(flown), flown, estimate) if frame.recovery_devices else estimate
+    opened = np.isfinite(results.deployment_time_s).any(axis=1)
+    return np.where(opened, np.where(np.isfinite(flown), flown, estimate), np.nan)

@@ -5,6 +5,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+from motorlib.flight.rules import RULE_CODES
+
 from ..conftest import SAMPLE_DIR
 from .conftest import AIRFRAMES, run
 
@@ -47,8 +49,10 @@ def test_fly_every_bundled_motor_that_fits() -> None:
             if abs(motor.diameter_m - frame.mount_diameter_m) > 1e-4 or motor.length_m > frame.mount_length_m:
                 continue
             code, out = run("fly", str(frame_path), "--motor", str(path), "--json")
-            assert code == 0, (frame_path.name, path.name, out)
             flight = json.loads(out)
+            # status 1 exactly when a launch rule is broken (README, "When something goes wrong")
+            broken = any(w["code"] in RULE_CODES for w in flight["warnings"])
+            assert code == (1 if broken else 0), (frame_path.name, path.name, out)
             # every bundled pairing lifts off, leaves the rail and reaches apogee: a failure here is a defect
             assert flight["status"] == "ok" and flight["apogee_m"] > 0, (frame_path.name, path.name)
             flown += 1
@@ -68,7 +72,7 @@ def test_fly_refuses_a_drilled_delay_the_flight_would_not_offer() -> None:
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "3.5", "--json")
     assert code == 2 and "1 s steps" in out
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "--delay", "3", "--json")
-    assert code == 0, out
+    assert code == 1, out  # flown, and the 3 s delay breaks rules (fires far before apogee): status 1
     data = json.loads(out)
     assert data["chosen_delay_s"] == 3.0 and [e["delay_s"] for e in data["ejections"]] == [3.0, 8.0]
 

@@ -5,7 +5,8 @@ the match candidates became typed records, and they only say that the refactorin
 and no value of the ``--json`` output. Whether a figure in them is right is checked elsewhere, against closed
 forms and published values. When a change means to alter this output, regenerate the files in
 tests/snapshots/ with the commands below and say why in the commit. (Regenerated once since: the per-flight step
-controller moved two match files' figures by under 1e-5 relative, keys and order unchanged.)
+controller moved two match files' figures by under 1e-5 relative, keys and order unchanged; and match's
+``landing_speed_m_s`` became null where no device opens, as in ``fly``.)
 
 Numbers are compared to 1e-12 relative (an exact match on the machine that wrote them; the slack only absorbs
 a different CPU's last-bit rounding in numpy's elementwise functions); keys, their order, strings, booleans
