@@ -127,14 +127,17 @@ def test_against_solve_ivp_on_random_flights() -> None:
 
 
 def test_batch_equals_single_runs() -> None:
-    # Vectorisation contract: k flights together give the numbers of k single runs.
-    frames, motors = synthetic_flights(12, seed=3)
+    # Vectorisation contract: k flights together give the numbers of k single runs, to the last bit (an
+    # independent check found apogees 2e-16 apart: the Hermite root's Newton loop stopped when the whole batch
+    # had converged, so a flight's iterations depended on its neighbours).
+    frames, motors = synthetic_flights(40, seed=11)
     together = simulate(frames, motors)
-    for i in range(12):
+    for i in range(40):
         alone = simulate(frames[i], [motors[i]])
-        for name in ("apogee_m", "apogee_time_s", "rail_exit_speed_m_s", "max_mach", "liftoff_thrust_to_weight"):
+        for name in ("apogee_m", "apogee_time_s", "rail_exit_speed_m_s", "max_mach", "liftoff_thrust_to_weight",
+                     "landing_time_s", "drift_m"):
             a, b = getattr(together, name)[i], getattr(alone, name)[0]
-            assert a == pytest.approx(b, rel=1e-12, nan_ok=True), name
+            assert a == b or (np.isnan(a) and np.isnan(b)), (name, i, a, b)
         width = alone.ejection_altitude_m.shape[1]  # the batch pads to its widest delay list
         np.testing.assert_allclose(together.ejection_altitude_m[i, :width], alone.ejection_altitude_m[0], rtol=1e-12)
 
