@@ -90,7 +90,8 @@ def main() -> None:
                                             for _ in range(3)])
             print(f"{n:>7} {1e3 * statistics.median(times):>22.1f}   (CPU {1e3 * rank_cpu_s:.1f} ms; "
                   f"+ {1e3 * rows_s:.1f} ms to read the rows; {len(result.passing)} pass)")
-            payload = {"airframe": result.airframe, "conditions": result.conditions, "candidates": result.candidates}
+            payload = {"airframe": result.airframe, "conditions": result.conditions,
+                       "candidates": [c.as_dict() for c in result.candidates]}
             pieces[n] = {  # CPU time, median of 5
                 "open (current index)": statistics.median([_cpu(lambda: Catalog(root).close()) for _ in range(5)]),
                 "read the rows": statistics.median([_cpu(lambda: catalog.rows()) for _ in range(5)]),
