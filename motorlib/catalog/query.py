@@ -21,6 +21,7 @@ from ..motor.checks import Finding
 from ..motor.classes import CLASS_LETTERS
 from ..motor.listing import CatalogRow
 from .index import COLUMNS
+from ..flight.delays import DEFAULT_DRILL_STEP_S
 
 __all__ = ["SORT_KEYS", "CatalogFilter", "load_samples", "motor_pack", "parse_class_range", "query", "select_rows"]
 
@@ -144,7 +145,7 @@ def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[
     return out
 
 
-def motor_pack(db: sqlite3.Connection, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack:
+def motor_pack(db: sqlite3.Connection, rows: Sequence[CatalogRow], drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
     """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index."""
     data = load_samples(db, [r.motor_id for r in rows])
     return MotorPack.from_samples(

@@ -63,6 +63,7 @@ from . import query as _query
 from .index import INDEX_DIR, CatalogIndex, file_stamp
 from .query import CatalogFilter
 from .tags import TagFile, check_tag_name
+from ..flight.delays import DEFAULT_DRILL_STEP_S
 
 __all__ = ["AddResult", "Catalog", "motor_id_for"]
 
@@ -410,7 +411,7 @@ class Catalog:
         """Time [s] and thrust [N] arrays of the given motors, straight from the index (no XML parsing)."""
         return _query.load_samples(self._db, ids)
 
-    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack:
+    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
         """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :meth:`rows`), built from the index."""
         return _query.motor_pack(self._db, rows, drill_step_s)
 

@@ -48,6 +48,7 @@ from typing import Final, Sequence
 import numpy as np
 
 from .airframe import Airframe, Recovery
+from .delays import DEFAULT_DRILL_STEP_S
 from .dynamics import _accel, _basis, _Group, _make_group
 from .events import (_deploy_altitude_reached, _ejection_steps, _liftoff, _locate_apogee, _locate_ejections,
                      _locate_landing,
@@ -117,7 +118,7 @@ class FlightSettings:
     wind_cap_m: float = DEFAULT_CAP_M
     vary_gravity: bool = True
     uniform_air: bool = False
-    drill_step_s: float = 1.0
+    drill_step_s: float = DEFAULT_DRILL_STEP_S
     max_time_s: float = 4000.0
     max_steps: int = 200_000
 

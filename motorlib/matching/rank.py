@@ -42,6 +42,7 @@ from .ballast import _check_stability, _solve_ballast
 from .figures import _figures, flies_descent
 from .candidate import Candidate
 from .verdicts import classify, verdict_order
+from ..flight.delays import DEFAULT_DRILL_STEP_S
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
 
@@ -53,7 +54,7 @@ class RowSource(Protocol):
 
     def rows(self) -> list[CatalogRow]: ...
 
-    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = 1.0) -> MotorPack: ...
+    def motor_pack(self, rows: Sequence[CatalogRow], drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack: ...
 
 
 Candidates = Union[RowSource, MotorRecord, Sequence[MotorRecord], Sequence[CatalogRow]]
