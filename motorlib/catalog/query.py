@@ -103,26 +103,38 @@ def _where(f: CatalogFilter) -> tuple[list[str], list[Any]]:
 
 
 def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
-                descending: bool = False) -> list[CatalogRow]:
-    """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort`` then id."""
+                descending: bool = False, findings: bool = True) -> list[CatalogRow]:
+    """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort`` then id.
+
+    ``findings=False`` leaves each row's check findings unread (``findings`` None; the counts ``n_errors`` and
+    ``n_warnings`` stay): the ranking never reads them, and at 5,000 motors parsing them is a third of the time.
+    """
     if sort not in SORT_KEYS:
         raise ValueError(f"`sort` must be one of {', '.join(SORT_KEYS)}, got {sort!r}")
     f = where or CatalogFilter()
     clauses, args = _where(f)
-    sql = f"SELECT {', '.join(COLUMNS)} FROM motors"
+    names = COLUMNS if findings else tuple(c if c != "findings" else "NULL" for c in COLUMNS)
+    sql = f"SELECT {', '.join(names)} FROM motors"
     if clauses:
         sql += " WHERE " + " AND ".join(clauses)
     sql += f" ORDER BY {sort} {'DESC' if descending else 'ASC'}, motor_id"
+    values = db.execute(sql, args).fetchall()
+    # the JSON of every row (its delays, its findings) in one parse: one call per row costs more than the parsing
+    parsed = json.loads("[" + ",".join(f"[{v[_DELAYS]},{v[_FINDINGS] or 'null'}]" for v in values) + "]")
     out = []
-    for values in db.execute(sql, args):
-        data = dict(zip(COLUMNS, values))
-        data["delays_s"] = json.loads(data["delays_s"])
-        data["findings"] = [Finding(**entry) for entry in json.loads(data["findings"])]
+    for row_values, (delays, entries) in zip(values, parsed):
+        data = dict(zip(COLUMNS, row_values))
+        data["delays_s"] = delays
+        data["findings"] = None if entries is None else [Finding(**entry) for entry in entries]
         row = CatalogRow(**data)
         if f.delay_s is not None and not offers_delay(f.delay_s, row.delays_s, row.delay_adjustable):
             continue
         out.append(row)
     return out
+
+
+_DELAYS = COLUMNS.index("delays_s")
+_FINDINGS = COLUMNS.index("findings")
 
 
 def query(db: sqlite3.Connection, where: CatalogFilter | None = None, **kwargs: Any) -> Any:

@@ -399,9 +399,10 @@ class Catalog:
 
     # ------------------------------------------------------------------ queries (see .query)
     def rows(self, where: CatalogFilter | None = None, *, sort: str = "total_impulse_ns",
-             descending: bool = False) -> list[CatalogRow]:
-        """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort``."""
-        return _query.select_rows(self._db, where, sort=sort, descending=descending)
+             descending: bool = False, findings: bool = True) -> list[CatalogRow]:
+        """Metadata and metrics of the motors that pass ``where`` (no samples), sorted by ``sort``;
+        ``findings=False``: without their check findings (None), quicker where they are not read."""
+        return _query.select_rows(self._db, where, sort=sort, descending=descending, findings=findings)
 
     def query(self, where: CatalogFilter | None = None, **kwargs: Any) -> Any:
         """The rows of :meth:`rows` as a pandas DataFrame (pandas is imported only here)."""

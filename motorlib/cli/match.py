@@ -108,7 +108,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
 
         _write_report(None, opts["report_path"], opts["overwrite"], [airframe_file], check_only=True)
     settings = match_settings(opts)
-    rows = cat.rows(CatalogFilter(tag=opts["tag"]))
+    rows = cat.rows(CatalogFilter(tag=opts["tag"]), findings=False)  # the ranking never reads them
     if not rows:
         raise click.UsageError(f"no motors in {cat.root}" + (f" with tag {opts['tag']!r}" if opts["tag"] else ""))
     result = rank(frame, rows, cat.motor_pack, settings)

@@ -97,7 +97,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
                                   wind_from_rad=frame.launch.wind_direction_rad)
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
-    rows = cat.rows(CatalogFilter(tag=opts["tag"]))
+    rows = cat.rows(CatalogFilter(tag=opts["tag"]), findings=False)  # the ranking never reads them
     fitting = [r for r in rows if not _fits(frame, r, match)[0]]
     if not fitting:
         raise click.UsageError(f"no motor in {cat.root} fits the airframe")

@@ -13,6 +13,7 @@ numpy only.
 
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import Final, Sequence
 
 import numpy as np
@@ -34,11 +35,18 @@ def offered_delays_s(listed_delays_s: Sequence[float], adjustable: bool,
     """
     if not drill_step_s > 0.0:
         raise ValueError(f"`drill_step_s` must be > 0, got {drill_step_s!r}")
-    listed = sorted(float(d) for d in listed_delays_s)
+    return list(_offered(tuple(float(d) for d in listed_delays_s), bool(adjustable), float(drill_step_s)))
+
+
+@lru_cache(maxsize=4096)
+def _offered(listed_delays_s: tuple[float, ...], adjustable: bool, drill_step_s: float) -> tuple[float, ...]:
+    """:func:`offered_delays_s` for hashable arguments, remembered: a catalog repeats a few delay lists
+    thousands of times."""
+    listed = sorted(listed_delays_s)
     if not adjustable or not listed:
-        return listed
+        return tuple(listed)
     drilled = np.arange(drill_step_s, listed[-1], drill_step_s)
-    return sorted(set(listed) | {round(float(d), 9) for d in drilled if listed[-1] - d > _SAME_S})
+    return tuple(sorted(set(listed) | {round(float(d), 9) for d in drilled if listed[-1] - d > _SAME_S}))
 
 
 def offers_delay(delay_s: float, listed_delays_s: Sequence[float], adjustable: bool,

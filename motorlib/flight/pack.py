@@ -77,15 +77,17 @@ class MotorPack:
         width = int(counts.max())
         delay_lists = [offered_delays_s(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
         n_delays = max(1, max(len(d) for d in delay_lists))
+        # one scatter per array instead of a slice assignment per motor: row i holds its samples, then its
+        # last time repeated and zero thrust; delays NaN past the motor's own
+        inside = np.arange(width) < counts[:, None]
         time = np.empty((n, width))
+        time[inside] = np.concatenate([np.asarray(t, dtype=float) for t, _ in samples])
+        time = np.where(inside, time, time[np.arange(n), counts - 1][:, None])
         thrust = np.zeros((n, width))
+        thrust[inside] = np.concatenate([np.asarray(f, dtype=float) for _, f in samples])
+        lengths = np.array([len(d) for d in delay_lists], dtype=np.int64)
         delays = np.full((n, n_delays), np.nan)
-        for i, ((t, f), d) in enumerate(zip(samples, delay_lists)):
-            k = t.size
-            time[i, :k] = t
-            time[i, k:] = t[-1]
-            thrust[i, :k] = f
-            delays[i, : len(d)] = d
+        delays[np.arange(n_delays) < lengths[:, None]] = [d for lst in delay_lists for d in lst]
         has_mass = np.array([m is not None and p is not None for m, p in zip(total_mass_kg, propellant_mass_kg)])
         total = np.array([m if ok else 1.0 for m, ok in zip(total_mass_kg, has_mass)], dtype=float)
         propellant = np.array([p if ok else 0.0 for p, ok in zip(propellant_mass_kg, has_mass)], dtype=float)

@@ -8,7 +8,7 @@ stdlib only.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields
+from dataclasses import dataclass
 from typing import Final
 
 __all__ = ["Candidate"]
@@ -95,7 +95,7 @@ class Candidate:
     def __post_init__(self) -> None:
         for name in _SEQUENCES:  # our own immutable copies of the lists the ranking built
             value = getattr(self, name)
-            if value is not None:
+            if value is not None and type(value) is not tuple:
                 object.__setattr__(self, name, tuple(value))
         if len(self.reasons) != len(self.reason_codes) or len(self.notes) != len(self.note_codes):
             raise ValueError(f"{self.designation}: every reason and note needs its code")
@@ -106,10 +106,11 @@ class Candidate:
         The key order is part of that output: a motor that does not fit lists ``notes`` and ``note_codes``
         after ``ballast_passes``, one that fits before ``verdict`` (the layout of earlier versions).
         """
-        out: dict[str, object] = {}
-        for f in fields(self):
-            value = getattr(self, f.name)
-            out[f.name] = list(value) if f.name in _SEQUENCES and value is not None else value
+        out: dict[str, object] = dict(self.__dict__)  # every field, in declaration order
+        for name in _SEQUENCES:
+            value = out[name]
+            if value is not None:
+                out[name] = list(value)
         if not self.fits:
             for name in _NOTES:
                 out[name] = out.pop(name)

@@ -17,6 +17,7 @@ numpy only.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from math import isfinite
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -50,7 +51,7 @@ def _choose_delays(pack: MotorPack, results: FlightResults, listed: list[list[fl
     altitude = np.where(has, results.ejection_altitude_m[rows, col], np.nan)
     speed = np.where(has, results.ejection_speed_m_s[rows, col], np.nan)
     vertical = np.where(has, results.ejection_vertical_speed_m_s[rows, col], np.nan)
-    adjusted = np.array([bool(np.isfinite(c)) and c not in lst for c, lst in zip(chosen, listed)])
+    adjusted = np.array([c == c and c not in lst for c, lst in zip(chosen.tolist(), listed)], dtype=bool)  # c == c: not NaN
     return chosen, altitude, speed, vertical, adjusted
 
 
@@ -139,8 +140,8 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
     distance = _landing_distance(frame, results, pack)
     findings = _rule_findings(frame, rows, results, s, chosen, speed, landing, deploy, distance)
 
-    def col(values: np.ndarray) -> list[float | None]:
-        return [float(v) if np.isfinite(v) else None for v in values]
+    def col(values: np.ndarray) -> list[float | None]:  # Python floats, None for NaN and ±inf
+        return [v if isfinite(v) else None for v in np.asarray(values, dtype=float).tolist()]
 
     columns: dict[str, list[Any]] = {
         "apogee_m": col(results.apogee_m), "time_to_apogee_s": col(results.apogee_time_s),

@@ -172,18 +172,17 @@ def _fits(frame: Airframe, row: CatalogRow, s: MatchSettings) -> tuple[list[tupl
             reasons.append(("above-class", f"class {cls or 'above O'} is above the limit {s.max_class}"))
     d, mount = row.diameter_m, frame.mount_diameter_m
     if mount is not None:
-        size = f"{d * 1e3:.4g} mm motor in a {mount * 1e3:.4g} mm mount" if d is not None else ""
         if d is None:
             reasons.append(("motor-does-not-fit", "does not fit: the motor's diameter is unknown"))
         elif d > mount + s.diameter_tolerance_m:
-            reasons.append(("motor-does-not-fit", f"does not fit: {size}"))
+            reasons.append(("motor-does-not-fit", f"does not fit: {_size_text(d, mount)}"))
         elif d < mount - s.diameter_tolerance_m:
             steps = adapter_steps(d, mount, s.diameter_tolerance_m)
             if not s.allow_smaller_motors:
-                reasons.append(("motor-does-not-fit", f"does not fit: {size} (adapters not allowed)"))
+                reasons.append(("motor-does-not-fit", f"does not fit: {_size_text(d, mount)} (adapters not allowed)"))
             elif steps > s.adapter_steps:
-                reasons.append(("motor-does-not-fit", f"does not fit: {size} is {steps} standard sizes down (adapters up to "
-                                          f"{s.adapter_steps} allowed)"))
+                reasons.append(("motor-does-not-fit", f"does not fit: {_size_text(d, mount)} is {steps} standard sizes "
+                                                      f"down (adapters up to {s.adapter_steps} allowed)"))
             else:
                 adapter = adapter_text(d, mount)
     if frame.mount_length_m is not None:
@@ -195,6 +194,10 @@ def _fits(frame: Airframe, row: CatalogRow, s: MatchSettings) -> tuple[list[tupl
     if row.total_mass_kg is None or row.propellant_mass_kg is None:
         reasons.append(("no-masses", "cannot be flown: no total or propellant mass"))
     return reasons, adapter
+
+
+def _size_text(motor_diameter_m: float, mount_diameter_m: float) -> str:
+    return f"{motor_diameter_m * 1e3:.4g} mm motor in a {mount_diameter_m * 1e3:.4g} mm mount"
 
 
 def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | None = None,
@@ -247,9 +250,9 @@ def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | 
         _check_stability(frame, sub, pack, results, figures, s, fs)
         if s.ballast:
             _solve_ballast(frame, sub, pack, figures, s, fs)
-        for k, i in enumerate(fitting):
-            flown[i] = ({key: values[k] for key, values in figures.columns.items()}, figures.reasons[k],
-                        figures.notes[k])
+        keys = tuple(figures.columns)
+        for i, values, reasons, notes in zip(fitting, zip(*figures.columns.values()), figures.reasons, figures.notes):
+            flown[i] = (dict(zip(keys, values)), reasons, notes)
     candidates = sorted((_candidate(row, fit_reasons[i], adapters[i], flown.get(i), s) for i, row in enumerate(rows)),
                         key=lambda c: _sort_key(c, s))
     conditions = _conditions(frame, s)

@@ -49,8 +49,9 @@ class CatalogRow:
         Provenance; the date in ISO form (as JSON carries it).
     n_samples, n_errors, n_warnings : int
         Curve samples, and error and warning findings.
-    findings : tuple of Finding
-        Every check result, most severe first.
+    findings : tuple of Finding, or None
+        Every check result, most severe first; None when the row was read without them
+        (``Catalog.rows(findings=False)``).
     """
 
     motor_id: str
@@ -80,13 +81,14 @@ class CatalogRow:
     n_samples: int
     n_errors: int
     n_warnings: int
-    findings: tuple[Finding, ...]
+    findings: tuple[Finding, ...] | None
 
     def __post_init__(self) -> None:
         # sequences from JSON arrive as lists: keep our own immutable copies
         object.__setattr__(self, "delays_s", tuple(float(d) for d in self.delays_s))
         object.__setattr__(self, "delay_adjustable", bool(self.delay_adjustable))
-        object.__setattr__(self, "findings", tuple(self.findings))
+        if self.findings is not None:
+            object.__setattr__(self, "findings", tuple(self.findings))
 
     @classmethod
     def from_record(cls, record: MotorRecord, motor_id: str, *, path: str | None = None,
@@ -125,7 +127,7 @@ class CatalogRow:
         list, findings a list of dicts (:meth:`Finding.as_dict`)."""
         out: dict[str, object] = {name: getattr(self, name) for name in ROW_COLUMNS}
         out["delays_s"] = list(self.delays_s)
-        out["findings"] = [f.as_dict() for f in self.findings]
+        out["findings"] = None if self.findings is None else [f.as_dict() for f in self.findings]
         return out
 
 
