@@ -158,10 +158,19 @@ def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[
 
 
 def motor_pack(db: sqlite3.Connection, rows: Sequence[CatalogRow], drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
-    """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index."""
-    data = load_samples(db, [r.motor_id for r in rows])
-    return MotorPack.from_samples(
-        [data[r.motor_id] for r in rows],
+    """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index: the
+    blobs of all rows joined end to end and read as two arrays (no XML, no array per motor)."""
+    blobs: dict[str, tuple[bytes, bytes]] = {}
+    wanted = [r.motor_id for r in rows]
+    for start in range(0, len(wanted), _MAX_BOUND_PARAMETERS):
+        chunk = wanted[start:start + _MAX_BOUND_PARAMETERS]
+        sql = f"SELECT motor_id, time_blob, thrust_blob FROM motors WHERE motor_id IN ({', '.join('?' * len(chunk))})"
+        blobs.update((motor_id, (t, f)) for motor_id, t, f in db.execute(sql, chunk))
+    ordered = [blobs[motor_id] for motor_id in wanted]
+    return MotorPack.from_flat(
+        np.frombuffer(b"".join(t for t, _ in ordered), dtype="<f8").astype(float),
+        np.frombuffer(b"".join(f for _, f in ordered), dtype="<f8").astype(float),
+        np.array([len(t) // 8 for t, _ in ordered], dtype=np.int64),
         total_mass_kg=[r.total_mass_kg for r in rows],
         propellant_mass_kg=[r.propellant_mass_kg for r in rows],
         delays_s=[r.delays_s for r in rows],

@@ -370,6 +370,8 @@ def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
         raise CatalogError(f"{path}: no such catalog folder{hint}")
     read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker
     catalog = Catalog(path, read_only=read_only, create=create)
+    if not (catalog.notices and not catalog.read_only) and not catalog.problems:
+        return catalog  # nothing to say: rich stays unimported (a --json or --csv run never needs it)
     err = _err_console()
     for notice in catalog.notices:
         if not catalog.read_only:
@@ -386,10 +388,10 @@ def _catalog_or_samples(catalog_dir: str | None) -> str:
     """The catalog asked for, else the user catalog when it exists, else the bundled sample curves."""
     import os
 
-    from ..files.curvefiles import sample_catalog_dir
-
     if catalog_dir is not None:
         return catalog_dir
+    from ..files.curvefiles import sample_catalog_dir  # only here: it imports the file readers
+
     return default_catalog_dir() if os.path.isdir(default_catalog_dir()) else str(sample_catalog_dir())
 
 

@@ -70,21 +70,39 @@ class MotorPack:
                      delays_s: Sequence[Sequence[float]], delay_adjustable: Sequence[bool],
                      drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
         """Pack (time [s], thrust [N]) arrays of valid curves with their masses [kg] and delays [s]."""
-        n = len(samples)
-        if n == 0:
+        if len(samples) == 0:
             raise ValueError("`samples` must not be empty")
-        counts = np.array([t.size for t, _ in samples], dtype=np.int64)
+        return cls.from_flat(np.concatenate([np.asarray(t, dtype=float) for t, _ in samples]),
+                             np.concatenate([np.asarray(f, dtype=float) for _, f in samples]),
+                             np.array([np.size(t) for t, _ in samples], dtype=np.int64),
+                             total_mass_kg=total_mass_kg, propellant_mass_kg=propellant_mass_kg, delays_s=delays_s,
+                             delay_adjustable=delay_adjustable, drill_step_s=drill_step_s)
+
+    @classmethod
+    def from_flat(cls, time_s: np.ndarray, thrust_n: np.ndarray, counts: np.ndarray, *,
+                  total_mass_kg: Sequence[float | None], propellant_mass_kg: Sequence[float | None],
+                  delays_s: Sequence[Sequence[float]], delay_adjustable: Sequence[bool],
+                  drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
+        """:meth:`from_samples` for the curves laid end to end: ``time_s`` and ``thrust_n`` [s, N] hold
+        ``counts[0]`` samples of the first motor, then ``counts[1]`` of the second, ... (how the catalog's
+        index hands them out, without one array per motor)."""
+        counts = np.asarray(counts, dtype=np.int64)
+        n = counts.size
+        if n == 0:
+            raise ValueError("`counts` must not be empty")
+        if np.any(counts < 1) or time_s.shape != thrust_n.shape or time_s.size != int(counts.sum()):
+            raise ValueError("`counts` must be positive and add up to the samples given")
         width = int(counts.max())
         delay_lists = [offered_delays_s(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
         n_delays = max(1, max(len(d) for d in delay_lists))
-        # one scatter per array instead of a slice assignment per motor: row i holds its samples, then its
-        # last time repeated and zero thrust; delays NaN past the motor's own
+        # one scatter per array: row i holds its samples, then its last time repeated and zero thrust;
+        # delays NaN past the motor's own
         inside = np.arange(width) < counts[:, None]
         time = np.empty((n, width))
-        time[inside] = np.concatenate([np.asarray(t, dtype=float) for t, _ in samples])
+        time[inside] = time_s
         time = np.where(inside, time, time[np.arange(n), counts - 1][:, None])
         thrust = np.zeros((n, width))
-        thrust[inside] = np.concatenate([np.asarray(f, dtype=float) for _, f in samples])
+        thrust[inside] = thrust_n
         lengths = np.array([len(d) for d in delay_lists], dtype=np.int64)
         delays = np.full((n, n_delays), np.nan)
         delays[np.arange(n_delays) < lengths[:, None]] = [d for lst in delay_lists for d in lst]
