@@ -184,20 +184,36 @@ def simulate(
     if np.any(added < 0.0) or not np.all(np.isfinite(added)):
         raise SimulationInputError("simulate", "added_mass_kg", "ballast must be finite and not negative")
     wanted = None if deploy_delay_s is None else np.broadcast_to(np.asarray(deploy_delay_s, dtype=float), (n,))
-    n_devices = max((len(f.recovery_devices) for f in frames), default=1)
+    distinct, slot = _distinct(frames)
+    devices = [f.recovery_devices for f in distinct]
+    n_devices = max((len(d) for d in devices), default=1)
     out = _empty_results(n, pack.delays_s.shape[1], pack.delays_s, n_devices)
     traj: list[dict[str, np.ndarray] | None] = [None] * n
-    groups: dict[tuple, list[int]] = {}
-    for i, frame in enumerate(frames):
-        key = (frame.launch.site, frame.drag_table, frame.drag_table_powered, frame.recovery_devices,
-               frame.launch.wind_profile)
-        groups.setdefault(key, []).append(i)
-    for members in groups.values():
-        members_idx = np.array(members)
-        _fly_group([frames[i] for i in members], pack, members_idx, added, s, out,
+    groups: dict[tuple, list[int]] = {}  # distinct airframes by what a group shares
+    for k, frame in enumerate(distinct):
+        key = (frame.launch.site, frame.drag_table, frame.drag_table_powered, devices[k], frame.launch.wind_profile)
+        groups.setdefault(key, []).append(k)
+    for kinds in groups.values():
+        members_idx = np.flatnonzero(np.isin(slot, kinds)) if len(groups) > 1 else np.arange(n)
+        _fly_group([frames[i] for i in members_idx], pack, members_idx, added, s, out,
                    traj if trajectories else None, wanted, descent)
-    return FlightResults(**out, recovery_devices=tuple(f.recovery_devices for f in frames),  # type: ignore[arg-type]
+    return FlightResults(**out, recovery_devices=tuple(devices[k] for k in slot.tolist()),  # type: ignore[arg-type]
                          trajectories=tuple(traj) if trajectories else None)
+
+
+def _distinct(frames: Sequence[Airframe]) -> tuple[list[Airframe], np.ndarray]:
+    """The distinct airframe objects among ``frames`` (by identity) and each flight's position among them:
+    a ranking passes one airframe for every motor, and its figures are then read once, not n times."""
+    position: dict[int, int] = {}
+    distinct: list[Airframe] = []
+    slot = np.empty(len(frames), dtype=np.int64)
+    for i, frame in enumerate(frames):
+        k = position.get(id(frame))
+        if k is None:
+            k = position[id(frame)] = len(distinct)
+            distinct.append(frame)
+        slot[i] = k
+    return distinct, slot
 
 
 def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: np.ndarray, s: FlightSettings,
@@ -205,16 +221,21 @@ def _fly_group(frames: list[Airframe], pack: MotorPack, idx: np.ndarray, added: 
                descent: bool) -> None:
     first = frames[0]
     g = _make_group(first, s)
-    dry = np.array([f.mass_kg for f in frames]) + added[idx]
-    e1e, e1n, ux, uy, uz = np.array([_basis(f.launch) for f in frames]).T
+    distinct, slot = _distinct(frames)
+
+    def column(values: list[float]) -> np.ndarray:  # one value per distinct airframe -> one per flight
+        return np.array(values, dtype=float)[slot]
+
+    dry = column([f.mass_kg for f in distinct]) + added[idx]
+    e1e, e1n, ux, uy, uz = np.array([_basis(f.launch) for f in distinct], dtype=float)[slot].T
     g.planar = g.profile is None and not np.any(uy != 0.0)  # 3-D only for a rail across the wind, or a profile
-    g.calm = g.profile is None and not any(f.launch.wind_speed_m_s for f in frames)
+    g.calm = g.profile is None and not any(f.launch.wind_speed_m_s for f in distinct)
     params = {
         "itot": pack.total_impulse_ns[idx], "m_full": dry + pack.total_mass_kg[idx],
-        "m_prop": pack.propellant_mass_kg[idx], "area": np.array([f.reference_area_m2 for f in frames]),
-        "cd": np.array([f.drag_coefficient for f in frames]), "ux": ux, "uy": uy, "uz": uz,
-        "rail_m": np.array([f.launch.rail_length_m for f in frames]),
-        "wind": np.array([f.launch.wind_speed_m_s for f in frames]), "extra": np.zeros(idx.size),
+        "m_prop": pack.propellant_mass_kg[idx], "area": column([f.reference_area_m2 for f in distinct]),
+        "cd": column([f.drag_coefficient for f in distinct]), "ux": ux, "uy": uy, "uz": uz,
+        "rail_m": column([f.launch.rail_length_m for f in distinct]),
+        "wind": column([f.launch.wind_speed_m_s for f in distinct]), "extra": np.zeros(idx.size),
         "zeros": np.zeros(idx.size),
     }
     if g.profile is not None:  # the loop turns a measured wind into each flight's axes
