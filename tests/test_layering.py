@@ -193,3 +193,13 @@ def test_version_and_help_import_no_numpy(args: list[str]) -> None:
     imported = _modules_imported_by_command(args)
     assert {"motorlib", "click"} <= imported  # the probe sees what the command imports
     assert not imported & {"numpy", "scipy", "pandas", "matplotlib", "lxml"}
+
+
+def test_match_json_imports_no_rich() -> None:
+    # Issue 16 (cold `match`): JSON to a pipe needs no terminal rendering. The bundled catalog is read-only, so
+    # opening it has nothing to say on stderr either.
+    airframe = str(PACKAGE.parent / "sample_curves" / "airframes" / "quibble-41.toml")
+    loaded = _modules_imported_by_command(["match", airframe, "--catalog", str(PACKAGE.parent / "sample_curves"),
+                                           "--target", "400", "--json"])
+    assert "numpy" in loaded  # the probe sees the ranking's imports
+    assert "rich" not in loaded
