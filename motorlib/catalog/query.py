@@ -147,29 +147,29 @@ def query(db: sqlite3.Connection, where: CatalogFilter | None = None, **kwargs: 
 
 def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
     """Time [s] and thrust [N] arrays of the given motors, straight from the index blobs (no XML parsing)."""
-    out: dict[str, tuple[np.ndarray, np.ndarray]] = {}
+    return {motor_id: (np.frombuffer(t, dtype="<f8"), np.frombuffer(f, dtype="<f8"))
+            for motor_id, (t, f) in _blobs(db, ids).items()}
+
+
+def _blobs(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[bytes, bytes]]:
+    """The time and thrust blobs of the given motors, by id (queried in chunks of bound parameters)."""
+    out: dict[str, tuple[bytes, bytes]] = {}
     wanted = list(ids)
     for start in range(0, len(wanted), _MAX_BOUND_PARAMETERS):
         chunk = wanted[start:start + _MAX_BOUND_PARAMETERS]
         sql = f"SELECT motor_id, time_blob, thrust_blob FROM motors WHERE motor_id IN ({', '.join('?' * len(chunk))})"
-        for motor_id, t, f in db.execute(sql, chunk):
-            out[motor_id] = (np.frombuffer(t, dtype="<f8"), np.frombuffer(f, dtype="<f8"))
+        out.update((motor_id, (t, f)) for motor_id, t, f in db.execute(sql, chunk))
     return out
 
 
 def motor_pack(db: sqlite3.Connection, rows: Sequence[CatalogRow], drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
     """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index: the
     blobs of all rows joined end to end and read as two arrays (no XML, no array per motor)."""
-    blobs: dict[str, tuple[bytes, bytes]] = {}
-    wanted = [r.motor_id for r in rows]
-    for start in range(0, len(wanted), _MAX_BOUND_PARAMETERS):
-        chunk = wanted[start:start + _MAX_BOUND_PARAMETERS]
-        sql = f"SELECT motor_id, time_blob, thrust_blob FROM motors WHERE motor_id IN ({', '.join('?' * len(chunk))})"
-        blobs.update((motor_id, (t, f)) for motor_id, t, f in db.execute(sql, chunk))
-    ordered = [blobs[motor_id] for motor_id in wanted]
-    return MotorPack.from_flat(
-        np.frombuffer(b"".join(t for t, _ in ordered), dtype="<f8").astype(float),
-        np.frombuffer(b"".join(f for _, f in ordered), dtype="<f8").astype(float),
+    blobs = _blobs(db, [r.motor_id for r in rows])
+    ordered = [blobs[r.motor_id] for r in rows]
+    return MotorPack.from_flat(  # from_flat copies the samples into its own arrays
+        np.frombuffer(b"".join(t for t, _ in ordered), dtype="<f8"),
+        np.frombuffer(b"".join(f for _, f in ordered), dtype="<f8"),
         np.array([len(t) // 8 for t, _ in ordered], dtype=np.int64),
         total_mass_kg=[r.total_mass_kg for r in rows],
         propellant_mass_kg=[r.propellant_mass_kg for r in rows],
