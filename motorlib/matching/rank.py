@@ -291,13 +291,14 @@ def _candidate(row: CatalogRow, fit_reasons: list[tuple[str, str]], adapter: str
     verdict = classify(codes, figures.get("apogee_m"), s.target_m, s.target_tolerance,
                        ballast_kg=figures.get("ballast_kg"), ballast_reasons=figures.get("ballast_reasons"))
     notes = notes + list(verdict.notes)
-    return Candidate(
-        motor_id=row.motor_id, handle=row.handle, designation=row.designation, maker=row.maker,
-        impulse_class=row.impulse_class, total_impulse_ns=row.total_impulse_ns, diameter_m=row.diameter_m,
-        length_m=row.length_m, fits=fits, adapter=adapter, **figures,
-        reasons=tuple(text for _, text in reasons), reason_codes=tuple(codes),
-        notes=tuple(text for _, text in notes), note_codes=tuple(code for code, _ in notes),
-        verdict=verdict.verdict, passes=verdict.passes, ballast_passes=verdict.ballast_passes)
+    values = {"motor_id": row.motor_id, "handle": row.handle, "designation": row.designation, "maker": row.maker,
+              "impulse_class": row.impulse_class, "total_impulse_ns": row.total_impulse_ns,
+              "diameter_m": row.diameter_m, "length_m": row.length_m, "fits": fits, "adapter": adapter}
+    values.update(figures)
+    values.update(reasons=tuple(text for _, text in reasons), reason_codes=tuple(codes),
+                  notes=tuple(text for _, text in notes), note_codes=tuple(code for code, _ in notes),
+                  verdict=verdict.verdict, passes=verdict.passes, ballast_passes=verdict.ballast_passes)
+    return Candidate.from_fields(values)
 
 
 def _sort_key(c: Candidate, s: MatchSettings) -> tuple[int, float, str]:

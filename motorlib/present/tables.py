@@ -23,7 +23,6 @@ from rich.markup import escape
 from rich.table import Table
 from rich.text import Text
 
-from ..files.curvefiles import CheckReport
 from ..motor.classes import class_impulse_text, impulse_class_for
 from ..motor.listing import CatalogRow
 from .display import DisplayUnits
@@ -32,6 +31,7 @@ from ..matching.verdicts import VERDICTS
 from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
 
 if TYPE_CHECKING:  # annotations only: the table module loads no flight code
+    from ..files.curvefiles import CheckReport
     from ..flight.airframe import Airframe
     from ..matching.rank import MatchResult
     from ..motor.record import MotorRecord

@@ -57,3 +57,37 @@ def test_rank_returns_records_whose_figures_match_their_flight() -> None:
     alone = simulate(frame, [motor], descent=False)
     assert c.apogee_m == pytest.approx(float(alone.apogee_m[0]), rel=1e-12)
     assert c.verdict in ("pass", "off target", "fail") and c.passes == (c.verdict == "pass")
+
+
+def _identity(**kwargs) -> dict:
+    return {**dict(motor_id="m", handle="h", designation="F10-4", maker="", impulse_class="F",
+                   total_impulse_ns=60.0, diameter_m=0.024, length_m=0.07, fits=True, adapter=None), **kwargs}
+
+
+@pytest.mark.parametrize("extra", [
+    {},
+    dict(apogee_m=412.5, chosen_delay_s=6.0, reasons=["ejection too fast"], reason_codes=["ejection-fast"],
+         verdict="fail"),
+    dict(fits=False, notes=("n",), note_codes=("adapter",), ballast_reasons=["x"], ballast_reason_codes=["y"],
+         ballast_kg=0.1, ballast_passes=False),
+])
+def test_from_fields_builds_the_same_record_as_the_constructor(extra) -> None:
+    values = _identity(**extra)
+    fast, slow = Candidate.from_fields(dict(values)), Candidate(**values)
+    assert fast == slow and type(fast) is Candidate
+    assert list(fast.__dict__) == [f.name for f in dataclasses.fields(Candidate)]  # the JSON key order
+    assert fast.as_dict() == slow.as_dict() and list(fast.as_dict()) == list(slow.as_dict())
+    assert all(type(getattr(fast, name)) is tuple for name in ("reasons", "reason_codes", "notes", "note_codes"))
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        fast.apogee_m = 1.0  # type: ignore[misc]
+
+
+def test_from_fields_refuses_what_the_constructor_refuses() -> None:
+    with pytest.raises(TypeError, match="no field 'apogee'"):
+        Candidate.from_fields(_identity(apogee=1.0))
+    values = _identity()
+    del values["maker"]
+    with pytest.raises(TypeError, match="needs field 'maker'"):
+        Candidate.from_fields(values)
+    with pytest.raises(ValueError, match="F10-4: every reason and note needs its code"):
+        Candidate.from_fields(_identity(reasons=("a",)))
