@@ -203,3 +203,15 @@ def test_match_json_imports_no_rich() -> None:
                                            "--target", "400", "--json"])
     assert "numpy" in loaded  # the probe sees the ranking's imports
     assert "rich" not in loaded
+
+
+def test_a_command_imports_no_other_command_module() -> None:
+    # Issue 16 (cold start): `motorlib match` loads cli/match.py, not the eleven other command modules.
+    code = ("import sys\nfrom motorlib.cli.main import main\n"
+            "try:\n    main(['match', '--help'])\nexcept SystemExit:\n    pass\n"
+            "print(' '.join(m for m in sys.modules if m.startswith('motorlib.cli.')), file=sys.stderr)")
+    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True, cwd=PACKAGE.parent)
+    cli_modules = set(run.stderr.split())
+    assert "motorlib.cli.match" in cli_modules  # the probe sees the command's own module
+    assert not cli_modules & {"motorlib.cli.scatter", "motorlib.cli.catalog", "motorlib.cli.fly",
+                              "motorlib.cli.calibrate", "motorlib.cli.reduce"}

@@ -1,7 +1,7 @@
 """The ``motorlib`` command line: parse options, call the library, render the result.
 
 ``cli/`` is the only package that imports click. This module holds the group :func:`main` (the console-script
-entry point) with its version option and safety epilog, and registers the commands, one module each:
+entry point) with its version option and safety epilog, and registers the commands, one module each, imported only when the command runs or the help lists them:
 ``check``, ``import`` (:mod:`.importing`), ``fly``, ``airframe``, ``descent``, ``catalog``, ``match``, ``demo``,
 ``reduce``, ``new-airframe``, ``scatter`` and ``calibrate``.
 Shared option types and catalog lookup live in :mod:`.options`, consoles and the caution in :mod:`.output`.
@@ -16,25 +16,39 @@ import gc
 
 import click
 
+import importlib
+from typing import Any
+
 from .. import __version__
-from .airframe import airframe
-from .calibrate import calibrate
-from .catalog import catalog
-from .check import check
-from .demo import demo
-from .descent import descent
-from .fly import fly
 from .group import _Group
-from .importing import import_curve
-from .match import match
-from .new_airframe import new_airframe
 from .options import _units_option
 from .output import _EPILOG
-from .reduce import reduce
-from .scatter import scatter
+
+# Each command's name -> its module (in this package) and the function there; a command's module is imported
+# only when that command runs or the help lists it, so `motorlib match` does not import the other eleven.
+_COMMANDS = {
+    "check": (".check", "check"), "import": (".importing", "import_curve"), "fly": (".fly", "fly"),
+    "airframe": (".airframe", "airframe"), "descent": (".descent", "descent"), "catalog": (".catalog", "catalog"),
+    "match": (".match", "match"), "demo": (".demo", "demo"), "reduce": (".reduce", "reduce"),
+    "new-airframe": (".new_airframe", "new_airframe"), "scatter": (".scatter", "scatter"),
+    "calibrate": (".calibrate", "calibrate"),
+}
 
 
-@click.group(cls=_Group, epilog=_EPILOG, context_settings={"help_option_names": ["-h", "--help"]})
+class _Commands(_Group):
+    """The top-level group: its commands are imported on first use (:data:`_COMMANDS`)."""
+
+    def list_commands(self, ctx: click.Context) -> list[str]:
+        return sorted(set(_COMMANDS) | set(self.commands))
+
+    def get_command(self, ctx: click.Context, cmd_name: str) -> Any:
+        if cmd_name not in self.commands and cmd_name in _COMMANDS:
+            module, attribute = _COMMANDS[cmd_name]
+            self.add_command(getattr(importlib.import_module(module, __package__), attribute), cmd_name)
+        return self.commands.get(cmd_name)
+
+
+@click.group(cls=_Commands, epilog=_EPILOG, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, prog_name="motorlib")
 @click.option("--debug", is_flag=True, envvar="MOTORLIB_DEBUG",
               help="Show the Python traceback of an internal error (a bug in motorlib).")
@@ -59,11 +73,6 @@ def main(units: str | None, debug: bool) -> None:
       motorlib check stand.csv --designation F30-6 --diameter 24mm --json
       motorlib import stand.csv -o F30.xml --designation F30-6
     """
-
-
-for _command in (check, import_curve, fly, airframe, descent, catalog, match, demo, reduce, new_airframe, scatter,
-                 calibrate):
-    main.add_command(_command)
 
 
 def run() -> None:
