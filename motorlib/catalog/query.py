@@ -126,7 +126,7 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
         data = dict(zip(COLUMNS, row_values))
         data["delays_s"] = delays
         data["findings"] = None if entries is None else [Finding(**entry) for entry in entries]
-        row = CatalogRow(**data)
+        row = CatalogRow.from_fields(data)
         if f.delay_s is not None and not offers_delay(f.delay_s, row.delays_s, row.delay_adjustable):
             continue
         out.append(row)

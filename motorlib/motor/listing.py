@@ -85,10 +85,27 @@ class CatalogRow:
 
     def __post_init__(self) -> None:
         # sequences from JSON arrive as lists: keep our own immutable copies
-        object.__setattr__(self, "delays_s", tuple(float(d) for d in self.delays_s))
-        object.__setattr__(self, "delay_adjustable", bool(self.delay_adjustable))
-        if self.findings is not None:
-            object.__setattr__(self, "findings", tuple(self.findings))
+        for name, value in _normalised(self.__dict__).items():
+            object.__setattr__(self, name, value)
+
+    @classmethod
+    def from_fields(cls, values: dict[str, object]) -> CatalogRow:
+        """The row with these field values (every field, as the index's columns give them): the same record as
+        ``CatalogRow(**values)``, built about three times faster.
+
+        For reading a catalog (5,000 rows at once): the generated ``__init__`` of a frozen dataclass sets each
+        of its 28 fields through ``object.__setattr__``. A missing or unknown field is a TypeError, as it would
+        be there.
+        """
+        if values.keys() != _FIELD_SET:
+            wrong = sorted(values.keys() ^ _FIELD_SET)[0]
+            raise TypeError(f"CatalogRow {'has no' if wrong in values else 'needs'} field {wrong!r}")
+        # declaration order, as __init__ would set them (an index row comes in that order already)
+        data = dict(values) if tuple(values) == ROW_COLUMNS else {name: values[name] for name in ROW_COLUMNS}
+        data.update(_normalised(data))
+        row = object.__new__(cls)
+        row.__dict__.update(data)  # frozen: fields are set once, here
+        return row
 
     @classmethod
     def from_record(cls, record: MotorRecord, motor_id: str, *, path: str | None = None,
@@ -131,4 +148,13 @@ class CatalogRow:
         return out
 
 
+def _normalised(values: dict[str, object]) -> dict[str, object]:
+    """The fields a row keeps in its own form: delays a tuple of floats, the flag a bool, findings a tuple."""
+    findings = values["findings"]
+    return {"delays_s": tuple(float(d) for d in values["delays_s"]),  # type: ignore[attr-defined]
+            "delay_adjustable": bool(values["delay_adjustable"]),
+            "findings": None if findings is None else tuple(findings)}  # type: ignore[arg-type]
+
+
 ROW_COLUMNS: tuple[str, ...] = tuple(f.name for f in fields(CatalogRow))
+_FIELD_SET = frozenset(ROW_COLUMNS)
