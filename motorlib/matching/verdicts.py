@@ -31,6 +31,7 @@ VERDICTS: Final = {
     "no fit": "does not fit the mount",
 }
 GOOD_VERDICTS: Final = ("pass", "pass with ballast")
+_ORDER: Final = {word: position for position, word in enumerate(VERDICTS)}
 
 # Reason codes that stop a candidate before or at liftoff (codes of :mod:`motorlib.flight.rules`) -> the verdict.
 _STOPPING: Final = {"motor-does-not-fit": "no fit", "above-class": "above class", "no-masses": "no masses",
@@ -53,8 +54,11 @@ def miss_percent(miss: float, tolerance: float) -> str:
 
 
 def verdict_order(verdict: str) -> int:
-    """Sort position of a verdict (0 = best)."""
-    return list(VERDICTS).index(verdict)
+    """Sort position of a verdict (0 = best); a ValueError for a word that is not a verdict."""
+    try:
+        return _ORDER[verdict]
+    except KeyError:
+        raise ValueError(f"{verdict!r} is not a verdict (one of {', '.join(VERDICTS)})") from None
 
 
 @dataclass(frozen=True)

@@ -215,3 +215,11 @@ def test_charts_draw_the_tolerance_asked_for(catalog: Catalog, tmp_path) -> None
     svg = match_chart(result).svg
     assert "within 30 % of the target" in svg and "within 5 %" not in svg
     assert match_plot(result, tmp_path / "m.png").read_bytes()[:4] == b"\x89PNG"
+
+
+def test_verdict_order_is_the_legend_order() -> None:
+    from motorlib.matching.verdicts import verdict_order
+
+    assert [verdict_order(word) for word in VERDICTS] == list(range(len(VERDICTS)))
+    with pytest.raises(ValueError, match="'passes' is not a verdict"):
+        verdict_order("passes")
