@@ -113,14 +113,13 @@ class Candidate:
         field through ``object.__setattr__``. Sequences are copied to tuples as ``__init__`` does; an unknown
         field name is a TypeError, as it would be there.
         """
-        unknown = values.keys() - _DEFAULTS.keys()
-        if unknown:
-            raise TypeError(f"Candidate has no field {sorted(unknown)[0]!r}")
         data = _DEFAULTS.copy()  # declaration order, which as_dict (the JSON layout) keeps
         data.update(values)
-        missing = [name for name in _REQUIRED if data[name] is _UNSET]
-        if missing:
-            raise TypeError(f"Candidate needs field {missing[0]!r}")
+        if len(data) != len(_DEFAULTS):
+            raise TypeError(f"Candidate has no field {sorted(values.keys() - _DEFAULTS.keys())[0]!r}")
+        for name in _REQUIRED:
+            if data[name] is _UNSET:
+                raise TypeError(f"Candidate needs field {name!r}")
         for name in _SEQUENCES:
             value = data[name]
             if value is not None and type(value) is not tuple:
