@@ -1,0 +1,121 @@
+"""An independent, slow reference for one flight to landing under its recovery devices: scipy's solve_ivp (DOP853).
+
+The same model as the library, in 3-D (x east, y north, z up), built from the pieces of
+tests/reference_flight.py and not from motorlib.flight: its forces (:class:`OwnModel`: own thrust and
+impulse, air, gravity, wind speed, drag) and its rail phase (:func:`rail_exit`). Here the wind blows toward
+the compass direction opposite the one it comes from, the same at every height; the rail leans toward its
+azimuth (downwind when the record gives none); each open device adds its Cd·A to the drag (or replaces the
+devices before it).
+
+Devices open as the library's recovery sequence says (motorlib/flight/recovery_phase.py): the charge at
+burnout plus ``delay_s``, apogee plus a delay, a height on the way down (at once when the rocket is already
+below it, falling), or a timer after the previous device (after liftoff for the first). Timed openings and
+thrust-curve samples end the integration segments, so no change of the forces sits inside a step; apogee,
+the altitude triggers and the ground are terminal events, located by solve_ivp's root finder on the dense
+output.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.integrate import solve_ivp
+
+from motorlib import MotorRecord
+from motorlib.flight.airframe import Airframe
+
+from .reference_flight import OwnModel, rail_exit
+
+_MAX_SEGMENT_S = 4000.0  # longer than any flight here (the library's own limit is 4,000 s of flight)
+
+
+def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None = None, *, rtol: float = 1e-10,
+                      atol: float = 1e-10, wind_exponent: float = 1 / 7, wind_floor_m: float = 1.0,
+                      vary_gravity: bool = True, wind_cap_m: float = 1000.0) -> dict:
+    """Apogee, every opening and the landing of one flight, from liftoff to the ground.
+
+    Parameters
+    ----------
+    frame, motor : the flight
+    delay_s : float or None
+        The ejection delay that fires the motor's charge [s]; None: the motor has no charge.
+
+    Returns
+    -------
+    dict
+        ``apogee_m``, ``apogee_time_s``, ``openings`` (a list of (time [s], height [m], air speed [m/s]) per
+        device opened), ``landing_time_s``, ``landing_east_m``, ``landing_north_m``, ``landing_speed_m_s``
+        (ground speed) and ``landing_descent_rate_m_s``; NaN figures when the rocket never leaves the rail.
+    """
+    model = OwnModel(frame, motor, wind_exponent=wind_exponent, wind_floor_m=wind_floor_m,
+                     vary_gravity=vary_gravity, wind_cap_m=wind_cap_m)
+    launch = frame.launch
+    downwind = launch.wind_direction_rad + math.pi
+    toward = np.array([math.sin(downwind), math.cos(downwind), 0.0])
+    azimuth = downwind if launch.rail_azimuth_rad is None else launch.rail_azimuth_rad
+    lean = launch.rail_angle_rad
+    u = np.array([math.sin(lean) * math.sin(azimuth), math.sin(lean) * math.cos(azimuth), math.cos(lean)])
+    out: dict = {"openings": [], "apogee_m": math.nan, "apogee_time_s": math.nan}
+    exit_ = rail_exit(model, u, toward, rtol=rtol, atol=atol)
+    if exit_ is None:
+        return {**out, **{k: math.nan for k in ("landing_time_s", "landing_east_m", "landing_north_m",
+                                                 "landing_speed_m_s", "landing_descent_rate_m_s")}}
+    t, s, v = exit_
+    state = np.concatenate((s * u, v * u))
+    charge_t = math.inf if delay_s is None else model.burnout_s + delay_s
+
+    def air_velocity(y: np.ndarray) -> np.ndarray:
+        return y[3:] - model.wind_m_s(y[2]) * toward
+
+    def rhs(t_: float, y: np.ndarray, extra_m2: float) -> np.ndarray:
+        rel = air_velocity(y)
+        speed = math.hypot(*rel)
+        acc = (model.thrust_n(t_) / speed - model.drag_per_v(y[2], speed, extra_m2)) / model.mass_kg(t_) * rel
+        acc[2] -= model.gravity_m_s2(y[2])
+        return np.concatenate((y[3:], acc))
+
+    def at_apogee(t_: float, y: np.ndarray, _e: float) -> float:
+        return y[5]
+
+    def on_ground(t_: float, y: np.ndarray, _e: float) -> float:
+        return y[2]
+
+    at_apogee.terminal, at_apogee.direction = True, -1
+    on_ground.terminal, on_ground.direction = True, -1
+    devices = frame.recovery_devices
+    extra, k, previous_open_t, reached = 0.0, 0, model.liftoff_s, False
+    while True:
+        device = devices[k] if k < len(devices) else None
+        falling = not math.isnan(out["apogee_time_s"])
+        opens_at, level = math.inf, None  # the next device's timed opening, or its height on the way down
+        if device is not None:
+            if device.deploy == "ejection":
+                opens_at = charge_t
+            elif device.deploy == "after":
+                opens_at = previous_open_t + device.delay_s
+            elif device.deploy == "apogee" and falling:
+                opens_at = out["apogee_time_s"] + device.delay_s
+            elif device.deploy == "altitude" and falling:
+                level = device.deploy_altitude_m
+            if reached or opens_at <= t or (level is not None and state[2] <= level):
+                out["openings"].append((t, float(state[2]), float(np.linalg.norm(air_velocity(state)))))
+                extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
+                k, previous_open_t, reached = k + 1, t, False
+                continue
+        events = [on_ground] + ([] if falling else [at_apogee])
+        if level is not None:
+            def at_level(t_: float, y: np.ndarray, _e: float, level: float = level) -> float:
+                return y[2] - level
+
+            at_level.terminal, at_level.direction = True, -1
+            events.append(at_level)
+        end = min([t + _MAX_SEGMENT_S, opens_at] + [knot for knot in model.knots if t < knot <= model.burnout_s])
+        sol = solve_ivp(rhs, (t, end), state, method="DOP853", rtol=rtol, atol=atol, args=(extra,), events=events)
+        t, state = float(sol.t[-1]), sol.y[:, -1]
+        if sol.t_events[0].size:  # the ground
+            return {**out, "landing_time_s": t, "landing_east_m": float(state[0]), "landing_north_m": float(state[1]),
+                    "landing_speed_m_s": float(math.hypot(*state[3:])), "landing_descent_rate_m_s": float(-state[5])}
+        if not falling and sol.t_events[1].size:
+            out["apogee_m"], out["apogee_time_s"] = float(state[2]), t
+        reached = level is not None and sol.t_events[-1].size > 0
