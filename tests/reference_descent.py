@@ -32,14 +32,17 @@ _MAX_SEGMENT_S = 4000.0  # longer than any flight here (the library's own limit 
 
 def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None = None, *, rtol: float = 1e-10,
                       atol: float = 1e-10, wind_exponent: float = 1 / 7, wind_floor_m: float = 1.0,
-                      vary_gravity: bool = True, wind_cap_m: float = 1000.0) -> dict:
-    """Apogee, every opening and the landing of one flight, from liftoff to the ground.
+                      vary_gravity: bool = True, wind_cap_m: float = 1000.0, start: dict | None = None) -> dict:
+    """Apogee, every opening and the landing of one flight, from liftoff (or ``start``) to the ground.
 
     Parameters
     ----------
     frame, motor : the flight
     delay_s : float or None
         The ejection delay that fires the motor's charge [s]; None: the motor has no charge.
+    start : dict, optional
+        Fly from this state, the instant the first device opened (see :func:`opening_state`), instead of
+        from liftoff: the descent alone, free of the ascent's errors.
 
     Returns
     -------
@@ -57,16 +60,26 @@ def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None
     lean = launch.rail_angle_rad
     u = np.array([math.sin(lean) * math.sin(azimuth), math.sin(lean) * math.cos(azimuth), math.cos(lean)])
     out: dict = {"openings": [], "apogee_m": math.nan, "apogee_time_s": math.nan}
-    exit_ = rail_exit(model, u, toward, rtol=rtol, atol=atol)
-    if exit_ is None:
-        return {**out, **{k: math.nan for k in ("landing_time_s", "landing_east_m", "landing_north_m",
-                                                 "landing_speed_m_s", "landing_descent_rate_m_s")}}
-    t, s, v = exit_
-    state = np.concatenate((s * u, v * u))
     charge_t = math.inf if delay_s is None else model.burnout_s + delay_s
+    devices = frame.recovery_devices
 
     def air_velocity(y: np.ndarray) -> np.ndarray:
         return y[3:] - model.wind_m_s(y[2]) * toward
+
+    if start is None:
+        exit_ = rail_exit(model, u, toward, rtol=rtol, atol=atol)
+        if exit_ is None:
+            return {**out, **{k: math.nan for k in ("landing_time_s", "landing_east_m", "landing_north_m",
+                                                     "landing_speed_m_s", "landing_descent_rate_m_s")}}
+        t, s, v = exit_
+        state = np.concatenate((s * u, v * u))
+        extra, k, previous_open_t = 0.0, 0, model.liftoff_s
+    else:
+        t = start["t"]
+        state = np.array([start[key] for key in ("east", "north", "z", "v_east", "v_north", "v_up")], dtype=float)
+        out.update(apogee_m=start["apogee_m"], apogee_time_s=start["apogee_time_s"])
+        out["openings"].append((t, float(state[2]), float(np.linalg.norm(air_velocity(state)))))
+        extra, k, previous_open_t = devices[0].drag_area_m2, 1, t
 
     def rhs(t_: float, y: np.ndarray, extra_m2: float) -> np.ndarray:
         rel = air_velocity(y)
@@ -83,8 +96,7 @@ def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None
 
     at_apogee.terminal, at_apogee.direction = True, -1
     on_ground.terminal, on_ground.direction = True, -1
-    devices = frame.recovery_devices
-    extra, k, previous_open_t, reached = 0.0, 0, model.liftoff_s, False
+    reached = False
     while True:
         device = devices[k] if k < len(devices) else None
         falling = not math.isnan(out["apogee_time_s"])
@@ -119,3 +131,24 @@ def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None
         if not falling and sol.t_events[1].size:
             out["apogee_m"], out["apogee_time_s"] = float(state[2]), t
         reached = level is not None and sol.t_events[-1].size > 0
+
+
+def opening_state(results, i: int, frame: Airframe) -> dict | None:
+    """The library's state of flight ``i`` the instant its first device opened, as ``start`` of
+    :func:`reference_descent` (east, north, up); None when no device opened.
+
+    Read from the flight's trajectory (``simulate(..., trajectories=True)``): its first row flown under a
+    device, with the speeds turned from the flight's axes (x downwind, y to its left) to east and north.
+    """
+    t_open = results.deploy_time_s[i]
+    if not np.isfinite(t_open):
+        return None
+    path = results.trajectories[i]
+    row = int(np.flatnonzero(path["descent"] & (path["time_s"] >= t_open))[0])
+    downwind = frame.launch.wind_direction_rad + math.pi
+    e1e, e1n = math.sin(downwind), math.cos(downwind)
+    vx, vy = float(path["vx_m_s"][row]), float(path["vy_m_s"][row])
+    return {"t": float(path["time_s"][row]), "east": float(path["east_m"][row]), "north": float(path["north_m"][row]),
+            "z": float(path["altitude_m"][row]), "v_east": vx * e1e - vy * e1n, "v_north": vx * e1n + vy * e1e,
+            "v_up": float(path["vz_m_s"][row]), "apogee_m": float(results.apogee_m[i]),
+            "apogee_time_s": float(results.apogee_time_s[i]) if results.apogee_time_s[i] <= t_open else math.nan}
