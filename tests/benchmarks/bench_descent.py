@@ -85,9 +85,9 @@ def _varied(n: int, cache: dict) -> None:
           f"90th percentile {np.quantile(steps, 0.9):.0f}, most {max(steps)}")
     for what, misses in (("whole flight ", whole), ("descent alone", alone)):
         miss = np.array(misses)
-        print(f"   landing vs DOP853 rtol 1e-10, {what} ({len(miss)}): point worst {miss[:, 0].max():.4f} m, "
-              f"median {1e3 * np.median(miss[:, 0]):.2f} mm; time worst {1e3 * miss[:, 1].max():.2f} ms, "
-              f"median {1e3 * np.median(miss[:, 1]):.3f} ms")
+        print(f"   landing vs DOP853 rtol 1e-10, {what} ({len(miss)}): point worst {1e3 * miss[:, 0].max():.3g} mm, "
+              f"median {1e3 * np.median(miss[:, 0]):.3g} mm; time worst {1e3 * miss[:, 1].max():.3g} ms, "
+              f"median {1e3 * np.median(miss[:, 1]):.3g} ms")
 
 
 def main() -> None:
