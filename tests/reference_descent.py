@@ -23,7 +23,7 @@ import numpy as np
 from scipy.integrate import solve_ivp
 
 from motorlib import MotorRecord
-from motorlib.flight.airframe import Airframe
+from motorlib.flight.airframe import Airframe, Recovery
 
 from .reference_flight import OwnModel, rail_exit
 
@@ -50,15 +50,14 @@ def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None
         ``apogee_m``, ``apogee_time_s``, ``openings`` (a list of (time [s], height [m], air speed [m/s]) per
         device opened), ``landing_time_s``, ``landing_east_m``, ``landing_north_m``, ``landing_speed_m_s``
         (ground speed) and ``landing_descent_rate_m_s``; NaN figures when the rocket never leaves the rail.
+
+    Notes
+    -----
+    Past 80 lines on purpose: the right-hand side and the events close over the model and the loop's state.
     """
     model = OwnModel(frame, motor, wind_exponent=wind_exponent, wind_floor_m=wind_floor_m,
                      vary_gravity=vary_gravity, wind_cap_m=wind_cap_m)
-    launch = frame.launch
-    downwind = launch.wind_direction_rad + math.pi
-    toward = np.array([math.sin(downwind), math.cos(downwind), 0.0])
-    azimuth = downwind if launch.rail_azimuth_rad is None else launch.rail_azimuth_rad
-    lean = launch.rail_angle_rad
-    u = np.array([math.sin(lean) * math.sin(azimuth), math.sin(lean) * math.cos(azimuth), math.cos(lean)])
+    toward, u = _directions(frame)
     out: dict = {"openings": [], "apogee_m": math.nan, "apogee_time_s": math.nan}
     charge_t = math.inf if delay_s is None else model.burnout_s + delay_s
     devices = frame.recovery_devices
@@ -100,16 +99,8 @@ def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None
     while True:
         device = devices[k] if k < len(devices) else None
         falling = not math.isnan(out["apogee_time_s"])
-        opens_at, level = math.inf, None  # the next device's timed opening, or its height on the way down
+        opens_at, level = _trigger(device, charge_t, previous_open_t, out["apogee_time_s"])
         if device is not None:
-            if device.deploy == "ejection":
-                opens_at = charge_t
-            elif device.deploy == "after":
-                opens_at = previous_open_t + device.delay_s
-            elif device.deploy == "apogee" and falling:
-                opens_at = out["apogee_time_s"] + device.delay_s
-            elif device.deploy == "altitude" and falling:
-                level = device.deploy_altitude_m
             if reached or opens_at <= t or (level is not None and state[2] <= level):
                 out["openings"].append((t, float(state[2]), float(np.linalg.norm(air_velocity(state)))))
                 extra = device.drag_area_m2 + (0.0 if device.replaces else extra)
@@ -131,6 +122,31 @@ def reference_descent(frame: Airframe, motor: MotorRecord, delay_s: float | None
         if not falling and sol.t_events[1].size:
             out["apogee_m"], out["apogee_time_s"] = float(state[2]), t
         reached = level is not None and sol.t_events[-1].size > 0
+
+
+def _directions(frame: Airframe) -> tuple[np.ndarray, np.ndarray]:
+    """Unit vectors (east, north, up) the wind blows toward and the rail leans along (downwind by default)."""
+    launch = frame.launch
+    downwind = launch.wind_direction_rad + math.pi
+    azimuth = downwind if launch.rail_azimuth_rad is None else launch.rail_azimuth_rad
+    lean = launch.rail_angle_rad
+    return (np.array([math.sin(downwind), math.cos(downwind), 0.0]),
+            np.array([math.sin(lean) * math.sin(azimuth), math.sin(lean) * math.cos(azimuth), math.cos(lean)]))
+
+
+def _trigger(device: Recovery | None, charge_t: float, previous_open_t: float, apogee_t: float) -> tuple[float, float | None]:
+    """When ``device`` (None: no device left) opens: its instant [s] (inf when not timed, or not yet known) and its
+    height on the way down [m] (None unless an altitude trigger past apogee); ``apogee_t`` is NaN before apogee."""
+    falling = not math.isnan(apogee_t)
+    if device is None:
+        return math.inf, None
+    if device.deploy == "ejection":
+        return charge_t, None
+    if device.deploy == "after":
+        return previous_open_t + device.delay_s, None
+    if device.deploy == "apogee":
+        return (apogee_t + device.delay_s if falling else math.inf), None
+    return math.inf, (device.deploy_altitude_m if falling else None)
 
 
 def opening_state(results, i: int, frame: Airframe) -> dict | None:
