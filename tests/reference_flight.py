@@ -4,7 +4,9 @@ Written separately from motorlib.flight: the pad wait is found with brentq, the
 rail phase integrates the 1-D motion along the rail with a terminal event at its
 end, free flight integrates the 2-D equations between thrust-curve samples
 (restarting at each sample so the kinks of the piecewise-linear thrust never sit
-inside a step) and stops at apogee with a terminal event.
+inside a step) and stops at apogee with a terminal event. The forces
+(:class:`OwnModel`) and the rail phase (:func:`rail_exit`) also serve the flight to
+landing of tests/reference_descent.py.
 
 The oracle shares no code with the library beyond the records' data (samples,
 masses, site and airframe figures): thrust, impulse, air and gravity are its own
@@ -116,96 +118,129 @@ class OwnMotor:
         return self.cumulative[k] + 0.5 * (self.f[k] + self.thrust_n(time)) * (time - self.t[k])
 
 
+class OwnModel:
+    """The forces on one (airframe, motor) flight, written here: thrust, mass, gravity, wind and drag.
+
+    The pieces every reference flight in the tests is built from (this module's ascent, and the flight to
+    landing of tests/reference_descent.py). Thrust is the curve's (0 N after burnout), mass falls with the
+    impulse delivered, gravity is inverse-square in the height above sea level (or g0), the wind's speed
+    follows the power law from its floor to its cap, drag is ½·ρ·|v|²·(Cd·A + ``extra_m2``) with Cd from
+    the airframe's table by Mach number (or its constant), and the rocket lifts off at the first instant
+    thrust exceeds the weight along the rail (found with brentq).
+    """
+
+    def __init__(self, frame: Airframe, motor: MotorRecord, *, wind_exponent: float = 1 / 7,
+                 wind_floor_m: float = 1.0, vary_gravity: bool = True, wind_cap_m: float = 1000.0) -> None:
+        self.frame, self.motor = frame, motor
+        self.elevation_m = frame.launch.site.elevation_m
+        self.area_m2 = math.pi * frame.diameter_m**2 / 4.0
+        self.own = OwnMotor(motor)
+        self.air = OwnAir(frame.launch.site)
+        self.wind_exponent, self.wind_floor_m, self.wind_cap_m = wind_exponent, wind_floor_m, wind_cap_m
+        self.vary_gravity = vary_gravity
+        thrust = motor.thrust_n
+        self.burnout_s = float(motor.time_s[np.flatnonzero(thrust > 0)[-1] + 1] if thrust[-1] == 0 else motor.time_s[-1])
+        # ---- pad: first time thrust exceeds weight along the rail ----
+        uz = math.cos(frame.launch.rail_angle_rad)
+
+        def margin(t: float) -> float:
+            return self.own.thrust_n(t) - self.mass_kg(t) * G0 * uz
+
+        ts = motor.time_s
+        k = next(i for i, t in enumerate(ts) if margin(t) > 0)
+        self.liftoff_s = float(ts[0] if k == 0 else brentq(margin, ts[k - 1], ts[k], xtol=1e-15, rtol=1e-15))
+        self.knots = [float(t) for t in ts if t > self.liftoff_s] + [math.inf]  # the thrust's kinks ahead
+
+    def mass_kg(self, t: float) -> float:
+        return self.frame.mass_kg + self.motor.total_mass_kg - self.motor.propellant_mass_kg * self.own.impulse_ns(t) / self.own.total_ns
+
+    def thrust_n(self, t: float) -> float:
+        return self.own.thrust_n(t) if t < self.burnout_s else 0.0
+
+    def gravity_m_s2(self, z: float) -> float:
+        return G0 * (R0 / (R0 + self.elevation_m + z)) ** 2 if self.vary_gravity else G0
+
+    def wind_m_s(self, z: float) -> float:
+        """The wind's speed at height ``z``: the power law, held below its floor and above its cap (1,000 m by
+        default, as motorlib.flight.wind)."""
+        return self.frame.launch.wind_speed_m_s * (min(max(z, self.wind_floor_m), self.wind_cap_m) / 10.0) ** self.wind_exponent
+
+    def drag_per_v(self, z: float, speed: float, extra_m2: float = 0.0) -> float:
+        """Drag force over air speed [N/(m/s)]; ``extra_m2`` is the Cd·A of the open recovery devices."""
+        frame = self.frame
+        rho, a = self.air(z)
+        cd = np.interp(speed / a, frame.drag_machs, frame.drag_cds) if frame.drag_table else frame.drag_coefficient
+        return 0.5 * rho * speed * (cd * self.area_m2 + extra_m2)
+
+
+def rail_exit(model: OwnModel, u: np.ndarray, toward: np.ndarray, *, rtol: float, atol: float,
+              method: str = "DOP853") -> tuple[float, float, float] | None:
+    """Time [s], distance along the rail [m] (its length, to the event's precision) and speed [m/s] at the
+    rail's end, or None when the rocket never leaves it.
+
+    The rail phase integrates the 1-D motion (distance, speed) along the rail's unit vector ``u`` (3 components,
+    the last one up) from liftoff, with the wind blowing along the unit vector ``toward``, restarting at every
+    thrust-curve sample, with a terminal event at the rail's end.
+    """
+    rail_m = model.frame.launch.rail_length_m
+
+    def rhs(t: float, y: np.ndarray) -> list[float]:
+        s, v = y
+        rel = v * u - model.wind_m_s(s * u[2]) * toward
+        d = model.drag_per_v(s * u[2], math.hypot(*rel))
+        return [v, (model.own.thrust_n(t) - d * float(rel @ u)) / model.mass_kg(t) - model.gravity_m_s2(s * u[2]) * u[2]]
+
+    def at_end(t: float, y: np.ndarray) -> float:
+        return y[0] - rail_m
+
+    at_end.terminal, at_end.direction = True, 1
+    y, t = np.array([0.0, 0.0]), model.liftoff_s
+    for t_next in model.knots:
+        end = min(t_next, t + 100.0)
+        sol = solve_ivp(rhs, (t, end), y, method=method, rtol=rtol, atol=atol, events=at_end)
+        if sol.t_events[0].size:
+            return float(sol.t_events[0][0]), float(sol.y_events[0][0][0]), float(sol.y_events[0][0][1])
+        t, y = end, sol.y[:, -1]
+    return None
+
+
 def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10, atol: float = 1e-10,
                      method: str = "DOP853", wind_exponent: float = 1 / 7, wind_floor_m: float = 1.0,
                      vary_gravity: bool = True, wind_cap_m: float = 1000.0) -> dict[str, float]:
-    site = frame.launch.site
+    """Liftoff, rail exit and apogee of one flight in 2-D (x downwind, z up; the rail leans downwind)."""
+    model = OwnModel(frame, motor, wind_exponent=wind_exponent, wind_floor_m=wind_floor_m,
+                     vary_gravity=vary_gravity, wind_cap_m=wind_cap_m)
     theta = frame.launch.rail_angle_rad
     ux, uz = math.sin(theta), math.cos(theta)
-    area = math.pi * frame.diameter_m**2 / 4.0
-    own = OwnMotor(motor)
-    itot = own.total_ns
-    dry = frame.mass_kg
-    air = OwnAir(site)
-
-    def mass(t: float) -> float:
-        return dry + motor.total_mass_kg - motor.propellant_mass_kg * own.impulse_ns(t) / itot
-
-    def gravity(z: float) -> float:
-        return G0 * (R0 / (R0 + site.elevation_m + z)) ** 2 if vary_gravity else G0
-
-    def wind(z: float) -> float:
-        # the power law, held above its cap (1,000 m by default, as motorlib.flight.wind)
-        return frame.launch.wind_speed_m_s * (min(max(z, wind_floor_m), wind_cap_m) / 10.0) ** wind_exponent
-
-    def drag_per_v(z: float, speed: float) -> float:
-        rho, a = air(z)
-        cd = np.interp(speed / a, frame.drag_machs, frame.drag_cds) if frame.drag_table else frame.drag_coefficient
-        return 0.5 * rho * speed * cd * area
-
-    # ---- pad: first time thrust exceeds weight along the rail ----
-    def margin(t: float) -> float:
-        return own.thrust_n(t) - mass(t) * G0 * uz
-
-    ts = motor.time_s
-    margins = [margin(t) for t in ts]
-    k = next(i for i, m in enumerate(margins) if m > 0)
-    t0 = ts[0] if k == 0 else brentq(margin, ts[k - 1], ts[k], xtol=1e-15, rtol=1e-15)
-    knots = [float(t) for t in ts if t > t0] + [math.inf]
-    burnout = motor.time_s[np.flatnonzero(motor.thrust_n > 0)[-1] + 1] if motor.thrust_n[-1] == 0 else motor.time_s[-1]
-
-    # ---- rail: state (s, v) along the rail ----
-    def rail_rhs(t: float, y: np.ndarray) -> list[float]:
-        s, v = y
-        z = s * uz
-        vrx, vrz = v * ux - wind(z), v * uz
-        speed = math.hypot(vrx, vrz)
-        d = drag_per_v(z, speed)
-        a = (own.thrust_n(t) - d * (vrx * ux + vrz * uz)) / mass(t) - gravity(z) * uz
-        return [v, a]
-
-    def at_rail_end(t: float, y: np.ndarray) -> float:
-        return y[0] - frame.launch.rail_length_m
-
-    at_rail_end.terminal, at_rail_end.direction = True, 1
-    y = np.array([0.0, 0.0])
-    t = t0
-    exit_t = exit_v = None
-    for t_next in knots:
-        end = min(t_next, t + 100.0)
-        sol = solve_ivp(rail_rhs, (t, end), y, method=method, rtol=rtol, atol=atol, events=at_rail_end)
-        if sol.t_events[0].size:
-            exit_t, y_exit = float(sol.t_events[0][0]), sol.y_events[0][0]
-            exit_v = float(y_exit[1])
-            break
-        t, y = end, sol.y[:, -1]
-    if exit_t is None:
+    t0, burnout = model.liftoff_s, model.burnout_s
+    exit_ = rail_exit(model, np.array([ux, 0.0, uz]), np.array([1.0, 0.0, 0.0]), rtol=rtol, atol=atol, method=method)
+    if exit_ is None:
         return {"rail_exit_speed_m_s": math.nan, "apogee_m": math.nan, "apogee_time_s": math.nan,
-                "liftoff_time_s": float(t0), "rail_exit_time_s": math.nan, "apogee_downrange_m": math.nan}
-    state = np.array([y_exit[0] * ux, y_exit[0] * uz, exit_v * ux, exit_v * uz])
+                "liftoff_time_s": t0, "rail_exit_time_s": math.nan, "apogee_downrange_m": math.nan}
+    exit_t, exit_s, exit_v = exit_
+    state = np.array([exit_s * ux, exit_s * uz, exit_v * ux, exit_v * uz])
 
     # ---- free flight ----
     def rhs(t: float, y: np.ndarray) -> list[float]:
         x, z, vx, vz = y
-        vrx, vrz = vx - wind(z), vz
+        vrx, vrz = vx - model.wind_m_s(z), vz
         speed = math.hypot(vrx, vrz)
-        m = mass(t)
-        thrust = own.thrust_n(t) if t < burnout else 0.0
-        along = thrust / speed - drag_per_v(z, speed)
-        return [vx, vz, along * vrx / m, along * vrz / m - gravity(z)]
+        along = model.thrust_n(t) / speed - model.drag_per_v(z, speed)
+        m = model.mass_kg(t)
+        return [vx, vz, along * vrx / m, along * vrz / m - model.gravity_m_s2(z)]
 
     def at_apogee(t: float, y: np.ndarray) -> float:
         return y[3]
 
     at_apogee.terminal, at_apogee.direction = True, -1
     t = exit_t
-    free_knots = [k_ for k_ in knots if k_ > exit_t and k_ <= burnout] + [math.inf]
+    free_knots = [k_ for k_ in model.knots if k_ > exit_t and k_ <= burnout] + [math.inf]
     for t_next in free_knots:
         end = t_next if math.isfinite(t_next) else t + 2000.0
         sol = solve_ivp(rhs, (t, end), state, method=method, rtol=rtol, atol=atol, events=at_apogee)
         if sol.t_events[0].size:
             return {"apogee_m": float(sol.y_events[0][0][1]), "apogee_time_s": float(sol.t_events[0][0]),
-                    "rail_exit_speed_m_s": exit_v, "rail_exit_time_s": exit_t, "liftoff_time_s": float(t0),
+                    "rail_exit_speed_m_s": exit_v, "rail_exit_time_s": exit_t, "liftoff_time_s": t0,
                     "apogee_downrange_m": float(sol.y_events[0][0][0])}
         t, state = end, sol.y[:, -1]
     raise RuntimeError("no apogee")

@@ -1,7 +1,8 @@
 """Synthetic motors and airframes for accuracy tests and benchmarks (invented, demo data only).
 
 Impulses log-uniform from 0.6 to 10 000 N·s, burn times 0.2-6 s, five curve shapes
-with random jitter; airframes sized so that average thrust-to-weight is 3-15.
+with random jitter; airframes sized so that average thrust-to-weight is 3-15;
+:func:`descent_flights` adds sites, winds from any direction and recovery sequences.
 """
 
 from __future__ import annotations
@@ -9,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from motorlib import MotorRecord
-from motorlib.flight.airframe import Airframe, Launch
+from motorlib.flight.airframe import Airframe, Launch, Recovery
 from motorlib.flight.atmosphere import Site
 from motorlib.units import STANDARD_GRAVITY_M_S2
 
@@ -66,3 +67,52 @@ def synthetic_flights(n: int, seed: int = 7) -> tuple[list[Airframe], list[Motor
     motors = synthetic_motors(n, seed)
     rng = np.random.default_rng(seed + 1)
     return [airframe_for(m, rng) for m in motors], motors
+
+
+_RHO_SEA_KG_M3 = 1.225  # sea-level density of the U.S. Standard Atmosphere 1976, for sizing devices only
+
+
+def descent_flights(n: int, seed: int = 5) -> tuple[list[Airframe], list[MotorRecord], np.ndarray]:
+    """n varied flights to landing under recovery devices, and the ejection delay [s] each is flown with.
+
+    Motors and airframes as :func:`synthetic_flights` (seed ``seed``), on sites 0-2,000 m high, in winds of
+    0-8 m/s from any direction, on rails leaning 0-10° toward any azimuth (3-D flights), with one of four
+    recovery sequences in turn: a parachute at the motor's charge (a delay drawn from the motor's: a short
+    one opens while the rocket still climbs, a long one while it falls fast); a parachute or a streamer at
+    apogee, or 1-3 s after it; a drogue at apogee and a main at 100-400 m on the way down; a drogue at apogee
+    and, 5-20 s later, a main that replaces it. Devices are sized for sea-level descent rates of 3-8 m/s
+    (parachutes and mains), 10-20 m/s (streamers) and 15-30 m/s (drogues).
+    """
+    motors = synthetic_motors(n, seed)
+    rng = np.random.default_rng(seed + 1)
+    frames, delays = [], np.empty(n)
+    for i, motor in enumerate(motors):
+        base = airframe_for(motor, rng, wind=False)
+        mass = base.mass_kg + motor.total_mass_kg - motor.propellant_mass_kg
+
+        def area(low: float, high: float) -> float:  # Cd·A for a descent rate drawn from [low, high] m/s
+            return 2.0 * mass * STANDARD_GRAVITY_M_S2 / (_RHO_SEA_KG_M3 * rng.uniform(low, high) ** 2)
+
+        kind = i % 4
+        delays[i] = float(rng.choice(motor.delays_s))
+        if kind == 0:
+            devices = (Recovery("parachute", "ejection", area(3.0, 8.0)),)
+        elif kind == 1:
+            streamer = rng.random() < 0.3
+            devices = (Recovery("streamer" if streamer else "parachute", "apogee",
+                                area(10.0, 20.0) if streamer else area(3.0, 8.0),
+                                delay_s=float(rng.choice([0.0, rng.uniform(1.0, 3.0)]))),)
+        elif kind == 2:
+            devices = (Recovery("drogue", "apogee", area(15.0, 30.0)),
+                       Recovery("main", "altitude", area(3.0, 8.0), deploy_altitude_m=float(rng.uniform(100.0, 400.0))))
+        else:
+            devices = (Recovery("drogue", "apogee", area(15.0, 30.0)),
+                       Recovery("main", "after", area(3.0, 8.0), delay_s=float(rng.uniform(5.0, 20.0)), replaces=True))
+        launch = Launch(rail_length_m=base.launch.rail_length_m, rail_angle_rad=base.launch.rail_angle_rad,
+                        site=Site(elevation_m=float(rng.uniform(0.0, 2000.0))),
+                        wind_speed_m_s=float(rng.uniform(0.0, 8.0)),
+                        wind_direction_rad=float(rng.uniform(0.0, 2.0 * np.pi)),
+                        rail_azimuth_rad=float(rng.uniform(0.0, 2.0 * np.pi)))
+        frames.append(Airframe(name=f"descent-{i}", mass_kg=base.mass_kg, diameter_m=base.diameter_m,
+                               drag_coefficient=base.drag_coefficient, launch=launch, recovery_sequence=devices))
+    return frames, motors, delays

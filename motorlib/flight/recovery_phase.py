@@ -193,16 +193,19 @@ def _to_next_opening(fly: Callable[..., dict[str, np.ndarray]], device: Recovery
 
 
 def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.ndarray:
-    """Step after the first recovery event, bounded by the drag time scale m/(k·v).
+    """Step after the first recovery event, bounded by the drag time scale τ = m/(k·v) [s].
 
-    With k = ½ρ(Cd·A) and v = max(|v|, v_t), the time scale is v_t/g at terminal
-    speed and much shorter just after a fast deployment; RK4 is stable below
-    2.78 time scales, and ``descent_step_fraction`` keeps it accurate (``opening_step_fraction``
-    while the rocket is still much faster than terminal speed, just after an opening). A step is
-    also at most 1/30 of the time left to fall (at terminal speed, or the drag-free
-    speed at the ground when that is lower: a ballistic fall). While the motor still burns, a
-    step also ends on every thrust-curve sample; a step never passes the pass's stop time (the error
-    controller's step also bounds every step).
+    With k = ½ρ(Cd·A) and v = max(|v|, v_t), τ is v_t/g at terminal speed and much shorter
+    just after a fast deployment. Drag's Jacobian -(k/m)(|v|·I + v·vᵀ/|v|) has its largest
+    eigenvalue -2k|v|/m = -2/τ, so a step of ``descent_step_fraction``·τ puts h·λ at twice
+    that fraction, inside RK4's real stability interval (-2.785, 0) for fractions below 1.39
+    (``opening_step_fraction`` while the rocket is still much faster than terminal speed, just
+    after an opening, or climbs under a device). The first step of a pass is also at most 1/30 of
+    the time left to fall (at terminal speed, or the drag-free speed at the ground when that is
+    lower: a ballistic fall), so that a short fall starts with a short step; from then on the error
+    controller's step bounds it (issue 16: applied to every step, this rule made the last tens of
+    metres of every descent crawl, about 150 of the 460 steps of a parachute descent). While the motor
+    still burns, a step also ends on every thrust-curve sample; a step never passes the pass's stop time.
     """
     z, vz = a["z"], a["vz"]
     rho, _, grav, shape = g.lookup(z)
@@ -217,15 +220,18 @@ def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.
     time_scale = mass / (k * speed)
     # Fine steps while far from the terminal state: just after an opening, or still climbing under a device.
     # The numbers below are our choice, no published source and no recorded tuning: 1.2 v_t marks "far from
-    # terminal"; a step covers at most 1/30 of the time left to fall, so that every fall takes at least 30
-    # steps; the 1 m and 0.1 m/s floors keep the time left finite at the ground; 1e-5 s to 10 s bound a step.
-    # The descent matches the closed-form fall (tests/reference/check_values.md#fall-from-rest) to 1e-4 with
-    # them (tests/flight/test_integrate.py).
+    # terminal"; the first step covers at most 1/30 of the time left to fall; the 1 m and 0.1 m/s floors keep the
+    # time left finite at the ground; 1e-5 s to 10 s bound a step. The descent matches the closed-form fall
+    # (tests/reference/check_values.md#fall-from-rest) to 1e-4 with them (tests/flight/test_integrate.py).
     fraction = np.where((air_speed > 1.2 * v_t) | (vz > 0.0), s.opening_step_fraction, s.descent_step_fraction)
-    # the fall speed to expect: terminal under a device, at most the drag-free speed at the ground
-    v_fall = np.minimum(v_t, np.sqrt(vz * vz + 2.0 * grav * np.maximum(z, 0.0)))
-    time_left = np.maximum(z, 1.0) / np.maximum(np.maximum(-vz, v_fall), 0.1)
-    h = np.clip(np.minimum(fraction * time_scale, time_left / 30.0), 1e-5, 10.0)
+    h = fraction * time_scale
+    first = np.isinf(a["h"])  # the controller has no step yet: the pass's first
+    if first.any():
+        # the fall speed to expect: terminal under a device, at most the drag-free speed at the ground
+        v_fall = np.minimum(v_t, np.sqrt(vz * vz + 2.0 * grav * np.maximum(z, 0.0)))
+        time_left = np.maximum(z, 1.0) / np.maximum(np.maximum(-vz, v_fall), 0.1)
+        h = np.where(first, np.minimum(h, time_left / 30.0), h)
+    h = np.clip(h, 1e-5, 10.0)
     t = a["t"]
     if a["burning"].any():
         h = np.where(a["burning"], np.minimum(h, a["seg_end"] - t), h)
