@@ -132,7 +132,7 @@ class Catalog:
         if not self.root.exists():
             if read_only or not create:
                 raise CatalogError(f"{self.root}: no such catalog folder")
-            self.root.mkdir(parents=True)
+            self.root.mkdir(parents=True, exist_ok=True)  # another writer may make it between the check and here
         if not self.root.is_dir():
             raise CatalogError(f"{self.root}: not a folder")
         self._index = CatalogIndex(self.root, read_only=self.read_only, settings=self.settings, lock=self._lock,

@@ -108,6 +108,24 @@ def test_four_concurrent_writers_lose_nothing(tmp_path: Path) -> None:
     assert not catalog.problems
 
 
+def test_two_processes_creating_one_new_catalog_both_open_it(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # Issue 16: writers racing on a catalog folder that does not exist yet. Each saw no folder and made it; the
+    # one that came second failed with FileExistsError. Reproduced deterministically: another process makes the
+    # folder between this one's check and its mkdir.
+    root = tmp_path / "new" / "catalog"
+    make_folder = Path.mkdir
+
+    def the_other_process_wins(self: Path, *args: object, **kwargs: object) -> None:
+        if self == root and not root.exists():
+            make_folder(root, parents=True)  # the other writer, a moment earlier
+        make_folder(self, *args, **kwargs)
+
+    monkeypatch.setattr(Path, "mkdir", the_other_process_wins)
+    catalog = Catalog(root)
+    assert len(catalog) == 0 and (root / ".motorlib" / "index.sqlite").is_file()
+    catalog.close()
+
+
 def test_killed_import_leaves_whole_curves_and_a_consistent_index(tmp_path: Path) -> None:
     root = tmp_path / "crash"
     Catalog(root).close()
