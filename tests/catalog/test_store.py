@@ -117,7 +117,7 @@ def test_two_processes_creating_one_new_catalog_both_open_it(tmp_path: Path, mon
 
     def the_other_process_wins(self: Path, *args: object, **kwargs: object) -> None:
         if self == root and not root.exists():
-            make_folder(root, parents=True)  # the other writer, a moment earlier
+            os.makedirs(root)  # the other writer, a moment earlier
         make_folder(self, *args, **kwargs)
 
     monkeypatch.setattr(Path, "mkdir", the_other_process_wins)
