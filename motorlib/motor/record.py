@@ -34,7 +34,7 @@ from __future__ import annotations
 import datetime as _dt
 import math
 from dataclasses import dataclass, field
-from typing import Final
+from typing import Callable, Final, TypeVar
 
 import numpy as np
 
@@ -70,6 +70,7 @@ FORMER_PROVENANCE_KINDS: Final = {
     "static-test": "own-firing",
 }
 EJECTION_STATES: Final = ("delays", "no-charge", "unknown")  # values of MotorRecord.ejection
+_T = TypeVar("_T")
 
 
 def read_only_copy(values: np.ndarray) -> np.ndarray:
@@ -228,6 +229,14 @@ class MotorRecord:
     -----
     Arrays are copied and frozen; records compare equal when every field and
     every sample is equal (exactly).
+
+    The figures of the curve (total and cumulative impulse, peak thrust, burn
+    window and average thrust at each threshold asked for, impulse class) are
+    computed once per record and remembered: a catalog add or index rebuild
+    reads each several times (checks, label, row). They depend on the samples
+    only, which refuse writes; the memo is tied to the two sample arrays
+    themselves, so a copy given other arrays (``dataclasses.replace``, or
+    ``copy.copy`` and ``object.__setattr__``) computes its own.
     """
 
     designation: str
@@ -299,6 +308,17 @@ class MotorRecord:
 
     __hash__ = None  # type: ignore[assignment]  # mutable-looking arrays: not hashable
 
+    def _figure(self, key: object, compute: Callable[[], _T]) -> _T:
+        """``compute()``, remembered under ``key`` for as long as the record keeps its sample arrays."""
+        memo = self.__dict__.get("_figures")
+        if memo is None or memo[0] is not self.time_s or memo[1] is not self.thrust_n:
+            memo = (self.time_s, self.thrust_n, {})
+            object.__setattr__(self, "_figures", memo)  # not a field: no effect on eq, repr or replace
+        figures = memo[2]
+        if key not in figures:
+            figures[key] = compute()
+        return figures[key]
+
     @property
     def ejection(self) -> str:
         """``"delays"`` (delays listed), ``"no-charge"`` (plugged or booster) or ``"unknown"`` (not given)."""
@@ -314,11 +334,12 @@ class MotorRecord:
     @property
     def total_impulse_ns(self) -> float:
         """Total impulse [N·s]: the exact integral of the piecewise-linear curve."""
-        return float(np.trapezoid(self.thrust_n, self.time_s))
+        return self._figure("total_impulse_ns", lambda: float(np.trapezoid(self.thrust_n, self.time_s)))
 
     def cumulative_impulse_ns(self) -> np.ndarray:
-        """Impulse delivered up to each sample [N·s], shape (n_samples,), starting at 0."""
-        return cumulative_impulse_ns(self.time_s, self.thrust_n)
+        """Impulse delivered up to each sample [N·s], shape (n_samples,), starting at 0; read-only."""
+        return self._figure("cumulative_impulse_ns",
+                            lambda: read_only_copy(cumulative_impulse_ns(self.time_s, self.thrust_n)))
 
     def thrust_at_n(self, time_s: np.ndarray | float) -> np.ndarray:
         """Thrust [N] at any times [s] (linear between samples, 0 outside); vectorised."""
@@ -354,7 +375,7 @@ class MotorRecord:
     @property
     def peak_thrust_n(self) -> float:
         """Largest sampled thrust [N] (the curve's maximum: it is piecewise linear)."""
-        return float(self.thrust_n.max())
+        return self._figure("peak_thrust_n", lambda: float(self.thrust_n.max()))
 
     @property
     def peak_time_s(self) -> float:
@@ -371,7 +392,8 @@ class MotorRecord:
         """
         if not 0.0 < threshold < 1.0:
             raise ValueError(f"`threshold` must lie strictly between 0 and 1, got {threshold!r}")
-        return threshold_window_s(self.time_s, self.thrust_n, threshold * self.peak_thrust_n)
+        return self._figure(("burn_window_s", threshold),
+                            lambda: threshold_window_s(self.time_s, self.thrust_n, threshold * self.peak_thrust_n))
 
     def burn_time_s(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> float:
         """Threshold burn time [s] (see module docstring); default 5 % of peak."""
@@ -383,14 +405,18 @@ class MotorRecord:
         start, end = self.burn_window_s(threshold)
         if end <= start:
             return self.peak_thrust_n  # a single-sample spike: the window has no width
-        impulse = float(np.diff(self.impulse_at_ns(np.array([start, end])))[0])
-        return impulse / (end - start)
+
+        def average() -> float:
+            impulse = float(np.diff(self.impulse_at_ns(np.array([start, end])))[0])
+            return impulse / (end - start)
+
+        return self._figure(("average_thrust_n", threshold), average)
 
     # ---------------------------------------------------------- class and label
     @property
     def impulse_class(self) -> ImpulseClass | None:
         """The total-impulse class with percent-into-class; None above class O."""
-        return impulse_class_for(self.total_impulse_ns)
+        return self._figure("impulse_class", lambda: impulse_class_for(self.total_impulse_ns))
 
     def computed_designation(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> str:
         """Class letter plus average thrust as a label prints it (``"C6"``, ``"A1.4"``, ``"H124"``).

@@ -296,3 +296,41 @@ def test_threshold_window_interpolates_and_keeps_the_ends() -> None:
     # starting or ending above the level: the first or last sample
     assert threshold_window_s(t[1:], f[1:], 5.0) == pytest.approx((2.0, 3.75))
     assert threshold_window_s(t[:3], f[:3], 5.0) == pytest.approx((0.5, 3.0))
+
+
+def _figures(record: MotorRecord, threshold: float) -> tuple:
+    """Every remembered figure of ``record``, read through its public methods."""
+    return (record.total_impulse_ns, record.peak_thrust_n, record.burn_window_s(threshold),
+            record.average_thrust_n(threshold), record.impulse_class, record.computed_designation(threshold),
+            record.cumulative_impulse_ns().tolist())
+
+
+@given(curves(), st.sampled_from([0.05, 0.1, 0.3]))
+def test_remembered_figures_equal_a_fresh_computation(curve: MotorRecord, threshold: float) -> None:
+    # Issue 16: a record computes its figures once (catalog add and rebuild read each several times).
+    first = _figures(curve, threshold)
+    assert _figures(curve, threshold) == first  # read again: from the memo
+    fresh = MotorRecord(curve.designation, curve.time_s, curve.thrust_n)
+    assert _figures(fresh, threshold) == first
+    other = 0.2
+    assert curve.burn_window_s(other) == fresh.burn_window_s(other)  # one memo entry per threshold
+    assert curve.burn_window_s(threshold) == first[2]
+
+
+def test_remembered_figures_follow_the_samples_of_a_copy(triangle: MotorRecord) -> None:
+    import copy
+    import dataclasses
+    import pickle
+
+    assert triangle.total_impulse_ns == 5.0 and triangle.cumulative_impulse_ns()[-1] == 5.0
+    with pytest.raises(ValueError, match="read-only"):
+        triangle.cumulative_impulse_ns()[0] = 1.0  # the remembered array is shared: it refuses writes
+    doubled = dataclasses.replace(triangle, designation="C10", thrust_n=2.0 * triangle.thrust_n)
+    assert doubled.total_impulse_ns == 10.0 and doubled.peak_thrust_n == 20.0
+    copied = copy.copy(triangle)  # shares the memo until given other samples
+    object.__setattr__(copied, "thrust_n", 3.0 * triangle.thrust_n)
+    assert copied.total_impulse_ns == 15.0 and copied.average_thrust_n() == pytest.approx(3 * triangle.average_thrust_n())
+    assert triangle.total_impulse_ns == 5.0
+    again = pickle.loads(pickle.dumps(triangle))
+    assert again == triangle and _figures(again, 0.05) == _figures(triangle, 0.05)
+    assert "_figures" not in repr(triangle) and [f.name for f in dataclasses.fields(triangle)][-1] == "firing_spread"
