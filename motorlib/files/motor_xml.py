@@ -293,54 +293,87 @@ def _exact_text(value_si: float, unit_choices: tuple[tuple[str, float], ...], ki
     raise AssertionError("unreachable: the SI unit always round-trips")  # pragma: no cover
 
 
+# Characters XML 1.0 cannot carry at all (its Char production): most C0 controls, lone surrogates, U+FFFE, U+FFFF
+_NOT_XML_CHAR = re.compile("[^\t\n\r\x20-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
+_HARDWARE: Final = (  # element, record field, units the writer prefers (scale from SI), quantity kind
+    ("diameter", "diameter_m", (("mm", 1e3), ("m", 1.0)), "length"),
+    ("length", "length_m", (("mm", 1e3), ("m", 1.0)), "length"),
+    ("total-mass", "total_mass_kg", (("g", 1e3), ("kg", 1.0)), "mass"),
+    ("propellant-mass", "propellant_mass_kg", (("g", 1e3), ("kg", 1.0)), "mass"),
+)
+
+
+def _escaped(text: str, *, attribute: bool = False) -> str:
+    """``text`` as element content (or a double-quoted attribute value), escaped as libxml2 escapes it.
+
+    Raises
+    ------
+    ValueError
+        ``text`` holds a character XML cannot carry (lxml's own refusal, kept by the text writer).
+    """
+    if _NOT_XML_CHAR.search(text):
+        raise ValueError("All strings must be XML compatible: Unicode or ASCII, no NULL bytes or control characters")
+    text = text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;").replace("\r", "&#13;")
+    if attribute:
+        text = text.replace('"', "&quot;").replace("\n", "&#10;").replace("\t", "&#9;")
+    return text
+
+
 def record_to_bytes(record: MotorRecord) -> bytes:
-    """The XML document of ``record`` (UTF-8)."""
-    root = etree.Element(_Q + "motor-record", nsmap={None: _NS})
-    root.set("format-version", FORMAT_VERSION)
-    identity = etree.SubElement(root, _Q + "identity")
+    """The XML document of ``record`` (UTF-8), indented by two spaces, samples one row a line.
+
+    Written as text, element by element (an lxml tree took a third of a catalog add); the bytes are those the
+    tree writer gave, which tests/files/test_motor_xml.py keeps as the oracle (a catalog id hashes them).
+
+    Raises
+    ------
+    ValueError
+        A text field holds a character XML cannot carry (a control character, a lone surrogate).
+    """
+    lines = ["<?xml version='1.0' encoding='UTF-8'?>",
+             f'<motor-record xmlns="{_NS}" format-version="{FORMAT_VERSION}">', "  <identity>"]
     if record.maker:
-        etree.SubElement(identity, _Q + "maker").text = record.maker
-    etree.SubElement(identity, _Q + "designation").text = record.designation
-    hardware_fields = (
-        ("diameter", record.diameter_m, (("mm", 1e3), ("m", 1.0)), "length"),
-        ("length", record.length_m, (("mm", 1e3), ("m", 1.0)), "length"),
-        ("total-mass", record.total_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
-        ("propellant-mass", record.propellant_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
-    )
-    if any(value is not None for _, value, _, _ in hardware_fields):
-        hardware = etree.SubElement(root, _Q + "hardware")
-        for name, value, choices, kind in hardware_fields:
-            if value is not None:
-                text, unit = _exact_text(value, choices, kind)
-                element = etree.SubElement(hardware, _Q + name, unit=unit)
-                element.text = text
+        lines.append(f"    <maker>{_escaped(record.maker)}</maker>")
+    lines += [f"    <designation>{_escaped(record.designation)}</designation>", "  </identity>"]
+    hardware = []
+    for name, attribute, choices, kind in _HARDWARE:
+        value = getattr(record, attribute)
+        if value is not None:
+            text, unit = _exact_text(value, choices, kind)
+            hardware.append(f'    <{name} unit="{unit}">{text}</{name}>')
+    if hardware:
+        lines += ["  <hardware>", *hardware, "  </hardware>"]
     # Ejection, a tri-state: delays listed, charge="none", or no element at all (not known, from 1.1 on).
     if record.no_ejection_charge:
-        etree.SubElement(root, _Q + "ejection", charge="none")
+        lines.append('  <ejection charge="none"/>')
     elif record.delays_s or record.delay_adjustable:
-        ejection = etree.SubElement(root, _Q + "ejection", adjustable="true" if record.delay_adjustable else "false")
+        opening = f'  <ejection adjustable="{"true" if record.delay_adjustable else "false"}"'
         if record.delays_s:
-            etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(_short(d) for d in record.delays_s)
+            delays = " ".join(_short(d) for d in record.delays_s)
+            lines += [opening + ">", f'    <delays unit="s">{delays}</delays>', "  </ejection>"]
+        else:
+            lines.append(opening + "/>")
     p = record.provenance
-    provenance = etree.SubElement(root, _Q + "provenance", kind=p.kind)
+    opening = f'  <provenance kind="{_escaped(p.kind, attribute=True)}"'
     if p.date is not None:
-        provenance.set("date", p.date.isoformat())
+        opening += f' date="{p.date.isoformat()}"'
     if p.notes:
-        etree.SubElement(provenance, _Q + "notes").text = p.notes
+        lines += [opening + ">", f"    <notes>{_escaped(p.notes)}</notes>", "  </provenance>"]
+    else:
+        lines.append(opening + "/>")
     if record.firing_spread is not None:
         f = record.firing_spread
-        spread = etree.SubElement(root, _Q + "firing-spread", firings=str(f.n_firings))
+        lines.append(f'  <firing-spread firings="{f.n_firings}">')
         for name, value, unit in (("total-impulse-mean", f.total_impulse_mean_ns, "N.s"),
                                   ("total-impulse-standard-deviation", f.total_impulse_std_ns, "N.s"),
                                   ("burn-time-mean", f.burn_time_mean_s, "s"),
                                   ("burn-time-standard-deviation", f.burn_time_std_s, "s")):
-            etree.SubElement(spread, _Q + name, unit=unit).text = _short(value)
-    samples = etree.SubElement(root, _Q + "samples")
-    samples.set("time-unit", "s")
-    samples.set("thrust-unit", "N")
-    etree.indent(root, space="  ")  # before the samples text, which indent() must not touch
-    samples.text = "\n" + "\n".join(_sample_rows(record.time_s, record.thrust_n)) + "\n  "
-    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", pretty_print=True)
+            lines.append(f'    <{name} unit="{unit}">{_short(value)}</{name}>')
+        lines.append("  </firing-spread>")
+    lines.append('  <samples time-unit="s" thrust-unit="N">')
+    lines += _sample_rows(record.time_s, record.thrust_n)
+    lines += ["  </samples>", "</motor-record>", ""]
+    return "\n".join(lines).encode("utf-8")
 
 
 def readable_record_bytes(record: MotorRecord, source: str = "<record>") -> bytes:
