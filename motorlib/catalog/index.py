@@ -300,7 +300,12 @@ class CatalogIndex:
 
     def restamp(self, path: str, stat: tuple[int, int, int]) -> None:
         """Record a file's new stamp (its content is unchanged: touched, or linked to its name by the store)."""
-        self.db.execute("UPDATE files SET size = ?, mtime_ns = ?, ctime_ns = ? WHERE path = ?", (*stat, path))
+        self.restamp_all([(path, stat)])
+
+    def restamp_all(self, stamps: Sequence[tuple[str, tuple[int, int, int]]]) -> None:
+        """:meth:`restamp` for many (path, stamp) pairs, in one statement."""
+        self.db.executemany("UPDATE files SET size = ?, mtime_ns = ?, ctime_ns = ? WHERE path = ?",
+                            [(*stat, path) for path, stat in stamps])
 
     def stale_paths(self) -> list[str]:
         """Indexed files whose content no longer matches the index (hashed: changed without a new size or time)."""

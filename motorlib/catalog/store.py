@@ -262,12 +262,16 @@ class Catalog:
             with self._index.transaction():
                 yield batch
                 batch.commit()  # the files are on disk under their names before the index commits
-                for path in self._batch_paths:  # linking a file to its name changed its status-change time
-                    self._index.restamp(path, file_stamp(os.stat(self.root / path)))
+                # linking a file to its name changed its status-change time
+                root = str(self.root)
+                self._index.restamp_all([(path, file_stamp(os.stat(os.path.join(root, path))))
+                                         for path in self._batch_paths])
         finally:
             batch.discard()  # after an error: drop the staged files that never got their names
 
-    def _add_locked(self, record: MotorRecord, source: str, force: bool, batch: NewFileBatch) -> AddResult:
+    def _add_locked(self, record: MotorRecord, source: str, force: bool, batch: NewFileBatch,
+                    read_from: bytes | None = None) -> AddResult:
+        """Add one record inside ``batch``; ``read_from``: the bytes of the file it was read from, if any."""
         findings = tuple(check_record(record, self.settings))
         errors = [f for f in findings if f.severity == "error"]
         if errors and not force:
@@ -278,7 +282,8 @@ class Catalog:
             notes = f"{record.provenance.notes} {note}".strip()
             record = replace(record, provenance=replace(record.provenance, notes=notes))
         try:
-            data = readable_record_bytes(record, source)  # never write a file the catalog could not read back
+            # never write a file the catalog could not read back (bytes as read were checked on reading)
+            data = readable_record_bytes(record, source, read_from=read_from)
         except CurveError as exc:
             return AddResult(source, "refused", message=str(exc), findings=findings)
         sha256 = hashlib.sha256(data).hexdigest()
@@ -325,7 +330,7 @@ class Catalog:
         Files are added in durable batches of :data:`BATCH_SIZE` (see the module
         docstring); ``progress(1)`` is called after each file is handled.
         """
-        from ..files.curvefiles import load_curve_file
+        from ..files.curvefiles import load_curve_file_and_bytes
 
         paths = list(paths)
         results = []
@@ -336,14 +341,15 @@ class Catalog:
                     for path in paths[start:start + BATCH_SIZE]:
                         try:
                             meta = metadata(path) if callable(metadata) else metadata
-                            record = load_curve_file(path, meta, time_unit=time_unit, thrust_unit=thrust_unit)
+                            record, data = load_curve_file_and_bytes(path, meta, time_unit=time_unit,
+                                                                     thrust_unit=thrust_unit)
                         except CurveDataError as exc:
                             results.append(AddResult(str(path), "refused", message=str(exc),
                                                      findings=tuple(findings_from_problems(exc))))
                         except (MotorlibError, OSError) as exc:
                             results.append(AddResult(str(path), "unreadable", message=str(exc)))
                         else:
-                            results.append(self._add_locked(record, str(path), force, batch))
+                            results.append(self._add_locked(record, str(path), force, batch, data))
                         if progress is not None:
                             progress(1)
         return results

@@ -36,8 +36,8 @@ from ..errors import CurveDataError, CurveError, CurveSyntaxError, MotorlibError
 from .fsio import read_bounded, write_atomic
 from ..units import to_si
 
-__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "readable_record_bytes", "record_from_bytes",
-           "record_to_bytes", "write_record"]
+__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "read_record_and_bytes", "readable_record_bytes",
+           "record_from_bytes", "record_to_bytes", "write_record"]
 
 FORMAT_VERSION: Final = "1.1"  # written always, whichever 1.1 features a record uses (FORMAT.md)
 DEFAULT_MAX_BYTES: Final = 8 * 1024 * 1024  # a 100 000-sample curve is about 3 MB; anything far larger is not a curve
@@ -67,7 +67,15 @@ def read_record(path: str | os.PathLike[str], *, max_bytes: int = DEFAULT_MAX_BY
     CurveSyntaxError
         Also when the file cannot be read, is not a regular file (a pipe, a device) or is too large.
     """
-    return record_from_bytes(read_bounded(path, max_bytes, error=CurveSyntaxError), str(path), max_bytes=max_bytes)
+    return read_record_and_bytes(path, max_bytes=max_bytes)[0]
+
+
+def read_record_and_bytes(path: str | os.PathLike[str], *,
+                          max_bytes: int = DEFAULT_MAX_BYTES) -> tuple[MotorRecord, bytes]:
+    """:func:`read_record`, and the bytes of the file it read: a writer hands them to
+    :func:`readable_record_bytes` (``read_from``), which then need not parse its own document again."""
+    data = read_bounded(path, max_bytes, error=CurveSyntaxError)
+    return record_from_bytes(data, str(path), max_bytes=max_bytes), data
 
 
 def record_from_bytes(data: bytes, source: str = "<bytes>", *, max_bytes: int = DEFAULT_MAX_BYTES) -> MotorRecord:
@@ -376,12 +384,17 @@ def record_to_bytes(record: MotorRecord) -> bytes:
     return "\n".join(lines).encode("utf-8")
 
 
-def readable_record_bytes(record: MotorRecord, source: str = "<record>") -> bytes:
+def readable_record_bytes(record: MotorRecord, source: str = "<record>", *, read_from: bytes | None = None) -> bytes:
     """:func:`record_to_bytes`, checked with the reader's own limits before anything is written.
 
     Whatever motorlib writes, it reads back: the document goes through the reader's size cap, safety checks
     and XSD (a name over the schema's length, a curve too long for the cap) here, so a file the reader would
     refuse is never written.
+
+    ``read_from`` is the document ``record`` was read from by :func:`record_from_bytes` with the default size
+    limit (:func:`read_record_and_bytes` gives it), if any. When the record writes back to exactly those bytes
+    (a file in canonical form, as every catalog file is), they passed these very checks on reading and are not
+    parsed again; any other bytes are checked in full.
 
     Raises
     ------
@@ -389,6 +402,8 @@ def readable_record_bytes(record: MotorRecord, source: str = "<record>") -> byte
         Naming ``source``: what the reader would refuse.
     """
     data = record_to_bytes(record)
+    if read_from is not None and data == read_from and len(data) <= DEFAULT_MAX_BYTES:
+        return data
     try:
         _valid_tree(data, source, DEFAULT_MAX_BYTES)
     except CurveError as exc:

@@ -184,7 +184,7 @@ def test_a_failed_batch_leaves_neither_files_nor_rows(tmp_path: Path, monkeypatc
     paths = _write_synthetic(tmp_path / "in", 5, seed=4)
     calls = []
 
-    def fail_on_the_fifth(record: MotorRecord, source: str = "") -> bytes:
+    def fail_on_the_fifth(record: MotorRecord, source: str = "", **kwargs: object) -> bytes:
         calls.append(record)
         if len(calls) == 5:
             raise OSError(28, "No space left on device")

@@ -385,3 +385,28 @@ def test_the_writer_gives_the_bytes_of_the_tree_writer(record: MotorRecord, make
 
     _same_bytes_or_same_refusal(record)
     _same_bytes_or_same_refusal(replace(record, maker=maker, provenance=replace(record.provenance, notes=notes)))
+
+
+def test_bytes_already_read_are_not_parsed_again(demo_record: MotorRecord, tmp_path: Path,
+                                                 monkeypatch: pytest.MonkeyPatch) -> None:
+    # Issue 16: a catalog add read, parsed and validated each file, then parsed its own copy of the same bytes.
+    from motorlib.files import motor_xml
+
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    record, data = motor_xml.read_record_and_bytes(path)
+    assert record == demo_record and data == path.read_bytes()
+    parsed = []
+    monkeypatch.setattr(motor_xml, "_valid_tree", lambda *args: parsed.append(args))
+    assert motor_xml.readable_record_bytes(record, str(path), read_from=data) == data and not parsed
+    motor_xml.readable_record_bytes(record, str(path), read_from=data.replace(b"  ", b" "))  # not canonical
+    assert len(parsed) == 1
+
+
+def test_bytes_read_elsewhere_do_not_spare_the_checks(demo_record: MotorRecord) -> None:
+    from dataclasses import replace
+
+    from motorlib.files.motor_xml import readable_record_bytes
+
+    too_long = replace(demo_record, maker="M" * 501)  # over the schema's 500 characters
+    with pytest.raises(SchemaValidationError, match="cannot be written"):
+        readable_record_bytes(too_long, "m.xml", read_from=record_to_bytes(demo_record))
