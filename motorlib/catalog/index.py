@@ -1,7 +1,9 @@
 """The catalog's SQLite index: a cache of every curve file's metadata, metrics, findings and samples.
 
 The index lives in ``<root>/.motorlib/index.sqlite`` (in memory for a
-read-only catalog) and can always be rebuilt from the files. Opening checks
+read-only catalog) and can always be rebuilt from the files. The file readers
+(lxml) and hashlib are imported only where a file is read: opening a current
+index and reading rows and samples from it imports neither. Opening checks
 the schema version and that the tables can be read; an unusable index is
 moved aside to ``index.corrupt`` and rebuilt. :meth:`CatalogIndex.refresh`
 compares every file's size and modification time with the ``files`` table and
@@ -18,7 +20,6 @@ Tables::
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import json
 import os
 import sqlite3
@@ -28,7 +29,6 @@ from typing import Callable, ContextManager, Iterator, Sequence
 
 from ..errors import CurveError, CurveSyntaxError, MotorlibError
 from ..files.fsio import read_bounded
-from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
 from ..motor.checks import CheckSettings, Finding
 from ..motor.listing import ROW_COLUMNS, CatalogRow
 from ..motor.record import MotorRecord
@@ -267,6 +267,10 @@ class CatalogIndex:
 
     def _index_file(self, path: str, stat: tuple[int, int, int], old: tuple | None,
                     problems: list[tuple[str, str]]) -> None:
+        import hashlib  # here and not at the top: opening a current index reads no file
+
+        from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
+
         full = self.root / path
         try:
             data = read_bounded(full, DEFAULT_MAX_BYTES, error=CurveSyntaxError)
@@ -309,6 +313,10 @@ class CatalogIndex:
 
     def stale_paths(self) -> list[str]:
         """Indexed files whose content no longer matches the index (hashed: changed without a new size or time)."""
+        import hashlib
+
+        from ..files.motor_xml import DEFAULT_MAX_BYTES
+
         stale = []
         for path, sha256 in self.db.execute("SELECT path, sha256 FROM files WHERE error IS NULL").fetchall():
             try:

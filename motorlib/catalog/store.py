@@ -43,7 +43,6 @@ motors up; :class:`Catalog` delegates the index to :mod:`.index`, queries to
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import os
 import re
 from dataclasses import dataclass, replace
@@ -54,7 +53,6 @@ import numpy as np
 
 from ..errors import CatalogError, CurveDataError, CurveError, MotorlibError, MotorNotFoundError
 from ..files.fsio import NewFileBatch, slug
-from ..files.motor_xml import read_record, readable_record_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
 from ..flight.pack import MotorPack
 from ..motor.listing import CatalogRow
@@ -78,6 +76,8 @@ _SAME_NAME_SQL = "SELECT handle FROM motors WHERE lower(maker) = lower(?) AND lo
 
 def motor_id_for(data: bytes) -> str:
     """The id of a catalog file: the first 16 hex digits of its SHA-256."""
+    import hashlib  # here and below, not at the top: opening a catalog for a ranking hashes nothing
+
     return hashlib.sha256(data).hexdigest()[:16]
 
 
@@ -272,6 +272,10 @@ class Catalog:
     def _add_locked(self, record: MotorRecord, source: str, force: bool, batch: NewFileBatch,
                     read_from: bytes | None = None) -> AddResult:
         """Add one record inside ``batch``; ``read_from``: the bytes of the file it was read from, if any."""
+        import hashlib
+
+        from ..files.motor_xml import readable_record_bytes  # here: opening a catalog imports no file reader
+
         findings = tuple(check_record(record, self.settings))
         errors = [f for f in findings if f.severity == "error"]
         if errors and not force:
@@ -398,6 +402,8 @@ class Catalog:
         """The full record of a motor, read from its file."""
         motor_id = self.resolve(ref)
         (path,) = self._db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
+        from ..files.motor_xml import read_record
+
         return read_record(self.root / path)
 
     def __len__(self) -> int:

@@ -14,7 +14,6 @@ import functools
 import os
 import re
 import stat
-import tempfile
 from pathlib import Path
 from typing import Callable, Sequence
 
@@ -100,6 +99,8 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
     if not overwrite and target.exists():
         raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
     folder = target.parent if str(target.parent) else Path(".")
+    import tempfile  # here, not at the top: it pulls in shutil and random, and a catalog opened to read never writes
+
     fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
     try:
         # mkstemp creates 0600; give the file the mode a plain open() would (or keep the old file's mode)

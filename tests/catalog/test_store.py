@@ -14,6 +14,7 @@ import pytest
 
 from motorlib import MotorRecord, read_record, record_to_bytes, write_record
 from motorlib.catalog import Catalog, CatalogFilter, motor_id_for, store
+from motorlib.files import motor_xml
 from motorlib.files.fsio import slug
 from motorlib.errors import CatalogError, MotorNotFoundError
 
@@ -190,7 +191,7 @@ def test_a_failed_batch_leaves_neither_files_nor_rows(tmp_path: Path, monkeypatc
             raise OSError(28, "No space left on device")
         return record_to_bytes(record)
 
-    monkeypatch.setattr(store, "readable_record_bytes", fail_on_the_fifth)
+    monkeypatch.setattr(motor_xml, "readable_record_bytes", fail_on_the_fifth)  # the store imports it when adding
     catalog = Catalog(tmp_path / "c")
     with pytest.raises(OSError, match="No space"):
         catalog.add_files(paths)
