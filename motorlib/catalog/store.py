@@ -99,6 +99,32 @@ class AddResult:
     findings: tuple[Finding, ...] = ()
 
 
+def _remove_temporary_files(root: str) -> None:
+    """Remove ``.name.*.tmp`` files (left by a killed :func:`~motorlib.files.fsio.write_atomic`) from ``root`` and
+    its maker folders (not hidden, not links).
+
+    Names only (``os.scandir``, ``os.listdir``): a file is looked at only when its name is a temporary one, so
+    that opening a catalog of thousands of curves costs a listing, not a status call per file. A folder that
+    cannot be listed is left alone (the file scan reports it).
+    """
+    try:
+        with os.scandir(root) as entries:
+            folders = [root, *(e.path for e in entries if not e.name.startswith(".") and e.is_dir(follow_symlinks=False))]
+    except OSError:
+        return
+    for folder in folders:
+        try:
+            names = os.listdir(folder)
+        except OSError:
+            continue
+        for name in names:
+            if name.startswith(".") and name.endswith(".tmp"):
+                path = os.path.join(folder, name)
+                if os.path.isfile(path):
+                    with contextlib.suppress(FileNotFoundError):
+                        os.unlink(path)
+
+
 class Catalog:
     """A motor catalog in ``root`` (see the module docstring).
 
@@ -188,11 +214,7 @@ class Catalog:
                 staging = self.root / INDEX_DIR / "staging"
                 if staging.is_dir():
                     NewFileBatch(staging).clear_staging()
-                for folder in [self.root, *(p for p in self.root.iterdir()
-                                            if p.is_dir() and not p.is_symlink() and not p.name.startswith("."))]:
-                    for entry in folder.iterdir():
-                        if entry.name.startswith(".") and entry.name.endswith(".tmp") and entry.is_file():
-                            entry.unlink(missing_ok=True)
+                _remove_temporary_files(str(self.root))
             finally:
                 fcntl.flock(handle.fileno(), fcntl.LOCK_UN)
 
