@@ -279,7 +279,7 @@ class Catalog:
         batch = NewFileBatch(self.root / INDEX_DIR / "staging")
         batch.clear_staging()  # left by a writer killed mid-batch; we hold the lock, so nobody else is staging
         self._safe_folders = set()
-        self._batch_paths: list[str] = []
+        self._batch_paths: set[str] = set()  # the catalog paths of the batch's new files
         try:
             with self._index.transaction():
                 yield batch
@@ -320,14 +320,14 @@ class Catalog:
             return AddResult(source, "duplicate", motor_id, twin[0], f"already in the catalog as {twin[0]}",
                              findings=findings)
         near = tuple(h for (h,) in self._db.execute(_SAME_NAME_SQL, (record.maker, record.designation)))
-        path = self._free_path(record, batch)
+        path = self._free_path(record)
         st = batch.write(self.root / path, data)
         self._index.insert_file(path, file_stamp(st), sha256, record, findings)
-        self._batch_paths.append(path)
+        self._batch_paths.add(path)
         message = f"same maker and designation as {', '.join(near)}" if near else ""
         return AddResult(source, "added", motor_id, path[:-4], message, near, findings)
 
-    def _free_path(self, record: MotorRecord, batch: NewFileBatch) -> str:
+    def _free_path(self, record: MotorRecord) -> str:
         """A file name for ``record`` taken neither on disk nor by the batch; creates its maker folder."""
         folder = slug(record.maker or "unknown-maker")
         stem = slug(record.designation)
@@ -340,7 +340,8 @@ class Catalog:
             self._safe_folders.add(folder)
         candidate = f"{folder}/{stem}.xml"
         n = 1
-        while (self.root / candidate) in batch or (self.root / candidate).exists():
+        root = str(self.root)  # strings, not Paths: this runs once per curve added
+        while candidate in self._batch_paths or os.path.exists(os.path.join(root, candidate)):
             n += 1
             candidate = f"{folder}/{stem}-{n}.xml"
         return candidate

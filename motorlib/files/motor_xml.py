@@ -212,13 +212,6 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
     except CurveDataError as exc:
         raise CurveDataError(source, [Problem(p.code, p.field, p.message, line=spread_el.sourceline)
                                       for p in exc.problems]) from None
-    element_lines = {
-        "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
-        "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
-        "delays_s": _child(ejection, "delays") if _child(ejection, "delays") is not None else ejection,
-        "delay_adjustable": ejection, "designation": _child(identity, "designation"),
-        "samples": samples, "time_s": samples, "thrust_n": samples,
-    }
     try:
         return MotorRecord(
             designation=_text(identity, "designation") or "",
@@ -236,6 +229,14 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
             firing_spread=spread,
         )
     except CurveDataError as exc:
+        # the element each field comes from, for the line of a problem (looked up only when there is one)
+        element_lines = {
+            "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
+            "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
+            "delays_s": _child(ejection, "delays") if _child(ejection, "delays") is not None else ejection,
+            "delay_adjustable": ejection, "designation": _child(identity, "designation"),
+            "samples": samples, "time_s": samples, "thrust_n": samples,
+        }
         located = []
         for p in exc.problems:
             if p.index is not None:
