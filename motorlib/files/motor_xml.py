@@ -134,17 +134,28 @@ def _check_root(root: etree._Element, source: str) -> None:
                                     field="/motor-record", line=root.sourceline)
 
 
-def _child(parent: etree._Element | None, name: str) -> etree._Element | None:
-    return None if parent is None else parent.find(_Q + name)
+def _children(parent: etree._Element | None) -> dict[str, etree._Element]:
+    """The child elements of ``parent`` in our namespace, by local name (the first of a name, as ``find`` gives).
+
+    One pass over the children instead of a ``find`` per name: a record has about fifteen elements to look up.
+    Elements of other namespaces (which the schema lets extensions add) are left out.
+    """
+    found: dict[str, etree._Element] = {}
+    if parent is not None:
+        for child in parent:
+            tag = child.tag
+            if isinstance(tag, str) and tag.startswith(_Q):  # comments and processing instructions have no str tag
+                found.setdefault(tag[len(_Q):], child)
+    return found
 
 
-def _text(parent: etree._Element | None, name: str) -> str | None:
-    element = _child(parent, name)
+def _text(children: dict[str, etree._Element], name: str) -> str | None:
+    element = children.get(name)
     return None if element is None else (element.text or "")
 
 
-def _quantity(parent: etree._Element | None, name: str, kind: str) -> float | None:
-    element = _child(parent, name)
+def _quantity(children: dict[str, etree._Element], name: str, kind: str) -> float | None:
+    element = children.get(name)
     if element is None:
         return None
     return to_si(float(element.text), element.get("unit"), kind, field=name)
@@ -174,24 +185,27 @@ def _firing_spread(element: etree._Element | None) -> FiringSpread | None:
     if element is None:
         return None
     # The schema fixed the units (N.s and s): the numbers are SI already.
+    values = _children(element)
     return FiringSpread(
         n_firings=int(element.get("firings")),
-        total_impulse_mean_ns=float(_text(element, "total-impulse-mean")),
-        total_impulse_std_ns=float(_text(element, "total-impulse-standard-deviation")),
-        burn_time_mean_s=float(_text(element, "burn-time-mean")),
-        burn_time_std_s=float(_text(element, "burn-time-standard-deviation")),
+        total_impulse_mean_ns=float(_text(values, "total-impulse-mean")),
+        total_impulse_std_ns=float(_text(values, "total-impulse-standard-deviation")),
+        burn_time_mean_s=float(_text(values, "burn-time-mean")),
+        burn_time_std_s=float(_text(values, "burn-time-standard-deviation")),
     )
 
 
 def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
-    identity = _child(root, "identity")
-    hardware = _child(root, "hardware")
-    ejection = _child(root, "ejection")
-    provenance_el = _child(root, "provenance")
-    spread_el = _child(root, "firing-spread")
-    samples = _child(root, "samples")
+    top = _children(root)
+    identity = _children(top.get("identity"))
+    hardware = _children(top.get("hardware"))
+    ejection = top.get("ejection")
+    ejection_children = _children(ejection)
+    provenance_el = top.get("provenance")
+    spread_el = top.get("firing-spread")
+    samples = top["samples"]  # required by the schema
     time_s, thrust_n, lines = _parse_samples(samples, source)
-    delays_text = _text(ejection, "delays")
+    delays_text = _text(ejection_children, "delays")
     delays = tuple(float(v) for v in delays_text.split()) if delays_text else ()
     adjustable = ejection is not None and ejection.get("adjustable", "false") in ("true", "1")
     if ejection is None:
@@ -205,7 +219,7 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
         provenance = Provenance(
             kind=FORMER_PROVENANCE_KINDS.get(kind, kind),
             date=_xs_date(date_text, source, provenance_el.sourceline) if date_text else None,
-            notes=_text(provenance_el, "notes") or "",
+            notes=_text(_children(provenance_el), "notes") or "",
         )
     try:
         spread = _firing_spread(spread_el)
@@ -231,10 +245,10 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
     except CurveDataError as exc:
         # the element each field comes from, for the line of a problem (looked up only when there is one)
         element_lines = {
-            "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
-            "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
-            "delays_s": _child(ejection, "delays") if _child(ejection, "delays") is not None else ejection,
-            "delay_adjustable": ejection, "designation": _child(identity, "designation"),
+            "diameter_m": hardware.get("diameter"), "length_m": hardware.get("length"),
+            "total_mass_kg": hardware.get("total-mass"), "propellant_mass_kg": hardware.get("propellant-mass"),
+            "delays_s": ejection_children.get("delays", ejection),
+            "delay_adjustable": ejection, "designation": identity.get("designation"),
             "samples": samples, "time_s": samples, "thrust_n": samples,
         }
         located = []
