@@ -519,6 +519,18 @@ MAX_THRUST_N: Final = 1e8
 MAX_TIME_S: Final = 1e5
 
 
+def _samples_are_sound(time_s: np.ndarray, thrust_n: np.ndarray) -> bool:
+    """True when :func:`_problems_in_detail` would find nothing in 1-D samples of one length (at least two).
+
+    A NaN makes every comparison with the minimum or maximum false, and an infinity is out of range, so
+    finiteness needs no pass of its own.
+    """
+    time_min, time_max = time_s.min(), time_s.max()
+    thrust_min, thrust_max = thrust_n.min(), thrust_n.max()
+    return bool(0.0 <= time_min and time_max <= MAX_TIME_S and 0.0 <= thrust_min and 0.0 < thrust_max <= MAX_THRUST_N
+                and (np.diff(time_s) > 0.0).all())
+
+
 def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     """Every broken invariant of a sampled curve, with the first offending sample index.
 
@@ -532,6 +544,14 @@ def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
                         f"time and thrust must be 1-D of one length, got shapes {time_s.shape} and {thrust_n.shape}")]
     if time_s.size < MIN_SAMPLES:
         return [Problem("too-few-samples", "samples", f"at least {MIN_SAMPLES} samples are needed, got {time_s.size}")]
+    if _samples_are_sound(time_s, thrust_n):  # the usual case, settled in a few reductions
+        return problems
+    return _problems_in_detail(time_s, thrust_n)
+
+
+def _problems_in_detail(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
+    """The problems of :func:`sample_problems` in 1-D samples of one length (at least two), each located."""
+    problems: list[Problem] = []
 
     def first(mask: np.ndarray) -> int | None:
         hits = np.flatnonzero(mask)
@@ -545,7 +565,8 @@ def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     elif (i := first(time_s > MAX_TIME_S)) is not None:
         problems.append(Problem("time-too-large", "time_s", f"sample {i + 1}: time {float(time_s[i])!r} s is "
                                 f"above {MAX_TIME_S:g} s, far beyond any motor's burn (a wrong timestamp?)", i))
-    if (i := first(~(np.diff(time_s) > 0.0))) is not None and np.all(np.isfinite(time_s)):
+    # only between finite times: the difference of two infinities is undefined (and numpy warns about it)
+    if np.all(np.isfinite(time_s)) and (i := first(~(np.diff(time_s) > 0.0))) is not None:
         problems.append(Problem(
             "time-not-increasing", "time_s",
             f"sample {i + 2}: time {float(time_s[i + 1])!r} s does not follow {float(time_s[i])!r} s; times must strictly increase",
