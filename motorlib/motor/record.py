@@ -24,7 +24,8 @@ proportion to the impulse delivered so far: ``m(t) = m0 - mp * I(t) / I_total``.
 
 The curve arithmetic every module shares lives here with the record it describes: the cumulative trapezoid
 (:func:`cumulative_impulse_ns`, also the flight's pack and the stability code) and the threshold window
-(:func:`threshold_window_s`, also the test-stand reduction). That puts the module a little past 500 lines.
+(:func:`threshold_window_s`, also the test-stand reduction), and the record remembers its figures
+(issue 16: a catalog add reads each several times). That puts the module near 600 lines.
 
 numpy only (no scipy: the flight path imports this module).
 """
