@@ -109,7 +109,8 @@ def _remove_temporary_files(root: str) -> None:
     """
     try:
         with os.scandir(root) as entries:
-            folders = [root, *(e.path for e in entries if not e.name.startswith(".") and e.is_dir(follow_symlinks=False))]
+            folders = [root, *(e.path for e in entries
+                               if not e.name.startswith(".") and e.is_dir(follow_symlinks=False))]
     except OSError:
         return
     for folder in folders:
