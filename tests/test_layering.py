@@ -215,3 +215,34 @@ def test_a_command_imports_no_other_command_module() -> None:
     assert "motorlib.cli.match" in cli_modules  # the probe sees the command's own module
     assert not cli_modules & {"motorlib.cli.scatter", "motorlib.cli.catalog", "motorlib.cli.fly",
                               "motorlib.cli.calibrate", "motorlib.cli.reduce"}
+
+
+def _writable_sample_catalog(root: Path) -> Path:
+    """A catalog folder holding the bundled sample curves, with a current index on disk."""
+    from motorlib.catalog import Catalog
+
+    with Catalog(root) as catalog:
+        catalog.add_files(sorted((PACKAGE.parent / "sample_curves").glob("*.xml")))
+    return root
+
+
+def test_opening_a_catalog_for_a_ranking_imports_no_file_reader(tmp_path: Path) -> None:
+    # Issue 16 (cold `match`): a current index answers everything a ranking asks (rows, and the motor pack from
+    # its blobs); the XML reader (lxml) is for curve files, and no file is read.
+    root = _writable_sample_catalog(tmp_path / "catalog")
+    statement = (
+        "from motorlib.catalog import Catalog\n"
+        f"catalog = Catalog({str(root)!r})\n"
+        "rows = catalog.rows(findings=False)\n"
+        "assert len(rows) > 20 and catalog.motor_pack(rows).n_motors == len(rows)\n"
+    )
+    loaded = _modules_after_import(statement)
+    assert {"numpy", "sqlite3"} <= loaded  # the probe sees what the reads import
+    assert "lxml" not in loaded
+
+
+def test_match_from_a_current_catalog_imports_no_file_reader(tmp_path: Path) -> None:
+    root = _writable_sample_catalog(tmp_path / "catalog")
+    airframe = str(PACKAGE.parent / "sample_curves" / "airframes" / "quibble-41.toml")
+    loaded = _modules_imported_by_command(["match", airframe, "--catalog", str(root), "--target", "400", "--json"])
+    assert "numpy" in loaded and "lxml" not in loaded

@@ -1,7 +1,9 @@
 """The catalog's SQLite index: a cache of every curve file's metadata, metrics, findings and samples.
 
 The index lives in ``<root>/.motorlib/index.sqlite`` (in memory for a
-read-only catalog) and can always be rebuilt from the files. Opening checks
+read-only catalog) and can always be rebuilt from the files. The file readers
+(lxml) and hashlib are imported only where a file is read: opening a current
+index and reading rows and samples from it imports neither. Opening checks
 the schema version and that the tables can be read; an unusable index is
 moved aside to ``index.corrupt`` and rebuilt. :meth:`CatalogIndex.refresh`
 compares every file's size and modification time with the ``files`` table and
@@ -18,17 +20,16 @@ Tables::
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import json
 import os
 import sqlite3
+from operator import itemgetter
 from stat import S_ISREG
 from pathlib import Path
 from typing import Callable, ContextManager, Iterator, Sequence
 
 from ..errors import CurveError, CurveSyntaxError, MotorlibError
 from ..files.fsio import read_bounded
-from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
 from ..motor.checks import CheckSettings, Finding
 from ..motor.listing import ROW_COLUMNS, CatalogRow
 from ..motor.record import MotorRecord
@@ -56,7 +57,7 @@ def create_schema(db: sqlite3.Connection) -> None:
     db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
 
 
-def scan_files(root: Path, problems: list[tuple[str, str]] | None = None) -> dict[str, tuple[int, int]]:
+def scan_files(root: Path, problems: list[tuple[str, str]] | None = None) -> dict[str, tuple[int, int, int]]:
     """Every curve file under ``root`` (hidden files and folders skipped): relative path -> its stamp.
 
     A stamp is (size, mtime_ns, ctime_ns): the status-change time moves whenever a file is written or
@@ -66,7 +67,7 @@ def scan_files(root: Path, problems: list[tuple[str, str]] | None = None) -> dic
     ``*.xml`` that are not regular files (a dangling link, a pipe, a device) are appended to ``problems`` as
     (full path, reason) and left out, so that no reader ever opens them.
     """
-    found: dict[str, tuple[int, int]] = {}
+    found: dict[str, tuple[int, int, int]] = {}
     pending = [(str(root), "")]  # (folder, its path relative to root with a trailing "/")
     while pending:
         folder, prefix = pending.pop()
@@ -97,7 +98,7 @@ def scan_files(root: Path, problems: list[tuple[str, str]] | None = None) -> dic
                 if problems is not None:
                     problems.append((entry.path, "not a regular file (a pipe, device or socket); skipped"))
                 continue
-            found[prefix + name] = file_stamp(st)
+            found[prefix + name] = (st.st_size, st.st_mtime_ns, st.st_ctime_ns)  # file_stamp(st), inlined
     return found
 
 
@@ -248,13 +249,20 @@ class CatalogIndex:
             Whether the index knew any file before (False for a new index).
         """
         on_disk = scan_files(self.root, problems)
-        known = {row[0]: row[1:] for row in
-                 self.db.execute("SELECT path, size, mtime_ns, ctime_ns, sha256, error FROM files")}
-        removed = [p for p in known if p not in on_disk]
-        changed = [p for p, stat in on_disk.items() if p not in known or tuple(known[p][:3]) != stat]
-        for path, row in known.items():  # files that failed before stay reported, without re-reading
-            if path in on_disk and path not in changed and row[4]:
-                problems.append((str(self.root / path), row[4]))
+        # the stamps alone (a current index compares them and reads nothing else); hashes only for changed files
+        rows = self.db.execute("SELECT path, size, mtime_ns, ctime_ns FROM files").fetchall()
+        known = dict(zip(map(itemgetter(0), rows), map(itemgetter(1, 2, 3), rows)))  # path -> file_stamp
+        if known == on_disk:
+            removed: list[str] = []
+            changed: list[str] = []
+        else:
+            removed = [p for p in known if p not in on_disk]
+            changed = [p for p, stamp in on_disk.items() if known.get(p) != stamp]
+        failed = self.db.execute("SELECT path, error FROM files WHERE error IS NOT NULL").fetchall()
+        if failed:  # files that failed before stay reported, without re-reading
+            again = set(changed)
+            problems += [(str(self.root / path), error) for path, error in failed
+                         if path in on_disk and path not in again]
         if not removed and not changed:
             return 0, 0, bool(known)
         with self.transaction():
@@ -262,11 +270,17 @@ class CatalogIndex:
                 self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
                 self.db.execute("DELETE FROM files WHERE path = ?", (path,))
             for path in changed:
-                self._index_file(path, on_disk[path], known.get(path), problems)
+                old = self.db.execute("SELECT sha256, error FROM files WHERE path = ?", (path,)).fetchone()
+                self._index_file(path, on_disk[path], old, problems)
         return len(changed), len(removed), bool(known)
 
-    def _index_file(self, path: str, stat: tuple[int, int, int], old: tuple | None,
+    def _index_file(self, path: str, stat: tuple[int, int, int], old: tuple[str, str | None] | None,
                     problems: list[tuple[str, str]]) -> None:
+        """(Re)index one file whose stamp changed; ``old`` is its former (sha256, error) row, if any."""
+        import hashlib  # here and not at the top: opening a current index reads no file
+
+        from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
+
         full = self.root / path
         try:
             data = read_bounded(full, DEFAULT_MAX_BYTES, error=CurveSyntaxError)
@@ -274,7 +288,7 @@ class CatalogIndex:
             problems.append((str(full), exc.problem if isinstance(exc, CurveError) else str(exc)))
             return
         digest = hashlib.sha256(data).hexdigest()
-        if old is not None and old[3] == digest and not old[4]:  # touched, not changed
+        if old is not None and old[0] == digest and not old[1]:  # touched, not changed
             self.restamp(path, stat)
             return
         motor_id = digest[:16]
@@ -300,10 +314,19 @@ class CatalogIndex:
 
     def restamp(self, path: str, stat: tuple[int, int, int]) -> None:
         """Record a file's new stamp (its content is unchanged: touched, or linked to its name by the store)."""
-        self.db.execute("UPDATE files SET size = ?, mtime_ns = ?, ctime_ns = ? WHERE path = ?", (*stat, path))
+        self.restamp_all([(path, stat)])
+
+    def restamp_all(self, stamps: Sequence[tuple[str, tuple[int, int, int]]]) -> None:
+        """:meth:`restamp` for many (path, stamp) pairs, in one statement."""
+        self.db.executemany("UPDATE files SET size = ?, mtime_ns = ?, ctime_ns = ? WHERE path = ?",
+                            [(*stat, path) for path, stat in stamps])
 
     def stale_paths(self) -> list[str]:
         """Indexed files whose content no longer matches the index (hashed: changed without a new size or time)."""
+        import hashlib
+
+        from ..files.motor_xml import DEFAULT_MAX_BYTES
+
         stale = []
         for path, sha256 in self.db.execute("SELECT path, sha256 FROM files WHERE error IS NULL").fetchall():
             try:

@@ -27,6 +27,10 @@ __all__ = ["SORT_KEYS", "CatalogFilter", "load_samples", "motor_pack", "parse_cl
 
 SORT_KEYS = tuple(c for c in COLUMNS if c not in ("findings", "notes", "delays_s", "path"))
 _MAX_BOUND_PARAMETERS = 900  # below SQLite's default limit on bound parameters per statement (999)
+# Blobs are read in one pass over the table when more than half the motors are wanted: measured on 5,000
+# synthetic motors, a pass costs about as much as looking up 2,000 to 2,500 of them by id, and 0.7 times as
+# much as looking up all of them.
+_SCAN_ABOVE_SHARE = 2
 
 
 @dataclass(frozen=True)
@@ -152,9 +156,19 @@ def load_samples(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[
 
 
 def _blobs(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[bytes, bytes]]:
-    """The time and thrust blobs of the given motors, by id (queried in chunks of bound parameters)."""
+    """The time and thrust blobs of the given motors, by id.
+
+    Most of the motors (a ranking of the whole catalog): one pass over the table, reading its pages in order;
+    fewer: looked up by id, in chunks of bound parameters.
+    """
     out: dict[str, tuple[bytes, bytes]] = {}
     wanted = list(ids)
+    if len(wanted) * _SCAN_ABOVE_SHARE > db.execute("SELECT count(*) FROM motors").fetchone()[0]:
+        chosen = set(wanted)
+        for motor_id, t, f in db.execute("SELECT motor_id, time_blob, thrust_blob FROM motors"):
+            if motor_id in chosen:
+                out[motor_id] = (t, f)
+        return out
     for start in range(0, len(wanted), _MAX_BOUND_PARAMETERS):
         chunk = wanted[start:start + _MAX_BOUND_PARAMETERS]
         sql = f"SELECT motor_id, time_blob, thrust_blob FROM motors WHERE motor_id IN ({', '.join('?' * len(chunk))})"

@@ -43,7 +43,6 @@ motors up; :class:`Catalog` delegates the index to :mod:`.index`, queries to
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import os
 import re
 from dataclasses import dataclass, replace
@@ -54,7 +53,6 @@ import numpy as np
 
 from ..errors import CatalogError, CurveDataError, CurveError, MotorlibError, MotorNotFoundError
 from ..files.fsio import NewFileBatch, slug
-from ..files.motor_xml import read_record, readable_record_bytes
 from ..motor.checks import CheckSettings, Finding, check_record, findings_from_problems
 from ..flight.pack import MotorPack
 from ..motor.listing import CatalogRow
@@ -78,6 +76,8 @@ _SAME_NAME_SQL = "SELECT handle FROM motors WHERE lower(maker) = lower(?) AND lo
 
 def motor_id_for(data: bytes) -> str:
     """The id of a catalog file: the first 16 hex digits of its SHA-256."""
+    import hashlib  # here and below, not at the top: opening a catalog for a ranking hashes nothing
+
     return hashlib.sha256(data).hexdigest()[:16]
 
 
@@ -97,6 +97,33 @@ class AddResult:
     message: str = ""
     near_duplicates: tuple[str, ...] = ()
     findings: tuple[Finding, ...] = ()
+
+
+def _remove_temporary_files(root: str) -> None:
+    """Remove ``.name.*.tmp`` files (left by a killed :func:`~motorlib.files.fsio.write_atomic`) from ``root`` and
+    its maker folders (not hidden, not links).
+
+    Names only (``os.scandir``, ``os.listdir``): a file is looked at only when its name is a temporary one, so
+    that opening a catalog of thousands of curves costs a listing, not a status call per file. A folder that
+    cannot be listed is left alone (the file scan reports it).
+    """
+    try:
+        with os.scandir(root) as entries:
+            folders = [root, *(e.path for e in entries
+                               if not e.name.startswith(".") and e.is_dir(follow_symlinks=False))]
+    except OSError:
+        return
+    for folder in folders:
+        try:
+            names = os.listdir(folder)
+        except OSError:
+            continue
+        for name in names:
+            if name.startswith(".") and name.endswith(".tmp"):
+                path = os.path.join(folder, name)
+                if os.path.isfile(path):
+                    with contextlib.suppress(FileNotFoundError):
+                        os.unlink(path)
 
 
 class Catalog:
@@ -132,7 +159,7 @@ class Catalog:
         if not self.root.exists():
             if read_only or not create:
                 raise CatalogError(f"{self.root}: no such catalog folder")
-            self.root.mkdir(parents=True)
+            self.root.mkdir(parents=True, exist_ok=True)  # another writer may make it between the check and here
         if not self.root.is_dir():
             raise CatalogError(f"{self.root}: not a folder")
         self._index = CatalogIndex(self.root, read_only=self.read_only, settings=self.settings, lock=self._lock,
@@ -188,11 +215,7 @@ class Catalog:
                 staging = self.root / INDEX_DIR / "staging"
                 if staging.is_dir():
                     NewFileBatch(staging).clear_staging()
-                for folder in [self.root, *(p for p in self.root.iterdir()
-                                            if p.is_dir() and not p.is_symlink() and not p.name.startswith("."))]:
-                    for entry in folder.iterdir():
-                        if entry.name.startswith(".") and entry.name.endswith(".tmp") and entry.is_file():
-                            entry.unlink(missing_ok=True)
+                _remove_temporary_files(str(self.root))
             finally:
                 fcntl.flock(handle.fileno(), fcntl.LOCK_UN)
 
@@ -257,17 +280,25 @@ class Catalog:
         batch = NewFileBatch(self.root / INDEX_DIR / "staging")
         batch.clear_staging()  # left by a writer killed mid-batch; we hold the lock, so nobody else is staging
         self._safe_folders = set()
-        self._batch_paths: list[str] = []
+        self._batch_paths: set[str] = set()  # the catalog paths of the batch's new files
         try:
             with self._index.transaction():
                 yield batch
                 batch.commit()  # the files are on disk under their names before the index commits
-                for path in self._batch_paths:  # linking a file to its name changed its status-change time
-                    self._index.restamp(path, file_stamp(os.stat(self.root / path)))
+                # linking a file to its name changed its status-change time
+                root = str(self.root)
+                self._index.restamp_all([(path, file_stamp(os.stat(os.path.join(root, path))))
+                                         for path in self._batch_paths])
         finally:
             batch.discard()  # after an error: drop the staged files that never got their names
 
-    def _add_locked(self, record: MotorRecord, source: str, force: bool, batch: NewFileBatch) -> AddResult:
+    def _add_locked(self, record: MotorRecord, source: str, force: bool, batch: NewFileBatch,
+                    read_from: bytes | None = None) -> AddResult:
+        """Add one record inside ``batch``; ``read_from``: the bytes of the file it was read from, if any."""
+        import hashlib
+
+        from ..files.motor_xml import readable_record_bytes  # here: opening a catalog imports no file reader
+
         findings = tuple(check_record(record, self.settings))
         errors = [f for f in findings if f.severity == "error"]
         if errors and not force:
@@ -278,7 +309,8 @@ class Catalog:
             notes = f"{record.provenance.notes} {note}".strip()
             record = replace(record, provenance=replace(record.provenance, notes=notes))
         try:
-            data = readable_record_bytes(record, source)  # never write a file the catalog could not read back
+            # never write a file the catalog could not read back (bytes as read were checked on reading)
+            data = readable_record_bytes(record, source, read_from=read_from)
         except CurveError as exc:
             return AddResult(source, "refused", message=str(exc), findings=findings)
         sha256 = hashlib.sha256(data).hexdigest()
@@ -289,14 +321,14 @@ class Catalog:
             return AddResult(source, "duplicate", motor_id, twin[0], f"already in the catalog as {twin[0]}",
                              findings=findings)
         near = tuple(h for (h,) in self._db.execute(_SAME_NAME_SQL, (record.maker, record.designation)))
-        path = self._free_path(record, batch)
+        path = self._free_path(record)
         st = batch.write(self.root / path, data)
         self._index.insert_file(path, file_stamp(st), sha256, record, findings)
-        self._batch_paths.append(path)
+        self._batch_paths.add(path)
         message = f"same maker and designation as {', '.join(near)}" if near else ""
         return AddResult(source, "added", motor_id, path[:-4], message, near, findings)
 
-    def _free_path(self, record: MotorRecord, batch: NewFileBatch) -> str:
+    def _free_path(self, record: MotorRecord) -> str:
         """A file name for ``record`` taken neither on disk nor by the batch; creates its maker folder."""
         folder = slug(record.maker or "unknown-maker")
         stem = slug(record.designation)
@@ -309,7 +341,8 @@ class Catalog:
             self._safe_folders.add(folder)
         candidate = f"{folder}/{stem}.xml"
         n = 1
-        while (self.root / candidate) in batch or (self.root / candidate).exists():
+        root = str(self.root)  # strings, not Paths: this runs once per curve added
+        while candidate in self._batch_paths or os.path.exists(os.path.join(root, candidate)):
             n += 1
             candidate = f"{folder}/{stem}-{n}.xml"
         return candidate
@@ -325,7 +358,7 @@ class Catalog:
         Files are added in durable batches of :data:`BATCH_SIZE` (see the module
         docstring); ``progress(1)`` is called after each file is handled.
         """
-        from ..files.curvefiles import load_curve_file
+        from ..files.curvefiles import load_curve_file_and_bytes
 
         paths = list(paths)
         results = []
@@ -336,14 +369,15 @@ class Catalog:
                     for path in paths[start:start + BATCH_SIZE]:
                         try:
                             meta = metadata(path) if callable(metadata) else metadata
-                            record = load_curve_file(path, meta, time_unit=time_unit, thrust_unit=thrust_unit)
+                            record, data = load_curve_file_and_bytes(path, meta, time_unit=time_unit,
+                                                                     thrust_unit=thrust_unit)
                         except CurveDataError as exc:
                             results.append(AddResult(str(path), "refused", message=str(exc),
                                                      findings=tuple(findings_from_problems(exc))))
                         except (MotorlibError, OSError) as exc:
                             results.append(AddResult(str(path), "unreadable", message=str(exc)))
                         else:
-                            results.append(self._add_locked(record, str(path), force, batch))
+                            results.append(self._add_locked(record, str(path), force, batch, data))
                         if progress is not None:
                             progress(1)
         return results
@@ -392,6 +426,8 @@ class Catalog:
         """The full record of a motor, read from its file."""
         motor_id = self.resolve(ref)
         (path,) = self._db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
+        from ..files.motor_xml import read_record
+
         return read_record(self.root / path)
 
     def __len__(self) -> int:

@@ -16,10 +16,10 @@ from .motor_csv import CurveMetadata, record_from_csv
 from ..motor.record import MotorRecord
 from .bundled import bundled_dir
 from ..errors import CurveDataError, CurveError, MotorlibError
-from .motor_xml import read_record
+from .motor_xml import read_record_and_bytes
 
 __all__ = ["CURVE_SUFFIXES", "CheckReport", "check_file", "find_curve_files", "load_curve_file",
-           "sample_catalog_dir"]
+           "load_curve_file_and_bytes", "sample_catalog_dir"]
 
 CURVE_SUFFIXES: Final = (".xml", ".csv")
 
@@ -36,11 +36,24 @@ def load_curve_file(
 
     ``notes`` receives what was assumed while reading (units a CSV file does not name).
     """
+    return load_curve_file_and_bytes(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit, notes=notes)[0]
+
+
+def load_curve_file_and_bytes(
+    path: str | os.PathLike[str],
+    metadata: CurveMetadata | None = None,
+    *,
+    time_unit: str | None = None,
+    thrust_unit: str | None = None,
+    notes: list[str] | None = None,
+) -> tuple[MotorRecord, bytes | None]:
+    """:func:`load_curve_file`, and the bytes of an XML file (None for CSV): see
+    :func:`~motorlib.files.motor_xml.read_record_and_bytes`."""
     suffix = Path(path).suffix.lower()
     if suffix == ".xml":
-        return read_record(path)
+        return read_record_and_bytes(path)
     if suffix in (".csv", ".txt", ".tsv"):
-        return record_from_csv(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit, notes=notes)
+        return record_from_csv(path, metadata, time_unit=time_unit, thrust_unit=thrust_unit, notes=notes), None
     raise CurveError(str(path), f"unknown file type {suffix!r}; expected .xml (motor record) or .csv")
 
 

@@ -99,7 +99,7 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
     if not overwrite and target.exists():
         raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
     folder = target.parent if str(target.parent) else Path(".")
-    import tempfile  # here, not at start-up: opening a catalog to read it writes nothing (tempfile costs ~10 ms)
+    import tempfile  # here, not at the top: it pulls in shutil and random, and a catalog opened to read never writes
 
     fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
     try:

@@ -36,8 +36,8 @@ from ..errors import CurveDataError, CurveError, CurveSyntaxError, MotorlibError
 from .fsio import read_bounded, write_atomic
 from ..units import to_si
 
-__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "readable_record_bytes", "record_from_bytes",
-           "record_to_bytes", "write_record"]
+__all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "read_record_and_bytes", "readable_record_bytes",
+           "record_from_bytes", "record_to_bytes", "write_record"]
 
 FORMAT_VERSION: Final = "1.1"  # written always, whichever 1.1 features a record uses (FORMAT.md)
 DEFAULT_MAX_BYTES: Final = 8 * 1024 * 1024  # a 100 000-sample curve is about 3 MB; anything far larger is not a curve
@@ -67,7 +67,15 @@ def read_record(path: str | os.PathLike[str], *, max_bytes: int = DEFAULT_MAX_BY
     CurveSyntaxError
         Also when the file cannot be read, is not a regular file (a pipe, a device) or is too large.
     """
-    return record_from_bytes(read_bounded(path, max_bytes, error=CurveSyntaxError), str(path), max_bytes=max_bytes)
+    return read_record_and_bytes(path, max_bytes=max_bytes)[0]
+
+
+def read_record_and_bytes(path: str | os.PathLike[str], *,
+                          max_bytes: int = DEFAULT_MAX_BYTES) -> tuple[MotorRecord, bytes]:
+    """:func:`read_record`, and the bytes of the file it read: a writer hands them to
+    :func:`readable_record_bytes` (``read_from``), which then need not parse its own document again."""
+    data = read_bounded(path, max_bytes, error=CurveSyntaxError)
+    return record_from_bytes(data, str(path), max_bytes=max_bytes), data
 
 
 def record_from_bytes(data: bytes, source: str = "<bytes>", *, max_bytes: int = DEFAULT_MAX_BYTES) -> MotorRecord:
@@ -126,17 +134,28 @@ def _check_root(root: etree._Element, source: str) -> None:
                                     field="/motor-record", line=root.sourceline)
 
 
-def _child(parent: etree._Element | None, name: str) -> etree._Element | None:
-    return None if parent is None else parent.find(_Q + name)
+def _children(parent: etree._Element | None) -> dict[str, etree._Element]:
+    """The child elements of ``parent`` in our namespace, by local name (the first of a name, as ``find`` gives).
+
+    One pass over the children instead of a ``find`` per name: a record has about fifteen elements to look up.
+    Elements of other namespaces (which the schema lets extensions add) are left out.
+    """
+    found: dict[str, etree._Element] = {}
+    if parent is not None:
+        for child in parent:
+            tag = child.tag
+            if isinstance(tag, str) and tag.startswith(_Q):  # comments and processing instructions have no str tag
+                found.setdefault(tag[len(_Q):], child)
+    return found
 
 
-def _text(parent: etree._Element | None, name: str) -> str | None:
-    element = _child(parent, name)
+def _text(children: dict[str, etree._Element], name: str) -> str | None:
+    element = children.get(name)
     return None if element is None else (element.text or "")
 
 
-def _quantity(parent: etree._Element | None, name: str, kind: str) -> float | None:
-    element = _child(parent, name)
+def _quantity(children: dict[str, etree._Element], name: str, kind: str) -> float | None:
+    element = children.get(name)
     if element is None:
         return None
     return to_si(float(element.text), element.get("unit"), kind, field=name)
@@ -166,24 +185,27 @@ def _firing_spread(element: etree._Element | None) -> FiringSpread | None:
     if element is None:
         return None
     # The schema fixed the units (N.s and s): the numbers are SI already.
+    values = _children(element)
     return FiringSpread(
         n_firings=int(element.get("firings")),
-        total_impulse_mean_ns=float(_text(element, "total-impulse-mean")),
-        total_impulse_std_ns=float(_text(element, "total-impulse-standard-deviation")),
-        burn_time_mean_s=float(_text(element, "burn-time-mean")),
-        burn_time_std_s=float(_text(element, "burn-time-standard-deviation")),
+        total_impulse_mean_ns=float(_text(values, "total-impulse-mean")),
+        total_impulse_std_ns=float(_text(values, "total-impulse-standard-deviation")),
+        burn_time_mean_s=float(_text(values, "burn-time-mean")),
+        burn_time_std_s=float(_text(values, "burn-time-standard-deviation")),
     )
 
 
 def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
-    identity = _child(root, "identity")
-    hardware = _child(root, "hardware")
-    ejection = _child(root, "ejection")
-    provenance_el = _child(root, "provenance")
-    spread_el = _child(root, "firing-spread")
-    samples = _child(root, "samples")
+    top = _children(root)
+    identity = _children(top.get("identity"))
+    hardware = _children(top.get("hardware"))
+    ejection = top.get("ejection")
+    ejection_children = _children(ejection)
+    provenance_el = top.get("provenance")
+    spread_el = top.get("firing-spread")
+    samples = top["samples"]  # required by the schema
     time_s, thrust_n, lines = _parse_samples(samples, source)
-    delays_text = _text(ejection, "delays")
+    delays_text = _text(ejection_children, "delays")
     delays = tuple(float(v) for v in delays_text.split()) if delays_text else ()
     adjustable = ejection is not None and ejection.get("adjustable", "false") in ("true", "1")
     if ejection is None:
@@ -197,20 +219,13 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
         provenance = Provenance(
             kind=FORMER_PROVENANCE_KINDS.get(kind, kind),
             date=_xs_date(date_text, source, provenance_el.sourceline) if date_text else None,
-            notes=_text(provenance_el, "notes") or "",
+            notes=_text(_children(provenance_el), "notes") or "",
         )
     try:
         spread = _firing_spread(spread_el)
     except CurveDataError as exc:
         raise CurveDataError(source, [Problem(p.code, p.field, p.message, line=spread_el.sourceline)
                                       for p in exc.problems]) from None
-    element_lines = {
-        "diameter_m": _child(hardware, "diameter"), "length_m": _child(hardware, "length"),
-        "total_mass_kg": _child(hardware, "total-mass"), "propellant_mass_kg": _child(hardware, "propellant-mass"),
-        "delays_s": _child(ejection, "delays") if _child(ejection, "delays") is not None else ejection,
-        "delay_adjustable": ejection, "designation": _child(identity, "designation"),
-        "samples": samples, "time_s": samples, "thrust_n": samples,
-    }
     try:
         return MotorRecord(
             designation=_text(identity, "designation") or "",
@@ -228,6 +243,14 @@ def _record_from_tree(root: etree._Element, source: str) -> MotorRecord:
             firing_spread=spread,
         )
     except CurveDataError as exc:
+        # the element each field comes from, for the line of a problem (looked up only when there is one)
+        element_lines = {
+            "diameter_m": hardware.get("diameter"), "length_m": hardware.get("length"),
+            "total_mass_kg": hardware.get("total-mass"), "propellant_mass_kg": hardware.get("propellant-mass"),
+            "delays_s": ejection_children.get("delays", ejection),
+            "delay_adjustable": ejection, "designation": identity.get("designation"),
+            "samples": samples, "time_s": samples, "thrust_n": samples,
+        }
         located = []
         for p in exc.problems:
             if p.index is not None:
@@ -293,62 +316,100 @@ def _exact_text(value_si: float, unit_choices: tuple[tuple[str, float], ...], ki
     raise AssertionError("unreachable: the SI unit always round-trips")  # pragma: no cover
 
 
+# Characters XML 1.0 cannot carry at all (its Char production): most C0 controls, lone surrogates, U+FFFE, U+FFFF
+_NOT_XML_CHAR = re.compile("[^\t\n\r\x20-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
+_HARDWARE: Final = (  # element, record field, units the writer prefers (scale from SI), quantity kind
+    ("diameter", "diameter_m", (("mm", 1e3), ("m", 1.0)), "length"),
+    ("length", "length_m", (("mm", 1e3), ("m", 1.0)), "length"),
+    ("total-mass", "total_mass_kg", (("g", 1e3), ("kg", 1.0)), "mass"),
+    ("propellant-mass", "propellant_mass_kg", (("g", 1e3), ("kg", 1.0)), "mass"),
+)
+
+
+def _escaped(text: str, *, attribute: bool = False) -> str:
+    """``text`` as element content (or a double-quoted attribute value), escaped as libxml2 escapes it.
+
+    Raises
+    ------
+    ValueError
+        ``text`` holds a character XML cannot carry (lxml's own refusal, kept by the text writer).
+    """
+    if _NOT_XML_CHAR.search(text):
+        raise ValueError("All strings must be XML compatible: Unicode or ASCII, no NULL bytes or control characters")
+    text = text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;").replace("\r", "&#13;")
+    if attribute:
+        text = text.replace('"', "&quot;").replace("\n", "&#10;").replace("\t", "&#9;")
+    return text
+
+
 def record_to_bytes(record: MotorRecord) -> bytes:
-    """The XML document of ``record`` (UTF-8)."""
-    root = etree.Element(_Q + "motor-record", nsmap={None: _NS})
-    root.set("format-version", FORMAT_VERSION)
-    identity = etree.SubElement(root, _Q + "identity")
+    """The XML document of ``record`` (UTF-8), indented by two spaces, samples one row a line.
+
+    Written as text, element by element (an lxml tree took a third of a catalog add); the bytes are those the
+    tree writer gave, which tests/files/test_motor_xml.py keeps as the oracle (a catalog id hashes them).
+
+    Raises
+    ------
+    ValueError
+        A text field holds a character XML cannot carry (a control character, a lone surrogate).
+    """
+    lines = ["<?xml version='1.0' encoding='UTF-8'?>",
+             f'<motor-record xmlns="{_NS}" format-version="{FORMAT_VERSION}">', "  <identity>"]
     if record.maker:
-        etree.SubElement(identity, _Q + "maker").text = record.maker
-    etree.SubElement(identity, _Q + "designation").text = record.designation
-    hardware_fields = (
-        ("diameter", record.diameter_m, (("mm", 1e3), ("m", 1.0)), "length"),
-        ("length", record.length_m, (("mm", 1e3), ("m", 1.0)), "length"),
-        ("total-mass", record.total_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
-        ("propellant-mass", record.propellant_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
-    )
-    if any(value is not None for _, value, _, _ in hardware_fields):
-        hardware = etree.SubElement(root, _Q + "hardware")
-        for name, value, choices, kind in hardware_fields:
-            if value is not None:
-                text, unit = _exact_text(value, choices, kind)
-                element = etree.SubElement(hardware, _Q + name, unit=unit)
-                element.text = text
+        lines.append(f"    <maker>{_escaped(record.maker)}</maker>")
+    lines += [f"    <designation>{_escaped(record.designation)}</designation>", "  </identity>"]
+    hardware = []
+    for name, attribute, choices, kind in _HARDWARE:
+        value = getattr(record, attribute)
+        if value is not None:
+            text, unit = _exact_text(value, choices, kind)
+            hardware.append(f'    <{name} unit="{unit}">{text}</{name}>')
+    if hardware:
+        lines += ["  <hardware>", *hardware, "  </hardware>"]
     # Ejection, a tri-state: delays listed, charge="none", or no element at all (not known, from 1.1 on).
     if record.no_ejection_charge:
-        etree.SubElement(root, _Q + "ejection", charge="none")
+        lines.append('  <ejection charge="none"/>')
     elif record.delays_s or record.delay_adjustable:
-        ejection = etree.SubElement(root, _Q + "ejection", adjustable="true" if record.delay_adjustable else "false")
+        opening = f'  <ejection adjustable="{"true" if record.delay_adjustable else "false"}"'
         if record.delays_s:
-            etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(_short(d) for d in record.delays_s)
+            delays = " ".join(_short(d) for d in record.delays_s)
+            lines += [opening + ">", f'    <delays unit="s">{delays}</delays>', "  </ejection>"]
+        else:
+            lines.append(opening + "/>")
     p = record.provenance
-    provenance = etree.SubElement(root, _Q + "provenance", kind=p.kind)
+    opening = f'  <provenance kind="{_escaped(p.kind, attribute=True)}"'
     if p.date is not None:
-        provenance.set("date", p.date.isoformat())
+        opening += f' date="{p.date.isoformat()}"'
     if p.notes:
-        etree.SubElement(provenance, _Q + "notes").text = p.notes
+        lines += [opening + ">", f"    <notes>{_escaped(p.notes)}</notes>", "  </provenance>"]
+    else:
+        lines.append(opening + "/>")
     if record.firing_spread is not None:
         f = record.firing_spread
-        spread = etree.SubElement(root, _Q + "firing-spread", firings=str(f.n_firings))
+        lines.append(f'  <firing-spread firings="{f.n_firings}">')
         for name, value, unit in (("total-impulse-mean", f.total_impulse_mean_ns, "N.s"),
                                   ("total-impulse-standard-deviation", f.total_impulse_std_ns, "N.s"),
                                   ("burn-time-mean", f.burn_time_mean_s, "s"),
                                   ("burn-time-standard-deviation", f.burn_time_std_s, "s")):
-            etree.SubElement(spread, _Q + name, unit=unit).text = _short(value)
-    samples = etree.SubElement(root, _Q + "samples")
-    samples.set("time-unit", "s")
-    samples.set("thrust-unit", "N")
-    etree.indent(root, space="  ")  # before the samples text, which indent() must not touch
-    samples.text = "\n" + "\n".join(_sample_rows(record.time_s, record.thrust_n)) + "\n  "
-    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", pretty_print=True)
+            lines.append(f'    <{name} unit="{unit}">{_short(value)}</{name}>')
+        lines.append("  </firing-spread>")
+    lines.append('  <samples time-unit="s" thrust-unit="N">')
+    lines += _sample_rows(record.time_s, record.thrust_n)
+    lines += ["  </samples>", "</motor-record>", ""]
+    return "\n".join(lines).encode("utf-8")
 
 
-def readable_record_bytes(record: MotorRecord, source: str = "<record>") -> bytes:
+def readable_record_bytes(record: MotorRecord, source: str = "<record>", *, read_from: bytes | None = None) -> bytes:
     """:func:`record_to_bytes`, checked with the reader's own limits before anything is written.
 
     Whatever motorlib writes, it reads back: the document goes through the reader's size cap, safety checks
     and XSD (a name over the schema's length, a curve too long for the cap) here, so a file the reader would
     refuse is never written.
+
+    ``read_from`` is the document ``record`` was read from by :func:`record_from_bytes` with the default size
+    limit (:func:`read_record_and_bytes` gives it), if any. When the record writes back to exactly those bytes
+    (a file in canonical form, as every catalog file is), they passed these very checks on reading and are not
+    parsed again; any other bytes are checked in full.
 
     Raises
     ------
@@ -356,6 +417,8 @@ def readable_record_bytes(record: MotorRecord, source: str = "<record>") -> byte
         Naming ``source``: what the reader would refuse.
     """
     data = record_to_bytes(record)
+    if read_from is not None and data == read_from and len(data) <= DEFAULT_MAX_BYTES:
+        return data
     try:
         _valid_tree(data, source, DEFAULT_MAX_BYTES)
     except CurveError as exc:

@@ -24,7 +24,8 @@ proportion to the impulse delivered so far: ``m(t) = m0 - mp * I(t) / I_total``.
 
 The curve arithmetic every module shares lives here with the record it describes: the cumulative trapezoid
 (:func:`cumulative_impulse_ns`, also the flight's pack and the stability code) and the threshold window
-(:func:`threshold_window_s`, also the test-stand reduction). That puts the module a little past 500 lines.
+(:func:`threshold_window_s`, also the test-stand reduction), and the record remembers its figures
+(issue 16: a catalog add reads each several times). That puts the module near 600 lines.
 
 numpy only (no scipy: the flight path imports this module).
 """
@@ -34,7 +35,7 @@ from __future__ import annotations
 import datetime as _dt
 import math
 from dataclasses import dataclass, field
-from typing import Final
+from typing import Callable, Final, TypeVar
 
 import numpy as np
 
@@ -70,6 +71,7 @@ FORMER_PROVENANCE_KINDS: Final = {
     "static-test": "own-firing",
 }
 EJECTION_STATES: Final = ("delays", "no-charge", "unknown")  # values of MotorRecord.ejection
+_T = TypeVar("_T")
 
 
 def read_only_copy(values: np.ndarray) -> np.ndarray:
@@ -228,6 +230,14 @@ class MotorRecord:
     -----
     Arrays are copied and frozen; records compare equal when every field and
     every sample is equal (exactly).
+
+    The figures of the curve (total and cumulative impulse, peak thrust, burn
+    window and average thrust at each threshold asked for, impulse class) are
+    computed once per record and remembered: a catalog add or index rebuild
+    reads each several times (checks, label, row). They depend on the samples
+    only, which refuse writes; the memo is tied to the two sample arrays
+    themselves, so a copy given other arrays (``dataclasses.replace``, or
+    ``copy.copy`` and ``object.__setattr__``) computes its own.
     """
 
     designation: str
@@ -299,6 +309,17 @@ class MotorRecord:
 
     __hash__ = None  # type: ignore[assignment]  # mutable-looking arrays: not hashable
 
+    def _figure(self, key: object, compute: Callable[[], _T]) -> _T:
+        """``compute()``, remembered under ``key`` for as long as the record keeps its sample arrays."""
+        memo = self.__dict__.get("_figures")
+        if memo is None or memo[0] is not self.time_s or memo[1] is not self.thrust_n:
+            memo = (self.time_s, self.thrust_n, {})
+            object.__setattr__(self, "_figures", memo)  # not a field: no effect on eq, repr or replace
+        figures = memo[2]
+        if key not in figures:
+            figures[key] = compute()
+        return figures[key]
+
     @property
     def ejection(self) -> str:
         """``"delays"`` (delays listed), ``"no-charge"`` (plugged or booster) or ``"unknown"`` (not given)."""
@@ -314,11 +335,12 @@ class MotorRecord:
     @property
     def total_impulse_ns(self) -> float:
         """Total impulse [N·s]: the exact integral of the piecewise-linear curve."""
-        return float(np.trapezoid(self.thrust_n, self.time_s))
+        return self._figure("total_impulse_ns", lambda: float(np.trapezoid(self.thrust_n, self.time_s)))
 
     def cumulative_impulse_ns(self) -> np.ndarray:
-        """Impulse delivered up to each sample [N·s], shape (n_samples,), starting at 0."""
-        return cumulative_impulse_ns(self.time_s, self.thrust_n)
+        """Impulse delivered up to each sample [N·s], shape (n_samples,), starting at 0; read-only."""
+        return self._figure("cumulative_impulse_ns",
+                            lambda: read_only_copy(cumulative_impulse_ns(self.time_s, self.thrust_n)))
 
     def thrust_at_n(self, time_s: np.ndarray | float) -> np.ndarray:
         """Thrust [N] at any times [s] (linear between samples, 0 outside); vectorised."""
@@ -354,7 +376,7 @@ class MotorRecord:
     @property
     def peak_thrust_n(self) -> float:
         """Largest sampled thrust [N] (the curve's maximum: it is piecewise linear)."""
-        return float(self.thrust_n.max())
+        return self._figure("peak_thrust_n", lambda: float(self.thrust_n.max()))
 
     @property
     def peak_time_s(self) -> float:
@@ -371,7 +393,8 @@ class MotorRecord:
         """
         if not 0.0 < threshold < 1.0:
             raise ValueError(f"`threshold` must lie strictly between 0 and 1, got {threshold!r}")
-        return threshold_window_s(self.time_s, self.thrust_n, threshold * self.peak_thrust_n)
+        return self._figure(("burn_window_s", threshold),
+                            lambda: threshold_window_s(self.time_s, self.thrust_n, threshold * self.peak_thrust_n))
 
     def burn_time_s(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> float:
         """Threshold burn time [s] (see module docstring); default 5 % of peak."""
@@ -383,14 +406,18 @@ class MotorRecord:
         start, end = self.burn_window_s(threshold)
         if end <= start:
             return self.peak_thrust_n  # a single-sample spike: the window has no width
-        impulse = float(np.diff(self.impulse_at_ns(np.array([start, end])))[0])
-        return impulse / (end - start)
+
+        def average() -> float:
+            impulse = float(np.diff(self.impulse_at_ns(np.array([start, end])))[0])
+            return impulse / (end - start)
+
+        return self._figure(("average_thrust_n", threshold), average)
 
     # ---------------------------------------------------------- class and label
     @property
     def impulse_class(self) -> ImpulseClass | None:
         """The total-impulse class with percent-into-class; None above class O."""
-        return impulse_class_for(self.total_impulse_ns)
+        return self._figure("impulse_class", lambda: impulse_class_for(self.total_impulse_ns))
 
     def computed_designation(self, threshold: float = DEFAULT_BURN_THRESHOLD) -> str:
         """Class letter plus average thrust as a label prints it (``"C6"``, ``"A1.4"``, ``"H124"``).
@@ -493,6 +520,18 @@ MAX_THRUST_N: Final = 1e8
 MAX_TIME_S: Final = 1e5
 
 
+def _samples_are_sound(time_s: np.ndarray, thrust_n: np.ndarray) -> bool:
+    """True when :func:`_problems_in_detail` would find nothing in 1-D samples of one length (at least two).
+
+    A NaN makes every comparison with the minimum or maximum false, and an infinity is out of range, so
+    finiteness needs no pass of its own.
+    """
+    time_min, time_max = time_s.min(), time_s.max()
+    thrust_min, thrust_max = thrust_n.min(), thrust_n.max()
+    return bool(0.0 <= time_min and time_max <= MAX_TIME_S and 0.0 <= thrust_min and 0.0 < thrust_max <= MAX_THRUST_N
+                and (np.diff(time_s) > 0.0).all())
+
+
 def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     """Every broken invariant of a sampled curve, with the first offending sample index.
 
@@ -506,6 +545,14 @@ def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
                         f"time and thrust must be 1-D of one length, got shapes {time_s.shape} and {thrust_n.shape}")]
     if time_s.size < MIN_SAMPLES:
         return [Problem("too-few-samples", "samples", f"at least {MIN_SAMPLES} samples are needed, got {time_s.size}")]
+    if _samples_are_sound(time_s, thrust_n):  # the usual case, settled in a few reductions
+        return problems
+    return _problems_in_detail(time_s, thrust_n)
+
+
+def _problems_in_detail(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
+    """The problems of :func:`sample_problems` in 1-D samples of one length (at least two), each located."""
+    problems: list[Problem] = []
 
     def first(mask: np.ndarray) -> int | None:
         hits = np.flatnonzero(mask)
@@ -519,7 +566,8 @@ def sample_problems(time_s: np.ndarray, thrust_n: np.ndarray) -> list[Problem]:
     elif (i := first(time_s > MAX_TIME_S)) is not None:
         problems.append(Problem("time-too-large", "time_s", f"sample {i + 1}: time {float(time_s[i])!r} s is "
                                 f"above {MAX_TIME_S:g} s, far beyond any motor's burn (a wrong timestamp?)", i))
-    if (i := first(~(np.diff(time_s) > 0.0))) is not None and np.all(np.isfinite(time_s)):
+    # only between finite times: the difference of two infinities is undefined (and numpy warns about it)
+    if np.all(np.isfinite(time_s)) and (i := first(~(np.diff(time_s) > 0.0))) is not None:
         problems.append(Problem(
             "time-not-increasing", "time_s",
             f"sample {i + 2}: time {float(time_s[i + 1])!r} s does not follow {float(time_s[i])!r} s; times must strictly increase",

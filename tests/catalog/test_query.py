@@ -63,3 +63,26 @@ def test_rows_without_findings_are_the_same_rows(tmp_catalog: Catalog) -> None:
         full = tmp_catalog.rows(where)
         light = tmp_catalog.rows(where, findings=False)
         assert full and [replace(r, findings=None) for r in full] == light
+
+
+@pytest.mark.parametrize("share", [0, 10**9], ids=["looked-up-by-id", "one-pass-over-the-table"])
+def test_samples_and_packs_are_the_same_however_the_blobs_are_read(
+        tmp_catalog: Catalog, share: int, monkeypatch: pytest.MonkeyPatch) -> None:
+    # Issue 16: most of the catalog is read in one pass over the table, a few motors by id; either gives each
+    # motor its own samples, in the order of the rows.
+    from motorlib.catalog import query
+
+    rows = tmp_catalog.rows()
+    few = rows[::7]
+    monkeypatch.setattr(query, "_SCAN_ABOVE_SHARE", share)
+    for chosen in (rows, few):
+        samples = tmp_catalog.samples([r.motor_id for r in chosen])
+        assert set(samples) == {r.motor_id for r in chosen}
+        for row in chosen:
+            record = tmp_catalog.get(row.motor_id)
+            np.testing.assert_array_equal(samples[row.motor_id][0], record.time_s)
+            np.testing.assert_array_equal(samples[row.motor_id][1], record.thrust_n)
+        pack = tmp_catalog.motor_pack(chosen)
+        expected = MotorPack.from_records([tmp_catalog.get(r.motor_id) for r in chosen])
+        np.testing.assert_array_equal(pack.time_s, expected.time_s)
+        np.testing.assert_array_equal(pack.thrust_n, expected.thrust_n)

@@ -14,6 +14,7 @@ import pytest
 
 from motorlib import MotorRecord, read_record, record_to_bytes, write_record
 from motorlib.catalog import Catalog, CatalogFilter, motor_id_for, store
+from motorlib.files import motor_xml
 from motorlib.files.fsio import slug
 from motorlib.errors import CatalogError, MotorNotFoundError
 
@@ -108,6 +109,24 @@ def test_four_concurrent_writers_lose_nothing(tmp_path: Path) -> None:
     assert not catalog.problems
 
 
+def test_two_processes_creating_one_new_catalog_both_open_it(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    # Issue 16: writers racing on a catalog folder that does not exist yet. Each saw no folder and made it; the
+    # one that came second failed with FileExistsError. Reproduced deterministically: another process makes the
+    # folder between this one's check and its mkdir.
+    root = tmp_path / "new" / "catalog"
+    make_folder = Path.mkdir
+
+    def the_other_process_wins(self: Path, *args: object, **kwargs: object) -> None:
+        if self == root and not root.exists():
+            os.makedirs(root)  # the other writer, a moment earlier
+        make_folder(self, *args, **kwargs)
+
+    monkeypatch.setattr(Path, "mkdir", the_other_process_wins)
+    catalog = Catalog(root)
+    assert len(catalog) == 0 and (root / ".motorlib" / "index.sqlite").is_file()
+    catalog.close()
+
+
 def test_killed_import_leaves_whole_curves_and_a_consistent_index(tmp_path: Path) -> None:
     root = tmp_path / "crash"
     Catalog(root).close()
@@ -166,13 +185,13 @@ def test_a_failed_batch_leaves_neither_files_nor_rows(tmp_path: Path, monkeypatc
     paths = _write_synthetic(tmp_path / "in", 5, seed=4)
     calls = []
 
-    def fail_on_the_fifth(record: MotorRecord, source: str = "") -> bytes:
+    def fail_on_the_fifth(record: MotorRecord, source: str = "", **kwargs: object) -> bytes:
         calls.append(record)
         if len(calls) == 5:
             raise OSError(28, "No space left on device")
         return record_to_bytes(record)
 
-    monkeypatch.setattr(store, "readable_record_bytes", fail_on_the_fifth)
+    monkeypatch.setattr(motor_xml, "readable_record_bytes", fail_on_the_fifth)  # the store imports it when adding
     catalog = Catalog(tmp_path / "c")
     with pytest.raises(OSError, match="No space"):
         catalog.add_files(paths)

@@ -7,6 +7,7 @@ from pathlib import Path
 
 import pytest
 from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 from lxml import etree
 
 from motorlib import (
@@ -24,6 +25,7 @@ from motorlib.files.schema import schema_path
 from motorlib.motor.record import FORMER_PROVENANCE_KINDS, PROVENANCE_KINDS
 
 from ..conftest import full_records
+from ..synthetic import synthetic_motors
 
 
 @given(full_records())
@@ -282,3 +284,129 @@ def test_written_1_1_files_validate_against_the_xsd(fixture_dir: Path, name: str
 def test_a_later_minor_version_is_read_like_1_1(fixture_dir: Path) -> None:
     data = (fixture_dir / "v1_1_unknown_delays.xml").read_bytes().replace(b'"1.1"', b'"1.7"')
     assert record_from_bytes(data).ejection == "unknown"
+
+
+def _tree_record_to_bytes(record: MotorRecord) -> bytes:
+    """The writer as it was before issue 16, through an lxml tree: the oracle the text writer must match byte
+    for byte (every catalog id is a hash of these bytes)."""
+    from motorlib.files.motor_xml import _Q, _NS, _exact_text, _sample_rows, _short
+
+    root = etree.Element(_Q + "motor-record", nsmap={None: _NS})
+    root.set("format-version", FORMAT_VERSION)
+    identity = etree.SubElement(root, _Q + "identity")
+    if record.maker:
+        etree.SubElement(identity, _Q + "maker").text = record.maker
+    etree.SubElement(identity, _Q + "designation").text = record.designation
+    hardware_fields = (
+        ("diameter", record.diameter_m, (("mm", 1e3), ("m", 1.0)), "length"),
+        ("length", record.length_m, (("mm", 1e3), ("m", 1.0)), "length"),
+        ("total-mass", record.total_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
+        ("propellant-mass", record.propellant_mass_kg, (("g", 1e3), ("kg", 1.0)), "mass"),
+    )
+    if any(value is not None for _, value, _, _ in hardware_fields):
+        hardware = etree.SubElement(root, _Q + "hardware")
+        for name, value, choices, kind in hardware_fields:
+            if value is not None:
+                text, unit = _exact_text(value, choices, kind)
+                etree.SubElement(hardware, _Q + name, unit=unit).text = text
+    if record.no_ejection_charge:
+        etree.SubElement(root, _Q + "ejection", charge="none")
+    elif record.delays_s or record.delay_adjustable:
+        ejection = etree.SubElement(root, _Q + "ejection", adjustable="true" if record.delay_adjustable else "false")
+        if record.delays_s:
+            etree.SubElement(ejection, _Q + "delays", unit="s").text = " ".join(_short(d) for d in record.delays_s)
+    p = record.provenance
+    provenance = etree.SubElement(root, _Q + "provenance", kind=p.kind)
+    if p.date is not None:
+        provenance.set("date", p.date.isoformat())
+    if p.notes:
+        etree.SubElement(provenance, _Q + "notes").text = p.notes
+    if record.firing_spread is not None:
+        f = record.firing_spread
+        spread = etree.SubElement(root, _Q + "firing-spread", firings=str(f.n_firings))
+        for name, value, unit in (("total-impulse-mean", f.total_impulse_mean_ns, "N.s"),
+                                  ("total-impulse-standard-deviation", f.total_impulse_std_ns, "N.s"),
+                                  ("burn-time-mean", f.burn_time_mean_s, "s"),
+                                  ("burn-time-standard-deviation", f.burn_time_std_s, "s")):
+            etree.SubElement(spread, _Q + name, unit=unit).text = _short(value)
+    samples = etree.SubElement(root, _Q + "samples")
+    samples.set("time-unit", "s")
+    samples.set("thrust-unit", "N")
+    etree.indent(root, space="  ")
+    samples.text = "\n" + "\n".join(_sample_rows(record.time_s, record.thrust_n)) + "\n  "
+    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", pretty_print=True)
+
+
+def _same_bytes_or_same_refusal(record: MotorRecord) -> None:
+    try:
+        expected = _tree_record_to_bytes(record)
+    except ValueError:  # a character XML cannot carry (a control character, a lone surrogate)
+        with pytest.raises(ValueError):
+            record_to_bytes(record)
+        return
+    assert record_to_bytes(record) == expected
+
+
+def test_the_writer_gives_the_bytes_of_the_tree_writer_for_every_sample_and_fixture(
+        sample_curve_paths: list[Path], fixture_dir: Path) -> None:
+    # Issue 16: the text writer replaced an lxml tree; a catalog id is the hash of these bytes, so not one may change.
+    paths = [*sample_curve_paths, *sorted(fixture_dir.glob("*.xml"))]
+    n_read = 0
+    for path in paths:
+        try:
+            record = read_record(path)
+        except (CurveSyntaxError, SchemaValidationError, CurveDataError):
+            continue  # a fixture of a broken file
+        _same_bytes_or_same_refusal(record)
+        n_read += 1
+    assert n_read >= len(sample_curve_paths) + 10
+    for record in synthetic_motors(40, seed=16):  # the benchmark's curves: every shape, hardware and delay mix
+        _same_bytes_or_same_refusal(record)
+
+
+_AWKWARD = ["&", "<", ">", '"', "'", "]]>", "a & b < c > d", "\r", "a\r\nb", "\n", "\t", " x ", "   ", "\x7f",
+            "\x85", "\u2028", "\u00e9\u00df\u4e2d", "\U0001f680", "&amp;", "<notes>", "\x01", "\x00", "\x0b", "\x1f",
+            "\ud800", "\ufffe", "\uffff", "\ufffd", "\ue000", "\U0010ffff"]
+
+
+@pytest.mark.parametrize("text", _AWKWARD)
+def test_the_writer_escapes_text_as_the_tree_writer_did(demo_record: MotorRecord, text: str) -> None:
+    from dataclasses import replace
+
+    for record in (replace(demo_record, maker=text), replace(demo_record, designation="D12 " + text),
+                   replace(demo_record, provenance=replace(demo_record.provenance, notes=text))):
+        _same_bytes_or_same_refusal(record)
+
+
+@given(full_records(), st.text(max_size=12), st.text(max_size=12))
+@settings(max_examples=200, suppress_health_check=[HealthCheck.too_slow])
+def test_the_writer_gives_the_bytes_of_the_tree_writer(record: MotorRecord, maker: str, notes: str) -> None:
+    from dataclasses import replace
+
+    _same_bytes_or_same_refusal(record)
+    _same_bytes_or_same_refusal(replace(record, maker=maker, provenance=replace(record.provenance, notes=notes)))
+
+
+def test_bytes_already_read_are_not_parsed_again(demo_record: MotorRecord, tmp_path: Path,
+                                                 monkeypatch: pytest.MonkeyPatch) -> None:
+    # Issue 16: a catalog add read, parsed and validated each file, then parsed its own copy of the same bytes.
+    from motorlib.files import motor_xml
+
+    path = write_record(demo_record, tmp_path / "d12.xml")
+    record, data = motor_xml.read_record_and_bytes(path)
+    assert record == demo_record and data == path.read_bytes()
+    parsed = []
+    monkeypatch.setattr(motor_xml, "_valid_tree", lambda *args: parsed.append(args))
+    assert motor_xml.readable_record_bytes(record, str(path), read_from=data) == data and not parsed
+    motor_xml.readable_record_bytes(record, str(path), read_from=data.replace(b"  ", b" "))  # not canonical
+    assert len(parsed) == 1
+
+
+def test_bytes_read_elsewhere_do_not_spare_the_checks(demo_record: MotorRecord) -> None:
+    from dataclasses import replace
+
+    from motorlib.files.motor_xml import readable_record_bytes
+
+    too_long = replace(demo_record, maker="M" * 501)  # over the schema's 500 characters
+    with pytest.raises(SchemaValidationError, match="cannot be written"):
+        readable_record_bytes(too_long, "m.xml", read_from=record_to_bytes(demo_record))

@@ -92,6 +92,11 @@ def test_staged_files_of_a_killed_writer_are_cleaned_on_the_next_open(tmp_path: 
     (staging / "123-dead-0.tmp").write_bytes(b"half")
     (root / "maker").mkdir()
     (root / "maker" / ".g59.xml.abc123.tmp").write_bytes(b"half")  # write_atomic's temporary name
+    (root / ".tags.json.def456.tmp").write_bytes(b"{")  # tags.json's, in the catalog folder itself
+    (root / ".hidden").mkdir()
+    (root / ".hidden" / ".kept.tmp").write_bytes(b"not ours")  # hidden folders are not the catalog's
+    (root / "maker" / "g59.tmp").write_bytes(b"not ours")  # not a temporary name of ours
     Catalog(root).close()
     assert not list(staging.iterdir())
-    assert not (root / "maker" / ".g59.xml.abc123.tmp").exists()
+    assert not (root / "maker" / ".g59.xml.abc123.tmp").exists() and not (root / ".tags.json.def456.tmp").exists()
+    assert (root / ".hidden" / ".kept.tmp").exists() and (root / "maker" / "g59.tmp").exists()
