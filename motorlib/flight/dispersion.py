@@ -417,10 +417,12 @@ def nominal_delay_s(frame: Airframe, records: Sequence[MotorRecord], settings: D
     return _nominal(frame, records, settings)[0]
 
 
-def _nominal(frame: Airframe, records: Sequence[MotorRecord], settings: DispersionSettings
-             ) -> tuple[list[float], np.ndarray]:
-    """Nominal flights of every record: the delay closest to the optimal one, and the apogee [m]."""
-    res = simulate(frame, list(records), settings.flight, descent=False)
+def _nominal(frame: Airframe, records: Sequence[MotorRecord], settings: DispersionSettings,
+             delays_s: Sequence[float] | None = None) -> tuple[list[float], np.ndarray]:
+    """Nominal flights of every record: the delay each flies (``delays_s``, else the one closest to the optimal
+    delay) and the apogee [m] with that delay (a charge that fires while the rocket climbs ends the climb)."""
+    wanted = None if delays_s is None else np.asarray(delays_s, dtype=float)
+    res = simulate(frame, list(records), settings.flight, deploy_delay_s=wanted, descent=False)
     return [res.chosen_delay_s(i) for i in range(res.n_flights)], res.apogee_m
 
 
@@ -591,12 +593,13 @@ def run_scatter(frame: Airframe, record: MotorRecord, uncertainty: Uncertainty, 
     Returns
     -------
     summary : dict
-        :func:`summarize` plus ``delay_s``, ``uncertainty`` and ``nominal_apogee_m``.
+        :func:`summarize` plus ``delay_s``, ``uncertainty`` and ``nominal_apogee_m`` (the apogee of the
+        flight without any sampled variation, with ``delay_s``: the flight ``fly --delay`` gives).
     flights : dict of str to array, shape (n_samples,)
     """
     used = record.firing_spread or spread
     u = uncertainty.for_motor(used)
-    delays, nominal_apogee = _nominal(frame, [record], settings)
+    delays, nominal_apogee = _nominal(frame, [record], settings, None if delay_s is None else [delay_s])
     delay = delays[0] if delay_s is None else float(delay_s)
     flights = run_samples(frame, [record], [u], np.zeros(settings.n_samples, dtype=np.int64),
                           np.arange(settings.n_samples), settings, [delay], workers=workers, progress=progress)

@@ -46,3 +46,23 @@ def test_match_reports_no_descent_rate_where_nothing_opens() -> None:
     by_name = {c["designation"]: c for c in json.loads(out)["candidates"]}
     for name in ("B6-0", "A8-3,5"):
         assert by_name[name]["landing_speed_m_s"] is None, (name, by_name[name]["landing_speed_m_s"])
+
+
+# ---------------------------------------------------------------- a later trial: a student team with a high-power
+# airframe and a club safety officer checking their choice (each test failed before its fix)
+def _fly_json(*args: str) -> dict:
+    code, out = run("fly", *args, "--json")
+    assert code in (0, 1), out
+    return json.loads(out)
+
+
+def test_scatter_nominal_apogee_flies_the_chosen_delay() -> None:
+    # a 3 s delay on G99-14 (optimal about 12 s) opens the parachute while it climbs: the nominal flight
+    # scatter prints must be that flight, the one `fly --delay 3` gives, not the flight at the optimal delay
+    code, out = run("scatter", QUIBBLE, "--motor", "G99-14", "--delay", "3", "-n", "3", "--workers", "1",
+                    "--no-uncertainty", "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    flown = _fly_json(QUIBBLE, "--motor", "G99-14", "--delay", "3")["apogee_m"]
+    assert abs(data["nominal_apogee_m"] - flown) < 1e-6 * flown
+    assert abs(data["apogee_m"]["p50"] - data["nominal_apogee_m"]) < 1e-6 * flown
