@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+from pathlib import Path
 
 from .conftest import AIRFRAMES, SAMPLE_DIR, run
 
@@ -66,3 +67,23 @@ def test_scatter_nominal_apogee_flies_the_chosen_delay() -> None:
     flown = _fly_json(QUIBBLE, "--motor", "G99-14", "--delay", "3")["apogee_m"]
     assert abs(data["nominal_apogee_m"] - flown) < 1e-6 * flown
     assert abs(data["apogee_m"]["p50"] - data["nominal_apogee_m"]) < 1e-6 * flown
+
+
+def test_robust_counts_the_samples_under_the_minimum_margin(tmp_path) -> None:
+    # the robust ranking judged stability on the nominal flight only: with the CG known to +-40 mm, F29-8
+    # (nominal least margin 2.1 cal) never failed; now each sample's own margin is judged and counted
+    frame = tmp_path / "q.toml"
+    frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ncg = "40 mm"\n')
+    args = ("match", str(frame), "--catalog", str(SAMPLE_DIR), "--robust", "--samples", "60", "--workers", "1",
+            "--allow-smaller-motors")
+    code, out = run(*args, "--json")
+    assert code == 0, out
+    data = json.loads(out)
+    assert data["conditions"]["min_stability_cal"] == 1.0
+    f29 = next(c for c in data["candidates"] if c["designation"] == "F29-8")
+    assert f29["n_below_min_stability"] > 0
+    assert f29["failures"]["stability-low"] == f29["n_below_min_stability"] / 60
+    assert f29["stability_margin_cal"]["p5"] < f29["stability_margin_cal"]["p50"] < f29["stability_margin_cal"]["p95"]
+    code, out = run(*args)
+    assert code == 0, out
+    assert f"F29-8: {f29['n_below_min_stability']}" in " ".join(out.split())
