@@ -8,6 +8,7 @@ No rich here, so the CSV output can use the same words.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from ..matching.candidate import Candidate
@@ -17,7 +18,8 @@ from .display import DisplayUnits
 if TYPE_CHECKING:
     from ..matching.rank import MatchResult
 
-__all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text"]
+__all__ = ["REASON_CODES", "DeploymentColumn", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
+           "short_code", "verdict_text"]
 
 # Rule code (:data:`motorlib.flight.rules.RULE_CODES`; optionally ":" and the start of its text) -> (the one-letter
 # code of match's result column, its legend).
@@ -44,6 +46,56 @@ REASON_CODES = {
 
 # Verdict word -> the word in the match table's result column (at most 12 characters, so it fits 80 columns).
 _VERDICT_WORDS = {"pass with ballast": "pass+ballast"}
+
+
+@dataclass(frozen=True)
+class DeploymentColumn:
+    """The ranking's column of the speed that recovery meets, in the table and the report alike.
+
+    With a recovery device listed, the rule judges each device's opening (``deployment-fast``): the column is
+    ``max_deployment_speed_m_s``, the fastest opening, the rocket's speed through the air (its speed over the
+    ground less the wind) at the instant the device opens, which is what loads the canopy and the figure
+    ``fly`` gives under "Recovery". Without a device listed, the rule is on the charge (``ejection-fast``):
+    ``ejection_speed_m_s``, the speed over the ground when the chosen delay fires. Near apogee the two differ
+    by about the wind: a rocket drifting with the wind moves slowly through the air and fast over the ground.
+    """
+
+    field: str        # the Candidate figure shown [m/s]
+    code: str         # the rule that judges it
+    table_name: str   # the match table's header
+    report_name: str  # the report's header
+    legend: str       # what it is, in words
+
+    def limit_m_s(self, conditions: Mapping[str, Any]) -> float:
+        """The smallest limit that can judge the figure [m/s] (a failing value is shown beyond it)."""
+        if self.field == "ejection_speed_m_s":
+            return float(conditions["max_ejection_speed_m_s"])
+        return float(min(dict(conditions["max_deployment_speed_m_s"]).values()))
+
+
+_OPENING = DeploymentColumn("max_deployment_speed_m_s", "deployment-fast", "opens", "opening",
+                            "opens: the rocket's speed through the air (relative to the wind, not the ground) "
+                            "when its recovery device opens; the fastest opening where there are several")
+_CHARGE = DeploymentColumn("ejection_speed_m_s", "ejection-fast", "eject", "ejection",
+                           "eject: the speed over the ground when the chosen delay fires (no recovery device listed)")
+
+
+def deployment_rule(column: DeploymentColumn, conditions: Mapping[str, Any], kinds: Sequence[str] | None,
+                    limit: Any) -> str:
+    """The rule of the deployment column in words: ``ejection <= 25 m/s`` or ``opening <= 25 m/s (parachute)``.
+
+    ``kinds`` are the airframe's device kinds (None: every kind with a limit); ``limit(value_m_s)`` writes a
+    limit in the display units."""
+    if column.field == "ejection_speed_m_s":
+        return f"ejection <= {limit(conditions['max_ejection_speed_m_s'])}"
+    limits = dict(conditions["max_deployment_speed_m_s"])
+    shown = dict.fromkeys(kinds if kinds else limits)
+    return "opening <= " + ", ".join(f"{limit(limits.get(kind, limits.get('parachute')))} ({kind})" for kind in shown)
+
+
+def deployment_column(candidates: Sequence[Candidate]) -> DeploymentColumn:
+    """:class:`DeploymentColumn` of a ranking: the opening when any candidate has one (a device is listed)."""
+    return _OPENING if any(c.max_deployment_speed_m_s is not None for c in candidates) else _CHARGE
 
 
 def short_code(code: str, text: str) -> tuple[str, str]:

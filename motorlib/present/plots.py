@@ -103,7 +103,7 @@ def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], t
     ax.set_ylabel(f"altitude above the pad ({lu})")
     ax.grid(axis="y")
     ax2 = ax.twinx()
-    ax2.plot(t, speed, color=BLUE, linestyle="--", linewidth=1.4, label="speed (right scale)")
+    ax2.plot(t, speed, color=BLUE, linestyle="--", linewidth=1.4, label="speed over the ground (right scale)")
     ax2.set_ylabel(f"speed ({su})", color=BLUE)
     ax2.set_ylim(0, float(speed.max()) * 1.1 or 1.0)
     ax2.spines["right"].set_visible(True)

@@ -112,7 +112,7 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
     if deploy is not None:
         chart.band_x(deploy, end, "under recovery device", fill=BLUE_TINT, hatch="dots", caption="recovery")
     chart.line(tt, zz, "altitude (left scale)", colour=INK, width=2.4)
-    chart.line(tv, vv, "speed (right scale)", colour=BLUE, dash="dashed", width=1.6, axis="y2")
+    chart.line(tv, vv, "speed over the ground (right scale)", colour=BLUE, dash="dashed", width=1.6, axis="y2")
     last_x, lift = -1e9, 0.0
     for name, when in events:
         shape = EVENT_MARKS.get(name, ("diamond", name))[0]

@@ -24,7 +24,7 @@ from ..matching.candidate import Candidate
 from .flightcard import FlightCard, flight_card, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
-from .messages import match_count
+from .messages import deployment_column, deployment_rule, match_count
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
 
 if TYPE_CHECKING:
@@ -248,6 +248,7 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
     u = units
     c = result.conditions
     shown = [cand for cand in result.candidates if cand.fits]
+    speed = deployment_column(result.candidates)
     rows, marks = [], []
     for rank, cand in enumerate(shown, 1):
         delay = "-" if cand.chosen_delay_s is None else (
@@ -255,15 +256,16 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
         rows.append((str(rank), cand.designation, quantity(cand.apogee_m, "length", u),
                      quantity(cand.rail_exit_speed_m_s, "speed", u),
                      "-" if cand.liftoff_thrust_to_weight is None else f"{cand.liftoff_thrust_to_weight:.1f}",
-                     delay, quantity(cand.ejection_speed_m_s, "speed", u),
+                     delay, quantity(getattr(cand, speed.field), "speed", u),
                      "; ".join([cand.verdict, *cand.reasons] + [f"note: {n}" for n in cand.notes]
                                + _extra_mass_words(cand, u))))
         marks.append(_VERDICT_MARK.get(cand.verdict, "fail"))
     ranking = TableBlock(
         f"Ranking: {match_count(result)}",
-        ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
+        ("#", "motor", "apogee", "rail exit", "T/W", "delay s", speed.report_name, "verdict and reasons"),
         tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
         f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
+        f"{speed.report_name.capitalize()}{speed.legend[len(speed.table_name):]}. "
         f"{len(result.candidates) - len(shown)} motor(s) do not fit the mount or the class limit and are not listed.",
         nowrap=(False, True, False, False, False, False, False, False))
     conditions = Facts("Conditions and rules", (
@@ -277,7 +279,7 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
                          else f" ({c.get('rail_exit_wind_ratio', 4):g} x the wind)")),
         ("thrust-to-weight", f">= {c['min_liftoff_thrust_to_weight']:g} at liftoff"),
         ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
-        ("ejection speed", f"<= {quantity(c['max_ejection_speed_m_s'], 'speed', u)}"),
+        ("deployment speed", deployment_rule(speed, c, None, lambda v: quantity(v, "speed", u))),
         ("descent rate", f"<= {quantity(c['max_landing_speed_m_s'], 'speed', u)}"),
         *_stability_rule(c),
         ("catalog", catalog),

@@ -28,7 +28,8 @@ from ..motor.listing import CatalogRow
 from .display import DisplayUnits
 from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
-from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
+from .messages import (deployment_column, deployment_rule, match_count, note_text, reason_text, short_code, small_mass,
+                       verdict_text)
 
 if TYPE_CHECKING:  # annotations only: the table module loads no flight code
     from ..files.curvefiles import CheckReport
@@ -508,7 +509,8 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
         _right(table, u.header(name, u.unit(kind)))
     _right(table, "T/W")
     _right(table, u.header("delay", "s"))
-    _right(table, u.header("eject", u.unit("speed")))
+    speed = deployment_column(result.candidates)
+    _right(table, u.header(speed.table_name, u.unit("speed")))
     mass_unit = u.column_unit([c.liftoff_mass_kg for c in shown], "mass")
     if wide:
         _right(table, u.header("loaded", mass_unit))
@@ -530,7 +532,7 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
                 _cell(u, c.liftoff_thrust_to_weight, cond["min_liftoff_thrust_to_weight"], "ratio", False,
                       "thrust-to-weight-low" in codes),
                 delay,
-                _cell(u, c.ejection_speed_m_s, cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
+                _cell(u, getattr(c, speed.field), speed.limit_m_s(cond), "speed", True, speed.code in codes),
             ]
         row: list[Any] = [str(rank), escape(name)]
         if wide:
@@ -655,16 +657,19 @@ def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: A
     need = c.get("rail_exit_needed_m_s", c["min_rail_exit_speed_m_s"])
     rail_rule = u.limit(c["min_rail_exit_speed_m_s"], "speed") + (
         f" and {c.get('rail_exit_wind_ratio', 4):g} x the wind: {u.limit(need, 'speed')}" if need > c["min_rail_exit_speed_m_s"] else "")
+    speed = deployment_column(result.candidates)
+    kinds = None if frame is None else [d.device for d in frame.recovery_devices]
     text.append(f"Rules: rail exit >= {rail_rule}, liftoff T/W >= "
                 f"{u.limit(c['min_liftoff_thrust_to_weight'], 'ratio')}, delay within {u.limit(c['delay_slack_s'], 'time')} "
-                f"of optimal, ejection <= {u.limit(c['max_ejection_speed_m_s'], 'speed')}, descent <= "
+                f"of optimal, {deployment_rule(speed, c, kinds, lambda v: u.limit(v, 'speed'))}, descent <= "
                 f"{u.limit(c['max_landing_speed_m_s'], 'speed')}"
                 + (f", ceiling {u.given(c['ceiling_m'], 'length')}" if c.get("ceiling_m") else "")
                 + (f", classes up to {c['max_class']}" if c.get("max_class") else "")
                 + (f", stability >= {c['min_stability_cal']:g} cal" if c.get("min_stability_cal") is not None
                    else "; stability not checked (the airframe file has no [geometry])")
                 + ". ")
-    text.append("Delay column: chosen/optimal; 'd' = drilled (adjustable motor).", style="dim")
+    text.append(f"Delay column: chosen/optimal; 'd' = drilled (adjustable motor). {speed.legend[0].upper()}"
+                f"{speed.legend[1:]}.", style="dim")
     return text
 
 

@@ -87,3 +87,53 @@ def test_robust_counts_the_samples_under_the_minimum_margin(tmp_path) -> None:
     code, out = run(*args)
     assert code == 0, out
     assert f"F29-8: {f29['n_below_min_stability']}" in " ".join(out.split())
+
+
+def _table_row(out: str, name: str) -> list[str]:
+    return next(line.split() for line in out.splitlines() if f" {name} " in line)
+
+
+def test_match_shows_the_opening_speed_fly_reports_and_the_report_agrees() -> None:
+    # The speed column must be the figure the rule judges: with a parachute listed, the air speed at which it
+    # opens (deployment-fast, max_deployment_speed_m_s in --json), the speed fly's card gives under
+    # "Recovery". The table showed the speed over the ground at the charge instead (2.8 m/s for F29-8 against
+    # fly's 7.8 m/s opening: the wind, not the rocket, moves the air past the canopy at apogee).
+    from motorlib.catalog import Catalog
+    from motorlib.files.airframe_toml import load_airframe
+    from motorlib.matching.rank import MatchSettings, rank
+    from motorlib.present.report_content import match_report
+
+    code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--allow-smaller-motors", "--json")
+    f29 = next(c for c in json.loads(out)["candidates"] if c["designation"] == "F29-8")
+    opening = _fly_json(QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "F29-8")["deployments"][0]["speed_m_s"]
+    assert f29["max_deployment_speed_m_s"] == opening
+    assert abs(f29["ejection_speed_m_s"] - opening) > 1.0  # the two figures differ: which one is shown matters
+    code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--allow-smaller-motors")
+    assert code == 0, out
+    header = out.splitlines()[2] + out.splitlines()[3]
+    assert "opens" in header and "eject" not in header
+    assert f"{opening:.1f}" in _table_row(out, "F29-8")
+    result = rank(load_airframe(QUIBBLE), Catalog(SAMPLE_DIR, read_only=True), MatchSettings(allow_smaller_motors=True))
+    ranking = match_report(result, inputs=[], command="", catalog="").ranking
+    column = ranking.columns.index("opening")
+    row = next(r for r in ranking.rows if r[1] == "F29-8")
+    assert row[column] == f"{opening:.1f} m/s"
+
+
+def test_fly_says_which_speed_each_recovery_figure_is(tmp_path) -> None:
+    # fly --json gives G99-14's charge 7.04 m/s (chosen_ejection_speed_m_s) and the parachute's opening 1.38 m/s
+    # at the same instant: the first is the speed over the ground, the second the speed through the air (the
+    # rocket drifts with the wind near apogee). The card must say which one it shows.
+    data = _fly_json(QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "G99-14")
+    assert abs(data["chosen_ejection_speed_m_s"] - data["deployments"][0]["speed_m_s"]) > 3.0
+    code, out = run("fly", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "G99-14")
+    line = next(line for line in out.splitlines() if "1.4 m/s" in line)
+    assert "air speed" in line
+    # without a device listed, the card shows the charge's speed: over the ground
+    bare = tmp_path / "bare.toml"
+    text = Path(QUIBBLE).read_text()
+    bare.write_text(text[: text.index("[recovery]")] + text[text.index("[geometry]"):] if "[geometry]" in text
+                    else text[: text.index("[recovery]")])
+    code, out = run("fly", str(bare), "--catalog", str(SAMPLE_DIR), "--motor", "G99-14")
+    line = next(line for line in out.splitlines() if "7.0 m/s" in line)
+    assert "ground speed" in line
