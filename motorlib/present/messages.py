@@ -18,7 +18,7 @@ from .display import DisplayUnits
 if TYPE_CHECKING:
     from ..matching.rank import MatchResult
 
-__all__ = ["REASON_CODES", "DeploymentColumn", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
+__all__ = ["REASON_CODES", "VERDICT_LEGEND", "DeploymentColumn", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
            "short_code", "verdict_text"]
 
 # Rule code (:data:`motorlib.flight.rules.RULE_CODES`; optionally ":" and the start of its text) -> (the one-letter
@@ -44,8 +44,6 @@ REASON_CODES = {
     "stability-unknown": ("B", "too little stability margin (CG too far aft)"),
 }
 
-# Verdict word -> the word in the match table's result column (at most 12 characters, so it fits 80 columns).
-_VERDICT_WORDS = {"pass with ballast": "pass+ballast"}
 
 
 @dataclass(frozen=True)
@@ -98,6 +96,11 @@ def deployment_column(candidates: Sequence[Candidate]) -> DeploymentColumn:
     return _OPENING if any(c.max_deployment_speed_m_s is not None for c in candidates) else _CHARGE
 
 
+# Verdict word -> what its bar means in the match charts (PNG and report), read as "word: meaning"
+VERDICT_LEGEND = {"pass": "every rule, on target (✓)", "pass with ballast": "every rule with the solved ballast",
+                  "off target": "safe, but outside the target band", "fail": "breaks a rule (✗ and its codes)"}
+
+
 def short_code(code: str, text: str) -> tuple[str, str]:
     """The one-letter code shown in the match table's result column, and its meaning for the legend."""
     for key, value in REASON_CODES.items():
@@ -108,21 +111,23 @@ def short_code(code: str, text: str) -> tuple[str, str]:
 
 
 def match_count(result: MatchResult) -> str:
-    """"2 of 27 pass, 1 more with ballast, 3 off target": only good choices count as passing."""
+    """"2 of 27 pass, 1 pass with ballast, 3 off target": only good choices count as passing, and each is
+    named by its verdict word (:data:`~motorlib.matching.verdicts.VERDICTS`), as the table, report and JSON name it."""
     verdicts = [c.verdict for c in result.candidates]
     text = f"{verdicts.count('pass')} of {len(verdicts)} pass"
     if verdicts.count("pass with ballast"):
-        text += f", {verdicts.count('pass with ballast')} more with ballast"
+        text += f", {verdicts.count('pass with ballast')} pass with ballast"
     if verdicts.count("off target"):
         text += f", {verdicts.count('off target')} off target"
     return text
 
 
 def verdict_text(verdict: str, codes: Sequence[str], texts: Sequence[str]) -> str:
-    """The result column: the verdict word, and for ``fail`` the one-letter codes of the rules broken."""
+    """The result column: the verdict word (the one the JSON and the report give), and for ``fail`` the
+    one-letter codes of the rules broken."""
     if verdict == "fail":
         return "fail " + " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(codes, texts)))
-    return _VERDICT_WORDS.get(verdict, verdict)
+    return verdict
 
 
 def note_text(code: str, message: str, c: Candidate, cond: dict[str, Any], u: DisplayUnits) -> str:

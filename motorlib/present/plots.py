@@ -20,7 +20,7 @@ import numpy as np
 from ..files.fsio import write_atomic
 from ..safety import CHART_CAUTION as _CAUTION
 from .display import DisplayUnits
-from .messages import short_code
+from .messages import VERDICT_LEGEND, short_code
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE
 
 __all__ = ["airframe_plot", "calibration_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot",
@@ -172,12 +172,8 @@ def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) 
 
 
 # Verdict -> (bar fill, hatch, mark); any other verdict is a failure: hatched orange, a cross and its reasons.
-_VERDICT_BARS = {"pass": (BLUE, None, "✓"), "pass with ballast": (BLUE, "..", "✓ with ballast"),
+_VERDICT_BARS = {"pass": (BLUE, None, "✓"), "pass with ballast": (BLUE, "..", "✓ pass with ballast"),
                  "off target": ("white", "..", "off target")}
-_VERDICT_LEGEND = {"pass": "passes every rule, on target (✓)",
-                   "pass with ballast": "passes every rule with the solved ballast",
-                   "off target": "safe, but outside the target band",
-                   "fail": "fails a rule (✗ and its reason)"}
 
 
 def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
@@ -223,10 +219,10 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
         ax.axhline(ceiling_at, color=INK, linestyle=":", linewidth=2.0, zorder=1)
         handles.append(plt.Line2D([], [], color=INK, linestyle=":", linewidth=2.0, label=f"ceiling {units.given(ceiling, 'length')}"))
     shown = {c.verdict for c in flown}
-    for verdict, label in _VERDICT_LEGEND.items():
+    for verdict, label in VERDICT_LEGEND.items():  # the verdict words of the table, report and JSON
         if verdict in shown or verdict in ("pass", "fail"):
             fill, hatch, _ = _VERDICT_BARS.get(verdict, (ORANGE, "///", None))
-            handles.append(Patch(facecolor=fill, hatch=hatch, edgecolor=INK, label=label))
+            handles.append(Patch(facecolor=fill, hatch=hatch, edgecolor=INK, label=f"{verdict}: {label}"))
     ax.set_xticks(range(len(flown)))
     ax.set_xticklabels([c.designation for c in flown], rotation=55, ha="right", fontsize=8)
     ax.set_ylim(0, top)

@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING, Any, Sequence
 
 import numpy as np
 
-from .messages import match_count, short_code
+from .messages import VERDICT_LEGEND, match_count, short_code
 from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TINT, PAPER, RULE
 from .report import ChartBlock
 from .svgcharts import SvgChart, thin
@@ -163,6 +163,11 @@ def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_
     return ChartBlock(chart.render(), "Scales differ: the horizontal axis is stretched to show the drift.", wide=False)
 
 
+# verdict word -> (fill, hatch) of its bars
+_VERDICT_FILL = {"pass": (BLUE, None), "pass with ballast": (BLUE, "dots"), "off target": (PAPER, "dots"),
+                 "fail": (ORANGE, "diagonal")}
+
+
 def match_chart(result: MatchResult, key: str = "match") -> ChartBlock | None:
     """Apogee of every flown candidate in rank order: plain blue bars with a tick pass, hatched orange bars with a
     cross and the reason fail; the target, its tolerance band, the ceiling and the region above it explained."""
@@ -193,7 +198,7 @@ def match_chart(result: MatchResult, key: str = "match") -> ChartBlock | None:
             chart.bar(i, c.apogee_m, fill=BLUE, top_text=f"{c.apogee_m:.0f}", inside_text="✓")
         elif c.verdict == "pass with ballast":
             chart.bar(i, c.apogee_m, fill=BLUE, hatch="dots", top_text=f"{c.apogee_m:.0f}",
-                      inside_text="✓ with ballast")
+                      inside_text="✓ pass with ballast")
         elif c.verdict == "off target":
             chart.bar(i, c.apogee_m, fill=PAPER, hatch="dots", top_text=f"{c.apogee_m:.0f}",
                       inside_text="off target")
@@ -204,13 +209,10 @@ def match_chart(result: MatchResult, key: str = "match") -> ChartBlock | None:
         chart.hline(target, f"target {target:.0f} m", colour=INK, dash="solid", width=1.8)
     if ceiling:
         chart.hline(ceiling, f"ceiling {ceiling:.0f} m", colour=INK, dash="dotted", width=2.0)
-    chart.legend_entry("passes every rule, on target (✓)", kind="fill", fill=BLUE)
-    verdicts = {c.verdict for c in flown}
-    if "pass with ballast" in verdicts:
-        chart.legend_entry("passes every rule with the solved ballast", kind="fill", fill=BLUE, hatch="dots")
-    if "off target" in verdicts:
-        chart.legend_entry("safe, but outside the target band", kind="fill", fill=PAPER, hatch="dots")
-    chart.legend_entry("fails a rule (✗ and its reason)", kind="fill", fill=ORANGE, hatch="diagonal")
+    for verdict, words in VERDICT_LEGEND.items():  # the verdict words of the table, report and JSON
+        if verdict == "pass" or verdict == "fail" or verdict in {c.verdict for c in flown}:
+            fill, hatch = _VERDICT_FILL[verdict]
+            chart.legend_entry(f"{verdict}: {words}", kind="fill", fill=fill, hatch=hatch)
     return ChartBlock(chart.render(), "Numbers above the bars are apogees in m. Reason marks: rail = rail exit too slow, "
                                       "T/W = thrust-to-weight, delay, eject = ejection speed, descent, ceiling.")
 

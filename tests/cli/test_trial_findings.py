@@ -137,3 +137,32 @@ def test_fly_says_which_speed_each_recovery_figure_is(tmp_path) -> None:
     code, out = run("fly", str(bare), "--catalog", str(SAMPLE_DIR), "--motor", "G99-14")
     line = next(line for line in out.splitlines() if "7.0 m/s" in line)
     assert "ground speed" in line
+
+
+def test_one_verdict_vocabulary_in_table_report_plot_and_json(tmp_path) -> None:
+    # the table said "pass+ballast", the title "1 more with ballast", the charts "✓ with ballast", the JSON and
+    # the report "pass with ballast": one verdict, one phrase
+    from motorlib.matching.verdicts import VERDICTS
+
+    args = ("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--target", "400", "--ceiling", "600",
+            "--allow-smaller-motors", "--ballast")
+    code, out = run(*args, "--json")
+    verdicts = {c["designation"]: c["verdict"] for c in json.loads(out)["candidates"]}
+    assert verdicts["F29-8"] == "pass with ballast"
+    report = tmp_path / "r.html"
+    code, table = run(*args, "--report", str(report), env={"COLUMNS": "80"})
+    assert code == 0, table
+    html = report.read_text()
+    svg = html[html.index("<svg"):html.index("</svg>")]
+    for text in (table, html):
+        assert "pass with ballast" in text
+        for variant in ("pass+ballast", "more with ballast", "✓ with ballast"):
+            assert variant not in text, variant
+    assert "pass with ballast" in " ".join(_table_row(table, "F29-8"))
+    # every verdict word the table shows is a word of the one list (fail with its codes)
+    for line in table.splitlines():
+        words = line.split()
+        if len(words) > 2 and words[0].isdigit() and words[1] in verdicts:
+            shown = " ".join(words[-3:])
+            assert any(shown.endswith(v) for v in VERDICTS) or "fail" in words, line
+    assert "pass with ballast" in svg
