@@ -166,3 +166,21 @@ def test_one_verdict_vocabulary_in_table_report_plot_and_json(tmp_path) -> None:
             shown = " ".join(words[-3:])
             assert any(shown.endswith(v) for v in VERDICTS) or "fail" in words, line
     assert "pass with ballast" in svg
+
+
+def test_an_unknown_motor_suggests_close_designations(tmp_path) -> None:
+    # a typo in --motor said only "no motor with that id, handle or designation": name the near ones
+    for command in (("fly", QUIBBLE), ("scatter", QUIBBLE, "-n", "2"), ("airframe", QUIBBLE)):
+        code, out = run(*command, "--catalog", str(SAMPLE_DIR), "--motor", "F2-8")
+        assert code == 2, out
+        text = " ".join(out.split())
+        assert "no motor with that id, handle or designation" in text and "did you mean F29-8" in text, text
+    code, out = run("catalog", "show", "--catalog", str(SAMPLE_DIR), "G59-01")
+    assert code == 2 and "did you mean G59-10" in " ".join(out.split()), out
+    code, out = run("fly", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "Q1-zzz")  # nothing near: no guess
+    assert code == 2 and "did you mean" not in out and "catalog list" in out, out
+    own = tmp_path / "cat"
+    assert run("catalog", "add", "--catalog", str(own), str(SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml"))[0] == 0
+    for command in (("tag", "F2-8", "in-stock"), ("untag", "F2-8", "in-stock"), ("remove", "F2-8")):
+        code, out = run("catalog", command[0], "--catalog", str(own), *command[1:])
+        assert code == 2 and "did you mean F29-8" in " ".join(out.split()), (command, out)
