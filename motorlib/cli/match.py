@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 import click
@@ -15,10 +16,12 @@ from .robust import pop_robust, robust_options, run_robust
 class _Tolerance(click.ParamType):
     """``--target-tolerance``: a percentage of the target (``5%``) or a length (``20m``, ``60ft``).
 
-    A bare number is refused: 5 could be 5 % or 5 m.
+    A bare number is refused: 5 could be 5 % or 5 m. Every refusal says what to give; a length is checked
+    against the target in :func:`match_settings`, which knows it.
     """
 
     name = "tolerance"
+    _WANT = "give a percentage of the target above 0 and below 100, such as 5%, or a length such as 20m"
 
     def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> Any:
         if isinstance(value, tuple):
@@ -26,15 +29,25 @@ class _Tolerance(click.ParamType):
         text = str(value).strip()
         if text.endswith("%"):
             try:
-                return ("fraction", float(text[:-1]) / 100.0)
+                percent = float(text[:-1])
             except ValueError:
-                self.fail(f"{text!r} is not a percentage such as 5%", param, ctx)
+                percent = math.nan
+            if not 0.0 < percent < 100.0:  # NaN fails too
+                self.fail(f"{text!r}: {self._WANT}", param, ctx)
+            return ("fraction", percent / 100.0)
         try:
             float(text)
         except ValueError:
-            return ("length", _Quantity("length", minimum=0.0, strict=True).convert(text, param, ctx))
-        self.fail(f"{text!r} has no unit; give a percentage of the target such as 5% or a length such as 20m",
-                  param, ctx)
+            pass
+        else:
+            self.fail(f"{text!r} has no unit; {self._WANT}", param, ctx)
+        try:
+            length = _Quantity("length", minimum=0.0, strict=True).convert(text, param, ctx)
+        except click.BadParameter:
+            length = math.nan
+        if not (math.isfinite(length) and length > 0.0):
+            self.fail(f"{text!r}: {self._WANT}", param, ctx)
+        return ("length", length)
 
 
 def _match_options(func: Any) -> Any:
@@ -169,8 +182,12 @@ def match_settings(opts: dict[str, Any]) -> Any:
     tolerance = opts.get("target_tolerance")
     if tolerance is not None:
         kind, value = tolerance
-        if kind == "length" and not opts["target_m"]:
-            raise click.UsageError("--target-tolerance as a length needs --target")
+        if not opts["target_m"]:
+            raise click.UsageError("--target-tolerance needs --target (the altitude it is a tolerance of)")
+        if kind == "length" and not value < opts["target_m"]:
+            shown = display_units(opts.get("units"))  # a length given on the command line is echoed as typed
+            raise click.UsageError(f"--target-tolerance {shown.given(value, 'length')} is not below the "
+                                   f"{shown.given(opts['target_m'], 'length')} target; {_Tolerance._WANT} below it")
         extra["target_tolerance"] = value / opts["target_m"] if kind == "length" else value
     if opts.get("min_stability_cal") is not None:
         extra["min_stability_cal"] = opts["min_stability_cal"]

@@ -5,6 +5,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import pytest
+
 from .conftest import AIRFRAMES, SAMPLE_DIR, run
 
 QUIBBLE = str(AIRFRAMES / "quibble-41.toml")
@@ -184,3 +186,20 @@ def test_an_unknown_motor_suggests_close_designations(tmp_path) -> None:
     for command in (("tag", "F2-8", "in-stock"), ("untag", "F2-8", "in-stock"), ("remove", "F2-8")):
         code, out = run("catalog", command[0], "--catalog", str(own), *command[1:])
         assert code == 2 and "did you mean F29-8" in " ".join(out.split()), (command, out)
+
+
+@pytest.mark.parametrize("given", ["-5%", "0%", "150%", "nan%", "inf%", "abc%", "", "5x", "500m", "0m", "5"])
+def test_a_bad_target_tolerance_says_what_to_give(given: str) -> None:
+    # "-5%" answered "target_tolerance must be a fraction between 0 and 1, got -0.05" (a library name, a
+    # fraction the user never typed); "500m" on a 400 m target "got 1.25"; "" asked for "a length such as 29 mm"
+    code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--target", "400", "--target-tolerance", given)
+    text = " ".join(out.split())
+    assert code == 2, text
+    assert "--target-tolerance" in text and "5%" in text and "20m" in text, text
+    assert "target_tolerance" not in text and "fraction" not in text and "29 mm" not in text, text
+
+
+def test_a_target_tolerance_without_a_target_is_refused() -> None:
+    # a percentage without --target was silently ignored (the length form was refused)
+    code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--target-tolerance", "10%")
+    assert code == 2 and "--target" in out, out
