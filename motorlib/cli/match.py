@@ -137,7 +137,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         from ..present.report_content import match_report
 
         report = match_report(result, inputs=[airframe_file], command=_command_line(), catalog=str(cat.root),
-                              units=_card_units(units))
+                              units=_card_units(units), frame=frame)
         written.append(_write_report(report, opts["report_path"], opts["overwrite"], [airframe_file]))
     if opts["as_json"]:
         click.echo(_json_text({"airframe": result.airframe, "conditions": conditions,

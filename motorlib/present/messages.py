@@ -8,6 +8,7 @@ No rich here, so the CSV output can use the same words.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
@@ -16,9 +17,10 @@ from ..matching.verdicts import miss_percent
 from .display import DisplayUnits
 
 if TYPE_CHECKING:
+    from ..flight.airframe import Airframe
     from ..matching.rank import MatchResult
 
-__all__ = ["REASON_CODES", "VERDICT_LEGEND", "DeploymentColumn", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
+__all__ = ["REASON_CODES", "VERDICT_LEGEND", "DeploymentColumn", "assumption_texts", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
            "short_code", "verdict_text"]
 
 # Rule code (:data:`motorlib.flight.rules.RULE_CODES`; optionally ":" and the start of its text) -> (the one-letter
@@ -101,6 +103,28 @@ VERDICT_LEGEND = {"pass": "every rule, on target (✓)", "pass with ballast": "e
                   "off target": "safe, but outside the target band", "fail": "breaks a rule (✗ and its codes)"}
 
 
+def assumption_texts(conditions: Mapping[str, Any], u: DisplayUnits, frame: Airframe | None = None) -> dict[str, str]:
+    """The assumptions of a ranking (``drag``, ``atmosphere``, ``wind``, ``rail``, ``recovery``) in display units,
+    the airframe file's own numbers echoed as typed; without the ``frame``, the ranking's SI ``conditions`` text."""
+    keys = ("drag", "atmosphere", "wind", "rail", "recovery")
+    if frame is None:
+        return {key: str(conditions[key]) for key in keys}
+    launch, site = frame.launch, frame.launch.site
+    drag = ("Cd(Mach) estimated from the shape, powered and coasting" if frame.drag_source == "estimated"
+            else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+            else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
+    air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
+                                             if site.elevation_m else "")
+    if site.temperature_k is not None:
+        air += f", {u.given(site.temperature_k, 'temperature')} at the pad"
+    if site.pressure_pa is not None:
+        air += f", {u.given(site.pressure_pa, 'air_pressure')} at the pad"
+    wind = ("a measured profile" if launch.wind_profile is not None else
+            f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7")
+    rail = f"{u.given(launch.rail_length_m, 'length')} at {u.given(launch.rail_angle_rad, 'angle')} from vertical"
+    return dict(zip(keys, (drag, air, wind, rail, str(conditions["recovery"]))))
+
+
 def short_code(code: str, text: str) -> tuple[str, str]:
     """The one-letter code shown in the match table's result column, and its meaning for the legend."""
     for key, value in REASON_CODES.items():
@@ -180,6 +204,21 @@ def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond:
     if code == "over-ceiling" and get("apogee_m") is not None and cond.get("ceiling_m"):
         v, lim = u.beyond(get("apogee_m"), cond["ceiling_m"], "length", above=True)
         return f"over the ceiling: apogee {v} above {lim}"
+    if code == "deployment-fast":
+        opened = _opening(message, c, cond, prefix)
+        if opened is not None:
+            kind, speed_m_s, limit_m_s, load = opened
+            v, lim = u.beyond(speed_m_s, limit_m_s, "speed", above=True, decimals=0)
+            return (f"the {kind} opens too fast: {v} (limit {lim} for a {kind}"
+                    + ("" if load is None else f"; opening load up to {load}") + "): risk of a torn canopy, a zipper "
+                    "or a broken harness")
+    if code == "lands-outside-field" and cond.get("field_radius_m") is not None:
+        landing = get("landing")
+        distance = (landing or {}).get("distance_m") if isinstance(landing, Mapping) else get("landing_distance_m")
+        distance = _si_figure(message, r"about ([\d,.]+) m from") if distance is None else distance
+        if distance is not None:
+            v, lim = u.beyond(distance, cond["field_radius_m"], "length", above=True)
+            return f"lands outside the field: about {v} from the pad (field radius {lim})"
     speed = get("ejection_speed_m_s") if get("ejection_speed_m_s") is not None else get("chosen_ejection_speed_m_s")
     if code == "ejection-fast" and speed is not None:
         v, lim = u.beyond(speed, cond["max_ejection_speed_m_s"], "speed", above=True, decimals=0)
@@ -188,3 +227,34 @@ def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond:
         v, lim = u.beyond(get("landing_speed_m_s"), cond["max_landing_speed_m_s"], "speed", above=True)
         return f"descent too fast: {v} under the device (limit {lim}): use a larger recovery device"
     return message
+
+
+def _si_figure(message: str, pattern: str) -> float | None:
+    """The first group of ``pattern`` in a library message, as a number (thousands separators dropped)."""
+    found = re.search(pattern, message)
+    return None if found is None else float(found.group(1).replace(",", ""))
+
+
+def _opening(message: str, c: Candidate | Mapping[str, Any], cond: Mapping[str, Any], prefix: str
+             ) -> tuple[str, float, float, str | None] | None:
+    """(kind, speed [m/s], limit [m/s], load text) of a ``deployment-fast`` reason: the device kind the library's
+    message names (:func:`motorlib.flight.rulebook._deployment_fast`), its opening speed from ``fly``'s
+    ``deployments`` where the flight has them, else from the message (a ranked candidate keeps only its fastest
+    opening, which may be another device's), and the kind's limit from the conditions."""
+    kind_match = re.match(r"the (\S+) opens too fast", message)
+    limits = dict(cond.get("max_deployment_speed_m_s") or {})
+    if kind_match is None or not limits:
+        return None
+    kind = kind_match.group(1)
+    limit = float(limits.get(kind, limits.get("parachute", cond.get("max_ejection_speed_m_s", 0.0))))
+    speed, load_n = None, _si_figure(message, r"opening load up to ([\d,.]+) N")
+    events = c.get("deployments") if isinstance(c, Mapping) and not prefix else None
+    for event in events or []:
+        if str(event.get("device")) == kind and event.get("speed_m_s") is not None and event["speed_m_s"] > limit:
+            speed, load_n = float(event["speed_m_s"]), event.get("opening_load_n")
+            break
+    if speed is None:
+        speed = _si_figure(message, r"opens too fast: ([\d,.]+) m/s")
+    if speed is None:
+        return None
+    return kind, speed, limit, None if load_n is None else f"{float(load_n):,.0f} N"  # force stays in N (README)

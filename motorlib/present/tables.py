@@ -28,7 +28,7 @@ from ..motor.listing import CatalogRow
 from .display import DisplayUnits
 from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
-from .messages import (deployment_column, deployment_rule, match_count, note_text, reason_text, short_code, small_mass,
+from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, note_text, reason_text, short_code, small_mass,
                        verdict_text)
 
 if TYPE_CHECKING:  # annotations only: the table module loads no flight code
@@ -637,23 +637,8 @@ def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: A
     """The assumptions and rules behind a ranking, echoing the airframe file's and the options' own numbers."""
     c, u = result.conditions, units
     text = Text("Assumptions: ", style="bold")
-    if frame is not None:
-        launch, site = frame.launch, frame.launch.site
-        drag = ("Cd(Mach) estimated from the shape, powered and coasting" if frame.drag_source == "estimated"
-                else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
-                else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
-        air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
-                                                 if site.elevation_m else "")
-        if site.temperature_k is not None:
-            air += f", {u.given(site.temperature_k, 'temperature')} at the pad"
-        if site.pressure_pa is not None:
-            air += f", {u.given(site.pressure_pa, 'air_pressure')} at the pad"
-        wind = ("a measured profile" if launch.wind_profile is not None else
-                f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7")
-        rail = f"{u.given(launch.rail_length_m, 'length')} at {u.given(launch.rail_angle_rad, 'angle')} from vertical"
-        text.append(f"{drag}; {air}; wind {wind}; rail {rail}; recovery {c['recovery']}. ")
-    else:
-        text.append(f"{c['drag']}; {c['atmosphere']}; wind {c['wind']}; rail {c['rail']}; recovery {c['recovery']}. ")
+    a = assumption_texts(c, u, frame)
+    text.append(f"{a['drag']}; {a['atmosphere']}; wind {a['wind']}; rail {a['rail']}; recovery {a['recovery']}. ")
     need = c.get("rail_exit_needed_m_s", c["min_rail_exit_speed_m_s"])
     rail_rule = u.limit(c["min_rail_exit_speed_m_s"], "speed") + (
         f" and {c.get('rail_exit_wind_ratio', 4):g} x the wind: {u.limit(need, 'speed')}" if need > c["min_rail_exit_speed_m_s"] else "")

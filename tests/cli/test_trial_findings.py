@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 from pathlib import Path
 
 import pytest
@@ -203,3 +204,58 @@ def test_a_target_tolerance_without_a_target_is_refused() -> None:
     # a percentage without --target was silently ignored (the length form was refused)
     code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--target-tolerance", "10%")
     assert code == 2 and "--target" in out, out
+
+
+_SI_FIGURE = re.compile(r"(?<![\w.])\d[\d,]*(\.\d+)?\s?(m|m/s|m/s²|kg|°C|hPa|kPa|m²)(?![\w/²³])")
+
+
+def _si_figures(text: str) -> list[str]:
+    return [m.group(0) for m in _SI_FIGURE.finditer(text)]
+
+
+def _imperial(path: str, folder: Path, swaps: dict[str, str]) -> str:
+    """A copy of an airframe file with its quantities given in imperial units (a file's own numbers are echoed
+    as typed, README "Units": in an imperial file every figure shown must then be imperial)."""
+    text = Path(path).read_text()
+    for old, new in swaps.items():
+        assert old in text, old
+        text = text.replace(old, new)
+    out = folder / Path(path).name
+    out.write_text(text)
+    return str(out)
+
+
+def test_imperial_match_words_every_figure_in_imperial(tmp_path) -> None:
+    # --units imperial: the reasons, notes, assumptions, report and chart labels still quoted SI figures
+    # ("the parachute opens too fast: 32 m/s (limit 25 m/s ...)", the report's reasons, Assumptions and axes in m).
+    # Motor sizes stay in mm and impulse in N·s (README, Units).
+    frame = _imperial(QUIBBLE, tmp_path, {'"310 g"': '"10.93 oz"', '"41.6 mm"': '"1.64 in"', '"2.4 m"': '"7.9 ft"',
+                                          '"120 m"': '"394 ft"', '"15 degC"': '"59 degF"', '"3 m/s"': '"9.8 ft/s"',
+                                          '"0.6 m"': '"23.6 in"'})
+    report = tmp_path / "r.html"
+    args = ("--units", "imperial", "match", frame, "--catalog", str(SAMPLE_DIR), "--target", "1300ft",
+            "--ceiling", "2000ft", "--allow-smaller-motors", "--ballast")
+    code, out = run(*args, "--report", str(report), env={"COLUMNS": "200"})
+    assert code == 0, out
+    assert "opens too fast" in out  # the case that kept its SI text
+    assert _si_figures(out) == [], _si_figures(out)
+    html = report.read_text()
+    body = re.sub(r"<[^>]+>", " ", html[: html.index('<section class="trace">')])  # the trace quotes the command
+    assert "opens too fast" in body
+    assert _si_figures(body) == [], _si_figures(body)
+    code, csv_text = run(*args[:-1], "--csv")
+    assert code == 0 and _si_figures(csv_text) == [], _si_figures(csv_text)
+
+
+def test_imperial_fly_report_words_every_figure_in_imperial(tmp_path) -> None:
+    frame = _imperial(TOLLGATE, tmp_path, {'"9.5 kg"': '"20.94 lb"', '"102 mm"': '"4.02 in"', '"5.5 m"': '"18 ft"',
+                                           '"24 degC"': '"75 degF"', '"970 hPa"': '"28.64 inHg"',
+                                           '"4 m/s"': '"13.1 ft/s"', '"2.4 m"': '"94.5 in"'})
+    report = tmp_path / "f.html"
+    code, out = run("--units", "imperial", "fly", frame, "--catalog", str(SAMPLE_DIR), "--motor", "K1084-P",
+                    "--report", str(report), env={"COLUMNS": "200"})
+    assert code in (0, 1), out
+    assert _si_figures(out) == [], _si_figures(out)
+    html = report.read_text()
+    body = re.sub(r"<[^>]+>", " ", html[: html.index('<section class="trace">')])
+    assert _si_figures(body) == [], _si_figures(body)
