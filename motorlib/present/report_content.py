@@ -248,6 +248,11 @@ def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
 
 # ----------------------------------------------------------------------------- match
 _VERDICT_MARK = {"pass": "ok", "pass with ballast": "ok", "off target": "caution"}
+# The ranking's share of two printed pages (A4 or Letter, with the chart, conditions, cautions and trace): about
+# this many lines of its widest column, the reasons, at about this many characters a line (measured in Chromium's
+# print of tests/present/test_report_browser.py's large ranking). Rows past it are left out, in rank order.
+_RANKING_LINES = 60
+_REASON_CHARS_PER_LINE = 70
 
 
 def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
@@ -259,10 +264,10 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
     u = units
     du = _display(u)
     c = result.conditions
-    shown = [cand for cand in result.candidates if cand.fits]
+    fitting = [cand for cand in result.candidates if cand.fits]
     speed = deployment_column(result.candidates)
-    rows, marks = [], []
-    for rank, cand in enumerate(shown, 1):
+    rows, marks, lines = [], [], 0
+    for rank, cand in enumerate(fitting, 1):
         delay = "-" if cand.chosen_delay_s is None else (
             f"{cand.chosen_delay_s:g}{' drilled' if cand.delay_adjusted else ''}/{cand.optimal_delay_s:.1f}")
         rows.append((str(rank), cand.designation, quantity(cand.apogee_m, "length", u),
@@ -275,15 +280,24 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
                                + [f"note: {note_text(code, text, cand, c, du)}"
                                   for code, text in zip(cand.note_codes, cand.notes)]
                                + _extra_mass_words(cand, c, du))))
+        lines += -(-len(rows[-1][-1]) // _REASON_CHARS_PER_LINE)  # ceil: the lines its reasons wrap to
+        if lines > _RANKING_LINES and len(rows) > 1:  # the two printed pages are full: the rest is in --csv/--json
+            rows.pop()
+            break
         marks.append(_VERDICT_MARK.get(cand.verdict, "fail"))
+    shown = fitting[: len(rows)]
+    left = len(fitting) - len(shown)
     ranking = TableBlock(
         f"Ranking: {match_count(result)}",
         ("#", "motor", "apogee", "rail exit", "T/W", "delay s", speed.report_name, "verdict and reasons"),
         tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
         f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
         f"{speed.report_name.capitalize()}{speed.legend[len(speed.table_name):]}. "
-        f"{len(result.candidates) - len(shown)} motor(s) do not fit the mount or the class limit and are not listed.",
-        nowrap=(False, True, False, False, False, False, False, False))
+        + (f"The next {left} motor(s) that fit, ranked below these, are left out to keep the report to two pages "
+           "(motorlib match lists them all, with --csv or --json in full). " if left else "")
+        + f"{len(result.candidates) - len(fitting)} motor(s) do not fit the mount or the class limit and are not "
+          "listed.",
+        nowrap=(False, True, False, False, False, False, False, False), breakable=True)
     conditions = Facts("Conditions and rules", (
         ("airframe", f"{result.airframe['name']}, {quantity(result.airframe['mass_kg'], 'mass', u)} empty"),
         ("target", "-" if not c.get("target_m") else
@@ -295,7 +309,9 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
                          else f" ({c.get('rail_exit_wind_ratio', 4):g} x the wind)")),
         ("thrust-to-weight", f">= {c['min_liftoff_thrust_to_weight']:g} at liftoff"),
         ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
-        ("deployment speed", deployment_rule(speed, c, None, lambda v: quantity(v, "speed", u))),
+        ("deployment speed", deployment_rule(speed, c, None if frame is None else
+                                             [d.device for d in frame.recovery_devices],
+                                             lambda v: quantity(v, "speed", u))),
         ("descent rate", f"<= {quantity(c['max_landing_speed_m_s'], 'speed', u)}"),
         *_stability_rule(c),
         ("catalog", catalog),
@@ -305,7 +321,7 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
                         + ("Landing speed is the descent rate under the device at landing.",))
     return MatchReport(title=f"Motors for {result.airframe['name']}",
                        subtitle="Every motor that fits, flown with the same airframe and conditions",
-                       ranking=ranking, chart=match_chart(result, units=du), conditions=conditions,
+                       ranking=ranking, chart=match_chart(result, units=du, candidates=shown), conditions=conditions,
                        trace=trace_for(inputs, command, made_at), assumptions=assumptions)
 
 
