@@ -90,7 +90,7 @@ def _match_options(func: Any) -> Any:
         click.option("--ballast", is_flag=True,
                      help="Solve the nose weight that brings every motor too strong for the target or the ceiling "
                           "down to the target, and re-check every rule with it."),
-        click.option("--min-stability", "min_stability_cal", type=click.FloatRange(min=0.0), default=None,
+        click.option("--min-stability", "min_stability_cal", type=_Finite(0.0, 10.0), default=None,
                      help="Least stability margin in calibers over the powered flight, when the airframe has a "
                           "[geometry] (default 1: common practice, no published source)."),
         _units_option,
@@ -209,8 +209,10 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
 
     Motors that fit the mount (and the class limit) are flown together; each
     gets its apogee, rail exit speed, liftoff thrust-to-weight, optimal delay,
-    the closest available delay and the ejection speed with it, and the
-    reasons it fails any rule. With a [geometry] in the airframe file a motor
+    the closest available delay, the speed through the air at which the
+    recovery device opens with it ('opens'; without a device listed, the
+    speed over the ground when the delay fires, 'eject'), and the reasons it
+    fails any rule. With a [geometry] in the airframe file a motor
     that leaves less than --min-stability fails, with the nose weight that
     restores the margin flown again. With --target the ranking is by closeness
     to it; otherwise by apogee under the ceiling. Good choices come first:

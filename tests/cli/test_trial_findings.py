@@ -259,3 +259,14 @@ def test_imperial_fly_report_words_every_figure_in_imperial(tmp_path) -> None:
     html = report.read_text()
     body = re.sub(r"<[^>]+>", " ", html[: html.index('<section class="trace">')])
     assert _si_figures(body) == [], _si_figures(body)
+
+
+@pytest.mark.parametrize("command", ["fly", "match"])
+@pytest.mark.parametrize("value", ["nan", "inf"])
+def test_min_stability_refuses_what_is_not_a_number(command: str, value: str) -> None:
+    # fly --min-stability nan switched the stability rule off ("nan to 3 cal" on the card); match answered with
+    # the library's field name ("min_stability_cal must be finite")
+    code, out = run(command, QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "F29-8", "--min-stability", value) \
+        if command == "fly" else run(command, QUIBBLE, "--catalog", str(SAMPLE_DIR), "--min-stability", value)
+    assert code == 2, out
+    assert "--min-stability" in out and "min_stability_cal" not in out, out
