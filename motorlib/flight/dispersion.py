@@ -71,7 +71,7 @@ from ..motor.record import FiringSpread, MotorRecord
 from .sample_stats import (CHI2_2DOF_95, _num, _percentiles, _probability, ellipse, failure_shares, inside_ellipse,
                            rule_masks)
 
-__all__ = ["BLOCK_SIZE", "CHI2_2DOF_95", "VARIABLES", "DispersionSettings", "Uncertainty", "catalog_spread",
+__all__ = ["BLOCK_SIZE", "CHI2_2DOF_95", "MAX_RELATIVE_STD", "VARIABLES", "DispersionSettings", "Uncertainty", "catalog_spread",
            "default_workers", "ellipse", "fly_samples", "inside_ellipse", "nominal_delay_s", "run_samples", "run_scatter", "sampled_margin_cal", "stability_spread", "standard_normals", "summarize"]
 
 VARIABLES: Final = ("total_impulse", "burn_time", "airframe_mass", "motor_mass", "drag", "wind_speed",
@@ -79,6 +79,7 @@ VARIABLES: Final = ("total_impulse", "burn_time", "airframe_mass", "motor_mass",
 """Column order of the standard normal draws; new variables go at the end so old draws stay."""
 
 BLOCK_SIZE: Final = 64  # samples per random stream; any value works, it only fixes the draws
+MAX_RELATIVE_STD: Final = 0.3  # a relative spread at or above it: a draw 3.3 sigma low would reach zero or below
 _MAX_RAIL_RAD: Final = math.radians(30.0)  # the Launch record's limit
 _MAX_WIND_M_S: Final = 40.0  # the Launch record's limit
 
@@ -130,8 +131,8 @@ class Uncertainty:
             object.__setattr__(self, name, value)
         for name in ("total_impulse_relative_std", "burn_time_relative_std", "airframe_mass_relative_std",
                      "motor_mass_relative_std", "drag_relative_std"):
-            if getattr(self, name) >= 0.3:  # a 3-sigma draw would reach 0 or below
-                raise ValueError(f"`{name}` must be below 0.3, got {getattr(self, name)!r}")
+            if getattr(self, name) >= MAX_RELATIVE_STD:
+                raise ValueError(f"`{name}` must be below {MAX_RELATIVE_STD:g}, got {getattr(self, name)!r}")
 
     @classmethod
     def zero(cls) -> Uncertainty:

@@ -270,3 +270,16 @@ def test_min_stability_refuses_what_is_not_a_number(command: str, value: str) ->
         if command == "fly" else run(command, QUIBBLE, "--catalog", str(SAMPLE_DIR), "--min-stability", value)
     assert code == 2, out
     assert "--min-stability" in out and "min_stability_cal" not in out, out
+
+
+def test_a_relative_spread_of_30_percent_or_more_is_refused_in_the_users_terms(tmp_path) -> None:
+    # "--drag-std 50%" answered "drag_relative_std must be below 0.3, got 0.5" (a library name, a fraction)
+    code, out = run("scatter", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "F29-8", "-n", "2", "--drag-std", "50%")
+    text = " ".join(out.split())
+    assert code == 2 and "--drag-std" in text and "50%" in text and "30 %" in text, text
+    assert "drag_relative_std" not in text and "0.3" not in text, text
+    frame = tmp_path / "q.toml"
+    frame.write_text(Path(QUIBBLE).read_text() + '\n[uncertainty]\ndrag = "50 %"\n')
+    code, out = run("scatter", str(frame), "--catalog", str(SAMPLE_DIR), "--motor", "F29-8", "-n", "2")
+    text = " ".join(out.split())
+    assert code == 2 and "uncertainty.drag" in text and "30 %" in text and "drag_relative_std" not in text, text
