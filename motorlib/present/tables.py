@@ -743,6 +743,7 @@ def _shape_rows(s: dict) -> list[tuple[str, str]]:
 
 
 def _heading(text: str) -> Text:
+    """A bold line; ``text`` is shown as written (a Text reads no markup, so it needs no escaping)."""
     return Text(text, style="bold")
 
 
@@ -760,7 +761,7 @@ def airframe_report(summary: dict) -> Group:
     columns.
     """
     s = summary
-    parts: list[object] = [_heading(escape(f"{s['airframe']}: derived airframe (positions from the nose tip)"))]
+    parts: list[object] = [_heading(f"{s['airframe']}: derived airframe (positions from the nose tip)")]
     shape = Table(show_header=False, box=box.SIMPLE, pad_edge=False)
     shape.add_column(style="bold", no_wrap=True)
     shape.add_column(overflow="fold")
@@ -776,8 +777,8 @@ def airframe_report(summary: dict) -> Group:
 
     motor, stab = s["motor"], s["stability"]
     if motor is not None:
-        parts.append(_heading(escape(f"Stability with {motor['designation']}"
-                                     + (f" ({motor['maker']})" if motor["maker"] else ""))))
+        parts.append(_heading(f"Stability with {motor['designation']}"
+                              + (f" ({motor['maker']})" if motor["maker"] else "")))
         table = _plain_table("", "CG (mm)", "CP (mm)", "margin")
         table.add_row("no motor", _fmt(s["cg_empty_m"], 4, 1e3), _fmt(s["cp_m"], 4, 1e3), _cal(s["margin_empty_cal"]))
         table.add_row("liftoff", _fmt(stab["cg_liftoff_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),

@@ -283,3 +283,12 @@ def test_a_relative_spread_of_30_percent_or_more_is_refused_in_the_users_terms(t
     code, out = run("scatter", str(frame), "--catalog", str(SAMPLE_DIR), "--motor", "F29-8", "-n", "2")
     text = " ".join(out.split())
     assert code == 2 and "uncertainty.drag" in text and "30 %" in text and "drag_relative_std" not in text, text
+
+
+def test_the_airframe_command_shows_a_name_with_brackets_as_written(tmp_path) -> None:
+    # "[red]Evil[/red]" came out as "\[red]Evil\[/red]": escaped for markup inside a Text, which reads none
+    frame = tmp_path / "b.toml"
+    frame.write_text(Path(QUIBBLE).read_text().replace('name = "Quibble 41 (demo)"', 'name = "Quibble [v2]"'))
+    code, out = run("airframe", str(frame), "--catalog", str(SAMPLE_DIR), "--motor", "F29-8")
+    assert code == 0, out
+    assert "Quibble [v2]: derived airframe" in out and "\\[" not in out, out
