@@ -149,7 +149,7 @@ def _status(report: CheckReport) -> Text:
 
 def check_status_line(report: CheckReport) -> Text:
     """``Log firing-2.csv  warnings``: the head of one log's check block."""
-    return Text.assemble(("Log ", "bold"), escape(Path(report.source).name), "  ", _status(report))
+    return Text.assemble(("Log ", "bold"), Path(report.source).name, "  ", _status(report))  # assemble reads no markup
 
 
 def check_summary_table(reports: list[CheckReport], units: DisplayUnits = _METRIC, width: int = 80) -> Table:
@@ -196,7 +196,7 @@ def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
 
 def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: MotorRecord | None = None) -> Group:
     """Metrics and findings of one file; with its ``record`` also where the curve comes from (provenance)."""
-    parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
+    parts: list[object] = [Text.assemble(("File ", "bold"), report.source, "  ", _status(report))]  # no markup read
     m = report.metrics
     if m:
         table = _facts()
@@ -665,7 +665,7 @@ def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
     u = units
     text = Text()
     for entry in summary:
-        text.append(escape(entry["file"]), style="bold")
+        text.append(entry["file"], style="bold")  # Text.append reads no markup
         text.append(f": {u.plain(entry['sample_rate_hz'])} Hz, baseline {u.precise(entry['baseline_n'], 'force')}, "
                     f"noise {u.precise(entry['noise_n'], 'force', 2)}, "
                     + (f"low-pass {u.plain(entry['cutoff_hz'])} Hz, " if entry["cutoff_hz"] else "no filter, ")

@@ -292,3 +292,11 @@ def test_the_airframe_command_shows_a_name_with_brackets_as_written(tmp_path) ->
     code, out = run("airframe", str(frame), "--catalog", str(SAMPLE_DIR), "--motor", "F29-8")
     assert code == 0, out
     assert "Quibble [v2]: derived airframe" in out and "\\[" not in out, out
+
+
+def test_check_shows_a_file_name_with_brackets_as_written(tmp_path) -> None:
+    # "File f29\[new].xml": Text.assemble reads no markup, the escape showed
+    curve = tmp_path / "f29[new].xml"
+    curve.write_bytes((SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml").read_bytes())
+    code, out = run("check", str(curve))
+    assert code == 0 and "f29[new].xml" in out and "\\[" not in out, out
