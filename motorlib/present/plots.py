@@ -14,6 +14,7 @@ import io
 import os
 from dataclasses import replace
 from pathlib import Path
+from typing import Final
 
 import numpy as np
 
@@ -176,13 +177,20 @@ _VERDICT_BARS = {"pass": (BLUE, None, "✓"), "pass with ballast": (BLUE, "..", 
                  "off target": ("white", "..", "off target")}
 
 
+MATCH_PLOT_MOTORS: Final = 60  # bars a match chart draws at most (about 30 inches wide): the best, in rank order
+
+
 def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
     """Apogee per flown motor in rank order: passing bars plain blue with a tick, failing bars hatched orange with a
-    cross and their reason; values on the bars; target, tolerance band, ceiling and the region above it explained."""
+    cross and their reason; values on the bars; target, tolerance band, ceiling and the region above it explained.
+
+    At most :data:`MATCH_PLOT_MOTORS` motors, the first in rank order; the footnote says how many more were flown
+    (a chart one bar per motor of a large catalog would be tens of thousands of pixels wide)."""
     plt = _figure()
     from matplotlib.patches import Patch
 
-    flown = [c for c in result.candidates if c.apogee_m is not None]
+    every = [c for c in result.candidates if c.apogee_m is not None]
+    flown = every[:MATCH_PLOT_MOTORS]
     fig, ax = plt.subplots(figsize=(max(6.5, 0.45 * len(flown) + 2.5), 5.0))
     unit = units.unit("length")
     scale = units.convert(1.0, "length", unit)
@@ -236,8 +244,10 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     letters = dict(short_code(code, text) for c in flown if not c.passes
                    for code, text in zip(c.reason_codes, c.reasons))
     reasons = "; ".join(f"{letter} {meaning}" for letter, meaning in letters.items())
-    fig.text(0.01, -0.09, f"Numbers: apogee in {unit}." + (f" Fail codes: {reasons}." if reasons else "") + " "
-             + _CAUTION, fontsize=7, color=MUTED, wrap=True, va="top")
+    more = len(every) - len(flown)
+    fig.text(0.01, -0.09, f"Numbers: apogee in {unit}." + (f" Fail codes: {reasons}." if reasons else "")
+             + (f" The {len(flown)} best of {len(every)} motors flown; the rest are in the table." if more else "")
+             + " " + _CAUTION, fontsize=7, color=MUTED, wrap=True, va="top")
     out = _save(fig, path)
     plt.close(fig)
     return out
