@@ -44,7 +44,7 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
         table.add_column(name, justify="right" if name else "left")
     a = summary["apogee_m"]
     table.add_row("apogee", *_triple(a, "length", u))
-    table.add_row("deployment speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
+    table.add_row("opening air speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
     table.add_row("descent rate at landing", *_triple(summary["landing_speed_m_s"], "speed", u))
     table.add_row("landing distance", *_triple(summary["landing"]["distance_m"], "length", u))
     table.add_row("flight duration", *[u.quantity(summary["flight_duration_s"].get(k), "time", 1)
