@@ -710,34 +710,38 @@ def _fmt(value: object, digits: int = 4, scale: float = 1.0, unit: str = "") -> 
     return f"{number:,.{decimals}f}{(' ' + unit) if unit else ''}"
 
 
-def _mm(value: object, digits: int = 4) -> str:
-    return _fmt(value, digits, 1e3, "mm")
+def _mm(value: object, digits: int = 4, u: DisplayUnits = _METRIC) -> str:
+    """A length along or across the airframe, in mm (or inches with imperial units), about ``digits`` figures."""
+    return _fmt(value, digits, u.convert(1.0, "size"), u.unit("size"))
 
 
 def _cal(value: object) -> str:
     return "-" if value is None else f"{float(value):.2f} cal"  # type: ignore[arg-type]
 
 
-def _shape_rows(s: dict) -> list[tuple[str, str]]:
+def _shape_rows(s: dict, u: DisplayUnits = _METRIC) -> list[tuple[str, str]]:
     g = s["geometry"]
     nose = g["nose"]
     shape = nose["shape"] + (f" (exponent {nose['exponent']:g})" if nose["exponent"] is not None else "")
-    rows = [("diameter", _mm(s["diameter_m"])),
-            ("length", f"{_mm(g['length_m'])}: nose {_mm(nose['length_m'])} {shape}, body {_mm(g['body_length_m'])}")]
+    rows = [("diameter", _mm(s["diameter_m"], u=u)),
+            ("length", f"{_mm(g['length_m'], u=u)}: nose {_mm(nose['length_m'], u=u)} {shape}, "
+                       f"body {_mm(g['body_length_m'], u=u)}")]
     f = g["fins"]
     rows.append(("fins", "none" if f is None else (
-        f"{f['count']} x root {_mm(f['root_chord_m'], 3)}, tip {_mm(f['tip_chord_m'], 3)}, span {_mm(f['span_m'], 3)}, "
-        f"sweep {_mm(f['sweep_m'], 3)}, {_mm(f['thickness_m'], 2)} thick, {f['profile']}; root leading edge at "
-        f"{_mm(f['root_leading_edge_m'])}")))
+        f"{f['count']} x root {_mm(f['root_chord_m'], 3, u)}, tip {_mm(f['tip_chord_m'], 3, u)}, "
+        f"span {_mm(f['span_m'], 3, u)}, "
+        f"sweep {_mm(f['sweep_m'], 3, u)}, {_mm(f['thickness_m'], 2, u)} thick, {f['profile']}; root leading edge at "
+        f"{_mm(f['root_leading_edge_m'], u=u)}")))
     for i, t in enumerate(g["transitions"], 1):
         kind = "shoulder" if t["aft_diameter_m"] > t["fore_diameter_m"] else "boattail"
-        rows.append((f"transition {i}", f"{kind} {_mm(t['fore_diameter_m'], 3)} to {_mm(t['aft_diameter_m'], 3)} over "
-                                        f"{_mm(t['length_m'], 3)}, from {_mm(t['position_m'])}"))
+        rows.append((f"transition {i}", f"{kind} {_mm(t['fore_diameter_m'], 3, u)} to "
+                                        f"{_mm(t['aft_diameter_m'], 3, u)} over {_mm(t['length_m'], 3, u)}, "
+                                        f"from {_mm(t['position_m'], u=u)}"))
     finish = g["finish"]
     rows.append(("finish", f"{finish['name'] or 'roughness'} ({finish['roughness_m'] * 1e6:.3g} µm), launch guide "
                            f"{g['launch_guide']}"))
-    rows.append(("empty airframe", f"{_fmt(s['mass_kg'], 4, 1e3, 'g')}, CG at {_mm(s['cg_empty_m'])}"))
-    rows.append(("CP (subsonic)", _mm(s["cp_m"])))
+    rows.append(("empty airframe", f"{u.quantity(s['mass_kg'], 'mass')}, CG at {_mm(s['cg_empty_m'], u=u)}"))
+    rows.append(("CP (subsonic)", _mm(s["cp_m"], u=u)))
     rows.append(("margin, no motor", _cal(s["margin_empty_cal"])))
     return rows
 
@@ -754,44 +758,45 @@ def _plain_table(*columns: str) -> Table:
     return table
 
 
-def airframe_report(summary: dict) -> Group:
+def airframe_report(summary: dict, units: DisplayUnits = _METRIC) -> Group:
     """The derived airframe (``motorlib airframe``): shape, CP, CG and margins, drag build-up, Cd(Mach).
 
-    ``summary`` is :func:`motorlib.flight.summary.airframe_summary`; positions from the nose tip. Fits 80
-    columns.
+    ``summary`` is :func:`motorlib.flight.summary.airframe_summary`; positions from the nose tip, in mm (inches
+    with imperial ``units``), masses in the display units. Fits 80 columns.
     """
-    s = summary
+    s, u = summary, units
+    size, per_m = u.unit("size"), u.convert(1.0, "size")
     parts: list[object] = [_heading(f"{s['airframe']}: derived airframe (positions from the nose tip)")]
     shape = Table(show_header=False, box=box.SIMPLE, pad_edge=False)
     shape.add_column(style="bold", no_wrap=True)
     shape.add_column(overflow="fold")
-    for key, value in _shape_rows(s):
+    for key, value in _shape_rows(s, u):
         shape.add_row(key, escape(value))
     parts.append(shape)
 
     parts.append(_heading("Normal force by part (Barrowman, subsonic)"))
-    forces = _plain_table("part", "CN_α (1/rad)", "CP (mm)")
+    forces = _plain_table("part", "CN_α (1/rad)", f"CP ({size})")
     for p in s["normal_force"]:
-        forces.add_row(escape(p["part"]), f"{p['cn_alpha']:.3f}", _fmt(p["cp_m"], 4, 1e3))
+        forces.add_row(escape(p["part"]), f"{p['cn_alpha']:.3f}", _fmt(p["cp_m"], 4, per_m))
     parts.append(forces)
 
     motor, stab = s["motor"], s["stability"]
     if motor is not None:
         parts.append(_heading(f"Stability with {motor['designation']}"
                               + (f" ({motor['maker']})" if motor["maker"] else "")))
-        table = _plain_table("", "CG (mm)", "CP (mm)", "margin")
-        table.add_row("no motor", _fmt(s["cg_empty_m"], 4, 1e3), _fmt(s["cp_m"], 4, 1e3), _cal(s["margin_empty_cal"]))
-        table.add_row("liftoff", _fmt(stab["cg_liftoff_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),
+        table = _plain_table("", f"CG ({size})", f"CP ({size})", "margin")
+        table.add_row("no motor", _fmt(s["cg_empty_m"], 4, per_m), _fmt(s["cp_m"], 4, per_m), _cal(s["margin_empty_cal"]))
+        table.add_row("liftoff", _fmt(stab["cg_liftoff_m"], 4, per_m), _fmt(stab["cp_m"], 4, per_m),
                       _cal(stab["margin_liftoff_cal"]))
-        table.add_row("burnout", _fmt(stab["cg_burnout_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),
+        table.add_row("burnout", _fmt(stab["cg_burnout_m"], 4, per_m), _fmt(stab["cp_m"], 4, per_m),
                       _cal(stab["margin_burnout_cal"]))
         table.add_row(Text("smallest, powered", style="bold"), "", "", Text(_cal(stab["min_margin_cal"]), style="bold"))
         parts.append(table)
         note = Text()
         weight = s["nose_weight_for_stability_kg"]
         if weight is not None:
-            note.append(f"  Nose weight for {s['required_margin_cal']:g} cal: {weight * 1e3:.0f} g at "
-                        f"{s['nose_weight_position_m'] * 1e3:.0f} mm from the tip.\n", style="yellow")
+            note.append(f"  Nose weight for {s['required_margin_cal']:g} cal: {small_mass(u, weight)} at "
+                        f"{_mm(s['nose_weight_position_m'], 3, u)} from the tip.\n", style="yellow")
         for w in s["warnings"]:
             note.append("  warning ", style="yellow")
             note.append(f"{w['code']}: ", style="bold")

@@ -300,3 +300,14 @@ def test_check_shows_a_file_name_with_brackets_as_written(tmp_path) -> None:
     curve.write_bytes((SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml").read_bytes())
     code, out = run("check", str(curve))
     assert code == 0 and "f29[new].xml" in out and "\\[" not in out, out
+
+
+def test_the_airframe_command_follows_the_units_switch() -> None:
+    # `motorlib --units imperial airframe` printed "310.0 g" and every position in mm (README: one setting switches
+    # every table)
+    code, out = run("--units", "imperial", "airframe", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "F29-8")
+    assert code == 0, out
+    assert "10.9 oz" in out and "CG (in)" in out and "22.83 in" in out, out  # 580 mm = 22.83 in
+    assert " mm" not in out and " g," not in out, out
+    code, out = run("airframe", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "F29-8")
+    assert code == 0 and "CG (mm)" in out and "580.0 mm" in out, out
