@@ -796,7 +796,8 @@ def airframe_report(summary: dict, units: DisplayUnits = _METRIC) -> Group:
         weight = s["nose_weight_for_stability_kg"]
         if weight is not None:
             note.append(f"  Nose weight for {s['required_margin_cal']:g} cal: {small_mass(u, weight)} at "
-                        f"{_mm(s['nose_weight_position_m'], 3, u)} from the tip.\n", style="yellow")
+                        f"{u.quantity(s['nose_weight_position_m'], 'size', 0 if u.system == 'metric' else 1)} "
+                        "from the tip.\n", style="yellow")
         for w in s["warnings"]:
             note.append("  warning ", style="yellow")
             note.append(f"{w['code']}: ", style="bold")
