@@ -6,7 +6,7 @@ import os
 
 import click
 
-from .options import _Finite, motor_options
+from .options import _Finite, _units_option, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 
@@ -22,8 +22,9 @@ from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
               help="Write the side profile to scale (CG and CP marked) and Cd against Mach to this PNG file.")
 @click.option("--overwrite", is_flag=True, help="Replace the --plot file if it exists.")
 @click.option("--json", "as_json", is_flag=True, help="Print the figures as JSON (SI units, positions from the nose tip).")
+@_units_option
 def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None, mach: float, min_stability_cal: float,
-             plot_path: str | None, overwrite: bool, as_json: bool) -> None:
+             plot_path: str | None, overwrite: bool, as_json: bool, units: str | None) -> None:
     """Show what the [geometry] of AIRFRAME_FILE (TOML) gives.
 
     Lengths, the centre of pressure (Barrowman, subsonic), the CG without
@@ -65,7 +66,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
     from ..present import tables as render
 
     console = _console()
-    console.print(render.airframe_report(summary))
+    console.print(render.airframe_report(summary, display_units(units)))
     if written is not None:
         console.print(f"Wrote {render.escape(str(written))}")
     _caution(console)

@@ -11,7 +11,7 @@ import click
 from ..errors import QuantityError
 from .group import _Group
 from .options import (_catalog_option, _metadata_for, _metadata_options, _open_catalog, _Quantity,
-                      _units_option, display_units)
+                      _units_option, display_units, resolve_motor)
 from .output import _check_outputs, _console, _err_console, _json_text
 
 
@@ -195,7 +195,7 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
     console = _console()
     records = []
     for ref in refs:
-        motor_id = cat.resolve(ref)
+        motor_id = resolve_motor(cat, ref)
         record = cat.get(motor_id)
         records.append((motor_id, record))
         report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0].handle}", True, record,
@@ -232,7 +232,7 @@ def catalog_tag(catalog_dir: str | None, refs: tuple[str, ...], name: str) -> No
       motorlib catalog tag G59-10 F29-8 in-stock
     """
     cat = _open_catalog(catalog_dir)
-    ids = cat.tag(list(refs), name)
+    ids = cat.tag([resolve_motor(cat, r) for r in refs], name)
     _console().print(f"Tagged {len(ids)} motor(s) {name!r}.")
 
 
@@ -248,7 +248,7 @@ def catalog_untag(catalog_dir: str | None, refs: tuple[str, ...], name: str) -> 
       motorlib catalog untag F29-8 in-stock
     """
     cat = _open_catalog(catalog_dir)
-    ids = cat.untag(list(refs), name)
+    ids = cat.untag([resolve_motor(cat, r) for r in refs], name)
     _console().print(f"Removed tag {name!r} from {len(ids)} motor(s).")
 
 
@@ -264,7 +264,7 @@ def catalog_remove(catalog_dir: str | None, refs: tuple[str, ...]) -> None:
     """
     cat = _open_catalog(catalog_dir)
     for ref in refs:
-        _console().print(f"Removed {cat.remove(ref)}")
+        _console().print(f"Removed {cat.remove(resolve_motor(cat, ref))}")
 
 
 @catalog.command("export")
@@ -287,7 +287,7 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     from ..files.export import export_records
 
     cat = _open_catalog(catalog_dir)
-    ids = [cat.resolve(r) for r in refs] if refs else [r.motor_id for r in cat.rows(_filter(opts))]
+    ids = [resolve_motor(cat, r) for r in refs] if refs else [r.motor_id for r in cat.rows(_filter(opts))]
     rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
     items = [(r.handle, cat.get(r.motor_id)) for r in rows]
     try:

@@ -6,7 +6,7 @@ from typing import TYPE_CHECKING, Any, Mapping
 
 import click
 
-from .options import (_Quantity, _units_option, apply_field_day, display_units, load_motor, motor_options,
+from .options import (_Finite, _Quantity, _units_option, apply_field_day, display_units, load_motor, motor_options,
                       field_day_options, pop_field_day)
 from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _json_text
 
@@ -30,7 +30,7 @@ if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each c
 @click.option("--ballast", "ballast_kg", type=_Quantity("mass", bare=False, example="25g", minimum=0.0), default=None,
               help="Mass added to the airframe, with a unit (e.g. 25g, 1.2oz); counted at half the nose length "
                    "for the stability margin.")
-@click.option("--min-stability", "min_stability_cal", type=click.FloatRange(min=0.0), default=None,
+@click.option("--min-stability", "min_stability_cal", type=_Finite(0.0, 10.0), default=None,
               help="Warn below this stability margin in calibers when the airframe has a [geometry] (default 1: "
                    "common practice, no published source).")
 @_units_option

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 import click
@@ -15,10 +16,12 @@ from .robust import pop_robust, robust_options, run_robust
 class _Tolerance(click.ParamType):
     """``--target-tolerance``: a percentage of the target (``5%``) or a length (``20m``, ``60ft``).
 
-    A bare number is refused: 5 could be 5 % or 5 m.
+    A bare number is refused: 5 could be 5 % or 5 m. Every refusal says what to give; a length is checked
+    against the target in :func:`match_settings`, which knows it.
     """
 
     name = "tolerance"
+    _WANT = "give a percentage of the target above 0 and below 100, such as 5%, or a length such as 20m"
 
     def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> Any:
         if isinstance(value, tuple):
@@ -26,15 +29,25 @@ class _Tolerance(click.ParamType):
         text = str(value).strip()
         if text.endswith("%"):
             try:
-                return ("fraction", float(text[:-1]) / 100.0)
+                percent = float(text[:-1])
             except ValueError:
-                self.fail(f"{text!r} is not a percentage such as 5%", param, ctx)
+                percent = math.nan
+            if not 0.0 < percent < 100.0:  # NaN fails too
+                self.fail(f"{text!r}: {self._WANT}", param, ctx)
+            return ("fraction", percent / 100.0)
         try:
             float(text)
         except ValueError:
-            return ("length", _Quantity("length", minimum=0.0, strict=True).convert(text, param, ctx))
-        self.fail(f"{text!r} has no unit; give a percentage of the target such as 5% or a length such as 20m",
-                  param, ctx)
+            pass
+        else:
+            self.fail(f"{text!r} has no unit; {self._WANT}", param, ctx)
+        try:
+            length = _Quantity("length", minimum=0.0, strict=True).convert(text, param, ctx)
+        except click.BadParameter:
+            length = math.nan
+        if not (math.isfinite(length) and length > 0.0):
+            self.fail(f"{text!r}: {self._WANT}", param, ctx)
+        return ("length", length)
 
 
 def _match_options(func: Any) -> Any:
@@ -77,7 +90,7 @@ def _match_options(func: Any) -> Any:
         click.option("--ballast", is_flag=True,
                      help="Solve the nose weight that brings every motor too strong for the target or the ceiling "
                           "down to the target, and re-check every rule with it."),
-        click.option("--min-stability", "min_stability_cal", type=click.FloatRange(min=0.0), default=None,
+        click.option("--min-stability", "min_stability_cal", type=_Finite(0.0, 10.0), default=None,
                      help="Least stability margin in calibers over the powered flight, when the airframe has a "
                           "[geometry] (default 1: common practice, no published source)."),
         _units_option,
@@ -124,7 +137,7 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         from ..present.report_content import match_report
 
         report = match_report(result, inputs=[airframe_file], command=_command_line(), catalog=str(cat.root),
-                              units=_card_units(units))
+                              units=_card_units(units), frame=frame)
         written.append(_write_report(report, opts["report_path"], opts["overwrite"], [airframe_file]))
     if opts["as_json"]:
         click.echo(_json_text({"airframe": result.airframe, "conditions": conditions,
@@ -169,8 +182,12 @@ def match_settings(opts: dict[str, Any]) -> Any:
     tolerance = opts.get("target_tolerance")
     if tolerance is not None:
         kind, value = tolerance
-        if kind == "length" and not opts["target_m"]:
-            raise click.UsageError("--target-tolerance as a length needs --target")
+        if not opts["target_m"]:
+            raise click.UsageError("--target-tolerance needs --target (the altitude it is a tolerance of)")
+        if kind == "length" and not value < opts["target_m"]:
+            shown = display_units(opts.get("units"))  # a length given on the command line is echoed as typed
+            raise click.UsageError(f"--target-tolerance {shown.given(value, 'length')} is not below the "
+                                   f"{shown.given(opts['target_m'], 'length')} target; {_Tolerance._WANT} below it")
         extra["target_tolerance"] = value / opts["target_m"] if kind == "length" else value
     if opts.get("min_stability_cal") is not None:
         extra["min_stability_cal"] = opts["min_stability_cal"]
@@ -192,8 +209,10 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
 
     Motors that fit the mount (and the class limit) are flown together; each
     gets its apogee, rail exit speed, liftoff thrust-to-weight, optimal delay,
-    the closest available delay and the ejection speed with it, and the
-    reasons it fails any rule. With a [geometry] in the airframe file a motor
+    the closest available delay, the speed through the air at which the
+    recovery device opens with it ('opens'; without a device listed, the
+    speed over the ground when the delay fires, 'eject'), and the reasons it
+    fails any rule. With a [geometry] in the airframe file a motor
     that leaves less than --min-stability fails, with the nose weight that
     restores the margin flown again. With --target the ranking is by closeness
     to it; otherwise by apogee under the ceiling. Good choices come first:

@@ -413,6 +413,29 @@ def motor_options(required: bool = True) -> Any:
     return decorate
 
 
+def resolve_motor(catalog: Any, ref: str) -> str:
+    """The id of the motor ``ref`` names in ``catalog`` (:meth:`Catalog.resolve`); a reference that names none
+    raises :class:`~motorlib.errors.MotorNotFoundError` with the closest designations and handles (difflib's
+    ratio, case folded) and how to list them all."""
+    import difflib
+
+    from ..errors import MotorNotFoundError
+
+    try:
+        return str(catalog.resolve(ref))
+    except MotorNotFoundError as exc:
+        if "several motors match" in str(exc):
+            raise
+        names: dict[str, str] = {}  # folded -> as the catalog spells it; designations first, then handles
+        for row in catalog.rows():
+            for name in (row.designation, row.handle):
+                if name:
+                    names.setdefault(name.casefold(), name)
+        close = difflib.get_close_matches(ref.strip().casefold(), list(names), n=4, cutoff=0.6)
+        hint = f"; did you mean {', '.join(names[c] for c in close)}?" if close else ""
+        raise MotorNotFoundError(f"{exc}{hint} ('motorlib catalog list' lists them)") from None
+
+
 def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = None) -> tuple[Any, str | None]:
     """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file.
 
@@ -428,7 +451,7 @@ def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = 
         motor, path = load_curve_file(motor_ref), motor_ref
     else:
         catalog = _open_catalog(_catalog_or_samples(catalog_dir))
-        motor_id = catalog.resolve(motor_ref)
+        motor_id = resolve_motor(catalog, motor_ref)
         row_path = next((row.path for row in catalog.rows() if row.motor_id == motor_id), None)
         motor, path = catalog.get(motor_id), (str(Path(catalog.root) / row_path) if row_path else None)
     problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable,

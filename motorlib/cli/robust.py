@@ -120,6 +120,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
                              "min_liftoff_thrust_to_weight": match.rules.min_liftoff_thrust_to_weight,
                              "max_ejection_speed_m_s": match.rules.max_ejection_speed_m_s,
                              "max_landing_speed_m_s": match.rules.max_landing_speed_m_s,
+                             "min_stability_cal": match.min_stability_cal if frame.geometry is not None else None,
                              "catalog": str(cat.root)},
               "caution": _EPILOG}
     if opts["as_json"]:

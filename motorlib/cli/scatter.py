@@ -44,6 +44,11 @@ class _Relative(click.ParamType):
         if number >= 1.0 and not text.endswith("%"):
             self.fail(f"{text} would mean {100 * number:g} %; write {text}% for a percentage, or a fraction "
                       "below 1 such as 0.03", param, ctx)
+        from ..files.uncertainty_toml import relative_too_large
+        from ..flight.dispersion import MAX_RELATIVE_STD
+
+        if number >= MAX_RELATIVE_STD:
+            self.fail(relative_too_large(text, MAX_RELATIVE_STD), param, ctx)
         return number
 
 

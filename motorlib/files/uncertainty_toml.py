@@ -71,15 +71,29 @@ def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: 
 
 
 def _relative(source: str, where: str, raw: Any) -> float:
-    """A fraction (0.03) or a percentage string ("3 %")."""
+    """A fraction (0.03) or a percentage string ("3 %"), below :data:`~motorlib.flight.dispersion.MAX_RELATIVE_STD`."""
+    from ..flight.dispersion import MAX_RELATIVE_STD
+
+    value = None
     if isinstance(raw, (int, float)) and not isinstance(raw, bool):
-        return float(raw)
-    if isinstance(raw, str) and raw.strip().endswith("%"):
+        value = float(raw)
+    elif isinstance(raw, str) and raw.strip().endswith("%"):
         try:
-            return float(raw.strip()[:-1]) / 100.0
+            value = float(raw.strip()[:-1]) / 100.0
         except ValueError:
             pass
-    raise SimulationInputError(source, where, f"expected a fraction such as 0.03 or a percentage such as '3 %', got {raw!r}")
+    if value is None:
+        raise SimulationInputError(source, where, f"expected a fraction such as 0.03 or a percentage such as '3 %', "
+                                                  f"got {raw!r}")
+    if value >= MAX_RELATIVE_STD:
+        raise SimulationInputError(source, where, relative_too_large(repr(raw), MAX_RELATIVE_STD))
+    return value
+
+
+def relative_too_large(given: str, limit: float) -> str:
+    """Why a relative standard deviation of ``limit`` or more is refused, in percent as the user writes it."""
+    return (f"{given} is {limit * 100:g} % or more: a draw about three standard deviations low would reach zero; give "
+            f"less than {limit * 100:g} %")
 
 
 def _difference_k(source: str, where: str, raw: Any) -> float:

@@ -13,7 +13,9 @@ draws (one standard deviation given by :class:`Uncertainty`):
 * wind speed (absolute, clipped at 0) and wind direction; rail tilt and azimuth;
 * pad temperature: air density at the pad changes as T_nominal/T at the measured
   (or standard) pad pressure;
-* CG of the empty airframe (when a geometry is given): moves the stability margin;
+* CG of the empty airframe (when a geometry is given): moves the stability margin; every sample's least
+  margin, with its own masses and CG (:func:`sampled_margin_cal`), is what ``scatter`` spreads and what
+  ``match --robust`` judges against the minimum margin;
 * deployment altitude (``deploy = "altitude"`` only).
 
 A drag scale and the pad-density ratio both act on the body's drag area, so they
@@ -64,18 +66,20 @@ from .descent import landing_descent_rate_m_s
 from .integrate import OK, FlightSettings, MotorPack, simulate
 from .rulebook import FLIGHT_CODES, code_masks, flown_rule_inputs
 from .rules import LaunchRules
+from .stability import MIN_STABILITY_CAL
 from ..motor.record import FiringSpread, MotorRecord
 from .sample_stats import (CHI2_2DOF_95, _num, _percentiles, _probability, ellipse, failure_shares, inside_ellipse,
                            rule_masks)
 
-__all__ = ["BLOCK_SIZE", "CHI2_2DOF_95", "VARIABLES", "DispersionSettings", "Uncertainty", "catalog_spread",
-           "default_workers", "ellipse", "fly_samples", "inside_ellipse", "nominal_delay_s", "run_samples", "run_scatter", "stability_spread", "standard_normals", "summarize"]
+__all__ = ["BLOCK_SIZE", "CHI2_2DOF_95", "MAX_RELATIVE_STD", "VARIABLES", "DispersionSettings", "Uncertainty", "catalog_spread",
+           "default_workers", "ellipse", "fly_samples", "inside_ellipse", "nominal_delay_s", "run_samples", "run_scatter", "sampled_margin_cal", "stability_spread", "standard_normals", "summarize"]
 
 VARIABLES: Final = ("total_impulse", "burn_time", "airframe_mass", "motor_mass", "drag", "wind_speed",
                     "wind_direction", "rail_angle", "rail_azimuth", "pad_temperature", "cg", "deploy_altitude")
 """Column order of the standard normal draws; new variables go at the end so old draws stay."""
 
 BLOCK_SIZE: Final = 64  # samples per random stream; any value works, it only fixes the draws
+MAX_RELATIVE_STD: Final = 0.3  # a relative spread at or above it: a draw 3.3 sigma low would reach zero or below
 _MAX_RAIL_RAD: Final = math.radians(30.0)  # the Launch record's limit
 _MAX_WIND_M_S: Final = 40.0  # the Launch record's limit
 
@@ -127,8 +131,8 @@ class Uncertainty:
             object.__setattr__(self, name, value)
         for name in ("total_impulse_relative_std", "burn_time_relative_std", "airframe_mass_relative_std",
                      "motor_mass_relative_std", "drag_relative_std"):
-            if getattr(self, name) >= 0.3:  # a 3-sigma draw would reach 0 or below
-                raise ValueError(f"`{name}` must be below 0.3, got {getattr(self, name)!r}")
+            if getattr(self, name) >= MAX_RELATIVE_STD:
+                raise ValueError(f"`{name}` must be below {MAX_RELATIVE_STD:g}, got {getattr(self, name)!r}")
 
     @classmethod
     def zero(cls) -> Uncertainty:
@@ -339,7 +343,7 @@ def _recoveries(recovery: Recovery | None, shift_m: np.ndarray, std_m: float) ->
 _OUTPUTS: Final = ("status", "apogee_m", "apogee_time_s", "liftoff_time_s", "rail_exit_speed_m_s",
                    "liftoff_thrust_to_weight", "optimal_delay_s", "deploy_delay_s", "deploy_speed_m_s",
                    "landing_time_s", "landing_speed_m_s", "flight_duration_s", "landing_east_m",
-                   "landing_north_m", "cg_shift_m", "max_mach", "wind_speed_m_s", "broken")
+                   "landing_north_m", "cg_shift_m", "sampled_margin_cal", "max_mach", "wind_speed_m_s", "broken")
 
 
 def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: Sequence[Uncertainty],
@@ -372,6 +376,8 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
         The keys of ``_OUTPUTS``: apogee, times, rail exit speed, deployment and landing figures
         (``landing_speed_m_s`` is the descent rate under the device at landing, as ``fly`` and ``match`` report
         it), and
+        ``sampled_margin_cal``: each flight's least static margin [calibers] with its own masses and CG
+        (:func:`sampled_margin_cal`; NaN without a geometry or a motor length), and
         ``broken``, shape (n, len(FLIGHT_CODES)): the codes of :data:`~motorlib.flight.rulebook.FLIGHT_CODES`
         each flight gets from :func:`~motorlib.flight.rulebook.code_masks` under ``settings.launch_rules()``,
         with its own wind, exactly as ``fly`` judges one flight (read them with
@@ -407,9 +413,60 @@ def fly_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
         "deploy_speed_m_s": deploy_speed, "landing_time_s": res.landing_time_s,
         "landing_speed_m_s": rate, "flight_duration_s": res.landing_time_s - res.liftoff_time_s,
         "landing_east_m": res.landing_east_m, "landing_north_m": res.landing_north_m,
-        "cg_shift_m": extra["cg_shift_m"], "max_mach": res.max_mach, "wind_speed_m_s": inputs.wind_speed_m_s,
+        "cg_shift_m": extra["cg_shift_m"],
+        "sampled_margin_cal": sampled_margin_cal(frame, records, motor_index, pack, frames, extra["cg_shift_m"],
+                                                 res.rail_exit_time_s),
+        "max_mach": res.max_mach, "wind_speed_m_s": inputs.wind_speed_m_s,
         "broken": np.column_stack([masks[code] for code in FLIGHT_CODES]),
     }
+
+
+def sampled_margin_cal(frame: Airframe, records: Sequence[MotorRecord], motor_index: np.ndarray, pack: MotorPack,
+                       frames: Sequence[Airframe], cg_shift_m: np.ndarray, rail_exit_time_s: np.ndarray) -> np.ndarray:
+    """The least static margin [calibers] of every sampled flight: liftoff, rail exit and burnout, as ``match``
+    judges it (:func:`~motorlib.flight.stability.stability_for_pack`), with the sample's own masses and CG.
+
+    Parameters
+    ----------
+    frame : Airframe
+        The nominal airframe; its ``geometry`` gives the CP (subsonic, the cautious choice) and the balance point.
+    records : sequence of MotorRecord
+        The motors (their lengths place the motor).
+    motor_index : array of int, shape (n,)
+    pack : MotorPack
+        The sampled motors, one row per flight (sampled loaded and propellant masses, scaled thrust curves).
+    frames : sequence of Airframe
+        The sampled airframes (their ``mass_kg`` is the sampled empty mass).
+    cg_shift_m : array, shape (n,)
+        The sampled shift of the empty airframe's balance point [m], positive aft.
+    rail_exit_time_s : array, shape (n,)
+        Each flight's rail exit [s from ignition] (the propellant burnt by then sets the rail-exit CG).
+
+    Returns
+    -------
+    array, shape (n,)
+        NaN without a geometry, or for a motor without its length or masses (a guessed length would give a
+        guessed margin).
+
+    Notes
+    -----
+    A shift δ of the empty airframe's CG moves the rocket's CG by δ·m_a/M at each point of mass M
+    (x_CG = Σ m·x / M), so each margin falls by δ·m_a/(M·d) from the one with the nominal balance point.
+    """
+    n = motor_index.size
+    if frame.geometry is None:
+        return np.full(n, np.nan)
+    from .stability import stability_for_pack  # numpy only; imported where the margin is wanted
+
+    lengths = np.array([np.nan if r.length_m is None else r.length_m for r in records], dtype=float)[motor_index]
+    airframe_kg = np.array([f.mass_kg for f in frames], dtype=float)
+    s = stability_for_pack(frame, pack, lengths, rail_exit_time_s=rail_exit_time_s, airframe_mass_kg=airframe_kg)
+    d = frame.diameter_m
+    shift = airframe_kg * np.asarray(cg_shift_m, dtype=float) / d
+    lift = s.margin_liftoff_cal - shift / s.mass_liftoff_kg
+    rail = s.margin_rail_exit_cal - shift / s.mass_rail_exit_kg
+    burn = s.margin_burnout_cal - shift / s.mass_burnout_kg
+    return np.fmin(np.fmin(lift, burn), rail)  # fmin skips a rail exit never reached, as Stability.min_margin_cal
 
 
 def nominal_delay_s(frame: Airframe, records: Sequence[MotorRecord], settings: DispersionSettings) -> list[float]:
@@ -417,10 +474,12 @@ def nominal_delay_s(frame: Airframe, records: Sequence[MotorRecord], settings: D
     return _nominal(frame, records, settings)[0]
 
 
-def _nominal(frame: Airframe, records: Sequence[MotorRecord], settings: DispersionSettings
-             ) -> tuple[list[float], np.ndarray]:
-    """Nominal flights of every record: the delay closest to the optimal one, and the apogee [m]."""
-    res = simulate(frame, list(records), settings.flight, descent=False)
+def _nominal(frame: Airframe, records: Sequence[MotorRecord], settings: DispersionSettings,
+             delays_s: Sequence[float] | None = None) -> tuple[list[float], np.ndarray]:
+    """Nominal flights of every record: the delay each flies (``delays_s``, else the one closest to the optimal
+    delay) and the apogee [m] with that delay (a charge that fires while the rocket climbs ends the climb)."""
+    wanted = None if delays_s is None else np.asarray(delays_s, dtype=float)
+    res = simulate(frame, list(records), settings.flight, deploy_delay_s=wanted, descent=False)
     return [res.chosen_delay_s(i) for i in range(res.n_flights)], res.apogee_m
 
 
@@ -539,28 +598,22 @@ def summarize(flights: dict[str, np.ndarray], settings: DispersionSettings, *, t
     return out
 
 
-def stability_spread(frame: Airframe, record: MotorRecord, cg_shift_m: np.ndarray,
-                     min_margin_cal: float = 1.0) -> dict[str, Any] | None:
-    """Stability margin percentiles and P(margin below ``min_margin_cal``) from sampled CG shifts.
+def stability_spread(margin_cal: np.ndarray, min_margin_cal: float = MIN_STABILITY_CAL) -> dict[str, Any] | None:
+    """Percentiles of the sampled least stability margins [calibers] and P(margin below ``min_margin_cal``).
 
-    A shift δ of the empty airframe's CG moves the loaded CG by δ·m_airframe/m_total;
-    the margin (CP − CG)/d moves with it. None without a geometry, motor masses or motor length
-    (a guessed length would give a guessed margin).
+    ``margin_cal`` is :func:`sampled_margin_cal` of every sample (``fly_samples``' ``sampled_margin_cal``), the
+    figure ``match --robust`` judges too. None when no sample's margin is known (no geometry, no motor length
+    or masses: a guessed length would give a guessed margin). ``n_under_min_margin`` counts the samples below.
     """
-    if (frame.geometry is None or record.total_mass_kg is None or record.propellant_mass_kg is None
-            or record.length_m is None):
+    margin = np.asarray(margin_cal, dtype=float)
+    known = np.isfinite(margin)
+    if not known.any():
         return None
-    from .stability import stability_for
-
-    s = stability_for(frame, record.total_mass_kg, record.propellant_mass_kg, record.length_m)
-    liftoff = frame.mass_kg + record.total_mass_kg
-    burnout = liftoff - record.propellant_mass_kg
-    m_lift = float(np.ravel(s.margin_liftoff_cal)[0]) - cg_shift_m * frame.mass_kg / liftoff / frame.diameter_m
-    m_burn = float(np.ravel(s.margin_burnout_cal)[0]) - cg_shift_m * frame.mass_kg / burnout / frame.diameter_m
-    margin = np.minimum(m_lift, m_burn)
-    p = _probability(margin < min_margin_cal, np.ones(margin.size, dtype=bool))
+    below = known & (margin < min_margin_cal)
+    p = _probability(below, known)
     return {"margin_cal": _percentiles(margin), "min_margin_cal": min_margin_cal,
-            "p_under_min_margin": p["p"], "p_under_min_margin_standard_error": p["standard_error"]}
+            "p_under_min_margin": p["p"], "p_under_min_margin_standard_error": p["standard_error"],
+            "n_under_min_margin": int(below.sum())}
 
 
 def run_scatter(frame: Airframe, record: MotorRecord, uncertainty: Uncertainty, settings: DispersionSettings, *,
@@ -591,17 +644,18 @@ def run_scatter(frame: Airframe, record: MotorRecord, uncertainty: Uncertainty, 
     Returns
     -------
     summary : dict
-        :func:`summarize` plus ``delay_s``, ``uncertainty`` and ``nominal_apogee_m``.
+        :func:`summarize` plus ``delay_s``, ``uncertainty`` and ``nominal_apogee_m`` (the apogee of the
+        flight without any sampled variation, with ``delay_s``: the flight ``fly --delay`` gives).
     flights : dict of str to array, shape (n_samples,)
     """
     used = record.firing_spread or spread
     u = uncertainty.for_motor(used)
-    delays, nominal_apogee = _nominal(frame, [record], settings)
+    delays, nominal_apogee = _nominal(frame, [record], settings, None if delay_s is None else [delay_s])
     delay = delays[0] if delay_s is None else float(delay_s)
     flights = run_samples(frame, [record], [u], np.zeros(settings.n_samples, dtype=np.int64),
                           np.arange(settings.n_samples), settings, [delay], workers=workers, progress=progress)
     summary = summarize(flights, settings, target_m=target_m,
-                        stability=stability_spread(frame, record, flights["cg_shift_m"]) if u.cg_std_m > 0 else None)
+                        stability=stability_spread(flights["sampled_margin_cal"]))
     summary["delay_s"] = _num(delay)
     summary["nominal_apogee_m"] = _num(float(nominal_apogee[0]))
     summary["uncertainty"] = u.as_dict()

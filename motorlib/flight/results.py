@@ -44,12 +44,21 @@ class FlightResults:
     ``ejection_*`` arrays have shape (n_flights, n_delays) aligned with
     ``ejection_delay_s`` (NaN where a motor has fewer delays, or where the
     rocket lands before that delay); they describe the rocket without a device
-    (what each delay would meet). ``deployment_*`` and ``opening_load_n`` have
+    (what each delay would meet). ``ejection_speed_m_s`` is the speed over the
+    ground, |v|, when that delay fires (the wind not removed).
+    ``deployment_*`` and ``opening_load_n`` have
     shape (n_flights, n_devices), one column per recovery device in the order
     they open, NaN where a device never opens (the rocket lands first):
-    time, height above the pad, air-relative speed, and the opening-load
-    estimate ½·ρ·v²·(Cd·A of the device), an upper bound without an inflation
-    model; ``deployment_descent_rate_m_s`` is the descent rate under that device
+    time, height above the pad, speed and the opening-load estimate
+    ½·ρ·v²·(Cd·A of the device), an upper bound without an inflation model.
+    ``deployment_speed_m_s`` is the speed through the air, |v − w(z)| with the
+    wind w at that height: what loads the device, and what the
+    ``deployment-fast`` rule judges. A device the charge opens opens at the
+    charge's instant (fully open at once: no inflation model), so the two
+    speeds differ only by the wind; near apogee the rocket drifts with the
+    wind, so the air speed there is usually far below the ground speed
+    (``fly --json``: ``chosen_ejection_speed_m_s`` against
+    ``deployments[k].speed_m_s``). ``deployment_descent_rate_m_s`` is the descent rate under that device
     when the next one opens or at landing. ``landing_*`` is the impact when
     nothing opens; NaN when the descent was not flown (``descent=False``).
     ``optimal_delay_s`` is the delay that fires at the apogee of the rocket
@@ -158,6 +167,9 @@ class FlightResults:
     def summary(self, i: int, listed_delays_s: Sequence[float] | None = None) -> dict[str, object]:
         """Flight ``i`` as a plain dict of SI figures (the ``fly --json`` layout). Times from ignition.
 
+        ``chosen_ejection_speed_m_s`` and ``ejections[k].speed_m_s`` are speeds over the ground when a delay
+        fires; ``deployments[k].speed_m_s`` is the speed through the air when a device opens (see the class).
+
         ``listed_delays_s`` limits ``ejections`` to the motor's listed delays (and the chosen one),
         leaving out the drillable values of adjustable motors.
         """
@@ -214,7 +226,8 @@ class FlightResults:
 
     def deployments(self, i: int) -> list[dict[str, object]]:
         """Flight ``i``'s devices that opened, in order: ``{device, trigger, time_s, altitude_m, speed_m_s,
-        opening_load_n, descent_rate_m_s}`` (SI; speed air-relative; the load an upper-bound estimate)."""
+        opening_load_n, descent_rate_m_s}`` (SI; the speed through the air, relative to the wind, not over the
+        ground; the load an upper-bound estimate)."""
         devices = self.recovery_devices[i] if i < len(self.recovery_devices) else ()
         out = []
         for k, device in enumerate(devices):

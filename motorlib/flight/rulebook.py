@@ -308,9 +308,19 @@ def _delay(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | Non
             f"apogee (optimal delay {optimal:.1f} s; limit {r.max_delay_error_s:g} s)")
 
 
+def _past(value: float, limit: float, decimals: int) -> str:
+    """``value`` with the fewest decimals from ``decimals`` (up to 3 more) that show it above ``limit``."""
+    for extra in range(4):
+        if round(float(value), decimals + extra) > limit:
+            return f"{float(value):.{decimals + extra}f}"
+    return f"{float(value):.{decimals + 3}f}"
+
+
 def _deployment_fast(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    # the speed never reads as its limit ("25 m/s (limit 25 m/s)"); present.messages re-words it in display units
     kind, load = x.device_kinds[k], x.opening_load_n[i, k]
-    return (f"the {kind} opens too fast: {x.deployment_speed_m_s[i, k]:.0f} m/s (limit {r.deployment_limit_m_s(kind):g} "
+    speed = _past(x.deployment_speed_m_s[i, k], r.deployment_limit_m_s(kind), 0)
+    return (f"the {kind} opens too fast: {speed} m/s (limit {r.deployment_limit_m_s(kind):g} "
             f"m/s for a {kind}" + ("" if not np.isfinite(load) else f"; opening load up to {float(load):,.0f} N")
             + "): risk of a torn canopy, a zipper or a broken harness")
 

@@ -99,7 +99,7 @@ def _motor_place(geometry: Geometry, motor_length_m: np.ndarray, case_cg_from_af
     return case, centre
 
 
-def cg_m(geometry: Geometry, airframe_mass_kg: float, motor_case_mass_kg: np.ndarray | float,
+def cg_m(geometry: Geometry, airframe_mass_kg: np.ndarray | float, motor_case_mass_kg: np.ndarray | float,
          motor_propellant_mass_kg: np.ndarray | float, motor_length_m: np.ndarray | float, *,
          case_cg_from_aft_m: np.ndarray | float | None = None, added_mass_kg: np.ndarray | float = 0.0,
          added_mass_position_m: float = 0.0) -> np.ndarray:
@@ -109,8 +109,8 @@ def cg_m(geometry: Geometry, airframe_mass_kg: float, motor_case_mass_kg: np.nda
     ----------
     geometry : Geometry
         Gives the airframe's own CG, the body's aft end and the motor offset.
-    airframe_mass_kg : float
-        Empty airframe mass [kg] (its balance point is ``geometry.cg_m``).
+    airframe_mass_kg : float or ndarray
+        Empty airframe mass [kg] (its balance point is ``geometry.cg_m``), scalar or shape (n_motors,).
     motor_case_mass_kg, motor_propellant_mass_kg, motor_length_m : float or ndarray
         Motor case (hardware) mass [kg], propellant mass present [kg] and motor length [m];
         shape (n_motors,) or broadcastable.
@@ -255,7 +255,7 @@ class Stability:
                 "margin_burnout_cal": num(self.margin_burnout_cal), "min_margin_cal": num(self.min_margin_cal)}
 
 
-def stability_margins(geometry: Geometry, diameter_m: float, airframe_mass_kg: float,
+def stability_margins(geometry: Geometry, diameter_m: float, airframe_mass_kg: np.ndarray | float,
                       motor_total_mass_kg: np.ndarray | float, motor_propellant_mass_kg: np.ndarray | float,
                       motor_length_m: np.ndarray | float, *, mach: np.ndarray | float = 0.0,
                       rail_exit_burnt_fraction: np.ndarray | float | None = None,
@@ -268,8 +268,8 @@ def stability_margins(geometry: Geometry, diameter_m: float, airframe_mass_kg: f
     geometry : Geometry
     diameter_m : float
         Reference (and nose base) diameter [m].
-    airframe_mass_kg : float
-        Empty airframe mass [kg].
+    airframe_mass_kg : float or ndarray
+        Empty airframe mass [kg], scalar or shape (n_motors,) (its balance point is ``geometry.cg_m``).
     motor_total_mass_kg, motor_propellant_mass_kg, motor_length_m : float or ndarray
         Loaded motor mass [kg], its propellant [kg] and motor length [m], shape (n_motors,);
         NaN for a motor whose figure is unknown gives NaN results for it.
@@ -338,15 +338,20 @@ def _require_geometry(airframe: Airframe) -> Geometry:
 def stability_for(airframe: Airframe, motor_total_mass_kg: np.ndarray | float, motor_propellant_mass_kg: np.ndarray | float,
                   motor_length_m: np.ndarray | float, *, mach: np.ndarray | float = 0.0,
                   rail_exit_burnt_fraction: np.ndarray | float | None = None, added_mass_kg: np.ndarray | float = 0.0,
-                  added_mass_position_m: float | None = None) -> Stability:
+                  added_mass_position_m: float | None = None,
+                  airframe_mass_kg: np.ndarray | float | None = None) -> Stability:
     """:func:`stability_margins` for an :class:`~motorlib.flight.airframe.Airframe` with a geometry.
+
+    ``airframe_mass_kg`` (scalar or shape (n_motors,)) replaces the airframe's empty mass [kg], at the same
+    balance point: the sampled masses of a dispersion run.
 
     Raises
     ------
     ValueError
         If the airframe has no ``geometry``.
     """
-    return stability_margins(_require_geometry(airframe), airframe.diameter_m, airframe.mass_kg, motor_total_mass_kg,
+    empty_kg = airframe.mass_kg if airframe_mass_kg is None else airframe_mass_kg
+    return stability_margins(_require_geometry(airframe), airframe.diameter_m, empty_kg, motor_total_mass_kg,
                              motor_propellant_mass_kg, motor_length_m, mach=mach,
                              rail_exit_burnt_fraction=rail_exit_burnt_fraction, added_mass_kg=added_mass_kg,
                              added_mass_position_m=added_mass_position_m)
@@ -393,7 +398,8 @@ def burnt_fraction(time_s: np.ndarray, thrust_n: np.ndarray, at_time_s: np.ndarr
 
 def stability_for_pack(airframe: Airframe, pack: MotorPack, motor_length_m: np.ndarray, *,
                        rail_exit_time_s: np.ndarray | float | None = None, mach: np.ndarray | float = 0.0,
-                       added_mass_kg: np.ndarray | float = 0.0, added_mass_position_m: float | None = None) -> Stability:
+                       added_mass_kg: np.ndarray | float = 0.0, added_mass_position_m: float | None = None,
+                       airframe_mass_kg: np.ndarray | float | None = None) -> Stability:
     """Stability of each motor of a packed batch, rail exit included when its time is given.
 
     Parameters
@@ -410,6 +416,8 @@ def stability_for_pack(airframe: Airframe, pack: MotorPack, motor_length_m: np.n
         burnt by then sets the rail-exit CG.
     mach, added_mass_kg, added_mass_position_m
         As in :func:`stability_margins`.
+    airframe_mass_kg : float or ndarray, optional
+        As in :func:`stability_for`.
 
     Returns
     -------
@@ -425,7 +433,7 @@ def stability_for_pack(airframe: Airframe, pack: MotorPack, motor_length_m: np.n
         burnt = np.where(np.isfinite(exit_s), burnt, np.nan)  # never left the rail: no rail-exit point
     return stability_for(airframe, total, prop, np.asarray(motor_length_m, dtype=float), mach=mach,
                          rail_exit_burnt_fraction=burnt, added_mass_kg=added_mass_kg,
-                         added_mass_position_m=added_mass_position_m)
+                         added_mass_position_m=added_mass_position_m, airframe_mass_kg=airframe_mass_kg)
 
 
 def stability_for_records(airframe: Airframe, records: list[MotorRecord], *,

@@ -29,8 +29,9 @@ class Candidate:
 
     Flown figures, None when not flown: apogee [m above the pad] and its time [s], rail exit speed [m/s],
     liftoff thrust-to-weight, maximum speed [m/s] and Mach number, burnout time [s], the optimal and the
-    chosen delay [s] (``delay_adjusted`` when an adjustable delay was drilled), the state at ejection [m, m/s],
-    the descent rate at landing [m/s], the fastest device opening [m/s], the landing distance [m] and the
+    chosen delay [s] (``delay_adjusted`` when an adjustable delay was drilled), the state at ejection [m, m/s]
+    (speeds over the ground), the descent rate at landing [m/s], the fastest device opening [m/s, through
+    the air: relative to the wind], the landing distance [m] and the
     liftoff mass [kg]. ``ballast_*``: with the solved ballast aboard (``ballast_kg`` None when none was
     solved); ``stability_margin_cal`` and ``nose_weight_*``: the least static margin and the nose weight
     that restores it, flown again (None without a geometry).

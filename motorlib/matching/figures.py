@@ -11,6 +11,10 @@ speed in the power-law wind. Where the descent was flown, every figure is the fl
 The rules are those ``fly`` applies, evaluated once for all candidates
 (:mod:`motorlib.flight.rulebook`).
 
+Two speeds, not to be confused: ``ejection_speed_m_s`` is the speed over the ground when the chosen
+delay fires; ``max_deployment_speed_m_s`` the fastest opening of a device, through the air (relative
+to the wind), the figure the ``deployment-fast`` rule judges and the match table's "opens" column.
+
 numpy only.
 """
 

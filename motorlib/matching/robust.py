@@ -14,7 +14,9 @@ A sampled flight succeeds when it flies (status OK), breaks no launch rule of
 thrust-to-weight, ceiling, the delay fitted before the flight against that flight's optimal
 delay, each device's opening against its kind's limit, the descent rate under the device
 (flown where ``match`` flies the descent, or for a window; else ``match``'s terminal estimate),
-the field; a motor below ``min_stability_cal`` fails ``stability-low`` as in ``match``.
+the field; and stability: each sample's own least margin (its sampled masses and CG,
+:func:`~motorlib.flight.dispersion.sampled_margin_cal`) below ``min_stability_cal`` fails
+``stability-low``, as ``match`` fails the nominal flight.
 ``failures`` counts each code's share of the samples: the rule book's codes
 (:data:`~motorlib.flight.rules.RULE_CODES`) and :data:`WINDOW_CODES`.
 
@@ -104,16 +106,13 @@ def _failures(flights: dict[str, np.ndarray], robust: RobustSettings) -> dict[st
     return out
 
 
-def _stability_flags(frame: Airframe, records: Sequence[MotorRecord], match: MatchSettings, n: int
-                     ) -> np.ndarray | None:
-    """Every sample of a motor whose nominal least margin (liftoff or burnout) is under ``match.min_stability_cal``,
-    or unknown, fails ``stability-low`` (as in ``match``); shape (n_motors·n,) in the samples' order. None without a geometry."""
+def _stability_flags(frame: Airframe, flights: dict[str, np.ndarray], match: MatchSettings) -> np.ndarray | None:
+    """Every sampled flight whose own least margin (``sampled_margin_cal``: its masses and CG, liftoff, rail exit
+    and burnout) is under ``match.min_stability_cal``, or unknown, fails ``stability-low`` (as in ``match``);
+    shape (n_flights,). None without a geometry."""
     if frame.geometry is None:
         return None
-    from ..flight.stability import stability_for_records
-
-    margin = stability_for_records(frame, list(records)).min_margin_cal
-    return np.repeat(~(margin >= match.min_stability_cal), n)  # NaN (unknown) fails too
+    return ~(flights["sampled_margin_cal"] >= match.min_stability_cal)  # NaN (unknown) fails too
 
 
 def _percentiles(values: np.ndarray) -> dict[str, float | None]:
@@ -153,8 +152,10 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
         ``n_samples``, ``seed``, ``windows`` and ``candidates`` (best first), each with
         ``p_success`` and ``p_success_standard_error`` (√(p(1−p)/n)), ``apogee_m`` and
         ``flight_duration_s`` percentiles, the fitted ``delay_s``, the share of flights failing each
-        rule (``failures``, keyed by rule-book code, :data:`WINDOW_CODES` and ``stability-low``) and ``p_difference_to_next_standard_error``, the paired standard
-        error of the difference to the next candidate.
+        rule (``failures``, keyed by rule-book code, :data:`WINDOW_CODES` and ``stability-low``), the sampled
+        least stability margin's percentiles (``stability_margin_cal``, calibers) and the number of samples
+        under ``min_stability_cal`` (``n_below_min_stability``; both None without a geometry), and
+        ``p_difference_to_next_standard_error``, the paired standard error of the difference to the next candidate.
     """
     if len(records) == 0:
         raise ValueError("`records` must not be empty")
@@ -175,7 +176,7 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
     flights = run_samples(frame, records, uncertainties, motor_index, sample_index, ds, delays, descent=descent,
                           workers=workers, progress=progress)
     flags = _failures(flights, settings)
-    stability = _stability_flags(frame, records, match, n)
+    stability = _stability_flags(frame, flights, match)
     if stability is not None:
         flags["stability-low"] = stability
     failed = np.zeros(m * n, dtype=bool)
@@ -194,6 +195,8 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
             "flight_duration_s": _percentiles(flights["flight_duration_s"][rows]),
             "delay_s": float(delays[i]) if np.isfinite(delays[i]) else None,
             "failures": {rule: float(bad[rows].mean()) for rule, bad in flags.items()},
+            "stability_margin_cal": None if stability is None else _percentiles(flights["sampled_margin_cal"][rows]),
+            "n_below_min_stability": None if stability is None else int(np.count_nonzero(stability[rows])),
             "firing_spread_used": (record.firing_spread or spreads[i]) is not None,
         })
     target = None if settings.altitude_window_m is None else 0.5 * sum(settings.altitude_window_m)

@@ -5,6 +5,11 @@ airframe has a shape), **boost** (burnout, top speed, Mach, acceleration, dynami
 its time and place, the delay against the optimal one), **each recovery event** (ejection or deployment, its
 height and speed), **landing** (descent rate, ground speed, distance and bearing from the pad).
 
+Two speeds at recovery, labelled apart: a device's opening is its **air speed** (the rocket's speed relative to
+the wind, what loads the device and what its kind's limit judges); a charge that opens no listed device shows
+its **ground speed** (the speed over the ground when the delay fires). At the same instant they differ by about
+the wind near apogee, where the rocket drifts with it.
+
 A verdict is a mark that reads without colour (:data:`~.palette.VERDICT_MARKS`): ``ok`` (within the rule of
 thumb), ``caution`` (a rule of thumb is broken: the warning is shown in the phase), ``fail`` (the flight
 failed, or the rocket is unstable) and ``info`` (no rule applies). Figures come from the ``fly --json`` summary
@@ -265,7 +270,8 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
             limit = r.deployment_limit_m_s(str(event.get("device") or "parachute"))  # each kind has its own
             figures = [CardFigure("time", _seconds(event.get("time_s"))),
                        CardFigure("height", quantity(event.get("altitude_m"), "length", u)),
-                       CardFigure("speed", quantity(speed, "speed", u), _check(speed, limit, False),
+                       # through the air (relative to the wind): what loads the device, and what its limit judges
+                       CardFigure("air speed", quantity(speed, "speed", u), _check(speed, limit, False),
                                   f"<= {quantity(limit, 'speed', u)}")]
             if event.get("opening_load_n") is not None:  # ½ρv²·CdA: no inflation model, so an upper bound
                 figures.append(CardFigure("opening load", f"up to {float(event['opening_load_n']):,.0f} N"))
@@ -286,7 +292,8 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
             events.append((f"ejection, {ej['delay_s']:g} s delay" + (" opens the device" if folded else ""), [
                 CardFigure("time", _seconds(fired_s)),
                 CardFigure("height", quantity(ej.get("altitude_m"), "length", u)),
-                CardFigure("speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
+                # the charge's figure is over the ground (no device is listed to meet the air)
+                CardFigure("ground speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
                            f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")]))
         if deploy_time is not None and not folded:
             events.append(("device opens", [CardFigure("time", _seconds(s.get("deploy_time_s"))),

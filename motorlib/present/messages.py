@@ -8,6 +8,8 @@ No rich here, so the CSV output can use the same words.
 
 from __future__ import annotations
 
+import re
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from ..matching.candidate import Candidate
@@ -15,9 +17,11 @@ from ..matching.verdicts import miss_percent
 from .display import DisplayUnits
 
 if TYPE_CHECKING:
+    from ..flight.airframe import Airframe
     from ..matching.rank import MatchResult
 
-__all__ = ["REASON_CODES", "match_count", "note_text", "reason_text", "short_code", "verdict_text"]
+__all__ = ["REASON_CODES", "VERDICT_LEGEND", "DeploymentColumn", "assumption_texts", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
+           "short_code", "verdict_text"]
 
 # Rule code (:data:`motorlib.flight.rules.RULE_CODES`; optionally ":" and the start of its text) -> (the one-letter
 # code of match's result column, its legend).
@@ -42,8 +46,83 @@ REASON_CODES = {
     "stability-unknown": ("B", "too little stability margin (CG too far aft)"),
 }
 
-# Verdict word -> the word in the match table's result column (at most 12 characters, so it fits 80 columns).
-_VERDICT_WORDS = {"pass with ballast": "pass+ballast"}
+
+
+@dataclass(frozen=True)
+class DeploymentColumn:
+    """The ranking's column of the speed that recovery meets, in the table and the report alike.
+
+    With a recovery device listed, the rule judges each device's opening (``deployment-fast``): the column is
+    ``max_deployment_speed_m_s``, the fastest opening, the rocket's speed through the air (its speed over the
+    ground less the wind) at the instant the device opens, which is what loads the canopy and the figure
+    ``fly`` gives under "Recovery". Without a device listed, the rule is on the charge (``ejection-fast``):
+    ``ejection_speed_m_s``, the speed over the ground when the chosen delay fires. Near apogee the two differ
+    by about the wind: a rocket drifting with the wind moves slowly through the air and fast over the ground.
+    """
+
+    field: str        # the Candidate figure shown [m/s]
+    code: str         # the rule that judges it
+    table_name: str   # the match table's header
+    report_name: str  # the report's header
+    legend: str       # what it is, in words
+
+    def limit_m_s(self, conditions: Mapping[str, Any]) -> float:
+        """The smallest limit that can judge the figure [m/s] (a failing value is shown beyond it)."""
+        if self.field == "ejection_speed_m_s":
+            return float(conditions["max_ejection_speed_m_s"])
+        return float(min(dict(conditions["max_deployment_speed_m_s"]).values()))
+
+
+_OPENING = DeploymentColumn("max_deployment_speed_m_s", "deployment-fast", "opens", "opening",
+                            "opens: the rocket's speed through the air (relative to the wind, not the ground) "
+                            "when its recovery device opens; the fastest opening where there are several")
+_CHARGE = DeploymentColumn("ejection_speed_m_s", "ejection-fast", "eject", "ejection",
+                           "eject: the speed over the ground when the chosen delay fires (no recovery device listed)")
+
+
+def deployment_rule(column: DeploymentColumn, conditions: Mapping[str, Any], kinds: Sequence[str] | None,
+                    limit: Any) -> str:
+    """The rule of the deployment column in words: ``ejection <= 25 m/s`` or ``opening <= 25 m/s (parachute)``.
+
+    ``kinds`` are the airframe's device kinds (None: every kind with a limit); ``limit(value_m_s)`` writes a
+    limit in the display units."""
+    if column.field == "ejection_speed_m_s":
+        return f"ejection <= {limit(conditions['max_ejection_speed_m_s'])}"
+    limits = dict(conditions["max_deployment_speed_m_s"])
+    shown = dict.fromkeys(kinds if kinds else limits)
+    return "opening <= " + ", ".join(f"{limit(limits.get(kind, limits.get('parachute')))} ({kind})" for kind in shown)
+
+
+def deployment_column(candidates: Sequence[Candidate]) -> DeploymentColumn:
+    """:class:`DeploymentColumn` of a ranking: the opening when any candidate has one (a device is listed)."""
+    return _OPENING if any(c.max_deployment_speed_m_s is not None for c in candidates) else _CHARGE
+
+
+# Verdict word -> what its bar means in the match charts (PNG and report), read as "word: meaning"
+VERDICT_LEGEND = {"pass": "every rule, on target (✓)", "pass with ballast": "every rule with the solved ballast",
+                  "off target": "safe, but outside the target band", "fail": "breaks a rule (✗ and its codes)"}
+
+
+def assumption_texts(conditions: Mapping[str, Any], u: DisplayUnits, frame: Airframe | None = None) -> dict[str, str]:
+    """The assumptions of a ranking (``drag``, ``atmosphere``, ``wind``, ``rail``, ``recovery``) in display units,
+    the airframe file's own numbers echoed as typed; without the ``frame``, the ranking's SI ``conditions`` text."""
+    keys = ("drag", "atmosphere", "wind", "rail", "recovery")
+    if frame is None:
+        return {key: str(conditions[key]) for key in keys}
+    launch, site = frame.launch, frame.launch.site
+    drag = ("Cd(Mach) estimated from the shape, powered and coasting" if frame.drag_source == "estimated"
+            else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
+            else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
+    air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
+                                             if site.elevation_m else "")
+    if site.temperature_k is not None:
+        air += f", {u.given(site.temperature_k, 'temperature')} at the pad"
+    if site.pressure_pa is not None:
+        air += f", {u.given(site.pressure_pa, 'air_pressure')} at the pad"
+    wind = ("a measured profile" if launch.wind_profile is not None else
+            f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7")
+    rail = f"{u.given(launch.rail_length_m, 'length')} at {u.given(launch.rail_angle_rad, 'angle')} from vertical"
+    return dict(zip(keys, (drag, air, wind, rail, str(conditions["recovery"]))))
 
 
 def short_code(code: str, text: str) -> tuple[str, str]:
@@ -56,21 +135,23 @@ def short_code(code: str, text: str) -> tuple[str, str]:
 
 
 def match_count(result: MatchResult) -> str:
-    """"2 of 27 pass, 1 more with ballast, 3 off target": only good choices count as passing."""
+    """"2 of 27 pass, 1 pass with ballast, 3 off target": only good choices count as passing, and each is
+    named by its verdict word (:data:`~motorlib.matching.verdicts.VERDICTS`), as the table, report and JSON name it."""
     verdicts = [c.verdict for c in result.candidates]
     text = f"{verdicts.count('pass')} of {len(verdicts)} pass"
     if verdicts.count("pass with ballast"):
-        text += f", {verdicts.count('pass with ballast')} more with ballast"
+        text += f", {verdicts.count('pass with ballast')} pass with ballast"
     if verdicts.count("off target"):
         text += f", {verdicts.count('off target')} off target"
     return text
 
 
 def verdict_text(verdict: str, codes: Sequence[str], texts: Sequence[str]) -> str:
-    """The result column: the verdict word, and for ``fail`` the one-letter codes of the rules broken."""
+    """The result column: the verdict word (the one the JSON and the report give), and for ``fail`` the
+    one-letter codes of the rules broken."""
     if verdict == "fail":
         return "fail " + " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(codes, texts)))
-    return _VERDICT_WORDS.get(verdict, verdict)
+    return verdict
 
 
 def note_text(code: str, message: str, c: Candidate, cond: dict[str, Any], u: DisplayUnits) -> str:
@@ -123,6 +204,21 @@ def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond:
     if code == "over-ceiling" and get("apogee_m") is not None and cond.get("ceiling_m"):
         v, lim = u.beyond(get("apogee_m"), cond["ceiling_m"], "length", above=True)
         return f"over the ceiling: apogee {v} above {lim}"
+    if code == "deployment-fast":
+        opened = _opening(message, c, cond, prefix)
+        if opened is not None:
+            kind, speed_m_s, limit_m_s, load = opened
+            v, lim = u.beyond(speed_m_s, limit_m_s, "speed", above=True, decimals=0)
+            return (f"the {kind} opens too fast: {v} (limit {lim} for a {kind}"
+                    + ("" if load is None else f"; opening load up to {load}") + "): risk of a torn canopy, a zipper "
+                    "or a broken harness")
+    if code == "lands-outside-field" and cond.get("field_radius_m") is not None:
+        landing = get("landing")
+        distance = (landing or {}).get("distance_m") if isinstance(landing, Mapping) else get("landing_distance_m")
+        distance = _si_figure(message, r"about ([\d,.]+) m from") if distance is None else distance
+        if distance is not None:
+            v, lim = u.beyond(distance, cond["field_radius_m"], "length", above=True)
+            return f"lands outside the field: about {v} from the pad (field radius {lim})"
     speed = get("ejection_speed_m_s") if get("ejection_speed_m_s") is not None else get("chosen_ejection_speed_m_s")
     if code == "ejection-fast" and speed is not None:
         v, lim = u.beyond(speed, cond["max_ejection_speed_m_s"], "speed", above=True, decimals=0)
@@ -131,3 +227,34 @@ def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond:
         v, lim = u.beyond(get("landing_speed_m_s"), cond["max_landing_speed_m_s"], "speed", above=True)
         return f"descent too fast: {v} under the device (limit {lim}): use a larger recovery device"
     return message
+
+
+def _si_figure(message: str, pattern: str) -> float | None:
+    """The first group of ``pattern`` in a library message, as a number (thousands separators dropped)."""
+    found = re.search(pattern, message)
+    return None if found is None else float(found.group(1).replace(",", ""))
+
+
+def _opening(message: str, c: Candidate | Mapping[str, Any], cond: Mapping[str, Any], prefix: str
+             ) -> tuple[str, float, float, str | None] | None:
+    """(kind, speed [m/s], limit [m/s], load text) of a ``deployment-fast`` reason: the device kind the library's
+    message names (:func:`motorlib.flight.rulebook._deployment_fast`), its opening speed from ``fly``'s
+    ``deployments`` where the flight has them, else from the message (a ranked candidate keeps only its fastest
+    opening, which may be another device's), and the kind's limit from the conditions."""
+    kind_match = re.match(r"the (\S+) opens too fast", message)
+    limits = dict(cond.get("max_deployment_speed_m_s") or {})
+    if kind_match is None or not limits:
+        return None
+    kind = kind_match.group(1)
+    limit = float(limits.get(kind, limits.get("parachute", cond.get("max_ejection_speed_m_s", 0.0))))
+    speed, load_n = None, _si_figure(message, r"opening load up to ([\d,.]+) N")
+    events = c.get("deployments") if isinstance(c, Mapping) and not prefix else None
+    for event in events or []:
+        if str(event.get("device")) == kind and event.get("speed_m_s") is not None and event["speed_m_s"] > limit:
+            speed, load_n = float(event["speed_m_s"]), event.get("opening_load_n")
+            break
+    if speed is None:
+        speed = _si_figure(message, r"opens too fast: ([\d,.]+) m/s")
+    if speed is None:
+        return None
+    return kind, speed, limit, None if load_n is None else f"{float(load_n):,.0f} N"  # force stays in N (README)

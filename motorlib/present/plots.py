@@ -14,13 +14,14 @@ import io
 import os
 from dataclasses import replace
 from pathlib import Path
+from typing import Final
 
 import numpy as np
 
 from ..files.fsio import write_atomic
 from ..safety import CHART_CAUTION as _CAUTION
 from .display import DisplayUnits
-from .messages import short_code
+from .messages import VERDICT_LEGEND, short_code
 from .palette import BLUE, BLUE_TINT, INK, MUTED, ORANGE, ORANGE_TINT, RULE
 
 __all__ = ["airframe_plot", "calibration_plot", "curves_plot", "flight_plot", "match_plot", "reduction_plot",
@@ -103,7 +104,7 @@ def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], t
     ax.set_ylabel(f"altitude above the pad ({lu})")
     ax.grid(axis="y")
     ax2 = ax.twinx()
-    ax2.plot(t, speed, color=BLUE, linestyle="--", linewidth=1.4, label="speed (right scale)")
+    ax2.plot(t, speed, color=BLUE, linestyle="--", linewidth=1.4, label="speed over the ground (right scale)")
     ax2.set_ylabel(f"speed ({su})", color=BLUE)
     ax2.set_ylim(0, float(speed.max()) * 1.1 or 1.0)
     ax2.spines["right"].set_visible(True)
@@ -172,21 +173,24 @@ def curves_plot(records, path: str | os.PathLike[str], threshold: float = 0.05) 
 
 
 # Verdict -> (bar fill, hatch, mark); any other verdict is a failure: hatched orange, a cross and its reasons.
-_VERDICT_BARS = {"pass": (BLUE, None, "✓"), "pass with ballast": (BLUE, "..", "✓ with ballast"),
+_VERDICT_BARS = {"pass": (BLUE, None, "✓"), "pass with ballast": (BLUE, "..", "✓ pass with ballast"),
                  "off target": ("white", "..", "off target")}
-_VERDICT_LEGEND = {"pass": "passes every rule, on target (✓)",
-                   "pass with ballast": "passes every rule with the solved ballast",
-                   "off target": "safe, but outside the target band",
-                   "fail": "fails a rule (✗ and its reason)"}
+
+
+MATCH_PLOT_MOTORS: Final = 60  # bars a match chart draws at most (about 30 inches wide): the best, in rank order
 
 
 def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
     """Apogee per flown motor in rank order: passing bars plain blue with a tick, failing bars hatched orange with a
-    cross and their reason; values on the bars; target, tolerance band, ceiling and the region above it explained."""
+    cross and their reason; values on the bars; target, tolerance band, ceiling and the region above it explained.
+
+    At most :data:`MATCH_PLOT_MOTORS` motors, the first in rank order; the footnote says how many more were flown
+    (a chart one bar per motor of a large catalog would be tens of thousands of pixels wide)."""
     plt = _figure()
     from matplotlib.patches import Patch
 
-    flown = [c for c in result.candidates if c.apogee_m is not None]
+    every = [c for c in result.candidates if c.apogee_m is not None]
+    flown = every[:MATCH_PLOT_MOTORS]
     fig, ax = plt.subplots(figsize=(max(6.5, 0.45 * len(flown) + 2.5), 5.0))
     unit = units.unit("length")
     scale = units.convert(1.0, "length", unit)
@@ -223,10 +227,10 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
         ax.axhline(ceiling_at, color=INK, linestyle=":", linewidth=2.0, zorder=1)
         handles.append(plt.Line2D([], [], color=INK, linestyle=":", linewidth=2.0, label=f"ceiling {units.given(ceiling, 'length')}"))
     shown = {c.verdict for c in flown}
-    for verdict, label in _VERDICT_LEGEND.items():
+    for verdict, label in VERDICT_LEGEND.items():  # the verdict words of the table, report and JSON
         if verdict in shown or verdict in ("pass", "fail"):
             fill, hatch, _ = _VERDICT_BARS.get(verdict, (ORANGE, "///", None))
-            handles.append(Patch(facecolor=fill, hatch=hatch, edgecolor=INK, label=label))
+            handles.append(Patch(facecolor=fill, hatch=hatch, edgecolor=INK, label=f"{verdict}: {label}"))
     ax.set_xticks(range(len(flown)))
     ax.set_xticklabels([c.designation for c in flown], rotation=55, ha="right", fontsize=8)
     ax.set_ylim(0, top)
@@ -240,8 +244,10 @@ def match_plot(result, path: str | os.PathLike[str], units: DisplayUnits = _METR
     letters = dict(short_code(code, text) for c in flown if not c.passes
                    for code, text in zip(c.reason_codes, c.reasons))
     reasons = "; ".join(f"{letter} {meaning}" for letter, meaning in letters.items())
-    fig.text(0.01, -0.09, f"Numbers: apogee in {unit}." + (f" Fail codes: {reasons}." if reasons else "") + " "
-             + _CAUTION, fontsize=7, color=MUTED, wrap=True, va="top")
+    more = len(every) - len(flown)
+    fig.text(0.01, -0.09, f"Numbers: apogee in {unit}." + (f" Fail codes: {reasons}." if reasons else "")
+             + (f" The {len(flown)} best of {len(every)} motors flown; the rest are in the table." if more else "")
+             + " " + _CAUTION, fontsize=7, color=MUTED, wrap=True, va="top")
     out = _save(fig, path)
     plt.close(fig)
     return out

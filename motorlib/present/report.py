@@ -56,6 +56,7 @@ class TableBlock:
     marks: tuple[str, ...] = ()
     note: str = ""
     nowrap: tuple[bool, ...] = ()  # columns never broken inside a cell (motor names); numeric ones never are
+    breakable: bool = False  # a long table may run on to the next printed page (between rows, its header repeated)
 
 
 @dataclass(frozen=True)
@@ -165,6 +166,9 @@ h1 {{ font-size: 1.35em; margin: 0; letter-spacing: .01em; }}
 h2 {{ font-size: 1em; margin: 0 0 4px; text-transform: uppercase; letter-spacing: .06em;
       border-bottom: 1px solid var(--rule); padding-bottom: 2px; }}
 section {{ margin: 0 0 12px; break-inside: avoid; page-break-inside: avoid; min-width: 0; }}
+section.breakable {{ break-inside: auto; page-break-inside: auto; }}
+section.breakable h2 {{ break-after: avoid; page-break-after: avoid; }}
+tr {{ break-inside: avoid; page-break-inside: avoid; }}
 .grid {{ display: grid; grid-template-columns: repeat(auto-fit, minmax(230px, 1fr)); gap: 4px 18px; }}
 .pair {{ display: grid; grid-template-columns: repeat(auto-fit, minmax(300px, 1fr)); gap: 6px 18px; }}
 dl {{ display: grid; grid-template-columns: minmax(7em, max-content) 1fr; gap: 1px 10px; margin: 0; font-size: .92em; }}
@@ -247,7 +251,8 @@ def _table(block: TableBlock | None) -> str:
             cells = f"<td>{_mark(block.marks[i])}</td>" + cells
         body.append(f"<tr>{cells}</tr>")
     note = f'<p class="trace">{escape(block.note)}</p>' if block.note else ""
-    return (f'<section><h2>{escape(block.title)}</h2><div class="scroll"><table><thead><tr>{head}</tr></thead>'
+    section = '<section class="breakable">' if block.breakable else "<section>"
+    return (f'{section}<h2>{escape(block.title)}</h2><div class="scroll"><table><thead><tr>{head}</tr></thead>'
             f'<tbody>{"".join(body)}</tbody></table></div>{note}</section>')
 
 

@@ -19,12 +19,14 @@ from typing import TYPE_CHECKING, Any, Sequence
 
 import numpy as np
 
-from .messages import match_count, short_code
+from .display import DisplayUnits
+from .messages import VERDICT_LEGEND, match_count, short_code
 from .palette import BLUE, BLUE_TINT, EVENT_MARKS, INK, MUTED, ORANGE, ORANGE_TINT, PAPER, RULE
 from .report import ChartBlock
 from .svgcharts import SvgChart, thin
 
 if TYPE_CHECKING:
+    from ..matching.candidate import Candidate
     from ..matching.rank import MatchResult
     from ..motor.record import MotorRecord
 
@@ -83,11 +85,15 @@ def _speed(trajectory: dict[str, np.ndarray]) -> np.ndarray:
     return np.sqrt(np.sum(np.square(parts), axis=0))
 
 
-def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key: str = "flight") -> ChartBlock:
-    """Altitude and speed against time up to just past deployment, phases as bands, events marked on the curve."""
+def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key: str = "flight",
+                 units: DisplayUnits | None = None) -> ChartBlock:
+    """Altitude and speed against time up to just past deployment, phases as bands, events marked on the curve;
+    heights and speeds in the display ``units``."""
+    u = units or DisplayUnits()
+    lu, su = u.unit("length"), u.unit("speed")
     t = np.asarray(trajectory["time_s"], dtype=float)
-    z = np.asarray(trajectory["altitude_m"], dtype=float)
-    v = _speed(trajectory)
+    z = np.asarray(trajectory["altitude_m"], dtype=float) * u.convert(1.0, "length", lu)
+    v = _speed(trajectory) * u.convert(1.0, "speed", su)
     events = _events(summary)
     apogee_t = float(summary["time_to_apogee_s"])
     end = max([apogee_t * 1.3] + [e[1] + 0.15 * apogee_t for e in events if e[1] < 3 * apogee_t])
@@ -95,14 +101,14 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
     shown = t <= end
     tt, zz = thin(t[shown], z[shown])
     tv, vv = thin(t[shown], v[shown])
-    apogee = float(summary["apogee_m"])
+    apogee = u.convert(float(summary["apogee_m"]), "length", lu)
     chart = SvgChart(title="Altitude and speed through the flight",
-                     description=(f"Altitude rises to {apogee:.0f} m at {apogee_t:.1f} s; top speed "
-                                  f"{float(summary['max_speed_m_s']):.0f} m/s near burnout at "
+                     description=(f"Altitude rises to {u.quantity(summary['apogee_m'], 'length')} at {apogee_t:.1f} s; "
+                                  f"top speed {u.quantity(summary['max_speed_m_s'], 'speed', 0)} near burnout at "
                                   f"{float(summary['burnout_time_s']):.2f} s. Events: "
                                   + ", ".join(f"{n} at {s:.1f} s" for n, s in events) + "."),
-                     x_label="time from ignition (s)", y_label="altitude above the pad (m)", x_range=(0.0, end),
-                     y_range=(0.0, apogee * 1.18), y2_label="speed (m/s)", y2_range=(0.0, max(vv, default=0.0) * 1.1 or 1.0),
+                     x_label="time from ignition (s)", y_label=f"altitude above the pad ({lu})", x_range=(0.0, end),
+                     y_range=(0.0, apogee * 1.18), y2_label=f"speed ({su})", y2_range=(0.0, max(vv, default=0.0) * 1.1 or 1.0),
                      width=520, height=320, key=key)
     burnout = float(summary["burnout_time_s"])
     deploy = next((s for n, s in events if n not in ("rail exit", "burnout", "apogee")), None)
@@ -112,15 +118,16 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
     if deploy is not None:
         chart.band_x(deploy, end, "under recovery device", fill=BLUE_TINT, hatch="dots", caption="recovery")
     chart.line(tt, zz, "altitude (left scale)", colour=INK, width=2.4)
-    chart.line(tv, vv, "speed (right scale)", colour=BLUE, dash="dashed", width=1.6, axis="y2")
+    chart.line(tv, vv, "speed over the ground (right scale)", colour=BLUE, dash="dashed", width=1.6, axis="y2")
     last_x, lift = -1e9, 0.0
     for name, when in events:
         shape = EVENT_MARKS.get(name, ("diamond", name))[0]
         lift = lift + 14.0 if when - last_x < 0.12 * end else 0.0  # stack labels of events close in time
         last_x = when
-        height = _interp(trajectory, "altitude_m", when)
-        text = {"apogee": f"apogee {apogee:.0f} m, {when:.1f} s", "burnout": f"burnout {when:.2f} s",
-                "rail exit": f"off the rail {float(summary['rail_exit_speed_m_s']):.1f} m/s"}.get(
+        height = u.convert(_interp(trajectory, "altitude_m", when), "length", lu)
+        text = {"apogee": f"apogee {u.quantity(summary['apogee_m'], 'length')}, {when:.1f} s",
+                "burnout": f"burnout {when:.2f} s",
+                "rail exit": f"off the rail {u.quantity(summary['rail_exit_speed_m_s'], 'speed')}"}.get(
                     name, f"{name} {when:.1f} s")
         below = name in ("rail exit",)
         chart.mark(when, height, shape, text, dy=14 if below else -8 - lift,
@@ -131,18 +138,22 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
 
 
 def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_m_s: float,
-               key: str = "side") -> ChartBlock:
-    """The path seen from the side, along the wind: ascent solid, descent dashed, with pad, apogee and landing."""
-    x = _downrange(trajectory)
-    z = np.asarray(trajectory["altitude_m"], dtype=float)
+               key: str = "side", units: DisplayUnits | None = None) -> ChartBlock:
+    """The path seen from the side, along the wind: ascent solid, descent dashed, with pad, apogee and landing;
+    distances in the display ``units``."""
+    u = units or DisplayUnits()
+    lu = u.unit("length")
+    x = _downrange(trajectory) * u.convert(1.0, "length", lu)
+    z = np.asarray(trajectory["altitude_m"], dtype=float) * u.convert(1.0, "length", lu)
+    wind = u.quantity(wind_m_s, "speed")
     descent = np.asarray(trajectory.get("descent", np.zeros(z.size, dtype=bool)), dtype=bool)
     lo, hi = float(min(x.min(), 0.0)), float(max(x.max(), 0.0))
     pad = 0.12 * max(hi - lo, 0.25 * float(z.max()), 1.0)
     chart = SvgChart(title="Side view of the path, with the wind",
-                     description=(f"The rocket climbs to {float(summary['apogee_m']):.0f} m and lands "
-                                  f"{abs(float(x[-1])):.0f} m {'downwind' if x[-1] >= 0 else 'upwind'} of the pad; "
-                                  f"wind {wind_m_s:g} m/s at 10 m, blowing to the right."),
-                     x_label="distance along the wind from the pad (m; + downwind)", y_label="altitude (m)",
+                     description=(f"The rocket climbs to {u.quantity(summary['apogee_m'], 'length')} and lands "
+                                  f"{abs(float(x[-1])):,.0f} {lu} {'downwind' if x[-1] >= 0 else 'upwind'} of the pad; "
+                                  f"wind {wind} at {u.quantity(10.0, 'length')}, blowing to the right."),
+                     x_label=f"distance along the wind from the pad ({lu}; + downwind)", y_label=f"altitude ({lu})",
                      x_range=(lo - pad, hi + pad), y_range=(0.0, float(z.max()) * 1.18), width=520, height=320, key=key)
     up = ~descent
     xa, za = thin(x[up], z[up])
@@ -152,67 +163,78 @@ def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_
         chart.line(xd, zd, "descent", colour=BLUE, dash="dashed", width=1.8)
     chart.mark(0.0, 0.0, "triangle-up", "pad", dy=-8, label=None)
     i_top = int(np.argmax(z))
-    chart.mark(float(x[i_top]), float(z[i_top]), "circle", f"apogee {float(z[i_top]):.0f} m", dy=-9,
+    chart.mark(float(x[i_top]), float(z[i_top]), "circle", f"apogee {float(z[i_top]):,.0f} {lu}", dy=-9,
                anchor="middle", dx=0)
     if z[-1] <= max(1.0, 0.01 * float(z.max())):
-        chart.mark(float(x[-1]), float(z[-1]), "triangle-down", f"lands {abs(float(x[-1])):.0f} m away",
+        chart.mark(float(x[-1]), float(z[-1]), "triangle-down", f"lands {abs(float(x[-1])):,.0f} {lu} away",
                    anchor="end" if x[-1] > 0 else "start", dx=-8 if x[-1] > 0 else 8, dy=-10)
     if wind_m_s > 0:
-        chart.arrow((lo + hi) / 2, float(z.max()) * 1.1, 60.0, f"wind {wind_m_s:g} m/s, blowing this way")
+        chart.arrow((lo + hi) / 2, float(z.max()) * 1.1, 60.0, f"wind {wind}, blowing this way")
     chart.legend_entry("▲ pad, ● apogee, ▼ landing", kind="mark", shape="triangle-up")
     return ChartBlock(chart.render(), "Scales differ: the horizontal axis is stretched to show the drift.", wide=False)
 
 
-def match_chart(result: MatchResult, key: str = "match") -> ChartBlock | None:
-    """Apogee of every flown candidate in rank order: plain blue bars with a tick pass, hatched orange bars with a
-    cross and the reason fail; the target, its tolerance band, the ceiling and the region above it explained."""
-    flown = [c for c in result.candidates if c.apogee_m is not None]
+# verdict word -> (fill, hatch) of its bars
+_VERDICT_FILL = {"pass": (BLUE, None), "pass with ballast": (BLUE, "dots"), "off target": (PAPER, "dots"),
+                 "fail": (ORANGE, "diagonal")}
+
+
+def match_chart(result: MatchResult, key: str = "match", units: DisplayUnits | None = None,
+                candidates: Sequence[Candidate] | None = None) -> ChartBlock | None:
+    """Apogee of every flown candidate in rank order (or of ``candidates``, those a report lists): plain blue bars
+    with a tick pass, hatched orange bars with a cross and the reason codes fail; the target, its tolerance band,
+    the ceiling and the region above it explained; heights in the display ``units``."""
+    u = units or DisplayUnits()
+    unit = u.unit("length")
+    scale = u.convert(1.0, "length", unit)  # display units per metre: every height below is drawn in them
+    flown = [c for c in (result.candidates if candidates is None else candidates) if c.apogee_m is not None]
     if not flown:
         return None
     target = result.conditions.get("target_m")
     ceiling = result.conditions.get("ceiling_m")
     tolerance = result.conditions.get("target_tolerance", 0.05)
-    top = max([c.apogee_m for c in flown] + [ceiling or 0.0, (target or 0.0) * (1 + tolerance)]) * 1.12
+    apogee = {c.designation: c.apogee_m * scale for c in flown}
+    top = max(list(apogee.values()) + [(ceiling or 0.0) * scale, (target or 0.0) * scale * (1 + tolerance)]) * 1.12
     order = "by closeness to the target" if target else "by apogee"
     chart = SvgChart(title=f"Apogee per motor, in rank order (passing first, then {order})",
-                     description=(f"{match_count(result)} ({len(flown)} flown). "
-                                  + (f"Target {target:.0f} m. " if target else "") + (f"Ceiling {ceiling:.0f} m. " if ceiling else "")
-                                  + "; ".join(f"{c.designation} {c.apogee_m:.0f} m {c.verdict if c.verdict != 'fail' else 'fail: ' + ', '.join(dict.fromkeys(c.reason_codes))}"
+                     description=(f"{match_count(result)} ({len(flown)} shown). "
+                                  + (f"Target {u.given(target, 'length')}. " if target else "")
+                                  + (f"Ceiling {u.given(ceiling, 'length')}. " if ceiling else "")
+                                  + "; ".join(f"{c.designation} {u.quantity(c.apogee_m, 'length')} {c.verdict if c.verdict != 'fail' else 'fail: ' + ', '.join(dict.fromkeys(c.reason_codes))}"
                                               for c in flown[:12]) + ("; ..." if len(flown) > 12 else ".")),
-                     x_label="motor", y_label="apogee above the pad (m)", x_range=(-0.5, len(flown) - 0.5),
+                     x_label="motor", y_label=f"apogee above the pad ({unit})", x_range=(-0.5, len(flown) - 0.5),
                      y_range=(0.0, top), width=max(640, 34 * len(flown) + 110), height=400, key=key,
                      x_categories=[c.designation for c in flown])
     if target:
-        chart.band_y((1 - tolerance) * target, (1 + tolerance) * target, f"within {tolerance * 100:g} % of the target",
-                     fill=BLUE_TINT)
+        chart.band_y((1 - tolerance) * target * scale, (1 + tolerance) * target * scale,
+                     f"within {tolerance * 100:g} % of the target", fill=BLUE_TINT)
     if ceiling:
-        chart.band_y(ceiling, top, "above the ceiling: not allowed", fill=ORANGE_TINT, hatch="cross")
+        chart.band_y(ceiling * scale, top, "above the ceiling: not allowed", fill=ORANGE_TINT, hatch="cross")
+    letters: dict[str, str] = {}
     for i, c in enumerate(flown):
-        codes = " ".join(dict.fromkeys(short_code(code, text)[0] for code, text in zip(c.reason_codes, c.reasons)))
+        codes = dict(short_code(code, text) for code, text in zip(c.reason_codes, c.reasons))
+        height = apogee[c.designation]
         if c.passes:
-            chart.bar(i, c.apogee_m, fill=BLUE, top_text=f"{c.apogee_m:.0f}", inside_text="✓")
+            chart.bar(i, height, fill=BLUE, top_text=f"{height:.0f}", inside_text="✓")
         elif c.verdict == "pass with ballast":
-            chart.bar(i, c.apogee_m, fill=BLUE, hatch="dots", top_text=f"{c.apogee_m:.0f}",
-                      inside_text="✓ with ballast")
+            chart.bar(i, height, fill=BLUE, hatch="dots", top_text=f"{height:.0f}", inside_text="✓ pass with ballast")
         elif c.verdict == "off target":
-            chart.bar(i, c.apogee_m, fill=PAPER, hatch="dots", top_text=f"{c.apogee_m:.0f}",
-                      inside_text="off target")
+            chart.bar(i, height, fill=PAPER, hatch="dots", top_text=f"{height:.0f}", inside_text="off target")
         else:
-            chart.bar(i, c.apogee_m, fill=ORANGE, hatch="diagonal", top_text=f"{c.apogee_m:.0f}",
-                      inside_text=f"✗ {codes}")
+            letters.update(codes)
+            chart.bar(i, height, fill=ORANGE, hatch="diagonal", top_text=f"{height:.0f}",
+                      inside_text=f"✗ {' '.join(codes)}")
     if target:
-        chart.hline(target, f"target {target:.0f} m", colour=INK, dash="solid", width=1.8)
+        chart.hline(target * scale, f"target {u.given(target, 'length')}", colour=INK, dash="solid", width=1.8)
     if ceiling:
-        chart.hline(ceiling, f"ceiling {ceiling:.0f} m", colour=INK, dash="dotted", width=2.0)
-    chart.legend_entry("passes every rule, on target (✓)", kind="fill", fill=BLUE)
-    verdicts = {c.verdict for c in flown}
-    if "pass with ballast" in verdicts:
-        chart.legend_entry("passes every rule with the solved ballast", kind="fill", fill=BLUE, hatch="dots")
-    if "off target" in verdicts:
-        chart.legend_entry("safe, but outside the target band", kind="fill", fill=PAPER, hatch="dots")
-    chart.legend_entry("fails a rule (✗ and its reason)", kind="fill", fill=ORANGE, hatch="diagonal")
-    return ChartBlock(chart.render(), "Numbers above the bars are apogees in m. Reason marks: rail = rail exit too slow, "
-                                      "T/W = thrust-to-weight, delay, eject = ejection speed, descent, ceiling.")
+        chart.hline(ceiling * scale, f"ceiling {u.given(ceiling, 'length')}", colour=INK, dash="dotted", width=2.0)
+    for verdict, words in VERDICT_LEGEND.items():  # the verdict words of the table, report and JSON
+        if verdict == "pass" or verdict == "fail" or verdict in {c.verdict for c in flown}:
+            fill, hatch = _VERDICT_FILL[verdict]
+            chart.legend_entry(f"{verdict}: {words}", kind="fill", fill=fill, hatch=hatch)
+    # the letters the bars carry, as the match table's legend names them (the caption named other marks before)
+    return ChartBlock(chart.render(), f"Numbers above the bars are apogees in {unit}."
+                      + (" Fail codes: " + "; ".join(f"{k} {v}" for k, v in letters.items()) + "." if letters else ""))
 
 
 def overlay_chart(reductions: Sequence[tuple[str, Any]], key: str = "overlay") -> ChartBlock:

@@ -24,7 +24,9 @@ from ..matching.candidate import Candidate
 from .flightcard import FlightCard, flight_card, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
-from .messages import match_count
+from .display import DisplayUnits
+from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, note_text, reason_text,
+                       small_mass)
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
 
 if TYPE_CHECKING:
@@ -62,17 +64,19 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
                made_at: str | None = None) -> FlyReport:
     """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory)."""
     u = units
+    du = _display(u)
     launch = frame.launch
     card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.surface_wind_m_s)
     rocket = Facts("Rocket", (
         ("name", frame.name),
         ("empty mass", quantity(frame.mass_kg, "mass", u)),
-        ("diameter", f"{frame.diameter_m * 1e3:.1f} mm"),
+        ("diameter", du.given(frame.diameter_m, "size")),
         ("drag", _drag_words(frame, summary)),
         ("motor mount", "-" if frame.mount_diameter_m is None else f"{frame.mount_diameter_m * 1e3:.0f} mm"
          + ("" if frame.mount_length_m is None else f", up to {frame.mount_length_m * 1e3:.0f} mm long")),
         ("recovery", "none given" if not frame.recovery_devices else
-         "; ".join(f"{d.device}, opened at {d.deploy}, Cd·A {d.drag_area_m2:.3g} m²" for d in frame.recovery_devices)),
+         "; ".join(f"{d.device}, opened at {d.deploy}, Cd·A {du.precise(d.drag_area_m2, 'area')}"
+                   for d in frame.recovery_devices)),
     ))
     prov = motor.provenance
     cls = motor.impulse_class
@@ -97,26 +101,30 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
     ))
     site = launch.site
     conditions = Facts("Conditions", (
-        ("rail", f"{quantity(launch.rail_length_m, 'length', u) if u == 'imperial' else f'{launch.rail_length_m:.2f} m'}"
-                 f", {math.degrees(launch.rail_angle_rad):g}° from vertical, leaning "
-                 + ("downwind" if launch.rail_azimuth_rad is None else
-                    f"toward {math.degrees(launch.rail_azimuth_rad) % 360:03.0f}°")),
+        ("rail", f"{du.given(launch.rail_length_m, 'length')}, {math.degrees(launch.rail_angle_rad):g}° from "
+                 "vertical, leaning " + ("downwind" if launch.rail_azimuth_rad is None else
+                                        f"toward {math.degrees(launch.rail_azimuth_rad) % 360:03.0f}°")),
         ("wind", "measured profile" if launch.wind_profile is not None else
-         f"{quantity(launch.wind_speed_m_s, 'speed', u)} at 10 m from {math.degrees(launch.wind_direction_rad) % 360:03.0f}°"
-         ", stronger aloft (power law, held above 1,000 m)"),
-        ("site", f"{quantity(site.elevation_m, 'length', u)} above sea level"),
-        ("air", ("standard" if site.temperature_k is None else f"{site.temperature_k - 273.15:.1f} °C")
-         + ("" if site.pressure_pa is None else f", {site.pressure_pa / 100:.0f} hPa") + " at the pad"),
+         f"{du.given(launch.wind_speed_m_s, 'speed')} at {du.quantity(10.0, 'length')} from "
+         f"{math.degrees(launch.wind_direction_rad) % 360:03.0f}°, stronger aloft (power law, held above "
+         f"{du.quantity(1000.0, 'length')})"),
+        ("site", f"{du.given(site.elevation_m, 'length')} above sea level"),
+        ("air", ("standard" if site.temperature_k is None else du.given(site.temperature_k, "temperature"))
+         + ("" if site.pressure_pa is None else f", {du.given(site.pressure_pa, 'air_pressure')}") + " at the pad"),
     ))
     flight = side = None
     if trajectory is not None and summary.get("apogee_m") is not None:
-        flight = flight_chart(trajectory, summary)
-        side = side_chart(trajectory, summary, launch.wind_speed_m_s)
+        flight = flight_chart(trajectory, summary, units=du)
+        side = side_chart(trajectory, summary, launch.wind_speed_m_s, units=du)
     stability = None
     st = summary.get("stability")
     if st:
-        rows = [("centre of pressure", _mm(st.get("cp_m")) + " from the nose tip"),
-                ("centre of gravity", f"{_mm(st.get('cg_liftoff_m'))} at liftoff, {_mm(st.get('cg_burnout_m'))} at burnout")]
+        def place(value: Any) -> str:  # a position along the airframe: mm, or inches
+            return "-" if value is None else du.quantity(float(value), "size", 0 if du.system == "metric" else 1)
+
+        rows = [("centre of pressure", place(st.get("cp_m")) + " from the nose tip"),
+                ("centre of gravity", f"{place(st.get('cg_liftoff_m'))} at liftoff, {place(st.get('cg_burnout_m'))} "
+                                      "at burnout")]
         for label, k in (("margin at liftoff", "margin_liftoff_cal"), ("margin off the rail", "margin_rail_exit_cal"),
                          ("margin at burnout", "margin_burnout_cal"), ("least margin", "min_margin_cal")):
             if st.get(k) is not None:
@@ -169,18 +177,19 @@ def _stability_assumptions(summary: dict[str, Any]) -> tuple[str, ...]:
             "propellant centred in the motor; ballast counted at half the nose length.",)
 
 
-def _mm(value: Any) -> str:
-    return "-" if value is None else f"{float(value) * 1e3:.0f} mm"
-
-
 def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
+    """Each recovery event with its time, height and speed, marked against its limit: a device's opening by its
+    air speed against its kind's limit, a charge that opens no listed device by its ground speed against the
+    ejection limit (the speeds compared in SI, before they are rounded for display)."""
     rows: list[tuple[str, str, str, str]] = []
-    if summary.get("deployments"):
-        for e in summary["deployments"]:
-            rows.append((str(e.get("name") or e.get("event") or e.get("device") or "deployment"),
-                         quantity(e.get("time_s"), "time"), quantity(e.get("altitude_m"), "length", u),
-                         quantity(e.get("speed_m_s"), "speed", u)))
-    else:
+    speeds: list[float | None] = []  # [m/s] of each row, None where there is none to judge
+    deployments = summary.get("deployments") or []
+    for e in deployments:
+        rows.append((str(e.get("name") or e.get("event") or e.get("device") or "deployment"),
+                     quantity(e.get("time_s"), "time"), quantity(e.get("altitude_m"), "length", u),
+                     quantity(e.get("speed_m_s"), "speed", u)))
+        speeds.append(e.get("speed_m_s"))
+    if not deployments:
         for ej in summary.get("ejections") or []:
             chosen = ej["delay_s"] == summary.get("chosen_delay_s")
             rows.append((f"ejection, {ej['delay_s']:g} s delay" + (" (chosen)" if chosen else ""),
@@ -188,6 +197,7 @@ def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
                              float(summary["burnout_time_s"]) + ej["delay_s"], "time"),
                          "after landing" if ej.get("altitude_m") is None else quantity(ej["altitude_m"], "length", u),
                          quantity(ej.get("speed_m_s"), "speed", u)))
+            speeds.append(ej.get("speed_m_s"))
         fired = [float(summary["burnout_time_s"]) + ej["delay_s"] for ej in summary.get("ejections") or []
                  if ej["delay_s"] == summary.get("chosen_delay_s") and summary.get("burnout_time_s") is not None]
         deploy = summary.get("deploy_time_s")
@@ -197,25 +207,23 @@ def _recovery_table(summary: dict[str, Any], u: str) -> TableBlock | None:
         elif deploy is not None:
             rows.append(("recovery device opens", quantity(summary["deploy_time_s"], "time"),
                          quantity(summary.get("deploy_altitude_m"), "length", u), "-"))
+            speeds.append(None)
     if not rows:
         return None
     from ..flight.rules import LaunchRules
 
     rules = LaunchRules()
-    kinds = [str(e.get("device") or "parachute") for e in summary.get("deployments") or []]
+    kinds = [str(e.get("device") or "parachute") for e in deployments]
     limits = [rules.deployment_limit_m_s(kind) for kind in kinds] or [rules.max_ejection_speed_m_s] * len(rows)
-    limits += [rules.max_ejection_speed_m_s] * (len(rows) - len(limits))
-    marks = ["info" if row[3] == "-" else ("ok" if _speed_ok(row[3], limit, u) else "caution")
-             for row, limit in zip(rows, limits)]
+    marks = ["info" if speed is None else ("ok" if float(speed) <= limit else "caution")
+             for speed, limit in zip(speeds, limits)]
+    what = ("Air speed (relative to the wind) when each device opens, against its kind's limit: "
+            + ", ".join(f"{kind} {quantity(rules.deployment_limit_m_s(kind), 'speed', u)}" for kind in dict.fromkeys(kinds))
+            if deployments else
+            f"Ground speed when each delay fires, against the ejection limit "
+            f"{quantity(rules.max_ejection_speed_m_s, 'speed', u)}")
     return TableBlock("Recovery events", ("event", "time", "height", "speed"), tuple(rows), (False, True, True, True),
-                      tuple(marks), "Speed at each event against its device kind's limit: "
-                      + ", ".join(f"{kind} {quantity(rules.deployment_limit_m_s(kind), 'speed', u)}"
-                                  for kind in dict.fromkeys(kinds or ["parachute"])) + " (common practice).")
-
-
-def _speed_ok(text: str, limit_m_s: float, u: str) -> bool:
-    number = float(text.split()[0].replace(",", ""))
-    return number * (0.3048 if u == "imperial" else 1.0) <= limit_m_s
+                      tuple(marks), what + " (common practice).")
 
 
 def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
@@ -240,32 +248,56 @@ def _landing_facts(summary: dict[str, Any], u: str) -> Facts | None:
 
 # ----------------------------------------------------------------------------- match
 _VERDICT_MARK = {"pass": "ok", "pass with ballast": "ok", "off target": "caution"}
+# The ranking's share of two printed pages (A4 or Letter, with the chart, conditions, cautions and trace): about
+# this many lines of its widest column, the reasons, at about this many characters a line (measured in Chromium's
+# print of tests/present/test_report_browser.py's large ranking). Rows past it are left out, in rank order.
+_RANKING_LINES = 60
+_REASON_CHARS_PER_LINE = 70
 
 
 def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, catalog: str, units: str = "si",
-                 made_at: str | None = None) -> MatchReport:
-    """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions."""
+                 made_at: str | None = None, frame: Airframe | None = None) -> MatchReport:
+    """The ranking report: every fitting motor with a mark and its reasons, the chart and the conditions.
+
+    Reasons, notes and assumptions are worded in the display units (:mod:`.messages`), as ``match`` prints them;
+    ``frame`` (the airframe ranked) lets the assumptions echo the airframe file's own numbers."""
     u = units
+    du = _display(u)
     c = result.conditions
-    shown = [cand for cand in result.candidates if cand.fits]
-    rows, marks = [], []
-    for rank, cand in enumerate(shown, 1):
+    fitting = [cand for cand in result.candidates if cand.fits]
+    speed = deployment_column(result.candidates)
+    rows, marks, lines = [], [], 0
+    for rank, cand in enumerate(fitting, 1):
         delay = "-" if cand.chosen_delay_s is None else (
             f"{cand.chosen_delay_s:g}{' drilled' if cand.delay_adjusted else ''}/{cand.optimal_delay_s:.1f}")
         rows.append((str(rank), cand.designation, quantity(cand.apogee_m, "length", u),
                      quantity(cand.rail_exit_speed_m_s, "speed", u),
                      "-" if cand.liftoff_thrust_to_weight is None else f"{cand.liftoff_thrust_to_weight:.1f}",
-                     delay, quantity(cand.ejection_speed_m_s, "speed", u),
-                     "; ".join([cand.verdict, *cand.reasons] + [f"note: {n}" for n in cand.notes]
-                               + _extra_mass_words(cand, u))))
+                     delay, quantity(getattr(cand, speed.field), "speed", u),
+                     "; ".join([cand.verdict]
+                               + [reason_text(code, text, cand, c, du)
+                                  for code, text in zip(cand.reason_codes, cand.reasons)]
+                               + [f"note: {note_text(code, text, cand, c, du)}"
+                                  for code, text in zip(cand.note_codes, cand.notes)]
+                               + _extra_mass_words(cand, c, du))))
+        lines += -(-len(rows[-1][-1]) // _REASON_CHARS_PER_LINE)  # ceil: the lines its reasons wrap to
+        if lines > _RANKING_LINES and len(rows) > 1:  # the two printed pages are full: the rest is in --csv/--json
+            rows.pop()
+            break
         marks.append(_VERDICT_MARK.get(cand.verdict, "fail"))
+    shown = fitting[: len(rows)]
+    left = len(fitting) - len(shown)
     ranking = TableBlock(
         f"Ranking: {match_count(result)}",
-        ("#", "motor", "apogee", "rail exit", "T/W", "delay s", "ejection", "verdict and reasons"),
+        ("#", "motor", "apogee", "rail exit", "T/W", "delay s", speed.report_name, "verdict and reasons"),
         tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
         f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
-        f"{len(result.candidates) - len(shown)} motor(s) do not fit the mount or the class limit and are not listed.",
-        nowrap=(False, True, False, False, False, False, False, False))
+        f"{speed.report_name.capitalize()}{speed.legend[len(speed.table_name):]}. "
+        + (f"The next {left} motor(s) that fit, ranked below these, are left out to keep the report to two pages "
+           "(motorlib match lists them all, with --csv or --json in full). " if left else "")
+        + f"{len(result.candidates) - len(fitting)} motor(s) do not fit the mount or the class limit and are not "
+          "listed.",
+        nowrap=(False, True, False, False, False, False, False, False), breakable=True)
     conditions = Facts("Conditions and rules", (
         ("airframe", f"{result.airframe['name']}, {quantity(result.airframe['mass_kg'], 'mass', u)} empty"),
         ("target", "-" if not c.get("target_m") else
@@ -277,17 +309,19 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
                          else f" ({c.get('rail_exit_wind_ratio', 4):g} x the wind)")),
         ("thrust-to-weight", f">= {c['min_liftoff_thrust_to_weight']:g} at liftoff"),
         ("delay", f"within {c['delay_slack_s']:g} s of the optimal"),
-        ("ejection speed", f"<= {quantity(c['max_ejection_speed_m_s'], 'speed', u)}"),
+        ("deployment speed", deployment_rule(speed, c, None if frame is None else
+                                             [d.device for d in frame.recovery_devices],
+                                             lambda v: quantity(v, "speed", u))),
         ("descent rate", f"<= {quantity(c['max_landing_speed_m_s'], 'speed', u)}"),
         *_stability_rule(c),
         ("catalog", catalog),
     ))
-    assumptions = Notes("Assumptions", (f"Drag: {c['drag']}.", f"Atmosphere: {c['atmosphere']}.", f"Wind: {c['wind']}.",
-                                        f"Rail: {c['rail']}.", f"Recovery: {c['recovery']}.",
-                                        "Landing speed is the terminal descent rate under the device at the pad."))
+    words = assumption_texts(c, du, frame)
+    assumptions = Notes("Assumptions", tuple(f"{key.capitalize()}: {text}." for key, text in words.items())
+                        + ("Landing speed is the descent rate under the device at landing.",))
     return MatchReport(title=f"Motors for {result.airframe['name']}",
                        subtitle="Every motor that fits, flown with the same airframe and conditions",
-                       ranking=ranking, chart=match_chart(result), conditions=conditions,
+                       ranking=ranking, chart=match_chart(result, units=du, candidates=shown), conditions=conditions,
                        trace=trace_for(inputs, command, made_at), assumptions=assumptions)
 
 
@@ -299,22 +333,30 @@ def _stability_rule(conditions: dict[str, Any]) -> tuple[tuple[str, str], ...]:
     return (("stability", f">= {float(need):g} calibers over the powered flight"),)
 
 
-def _extra_mass_words(cand: Candidate, u: str) -> list[str]:
-    """What added mass does for a candidate: the ballast solved for the target, the nose weight for stability."""
+def _extra_mass_words(cand: Candidate, conditions: dict[str, Any], shown: DisplayUnits) -> list[str]:
+    """What added mass does for a candidate: the ballast solved for the target, the nose weight for stability
+    (the rules it still breaks worded in the display units, as ``match`` prints them)."""
     out = []
     if cand.ballast_kg is not None:
-        later = cand.ballast_reasons or []
-        out.append(f"with {quantity(cand.ballast_kg, 'mass', u)} of ballast: apogee "
-                   f"{quantity(cand.ballast_apogee_m, 'length', u)}, delay "
+        later = [reason_text(code, text, cand, conditions, shown, "ballast_")
+                 for code, text in zip(cand.ballast_reason_codes or (), cand.ballast_reasons or ())]
+        out.append(f"with {small_mass(shown, cand.ballast_kg)} of ballast: apogee "
+                   f"{shown.quantity(cand.ballast_apogee_m, 'length')}, delay "
                    + ("-" if cand.ballast_chosen_delay_s is None else f"{cand.ballast_chosen_delay_s:g} s")
                    + (", every rule met" if not later else " but " + ", ".join(later)))
     if cand.nose_weight_for_stability_kg:
-        later = cand.nose_weight_reasons or []
-        out.append(f"with {quantity(cand.nose_weight_for_stability_kg, 'mass', u)} of nose weight: stability "
+        later = [reason_text(code, text, cand, conditions, shown, "nose_weight_")
+                 for code, text in zip(cand.nose_weight_reason_codes or (), cand.nose_weight_reasons or ())]
+        out.append(f"with {small_mass(shown, cand.nose_weight_for_stability_kg)} of nose weight: stability "
                    + ("-" if cand.nose_weight_stability_margin_cal is None
                       else f"{cand.nose_weight_stability_margin_cal:.2f} cal")
                    + (", every rule met" if not later else " but " + ", ".join(later)))
     return out
+
+
+def _display(units: str) -> DisplayUnits:
+    """The display units of a report's ``si`` or ``imperial`` setting (the flight card's names)."""
+    return DisplayUnits("imperial" if units == "imperial" else "metric")
 
 
 # ----------------------------------------------------------------------------- reduce

@@ -44,15 +44,15 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
         table.add_column(name, justify="right" if name else "left")
     a = summary["apogee_m"]
     table.add_row("apogee", *_triple(a, "length", u))
-    table.add_row("deployment speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
+    table.add_row("opening air speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
     table.add_row("descent rate at landing", *_triple(summary["landing_speed_m_s"], "speed", u))
     table.add_row("landing distance", *_triple(summary["landing"]["distance_m"], "length", u))
-    table.add_row("flight duration (s)", *[f"{v:.4g}" if v is not None else "-"
-                                           for v in (summary["flight_duration_s"].get(k) for k in ("p5", "p50", "p95"))])
+    table.add_row("flight duration", *[u.quantity(summary["flight_duration_s"].get(k), "time", 1)
+                                       for k in ("p5", "p50", "p95")])
     stability = summary.get("stability")
-    if stability:
-        table.add_row("stability margin (cal)", *[f"{v:.3g}" if v is not None else "-"
-                                                  for v in (stability["margin_cal"].get(k) for k in ("p5", "p50", "p95"))])
+    if stability:  # margins with two decimals, as fly and match give them
+        table.add_row("stability margin", *[f"{v:.2f} cal" if v is not None else "-"
+                                            for v in (stability["margin_cal"].get(k) for k in ("p5", "p50", "p95"))])
     lines = Text()
     lines.append(f"{summary['n_flights']} sampled flights (seed {summary['seed']}). ")
     lines.append(f"Mean apogee {u.quantity(a['mean'], 'length')} ± {u.quantity(a['standard_error'], 'length')} "
@@ -120,7 +120,7 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
     for i, c in enumerate(rows, start=1):
         a = c["apogee_m"]
         spread = "-" if a["p5"] is None else f"{u.number(a['p5'], 'length', 0)}-{u.number(a['p95'], 'length', 0)}"
-        worst = max(c["failures"].items(), key=lambda kv: kv[1]) if c["failures"] else ("", 0.0)
+        worst = _most_failed(c)
         failure = f"{short_code(worst[0], '')[0]} {100 * worst[1]:.0f} %" if worst[1] > 0 else ""
         se = c["p_success_standard_error"]
         cells = [str(i), escape(c["designation"])] + ([escape(c["maker"] or "")] if wide else [])
@@ -133,8 +133,8 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
 
 def robust_key(result: dict[str, Any]) -> str:
     """The words under the robust ranking: what success means and what each failure name stands for."""
-    codes = sorted({code for c in result["candidates"] for code, p in c["failures"].items() if p > 0})
-    legend = dict(short_code(code, "") for code in codes)  # one-letter codes, as in match's table
+    codes = sorted({_most_failed(c)[0] for c in result["candidates"] if _most_failed(c)[1] > 0})
+    legend = dict(short_code(code, "") for code in codes)  # the one-letter codes the table shows, as in match's
     windows, conditions = result.get("windows") or {}, result.get("conditions") or {}
     limits = [w for w, on in (("the ceiling", conditions.get("ceiling_m") is not None),
                               ("the altitude window", windows.get("altitude_m") is not None),
@@ -146,7 +146,20 @@ def robust_key(result: dict[str, Any]) -> str:
     if legend:
         text += " most failed: the rule the motor failed most often, with its share: " + "; ".join(
             f"{letter} {meaning}" for letter, meaning in sorted(legend.items())) + "."
+    need = conditions.get("min_stability_cal")
+    if need is not None:
+        below = [f"{c['designation']}: {c['n_below_min_stability']}" for c in result["candidates"]
+                 if c.get("n_below_min_stability")]
+        text += (f" Stability is judged on every sampled flight, with its own CG and masses: samples under "
+                 f"{need:g} cal of margin fail" + (" (" + ", ".join(below) + f" of {result['n_samples']} each)"
+                                                     if below else "; none is under it") + ".")
     return text
+
+
+def _most_failed(candidate: dict[str, Any]) -> tuple[str, float]:
+    """The rule a robust candidate fails most often and its share ("", 0 when it fails none)."""
+    failures = candidate["failures"]
+    return max(failures.items(), key=lambda kv: kv[1]) if failures else ("", 0.0)
 
 
 def calibration_text(result: dict[str, Any], units: DisplayUnits | str = "metric") -> Text:

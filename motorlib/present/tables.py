@@ -28,7 +28,8 @@ from ..motor.listing import CatalogRow
 from .display import DisplayUnits
 from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
-from .messages import match_count, note_text, reason_text, short_code, small_mass, verdict_text
+from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, note_text, reason_text, short_code, small_mass,
+                       verdict_text)
 
 if TYPE_CHECKING:  # annotations only: the table module loads no flight code
     from ..files.curvefiles import CheckReport
@@ -148,7 +149,7 @@ def _status(report: CheckReport) -> Text:
 
 def check_status_line(report: CheckReport) -> Text:
     """``Log firing-2.csv  warnings``: the head of one log's check block."""
-    return Text.assemble(("Log ", "bold"), escape(Path(report.source).name), "  ", _status(report))
+    return Text.assemble(("Log ", "bold"), Path(report.source).name, "  ", _status(report))  # assemble reads no markup
 
 
 def check_summary_table(reports: list[CheckReport], units: DisplayUnits = _METRIC, width: int = 80) -> Table:
@@ -195,7 +196,7 @@ def findings_text(report: CheckReport, *, include_notes: bool = True) -> Text:
 
 def check_details(report: CheckReport, units: DisplayUnits = _METRIC, record: MotorRecord | None = None) -> Group:
     """Metrics and findings of one file; with its ``record`` also where the curve comes from (provenance)."""
-    parts: list[object] = [Text.assemble(("File ", "bold"), escape(report.source), "  ", _status(report))]
+    parts: list[object] = [Text.assemble(("File ", "bold"), report.source, "  ", _status(report))]  # no markup read
     m = report.metrics
     if m:
         table = _facts()
@@ -508,7 +509,8 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
         _right(table, u.header(name, u.unit(kind)))
     _right(table, "T/W")
     _right(table, u.header("delay", "s"))
-    _right(table, u.header("eject", u.unit("speed")))
+    speed = deployment_column(result.candidates)
+    _right(table, u.header(speed.table_name, u.unit("speed")))
     mass_unit = u.column_unit([c.liftoff_mass_kg for c in shown], "mass")
     if wide:
         _right(table, u.header("loaded", mass_unit))
@@ -530,7 +532,7 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
                 _cell(u, c.liftoff_thrust_to_weight, cond["min_liftoff_thrust_to_weight"], "ratio", False,
                       "thrust-to-weight-low" in codes),
                 delay,
-                _cell(u, c.ejection_speed_m_s, cond["max_ejection_speed_m_s"], "speed", True, "ejection-fast" in codes),
+                _cell(u, getattr(c, speed.field), speed.limit_m_s(cond), "speed", True, speed.code in codes),
             ]
         row: list[Any] = [str(rank), escape(name)]
         if wide:
@@ -635,36 +637,24 @@ def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: A
     """The assumptions and rules behind a ranking, echoing the airframe file's and the options' own numbers."""
     c, u = result.conditions, units
     text = Text("Assumptions: ", style="bold")
-    if frame is not None:
-        launch, site = frame.launch, frame.launch.site
-        drag = ("Cd(Mach) estimated from the shape, powered and coasting" if frame.drag_source == "estimated"
-                else f"Cd table over Mach {frame.drag_machs[0]:g}-{frame.drag_machs[-1]:g}" if frame.drag_table
-                else f"Cd {frame.drag_coefficient:g}") + f" on {u.given(frame.diameter_m, 'size')}"
-        air = "U.S. Standard Atmosphere 1976" + (f", {u.given(site.elevation_m, 'length')} elevation"
-                                                 if site.elevation_m else "")
-        if site.temperature_k is not None:
-            air += f", {u.given(site.temperature_k, 'temperature')} at the pad"
-        if site.pressure_pa is not None:
-            air += f", {u.given(site.pressure_pa, 'air_pressure')} at the pad"
-        wind = ("a measured profile" if launch.wind_profile is not None else
-                f"{u.given(launch.wind_speed_m_s, 'speed')} at {u.quantity(10.0, 'length')}, power law 1/7")
-        rail = f"{u.given(launch.rail_length_m, 'length')} at {u.given(launch.rail_angle_rad, 'angle')} from vertical"
-        text.append(f"{drag}; {air}; wind {wind}; rail {rail}; recovery {c['recovery']}. ")
-    else:
-        text.append(f"{c['drag']}; {c['atmosphere']}; wind {c['wind']}; rail {c['rail']}; recovery {c['recovery']}. ")
+    a = assumption_texts(c, u, frame)
+    text.append(f"{a['drag']}; {a['atmosphere']}; wind {a['wind']}; rail {a['rail']}; recovery {a['recovery']}. ")
     need = c.get("rail_exit_needed_m_s", c["min_rail_exit_speed_m_s"])
     rail_rule = u.limit(c["min_rail_exit_speed_m_s"], "speed") + (
         f" and {c.get('rail_exit_wind_ratio', 4):g} x the wind: {u.limit(need, 'speed')}" if need > c["min_rail_exit_speed_m_s"] else "")
+    speed = deployment_column(result.candidates)
+    kinds = None if frame is None else [d.device for d in frame.recovery_devices]
     text.append(f"Rules: rail exit >= {rail_rule}, liftoff T/W >= "
                 f"{u.limit(c['min_liftoff_thrust_to_weight'], 'ratio')}, delay within {u.limit(c['delay_slack_s'], 'time')} "
-                f"of optimal, ejection <= {u.limit(c['max_ejection_speed_m_s'], 'speed')}, descent <= "
+                f"of optimal, {deployment_rule(speed, c, kinds, lambda v: u.limit(v, 'speed'))}, descent <= "
                 f"{u.limit(c['max_landing_speed_m_s'], 'speed')}"
                 + (f", ceiling {u.given(c['ceiling_m'], 'length')}" if c.get("ceiling_m") else "")
                 + (f", classes up to {c['max_class']}" if c.get("max_class") else "")
                 + (f", stability >= {c['min_stability_cal']:g} cal" if c.get("min_stability_cal") is not None
                    else "; stability not checked (the airframe file has no [geometry])")
                 + ". ")
-    text.append("Delay column: chosen/optimal; 'd' = drilled (adjustable motor).", style="dim")
+    text.append(f"Delay column: chosen/optimal; 'd' = drilled (adjustable motor). {speed.legend[0].upper()}"
+                f"{speed.legend[1:]}.", style="dim")
     return text
 
 
@@ -675,7 +665,7 @@ def reduction_text(summary: list[dict[str, Any]], spread: dict[str, Any] | None,
     u = units
     text = Text()
     for entry in summary:
-        text.append(escape(entry["file"]), style="bold")
+        text.append(entry["file"], style="bold")  # Text.append reads no markup
         text.append(f": {u.plain(entry['sample_rate_hz'])} Hz, baseline {u.precise(entry['baseline_n'], 'force')}, "
                     f"noise {u.precise(entry['noise_n'], 'force', 2)}, "
                     + (f"low-pass {u.plain(entry['cutoff_hz'])} Hz, " if entry["cutoff_hz"] else "no filter, ")
@@ -720,39 +710,44 @@ def _fmt(value: object, digits: int = 4, scale: float = 1.0, unit: str = "") -> 
     return f"{number:,.{decimals}f}{(' ' + unit) if unit else ''}"
 
 
-def _mm(value: object, digits: int = 4) -> str:
-    return _fmt(value, digits, 1e3, "mm")
+def _mm(value: object, digits: int = 4, u: DisplayUnits = _METRIC) -> str:
+    """A length along or across the airframe, in mm (or inches with imperial units), about ``digits`` figures."""
+    return _fmt(value, digits, u.convert(1.0, "size"), u.unit("size"))
 
 
 def _cal(value: object) -> str:
     return "-" if value is None else f"{float(value):.2f} cal"  # type: ignore[arg-type]
 
 
-def _shape_rows(s: dict) -> list[tuple[str, str]]:
+def _shape_rows(s: dict, u: DisplayUnits = _METRIC) -> list[tuple[str, str]]:
     g = s["geometry"]
     nose = g["nose"]
     shape = nose["shape"] + (f" (exponent {nose['exponent']:g})" if nose["exponent"] is not None else "")
-    rows = [("diameter", _mm(s["diameter_m"])),
-            ("length", f"{_mm(g['length_m'])}: nose {_mm(nose['length_m'])} {shape}, body {_mm(g['body_length_m'])}")]
+    rows = [("diameter", _mm(s["diameter_m"], u=u)),
+            ("length", f"{_mm(g['length_m'], u=u)}: nose {_mm(nose['length_m'], u=u)} {shape}, "
+                       f"body {_mm(g['body_length_m'], u=u)}")]
     f = g["fins"]
     rows.append(("fins", "none" if f is None else (
-        f"{f['count']} x root {_mm(f['root_chord_m'], 3)}, tip {_mm(f['tip_chord_m'], 3)}, span {_mm(f['span_m'], 3)}, "
-        f"sweep {_mm(f['sweep_m'], 3)}, {_mm(f['thickness_m'], 2)} thick, {f['profile']}; root leading edge at "
-        f"{_mm(f['root_leading_edge_m'])}")))
+        f"{f['count']} x root {_mm(f['root_chord_m'], 3, u)}, tip {_mm(f['tip_chord_m'], 3, u)}, "
+        f"span {_mm(f['span_m'], 3, u)}, "
+        f"sweep {_mm(f['sweep_m'], 3, u)}, {_mm(f['thickness_m'], 2, u)} thick, {f['profile']}; root leading edge at "
+        f"{_mm(f['root_leading_edge_m'], u=u)}")))
     for i, t in enumerate(g["transitions"], 1):
         kind = "shoulder" if t["aft_diameter_m"] > t["fore_diameter_m"] else "boattail"
-        rows.append((f"transition {i}", f"{kind} {_mm(t['fore_diameter_m'], 3)} to {_mm(t['aft_diameter_m'], 3)} over "
-                                        f"{_mm(t['length_m'], 3)}, from {_mm(t['position_m'])}"))
+        rows.append((f"transition {i}", f"{kind} {_mm(t['fore_diameter_m'], 3, u)} to "
+                                        f"{_mm(t['aft_diameter_m'], 3, u)} over {_mm(t['length_m'], 3, u)}, "
+                                        f"from {_mm(t['position_m'], u=u)}"))
     finish = g["finish"]
     rows.append(("finish", f"{finish['name'] or 'roughness'} ({finish['roughness_m'] * 1e6:.3g} µm), launch guide "
                            f"{g['launch_guide']}"))
-    rows.append(("empty airframe", f"{_fmt(s['mass_kg'], 4, 1e3, 'g')}, CG at {_mm(s['cg_empty_m'])}"))
-    rows.append(("CP (subsonic)", _mm(s["cp_m"])))
+    rows.append(("empty airframe", f"{u.quantity(s['mass_kg'], 'mass')}, CG at {_mm(s['cg_empty_m'], u=u)}"))
+    rows.append(("CP (subsonic)", _mm(s["cp_m"], u=u)))
     rows.append(("margin, no motor", _cal(s["margin_empty_cal"])))
     return rows
 
 
 def _heading(text: str) -> Text:
+    """A bold line; ``text`` is shown as written (a Text reads no markup, so it needs no escaping)."""
     return Text(text, style="bold")
 
 
@@ -763,44 +758,46 @@ def _plain_table(*columns: str) -> Table:
     return table
 
 
-def airframe_report(summary: dict) -> Group:
+def airframe_report(summary: dict, units: DisplayUnits = _METRIC) -> Group:
     """The derived airframe (``motorlib airframe``): shape, CP, CG and margins, drag build-up, Cd(Mach).
 
-    ``summary`` is :func:`motorlib.flight.summary.airframe_summary`; positions from the nose tip. Fits 80
-    columns.
+    ``summary`` is :func:`motorlib.flight.summary.airframe_summary`; positions from the nose tip, in mm (inches
+    with imperial ``units``), masses in the display units. Fits 80 columns.
     """
-    s = summary
-    parts: list[object] = [_heading(escape(f"{s['airframe']}: derived airframe (positions from the nose tip)"))]
+    s, u = summary, units
+    size, per_m = u.unit("size"), u.convert(1.0, "size")
+    parts: list[object] = [_heading(f"{s['airframe']}: derived airframe (positions from the nose tip)")]
     shape = Table(show_header=False, box=box.SIMPLE, pad_edge=False)
     shape.add_column(style="bold", no_wrap=True)
     shape.add_column(overflow="fold")
-    for key, value in _shape_rows(s):
+    for key, value in _shape_rows(s, u):
         shape.add_row(key, escape(value))
     parts.append(shape)
 
     parts.append(_heading("Normal force by part (Barrowman, subsonic)"))
-    forces = _plain_table("part", "CN_α (1/rad)", "CP (mm)")
+    forces = _plain_table("part", "CN_α (1/rad)", f"CP ({size})")
     for p in s["normal_force"]:
-        forces.add_row(escape(p["part"]), f"{p['cn_alpha']:.3f}", _fmt(p["cp_m"], 4, 1e3))
+        forces.add_row(escape(p["part"]), f"{p['cn_alpha']:.3f}", _fmt(p["cp_m"], 4, per_m))
     parts.append(forces)
 
     motor, stab = s["motor"], s["stability"]
     if motor is not None:
-        parts.append(_heading(escape(f"Stability with {motor['designation']}"
-                                     + (f" ({motor['maker']})" if motor["maker"] else ""))))
-        table = _plain_table("", "CG (mm)", "CP (mm)", "margin")
-        table.add_row("no motor", _fmt(s["cg_empty_m"], 4, 1e3), _fmt(s["cp_m"], 4, 1e3), _cal(s["margin_empty_cal"]))
-        table.add_row("liftoff", _fmt(stab["cg_liftoff_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),
+        parts.append(_heading(f"Stability with {motor['designation']}"
+                              + (f" ({motor['maker']})" if motor["maker"] else "")))
+        table = _plain_table("", f"CG ({size})", f"CP ({size})", "margin")
+        table.add_row("no motor", _fmt(s["cg_empty_m"], 4, per_m), _fmt(s["cp_m"], 4, per_m), _cal(s["margin_empty_cal"]))
+        table.add_row("liftoff", _fmt(stab["cg_liftoff_m"], 4, per_m), _fmt(stab["cp_m"], 4, per_m),
                       _cal(stab["margin_liftoff_cal"]))
-        table.add_row("burnout", _fmt(stab["cg_burnout_m"], 4, 1e3), _fmt(stab["cp_m"], 4, 1e3),
+        table.add_row("burnout", _fmt(stab["cg_burnout_m"], 4, per_m), _fmt(stab["cp_m"], 4, per_m),
                       _cal(stab["margin_burnout_cal"]))
         table.add_row(Text("smallest, powered", style="bold"), "", "", Text(_cal(stab["min_margin_cal"]), style="bold"))
         parts.append(table)
         note = Text()
         weight = s["nose_weight_for_stability_kg"]
         if weight is not None:
-            note.append(f"  Nose weight for {s['required_margin_cal']:g} cal: {weight * 1e3:.0f} g at "
-                        f"{s['nose_weight_position_m'] * 1e3:.0f} mm from the tip.\n", style="yellow")
+            note.append(f"  Nose weight for {s['required_margin_cal']:g} cal: {small_mass(u, weight)} at "
+                        f"{u.quantity(s['nose_weight_position_m'], 'size', 0 if u.system == 'metric' else 1)} "
+                        "from the tip.\n", style="yellow")
         for w in s["warnings"]:
             note.append("  warning ", style="yellow")
             note.append(f"{w['code']}: ", style="bold")

@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
@@ -137,14 +137,16 @@ def test_drag_summary_shows_the_estimate_beside_a_given_cd() -> None:
 
 @settings(max_examples=60, deadline=None)
 @given(st.floats(0.0, 4.0))
+@example(1.40625)  # found by hypothesis: the powered table's largest error, 0.51 %
+@example(1.4059)
 def test_the_flown_table_follows_the_build_up_closely(mach: float) -> None:
     # linear interpolation on the 0.02 Mach grid against the build-up itself at that Mach number; the build-up
-    # has a cusp near Mach 1.406 (measured: the largest interpolation error, 0.46 %, sits there; hypothesis found
-    # it), far inside the estimate's own 10-20 % uncertainty
+    # has a cusp near Mach 1.406 (measured on a 1e-4 Mach grid over 0-4: the largest interpolation error sits
+    # there, 0.46 % coasting and 0.52 % powered), far inside the estimate's own 10-20 % uncertainty
     frame = _estimated_quibble()
     exact = drag_components(frame.geometry, frame.diameter_m, mach, altitude_m=120.0, exhaust_diameter_m=0.029)
-    assert np.interp(mach, frame.drag_machs, frame.drag_cds) == pytest.approx(float(exact.cd_coasting[0]), rel=5e-3)
-    assert np.interp(mach, frame.drag_machs, frame.drag_cds_powered) == pytest.approx(float(exact.cd_powered[0]), rel=5e-3)
+    assert np.interp(mach, frame.drag_machs, frame.drag_cds) == pytest.approx(float(exact.cd_coasting[0]), rel=6e-3)
+    assert np.interp(mach, frame.drag_machs, frame.drag_cds_powered) == pytest.approx(float(exact.cd_powered[0]), rel=6e-3)
 
 
 # ----------------------------------------------------------------------------- flown against the oracle

@@ -253,12 +253,19 @@ def test_docstring_examples_run() -> None:
 
 def test_scatter_stability_is_unknown_without_the_motor_length() -> None:
     # Regression (issue 11): the scatter's margin spread guessed a 0.1 m motor when the record has no length;
-    # a guessed margin is no margin: without the length there is none to report.
+    # a guessed margin is no margin: without the length there is none to report. The spread is now of each
+    # sample's own margin (sampled_margin_cal, the figure match --robust judges too).
     from dataclasses import replace
 
-    from motorlib.flight.dispersion import stability_spread
+    from motorlib.flight.dispersion import DispersionSettings, Uncertainty, fly_samples, stability_spread
 
     frame = _frame()
     known = _motor("K", 0.1, 0.04)
-    assert stability_spread(frame, known, np.zeros(4)) is not None
-    assert stability_spread(frame, replace(known, length_m=None), np.zeros(4)) is None
+
+    def margins(record: MotorRecord) -> np.ndarray:
+        return fly_samples(frame, [record], [Uncertainty()], np.zeros(4, dtype=np.int64), np.arange(4),
+                           DispersionSettings(n_samples=4), [5.0], descent=False)["sampled_margin_cal"]
+
+    assert stability_spread(margins(known)) is not None
+    assert np.all(np.isnan(margins(replace(known, length_m=None))))
+    assert stability_spread(margins(replace(known, length_m=None))) is None

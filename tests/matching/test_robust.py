@@ -92,3 +92,39 @@ def test_a_candidate_fails_the_rules_fly_applies_to_its_flight(quibble, motors) 
             assert all(share in (0.0, 1.0) for share in failures.values())
             assert ("descent-fast" in expected) is bool(limit < rate[i])
         assert not result["descent_flown"]  # as match: one charge-opened device, no field: the terminal estimate
+
+
+def test_stability_is_judged_on_every_sampled_flight(quibble, motors) -> None:
+    # New-user trial: the robust ranking judged the stability margin on the nominal flight only, so a CG known
+    # to +-50 mm never failed a motor whose nominal margin (2.1 cal for F29-8) clears 1 cal. Each sample carries
+    # its own margin: the CG shift moves the loaded CG by shift x m_airframe / m_rocket (closed form, see
+    # motorlib.flight.stability), and the samples below the minimum fail `stability-low`.
+    n = 200
+    spread = Uncertainty(cg_std_m=0.05, **{name: 0.0 for name in Uncertainty.__dataclass_fields__ if name != "cg_std_m"})
+    f29 = motors[1]
+    result = robust_rank(quibble, [f29], MatchSettings(), spread, RobustSettings(n_samples=n))
+    c = result["candidates"][0]
+    flights = fly_samples(quibble, [f29], [spread], np.zeros(n, dtype=np.int64), np.arange(n),
+                          DispersionSettings(n_samples=n), [c["delay_s"]], descent=False)
+    from motorlib.flight.stability import stability_for_records
+
+    nominal = float(stability_for_records(quibble, [f29]).min_margin_cal[0])
+    assert nominal > 2.0  # the nominal flight passes: only the samples can fail it
+    margin = flights["sampled_margin_cal"]
+    assert np.all(np.isfinite(margin)) and np.std(margin) > 0.3
+    below = int(np.count_nonzero(margin < 1.0))
+    assert 0 < below < n
+    assert c["failures"]["stability-low"] == pytest.approx(below / n)
+    assert c["n_below_min_stability"] == below
+    assert c["stability_margin_cal"]["p50"] == pytest.approx(float(np.percentile(margin, 50)))
+    # zero spread: every sample has the nominal flight's margin (rail exit included), as match computes it
+    still = Uncertainty.zero()
+    flat = fly_samples(quibble, [f29], [still], np.zeros(3, dtype=np.int64), np.arange(3),
+                       DispersionSettings(n_samples=3), [c["delay_s"]], descent=False)["sampled_margin_cal"]
+    from motorlib.matching.rank import rank
+    from motorlib.catalog import Catalog
+
+    cat = Catalog(SAMPLE_DIR, read_only=True)
+    matched = [m for m in rank(quibble, cat, MatchSettings(allow_smaller_motors=True)).candidates
+               if m.designation == "F29-8"][0]
+    assert flat == pytest.approx([matched.stability_margin_cal] * 3, rel=1e-9)

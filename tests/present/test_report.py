@@ -79,3 +79,48 @@ def test_thinning_keeps_the_ends_and_the_highest_point() -> None:
     ys = [-(x - 4321) ** 2 for x in xs]
     tx, ty = thin(xs, ys, 200)
     assert len(tx) <= 202 and tx[0] == 0 and tx[-1] == 9999 and 4321 in tx
+
+
+def test_a_large_ranking_lists_the_best_motors_and_says_how_many_are_left_out() -> None:
+    # New-user trial: 150 fitting motors printed on 26 A4 pages (the page limit is checked in a real browser in
+    # test_report_browser.py); the report lists the best ones in rank order, its chart the same ones, and says
+    # how many more there are and where to see them.
+    from motorlib.files.airframe_toml import load_airframe
+    from motorlib.matching.rank import MatchSettings, rank
+    from motorlib.present.report_content import match_report
+
+    from ..conftest import SAMPLE_DIR
+    from ..synthetic import synthetic_motors
+
+    frame = load_airframe(SAMPLE_DIR / "airframes" / "quibble-41.toml")
+    result = rank(frame, synthetic_motors(150, seed=3), MatchSettings(target_m=400.0, ceiling_m=600.0))
+    report = match_report(result, inputs=[], command="test", catalog="synthetic", frame=frame)
+    fitting = [c for c in result.candidates if c.fits]
+    listed = [row[1] for row in report.ranking.rows]
+    assert 5 <= len(listed) < len(fitting)
+    assert listed == [c.designation for c in fitting[: len(listed)]]
+    assert f"The next {len(fitting) - len(listed)} motor(s) that fit" in report.ranking.note
+    assert report.chart is not None and f"({len(listed)} shown)" in report.chart.svg
+
+
+def test_the_match_png_of_a_large_ranking_stays_readable(tmp_path: Path) -> None:
+    # New-user trial: 1,123 flown motors drew a PNG 49,740 px wide (about 1,500 reach matplotlib's 2^16 px limit,
+    # an internal error); the chart draws the best motors in rank order and says how many it leaves out.
+    from PIL import Image
+
+    from motorlib.files.airframe_toml import load_airframe
+    from motorlib.matching.rank import MatchSettings, rank
+    from motorlib.present.display import DisplayUnits
+    from motorlib.present.plots import MATCH_PLOT_MOTORS, match_plot
+
+    from ..conftest import SAMPLE_DIR
+    from ..synthetic import synthetic_motors
+
+    frame = load_airframe(SAMPLE_DIR / "airframes" / "quibble-41.toml")
+    result = rank(frame, synthetic_motors(200, seed=5), MatchSettings(target_m=400.0))
+    flown = [c for c in result.candidates if c.apogee_m is not None]
+    assert len(flown) > MATCH_PLOT_MOTORS
+    path = match_plot(result, tmp_path / "m.png", DisplayUnits())
+    with Image.open(path) as image:
+        width, height = image.size
+    assert width < 4000 and height < 1500

@@ -38,7 +38,7 @@ AIRFRAME = SAMPLE_DIR / "airframes" / "quibble-41.toml"
 A4_IN = (8.27, 11.69)
 LETTER_IN = (8.5, 11.0)
 MIN_INK_FRACTION = 0.004  # of the plot area: a drawn curve or bars; axes and grid alone give none
-REPORTS = ["fly", "fly-3d", "fly-failed", "match", "series", "single"]
+REPORTS = ["fly", "fly-3d", "fly-failed", "match", "match-big", "series", "single"]
 
 
 def _pages(pdf: bytes) -> int:
@@ -98,6 +98,23 @@ def _fly_3d_report(folder: Path) -> Path:
     return write_report(report, folder / "fly-3d.html")
 
 
+def _big_match_report(folder: Path) -> Path:
+    """A ranking of 150 invented 29 mm motors (most failing, with long reasons) in imperial units: the report
+    must still print on two pages (New-user trial: a large ranking spilled onto a third page)."""
+    from motorlib.files.airframe_toml import load_airframe
+    from motorlib.matching.rank import MatchSettings, rank
+    from motorlib.present.report import write_report
+    from motorlib.present.report_content import match_report
+
+    from ..synthetic import synthetic_motors
+
+    result = rank(load_airframe(AIRFRAME), synthetic_motors(150, seed=3),
+                  MatchSettings(target_m=400.0, ceiling_m=600.0, ballast=True))
+    report = match_report(result, inputs=[str(AIRFRAME)], command="test", catalog="synthetic", units="imperial",
+                          made_at="2026-12-02 00:00 UTC", frame=load_airframe(AIRFRAME))
+    return write_report(report, folder / "match-big.html")
+
+
 def _empty_chart_page(folder: Path) -> Path:
     """The control: a report whose one chart has axes, grid and a legend but no data."""
     chart = SvgChart(title="Nothing drawn", description="An empty chart.", x_label="x", y_label="y",
@@ -130,6 +147,7 @@ def report_files(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Path]:
         assert result.exit_code == (1 if name == "fly-failed" else 0), result.output  # a failed flight exits 1
         files[name] = path
     files["fly-3d"] = _fly_3d_report(folder)
+    files["match-big"] = _big_match_report(folder)
     files["empty"] = _empty_chart_page(folder)
     return files
 
