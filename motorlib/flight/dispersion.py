@@ -495,11 +495,10 @@ def run_samples(frame: Airframe, records: Sequence[MotorRecord], uncertainties: 
                 progress: Callable[[int, int], None] | None = None) -> dict[str, np.ndarray]:
     """:func:`fly_samples` in chunks of ``settings.chunk_size``, on ``workers`` processes.
 
-    The chunk boundaries depend on ``chunk_size`` only, and the chunks' results are joined in
-    flight order, so the arrays are identical, bit for bit, for any number of workers. Another
-    chunk size may change the last digits (about 1e-13 relative): the integrator's in-step root
-    solve stops when every flight of its batch has converged. ``progress(done, total)`` is
-    called after each chunk.
+    The chunks' results are joined in flight order, and each flight is integrated as it would be
+    alone (its own steps, and in-step root solves of a fixed iteration count), so the arrays are
+    identical, bit for bit, for any number of workers and any chunk size.
+    ``progress(done, total)`` is called after each chunk.
     """
     motor_index = np.asarray(motor_index, dtype=np.int64)
     sample_index = np.asarray(sample_index, dtype=np.int64)
