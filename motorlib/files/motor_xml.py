@@ -31,7 +31,7 @@ import numpy as np
 from lxml import etree
 
 from . import schema
-from ..motor.record import FORMER_PROVENANCE_KINDS, FiringSpread, MotorRecord, Provenance
+from ..motor.record import FORMER_PROVENANCE_KINDS, UNWRITABLE_CHARACTER, FiringSpread, MotorRecord, Provenance
 from ..errors import CurveDataError, CurveError, CurveSyntaxError, MotorlibError, Problem, SchemaValidationError
 from .fsio import read_bounded, write_atomic
 from ..units import to_si
@@ -317,7 +317,7 @@ def _exact_text(value_si: float, unit_choices: tuple[tuple[str, float], ...], ki
 
 
 # Characters XML 1.0 cannot carry at all (its Char production): most C0 controls, lone surrogates, U+FFFE, U+FFFF
-_NOT_XML_CHAR = re.compile("[^\t\n\r\x20-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
+_NOT_XML_CHAR = UNWRITABLE_CHARACTER
 _HARDWARE: Final = (  # element, record field, units the writer prefers (scale from SI), quantity kind
     ("diameter", "diameter_m", (("mm", 1e3), ("m", 1.0)), "length"),
     ("length", "length_m", (("mm", 1e3), ("m", 1.0)), "length"),

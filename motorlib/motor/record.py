@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+import re
 from dataclasses import dataclass, field
 from typing import Callable, Final, TypeVar
 
@@ -63,6 +64,22 @@ DEFAULT_BURN_THRESHOLD: Final = 0.05
 #   own-firing        fired on a test stand by the record's author or their team (motorlib reduce)
 #   demo              invented for demonstration; never for a real flight
 #   other             anything else, or not known
+# A character no curve file can carry (XML 1.0 allows tab, newline, carriage return and the rest of Unicode
+# except surrogates and U+FFFE/U+FFFF; W3C XML 1.0, section 2.2 "Characters"): a record's text refuses it, so
+# that every record can be written and read back.
+UNWRITABLE_CHARACTER: Final = re.compile("[^\t\n\r\x20-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
+
+
+def text_problem(text: object, field_name: str) -> Problem | None:
+    """A Problem when ``text`` (a str) holds a character no curve file can carry, naming the first one."""
+    found = UNWRITABLE_CHARACTER.search(text) if isinstance(text, str) else None
+    if found is None:
+        return None
+    return Problem("text-not-writable", field_name,
+                   f"holds a character a curve file cannot carry (U+{ord(found.group()):04X}, a control character "
+                   f"or a lone surrogate) at position {found.start() + 1}; remove it")
+
+
 PROVENANCE_KINDS: Final = ("approval-firing", "maker-published", "own-firing", "demo", "other")
 # Names used up to format 1.0; files that carry them are read with the new name.
 FORMER_PROVENANCE_KINDS: Final = {
@@ -115,6 +132,9 @@ class Provenance:
                 [Problem("provenance-kind", "provenance.kind",
                          f"must be one of {', '.join(PROVENANCE_KINDS)}, got {self.kind!r}{hint}")],
             )
+        problem = text_problem(self.notes, "provenance.notes")
+        if problem is not None:
+            raise CurveDataError("provenance", [problem])
 
 
 @dataclass(frozen=True)
@@ -287,6 +307,8 @@ class MotorRecord:
             ))
         if not isinstance(self.designation, str) or not self.designation.strip():
             problems.append(Problem("designation-missing", "designation", "a designation (label) is required"))
+        problems += [p for p in (text_problem(self.maker, "maker"), text_problem(self.designation, "designation"))
+                     if p is not None]
         if not isinstance(self.provenance, Provenance):
             raise TypeError("`provenance` must be a Provenance")
         if self.firing_spread is not None and not isinstance(self.firing_spread, FiringSpread):

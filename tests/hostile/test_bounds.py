@@ -100,3 +100,32 @@ def test_staged_files_of_a_killed_writer_are_cleaned_on_the_next_open(tmp_path: 
     assert not list(staging.iterdir())
     assert not (root / "maker" / ".g59.xml.abc123.tmp").exists() and not (root / ".tags.json.def456.tmp").exists()
     assert (root / ".hidden" / ".kept.tmp").exists() and (root / "maker" / "g59.tmp").exists()
+
+
+@pytest.mark.parametrize("field", ["maker", "designation", "notes"])
+def test_a_control_character_in_a_name_refuses_that_curve_only(tmp_path: Path, field: str) -> None:
+    # A name from CSV metadata may carry a control character that no curve file can hold; the add refused nothing
+    # and stopped the whole batch with an internal error. Now that one curve is refused, naming the field, and the
+    # other curve of the batch is added.
+    from motorlib.catalog import Catalog
+    from motorlib.files.motor_csv import CurveMetadata
+    from motorlib.motor.record import Provenance
+
+    good, bad = tmp_path / "good.csv", tmp_path / "bad.csv"
+    for path in (good, bad):
+        path.write_text("time_s,thrust_n\n0,0\n0.05,14\n0.1,20\n0.3,19\n0.5,18.5\n0.7,18\n0.8,17\n0.9,8\n1,0\n")
+    names = {"designation": "D16-6", "maker": "Test stand team", "notes": "lot 3"}
+
+    def metadata(path):
+        text = dict(names)
+        if path == bad:
+            text[field] = text[field][:2] + "\x01" + text[field][2:]
+        return CurveMetadata(designation=text["designation"], maker=text["maker"],
+                             provenance=Provenance("own-firing", notes=text["notes"]))
+
+    with Catalog(tmp_path / "catalog") as catalog:
+        results = catalog.add_files([bad, good], metadata=metadata)
+    by_file = {Path(r.source).name: r for r in results}
+    assert by_file["good.csv"].status == "added"
+    assert by_file["bad.csv"].status == "refused"
+    assert "cannot carry (U+0001" in by_file["bad.csv"].message and field in by_file["bad.csv"].message
