@@ -40,6 +40,9 @@ class _Quantity(click.ParamType):
 
         name = param.name if param else "value"
         text = str(value).strip()
+        if _is_non_finite(text):  # before the unit rules: 'nan' is no unit problem, and no length such as '29 mm'
+            self.fail(f"{text!r} is not a finite number; give e.g. {self.example or _UNIT_EXAMPLES[self.kind]}",
+                      param, ctx)
         if not self.bare and _is_bare_number(text):
             self.fail(f"{text!r} has no unit; give one, e.g. {self.example or _UNIT_EXAMPLES[self.kind]} "
                       "(a bare number would mean the SI unit here)", param, ctx)
@@ -53,6 +56,14 @@ class _Quantity(click.ParamType):
         if low is not None and (quantity < low or (self.strict and quantity == low)):
             self.fail(f"{text!r} must be {'more than' if self.strict else 'at least'} {low:g}", param, ctx)
         return quantity
+
+
+def _is_non_finite(text: str) -> bool:
+    """Whether ``text`` is a number Python reads as nan or an infinity (``nan``, ``-inf``, ``Infinity``)."""
+    try:
+        return not math.isfinite(float(text))
+    except ValueError:
+        return False
 
 
 class _Finite(click.FloatRange):

@@ -93,8 +93,11 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
         mode = None
     if mode is not None and not stat.S_ISREG(mode) and not stat.S_ISDIR(mode):
         # a pipe or device (/dev/null, a FIFO a reader waits on): write into it, never rename over it
-        with open(target, "wb") as handle:
-            handle.write(data)
+        try:
+            with open(target, "wb") as handle:
+                handle.write(data)
+        except OSError as exc:
+            raise _naming(exc, target) from exc
         return target
     if not overwrite and target.exists():
         raise FileExistsError(f"{target}: already exists (choose another name or allow overwriting)")
@@ -115,14 +118,23 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
             os.unlink(tmp_name)
         else:
             os.replace(tmp_name, target)
-    except BaseException:
+    except BaseException as exc:
         try:
             os.unlink(tmp_name)
         except FileNotFoundError:
             pass
+        if isinstance(exc, OSError):
+            raise _naming(exc, target) from exc
         raise
     _fsync_folder(folder)
     return target
+
+
+def _naming(exc: OSError, target: Path) -> OSError:
+    """``exc`` naming ``target`` when it names no file (a failed write, e.g. a full disk, names none)."""
+    if exc.filename is not None or exc.errno is None:
+        return exc
+    return type(exc)(exc.errno, exc.strerror, str(target))
 
 
 def _existing_mode(target: Path) -> int:

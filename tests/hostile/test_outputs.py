@@ -172,3 +172,20 @@ def test_markup_in_user_text_is_shown_verbatim(tmp_path: Path) -> None:
     for args in (["catalog", "show", "--catalog", root, "E25"], ["fly", AIRFRAME, "--motor", "E25", "--catalog", root]):
         result = run(*args)
         assert maker in result.output and "\\[" not in result.output, result.output
+
+
+@pytest.mark.skipif(not os.path.exists("/dev/full"), reason="needs /dev/full (a device whose writes fail: disk full)")
+def test_a_full_device_names_the_output_it_could_not_write() -> None:
+    # `fly --csv /dev/full` said only "Error: No space left on device": which of the outputs failed?
+    result = run("fly", AIRFRAME, "--motor", MOTOR, "--csv", "/dev/full")
+    assert result.exit_code == 2
+    assert "/dev/full" in result.output and "No space left on device" in result.output
+
+
+@pytest.mark.parametrize("value", ["nan", "inf", "-inf", "NaN", "Infinity"])
+@pytest.mark.parametrize("option", ["--target", "--wind-from", "--wind"])
+def test_a_non_finite_quantity_is_refused_as_such(option: str, value: str) -> None:
+    # `--target nan` answered "expected a length such as '29 mm'" and `--wind-from nan` "has no unit"
+    result = run("match", AIRFRAME, "--target", "300", option, value)
+    assert result.exit_code == 2
+    assert "is not a finite number" in result.output and option in result.output
