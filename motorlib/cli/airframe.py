@@ -56,7 +56,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
         from ..present.plots import airframe_plot
 
         try:
-            written = airframe_plot(frame, summary, plot_path, overwrite=overwrite)
+            written = airframe_plot(frame, summary, plot_path, overwrite=overwrite, units=display_units(units))
         except FileExistsError as exc:
             raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
     if as_json:

@@ -362,11 +362,13 @@ def _drag_panel(ax_cd, airframe, given: dict) -> None:
     ax_cd.legend(fontsize=8, loc="upper right")
 
 
-def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, overwrite: bool = False) -> Path:
+def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, overwrite: bool = False,
+                  units: DisplayUnits = _METRIC) -> Path:
     """The rocket's side profile to scale with its CG and CP marked, and the estimated Cd against Mach.
 
     ``summary`` is :func:`motorlib.flight.summary.airframe_summary`. CG and CP carry our own markers and text
     labels; the palette is grey levels with distinct line styles, so the chart survives greyscale printing.
+    Lengths are drawn in ``units``' airframe size unit (mm, or inches in imperial; default metric).
 
     Raises
     ------
@@ -377,7 +379,9 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
 
     plt = _figure()
     g = airframe.geometry
-    mm = 1e3
+    size_unit = units.unit("size")
+    mm = units.convert(1.0, "size", size_unit)  # drawing units per metre (1000 for mm)
+    places = 0 if size_unit == "mm" else 1
     x, r = outline_m(g, airframe.diameter_m)
     fig, (ax, ax_cd) = plt.subplots(2, 1, figsize=(10, 7.5), gridspec_kw={"height_ratios": [1.0, 1.3]})
 
@@ -412,7 +416,7 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
     for (position, label, (marker, face, edge)), spot in zip(marks, spots):
         ax.plot([position * mm], [0.0], marker=marker, markersize=9, markerfacecolor=face, markeredgecolor=edge,
                 linestyle="none", zorder=5)
-        ax.annotate(f"{label}\n{position * mm:.0f} mm", xy=(position * mm, 0.0), xytext=((spot + shift) * mm, y_row),
+        ax.annotate(f"{label}\n{position * mm:.{places}f} {size_unit}", xy=(position * mm, 0.0), xytext=((spot + shift) * mm, y_row),
                     ha="center", va="bottom", fontsize=8, color=_INK, zorder=6,
                     arrowprops={"arrowstyle": "-", "color": edge, "linewidth": 0.7, "linestyle": ":",
                                 "shrinkA": 0, "shrinkB": 6})
@@ -420,7 +424,7 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
     cp = summary["cp_m"]
     ax.plot([cp * mm], [0.0], marker=marker, markersize=10, markerfacecolor=face, markeredgecolor=edge,
             linestyle="none", zorder=5)
-    ax.annotate(f"CP (subsonic)\n{cp * mm:.0f} mm", xy=(cp * mm, 0.0), xytext=(cp * mm, -y_row), ha="center",
+    ax.annotate(f"CP (subsonic)\n{cp * mm:.{places}f} {size_unit}", xy=(cp * mm, 0.0), xytext=(cp * mm, -y_row), ha="center",
                 va="top", fontsize=8, color=_INK, zorder=6,
                 arrowprops={"arrowstyle": "-", "color": edge, "linewidth": 0.7, "linestyle": ":", "shrinkA": 0,
                             "shrinkB": 2})
@@ -428,8 +432,8 @@ def airframe_plot(airframe, summary: dict, path: str | os.PathLike[str], *, over
     ax.set_xlim(-0.03 * g.length_m * mm, (g.length_m + max(g.motor_offset_m, 0.0) + 0.03 * g.length_m) * mm)
     ax.set_ylim(-y_row - reach * 1.2 * mm, y_row + reach * 1.2 * mm)
     ax.set_aspect("equal")
-    ax.set_xlabel("distance from the nose tip (mm)")
-    ax.set_ylabel("mm")
+    ax.set_xlabel(f"distance from the nose tip ({size_unit})")
+    ax.set_ylabel(size_unit)
     margin = stab.get("min_margin_cal") if stab else summary["margin_empty_cal"]
     what = f"with {motor['designation']}, smallest powered margin" if stab else "margin without motor"
     ax.set_title(f"{summary['airframe']}: side profile to scale; {what} "

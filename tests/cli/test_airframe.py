@@ -115,3 +115,32 @@ def test_errors_are_clear(tmp_path: Path) -> None:
     assert code == 2 and "no motor with that id, handle or designation" in out
     code, out = run("airframe", QUIBBLE, "--mach", "-1")
     assert code == 2
+
+
+@pytest.mark.parametrize("system, unit, per_m", [("metric", "mm", 1e3), ("imperial", "in", 1 / 0.0254)])
+def test_the_profile_chart_follows_the_units_switch(tmp_path, monkeypatch, system, unit, per_m) -> None:
+    # `airframe --plot` drew and labelled the profile in mm whatever --units said (the table followed it)
+    from motorlib.files.airframe_toml import load_airframe
+    from motorlib.flight.summary import airframe_summary
+    from motorlib.present import plots
+    from motorlib.present.display import DisplayUnits
+
+    seen = {}
+    real_save = plots._save
+
+    def capture(fig, path, **kwargs):
+        seen["xlabels"] = [axes.get_xlabel() for axes in fig.axes]
+        seen["notes"] = [text.get_text() for axes in fig.axes for text in axes.texts]
+        seen["xlim"] = fig.axes[0].get_xlim()
+        return real_save(fig, path, **kwargs)
+
+    monkeypatch.setattr(plots, "_save", capture)
+    frame = load_airframe(QUIBBLE)
+    summary = airframe_summary(frame, None)
+    plots.airframe_plot(frame, summary, tmp_path / "profile.png", units=DisplayUnits(system))
+    assert f"distance from the nose tip ({unit})" in seen["xlabels"]
+    cp_note = next(note for note in seen["notes"] if note.startswith("CP"))
+    assert cp_note.endswith(f" {unit}")
+    # 1 in = 25.4 mm exactly (international inch, 1959)
+    assert float(cp_note.split("\n")[1].split()[0]) == pytest.approx(summary["cp_m"] * per_m, abs=0.51)
+    assert seen["xlim"][1] == pytest.approx(frame.geometry.length_m * 1.03 * per_m, rel=0.2)
