@@ -117,10 +117,12 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     kwargs = dict(metadata=_metadata_for(opts, files, report_unused=True), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
     with _progress("adding curves", len(files)) as advance:
         results = cat.add_files(files, progress=advance, **kwargs) if advance else cat.add_files(files, **kwargs)
-    if any(r.status != "added" or r.near_duplicates for r in results):
+    forced = sum(bool(render.forced_errors(r)) for r in results)
+    if forced or any(r.status != "added" or r.near_duplicates for r in results):
         console.print(render.add_results_table(results))
     counts = Counter(r.status for r in results)
-    console.print(f"{len(results)} file(s): {counts['added']} added, {counts['duplicate']} already present, "
+    added = f"{counts['added']} added" + (f" ({forced} with errors, by --force)" if forced else "")
+    console.print(f"{len(results)} file(s): {added}, {counts['duplicate']} already present, "
                   f"{counts['refused']} refused, {counts['unreadable']} unreadable; the catalog now holds "
                   f"{len(cat)} motor(s) in {render.escape(str(cat.root))}")
     if counts["refused"] or counts["unreadable"]:

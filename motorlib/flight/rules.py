@@ -37,6 +37,7 @@ motor-does-not-fit          has a motor that cannot go in the mount (matching)
 above-class                 has a motor above the flyer's class limit (matching)
 no-masses                   has a motor whose total or propellant mass is unknown (matching)
 stability-low               has less stability margin than asked, or an unknown one (matching)
+curve-errors                has a motor whose curve fails its own checks: label, class or data (matching)
 ==========================  ============================================================
 """
 
@@ -61,6 +62,7 @@ RULE_CODES: Final = {
     "lands-outside-field": "lands outside the field", "no-deployment": "nothing deploys recovery",
     "motor-does-not-fit": "does not fit the mount", "above-class": "above your class limit",
     "no-masses": "masses unknown", "stability-low": "too little stability margin (CG too far aft)",
+    "curve-errors": "the curve fails its own checks (label, class or data)",
 }
 # Codes about the model rather than the flight: ``fly`` warns, ``match`` lists them as notes, not failures.
 NOTE_CODES: Final = frozenset({"constant-cd-past-mach"})

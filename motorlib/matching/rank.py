@@ -285,6 +285,8 @@ def _candidate(row: CatalogRow, fit_reasons: list[tuple[str, str]], adapter: str
     every rule it breaks and every note, and its verdict (:func:`.verdicts.classify`)."""
     figures, reasons, notes = flown if flown is not None else ({}, fit_reasons, [])
     fits = not fit_reasons
+    if row.n_errors:  # never hidden: the flight is of the curve, the flyer buys the label
+        reasons = reasons + [("curve-errors", _curve_errors_text(row.n_errors))]
     if adapter is not None and fits:
         notes = [("adapter", f"needs a {adapter} adapter")] + notes
     codes = [code for code, _ in reasons]
@@ -299,6 +301,11 @@ def _candidate(row: CatalogRow, fit_reasons: list[tuple[str, str]], adapter: str
                   notes=tuple(text for _, text in notes), note_codes=tuple(code for code, _ in notes),
                   verdict=verdict.verdict, passes=verdict.passes, ballast_passes=verdict.ballast_passes)
     return Candidate.from_fields(values)
+
+
+def _curve_errors_text(n_errors: int) -> str:
+    return (f"the curve fails {n_errors} of its own checks (its label, impulse class or data; `motorlib catalog verify` "
+            "lists them): the motor sold under this label may not fly like this curve")
 
 
 def _sort_key(c: Candidate, s: MatchSettings) -> tuple[int, float, str]:

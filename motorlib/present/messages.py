@@ -38,6 +38,7 @@ REASON_CODES = {
     "not-flown": ("X", "flight not completed"), "flight-incomplete": ("X", "flight not completed"),
     "above-class": ("A", "above your class limit"), "no-masses": ("U", "masses unknown"),
     "motor-does-not-fit": ("M", "does not fit the mount"),
+    "curve-errors": ("I", "the curve fails its own checks (label, class or data)"),
     # the target windows of match --robust (motorlib.matching.robust.WINDOW_CODES)
     "apogee-outside-window": ("V", "apogee outside the altitude window"),
     "duration-outside-window": ("Q", "flight duration outside the window"),

@@ -458,23 +458,33 @@ def sparkline(time_s: Any, thrust_n: Any, width: int = 60) -> str:
     return "".join(_BARS[int(round(v / peak * (len(_BARS) - 1)))] for v in f)
 
 
+def forced_errors(result: Any) -> list:
+    """The error findings of a curve that ``catalog add --force`` added despite them (empty otherwise)."""
+    return [f for f in result.findings if f.severity == "error"] if result.status == "added" else []
+
+
 def add_results_table(results: list) -> Table:
     """What ``catalog add`` did with each offered file that was not simply added."""
     table = _table("Catalog add")
     table.add_column("file", no_wrap=True, overflow="ellipsis", min_width=10, max_width=40)
     table.add_column("result", no_wrap=True)
     table.add_column("details", ratio=2, overflow="fold")
-    styles = {"added": "green", "duplicate": "cyan", "refused": "bold red", "unreadable": "bold red"}
+    styles = {"added": "green", "duplicate": "cyan", "refused": "bold red", "unreadable": "bold red",
+              "forced": "bold yellow"}
     for r in results:
-        if r.status == "added" and not r.near_duplicates:
+        errors = forced_errors(r)
+        if r.status == "added" and not r.near_duplicates and not errors:
             continue
-        status = "near-dup" if r.status == "added" else r.status
+        status = "forced" if errors else "near-dup" if r.status == "added" else r.status
         message, source = r.message, str(r.source)
+        if errors:  # added with --force despite these: say which
+            message = "; ".join([f"{f.code}: {f.message}" for f in errors] + ([message] if message else []))
         if message.startswith(source):  # the file is in the first column already
             rest = message[len(source):].lstrip(":")
             line, sep, after = rest.partition(":")
             message = f"line {line}:{after}" if sep and line.isdigit() else rest.strip()
-        table.add_row(escape(Path(r.source).name), Text(status, style=styles[r.status]), escape(message))
+        table.add_row(escape(Path(r.source).name), Text(status, style=styles[status if errors else r.status]),
+                      escape(message))
     return table  # the details column wraps at spaces: it holds sentences
 
 

@@ -84,3 +84,15 @@ def test_a_csv_added_without_delays_shows_unknown_not_plugged(tmp_path: Path) ->
     assert _delay_cell(out, "D12 ") == "?" and _delay_cell(out, "D12-P") == "P"
     code, out = run("check", str(FIXTURE_DIR / "sound_d12.csv"), "--designation", "D12")
     assert "unknown (not given)" in out and "plugged" not in out
+
+
+def test_a_forced_add_names_the_errors_it_accepted(tmp_path: Path) -> None:
+    # `catalog add --force` printed only "1 added": the errors it let in were seen nowhere until a ranking
+    text = (SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml").read_text(encoding="utf-8")
+    relabelled = tmp_path / "h29-8.xml"
+    relabelled.write_text(text.replace("<designation>F29-8<", "<designation>H29-8<"), encoding="utf-8")
+    code, out = run("catalog", "add", "--catalog", str(tmp_path / "cat"), "--force", str(relabelled))
+    assert code == 0
+    flat = " ".join(out.split())
+    assert "h29-8.xml" in flat and "forced" in flat and "class-mismatch" in flat
+    assert "1 added (1 with errors, by --force)" in flat

@@ -19,7 +19,7 @@ FLAT = FlightSettings(vary_gravity=False)  # the closed forms below take g const
 
 def _motor(delays: tuple[float, ...] = (3.0, 5.0, 7.0, 12.0)) -> MotorRecord:
     # constant thrust, (nearly) constant mass: the propellant is 1 µg
-    return MotorRecord("F30-7", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9, delays_s=delays,
+    return MotorRecord("E30-7", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9, delays_s=delays,
                        diameter_m=0.024, length_m=0.1)
 
 
@@ -89,7 +89,7 @@ def test_ballast_for_a_target_in_vacuum_matches_the_closed_form() -> None:
 ])
 def test_a_motor_fits_a_mount_within_half_a_millimetre(motor_diameter_m: float, smaller_allowed: bool,
                                                        fits: bool) -> None:
-    motor = MotorRecord("F30-7", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9,
+    motor = MotorRecord("E30-7", [0.0, 1.2], [30.0, 30.0], total_mass_kg=0.1, propellant_mass_kg=1e-9,
                         delays_s=(7.0,), diameter_m=motor_diameter_m, length_m=0.1)
     candidate = rank(_frame(), motor, MatchSettings(allow_smaller_motors=smaller_allowed),
                      flight_settings=FLAT).candidates[0]

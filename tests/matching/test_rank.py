@@ -345,3 +345,26 @@ def test_match_applies_the_rail_exit_wind_rule_that_fly_warns_about(tmp_path) ->
     assert e25["rail_exit_speed_m_s"] < 20.0 and "rail-exit-slow" in e25["reason_codes"]
     fly = runner.invoke(main, ["fly", str(windy), "--motor", "E25-7", "--json"]).output
     assert "rail-exit-slow" in [w["code"] for w in json.loads(fly)["warnings"]]
+
+
+def test_a_motor_whose_curve_fails_its_own_checks_never_passes(tmp_path) -> None:
+    # A curve relabelled one class up (added with --force, or edited in place) ranked "pass" with no word of the
+    # label errors `catalog list` shows: a flyer would buy the motor of the label, not the curve that was flown.
+    from motorlib.catalog import Catalog
+    from motorlib.files.airframe_toml import load_airframe
+
+    text = (SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml").read_text(encoding="utf-8")
+    relabelled = tmp_path / "h29-8.xml"
+    relabelled.write_text(text.replace("<designation>F29-8<", "<designation>H29-8<"), encoding="utf-8")
+    with Catalog(tmp_path / "catalog") as catalog:
+        (added,) = catalog.add_files([relabelled], force=True)
+        assert added.status == "added"
+        rows = catalog.rows()
+        assert rows[0].n_errors > 0  # the catalog knows
+        frame = load_airframe(SAMPLE_DIR / "airframes" / "quibble-41.toml")
+        (c,) = rank(frame, rows, catalog.motor_pack, MatchSettings(target_m=500.0, target_tolerance=0.5,
+                                                                                  allow_smaller_motors=True)).candidates
+    assert c.apogee_m is not None  # still flown: its figures are shown
+    assert "curve-errors" in c.reason_codes and c.verdict == "fail" and not c.passes
+    message = c.reasons[c.reason_codes.index("curve-errors")]
+    assert "catalog verify" in message and str(rows[0].n_errors) in message
