@@ -6,6 +6,7 @@ import os
 
 import click
 
+from .group import _InputError
 from .options import _Finite, _units_option, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
@@ -44,7 +45,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
 
     frame = load_airframe(airframe_file)
     if frame.geometry is None:
-        raise click.ClickException(f"{airframe_file}: [geometry]: missing section; this command needs the "
+        raise _InputError(f"{airframe_file}: [geometry]: missing section; this command needs the "
                                    "airframe's shape (see data_schema/AIRFRAME.md; `motorlib new-airframe` writes a "
                                    "commented example block to start from)")
     motor = None if motor_ref is None else _load_motor(motor_ref, catalog_dir)[0]
@@ -58,7 +59,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
         try:
             written = airframe_plot(frame, summary, plot_path, overwrite=overwrite, units=display_units(units))
         except FileExistsError as exc:
-            raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+            raise _InputError(f"{exc}; use --overwrite to replace it") from exc
     if as_json:
         payload = {**summary, "plot": None if written is None else str(written), "caution": _EPILOG}
         click.echo(_strict_json(payload, indent=2))

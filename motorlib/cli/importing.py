@@ -6,6 +6,7 @@ from typing import Any
 
 import click
 
+from .group import _InputError
 from .options import _metadata_for, _metadata_options
 from .output import _console
 
@@ -57,7 +58,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     try:
         path = write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
-        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+        raise _InputError(f"{exc}; use --overwrite to replace it") from exc
     console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
                   f"{render.impulse_text(record.total_impulse_ns)} N·s, "
                   f"{record.computed_designation()}")

@@ -110,7 +110,7 @@ def test_errors_are_clear(tmp_path: Path) -> None:
     bare = tmp_path / "bare.toml"
     bare.write_text('name = "Bare"\n[airframe]\nmass = "300 g"\ndiameter = "41.6 mm"\ndrag_coefficient = 0.5\n')
     code, out = run("airframe", str(bare))
-    assert code == 1 and "[geometry]: missing section" in out
+    assert code == 2 and "[geometry]: missing section" in out  # a file this command cannot use: exit 2
     code, out = run("airframe", QUIBBLE, "--motor", "Z99")
     assert code == 2 and "no motor with that id, handle or designation" in out
     code, out = run("airframe", QUIBBLE, "--mach", "-1")

@@ -23,7 +23,7 @@ def test_import_writes_a_checked_record(tmp_path: Path) -> None:
     code, out = run("check", str(out_path))
     assert code == 0 and "No findings." in out
     code, out = run("import", str(FIXTURE_DIR / "sound_d12.csv"), "-o", str(out_path), "--designation", "D12-5")
-    assert code == 1 and "--overwrite" in out
+    assert code == 2 and "--overwrite" in out
 
 
 def test_import_refuses_errors_unless_forced(tmp_path: Path) -> None:

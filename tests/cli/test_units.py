@@ -199,7 +199,7 @@ def test_new_airframe_writes_a_template_that_loads_and_never_overwrites(tmp_path
     assert code == 0 and path.exists() and "# " in path.read_text()
     assert load_airframe(path).mount_diameter_m == pytest.approx(0.029)
     code, out = run("new-airframe", str(path), "--units", "imperial")
-    assert code == 1 and "--overwrite" in out and "ft" not in path.read_text().split("[launch]")[1][:40]
+    assert code == 2 and "--overwrite" in out and "ft" not in path.read_text().split("[launch]")[1][:40]
     code, out = run("new-airframe", str(path), "--units", "imperial", "--overwrite")
     assert code == 0 and '"6 ft"' in path.read_text()
     assert load_airframe(path).launch.rail_length_m == pytest.approx(6 * 0.3048)

@@ -189,3 +189,18 @@ def test_a_non_finite_quantity_is_refused_as_such(option: str, value: str) -> No
     result = run("match", AIRFRAME, "--target", "300", option, value)
     assert result.exit_code == 2
     assert "is not a finite number" in result.output and option in result.output
+
+
+def test_every_refused_output_and_unusable_file_exits_2(tmp_path: Path) -> None:
+    # The README: exit 2 for unusable input. new-airframe and import answered an existing output with 1, as did
+    # airframe for a file without the [geometry] it needs (fly --plot, reduce -o and the others said 2).
+    existing = tmp_path / "taken.toml"
+    existing.write_text("x = 1\n")
+    assert run("new-airframe", existing).exit_code == 2
+    csv = tmp_path / "stand.csv"
+    csv.write_text("time_s,thrust_n\n0,0\n0.05,14\n0.1,20\n0.3,19\n0.5,18.5\n0.7,18\n0.8,17\n0.9,8\n1,0\n")
+    taken = tmp_path / "taken.xml"
+    taken.write_text("<x/>")
+    assert run("import", csv, "-o", taken, "--designation", "D16-6").exit_code == 2
+    result = run("airframe", SAMPLE_DIR / "airframes" / "fennelwick-24.toml")
+    assert result.exit_code == 2 and "[geometry]" in result.output
