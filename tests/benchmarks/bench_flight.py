@@ -5,9 +5,13 @@ Run by hand from the repository root:  python tests/benchmarks/bench_flight.py [
 For N = 100, 1,000, 5,000 and 20,000 synthetic flights (tests/synthetic.py, seed 7: impulse 0.6-10,000 N·s,
 burn 0.2-6 s, five shapes, wind, tilted rails; --quick: 100 and 1,000) it prints, measured in one run:
 
+Times are CPU time of this process (time.process_time), the figure that carries on a loaded machine; each side is
+the median of interleaved runs (batched 5 or 3, loop 3 or 2), so that a slow spell hits both alike.
+
 - the batched time (median of interleaved runs, ascent only, as a ranking flies) and its peak traced memory;
 - the per-flight loop time: scipy solve_ivp RK45 at rtol 1e-6 per flight (tests/reference_flight.py, as a
-  typical single-flight simulator); at 20,000 the loop is timed on a random 2,000 of the flights and scaled
+  typical single-flight simulator; it restarts the solver at each thrust-curve sample, about 21 calls a flight,
+  since one call through the curve's corners errs up to 9e-4 in apogee); at 20,000 the loop is timed on a random 2,000 of the flights and scaled
   (marked "est."), since the whole loop would take about 20 minutes;
 - their ratio;
 - the apogee error of the batched flights against solve_ivp DOP853 at rtol 1e-10 on the same motors (all of
@@ -37,18 +41,18 @@ scipy_loaded_by_batched_path = "scipy" in sys.modules
 
 
 def _batched(frames, pack) -> float:
-    start = time.perf_counter()
+    start = time.process_time()
     simulate(frames, pack, descent=False)
-    return time.perf_counter() - start
+    return time.process_time() - start
 
 
 def _loop(frames, motors) -> float:
     from tests.reference_flight import reference_flight
 
-    start = time.perf_counter()
+    start = time.process_time()
     for frame, motor in zip(frames, motors):
         reference_flight(frame, motor, method="RK45", rtol=1e-6, atol=1e-6)
-    return time.perf_counter() - start
+    return time.process_time() - start
 
 
 def _peak_mb(frames, pack) -> float:
@@ -86,7 +90,7 @@ def main() -> None:
         scale = 1.0 if sample is None else n / sample.size
         batched, loops = [], []
         repeats = 5 if n <= 1000 else 3
-        loop_runs = 2 if n < 1000 else 1
+        loop_runs = 3 if n <= 1000 else 2  # several: one long run alone would take every slowdown of the machine
         for k in range(repeats):  # interleave so that machine noise hits both alike
             batched.append(_batched(frames, pack))
             if k < loop_runs:
