@@ -42,7 +42,7 @@ FLIGHT_CODES: Final = (
     "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete", "rail-exit-slow", "thrust-to-weight-low",
     "over-ceiling", "delays-unknown", "no-ejection-charge", "ejection-far-from-apogee", "ejection-fast",
     "lands-before-ejection", "descent-fast", "constant-cd-past-mach", "deployment-fast", "deployment-while-burning",
-    "lands-outside-field", "no-deployment")
+    "lands-outside-field", "no-deployment", "live-charge-before-apogee")
 """Every code :func:`evaluate_rules` can give a flight, in the order it lists them (the keys of :func:`code_masks`)."""
 
 
@@ -222,6 +222,10 @@ def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
         "lands-outside-field": past(x.landing_distance_m, math.inf if r.field_radius_m is None else r.field_radius_m),
         # nothing opens, and no rule above says why
         "no-deployment": judged & x.devices_listed & ~opened & ~no_delay & ~lands_first,
+        # electronics deploy (the flight leaves the charge out), but a charge left in would open the rocket at
+        # speed before apogee; after apogee, or within the delay tolerance, it is a backup
+        "live-charge-before-apogee": judged & ~x.uses_charge & (x.chosen_delay_s < x.optimal_delay_s
+                                                                 - r.max_delay_error_s),
     }
     return out
 
@@ -354,4 +358,8 @@ _MESSAGES: dict[str, _Message] = {
                                                   f"the pad (field radius {r.field_radius_m:,.0f} m)"),
     "no-deployment": lambda x, i, k, r, c: ("nothing deploys recovery on this flight (the device never opens): it would "
                                             "fall ballistically"),
+    "live-charge-before-apogee": lambda x, i, k, r, c: (
+        f"electronics deploy recovery, but the motor's {float(x.chosen_delay_s[i]):g} s delay would fire its charge "
+        f"{float(x.optimal_delay_s[i] - x.chosen_delay_s[i]):.1f} s before apogee, at speed: remove the charge or plug "
+        "the motor (this flight leaves the charge out)"),
 }

@@ -38,6 +38,7 @@ above-class                 has a motor above the flyer's class limit (matching)
 no-masses                   has a motor whose total or propellant mass is unknown (matching)
 stability-low               has less stability margin than asked, or an unknown one (matching)
 curve-errors                has a motor whose curve fails its own checks: label, class or data (matching)
+live-charge-before-apogee   has electronics deploying, and a motor charge that would fire before apogee (a note)
 ==========================  ============================================================
 """
 
@@ -63,9 +64,10 @@ RULE_CODES: Final = {
     "motor-does-not-fit": "does not fit the mount", "above-class": "above your class limit",
     "no-masses": "masses unknown", "stability-low": "too little stability margin (CG too far aft)",
     "curve-errors": "the curve fails its own checks (label, class or data)",
+    "live-charge-before-apogee": "electronics deploy, but the motor's charge fires before apogee",
 }
 # Codes about the model rather than the flight: ``fly`` warns, ``match`` lists them as notes, not failures.
-NOTE_CODES: Final = frozenset({"constant-cd-past-mach"})
+NOTE_CODES: Final = frozenset({"constant-cd-past-mach", "live-charge-before-apogee"})
 
 
 @dataclass(frozen=True)

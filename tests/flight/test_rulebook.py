@@ -215,3 +215,16 @@ def test_the_inputs_are_frozen_copies() -> None:
     assert flights.rail_exit_speed_m_s[0] == 20.0
     with pytest.raises(ValueError):
         flights.rail_exit_speed_m_s[0] = 1.0
+
+
+def test_a_live_charge_firing_before_apogee_is_noted_when_electronics_deploy() -> None:
+    # Electronics deploy the devices and the flight leaves the motor's charge out; a charge left in that fires
+    # well before apogee opens the rocket at speed. fly marked "chosen delay 12 s (16.4 s early)" and listed no
+    # warning; match showed 14/29.3 with no word. A note (it fails nothing: the flyer may plug the motor).
+    electronics = {"uses_charge": False, "optimal_delay_s": 9.2}
+    assert _codes(**electronics, chosen_delay_s=7.2) == []  # within the delay tolerance (2.0 s): a backup
+    (note,) = evaluate_rules(RuleInputs(**{**GOOD, **electronics, "chosen_delay_s": 5.0}))[0]
+    assert (note.code, note.severity) == ("live-charge-before-apogee", "note")
+    assert "4.2 s before apogee" in note.message and "plug" in note.message
+    assert _codes(chosen_delay_s=NAN, **electronics) == []  # no charge, or no delay known: nothing fires
+    assert _codes(chosen_delay_s=11.0, **electronics) == []  # after apogee: a backup charge
