@@ -159,6 +159,10 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     rejected = sum(not c.fits for c in result.candidates)
     if rejected and not opts["show_rejected"]:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
+    listed = sum(c.fits or opts["show_rejected"] for c in result.candidates)
+    if opts["top"] is not None and listed > opts["top"]:
+        console.print(f"{listed - opts['top']} more ranked motor(s) below #{opts['top']} are not shown (--top); "
+                      "--json lists every one.")
     console.print(render.conditions_text(result, units, frame))
     console.print(f"Catalog: {render.escape(str(cat.root))}")
     for path in written:

@@ -311,3 +311,13 @@ def test_the_airframe_command_follows_the_units_switch() -> None:
     assert " mm" not in out and " g," not in out, out
     code, out = run("airframe", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "F29-8")
     assert code == 0 and "CG (mm)" in out and "580.0 mm" in out, out
+
+
+def test_top_says_how_many_ranked_motors_it_hides() -> None:
+    # `match --top 5` on a large catalog hid hundreds of flown motors without a word
+    quibble = str(AIRFRAMES / "quibble-41.toml")
+    code, out = run("match", quibble, "--target", "400", "--allow-smaller-motors", "--json")
+    fitting = sum(c["fits"] for c in json.loads(out[out.index("{"):out.rindex("}") + 1])["candidates"])
+    assert fitting > 2  # the check below has something to hide
+    code, out = run("match", quibble, "--target", "400", "--allow-smaller-motors", "--top", "2")
+    assert f"{fitting - 2} more ranked motor(s) below #2 are not shown" in " ".join(out.split())
