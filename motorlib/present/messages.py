@@ -20,7 +20,8 @@ if TYPE_CHECKING:
     from ..flight.airframe import Airframe
     from ..matching.rank import MatchResult
 
-__all__ = ["REASON_CODES", "VERDICT_LEGEND", "DeploymentColumn", "assumption_texts", "deployment_column", "deployment_rule", "match_count", "note_text", "reason_text",
+__all__ = ["REASON_CODES", "VERDICT_LEGEND", "DeploymentColumn", "assumption_texts", "deployment_column",
+           "deployment_rule", "match_count", "motor_names", "note_text", "reason_text",
            "short_code", "verdict_text"]
 
 # Rule code (:data:`motorlib.flight.rules.RULE_CODES`; optionally ":" and the start of its text) -> (the one-letter
@@ -259,3 +260,25 @@ def _opening(message: str, c: Candidate | Mapping[str, Any], cond: Mapping[str, 
     if speed is None:
         return None
     return kind, speed, limit, None if load_n is None else f"{float(load_n):,.0f} N"  # force stays in N (README)
+
+
+def _maker_tag(maker: str, others: set[str]) -> str:
+    """The fewest leading words of a maker's name that tell it from ``others`` (the other makers of the same
+    designation): "Orbweaver" beside "Quillfeather", "Invented Maker U" beside "Invented Maker P"."""
+    words = (maker or "maker unknown").split()
+    rivals = [(other or "maker unknown").split() for other in others if other != maker]
+    for n in range(1, len(words) + 1):
+        if all(other[:n] != words[:n] for other in rivals):
+            return " ".join(words[:n])
+    return " ".join(words)
+
+
+def motor_names(motors: list[tuple[str, str | None]], with_maker_column: bool,
+                 among: list[tuple[str, str | None]] | None = None) -> list[str]:
+    """Designations of (designation, maker) pairs, with a maker tag where the same designation comes from
+    several makers in ``among`` (default: ``motors``; give the whole ranking when only its top is shown)."""
+    makers: dict[str, set[str]] = {}
+    for designation, maker in (motors if among is None else among):
+        makers.setdefault(designation, set()).add(maker or "")
+    return [designation if with_maker_column or len(makers.get(designation, ())) < 2
+            else f"{designation} {_maker_tag(maker or '', makers[designation])}" for designation, maker in motors]

@@ -25,8 +25,8 @@ from .flightcard import FlightCard, flight_card, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
 from .display import DisplayUnits
-from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, note_text, reason_text,
-                       small_mass)
+from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, motor_names, note_text,
+                       reason_text, small_mass)
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
 
 if TYPE_CHECKING:
@@ -267,10 +267,12 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
     fitting = [cand for cand in result.candidates if cand.fits]
     speed = deployment_column(result.candidates)
     rows, marks, lines = [], [], 0
-    for rank, cand in enumerate(fitting, 1):
+    names = motor_names([(cand.designation, cand.maker) for cand in fitting], False,
+                        among=[(cand.designation, cand.maker) for cand in result.candidates])
+    for rank, (cand, name) in enumerate(zip(fitting, names), 1):
         delay = "-" if cand.chosen_delay_s is None else (
             f"{cand.chosen_delay_s:g}{' drilled' if cand.delay_adjusted else ''}/{cand.optimal_delay_s:.1f}")
-        rows.append((str(rank), cand.designation, quantity(cand.apogee_m, "length", u),
+        rows.append((str(rank), name, quantity(cand.apogee_m, "length", u),
                      quantity(cand.rail_exit_speed_m_s, "speed", u),
                      "-" if cand.liftoff_thrust_to_weight is None else f"{cand.liftoff_thrust_to_weight:.1f}",
                      delay, quantity(getattr(cand, speed.field), "speed", u),

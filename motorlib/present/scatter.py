@@ -10,7 +10,7 @@ from rich.table import Table
 from rich.text import Text
 
 from .display import DisplayUnits
-from .messages import short_code
+from .messages import motor_names, short_code
 
 __all__ = ["calibration_text", "robust_key", "robust_table", "scatter_text"]
 
@@ -117,13 +117,15 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
     table.add_column(f"apogee 5-95 %\n({u.unit('length')})", justify="right", no_wrap=True)
     table.add_column("delay\n(s)", justify="right", no_wrap=True)
     table.add_column("most failed", no_wrap=True)
-    for i, c in enumerate(rows, start=1):
+    names = motor_names([(c["designation"], c["maker"]) for c in rows], wide,
+                        among=[(c["designation"], c["maker"]) for c in result["candidates"]])
+    for i, (c, name) in enumerate(zip(rows, names), start=1):
         a = c["apogee_m"]
         spread = "-" if a["p5"] is None else f"{u.number(a['p5'], 'length', 0)}-{u.number(a['p95'], 'length', 0)}"
         worst = _most_failed(c)
         failure = f"{short_code(worst[0], '')[0]} {100 * worst[1]:.0f} %" if worst[1] > 0 else ""
         se = c["p_success_standard_error"]
-        cells = [str(i), escape(c["designation"])] + ([escape(c["maker"] or "")] if wide else [])
+        cells = [str(i), escape(name)] + ([escape(c["maker"] or "")] if wide else [])
         cells += [f"{100 * c['p_success']:.1f}" if c["p_success"] is not None else "-",
                   f"{100 * se:.1f}" if se is not None else "-", spread,
                   f"{c['delay_s']:g}" if c["delay_s"] is not None else "-", escape(failure)]

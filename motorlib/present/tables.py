@@ -28,8 +28,8 @@ from ..motor.listing import CatalogRow
 from .display import DisplayUnits
 from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
-from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, note_text, reason_text, short_code, small_mass,
-                       verdict_text)
+from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, motor_names, note_text,
+                       reason_text, short_code, small_mass, verdict_text)
 
 if TYPE_CHECKING:  # annotations only: the table module loads no flight code
     from ..files.curvefiles import CheckReport
@@ -382,22 +382,6 @@ CATALOG_SORT = {"id": "motor_id", "motor": "designation", "maker": "maker", "cla
                 "dia": "diameter_m", "length": "length_m", "mass": "total_mass_kg", "check": "n_errors"}
 
 
-def _maker_tag(maker: str) -> str:
-    """A short form of a maker's name that tells motors with the same designation apart."""
-    word = (maker or "unknown").split()[0]
-    return word[:12]
-
-
-def _motor_names(motors: list[tuple[str, str | None]], with_maker_column: bool) -> list[str]:
-    """Designations of (designation, maker) pairs, with a maker tag where the same designation comes from
-    several makers."""
-    makers: dict[str, set[str]] = {}
-    for designation, maker in motors:
-        makers.setdefault(designation, set()).add(maker or "")
-    return [designation if with_maker_column or len(makers[designation]) < 2
-            else f"{designation} {_maker_tag(maker or '')}" for designation, maker in motors]
-
-
 def catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: DisplayUnits = _METRIC,
                   width: int = 80) -> Table:
     """One row per motor; headers are the names ``catalog list --sort`` takes.
@@ -428,7 +412,7 @@ def catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: Display
         _right(table, u.header("mass", mass_unit))
     table.add_column(u.header("delays", "s"), no_wrap=True)
     table.add_column("check", no_wrap=True)
-    for r, name in zip(rows, _motor_names([(r.designation, r.maker) for r in rows], wide)):
+    for r, name in zip(rows, motor_names([(r.designation, r.maker) for r in rows], wide)):
         checks = Text("errors", style="bold red") if r.n_errors else (
             Text("warn", style="yellow") if r.n_warnings else Text("ok", style="green"))
         cells: list[Any] = [r.motor_id[:6], escape(name)]
@@ -528,7 +512,9 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
     if ballast:
         _right(table, u.header("+mass", ballast_unit))
     table.add_column("result", no_wrap=True)
-    for rank, (c, name) in enumerate(zip(shown, _motor_names([(c.designation, c.maker) for c in shown], wide)), 1):
+    everyone = [(c.designation, c.maker) for c in result.candidates]
+    names = motor_names([(c.designation, c.maker) for c in shown], wide, among=everyone)
+    for rank, (c, name) in enumerate(zip(shown, names), 1):
         codes = set(c.reason_codes)
         if c.apogee_m is None:
             cells = ["-"] * 5

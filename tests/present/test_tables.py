@@ -25,3 +25,17 @@ def test_the_printed_impulse_stays_short_away_from_a_boundary() -> None:
     assert impulse_text(1234.567) == "1235"
     assert impulse_text(160.006) == "160.01"  # 4 digits would print 160, a G figure beside class H
     assert impulse_text(160.00000000000003) == "160"
+
+
+def test_one_designation_from_several_makers_is_told_apart_even_when_one_is_shown() -> None:
+    # Two makers whose names share their first word both showed as "F23-6 Invented"; under --top only one of
+    # a pair was shown, and it lost its maker tag altogether.
+    from motorlib.present.messages import motor_names as _motor_names
+
+    pairs = [("F23-6", "Invented Maker U"), ("F23-6", "Invented Maker P"), ("G40-7", "Invented Maker U"),
+             ("E12-4", "Orbweaver Rocket Works"), ("E12-4", "Quillfeather")]
+    names = _motor_names(pairs, False)
+    assert names == ["F23-6 Invented Maker U", "F23-6 Invented Maker P", "G40-7", "E12-4 Orbweaver",
+                     "E12-4 Quillfeather"]
+    assert _motor_names(pairs[:1], False, among=pairs) == ["F23-6 Invented Maker U"]
+    assert _motor_names(pairs, True) == [d for d, _ in pairs]  # a maker column says it already
