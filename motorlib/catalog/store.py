@@ -146,15 +146,20 @@ class Catalog:
         What opening did (index built, refreshed, rebuilt after corruption).
     problems : list of (str, str)
         Files skipped as unreadable or invalid, with the reason.
+    on_lock_wait : callable or None
+        Called (no arguments) when a write (opening's index refresh included) finds another process writing the
+        catalog, before it waits for it: the command line says "waiting for ...". Also a keyword of the
+        constructor.
     """
 
     def __init__(self, root: str | os.PathLike[str], *, read_only: bool = False, create: bool = True,
-                 settings: CheckSettings | None = None) -> None:
+                 settings: CheckSettings | None = None, on_lock_wait: Callable[[], None] | None = None) -> None:
         self.root = Path(root)
         self.read_only = read_only or (self.root / READ_ONLY_MARKER).is_file()
         self.settings = settings or CheckSettings()
         self.notices: list[str] = []
         self.problems: list[tuple[str, str]] = []
+        self.on_lock_wait = on_lock_wait  # called when a write must wait for another writer (opening may write)
         self._safe_folders: set[str] = set()  # maker folders checked (and created) in the current batch
         if not self.root.exists():
             if read_only or not create:
@@ -188,7 +193,12 @@ class Catalog:
             except ImportError:  # pragma: no cover - not POSIX: rely on SQLite's own locking
                 yield
                 return
-            fcntl.flock(handle.fileno(), fcntl.LOCK_EX)
+            try:
+                fcntl.flock(handle.fileno(), fcntl.LOCK_EX | fcntl.LOCK_NB)
+            except BlockingIOError:  # another process is writing: say so (once), then wait for it
+                if self.on_lock_wait is not None:
+                    self.on_lock_wait()
+                fcntl.flock(handle.fileno(), fcntl.LOCK_EX)
             try:
                 yield
             finally:

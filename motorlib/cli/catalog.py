@@ -115,8 +115,16 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     files = find_curve_files(list(paths))
     console = _console()
     kwargs = dict(metadata=_metadata_for(opts, files, report_unused=True), force=force, time_unit=opts["time_unit"], thrust_unit=opts["thrust_unit"])
-    with _progress("adding curves", len(files)) as advance:
-        results = cat.add_files(files, progress=advance, **kwargs) if advance else cat.add_files(files, **kwargs)
+    before = len(cat)
+    try:
+        with _progress("adding curves", len(files)) as advance:
+            results = cat.add_files(files, progress=advance, **kwargs) if advance else cat.add_files(files, **kwargs)
+    except KeyboardInterrupt:  # the batches written are whole and kept; the one under way was undone
+        now = len(cat)
+        _err_console().print(f"interrupted: {now - before} curve(s) added before the interruption are kept (the "
+                             f"catalog holds {now}); run the same command again to add the rest (curves already "
+                             "in are recognised and skipped)", markup=False, highlight=False)
+        sys.exit(130)  # 128 + SIGINT, as a shell reports an interrupted command
     forced = sum(bool(render.forced_errors(r)) for r in results)
     if forced or any(r.status != "added" or r.near_duplicates for r in results):
         console.print(render.add_results_table(results))

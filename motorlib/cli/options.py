@@ -380,7 +380,8 @@ def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
                 if folder is None else "; check the name, or create it with 'motorlib catalog add --catalog ...'")
         raise CatalogError(f"{path}: no such catalog folder{hint}")
     read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker
-    catalog = Catalog(path, read_only=read_only, create=create)
+    catalog = Catalog(path, read_only=read_only, create=create, on_lock_wait=lambda: _err_console().print(
+        f"waiting for another motorlib process that is writing {path} ...", markup=False, highlight=False))
     if not (catalog.notices and not catalog.read_only) and not catalog.problems:
         return catalog  # nothing to say: rich stays unimported (a --json or --csv run never needs it)
     err = _err_console()

@@ -235,3 +235,31 @@ def test_killed_batched_import_leaves_whole_curves_and_the_next_writer_cleans_up
     assert sum(r.status == "duplicate" for r in results) == len(written)
     assert len(catalog) == 400
     assert not list((root / ".motorlib" / "staging").iterdir())  # staged files of the killed batch are gone
+
+
+def test_a_writer_waiting_for_another_says_so(tmp_path) -> None:
+    # A second `catalog add` waited 31 s on the writer lock without a word: the catalog calls on_lock_wait once
+    # when another process holds the lock, then waits as before.
+    catalog = Catalog(tmp_path / "cat")
+    release = tmp_path / "release"
+    holder = subprocess.Popen([sys.executable, "-c", textwrap.dedent(f"""
+        import fcntl, os, sys, time
+        with open({str(tmp_path / "cat" / ".motorlib" / "lock")!r}, "a+b") as lock:
+            fcntl.flock(lock.fileno(), fcntl.LOCK_EX)
+            print("held", flush=True)
+            start = time.monotonic()
+            while not os.path.exists({str(release)!r}) and time.monotonic() - start < 5.0:  # lets go within 5 s
+                time.sleep(0.01)
+    """)], stdout=subprocess.PIPE, text=True)
+    assert holder.stdout.readline().strip() == "held"
+    told = []
+
+    def waiting() -> None:  # told while the other writer still holds the lock; then it lets go
+        told.append(holder.poll() is None)
+        release.touch()
+
+    catalog.on_lock_wait = waiting
+    (result,) = catalog.add_files([SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml"])
+    holder.wait(timeout=30)
+    holder.stdout.close()
+    assert told == [True] and result.status == "added" and len(catalog) == 1

@@ -96,3 +96,26 @@ def test_a_forced_add_names_the_errors_it_accepted(tmp_path: Path) -> None:
     flat = " ".join(out.split())
     assert "h29-8.xml" in flat and "forced" in flat and "class-mismatch" in flat
     assert "1 added (1 with errors, by --force)" in flat
+
+
+def test_an_interrupted_add_says_what_it_kept(tmp_path: Path, monkeypatch) -> None:
+    # Ctrl-C during `catalog add` printed only "Aborted!": the batches already written are safe, and the
+    # command now says how many curves it kept and that running it again adds the rest.
+    from motorlib.catalog import store
+
+    monkeypatch.setattr(store, "BATCH_SIZE", 4)
+    real_add = store.Catalog._add_locked
+    calls = []
+
+    def interrupted(self, *args, **kwargs):
+        calls.append(1)
+        if len(calls) == 7:  # in the second batch of four
+            raise KeyboardInterrupt
+        return real_add(self, *args, **kwargs)
+
+    monkeypatch.setattr(store.Catalog, "_add_locked", interrupted)
+    result = CliRunner().invoke(main, ["catalog", "add", "--catalog", str(tmp_path / "cat"), str(SAMPLE_DIR)])
+    assert result.exit_code == 130
+    flat = " ".join(result.output.split())
+    assert "interrupted: 4 curve(s) added before the interruption are kept" in flat
+    assert "run the same command again" in flat
