@@ -126,8 +126,9 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
                              "in are recognised and skipped)", markup=False, highlight=False)
         sys.exit(130)  # 128 + SIGINT, as a shell reports an interrupted command
     forced = sum(bool(render.forced_errors(r)) for r in results)
-    if forced or any(r.status != "added" or r.near_duplicates for r in results):
-        console.print(render.add_results_table(results))
+    listing = render.add_results_table(results)
+    if listing is not None:
+        console.print(listing)
     counts = Counter(r.status for r in results)
     added = f"{counts['added']} added" + (f" ({forced} with errors, by --force)" if forced else "")
     console.print(f"{len(results)} file(s): {added}, {counts['duplicate']} already present, "

@@ -447,8 +447,16 @@ def forced_errors(result: Any) -> list:
     return [f for f in result.findings if f.severity == "error"] if result.status == "added" else []
 
 
-def add_results_table(results: list) -> Table:
-    """What ``catalog add`` did with each offered file that was not simply added."""
+# Exact duplicates listed by name up to this many; past it they are only counted (a folder added again listed
+# every file: 2,859 rows for 3,000 curves). Our choice, no published source.
+MAX_DUPLICATES_LISTED = 10
+
+
+def add_results_table(results: list) -> Table | None:
+    """What ``catalog add`` did with each offered file that was not simply added (None when nothing is left to
+    list): refused, unreadable, forced and near-duplicate files always; exact duplicates, which the summary
+    counts, only when there are at most :data:`MAX_DUPLICATES_LISTED` of them."""
+    list_duplicates = sum(r.status == "duplicate" for r in results) <= MAX_DUPLICATES_LISTED
     table = _table("Catalog add")
     table.add_column("file", no_wrap=True, overflow="ellipsis", min_width=10, max_width=40)
     table.add_column("result", no_wrap=True)
@@ -457,7 +465,8 @@ def add_results_table(results: list) -> Table:
               "forced": "bold yellow"}
     for r in results:
         errors = forced_errors(r)
-        if r.status == "added" and not r.near_duplicates and not errors:
+        if (r.status == "added" and not r.near_duplicates and not errors) or (
+                r.status == "duplicate" and not list_duplicates):
             continue
         status = "forced" if errors else "near-dup" if r.status == "added" else r.status
         message, source = r.message, str(r.source)
@@ -469,7 +478,7 @@ def add_results_table(results: list) -> Table:
             message = f"line {line}:{after}" if sep and line.isdigit() else rest.strip()
         table.add_row(escape(Path(r.source).name), Text(status, style=styles[status if errors else r.status]),
                       escape(message))
-    return table  # the details column wraps at spaces: it holds sentences
+    return table if table.row_count else None  # the details column wraps at spaces: it holds sentences
 
 
 # ----------------------------------------------------------------------------- matching
