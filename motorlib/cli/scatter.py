@@ -80,6 +80,8 @@ def _std_options(func: Any) -> Any:
             hint = "as a fraction or percentage (e.g. 3%)"
         elif kind == "difference":
             ptype, hint = _Difference(), "in K (e.g. 2, 3.6degF)"
+        elif unit == "mm":  # a small length: a bare number would be metres, and mm was meant (README)
+            ptype, hint = _Quantity(kind, bare=False, example="10mm", minimum=0.0), "with a unit (e.g. 10mm)"
         else:
             ptype, hint = _Quantity(kind, default_unit=unit, minimum=0.0), f"a bare number is {unit}"
         func = click.option(flag, option, type=ptype, default=None,

@@ -22,6 +22,25 @@ _UNCERTAINTY_KEYS = {
     "rail_azimuth": ("rail_azimuth_std_rad", "angle"), "temperature": ("pad_temperature_std_k", "temperature difference"),
     "cg": ("cg_std_m", "length"), "deploy_altitude": ("deploy_altitude_std_m", "length"),
 }
+# Spreads whose everyday unit is not the SI one: a bare number is refused (cg = 10 would be 10 m, rail_angle = 2
+# would be 2 rad), as for motor sizes and small masses; the example names the unit to give
+_UNIT_NEEDED = {"cg": "10 mm", "wind_direction": "20 deg", "rail_angle": "1 deg", "rail_azimuth": "5 deg"}
+_SI = {"length": "m", "angle": "rad"}
+
+
+def _is_bare(raw: Any) -> bool:
+    """A number without a unit: a TOML number, or a string that reads as one."""
+    if isinstance(raw, bool):
+        return False
+    if isinstance(raw, (int, float)):
+        return True
+    try:
+        float(str(raw))
+    except ValueError:
+        return False
+    return True
+
+
 # a temperature *difference*: 1 degC = 1 K, 1 degF = 5/9 K (exact by the scales' definitions)
 _DIFFERENCE_UNITS = {"K": 1.0, "degC": 1.0, "degF": 5.0 / 9.0}
 
@@ -61,6 +80,9 @@ def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: 
         elif kind == "temperature difference":
             values[name] = _difference_k(source, where, raw)
         else:
+            if key in _UNIT_NEEDED and _is_bare(raw) and raw != 0:
+                raise SimulationInputError(source, where, f"give a unit, e.g. {_UNIT_NEEDED[key]!r} (a bare number "
+                                                          f"would be read in the SI unit, {raw} {_SI[kind]})")
             values[name] = _quantity(source, table, "uncertainty", key, kind)
         if not (math.isfinite(values[name]) and values[name] >= 0.0):
             raise SimulationInputError(source, where, f"a standard deviation must be at least 0, got {raw!r}")

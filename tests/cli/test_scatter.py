@@ -131,7 +131,7 @@ def test_the_landing_ellipse_centre_is_told_in_compass_words() -> None:
 
 
 def test_bare_numbers_take_the_unit_the_help_states() -> None:
-    # --wind-from's help says a bare number is degrees, --cg-std's that it is mm: 90 must be 90 deg, not 90 rad
+    # --wind-from's help says a bare number is degrees: 90 must be 90 deg, not 90 rad; --cg-std asks for a unit
     def summary(*args: str) -> dict:
         code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "30", "--seed", "2", "--workers", "1",
                         "--json", *args)
@@ -139,6 +139,6 @@ def test_bare_numbers_take_the_unit_the_help_states() -> None:
         return json.loads(out)
 
     assert summary("--wind-from", "90") == summary("--wind-from", "90deg")
-    assert summary("--cg-std", "5")["uncertainty"]["cg_std_m"] == 0.005
+    assert summary("--cg-std", "5mm")["uncertainty"]["cg_std_m"] == 0.005  # a bare 5 is refused: it would be 5 m
     assert summary("--wind-direction-std", "10")["uncertainty"]["wind_direction_std_rad"] == \
         pytest.approx(10 * 3.141592653589793 / 180)  # exact by definition of the degree

@@ -321,3 +321,22 @@ def test_top_says_how_many_ranked_motors_it_hides() -> None:
     assert fitting > 2  # the check below has something to hide
     code, out = run("match", quibble, "--target", "400", "--allow-smaller-motors", "--top", "2")
     assert f"{fitting - 2} more ranked motor(s) below #2 are not shown" in " ".join(out.split())
+
+
+@pytest.mark.parametrize("key, raw", [("cg", 10), ("rail_angle", 2), ("wind_direction", 20.0)])
+def test_a_bare_number_for_a_small_spread_asks_for_a_unit_in_the_file(tmp_path, key, raw) -> None:
+    # [uncertainty] cg = 10 was read as 10 m (and rail_angle = 2 as 2 rad, 115 deg) while --cg-std 10 meant
+    # 10 mm: the same number, two meanings a thousand times apart. Both now ask for a unit.
+    from motorlib.errors import SimulationInputError
+    from motorlib.files.uncertainty_toml import uncertainty_from_dict
+
+    with pytest.raises(SimulationInputError, match=f"uncertainty.{key}: .*give a unit"):
+        uncertainty_from_dict({"uncertainty": {key: raw}}, "rocket.toml")
+    assert uncertainty_from_dict({"uncertainty": {key: 0}}, "rocket.toml") is not None  # zero needs none
+
+
+def test_a_bare_cg_spread_on_the_command_line_asks_for_a_unit() -> None:
+    code, out = run("scatter", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "-n", "20", "--cg-std", "10")
+    assert code == 2 and "has no unit" in out
+    code, out = run("scatter", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "-n", "20", "--cg-std", "10mm")
+    assert code in (0, 1), out
