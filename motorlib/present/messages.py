@@ -95,9 +95,16 @@ def deployment_rule(column: DeploymentColumn, conditions: Mapping[str, Any], kin
     return "opening <= " + ", ".join(f"{limit(limits.get(kind, limits.get('parachute')))} ({kind})" for kind in shown)
 
 
-def deployment_column(candidates: Sequence[Candidate]) -> DeploymentColumn:
-    """:class:`DeploymentColumn` of a ranking: the opening when any candidate has one (a device is listed)."""
-    return _OPENING if any(c.max_deployment_speed_m_s is not None for c in candidates) else _CHARGE
+def deployment_column(candidates: Sequence[Candidate], conditions: Mapping[str, Any] | None = None
+                      ) -> DeploymentColumn:
+    """:class:`DeploymentColumn` of a ranking: the opening when any candidate has one (a device is listed).
+
+    When no candidate was flown (none fits), the ranking's ``conditions`` say whether a device is listed."""
+    if any(c.max_deployment_speed_m_s is not None for c in candidates):
+        return _OPENING
+    if conditions is not None and not any(c.apogee_m is not None for c in candidates):
+        return _CHARGE if conditions.get("recovery", "none given") == "none given" else _OPENING
+    return _CHARGE
 
 
 # Verdict word -> what its bar means in the match charts (PNG and report), read as "word: meaning"

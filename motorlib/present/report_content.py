@@ -265,7 +265,7 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
     du = _display(u)
     c = result.conditions
     fitting = [cand for cand in result.candidates if cand.fits]
-    speed = deployment_column(result.candidates)
+    speed = deployment_column(result.candidates, result.conditions)
     rows, marks, lines = [], [], 0
     names = motor_names([(cand.designation, cand.maker) for cand in fitting], False,
                         among=[(cand.designation, cand.maker) for cand in result.candidates])

@@ -512,7 +512,7 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
         _right(table, u.header(name, u.unit(kind)))
     _right(table, "T/W")
     _right(table, u.header("delay", "s"))
-    speed = deployment_column(result.candidates)
+    speed = deployment_column(result.candidates, result.conditions)
     _right(table, u.header(speed.table_name, u.unit("speed")))
     mass_unit = u.column_unit([c.liftoff_mass_kg for c in shown], "mass")
     if wide:
@@ -647,7 +647,7 @@ def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: A
     need = c.get("rail_exit_needed_m_s", c["min_rail_exit_speed_m_s"])
     rail_rule = u.limit(c["min_rail_exit_speed_m_s"], "speed") + (
         f" and {c.get('rail_exit_wind_ratio', 4):g} x the wind: {u.limit(need, 'speed')}" if need > c["min_rail_exit_speed_m_s"] else "")
-    speed = deployment_column(result.candidates)
+    speed = deployment_column(result.candidates, result.conditions)
     kinds = None if frame is None else [d.device for d in frame.recovery_devices]
     text.append(f"Rules: rail exit >= {rail_rule}, liftoff T/W >= "
                 f"{u.limit(c['min_liftoff_thrust_to_weight'], 'ratio')}, delay within {u.limit(c['delay_slack_s'], 'time')} "

@@ -340,3 +340,12 @@ def test_a_bare_cg_spread_on_the_command_line_asks_for_a_unit() -> None:
     assert code == 2 and "has no unit" in out
     code, out = run("scatter", str(AIRFRAMES / "quibble-41.toml"), "--motor", "F29-8", "-n", "20", "--cg-std", "10mm")
     assert code in (0, 1), out
+
+
+def test_an_empty_ranking_names_the_speed_of_the_recovery_it_has() -> None:
+    # Nothing fits, so nothing flew: the header said 'eject', the rules 'ejection <= 25 m/s' and the key
+    # '(no recovery device listed)', beside an Assumptions line with a parachute deployed at apogee.
+    code, out = run("match", str(AIRFRAMES / "tollgate-98.toml"), "--max-class", "A")
+    flat = " ".join(out.split())
+    assert "parachute" in flat and "opening <=" in flat
+    assert "ejection <=" not in flat and "no recovery device listed" not in flat
