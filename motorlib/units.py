@@ -32,6 +32,7 @@ __all__ = [
     "format_unit",
     "parse_quantity",
     "to_si",
+    "miss_percent",
 ]
 
 STANDARD_GRAVITY_M_S2: Final = 9.80665  # exact by definition (3rd CGPM, 1901)
@@ -267,3 +268,17 @@ def _example(kind: str) -> str:
         "impulse": "'10 Ns'", "speed": "'3 m/s'", "angle": "'5 deg'", "temperature": "'15 degC'",
         "area": "'0.05 m2'",
     }[kind]
+
+
+def miss_percent(miss: float, tolerance: float) -> str:
+    """``|miss|`` as a percentage with the fewest decimals that keep it on the right side of ``tolerance``.
+
+    >>> miss_percent(0.0503, 0.05), miss_percent(0.26, 0.05), miss_percent(0.049, 0.05)
+    ('5.03', '26', '4.9')
+    """
+    value, limit = abs(miss) * 100.0, tolerance * 100.0
+    for decimals in range(4):
+        text = f"{value:.{decimals}f}"
+        if (float(text) > limit) == (value > limit) and (float(text) != limit or value == limit):
+            return text
+    return f"{value:.4f}"

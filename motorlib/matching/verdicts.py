@@ -15,6 +15,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Final, Sequence
 
+from ..units import miss_percent
+
 __all__ = ["GOOD_VERDICTS", "VERDICTS", "Verdict", "classify", "miss_percent", "verdict_order"]
 
 # Verdict word -> meaning (the legend of the result column). Order: best first.
@@ -37,20 +39,6 @@ _ORDER: Final = {word: position for position, word in enumerate(VERDICTS)}
 _STOPPING: Final = {"motor-does-not-fit": "no fit", "above-class": "above class", "no-masses": "no masses",
                     "no-liftoff": "no liftoff", "stuck-on-rail": "stuck on rail", "not-flown": "not flown",
                     "flight-incomplete": "not flown"}
-
-
-def miss_percent(miss: float, tolerance: float) -> str:
-    """``|miss|`` as a percentage with the fewest decimals that keep it on the right side of ``tolerance``.
-
-    >>> miss_percent(0.0503, 0.05), miss_percent(0.26, 0.05), miss_percent(0.049, 0.05)
-    ('5.03', '26', '4.9')
-    """
-    value, limit = abs(miss) * 100.0, tolerance * 100.0
-    for decimals in range(4):
-        text = f"{value:.{decimals}f}"
-        if (float(text) > limit) == (value > limit) and (float(text) != limit or value == limit):
-            return text
-    return f"{value:.4f}"
 
 
 def verdict_order(verdict: str) -> int:

@@ -49,7 +49,7 @@ from .classes import (
 )
 from .record import DEFAULT_BURN_THRESHOLD, MotorRecord
 from ..errors import CurveDataError, DesignationError
-from ..units import KILOGRAM_FORCE_N, POUND_FORCE_N
+from ..units import KILOGRAM_FORCE_N, POUND_FORCE_N, miss_percent
 
 __all__ = ["CheckSettings", "Finding", "SEVERITIES", "check_record", "findings_from_problems", "metrics"]
 
@@ -267,7 +267,8 @@ def _label_findings(record: MotorRecord, s: CheckSettings) -> list[Finding]:
     if abs(label.average_thrust_n - average) > s.average_thrust_tolerance * average:
         out.append(Finding("error", "average-thrust-mismatch",
                            f"labelled average thrust {label.average_thrust_n:g} N differs from the computed "
-                           f"{average:.4g} N by {100 * abs(label.average_thrust_n / average - 1):.0f} % "
+                           f"{average:.4g} N by "
+                           f"{miss_percent(label.average_thrust_n / average - 1, s.average_thrust_tolerance)} % "
                            f"(tolerance {100 * s.average_thrust_tolerance:.0f} %, burn threshold "
                            f"{100 * s.burn_threshold:g} % of peak)", "designation"))
     if label.total_impulse_ns is not None and abs(label.total_impulse_ns - impulse) > s.total_impulse_tolerance * impulse:

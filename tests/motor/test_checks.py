@@ -199,3 +199,11 @@ def test_the_class_message_never_contradicts_its_figure() -> None:
     record = MotorRecord("G80", [0.0, 1e-3, 2.0, 2.0 + 1e-3], [0.0, 80.006, 80.006, 0.0])  # 160.01 N·s
     (finding,) = [f for f in check_record(record) if f.code == "class-mismatch"]
     assert "160.01 N·s (class H)" in finding.message
+
+
+def test_a_mismatch_just_past_the_tolerance_does_not_read_as_within_it() -> None:
+    # "differs from the computed 1.662 N by 20 % (tolerance 20 %)": the figure was 20.3 %, rounded onto the limit
+    record = MotorRecord("A2-3", [0.0, 0.05, 0.75, 0.8], [0.0, 1.7625, 1.7625, 0.0], total_mass_kg=0.01,
+                         propellant_mass_kg=0.002, diameter_m=0.013, length_m=0.045, delays_s=(3.0,))
+    (finding,) = [f for f in check_record(record) if f.code == "average-thrust-mismatch"]
+    assert " by 20.3 % (tolerance 20 %" in finding.message
