@@ -55,7 +55,7 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
                                             for v in (stability["margin_cal"].get(k) for k in ("p5", "p50", "p95"))])
     lines = Text()
     lines.append(f"{summary['n_flights']} sampled flights (seed {summary['seed']}). ")
-    lines.append(f"Mean apogee {u.quantity(a['mean'], 'length')} ± {u.quantity(a['standard_error'], 'length')} "
+    lines.append(f"Mean apogee {u.quantity(a['mean'], 'length')} ± {u.precise(a['standard_error'], 'length', 2)} "
                  f"(standard error), standard deviation {u.quantity(a['std'], 'length')}; nominal "
                  f"{u.quantity(summary.get('nominal_apogee_m'), 'length')}.\n")
     if summary.get("delay_s") is not None:

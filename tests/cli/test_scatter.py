@@ -142,3 +142,14 @@ def test_bare_numbers_take_the_unit_the_help_states() -> None:
     assert summary("--cg-std", "5mm")["uncertainty"]["cg_std_m"] == 0.005  # a bare 5 is refused: it would be 5 m
     assert summary("--wind-direction-std", "10")["uncertainty"]["wind_direction_std_rad"] == \
         pytest.approx(10 * 3.141592653589793 / 180)  # exact by definition of the degree
+
+
+def test_a_small_standard_error_is_not_shown_as_zero() -> None:
+    # "Mean apogee 495 m ± 0 m (standard error)" for 0.43 m: a standard error keeps two significant digits
+    from motorlib.present.display import DisplayUnits
+
+    assert DisplayUnits().precise(0.43, "length", 2) == "0.43 m"
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "3000", "--seed", "2", "--workers", "1")
+    assert code in (0, 1), out
+    error = " ".join(out.split()).split(" ± ")[1].split(" (standard error)")[0]
+    assert error not in ("0 m", "0 ft") and float(error.split()[0]) > 0
