@@ -19,10 +19,15 @@ from .output import _check_outputs, _console, _err_console, _json_text
 def catalog() -> None:
     """Keep a local catalog of checked thrust curves: add, list, show, tag, export.
 
+    Every command uses your user catalog unless --catalog names another folder
+    (the last example keeps a catalog in ./motors).
+
     \b
     Example:
+      motorlib catalog add sample_curves/
+      motorlib catalog list --class D..G --diameter 29mm
+      motorlib catalog show G59-10
       motorlib catalog add --catalog ./motors sample_curves/
-      motorlib catalog list --catalog ./motors --class D..G --diameter 29mm
     """
 
 

@@ -57,7 +57,7 @@ def read_bounded(path: str | os.PathLike[str], max_bytes: int, *,
     finally:
         os.close(fd)
     if total > max_bytes:
-        raise error(source, f"larger than the {max_bytes}-byte limit for this kind of file")
+        raise error(source, f"larger than the limit of {size_text(max_bytes)} for this kind of file")
     return b"".join(chunks)
 
 
@@ -135,6 +135,14 @@ def _naming(exc: OSError, target: Path) -> OSError:
     if exc.filename is not None or exc.errno is None:
         return exc
     return type(exc)(exc.errno, exc.strerror, str(target))
+
+
+def size_text(n_bytes: int) -> str:
+    """A byte count as people state limits: ``8 MiB`` (binary prefixes, IEC 80000-13), else ``1,500 bytes``."""
+    for unit, size in (("GiB", 1 << 30), ("MiB", 1 << 20), ("KiB", 1 << 10)):
+        if n_bytes >= size and n_bytes % size == 0:
+            return f"{n_bytes // size} {unit}"
+    return f"{n_bytes:,} bytes"
 
 
 def _existing_mode(target: Path) -> int:

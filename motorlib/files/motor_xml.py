@@ -33,7 +33,7 @@ from lxml import etree
 from . import schema
 from ..motor.record import FORMER_PROVENANCE_KINDS, UNWRITABLE_CHARACTER, FiringSpread, MotorRecord, Provenance
 from ..errors import CurveDataError, CurveError, CurveSyntaxError, MotorlibError, Problem, SchemaValidationError
-from .fsio import read_bounded, write_atomic
+from .fsio import read_bounded, size_text as _size_text, write_atomic
 from ..units import to_si
 
 __all__ = ["DEFAULT_MAX_BYTES", "FORMAT_VERSION", "read_record", "read_record_and_bytes", "readable_record_bytes",
@@ -97,7 +97,7 @@ def record_from_bytes(data: bytes, source: str = "<bytes>", *, max_bytes: int = 
 def _valid_tree(data: bytes, source: str, max_bytes: int) -> etree._Element:
     """The root of a well-formed, safe, schema-valid document (the checks of :func:`record_from_bytes`)."""
     if len(data) > max_bytes:
-        raise CurveSyntaxError(source, f"document is above the {max_bytes}-byte limit for one curve")
+        raise CurveSyntaxError(source, f"document is above the limit of {_size_text(max_bytes)} for one curve")
     if data[:4] in (b"\xff\xfe\x00\x00", b"\x00\x00\xfe\xff") or data[:2] in (b"\xff\xfe", b"\xfe\xff") \
             or b"\x00" in data[:1024]:
         raise CurveSyntaxError(source, "not UTF-8: motor records are UTF-8 text (save the file as UTF-8)", line=1)

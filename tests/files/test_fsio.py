@@ -90,3 +90,11 @@ def test_a_no_overwrite_write_never_clobbers_a_file_that_appears_while_it_writes
         write_atomic(target, b"ours", overwrite=False)
     assert target.read_bytes() == b"theirs"
     assert [p.name for p in tmp_path.iterdir()] == ["motor.xml"]  # no temporary file left behind
+
+
+def test_a_size_limit_is_written_as_people_state_it() -> None:
+    # "larger than the 8388608-byte limit" where FORMAT.md says 8 MiB
+    from motorlib.files.fsio import size_text
+
+    assert size_text(8 * 1024 * 1024) == "8 MiB"  # IEC 80000-13 binary prefix: 1 MiB = 2**20 bytes
+    assert size_text(64 * 1024) == "64 KiB" and size_text(1500) == "1,500 bytes"

@@ -111,7 +111,7 @@ def test_entity_declaration_without_doctype_is_refused() -> None:
 
 def test_size_cap(tmp_path: Path, demo_record: MotorRecord) -> None:
     path = write_record(demo_record, tmp_path / "big.xml")
-    with pytest.raises(CurveSyntaxError, match="byte limit"):
+    with pytest.raises(CurveSyntaxError, match="limit of 100 bytes"):
         read_record(path, max_bytes=100)
 
 

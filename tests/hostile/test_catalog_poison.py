@@ -164,7 +164,7 @@ def test_a_curve_too_long_for_the_reader_is_refused_before_writing(tmp_path: Pat
     from motorlib.files.motor_csv import CurveMetadata
 
     (added,) = Catalog(root).add_files([csv], metadata=CurveMetadata(designation="F20"), force=True)
-    assert added.status == "refused" and "reads back" in added.message and "byte limit" in added.message
+    assert added.status == "refused" and "reads back" in added.message and "limit of 8 MiB" in added.message
     out = tmp_path / "long.xml"
     result = run("import", csv, "-o", out, "--designation", "F20", "--force")
     assert result.exit_code != 0 and not out.exists(), result.output
