@@ -91,8 +91,39 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
     if summary["n_failed"]:
         lines.append(f"{summary['n_failed']} sampled flight(s) failed (no liftoff, stuck on the rail, step limit).\n",
                      style="yellow")
+    spread = uncertainty_text(summary.get("uncertainty") or {}, u)
+    if spread:
+        lines.append(f"Sampled spreads (one standard deviation): {spread}.\n", style="dim")
     lines.append(f"Landing model: {summary.get('landing_model', '')}.\n", style="dim")
     return Group(table, lines)
+
+
+def uncertainty_text(spreads: dict[str, float], u: DisplayUnits) -> str:
+    """The non-zero spreads of a sampled experiment (the ``uncertainty`` of its JSON), in the display units:
+    ``impulse 3 %, ..., wind 1 m/s, wind direction 20 deg, CG 10 mm``. Empty when none is set."""
+    import math
+
+    words = {"total_impulse_relative_std": "impulse", "burn_time_relative_std": "burn time",
+             "airframe_mass_relative_std": "airframe mass", "motor_mass_relative_std": "motor mass",
+             "drag_relative_std": "drag", "wind_speed_std_m_s": "wind", "wind_direction_std_rad": "wind direction",
+             "rail_angle_std_rad": "rail angle", "rail_azimuth_std_rad": "rail azimuth",
+             "pad_temperature_std_k": "pad temperature", "cg_std_m": "CG", "deploy_altitude_std_m": "deployment altitude"}
+    parts = []
+    for key, word in words.items():
+        value = spreads.get(key)
+        if not value:
+            continue
+        if key.endswith("_relative_std"):
+            text = f"{100 * value:.3g} %"
+        elif key.endswith("_rad"):
+            text = f"{math.degrees(value):.3g} deg"
+        elif key == "pad_temperature_std_k":
+            text = f"{value:.3g} K"
+        else:  # as given: three significant digits at most, in the display unit
+            kind = "size" if key == "cg_std_m" else "speed" if key.endswith("_m_s") else "length"
+            text = f"{u.convert(value, kind):.3g} {u.unit(kind)}"
+        parts.append(f"{word} {text}")
+    return ", ".join(parts)
 
 
 def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", top: int | None = None,

@@ -153,3 +153,15 @@ def test_a_small_standard_error_is_not_shown_as_zero() -> None:
     assert code in (0, 1), out
     error = " ".join(out.split()).split(" ± ")[1].split(" (standard error)")[0]
     assert error not in ("0 m", "0 ft") and float(error.split()[0]) > 0
+
+
+def test_the_text_output_lists_the_spreads_it_sampled() -> None:
+    # Only --json said which uncertainties were sampled: a safety officer checking a printed scatter could not
+    code, out = run("scatter", QUIBBLE, "--motor", "F29-8", "-n", "30", "--seed", "2", "--workers", "1",
+                    "--wind-speed-std", "2m/s", "--cg-std", "15mm", "--drag-std", "0")
+    flat = " ".join(out.split())
+    assert "Sampled spreads (one standard deviation): impulse 3 %" in flat
+    assert "wind 2 m/s" in flat and "CG 15 mm" in flat and "drag" not in flat.split("Sampled spreads")[1].split(".")[0]
+    code, out = run("--units", "imperial", "scatter", QUIBBLE, "--motor", "F29-8", "-n", "30", "--seed", "2",
+                    "--workers", "1", "--cg-std", "0.5in")
+    assert "CG 0.5 in" in " ".join(out.split())
