@@ -128,11 +128,23 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
         return
     from rich.markup import escape
 
-    from ..present.scatter import robust_key, robust_table
+    from ..present.scatter import robust_key, robust_table, uncertainty_text
 
     console = _console()
-    console.print(robust_table(result, display_units(opts.get("units")), opts["top"], console.width))
-    console.print(escape(robust_key(result)) + " ± is one standard error; every motor flies the same sampled "
-                  "conditions, so the differences between motors are sharper than the standard errors suggest "
-                  "(p_difference_to_next_standard_error in --json).", highlight=False)
+    units = display_units(opts.get("units"))
+    console.print(robust_table(result, units, opts["top"], console.width))
+    console.print(escape(robust_key(result, opts["top"])) + " ± is one standard error; every motor flies the same "
+                  "sampled conditions, so the differences between motors are sharper than the standard errors "
+                  "suggest (p_difference_to_next_standard_error in --json).", highlight=False)
+    hidden = len(result["candidates"]) - (opts["top"] or len(result["candidates"]))
+    if hidden > 0:
+        console.print(f"{hidden} more sampled motor(s) below #{opts['top']} are not shown (--top); --json lists "
+                      "every one.", highlight=False)
+    if len(rows) > len(fitting):
+        console.print(f"{len(rows) - len(fitting)} motor(s) do not fit the mount or the class limit and were not "
+                      "sampled.", highlight=False)
+    spread = uncertainty_text(result.get("uncertainty") or {}, units)
+    if spread:
+        console.print(f"Sampled spreads (one standard deviation): {spread}.", highlight=False)
+    console.print(f"Catalog: {escape(str(cat.root))}", highlight=False)
     _caution(console)

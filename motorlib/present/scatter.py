@@ -137,7 +137,8 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
 
     u = _units(units)
     rows = result["candidates"][:top] if top else result["candidates"]
-    table = _table(f"Robust ranking: {result['n_samples']} sampled flights per motor (seed {result['seed']})")
+    table = _table(f"{result['airframe'] + ': r' if result.get('airframe') else 'R'}obust ranking: "
+                   f"{result['n_samples']} sampled flights per motor (seed {result['seed']})")
     wide = width >= WIDE
     table.add_column("#", justify="right", no_wrap=True)
     table.add_column("motor", no_wrap=True)
@@ -164,9 +165,11 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
     return _lock_widths(table, "maker" if wide else None, width)
 
 
-def robust_key(result: dict[str, Any]) -> str:
-    """The words under the robust ranking: what success means and what each failure name stands for."""
-    codes = sorted({_most_failed(c)[0] for c in result["candidates"] if _most_failed(c)[1] > 0})
+def robust_key(result: dict[str, Any], top: int | None = None) -> str:
+    """The words under the robust ranking: what success means and what each failure name stands for (for the
+    motors the table shows: its ``top``)."""
+    shown = result["candidates"][:top] if top else result["candidates"]
+    codes = sorted({_most_failed(c)[0] for c in shown if _most_failed(c)[1] > 0})
     legend = dict(short_code(code, "") for code in codes)  # the one-letter codes the table shows, as in match's
     windows, conditions = result.get("windows") or {}, result.get("conditions") or {}
     limits = [w for w, on in (("the ceiling", conditions.get("ceiling_m") is not None),
@@ -181,7 +184,9 @@ def robust_key(result: dict[str, Any]) -> str:
             f"{letter} {meaning}" for letter, meaning in sorted(legend.items())) + "."
     need = conditions.get("min_stability_cal")
     if need is not None:
-        below = [f"{c['designation']}: {c['n_below_min_stability']}" for c in result["candidates"]
+        names = motor_names([(c["designation"], c["maker"]) for c in shown], False,
+                            among=[(c["designation"], c["maker"]) for c in result["candidates"]])
+        below = [f"{name}: {c['n_below_min_stability']}" for c, name in zip(shown, names)
                  if c.get("n_below_min_stability")]
         text += (f" Stability is judged on every sampled flight, with its own CG and masses: samples under "
                  f"{need:g} cal of margin fail" + (" (" + ", ".join(below) + f" of {result['n_samples']} each)"

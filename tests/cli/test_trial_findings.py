@@ -349,3 +349,14 @@ def test_an_empty_ranking_names_the_speed_of_the_recovery_it_has() -> None:
     flat = " ".join(out.split())
     assert "parachute" in flat and "opening <=" in flat
     assert "ejection <=" not in flat and "no recovery device listed" not in flat
+
+
+def test_the_robust_ranking_says_what_it_ranked_and_what_it_left_out() -> None:
+    # match --robust printed no airframe, no count of motors left unsampled or hidden by --top, no spreads used
+    code, out = run("match", str(AIRFRAMES / "quibble-41.toml"), "--robust", "--allow-smaller-motors",
+                    "--altitude-window", "250m..330m", "--top", "1", "--samples", "20", "--workers", "1")
+    flat = " ".join(out.split())
+    assert "Quibble 41 (demo): robust ranking" in flat
+    assert "more sampled motor(s) below #1 are not shown" in flat
+    assert "do not fit the mount or the class limit and were not sampled" in flat
+    assert "Sampled spreads (one standard deviation): impulse 3 %" in flat and "Catalog:" in flat
