@@ -2,7 +2,7 @@
 
 Every table uses :func:`_table` (a rule under the header, no outer border, narrow padding) and puts the unit
 on a second header line, so that everything fits 80 columns; cells never wrap mid-word (long verdicts are
-short codes with a legend below the table). Wider terminals get extra columns (maker, length, loaded mass).
+short codes with a legend below the table). Wider terminals get extra columns (maker, length, the rocket's liftoff mass).
 Messages that carry quantities are written here from the library's figures, so they follow the display
 units and echo the user's own numbers; a reason code this module does not know keeps the library's text.
 
@@ -387,7 +387,7 @@ def catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: Display
     """One row per motor; headers are the names ``catalog list --sort`` takes.
 
     Delays marked * are adjustable (the longest is listed); P means no ejection charge, ? not known. From :data:`WIDE`
-    columns on, maker, length and loaded mass are added.
+    columns on, maker, length and the rocket's liftoff mass are added.
     """
     wide = width >= WIDE
     u = units
@@ -493,7 +493,7 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
     reason codes (see :func:`match_legend`).
 
     A figure that breaks a rule is rounded so that it never reads as within the limit. From :data:`WIDE`
-    columns on, the maker and the loaded mass are added.
+    columns on, the maker and the rocket's liftoff mass (motor included) are added.
     """
     u = units
     shown = _shown(result, top, show_rejected)
@@ -516,7 +516,7 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
     _right(table, u.header(speed.table_name, u.unit("speed")))
     mass_unit = u.column_unit([c.liftoff_mass_kg for c in shown], "mass")
     if wide:
-        _right(table, u.header("loaded", mass_unit))
+        _right(table, u.header("liftoff", mass_unit))
     ballast_unit = u.column_unit([c.ballast_kg for c in shown], "mass")
     if ballast:
         _right(table, u.header("+mass", ballast_unit))
