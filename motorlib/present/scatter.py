@@ -158,8 +158,10 @@ def robust_table(result: dict[str, Any], units: DisplayUnits | str = "metric", t
         failure = f"{short_code(worst[0], '')[0]} {100 * worst[1]:.0f} %" if worst[1] > 0 else ""
         se = c["p_success_standard_error"]
         cells = [str(i), escape(name)] + ([escape(c["maker"] or "")] if wide else [])
-        cells += [f"{100 * c['p_success']:.1f}" if c["p_success"] is not None else "-",
-                  f"{100 * se:.1f}" if se is not None else "-", spread,
+        p = c["p_success"]
+        certain = p is not None and p in (0.0, 1.0)  # every sample alike: a standard error of 0 says nothing
+        cells += [f"{100 * p:.1f}" if p is not None else "-",
+                  "*" if certain else f"{100 * se:.1f}" if se is not None else "-", spread,
                   f"{c['delay_s']:g}" if c["delay_s"] is not None else "-", escape(failure)]
         table.add_row(*cells)
     return _lock_widths(table, "maker" if wide else None, width)
@@ -182,6 +184,10 @@ def robust_key(result: dict[str, Any], top: int | None = None) -> str:
     if legend:
         text += " most failed: the rule the motor failed most often, with its share: " + "; ".join(
             f"{letter} {meaning}" for letter, meaning in sorted(legend.items())) + "."
+    n = result.get("n_samples")
+    if n and any(c["p_success"] in (0.0, 1.0) for c in shown):
+        text += (f" *: all {n} sampled flights alike; the chance of the other outcome is then below about "
+                 f"{300 / n:.2g} % (3/n, the 95 % 'rule of three': Hanley and Lippman-Hand, JAMA 1983), not zero.")
     need = conditions.get("min_stability_cal")
     if need is not None:
         names = motor_names([(c["designation"], c["maker"]) for c in shown], False,

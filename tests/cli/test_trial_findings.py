@@ -360,3 +360,14 @@ def test_the_robust_ranking_says_what_it_ranked_and_what_it_left_out() -> None:
     assert "more sampled motor(s) below #1 are not shown" in flat
     assert "do not fit the mount or the class limit and were not sampled" in flat
     assert "Sampled spreads (one standard deviation): impulse 3 %" in flat and "Catalog:" in flat
+
+
+def test_a_robust_success_of_every_sample_is_not_shown_as_certain() -> None:
+    # "100.0 ± 0.0" from 200 samples read as certainty: with every sample alike the binomial standard error is 0.
+    # The table marks it and the key gives the 95 % upper bound 3/n (the "rule of three"; Hanley and
+    # Lippman-Hand, JAMA 1983: if none of n trials fails, the 95 % upper bound on the failure rate is about 3/n).
+    code, out = run("match", str(AIRFRAMES / "quibble-41.toml"), "--robust", "--allow-smaller-motors",
+                    "--samples", "40", "--workers", "1")
+    flat = " ".join(out.split())
+    assert re.search(r"100\.0 \* ", flat) and not re.search(r"100\.0 0\.0 ", flat)
+    assert "all 40 sampled flights alike" in flat and "below about 7.5 %" in flat
