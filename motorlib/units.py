@@ -33,6 +33,7 @@ __all__ = [
     "parse_quantity",
     "to_si",
     "miss_percent",
+    "is_bare_number",
 ]
 
 STANDARD_GRAVITY_M_S2: Final = 9.80665  # exact by definition (3rd CGPM, 1901)
@@ -282,3 +283,16 @@ def miss_percent(miss: float, tolerance: float) -> str:
         if (float(text) > limit) == (value > limit) and (float(text) != limit or value == limit):
             return text
     return f"{value:.4f}"
+
+
+def is_bare_number(value: object) -> bool:
+    """Whether ``value`` is a number without a unit: a Python number (not a bool), or text that reads as one."""
+    if isinstance(value, bool):
+        return False
+    if isinstance(value, (int, float)):
+        return True
+    try:
+        float(str(value).strip())
+    except ValueError:
+        return False
+    return True

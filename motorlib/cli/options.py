@@ -36,14 +36,14 @@ class _Quantity(click.ParamType):
     def convert(self, value: Any, param: click.Parameter | None, ctx: click.Context | None) -> float:
         if isinstance(value, float):
             return value
-        from ..units import parse_quantity
+        from ..units import is_bare_number, parse_quantity
 
         name = param.name if param else "value"
         text = str(value).strip()
         if _is_non_finite(text):  # before the unit rules: 'nan' is no unit problem, and no length such as '29 mm'
             self.fail(f"{text!r} is not a finite number; give e.g. {self.example or _UNIT_EXAMPLES[self.kind]}",
                       param, ctx)
-        if not self.bare and _is_bare_number(text):
+        if not self.bare and is_bare_number(text):
             self.fail(f"{text!r} has no unit; give one, e.g. {self.example or _UNIT_EXAMPLES[self.kind]} "
                       "(a bare number would mean the SI unit here)", param, ctx)
         try:
@@ -156,14 +156,6 @@ def apply_field_day(frame: Any, day: dict[str, Any]) -> Any:
             problem = problem.split(", got ")[0]
         raise click.UsageError(f"{option}{' ' + typed if typed else ''}: {problem.replace('`', '')}") from None
     return replace(frame, launch=launch)
-
-
-def _is_bare_number(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True
 
 
 _UNITS_HELP = ("Display units, metric or imperial (default: $MOTORLIB_UNITS, else 'units' in the user config "

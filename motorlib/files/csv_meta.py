@@ -37,7 +37,7 @@ from typing import Any, Final
 
 from ..errors import CsvFormatError, QuantityError
 from ..motor.record import PROVENANCE_KINDS
-from ..units import parse_quantity
+from ..units import is_bare_number, parse_quantity
 from .motor_csv import CurveMetadata
 
 __all__ = ["META_KEYS", "CsvMetadataFile", "read_csv_metadata"]
@@ -126,7 +126,7 @@ def _entry(source: str, where: str, table: Any) -> dict[str, Any]:
         kind = META_KEYS[key]
         if kind is not None:
             # a bare number is refused, as on the command line: 24 could be mm or m
-            if not isinstance(value, str) or _bare(value):
+            if not isinstance(value, str) or is_bare_number(value):
                 raise CsvFormatError(source, f"{value!r} has no unit; give one, e.g. \"24 mm\" or \"48 g\"",
                                      field=name)
             try:
@@ -151,14 +151,6 @@ def _entry(source: str, where: str, table: Any) -> dict[str, Any]:
                 raise CsvFormatError(source, f"expected text, got {value!r}", field=name)
             out[key] = value
     return out
-
-
-def _bare(text: str) -> bool:
-    try:
-        float(text.strip())
-    except ValueError:
-        return False
-    return True
 
 
 def _delays(source: str, name: str, value: Any) -> tuple[float, ...]:

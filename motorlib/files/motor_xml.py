@@ -316,8 +316,6 @@ def _exact_text(value_si: float, unit_choices: tuple[tuple[str, float], ...], ki
     raise AssertionError("unreachable: the SI unit always round-trips")  # pragma: no cover
 
 
-# Characters XML 1.0 cannot carry at all (its Char production): most C0 controls, lone surrogates, U+FFFE, U+FFFF
-_NOT_XML_CHAR = UNWRITABLE_CHARACTER
 _HARDWARE: Final = (  # element, record field, units the writer prefers (scale from SI), quantity kind
     ("diameter", "diameter_m", (("mm", 1e3), ("m", 1.0)), "length"),
     ("length", "length_m", (("mm", 1e3), ("m", 1.0)), "length"),
@@ -334,7 +332,7 @@ def _escaped(text: str, *, attribute: bool = False) -> str:
     ValueError
         ``text`` holds a character XML cannot carry (lxml's own refusal, kept by the text writer).
     """
-    if _NOT_XML_CHAR.search(text):
+    if UNWRITABLE_CHARACTER.search(text):  # the record refuses these first; kept for any text written here
         raise ValueError("All strings must be XML compatible: Unicode or ASCII, no NULL bytes or control characters")
     text = text.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;").replace("\r", "&#13;")
     if attribute:

@@ -9,6 +9,7 @@ import os
 from typing import Any
 
 from ..errors import SimulationInputError
+from ..units import is_bare_number
 from .airframe_toml import _load_toml, _quantity, _section
 
 __all__ = ["load_uncertainty", "uncertainty_from_dict"]
@@ -26,19 +27,6 @@ _UNCERTAINTY_KEYS = {
 # would be 2 rad), as for motor sizes and small masses; the example names the unit to give
 _UNIT_NEEDED = {"cg": "10 mm", "wind_direction": "20 deg", "rail_angle": "1 deg", "rail_azimuth": "5 deg"}
 _SI = {"length": "m", "angle": "rad"}
-
-
-def _is_bare(raw: Any) -> bool:
-    """A number without a unit: a TOML number, or a string that reads as one."""
-    if isinstance(raw, bool):
-        return False
-    if isinstance(raw, (int, float)):
-        return True
-    try:
-        float(str(raw))
-    except ValueError:
-        return False
-    return True
 
 
 # a temperature *difference*: 1 degC = 1 K, 1 degF = 5/9 K (exact by the scales' definitions)
@@ -80,7 +68,7 @@ def uncertainty_from_dict(data: dict[str, Any], source: str = "airframe", base: 
         elif kind == "temperature difference":
             values[name] = _difference_k(source, where, raw)
         else:
-            if key in _UNIT_NEEDED and _is_bare(raw) and raw != 0:
+            if key in _UNIT_NEEDED and is_bare_number(raw) and raw != 0:
                 raise SimulationInputError(source, where, f"give a unit, e.g. {_UNIT_NEEDED[key]!r} (a bare number "
                                                           f"would be read in the SI unit, {raw} {_SI[kind]})")
             values[name] = _quantity(source, table, "uncertainty", key, kind)

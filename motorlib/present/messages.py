@@ -49,7 +49,6 @@ REASON_CODES = {
 }
 
 
-
 @dataclass(frozen=True)
 class DeploymentColumn:
     """The ranking's column of the speed that recovery meets, in the table and the report alike.
