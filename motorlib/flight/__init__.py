@@ -34,7 +34,7 @@ Modules
 * ``delays``: the delays a motor offers and the one a flight uses;
 * ``dynamics``: air, gravity and wind tables on a height grid, and the accelerations;
 * ``events``: the liftoff solve, and Hermite location of apogee, landing, ejection and deployment;
-* ``integrate``: :class:`FlightSettings`, :func:`simulate` and the batched RK4 loop;
+* ``integrate``: :class:`FlightSettings`, :func:`simulate` and the batched Runge-Kutta (Dormand–Prince 5(4)) loop;
 * ``recovery_phase``: where each device opens, the passes between openings, landing;
 * ``wind``: the capped power law and measured wind profiles;
 * ``results``: status codes, ``MESSAGES`` and :class:`FlightResults`;

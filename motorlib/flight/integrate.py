@@ -2,21 +2,24 @@
 
 The model (state, forces, phases) is described in :mod:`motorlib.flight`.
 
-Integrator (the performance core): classic RK4 on arrays of shape
-(n_active,), one numpy loop over time steps and never over motors, with a
-per-flight step controller. Error control: each step's local error is
-estimated from the embedded third-order solution that shares RK4's stages and
-the derivative at the step's end (FSAL: b̂ = (1/6, 1/3, 1/3, 0, 1/6), so the
-estimate is h/6·(k4 − k5) and costs no extra evaluation). The error of each
-speed component is measured against ``tolerance`` times the flight's speed
-scale (its fastest speed so far, and in the ascent at least half the motor's
-ideal velocity change Itot/m, since an early speed error carries to burnout;
-at least 1 m/s), and of each position
+Integrator (the performance core): the Dormand–Prince 5(4) Runge-Kutta pair
+on arrays of shape (n_active,), one numpy loop over time steps and never over
+motors, with a per-flight step controller. Each step advances the fifth-order
+solution (six evaluations of the right-hand side: the seventh stage is the
+derivative at the step's end, which is also the next step's first, FSAL) and
+estimates its local error as h·Σ eᵢ·kᵢ, the difference from the embedded
+fourth-order solution. The error of each speed component is measured against
+``tolerance`` times the flight's speed scale (its fastest speed so far, and in
+the ascent at least half the motor's ideal velocity change Itot/m, since an
+early speed error carries to burnout; at least 1 m/s), and of each position
 component against ``tolerance`` times the matching length scale (speed
 scale²/g0, the height that speed buys): the same relative accuracy in apogee
 for a 60 m and a 6,000 m flight. A step whose error exceeds that is rejected
 (the flight stays where it was, in the arrays, and retries with a shorter
-step); the next step is h·clip(0.9·err^(-1/4), 0.2, 5). Steps that would cross a
+step); the next step is h·clip(0.9·err^(-1/5), 0.2, 5). The pair replaced
+classic RK4 with its embedded third-order estimate (issue 16): on 1,000
+synthetic flights it takes 46 steps a flight instead of 72 (91 at most instead
+of 161) for a smaller apogee error (median 2e-7 instead of 8e-7). Steps that would cross a
 change of dynamics end on it: every thrust-curve sample during the burn (thrust
 is smooth inside every step), rail exit, each point of a Cd(Mach) table, the
 deployment altitude and a pass's stop time (predicted from the local motion,
@@ -25,7 +28,7 @@ is not error-tested, since no smooth solution joins its two ends, so the rail
 is left in two steps (2 % short of the predicted exit, then a short aimed
 step) and a rail step that ends past the rail's end by more than 1e-5 of its
 length is taken again, shorter. After apogee the ascent pass only carries the
-ejection instants, at 100 x the tolerance; steps during the burn get 3 x.
+ejection instants, at 10 x the tolerance; steps during the burn get 3 x.
 Under a recovery device, once past apogee and falling, only the landing point
 and time matter (to centimetres and milliseconds, not the ascent's 1e-5 of
 apogee): the tolerance is 100 x looser there and positions are measured
@@ -76,9 +79,10 @@ from ..units import STANDARD_GRAVITY_M_S2
 __all__ = ["FlightSettings", "simulate"]
 
 
-# Largest descent step fraction accepted: RK4's real stability limit h·|λ| = 2.785 with |λ| = 2/τ gives 1.39; 1.35
-# keeps 3 % from the edge, where a perturbation would still decay by a factor 0.88 per step (1 - x + x²/2 - x³/6 +
-# x⁴/24 at x = 2.7). Our choice within the published limit (see FlightSettings.descent_step_fraction).
+# Largest descent step fraction accepted: the Dormand–Prince pair's real stability limit h·|λ| = 3.307 with
+# |λ| = 2/τ gives 1.65; 1.35 keeps 18 % from the edge, where a perturbation decays by 0.70 per step (its
+# stability polynomial 1 + z + z²/2 + z³/6 + z⁴/24 + z⁵/120 + z⁶/600 at z = -2.7; tests/flight/
+# test_dormand_prince.py). Our choice within the limit (see FlightSettings.descent_step_fraction).
 _MAX_DESCENT_STEP_FRACTION: Final = 1.35
 
 
@@ -91,24 +95,26 @@ class FlightSettings:
     tolerance : float
         Local error allowed per step, relative to the flight's speed scale (speeds) and
         length scale (positions); 100 x looser, and positions against the height left to
-        fall, under a device once the rocket falls; see the module docstring. On 300 synthetic flights
-        (tests/synthetic.py, seed 21) against solve_ivp DOP853 at rtol 1e-10, the apogee
-        erred by median 7.7e-7 and at worst 8.9e-6 with 3e-7, in 70 steps per flight
-        (1e-6: median 2.0e-6, worst 3.1e-5, 59 steps; 1e-7: 3.3e-7, 4.5e-6, 84 steps). Our
-        choice, no published source: the speed goal's median error of 1e-6 with margin.
+        fall, under a device once the rocket falls; see the module docstring. On 1,000 synthetic
+        flights (tests/synthetic.py, seed 7; tests/benchmarks/bench_flight.py) against solve_ivp
+        DOP853 at rtol 1e-10, the apogee erred by median 2.1e-7 and at worst 3.9e-6 with 3e-7,
+        in 46 steps per flight (1e-6: median 8.3e-7, worst 2.0e-5, 43 steps; 2e-6: 1.8e-6,
+        4.8e-5, 41 steps: a looser tolerance saves few steps). Our choice, no published source:
+        the speed goal's median error of 1e-6 with a margin of 5.
     burn_steps : int
         The first step is the burn time over this; the controller then adapts it (400: a
         first step short enough to pass the error test at liftoff on nearly every flight).
     descent_step_fraction : float
         Under a deployed device, a step is at most this fraction f of the drag
         time scale τ = m/(½ρ·Cd·A·v) (v_t/g at terminal speed). Drag's stiffest
-        eigenvalue is λ = -2/τ (-2g/v_t at terminal speed), so h·λ = -2f, and classical
-        RK4 is stable on the real axis for h·|λ| ≤ 2.785 (its stability polynomial
-        1 + z + z²/2 + z³/6 + z⁴/24; Hairer & Wanner, Solving Ordinary Differential
-        Equations II, 2nd ed., 1996, section IV.2): f < 1.39. 1.2 (h·|λ| = 2.4, where a
-        perturbation still shrinks by 0.56 per step) leaves a 14 % margin; with the looser
-        descent tolerance it cut the parachute descent of tests/benchmarks/bench_descent.py
-        from 275 steps at 0.8 to 201 (issue 16). Values above 1.35 are refused.
+        eigenvalue is λ = -2/τ (-2g/v_t at terminal speed), so h·λ = -2f, and the
+        Dormand–Prince pair is stable on the real axis for h·|λ| ≤ 3.307 (its stability
+        polynomial 1 + z + z²/2 + z³/6 + z⁴/24 + z⁵/120 + z⁶/600; Hairer & Wanner, Solving
+        Ordinary Differential Equations II, 2nd ed., 1996, section IV.2): f < 1.65. 1.2
+        (h·|λ| = 2.4, where a perturbation shrinks by 0.32 per step) leaves a 27 % margin;
+        chosen under the former RK4 (limit 1.39), where with the looser descent tolerance it
+        cut the parachute descent of tests/benchmarks/bench_descent.py from 275 steps at 0.8
+        to 201 (issue 16; 178 with this pair). Values above 1.35 are refused.
     opening_step_fraction : float
         The same fraction while the rocket moves faster than 1.2 times the
         terminal speed (just after a device opens fast): the hard deceleration
@@ -151,8 +157,8 @@ class FlightSettings:
         if not 0.0 < self.tolerance < 0.1:
             raise ValueError("`tolerance` must lie in (0, 0.1)")
         if not 0.0 < self.descent_step_fraction <= _MAX_DESCENT_STEP_FRACTION:
-            raise ValueError(f"`descent_step_fraction` must lie in (0, {_MAX_DESCENT_STEP_FRACTION}]: above 1.39 RK4 "
-                             "is unstable under a device")
+            raise ValueError(f"`descent_step_fraction` must lie in (0, {_MAX_DESCENT_STEP_FRACTION}]: near 1.65 the "
+                             "integrator is unstable under a device")
         if not 0.0 < self.opening_step_fraction <= 1.0:
             raise ValueError("`opening_step_fraction` must lie in (0, 1]")
 
@@ -326,10 +332,12 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
     n_dev = out["deployment_time_s"].shape[1]
     dep = {k: np.full((n, n_dev), np.nan) for k in ("t", "z", "speed", "load", "rate")}
 
-    def record(pos: np.ndarray, k: int, state: dict[str, np.ndarray]) -> None:
+    def record(pos: np.ndarray, k: int, state: dict[str, np.ndarray]) -> np.ndarray:
+        """Note device k's opening state; returns the air density there [kg/m³]."""
         speed, rho = _air_speed(g, {k: v[pos] for k, v in params.items()}, state)
         dep["t"][pos, k], dep["z"][pos, k], dep["speed"][pos, k] = state["t"], state["z"], speed
         dep["load"][pos, k] = 0.5 * rho * speed * speed * devices[k].drag_area_m2
+        return rho
 
     def fly(pos: np.ndarray, state: dict[str, np.ndarray], extra: np.ndarray, *, device: int | None,
             stop_time_s: np.ndarray | None = None, stop_altitude_m: float | None = None,
@@ -357,8 +365,13 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
     elif lead is not None and opens.any():
         pos = np.flatnonzero(opens)
         at = _sub(start, opens)
-        record(pos, 0, at)
+        rho = record(pos, 0, at)
+        # the opening state was flown: it counts in every maximum, as it does when the descent is flown
+        # (Mach and dynamic pressure from the air speed, as in the flight's right-hand side)
+        air_speed = dep["speed"][pos, 0]
         acc["max_speed"][pos] = np.fmax(acc["max_speed"][pos], np.sqrt(at["vx"]**2 + at["vy"]**2 + at["vz"]**2))
+        acc["max_mach"][pos] = np.fmax(acc["max_mach"][pos], air_speed / g.lookup(at["z"])[1])
+        acc["max_q"][pos] = np.fmax(acc["max_q"][pos], 0.5 * rho * air_speed * air_speed)
         if early.any():  # the climb under the first device, to the flown apogee
             fly(np.flatnonzero(early), _sub(start, early), np.full(int(early.sum()), lead.drag_area_m2), device=0,
                 stop_at_apogee=True)
@@ -476,7 +489,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
                deploy_altitude_m: float | None, *, descent: bool, timer_s: np.ndarray | None = None,
                stop_time_s: np.ndarray | None = None, stop_at_apogee: bool = False,
                under_device: bool = False) -> dict[str, dict[str, np.ndarray]]:
-    """The RK4 loop over time steps for the flights ``idx`` (never a loop over flights).
+    """The Runge-Kutta loop over time steps for the flights ``idx`` (never a loop over flights).
 
     Ascent pass (``descent`` False): from liftoff on the rail, through the burn,
     to apogee and the last ejection delay (and ``timer_s``, an ``after`` trigger's
@@ -606,12 +619,12 @@ def _coast_segment(a: dict, mask: np.ndarray) -> None:
 
 def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: float | None, descent: bool,
           steps: int) -> None:
-    """Advance every active flight by one RK4 step (or reject it), record its events, retire finished flights."""
+    """Advance every active flight by one Dormand–Prince step (or reject it), record its events, retire finished flights."""
     t = a["t"]
     burning = a["burning"]
     h = _step_size(g, a, s, deploy_altitude_m, descent)
     hit_seg = burning & (h >= a["seg_end"] - t)
-    x1, y1, z1, vx1, vy1, vz1, stage4 = _rk4(g, a, h)
+    x1, y1, z1, vx1, vy1, vz1, stages = _dopri(g, a, h)
     t1 = np.where(hit_seg, a["seg_end"], t + h)
     if descent:
         t1 = np.where(h >= a["stop_t"] - t, a["stop_t"], t1)  # a step aimed at the stop time ends on it
@@ -643,14 +656,15 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     # is continuous there and its last step is tested like any other)
     cut_off = ended & (run.end_thrust_n[a["ref"]] > 0.0) if ended.any() else ended
     switched = cut_off | (was_on_rail & ~a["on_rail"]) | (run.status[a["ref"]] != OK)
-    err = _error_ratio(g, a, s, h, stage4, vx1, vy1, vz1, ax1, ay1, az1)
+    stages[6] = (vx1, vz1, ax1, az1) if g.planar else (vx1, vy1, vz1, ax1, ay1, az1)
+    err = _error_ratio(g, a, s, h, stages)
     rejected = (err > 1.0) & ~switched
     if overshot is not None:
         rejected |= overshot
-        err = np.where(overshot, 16.0, err)  # halves the step
+        err = np.where(overshot, 32.0, err)  # halves the step
     fmax, saf = 5.0, 0.9
-    # the step the error allows: err grows as h^4, so saf·h·err^(-1/4) whatever the step's own length
-    allowed = saf * h * np.maximum(err, 1e-30) ** -0.25
+    # the step the error allows: err grows as h^5, so saf·h·err^(-1/5) whatever the step's own length
+    allowed = saf * h * np.maximum(err, 1e-30) ** -0.2
     capped = h < a["h"]  # cut short by a step rule: it may shrink the controller's proposal, never grow it
     a["h"] = np.where(switched, a["h"],
                       np.where(capped, np.minimum(a["h"], np.maximum(allowed, 0.2 * h)),
@@ -688,7 +702,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
 # The ascent pass flies on past apogee only to the ejection instants, whose states start the descent and give the
 # ejection speed (unless a deployment altitude is still ahead: the full tolerance then); 100 x the tolerance there keeps them within about 1e-4 relative (measured against the tight run
 # of tests/flight/test_integrate.py) for half the steps after apogee. Our choice, no published source.
-_AFTER_APOGEE_TOLERANCE_FACTOR: Final = 100.0
+_AFTER_APOGEE_TOLERANCE_FACTOR: Final = 10.0
 # Under a recovery device, after apogee and falling, what matters is where and when the rocket lands, to centimetres
 # and milliseconds, not the ascent's 1e-5 of apogee: the tolerance is 100 x looser there, and positions are measured
 # against the height left to fall when it exceeds v²/g0 (a position error made high up is no larger a share of the
@@ -710,21 +724,47 @@ _BURN_TOLERANCE_FACTOR: Final = 3.0
 _RAIL_EXIT_SLACK: Final = 1e-5
 
 
-def _error_ratio(g: _Group, a: dict, s: FlightSettings, h: np.ndarray, stage4: tuple[np.ndarray, ...],
-                 vx1: np.ndarray, vy1: np.ndarray, vz1: np.ndarray, ax1: np.ndarray, ay1: np.ndarray,
-                 az1: np.ndarray) -> np.ndarray:
-    """Each flight's estimated local error over its allowed error (≤ 1 passes): the embedded third-order
-    estimate h/6·(k4 − k5), speeds against ``tolerance`` × the speed scale, positions against ``tolerance`` ×
-    the length scale speed²/g0; under a device, falling, 100 x the tolerance and the length scale at least
-    the height left to fall (see ``_DESCENT_TOLERANCE_FACTOR``)."""
-    vx4, vy4, vz4, kx4, ky4, kz4 = stage4
+# Dormand–Prince 5(4) (J. R. Dormand and P. J. Prince, "A family of embedded Runge-Kutta formulae", J. Comput.
+# Appl. Math. 6, 1980, pp. 19-26; Hairer, Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd ed.,
+# 1993, Table II.5.2): nodes, stage coefficients, fifth-order weights (the seventh stage, at the step's end, is the
+# next step's first: FSAL) and the error weights b − b̂ against the embedded fourth-order solution.
+_DP_C: Final = (0.0, 1 / 5, 3 / 10, 4 / 5, 8 / 9, 1.0)
+_DP_A: Final = (
+    (),
+    (1 / 5,),
+    (3 / 40, 9 / 40),
+    (44 / 45, -56 / 15, 32 / 9),
+    (19372 / 6561, -25360 / 2187, 64448 / 6561, -212 / 729),
+    (9017 / 3168, -355 / 33, 46732 / 5247, 49 / 176, -5103 / 18656),
+)
+_DP_B: Final = (35 / 384, 0.0, 500 / 1113, 125 / 192, -2187 / 6784, 11 / 84)
+_DP_E: Final = (71 / 57600, 0.0, -71 / 16695, 71 / 1920, -17253 / 339200, 22 / 525, -1 / 40)
+
+
+def _combine(weights: tuple[float, ...], stages: np.ndarray) -> np.ndarray:
+    """Σ wⱼ·stages[j] over the non-zero weights, added in order, element by element: every flight gets the same
+    bits whatever the batch (a matrix product would not: BLAS rounds an element differently by where it falls in
+    the array)."""
+    total = None
+    for j, w in enumerate(weights):
+        if w != 0.0:
+            total = w * stages[j] if total is None else total + w * stages[j]
+    return total
+
+
+def _error_ratio(g: _Group, a: dict, s: FlightSettings, h: np.ndarray, stages: np.ndarray) -> np.ndarray:
+    """Each flight's estimated local error over its allowed error (≤ 1 passes): the embedded fourth-order
+    estimate h·Σ eᵢ·kᵢ over the seven stages ``stages`` (shape (7, components, n): positions' rates first, then
+    speeds' rates; the seventh is the derivative at the step's end), speeds against ``tolerance`` × the speed
+    scale, positions against ``tolerance`` × the length scale speed²/g0; under a device, falling, 100 x the
+    tolerance and the length scale at least the height left to fall (see ``_DESCENT_TOLERANCE_FACTOR``)."""
+    n_comp = stages.shape[1]
+    delta = np.abs(h * _combine(_DP_E, stages))
+    half = n_comp // 2
+    dx = delta[:half].max(axis=0)
+    dv = delta[half:].max(axis=0)
     v_scale = np.maximum(a["max_speed"], a["v_floor"])
-    dv = np.maximum(np.abs(kx4 - ax1), np.abs(kz4 - az1))
-    dx = np.maximum(np.abs(vx4 - vx1), np.abs(vz4 - vz1))
-    if not g.planar:
-        dv = np.maximum(dv, np.abs(ky4 - ay1))
-        dx = np.maximum(dx, np.abs(vy4 - vy1))
-    # |h/6·Δk| / (tol·v) for speeds and |h/6·Δv| / (tol·L) for positions, L = v²/g0: Δv·v/L = Δv·g0/v
+    # |h·Δk| / (tol·v) for speeds and |h·Δv| / (tol·L) for positions, L = v²/g0: Δv·v/L = Δv·g0/v
     tol = s.tolerance * np.where(a["burning"], _BURN_TOLERANCE_FACTOR, 1.0)
     if a["after_apogee_factor"] != 1.0:
         tol = np.where(a["apogee_found"] & ~a["pending"], tol * a["after_apogee_factor"], tol)
@@ -733,42 +773,42 @@ def _error_ratio(g: _Group, a: dict, s: FlightSettings, h: np.ndarray, stage4: t
         falling = a["apogee_found"] & (a["vz"] < 0.0) & ~a["burning"]
         tol = np.where(falling, tol * a["descent_factor"], tol)
         dx_scaled = np.where(falling, np.minimum(dx_scaled, dx * v_scale / np.maximum(a["z"], 1e-300)), dx_scaled)
-    scale = (h * (1.0 / 6.0) / tol) / v_scale
-    return scale * np.maximum(dv, dx_scaled)
+    return (1.0 / tol / v_scale) * np.maximum(dv, dx_scaled)
 
 
-def _rk4(g: _Group, a: dict, h: np.ndarray) -> tuple:
-    """Classic RK4 from the active state with first stage (ax, ay, az) over steps h: the new x, y, z, vx, vy, vz
-    and the fourth stage (its speeds and accelerations), which the error estimate needs.
+def _dopri(g: _Group, a: dict, h: np.ndarray) -> tuple:
+    """One Dormand–Prince 5(4) step from the active state, whose derivative (first stage) is (vx, vy, vz, ax, ay,
+    az), over steps h: the new x, y, z, vx, vy, vz (fifth order) and the stage array (7, components, n) with its
+    last stage left to fill with the derivative at the new state, which the error estimate needs.
 
-    In a planar group y and its speed stay as they are (0).
+    In a planar group y and its speed stay as they are (0) and are not integrated: components (x, z, vx, vz).
     """
-    t, x, y, z, vx, vy, vz = a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"]
-    ax, ay, az = a["ax"], a["ay"], a["az"]
-    half = 0.5 * h
-    sixth = h / 6.0
-    vx2, vz2 = vx + half * ax, vz + half * az
-    if g.planar:
-        k2x, _, k2z, _, _ = _accel(g, a, t + half, x + half * vx, y, z + half * vz, vx2, vy, vz2)
-        vx3, vz3 = vx + half * k2x, vz + half * k2z
-        k3x, _, k3z, _, _ = _accel(g, a, t + half, x + half * vx2, y, z + half * vz2, vx3, vy, vz3)
-        vx4, vz4 = vx + h * k3x, vz + h * k3z
-        k4x, _, k4z, _, _ = _accel(g, a, t + h, x + h * vx3, y, z + h * vz3, vx4, vy, vz4)
-        y1, vy1, vy4, k4y = y, vy, vy, ay
+    t = a["t"]
+    planar = g.planar
+    if planar:
+        state = np.stack((a["x"], a["z"], a["vx"], a["vz"]))
+        first = (a["vx"], a["vz"], a["ax"], a["az"])
     else:
-        vy2 = vy + half * ay
-        k2x, k2y, k2z, _, _ = _accel(g, a, t + half, x + half * vx, y + half * vy, z + half * vz, vx2, vy2, vz2)
-        vx3, vy3, vz3 = vx + half * k2x, vy + half * k2y, vz + half * k2z
-        k3x, k3y, k3z, _, _ = _accel(g, a, t + half, x + half * vx2, y + half * vy2, z + half * vz2, vx3, vy3, vz3)
-        vx4, vy4, vz4 = vx + h * k3x, vy + h * k3y, vz + h * k3z
-        k4x, k4y, k4z, _, _ = _accel(g, a, t + h, x + h * vx3, y + h * vy3, z + h * vz3, vx4, vy4, vz4)
-        y1 = y + sixth * (vy + 2.0 * (vy2 + vy3) + vy4)
-        vy1 = vy + sixth * (ay + 2.0 * (k2y + k3y) + k4y)
-    x1 = x + sixth * (vx + 2.0 * (vx2 + vx3) + vx4)
-    z1 = z + sixth * (vz + 2.0 * (vz2 + vz3) + vz4)
-    vx1 = vx + sixth * (ax + 2.0 * (k2x + k3x) + k4x)
-    vz1 = vz + sixth * (az + 2.0 * (k2z + k3z) + k4z)
-    return x1, y1, z1, vx1, vy1, vz1, (vx4, vy4, vz4, k4x, k4y, k4z)
+        state = np.stack((a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"]))
+        first = (a["vx"], a["vy"], a["vz"], a["ax"], a["ay"], a["az"])
+    n_comp, n = state.shape
+    half = n_comp // 2
+    k = np.empty((7, n_comp, n))
+    k[0] = first
+    y, vy = a["y"], a["vy"]
+    for i in range(1, 6):
+        stage = state + h * _combine(_DP_A[i], k)
+        k[i, :half] = stage[half:]
+        if planar:
+            ax, _, az, _, _ = _accel(g, a, t + _DP_C[i] * h, stage[0], y, stage[1], stage[2], vy, stage[3])
+            k[i, 2], k[i, 3] = ax, az
+        else:
+            ax, ay, az, _, _ = _accel(g, a, t + _DP_C[i] * h, *stage)
+            k[i, 3], k[i, 4], k[i, 5] = ax, ay, az
+    new = state + h * _combine(_DP_B, k)
+    if planar:
+        return new[0], y, new[1], new[2], vy, new[3], k
+    return (*new, k)
 
 
 def _next_segment(a: dict, run: _Pass, hit_seg: np.ndarray, burning: np.ndarray, t1: np.ndarray) -> np.ndarray:

@@ -74,7 +74,7 @@ def _height_step(a: dict, h: np.ndarray, heights: tuple[float, ...]) -> np.ndarr
     """Shorten steps to end on the heights where the power-law wind has a kink (its floor and its cap).
 
     The wind is constant below the floor and above the cap, so its slope jumps there; a step across
-    one loses RK4's order, and the error estimate misses it (a flight leaving a 0.9 m rail in a
+    one loses the method's order, and the error estimate misses it (a flight leaving a 0.9 m rail in a
     5.6 m/s wind erred 1.3e-4 in apogee, crossing the 1 m floor). The crossing is predicted from
     z + vz·h + ½·az·h² (stable root) and aimed at with a 1e-7 overshoot, as the other events.
     """
@@ -105,7 +105,7 @@ def _kink_step(g: _Group, a: dict, h: np.ndarray) -> np.ndarray:
     table that the Mach number will cross.
 
     Cd is linear between table points, so each point is a kink of the drag; a step
-    across one loses RK4's order (up to 1.1e-3 in apogee with a 2x-peaked table). The
+    across one loses the method's order (up to 1.1e-3 in apogee with a 2x-peaked table). The
     Mach rate is predicted from the local motion, dM/dt = M·(v·a)/|v|², and the step
     aimed at the point with a 1e-7 overshoot, as on the rail; a point within 0.1 % of
     the step is left inside it.

@@ -134,8 +134,9 @@ def test_the_ascent_is_untouched_by_the_descent(varied, flown) -> None:
 
 
 def test_the_largest_descent_step_fraction_is_stable() -> None:
-    # RK4 is stable on the real axis for h·|λ| ≤ 2.785 (Hairer & Wanner, Solving ODEs II, section IV.2); under a
-    # device |λ| = 2/τ, so fractions up to 1.39 of τ are stable and 1.35 is the largest accepted. A fall of 45 time
+    # The Dormand–Prince pair is stable on the real axis for h·|λ| ≤ 3.307 (Hairer & Wanner, Solving ODEs II,
+    # section IV.2; tests/flight/test_dormand_prince.py); under a device |λ| = 2/τ, so fractions up to 1.65 of τ
+    # are stable and 1.35 is the largest accepted. A fall of 45 time
     # scales at that fraction settles on the terminal speed (uniform air, constant g: v_t = √(2mg/(ρ·Cd·A))):
     # measured 1e-7 off (4e-14 at the default 1.2; past the limit, 1.45 leaves 8e-6, where the error controller
     # has to hold the steps back).

@@ -126,6 +126,23 @@ def test_maxima_come_from_flown_states_above_ground() -> None:
     assert ballistic.max_speed_m_s[0] == pytest.approx(ref_b["max_speed"], rel=1e-4)
 
 
+def test_a_ranking_counts_the_opening_state_in_every_maximum() -> None:
+    # A long weak burn and a late charge (burnout at 13 m/s, the charge at 16 m/s on the way down): the rocket falls fast when the charge fires, so the opening is the fastest
+    # moment of the flight. A ranking (descent=False) counted it in the top speed but not in the top Mach number
+    # or dynamic pressure, which came from the step ends before it (the Mach number then disagreed with the
+    # speed); the full flight counts the opening state in all three. Mach = air speed / speed of sound, q = ½ρv²
+    # (definitions).
+    motor = MotorRecord("W", [0.0, 2.0], [9.0, 9.0], total_mass_kg=0.05, propellant_mass_kg=0.01, delays_s=(3.0,))
+    frame = _frame(Recovery(device="parachute", deploy="ejection", drag_area_m2=0.3))
+    ranked = simulate(frame, [motor], UNIFORM, descent=False)
+    flown = simulate(frame, [motor], UNIFORM)
+    assert ranked.deployment_speed_m_s[0, 0] == pytest.approx(ranked.max_speed_m_s[0], rel=1e-3)  # the case
+    assert ranked.max_mach[0] == pytest.approx(flown.max_mach[0], rel=1e-12)
+    assert ranked.max_dynamic_pressure_pa[0] == pytest.approx(flown.max_dynamic_pressure_pa[0], rel=1e-12)
+    sound = 340.294  # speed of sound at sea level, U.S. Standard Atmosphere 1976 (uniform air here)
+    assert ranked.max_mach[0] == pytest.approx(ranked.deployment_speed_m_s[0, 0] / sound, rel=1e-4)
+
+
 def test_a_device_opened_while_the_motor_burns_keeps_it_burning() -> None:
     # Issue 10 defect 3: a long weak tail (thrust below the weight) is still burning at apogee, where the
     # electronics open the chute; the rest of the thrust and the propellant were dropped.

@@ -167,7 +167,9 @@ def test_imperial_and_si_inputs_give_the_same_ranking(tmp_path: Path) -> None:
     for a, b in zip(si["candidates"], imp["candidates"]):
         assert a["passes"] == b["passes"]
         if a["apogee_m"] is not None:
-            assert a["apogee_m"] == pytest.approx(b["apogee_m"], rel=1e-9)
+            # the inputs agree to about 1e-10 (ten digits in the file); an adaptive step controller may then take
+            # one step differently, which moves the apogee within its error (median 2e-7 of the apogee, issue 16)
+            assert a["apogee_m"] == pytest.approx(b["apogee_m"], rel=1e-7)
 
 
 def test_match_json_and_text(tmp_path: Path) -> None:
