@@ -87,11 +87,15 @@ def _height_step(a: dict, h: np.ndarray, heights: tuple[float, ...]) -> np.ndarr
         if not crosses.any():
             continue
         crosses &= a["wind"] != 0.0  # a calm flight in a windy group steps as it would alone
-        ahead = height - z
-        root = np.sqrt(np.maximum(vz * vz + 2.0 * az * ahead, 0.0))
-        denom = vz + np.where(vz >= 0.0, root, -root)
-        t_hit = np.where(crosses & (denom != 0.0), 2.0 * ahead / np.where(denom == 0.0, 1.0, denom), np.inf)
-        h = np.where((t_hit > 0.0) & (t_hit < h), t_hit * (1.0 + 1e-7), h)
+        at = np.flatnonzero(crosses)  # the few crossing flights only
+        vz_c, az_c = vz[at], az[at]
+        ahead = height - z[at]
+        root = np.sqrt(np.maximum(vz_c * vz_c + 2.0 * az_c * ahead, 0.0))
+        denom = vz_c + np.where(vz_c >= 0.0, root, -root)
+        t_hit = np.where(denom != 0.0, 2.0 * ahead / np.where(denom == 0.0, 1.0, denom), np.inf)
+        h_c = h[at]
+        h = h.copy()
+        h[at] = np.where((t_hit > 0.0) & (t_hit < h_c), t_hit * (1.0 + 1e-7), h_c)
     return h
 
 

@@ -7,7 +7,8 @@ forms and published values. When a change means to alter this output, regenerate
 tests/snapshots/ with the commands below and say why in the commit. (Regenerated once since: the per-flight step
 controller moved two match files' figures by under 1e-5 relative, keys and order unchanged; and match's
 ``landing_speed_m_s`` became null where no device opens, as in ``fly``; and when the batched flight moved from RK4 to
-the Dormand–Prince pair, figures by under 1e-4 relative, and a ranking's ``max_mach`` began to count the opening
+the Dormand–Prince pair (and its ascent kept the step proposal over steps cut a hair short), figures by under
+1e-4 relative, and a ranking's ``max_mach`` began to count the opening
 state, as its ``max_speed_m_s`` did: one motor's 0.0545 became 0.0570, its opening air speed over the speed of
 sound.)
 
