@@ -80,6 +80,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     from ..files.airframe_toml import load_airframe
     from ..flight.integrate import simulate
+    from ..flight.results import dense_trajectory
     from ..flight.rulebook import evaluate_rules, flown_rule_inputs
     from ..flight.rules import RULE_CODES, LaunchRules
 
@@ -121,17 +122,19 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     written = []
     if csv_path:
         written.append(_write_trajectory_csv(results.trajectories[0], csv_path, shown, overwrite))
+    # the chart and the report draw the path between the steps too (the CSV keeps the flown steps)
+    drawn = dense_trajectory(results.trajectories[0]) if plot_path or report_path else None
     if plot_path:
         from ..present.plots import flight_plot
 
-        written.append(flight_plot(results.trajectories[0], {**summary, "wind_speed_m_s": frame.launch.wind_speed_m_s},
+        written.append(flight_plot(drawn, {**summary, "wind_speed_m_s": frame.launch.wind_speed_m_s},
                                    f"{frame.name} with {motor.designation}", plot_path, shown))
     if report_path:
         from .output import _write_report
         from ..present.report_content import fly_report
 
         inputs = [airframe_file] + ([motor_file] if motor_file else [])
-        report = fly_report(frame, motor, summary, warnings, results.trajectories[0], inputs=inputs,
+        report = fly_report(frame, motor, summary, warnings, drawn, inputs=inputs,
                             command=_command_line(), units=_card_units(shown))
         written.append(_write_report(report, report_path, overwrite, inputs))
     # status 1 when the flight fails or breaks a launch rule (README, "When something goes wrong"); notes do not count

@@ -33,6 +33,7 @@ import numpy as np
 from .airframe import Airframe
 from .atmosphere import EARTH_RADIUS_M, pressure_pa
 from .integrate import OK, FlightSettings, simulate
+from .results import dense_trajectory
 from ..motor.record import MotorRecord
 from ..units import STANDARD_GRAVITY_M_S2
 
@@ -428,5 +429,5 @@ def simulated_track(frame: Airframe, record: MotorRecord, value: float, liftoff_
     """Time [s, on the log's clock] and height [m] of the whole simulated flight with drag ``value``, to plot
     against a log; the simulated liftoff is put at the log's ``liftoff_time_s``."""
     res = simulate(with_drag(frame, value), [record], settings, trajectories=True)
-    track = res.trajectories[0]
+    track = dense_trajectory(res.trajectories[0])  # the path between the steps too, to draw
     return track["time_s"] - float(res.liftoff_time_s[0]) + liftoff_time_s, track["altitude_m"]

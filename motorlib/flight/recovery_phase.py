@@ -198,7 +198,7 @@ def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.
     With k = ½ρ(Cd·A) and v = max(|v|, v_t), τ is v_t/g at terminal speed and much shorter
     just after a fast deployment. Drag's Jacobian -(k/m)(|v|·I + v·vᵀ/|v|) has its largest
     eigenvalue -2k|v|/m = -2/τ, so a step of ``descent_step_fraction``·τ puts h·λ at twice
-    that fraction, inside the Dormand–Prince pair's real stability interval (-3.307, 0) for fractions below 1.65
+    that fraction, inside the Dormand–Prince pair's real stability interval (-3.307, 0) for fractions below 1.65 (1.5 by default)
     (``opening_step_fraction`` while the rocket is still much faster than terminal speed, just
     after an opening, or climbs under a device). The first step of a pass is also at most 1/30 of
     the time left to fall (at terminal speed, or the drag-free speed at the ground when that is

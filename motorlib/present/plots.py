@@ -61,11 +61,14 @@ def _finish(plt, fig, path: str | os.PathLike[str], *, overwrite: bool = True) -
 
 def _event_times(summary: dict[str, object]) -> list[tuple[str, float]]:
     out = []
-    for name, key in (("rail exit", "rail_exit_time_s"), ("burnout", "burnout_time_s"), ("apogee", "time_to_apogee_s"),
-                      ("deployment", "deploy_time_s")):
+    deployments = summary.get("deployments") or []
+    keys = (("rail exit", "rail_exit_time_s"), ("burnout", "burnout_time_s"), ("apogee", "time_to_apogee_s"))
+    if not deployments:  # the first opening is also the first of the deployments: label it once
+        keys += (("deployment", "deploy_time_s"),)
+    for name, key in keys:
         if summary.get(key) is not None:
             out.append((name, float(summary[key])))  # type: ignore[arg-type]
-    for event in summary.get("deployments") or []:  # type: ignore[union-attr]
+    for event in deployments:  # type: ignore[union-attr]
         out.append((str(event.get("name") or "deployment"), float(event["time_s"])))
     return sorted(out, key=lambda e: e[1])
 
@@ -108,11 +111,17 @@ def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], t
     ax2.set_ylabel(f"speed ({su})", color=BLUE)
     ax2.set_ylim(0, float(speed.max()) * 1.1 or 1.0)
     ax2.spines["right"].set_visible(True)
-    for k, (name, when) in enumerate(events):
+    placed: list[list[float]] = []  # label rows: the times already labelled on each
+    near_s = 0.12 * end  # a label is about this wide on the time axis shown
+    for name, when in events:
         height = float(np.interp(when, t, z))
         ax.plot([when], [height], marker=_MARKERS.get(name, "D"), markersize=7, markerfacecolor="white",
                 markeredgecolor=INK, markeredgewidth=1.4, linestyle="none", zorder=5)
-        ax.annotate(f"{name} {when:.1f} s", (when, height), xytext=(8, 8 + 11 * (k % 2)), textcoords="offset points",
+        row = next((i for i, times in enumerate(placed) if all(abs(when - x) >= near_s for x in times)), len(placed))
+        if row == len(placed):
+            placed.append([])
+        placed[row].append(when)  # events close in time stack their labels below the curve, not on each other
+        ax.annotate(f"{name} {when:.1f} s", (when, height), xytext=(8, 8 if row == 0 else -6 - 14 * row), textcoords="offset points",
                     fontsize=8, color=INK, bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.8})
     handles, labels = ax.get_legend_handles_labels()
     h2, l2 = ax2.get_legend_handles_labels()
