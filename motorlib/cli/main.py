@@ -13,6 +13,7 @@ the library modules it needs (numpy, lxml, rich, matplotlib behind them) when it
 from __future__ import annotations
 
 import gc
+import os
 
 import click
 
@@ -82,6 +83,16 @@ def run() -> None:
     many ranked candidates); the cyclic garbage collector's default young-generation threshold (700
     allocations) makes it sweep those again and again, up to a fifth of a large ranking's time. The
     threshold is raised for the process; tests that call :func:`main` in-process keep the default.
+
+    numpy's OpenBLAS starts a thread per core as it loads, about 50 ms of a cold ``motorlib match`` on the
+    reference machine (2 cores), for threads no command uses: the flight and the ranking are element-wise, and
+    the only linear algebra (calibrate's least squares, scatter's covariance) is on matrices of a few columns,
+    below the size at which OpenBLAS splits work between threads. So the process asks for one BLAS thread
+    before numpy is imported; a value set in the environment is kept.
     """
+    os.environ.setdefault(_BLAS_THREADS, "1")
     gc.set_threshold(20_000, 20, 20)
     main()
+
+
+_BLAS_THREADS = "OPENBLAS_NUM_THREADS"  # read by OpenBLAS once, when numpy loads it
