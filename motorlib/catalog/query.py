@@ -125,16 +125,12 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
     values = db.execute(sql, args).fetchall()
     # the JSON of every row (its delays, its findings) in one parse: one call per row costs more than the parsing
     parsed = json.loads("[" + ",".join(f"[{v[_DELAYS]},{v[_FINDINGS] or 'null'}]" for v in values) + "]")
-    out = []
-    for row_values, (delays, entries) in zip(values, parsed):
-        data = dict(zip(COLUMNS, row_values))
-        data["delays_s"] = delays
-        data["findings"] = None if entries is None else [Finding(**entry) for entry in entries]
-        row = CatalogRow.from_fields(data)
-        if f.delay_s is not None and not offers_delay(f.delay_s, row.delays_s, row.delay_adjustable):
-            continue
-        out.append(row)
-    return out
+    rows = CatalogRow.from_columns(values, [delays for delays, _ in parsed],
+                                   [None if entries is None else [Finding(**entry) for entry in entries]
+                                    for _, entries in parsed])
+    if f.delay_s is not None:
+        rows = [row for row in rows if offers_delay(f.delay_s, row.delays_s, row.delay_adjustable)]
+    return rows
 
 
 _DELAYS = COLUMNS.index("delays_s")
