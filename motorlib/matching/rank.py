@@ -26,6 +26,7 @@ numpy only; pandas, scipy and matplotlib are not imported here.
 from __future__ import annotations
 
 import math
+from operator import attrgetter
 from dataclasses import dataclass, field, fields
 from typing import Any, Callable, Protocol, Sequence, Union
 
@@ -326,7 +327,8 @@ def _candidates_of(rows: Sequence[CatalogRow], fit_reasons: Sequence[list[tuple[
         verdicts.append(verdict.verdict)
         passes.append(verdict.passes)
         ballast_passes.append(verdict.ballast_passes)
-    columns: dict[str, Sequence[Any]] = {name: [getattr(row, name) for row in rows] for name in _IDENTITY}
+    columns: dict[str, Sequence[Any]] = dict(zip(_IDENTITY, zip(*map(attrgetter(*_IDENTITY), rows)))) if rows else {
+        name: [] for name in _IDENTITY}
     columns.update(fits=[not reasons for reasons in fit_reasons], adapter=adapters)
     columns.update(figure_columns)
     columns.update(reasons=texts, reason_codes=codes_of, notes=note_texts, note_codes=note_codes, verdict=verdicts,
