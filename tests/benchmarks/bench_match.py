@@ -71,17 +71,19 @@ def _median_wall(args: list[str], repeats: int = 5) -> tuple[float, float]:
     return statistics.median(walls), statistics.median(cpus)
 
 
-def _paired_walls(runs: list[tuple[list[str], dict[str, str]]], repeats: int) -> dict[int, tuple[list[float], list[float]]]:
+def _paired_walls(runs: list[tuple[list[str], dict[str, str]]], repeats: int,
+                  cwd: Path | None = None) -> dict[int, tuple[list[float], list[float]]]:
     """Wall-clock and CPU times of fresh processes for each (args, environment) of ``runs``, taking them in turn
-    ``repeats`` times (so that a load on the machine falls on all alike); one unmeasured run of each first."""
+    ``repeats`` times (so that a load on the machine falls on all alike); one unmeasured run of each first.
+    ``cwd``: where they run (``python -m`` imports from there first)."""
     for args, env in runs:
-        subprocess.run(args, check=True, capture_output=True, env=env)
+        subprocess.run(args, check=True, capture_output=True, env=env, cwd=cwd)
     out: dict[int, tuple[list[float], list[float]]] = {k: ([], []) for k in range(len(runs))}
     for _ in range(repeats):
         for k, (args, env) in enumerate(runs):
             before = resource.getrusage(resource.RUSAGE_CHILDREN)
             start = time.perf_counter()
-            subprocess.run(args, check=True, capture_output=True, env=env)
+            subprocess.run(args, check=True, capture_output=True, env=env, cwd=cwd)
             out[k][0].append(time.perf_counter() - start)
             after = resource.getrusage(resource.RUSAGE_CHILDREN)
             out[k][1].append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
@@ -95,13 +97,20 @@ def _against_baseline(baseline: Path, airframe: Path, catalog: Path, extra: list
     if not copy.exists():  # its own index: the baseline's format may differ from ours
         shutil.copytree(catalog, copy, ignore=shutil.ignore_patterns(".motorlib"))
     runs, outputs = [], []
+    # run from the catalogs' folder: `python -m` imports from the working folder first, which must be neither
+    # checkout (from this one's root, both runs would import this code)
+    neutral = catalog.parent
     for tree, cat in ((ROOT, catalog), (baseline, copy)):
         args = [sys.executable, "-m", "motorlib", "match", str(airframe), "--catalog", str(cat), *extra]
         env = dict(_COLD_ENV, PYTHONPATH=str(tree))
         runs.append((args, env))
-        out = subprocess.run(args, check=True, capture_output=True, env=env).stdout
-        outputs.append(out.replace(str(cat).encode(), b"CATALOG"))
-    times = _paired_walls(runs, repeats)
+        done = subprocess.run(args, check=True, capture_output=True, env=env, cwd=neutral)
+        where = subprocess.run([sys.executable, "-c", "import motorlib; print(motorlib.__file__)"], check=True,
+                               capture_output=True, text=True, env=env, cwd=neutral).stdout.strip()
+        if not Path(where).is_relative_to(tree):
+            raise SystemExit(f"{tree}: its runs import motorlib from {where}")
+        outputs.append(done.stdout.replace(str(cat).encode(), b"CATALOG"))
+    times = _paired_walls(runs, repeats, cwd=neutral)
     (new_wall, new_cpu), (old_wall, old_cpu) = ((statistics.median(w), statistics.median(c)) for w, c in times.values())
     return (f"this {new_wall:.3f} s (CPU {new_cpu:.3f} s), baseline {old_wall:.3f} s (CPU {old_cpu:.3f} s), "
             f"ratio {new_wall / old_wall:.2f} (CPU {new_cpu / old_cpu:.2f}); output "
