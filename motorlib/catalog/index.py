@@ -5,7 +5,8 @@ read-only catalog) and can always be rebuilt from the files. The file readers
 (lxml) and hashlib are imported only where a file is read: opening a current
 index and reading rows and samples from it imports neither. Opening checks
 the schema version and that the tables can be read; an unusable index is
-moved aside to ``index.corrupt`` and rebuilt. :meth:`CatalogIndex.refresh`
+moved aside to ``index.corrupt`` and rebuilt, and an index of the previous
+version is brought up to this one in place (the tables it lacks are added). :meth:`CatalogIndex.refresh`
 compares every file's size and modification time with the ``files`` table and
 parses only what changed; a content hash confirms a change before any parsing.
 
@@ -15,6 +16,12 @@ Tables::
     files   path, size, mtime_ns, ctime_ns, sha256, motor_id, error   one row per curve file seen
     motors  COLUMNS, time_blob, thrust_blob                 one row per motor (samples as float64 blobs)
     tags    motor_id, tag                                   a copy of tags.json, for queries
+    curves  motor_ids, counts, time_blob, thrust_blob       every motor's samples end to end, in one row (a cache)
+
+The ``curves`` row lets a ranking read the samples of thousands of motors as one blob
+(:func:`.query.motor_pack`). Triggers on ``motors`` delete it in the same transaction as any
+insert, update or delete of a motor, so it never outlives the rows it was built from, whatever
+process (or version of this module) writes them; the next ranking builds it again.
 """
 
 from __future__ import annotations
@@ -36,8 +43,10 @@ from ..motor.record import MotorRecord
 
 __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
 
-SCHEMA_VERSION = "4"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name
-# lookup and on path; 4: files.ctime_ns (a file replaced with its old size and modification time changes it)
+SCHEMA_VERSION = "5"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name
+# lookup and on path; 4: files.ctime_ns (a file replaced with its old size and modification time changes it);
+# 5: the curves cache and its triggers (added in place to a version 4 index: create_schema adds what is missing)
+_UPGRADABLE_FROM = "4"
 INDEX_DIR = ".motorlib"
 COLUMNS = ROW_COLUMNS  # the motors table has one column per CatalogRow field, in order
 
@@ -54,6 +63,10 @@ def create_schema(db: sqlite3.Connection) -> None:
     db.execute("CREATE INDEX IF NOT EXISTS motors_lower_name ON motors (lower(maker), lower(designation))")
     db.execute("CREATE INDEX IF NOT EXISTS motors_path ON motors (path)")  # refresh deletes and replaces by path
     db.execute("CREATE TABLE IF NOT EXISTS tags (motor_id TEXT, tag TEXT, PRIMARY KEY (motor_id, tag))")
+    db.execute("CREATE TABLE IF NOT EXISTS curves (motor_ids TEXT, counts BLOB, time_blob BLOB, thrust_blob BLOB)")
+    for event in ("INSERT", "UPDATE", "DELETE"):  # any change to a motor drops the cache, in its own transaction
+        db.execute(f"CREATE TRIGGER IF NOT EXISTS motors_{event.lower()}_drops_curves AFTER {event} ON motors "
+                   "BEGIN DELETE FROM curves; END")
     db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
 
 
@@ -120,6 +133,10 @@ def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSett
     return [row[c] for c in COLUMNS] + [record.time_s.astype("<f8").tobytes(), record.thrust_n.astype("<f8").tobytes()]
 
 
+class _PreviousSchema(sqlite3.DatabaseError):
+    """An undamaged index of the version before :data:`SCHEMA_VERSION`: upgraded in place, under the writer lock."""
+
+
 class CatalogIndex:
     """The SQLite index of the catalog folder ``root``.
 
@@ -172,6 +189,12 @@ class CatalogIndex:
             existed = self.path.exists()
             try:
                 return self._open_checked(create=False)
+            except _PreviousSchema:
+                db = self._open_file()  # sound, one version behind: add what it lacks, keep every row
+                db.execute("BEGIN IMMEDIATE")
+                create_schema(db)
+                db.execute("COMMIT")
+                return db
             except sqlite3.DatabaseError as exc:
                 if existed and self.path.exists():
                     self._move_aside()
@@ -190,17 +213,20 @@ class CatalogIndex:
         Raises
         ------
         sqlite3.DatabaseError
-            No file (unless ``create``), missing tables, another schema version, or damage anywhere in the file.
+            No file (unless ``create``), missing tables, another schema version, or damage anywhere in the file;
+            :class:`_PreviousSchema` for an undamaged index of the version before this one.
         """
         db = self._open_file(create=create)
         try:
             version = db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone()
-            if version is None or version[0] != SCHEMA_VERSION:
+            if version is None or version[0] not in (SCHEMA_VERSION, _UPGRADABLE_FROM):
                 raise sqlite3.DatabaseError("schema version mismatch")
             # a damaged page the queries of one command never touch would break the next command: check them all
             verdict = db.execute("PRAGMA quick_check(1)").fetchone()[0]
             if verdict != "ok":
                 raise sqlite3.DatabaseError(f"damaged: {verdict}")
+            if version[0] != SCHEMA_VERSION:
+                raise _PreviousSchema("schema one version behind")
             return db
         except BaseException:
             db.close()

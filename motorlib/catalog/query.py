@@ -125,16 +125,12 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
     values = db.execute(sql, args).fetchall()
     # the JSON of every row (its delays, its findings) in one parse: one call per row costs more than the parsing
     parsed = json.loads("[" + ",".join(f"[{v[_DELAYS]},{v[_FINDINGS] or 'null'}]" for v in values) + "]")
-    out = []
-    for row_values, (delays, entries) in zip(values, parsed):
-        data = dict(zip(COLUMNS, row_values))
-        data["delays_s"] = delays
-        data["findings"] = None if entries is None else [Finding(**entry) for entry in entries]
-        row = CatalogRow.from_fields(data)
-        if f.delay_s is not None and not offers_delay(f.delay_s, row.delays_s, row.delay_adjustable):
-            continue
-        out.append(row)
-    return out
+    rows = CatalogRow.from_columns(values, [delays for delays, _ in parsed],
+                                   [None if entries is None else [Finding(**entry) for entry in entries]
+                                    for _, entries in parsed])
+    if f.delay_s is not None:
+        rows = [row for row in rows if offers_delay(f.delay_s, row.delays_s, row.delay_adjustable)]
+    return rows
 
 
 _DELAYS = COLUMNS.index("delays_s")
@@ -178,16 +174,68 @@ def _blobs(db: sqlite3.Connection, ids: Sequence[str]) -> dict[str, tuple[bytes,
 
 def motor_pack(db: sqlite3.Connection, rows: Sequence[CatalogRow], drill_step_s: float = DEFAULT_DRILL_STEP_S) -> MotorPack:
     """A :class:`~motorlib.flight.MotorPack` for ``rows`` (from :func:`select_rows`), built from the index: the
-    blobs of all rows joined end to end and read as two arrays (no XML, no array per motor)."""
-    blobs = _blobs(db, [r.motor_id for r in rows])
-    ordered = [blobs[r.motor_id] for r in rows]
+    samples of the rows, in order, taken from the ``curves`` cache (every motor's samples end to end, one blob;
+    built and stored here when missing) and read as two arrays (no XML, no array per motor)."""
+    ids, counts, time_s, thrust_n = _curves(db)
+    position = dict(zip(ids, range(len(ids))))
+    chosen = np.array([position[r.motor_id] for r in rows], dtype=np.int64)
+    starts = (np.cumsum(counts) - counts)[chosen]
+    wanted = counts[chosen]
+    # the samples of chosen motor j sit at starts[j] ... starts[j] + wanted[j] - 1 of the flat arrays
+    take = np.repeat(starts - (np.cumsum(wanted) - wanted), wanted) + np.arange(int(wanted.sum()))
     return MotorPack.from_flat(  # from_flat copies the samples into its own arrays
-        np.frombuffer(b"".join(t for t, _ in ordered), dtype="<f8"),
-        np.frombuffer(b"".join(f for _, f in ordered), dtype="<f8"),
-        np.array([len(t) // 8 for t, _ in ordered], dtype=np.int64),
+        time_s[take], thrust_n[take], wanted,
         total_mass_kg=[r.total_mass_kg for r in rows],
         propellant_mass_kg=[r.propellant_mass_kg for r in rows],
         delays_s=[r.delays_s for r in rows],
         delay_adjustable=[r.delay_adjustable for r in rows],
         drill_step_s=drill_step_s,
     )
+
+
+def _curves(db: sqlite3.Connection) -> tuple[list[str], np.ndarray, np.ndarray, np.ndarray]:
+    """Every motor's id, sample count, times [s] and thrusts [N] (the samples end to end), from the ``curves``
+    cache of the index (:mod:`.index`).
+
+    A missing cache is built from the ``motors`` table and stored, in one write transaction, so that no change
+    to a motor can fall between reading the rows and storing what was read (the triggers on ``motors`` drop
+    the cache in the transaction of any change). Storing is only tried where it cannot wait: inside another
+    transaction, or while another process writes the catalog, the samples are read and not stored.
+    """
+    found = db.execute("SELECT motor_ids, counts, time_blob, thrust_blob FROM curves").fetchone()
+    if found is None:
+        found = _build_curves(db)
+    motor_ids, counts, time_blob, thrust_blob = found
+    return (motor_ids.split(",") if motor_ids else [], np.frombuffer(counts, dtype="<i8"),
+            np.frombuffer(time_blob, dtype="<f8"), np.frombuffer(thrust_blob, dtype="<f8"))
+
+
+def _build_curves(db: sqlite3.Connection) -> tuple[str, bytes, bytes, bytes]:
+    """The ``curves`` row of the motors in the index now (see :func:`_curves`), stored when that cannot wait."""
+    def read() -> tuple[str, bytes, bytes, bytes]:
+        motors = db.execute("SELECT motor_id, time_blob, thrust_blob FROM motors").fetchall()
+        return (",".join(m for m, _, _ in motors), np.array([len(t) // 8 for _, t, _ in motors], dtype="<i8").tobytes(),
+                b"".join(t for _, t, _ in motors), b"".join(f for _, _, f in motors))
+
+    if db.in_transaction:
+        return read()
+    (timeout,) = db.execute("PRAGMA busy_timeout").fetchone()
+    db.execute("PRAGMA busy_timeout = 0")
+    try:
+        db.execute("BEGIN IMMEDIATE")
+    except sqlite3.OperationalError:  # another process is writing
+        began = False
+    else:
+        began = True
+    finally:
+        db.execute(f"PRAGMA busy_timeout = {int(timeout)}")
+    if not began:
+        return read()  # what is committed; stored by a later ranking
+    try:
+        row = read()
+        db.execute("INSERT INTO curves VALUES (?, ?, ?, ?)", row)
+        db.execute("COMMIT")
+    except BaseException:
+        db.execute("ROLLBACK")
+        raise
+    return row

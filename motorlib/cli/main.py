@@ -13,6 +13,7 @@ the library modules it needs (numpy, lxml, rich, matplotlib behind them) when it
 from __future__ import annotations
 
 import gc
+import os
 
 import click
 
@@ -81,7 +82,21 @@ def run() -> None:
     A command is a short process that builds many records without reference cycles (5,000 catalog rows, as
     many ranked candidates); the cyclic garbage collector's default young-generation threshold (700
     allocations) makes it sweep those again and again, up to a fifth of a large ranking's time. The
-    threshold is raised for the process; tests that call :func:`main` in-process keep the default.
+    threshold is raised for the process to 200,000: at 20,000 a cold 5,000-motor match still spent about 25 ms
+    in five young sweeps of records that stay alive (about 8 ms at 1,000 motors); at 200,000 it spends about 3,
+    all before this function runs. Only garbage in reference cycles waits for a sweep (the rest is freed at
+    once), so the most it can hold back is that many objects. Tests that call :func:`main` in-process keep the
+    default.
+
+    numpy's OpenBLAS starts a thread per core as it loads, about 50 ms of a cold ``motorlib match`` on the
+    reference machine (2 cores), for threads no command uses: the flight and the ranking are element-wise, and
+    the only linear algebra (calibrate's least squares, scatter's covariance) is on matrices of a few columns,
+    below the size at which OpenBLAS splits work between threads. So the process asks for one BLAS thread
+    before numpy is imported; a value set in the environment is kept.
     """
-    gc.set_threshold(20_000, 20, 20)
+    os.environ.setdefault(_BLAS_THREADS, "1")
+    gc.set_threshold(200_000, 20, 20)
     main()
+
+
+_BLAS_THREADS = "OPENBLAS_NUM_THREADS"  # read by OpenBLAS once, when numpy loads it

@@ -93,7 +93,7 @@ class MotorPack:
         if np.any(counts < 1) or time_s.shape != thrust_n.shape or time_s.size != int(counts.sum()):
             raise ValueError("`counts` must be positive and add up to the samples given")
         width = int(counts.max())
-        delay_lists = [offered_delays_s(d, a, drill_step_s) for d, a in zip(delays_s, delay_adjustable)]
+        delay_lists = _offered_per_motor(delays_s, delay_adjustable, drill_step_s)
         n_delays = max(1, max(len(d) for d in delay_lists))
         # one scatter per array: row i holds its samples, then its last time repeated and zero thrust;
         # delays NaN past the motor's own
@@ -115,3 +115,22 @@ class MotorPack:
         return cls(time, thrust, cumulative, counts, cumulative[:, -1].copy(), total, propellant, burnout, delays,
                    has_mass)
 
+
+
+def _offered_per_motor(delays_s: Sequence[Sequence[float]], delay_adjustable: Sequence[bool],
+                       drill_step_s: float) -> list[list[float]]:
+    """:func:`~.delays.offered_delays_s` of every motor, worked out once per distinct (delays, adjustable): a
+    catalog of thousands of motors lists a few dozen delay sets, and the offer is a function of the delays'
+    values. Delays are compared as numbers, so 5 and 5.0 share an offer (which reads both as 5.0); 0.0 and
+    -0.0 compare equal but would be offered as given, so a list holding a zero is never shared."""
+    seen: dict[tuple[tuple[float, ...], bool], list[float]] = {}
+    out = []
+    for listed, adjustable in zip(delays_s, delay_adjustable):
+        key = (tuple(listed), bool(adjustable))
+        offered = seen.get(key)
+        if offered is None:
+            offered = offered_delays_s(listed, adjustable, drill_step_s)
+            if 0.0 not in key[0]:
+                seen[key] = offered
+        out.append(offered)
+    return out

@@ -33,7 +33,8 @@ if TYPE_CHECKING:
     from .airframe import Airframe
     from .results import FlightResults
 
-__all__ = ["FLIGHT_CODES", "RuleInputs", "broken_rules", "code_masks", "evaluate_rules", "flown_rule_inputs"]
+__all__ = ["FLIGHT_CODES", "RuleInputs", "broken_rules", "code_masks", "evaluate_rules", "flown_rule_inputs",
+           "rule_entries"]
 
 # Failed flight status -> its code; any other failed status is "not-flown".
 _STATUS_CODES = {NO_LIFTOFF: "no-liftoff", STUCK_ON_RAIL: "stuck-on-rail"}
@@ -287,14 +288,24 @@ def evaluate_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceil
     >>> [[f.code for f in flight] for flight in evaluate_rules(x)]
     [[], ['rail-exit-slow']]
     """
+    return [[Finding(*entry) for entry in flight] for flight in rule_entries(inputs, rules, ceiling_m=ceiling_m)]
+
+
+def rule_entries(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None
+                 ) -> list[list[tuple[str, str, str]]]:
+    """:func:`evaluate_rules` as (severity, code, message) triples, without a :class:`Finding` record per broken
+    rule: for the ranking, which reads them once for thousands of flights."""
     r = rules or LaunchRules()
     broken = broken_rules(inputs, r, ceiling_m=ceiling_m)
-    out: list[list[Finding]] = [[] for _ in range(inputs.n_flights)]
+    n = inputs.n_flights
+    out: list[list[tuple[str, str, str]]] = [[] for _ in range(n)]
     for code, mask in broken.items():
-        for i, column in zip(*np.nonzero(mask.reshape(inputs.n_flights, -1))):
+        flights, columns = np.nonzero(mask.reshape(n, -1))
+        severity = "note" if code in NOTE_CODES else "warning"
+        message = _MESSAGES[code]
+        for i, column in zip(flights.tolist(), columns.tolist()):
             code_i = _STATUS_CODES.get(int(inputs.status[i]), code) if code == "not-flown" else code
-            severity = "note" if code in NOTE_CODES else "warning"
-            out[int(i)].append(Finding(severity, code_i, _MESSAGES[code](inputs, int(i), int(column), r, ceiling_m)))
+            out[i].append((severity, code_i, message(inputs, i, column, r, ceiling_m)))
     return out
 
 

@@ -9,7 +9,8 @@ stdlib only.
 from __future__ import annotations
 
 from dataclasses import MISSING, dataclass, fields
-from typing import Any, Final
+from itertools import repeat
+from typing import Any, Final, Iterable, Sequence
 
 __all__ = ["Candidate"]
 
@@ -129,6 +130,40 @@ class Candidate:
         candidate.__dict__.update(data)  # frozen: fields are set once, here, as __init__ would
         candidate._check_codes()
         return candidate
+
+    @classmethod
+    def from_columns(cls, columns: dict[str, Sequence[Any]]) -> list[Candidate]:
+        """One candidate per position of ``columns`` (field name -> one value per candidate, every column the
+        same length; a field left out keeps its default): the records :meth:`from_fields` builds from the
+        same values, each from one row of the columns instead of a dict merged per candidate.
+
+        For the ranking (5,000 candidates at once). Sequences are copied to tuples as ``__init__`` does; an
+        unknown or missing field is a TypeError, as it would be there.
+        """
+        unknown = columns.keys() - _DEFAULTS.keys()
+        if unknown:
+            raise TypeError(f"Candidate has no field {sorted(unknown)[0]!r}")
+        for name in _REQUIRED:
+            if name not in columns:
+                raise TypeError(f"Candidate needs field {name!r}")
+        n = len(columns[_REQUIRED[0]])
+        if any(len(column) != n for column in columns.values()):
+            raise ValueError("every column must hold one value per candidate")
+        full: list[Iterable[Any]] = []
+        for name, default in _DEFAULTS.items():  # declaration order, which as_dict (the JSON layout) keeps
+            column: Iterable[Any] = columns.get(name, repeat(default, n))
+            if name in _SEQUENCES and name in columns:
+                column = [v if v is None or type(v) is tuple else tuple(v) for v in column]
+            full.append(column)
+        names = tuple(_DEFAULTS)
+        new = object.__new__
+        out = []
+        for values in zip(*full):
+            candidate = new(cls)
+            candidate.__dict__.update(zip(names, values))  # frozen: fields are set once, here, as __init__ would
+            candidate._check_codes()
+            out.append(candidate)
+        return out
 
     def as_dict(self) -> dict[str, object]:
         """The candidate as plain data (the ``match --json`` layout): every field, sequences as lists.

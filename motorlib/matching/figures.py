@@ -21,7 +21,6 @@ numpy only.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from math import isfinite
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -32,8 +31,7 @@ from ..flight.descent import landing_descent_rate_m_s, terminal_speed_m_s
 from ..flight.integrate import FlightSettings
 from ..flight.pack import MotorPack
 from ..flight.results import FlightResults
-from ..flight.rulebook import evaluate_rules, flown_rule_inputs
-from ..motor.checks import Finding
+from ..flight.rulebook import flown_rule_inputs, rule_entries
 from ..motor.listing import CatalogRow
 
 if TYPE_CHECKING:
@@ -145,7 +143,11 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
     findings = _rule_findings(frame, rows, results, s, chosen, speed, landing, deploy, distance)
 
     def col(values: np.ndarray) -> list[float | None]:  # Python floats, None for NaN and ±inf
-        return [v if isfinite(v) else None for v in np.asarray(values, dtype=float).tolist()]
+        array = np.asarray(values, dtype=float)
+        out: list[float | None] = array.tolist()
+        for i in np.flatnonzero(~np.isfinite(array)).tolist():
+            out[i] = None
+        return out
 
     columns: dict[str, list[Any]] = {
         "apogee_m": col(results.apogee_m), "time_to_apogee_s": col(results.apogee_time_s),
@@ -166,25 +168,25 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
         "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
     }
     return _Flown(columns, [_broken(f) for f in findings],
-                  [[(n.code, n.message) for n in f if n.severity == "note"] for f in findings],
+                  [[(code, message) for severity, code, message in f if severity == "note"] for f in findings],
                   [int(code) for code in results.status])
 
 
 def _rule_findings(frame: Airframe, rows: list[CatalogRow], results: FlightResults, s: MatchSettings,
                    chosen: np.ndarray, speed: np.ndarray, landing: np.ndarray, deploy: np.ndarray,
-                   distance: np.ndarray) -> list[list[Finding]]:
-    """Every rule each flight breaks (:func:`motorlib.flight.rulebook.evaluate_rules`, the rules ``fly`` applies),
-    with this module's figures where the descent was not flown."""
+                   distance: np.ndarray) -> list[list[tuple[str, str, str]]]:
+    """Every rule each flight breaks, as (severity, code, message) (:func:`motorlib.flight.rulebook.rule_entries`:
+    the rules ``fly`` applies), with this module's figures where the descent was not flown."""
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed,
                                landing_descent_rate_m_s=landing, landing_distance_m=distance,
                                deployment_speed_m_s=deploy,
                                delays_known=np.array([r.ejection != "unknown" for r in rows], dtype=bool))
-    return evaluate_rules(inputs, s.rules, ceiling_m=s.ceiling_m)
+    return rule_entries(inputs, s.rules, ceiling_m=s.ceiling_m)
 
 
-def _broken(findings: list[Finding]) -> list[tuple[str, str]]:
-    """(code, message) of the findings that fail a motor (notes on the model apart)."""
-    return [(f.code, f.message) for f in findings if f.severity != "note"]
+def _broken(findings: list[tuple[str, str, str]]) -> list[tuple[str, str]]:
+    """(code, message) of the (severity, code, message) findings that fail a motor (notes on the model apart)."""
+    return [(code, message) for severity, code, message in findings if severity != "note"]
 
 
 def _landing_descent_rate(frame: Airframe, results: FlightResults, pack: MotorPack) -> np.ndarray:

@@ -26,7 +26,8 @@ numpy only; pandas, scipy and matplotlib are not imported here.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from operator import attrgetter
+from dataclasses import dataclass, field, fields
 from typing import Any, Callable, Protocol, Sequence, Union
 
 from ..flight.airframe import Airframe
@@ -241,7 +242,9 @@ def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | 
     rows, pack_for = _candidates(rows, pack_for, fs.drill_step_s)
     fit_reasons, adapters = zip(*[_fits(frame, row, s) for row in rows]) if rows else ((), ())
     fitting = [i for i, reasons in enumerate(fit_reasons) if not reasons]
-    flown: dict[int, tuple[dict[str, Any], list[tuple[str, str]], list[tuple[str, str]]]] = {}
+    figure_columns: dict[str, list[Any]] = {}
+    reasons_of: list[list[tuple[str, str]]] = list(fit_reasons)  # a motor not flown: why it does not fit
+    notes_of: list[list[tuple[str, str]]] = [[] for _ in rows]
     if fitting:
         sub = [rows[i] for i in fitting]
         pack = pack_for(sub)
@@ -250,10 +253,10 @@ def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | 
         _check_stability(frame, sub, pack, results, figures, s, fs)
         if s.ballast:
             _solve_ballast(frame, sub, pack, figures, s, fs)
-        keys = tuple(figures.columns)
-        for i, values, reasons, notes in zip(fitting, zip(*figures.columns.values()), figures.reasons, figures.notes):
-            flown[i] = (dict(zip(keys, values)), reasons, notes)
-    candidates = sorted((_candidate(row, fit_reasons[i], adapters[i], flown.get(i), s) for i, row in enumerate(rows)),
+        figure_columns = _spread(figures.columns, fitting, len(rows))
+        for i, reasons, notes in zip(fitting, figures.reasons, figures.notes):
+            reasons_of[i], notes_of[i] = reasons, notes
+    candidates = sorted(_candidates_of(rows, fit_reasons, adapters, figure_columns, reasons_of, notes_of, s),
                         key=lambda c: _sort_key(c, s))
     conditions = _conditions(frame, s)
     airframe = {"name": frame.name, "mass_kg": frame.mass_kg, "diameter_m": frame.diameter_m,
@@ -278,29 +281,64 @@ def _candidates(rows: Candidates, pack_for: PackFor | None, drill_step_s: float)
     return rows, pack_for
 
 
-def _candidate(row: CatalogRow, fit_reasons: list[tuple[str, str]], adapter: str | None,
-               flown: tuple[dict[str, Any], list[tuple[str, str]], list[tuple[str, str]]] | None,
-               s: MatchSettings) -> Candidate:
-    """The record of one motor: its row, its flown figures (None if it was not flown), the (code, message) of
-    every rule it breaks and every note, and its verdict (:func:`.verdicts.classify`)."""
-    figures, reasons, notes = flown if flown is not None else ({}, fit_reasons, [])
-    fits = not fit_reasons
-    if row.n_errors:  # never hidden: the flight is of the curve, the flyer buys the label
-        reasons = reasons + [("curve-errors", _curve_errors_text(row.n_errors))]
-    if adapter is not None and fits:
-        notes = [("adapter", f"needs a {adapter} adapter")] + notes
-    codes = [code for code, _ in reasons]
-    verdict = classify(codes, figures.get("apogee_m"), s.target_m, s.target_tolerance,
-                       ballast_kg=figures.get("ballast_kg"), ballast_reasons=figures.get("ballast_reasons"))
-    notes = notes + list(verdict.notes)
-    values = {"motor_id": row.motor_id, "handle": row.handle, "designation": row.designation, "maker": row.maker,
-              "impulse_class": row.impulse_class, "total_impulse_ns": row.total_impulse_ns,
-              "diameter_m": row.diameter_m, "length_m": row.length_m, "fits": fits, "adapter": adapter}
-    values.update(figures)
-    values.update(reasons=tuple(text for _, text in reasons), reason_codes=tuple(codes),
-                  notes=tuple(text for _, text in notes), note_codes=tuple(code for code, _ in notes),
-                  verdict=verdict.verdict, passes=verdict.passes, ballast_passes=verdict.ballast_passes)
-    return Candidate.from_fields(values)
+def _spread(columns: dict[str, list[Any]], fitting: list[int], n: int) -> dict[str, list[Any]]:
+    """The figure columns of the ``fitting`` motors (one value per flown motor) spread over all ``n`` motors,
+    a motor not flown holding the field's default (None: no such figure)."""
+    if len(fitting) == n:
+        return columns
+    out = {}
+    for key, column in columns.items():
+        full = [_FIELD_DEFAULTS[key]] * n
+        for i, value in zip(fitting, column):
+            full[i] = value
+        out[key] = full
+    return out
+
+
+def _candidates_of(rows: Sequence[CatalogRow], fit_reasons: Sequence[list[tuple[str, str]]],
+                   adapters: Sequence[str | None], figure_columns: dict[str, list[Any]],
+                   reasons_of: list[list[tuple[str, str]]], notes_of: list[list[tuple[str, str]]],
+                   s: MatchSettings) -> list[Candidate]:
+    """The record of every motor, in the order of ``rows``: its row, its flown figures (``figure_columns``, a
+    motor not flown holding the defaults), the (code, message) of every rule it breaks and every note, and its
+    verdict (:func:`.verdicts.classify`). Built column by column (:meth:`Candidate.from_columns`): 5,000
+    candidates are one record each, not a dict merged per motor."""
+    n = len(rows)
+    nothing = [None] * n
+    apogees = figure_columns.get("apogee_m", nothing)
+    ballasts = figure_columns.get("ballast_kg", nothing)
+    ballast_reasons = figure_columns.get("ballast_reasons", nothing)
+    texts, codes_of, note_texts, note_codes, verdicts, passes, ballast_passes = [], [], [], [], [], [], []
+    for i, row in enumerate(rows):
+        reasons, notes = reasons_of[i], notes_of[i]
+        fits = not fit_reasons[i]
+        if row.n_errors:  # never hidden: the flight is of the curve, the flyer buys the label
+            reasons = reasons + [("curve-errors", _curve_errors_text(row.n_errors))]
+        if adapters[i] is not None and fits:
+            notes = [("adapter", f"needs a {adapters[i]} adapter")] + notes
+        codes = [code for code, _ in reasons]
+        verdict = classify(codes, apogees[i], s.target_m, s.target_tolerance, ballast_kg=ballasts[i],
+                           ballast_reasons=ballast_reasons[i])
+        notes = notes + list(verdict.notes)
+        texts.append(tuple(text for _, text in reasons))
+        codes_of.append(tuple(codes))
+        note_texts.append(tuple(text for _, text in notes))
+        note_codes.append(tuple(code for code, _ in notes))
+        verdicts.append(verdict.verdict)
+        passes.append(verdict.passes)
+        ballast_passes.append(verdict.ballast_passes)
+    columns: dict[str, Sequence[Any]] = dict(zip(_IDENTITY, zip(*map(attrgetter(*_IDENTITY), rows)))) if rows else {
+        name: [] for name in _IDENTITY}
+    columns.update(fits=[not reasons for reasons in fit_reasons], adapter=adapters)
+    columns.update(figure_columns)
+    columns.update(reasons=texts, reason_codes=codes_of, notes=note_texts, note_codes=note_codes, verdict=verdicts,
+                   passes=passes, ballast_passes=ballast_passes)
+    return Candidate.from_columns(columns)
+
+
+# The fields a candidate takes from its catalog row, and every field's default (a motor not flown keeps them)
+_IDENTITY = ("motor_id", "handle", "designation", "maker", "impulse_class", "total_impulse_ns", "diameter_m", "length_m")
+_FIELD_DEFAULTS = {f.name: f.default for f in fields(Candidate)}
 
 
 def _curve_errors_text(n_errors: int) -> str:

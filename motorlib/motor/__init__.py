@@ -3,6 +3,8 @@
 numpy only (scipy.signal is imported inside the reduction's filter); no file formats, no terminal.
 """
 
+import typing as _typing
+
 from .checks import CheckSettings, Finding, check_record, findings_from_problems, metrics
 from .classes import (
     CLASS_LETTERS,
@@ -27,14 +29,35 @@ from .record import (
     MotorRecord,
     Provenance,
 )
-from .reduction import (
-    Reduction,
-    ReductionSettings,
-    combine_reductions,
-    firing_spread,
-    lowpass_design_hz,
-    reduce_log,
-)
+# The static-test reduction (``reduce``, ``calibrate``) is imported on first use (PEP 562, as in flight/), so that
+# the commands that only read records (a cold ``match``) do not build its records.
+_REDUCTION = ("Reduction", "ReductionSettings", "combine_reductions", "firing_spread", "lowpass_design_hz",
+              "reduce_log")
+
+if _typing.TYPE_CHECKING:
+    from .reduction import (
+        Reduction,
+        ReductionSettings,
+        combine_reductions,
+        firing_spread,
+        lowpass_design_hz,
+        reduce_log,
+    )
+
+
+def __getattr__(name: str) -> object:
+    if name not in _REDUCTION:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    from . import reduction
+
+    value = getattr(reduction, name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_REDUCTION))
+
 
 __all__ = [
     "CLASS_LETTERS",

@@ -108,6 +108,29 @@ class CatalogRow:
         return row
 
     @classmethod
+    def from_columns(cls, rows: Sequence[Sequence[object]], delays_s: Sequence[Sequence[float]],
+                     findings: Sequence[Sequence[Finding] | None]) -> list[CatalogRow]:
+        """One record per sequence of values in :data:`ROW_COLUMNS` order (as the index's ``SELECT`` gives
+        them), with each row's delays [s] and findings (or None) given apart, parsed: the records
+        :meth:`from_fields` builds from the same values, about twice as fast again.
+
+        For reading a catalog, 5,000 rows at once: no check of the field names (the order is this module's
+        own), and the three fields a row keeps in its own form are converted inline as :func:`_normalised`
+        converts them. The values in the delays and findings columns of ``rows`` are not read.
+        """
+        new = object.__new__
+        out = []
+        for values, delays, found in zip(rows, delays_s, findings):
+            data = dict(zip(ROW_COLUMNS, values))
+            data["delays_s"] = tuple(map(float, delays))
+            data["delay_adjustable"] = bool(data["delay_adjustable"])
+            data["findings"] = None if found is None else tuple(found)
+            row = new(cls)
+            row.__dict__.update(data)  # frozen: fields are set once, here
+            out.append(row)
+        return out
+
+    @classmethod
     def from_record(cls, record: MotorRecord, motor_id: str, *, path: str | None = None,
                     settings: CheckSettings | None = None,
                     findings: Sequence[Finding] | None = None) -> CatalogRow:

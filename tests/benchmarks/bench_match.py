@@ -1,6 +1,6 @@
 """Benchmark: ranking synthetic catalogs of 1,000 and 5,000 motors, in-process and from a cold process.
 
-Run by hand from the repository root:  python tests/benchmarks/bench_match.py
+Run by hand from the repository root:  python tests/benchmarks/bench_match.py [--baseline OTHER_CHECKOUT]
 
 Prints the in-process time to rank (fit filter, one batched flight, delays, reasons) from an open catalog,
 the pieces around it that a cold `motorlib match` also pays (opening the catalog with a current index, reading
@@ -9,12 +9,19 @@ for the 1,000- and 5,000-motor catalogs (table to a pipe, and --json) and for th
 of several runs), and the heaviest imports of the CLI's match path (`python -X importtime`). Next to each
 wall-clock figure it prints the CPU time (of the child process for cold runs), the figure to compare on a
 loaded machine.
+
+With ``--baseline`` (the root of another checkout, e.g. ``git worktree add /tmp/base main``), each cold figure
+is also taken for that checkout's code in the same run, the two alternating run by run, each on its own copy of
+the catalog (the other's index format may differ), and the two outputs are compared byte for byte (the
+catalog's path aside): the figure to compare on a shared machine, pair by pair.
 """
 
 from __future__ import annotations
 
+import argparse
 import json
 import os
+import shutil
 import resource
 import statistics
 import subprocess
@@ -60,19 +67,60 @@ def _median_wall(args: list[str], repeats: int = 5) -> tuple[float, float]:
 
     One unmeasured run first writes any bytecode that is missing.
     """
-    subprocess.run(args, check=True, capture_output=True, env=_COLD_ENV)
-    walls, cpus = [], []
-    for _ in range(repeats):
-        before = resource.getrusage(resource.RUSAGE_CHILDREN)
-        start = time.perf_counter()
-        subprocess.run(args, check=True, capture_output=True, env=_COLD_ENV)
-        walls.append(time.perf_counter() - start)
-        after = resource.getrusage(resource.RUSAGE_CHILDREN)
-        cpus.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+    (walls, cpus), = _paired_walls([(args, _COLD_ENV)], repeats).values()
     return statistics.median(walls), statistics.median(cpus)
 
 
+def _paired_walls(runs: list[tuple[list[str], dict[str, str]]], repeats: int,
+                  cwd: Path | None = None) -> dict[int, tuple[list[float], list[float]]]:
+    """Wall-clock and CPU times of fresh processes for each (args, environment) of ``runs``, taking them in turn
+    ``repeats`` times (so that a load on the machine falls on all alike); one unmeasured run of each first.
+    ``cwd``: where they run (``python -m`` imports from there first)."""
+    for args, env in runs:
+        subprocess.run(args, check=True, capture_output=True, env=env, cwd=cwd)
+    out: dict[int, tuple[list[float], list[float]]] = {k: ([], []) for k in range(len(runs))}
+    for _ in range(repeats):
+        for k, (args, env) in enumerate(runs):
+            before = resource.getrusage(resource.RUSAGE_CHILDREN)
+            start = time.perf_counter()
+            subprocess.run(args, check=True, capture_output=True, env=env, cwd=cwd)
+            out[k][0].append(time.perf_counter() - start)
+            after = resource.getrusage(resource.RUSAGE_CHILDREN)
+            out[k][1].append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
+    return out
+
+
+def _against_baseline(baseline: Path, airframe: Path, catalog: Path, extra: list[str], repeats: int = 9) -> str:
+    """This checkout against ``baseline`` for one cold ``motorlib match``: median wall and CPU of each, and
+    whether the outputs are the same bytes (the catalog's path aside)."""
+    copy = catalog.with_name(catalog.name + "-baseline")
+    if not copy.exists():  # its own index: the baseline's format may differ from ours
+        shutil.copytree(catalog, copy, ignore=shutil.ignore_patterns(".motorlib"))
+    runs, outputs = [], []
+    # run from the catalogs' folder: `python -m` imports from the working folder first, which must be neither
+    # checkout (from this one's root, both runs would import this code)
+    neutral = catalog.parent
+    for tree, cat in ((ROOT, catalog), (baseline, copy)):
+        args = [sys.executable, "-m", "motorlib", "match", str(airframe), "--catalog", str(cat), *extra]
+        env = dict(_COLD_ENV, PYTHONPATH=str(tree))
+        runs.append((args, env))
+        done = subprocess.run(args, check=True, capture_output=True, env=env, cwd=neutral)
+        where = subprocess.run([sys.executable, "-c", "import motorlib; print(motorlib.__file__)"], check=True,
+                               capture_output=True, text=True, env=env, cwd=neutral).stdout.strip()
+        if not Path(where).is_relative_to(tree):
+            raise SystemExit(f"{tree}: its runs import motorlib from {where}")
+        outputs.append(done.stdout.replace(str(cat).encode(), b"CATALOG"))
+    times = _paired_walls(runs, repeats, cwd=neutral)
+    (new_wall, new_cpu), (old_wall, old_cpu) = ((statistics.median(w), statistics.median(c)) for w, c in times.values())
+    return (f"this {new_wall:.3f} s (CPU {new_cpu:.3f} s), baseline {old_wall:.3f} s (CPU {old_cpu:.3f} s), "
+            f"ratio {new_wall / old_wall:.2f} (CPU {new_cpu / old_cpu:.2f}); output "
+            + ("identical" if outputs[0] == outputs[1] else "DIFFERENT"))
+
+
 def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
+    parser.add_argument("--baseline", type=Path, help="root of another checkout to time the cold runs against")
+    baseline = parser.parse_args().baseline
     motorlib_cli = [sys.executable, "-m", "motorlib"]
     with tempfile.TemporaryDirectory() as tmp:
         airframe_path = Path(tmp) / "rocket.toml"
@@ -119,6 +167,10 @@ def main() -> None:
             as_json, json_cpu = _median_wall(args + ["--json"])
             print(f"cold `motorlib match`, {n:,}-motor catalog: {table:.3f} s table (CPU {table_cpu:.3f} s), "
                   f"{as_json:.3f} s --json (CPU {json_cpu:.3f} s)  (goal {goal} s)")
+            if baseline is not None:
+                for extra in (["--top", "10"], ["--json"]):
+                    print(f"  against {baseline}, {' '.join(extra)}: "
+                          + _against_baseline(baseline, airframe_path, Path(tmp) / f"cat{n}", ["--target", "1000", *extra]))
         cold_bundled, bundled_cpu = _median_wall(motorlib_cli + ["match", str(ROOT / "sample_curves" / "airframes" / "quibble-41.toml"),
                                                     "--catalog", str(ROOT / "sample_curves"), "--target", "400"])
         print(f"cold `motorlib match`, bundled catalog:     {cold_bundled:.3f} s (CPU {bundled_cpu:.3f} s)  (goal 0.5 s)")

@@ -60,3 +60,93 @@ def test_scan_finds_curve_files_below_the_root_and_skips_hidden_and_linked_folde
     assert sorted(found) == ["a/b/two.xml", "a/one.xml", "top.xml"]
     st = (tmp_path / "a" / "one.xml").stat()
     assert found["a/one.xml"] == (5, st.st_mtime_ns, st.st_ctime_ns)
+
+
+def _pack_is_the_files(catalog: Catalog) -> None:
+    """The pack of every row (from the index's curves cache) holds the samples of the curve files themselves."""
+    from motorlib.flight import MotorPack
+
+    rows = catalog.rows()
+    pack = catalog.motor_pack(rows)
+    expected = MotorPack.from_records([catalog.get(r.motor_id) for r in rows])
+    for name in ("time_s", "thrust_n", "n_samples", "total_mass_kg", "delays_s"):
+        assert getattr(pack, name).tobytes() == getattr(expected, name).tobytes(), name
+
+
+def _stored_curves(catalog: Catalog) -> int:
+    return catalog._db.execute("SELECT count(*) FROM curves").fetchone()[0]
+
+
+def test_curves_cache_never_outlives_a_change(tmp_catalog: Catalog) -> None:
+    # Issue 16: a ranking reads every curve from one cached blob. Any change to the motors, through the catalog
+    # or behind its back (then seen by the next open's refresh), in this process or another, drops it in the
+    # same transaction; the next pack builds and stores it again. A stale cache would fail _pack_is_the_files.
+    root = tmp_catalog.root
+    _pack_is_the_files(tmp_catalog)
+    assert _stored_curves(tmp_catalog) == 1
+    changes = [
+        lambda c: c.add(MotorRecord("D10-3", [0.0, 0.1, 1.6, 1.7], [0.0, 12.0, 10.0, 0.0], maker="Added (fictional)")),
+        lambda c: c.remove("G59-10"),
+        lambda c: c.reindex(),
+    ]
+    for change in changes:
+        change(tmp_catalog)
+        assert _stored_curves(tmp_catalog) == 0
+        _pack_is_the_files(tmp_catalog)
+        assert _stored_curves(tmp_catalog) == 1
+    # behind its back: a file edited (new samples, same name), one deleted, one added; another process opens
+    edited = next(root.glob("teakettle*/c6*.xml"))
+    record = read_record(edited)
+    write_record(MotorRecord(**{**{f: getattr(record, f) for f in record.__dataclass_fields__},
+                                "thrust_n": record.thrust_n * 1.5}), edited)
+    next(root.glob("marmalade*/*.xml")).unlink()
+    write_record(MotorRecord("E7-4", [0.0, 0.2, 3.0, 3.1], [0.0, 9.0, 7.0, 0.0], maker="Hand Copied (fictional)"),
+                 root / "e7.xml")
+    other = Catalog(root)
+    assert _stored_curves(other) == 0 and _stored_curves(tmp_catalog) == 0
+    _pack_is_the_files(tmp_catalog)  # the first process packs again, from the rows the refresh wrote
+    assert _stored_curves(other) == 1
+    _pack_is_the_files(other)
+
+
+def test_curves_cache_is_not_stored_while_another_process_writes(tmp_catalog: Catalog) -> None:
+    import sqlite3
+
+    writer = sqlite3.connect(tmp_catalog.index_path, isolation_level=None)
+    writer.execute("BEGIN IMMEDIATE")  # another writer holds the index: the pack is read, not stored, not waited on
+    try:
+        _pack_is_the_files(tmp_catalog)
+        assert _stored_curves(tmp_catalog) == 0
+    finally:
+        writer.execute("ROLLBACK")
+        writer.close()
+    (timeout,) = tmp_catalog._db.execute("PRAGMA busy_timeout").fetchone()
+    assert timeout == 60000  # the connection waits for writers as before
+    _pack_is_the_files(tmp_catalog)
+    assert _stored_curves(tmp_catalog) == 1
+
+
+def test_an_index_of_the_previous_version_is_upgraded_in_place(tmp_catalog: Catalog) -> None:
+    # Issue 16 added the curves cache (schema 5): a version 4 index keeps its rows, tags and stamps (no file is
+    # read again, nothing is moved aside) and gains the cache and its triggers.
+    import sqlite3
+
+    root = tmp_catalog.root
+    tmp_catalog.tag(["G59-10"], "in-stock")
+    before = tmp_catalog.rows()
+    tmp_catalog.close()
+    db = sqlite3.connect(root / ".motorlib" / "index.sqlite", isolation_level=None)
+    for event in ("insert", "update", "delete"):
+        db.execute(f"DROP TRIGGER motors_{event}_drops_curves")
+    db.execute("DROP TABLE curves")
+    db.execute("UPDATE meta SET value = '4' WHERE key = 'schema'")
+    db.close()
+    reopened = Catalog(root)
+    assert not reopened.notices and not (root / ".motorlib" / "index.corrupt").exists()
+    assert reopened.rows() == before
+    assert [r.designation for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
+    assert reopened._db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone() == ("5",)
+    _pack_is_the_files(reopened)
+    reopened.remove("G59-10")  # the triggers came with the upgrade
+    assert _stored_curves(reopened) == 0
+    _pack_is_the_files(reopened)

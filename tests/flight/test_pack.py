@@ -23,3 +23,19 @@ def test_pack_pads_each_curve_with_its_last_time_and_zero_thrust() -> None:
     # trapezoid impulse: 0.5·10·0.5 = 2.5; 0.5·5·2 = 5; 0.5·20·0.2 + 20·0.2 + 0.5·20·0.4 = 10
     np.testing.assert_allclose(pack.total_impulse_ns, [2.5, 5.0, 10.0])
     np.testing.assert_array_equal(pack.burnout_s, [0.5, 2.0, 0.8])
+
+
+def test_pack_offers_each_motor_the_delays_offered_delays_s_gives_it() -> None:
+    # issue 16: offers are worked out once per distinct delay set; every motor must still get exactly its own
+    # (ints and floats alike, and a zero's sign kept even where 0.0 and -0.0 compare equal)
+    from motorlib.flight.delays import offered_delays_s
+
+    listed = [(5.0,), (5,), (4.0, 6.0), (5.0,), (), (0.0, 3.0), (-0.0, 3.0), (8.0,), (4, 6)]
+    adjustable = [True, True, False, False, True, False, False, True, False]
+    samples = [(np.array([0.0, 1.0]), np.array([10.0, 0.0]))] * len(listed)
+    pack = MotorPack.from_samples(samples, total_mass_kg=[1.0] * len(listed), propellant_mass_kg=[0.5] * len(listed),
+                                  delays_s=listed, delay_adjustable=adjustable, drill_step_s=1.5)
+    for row, delays, adj in zip(pack.delays_s, listed, adjustable):
+        expected = offered_delays_s(delays, adj, 1.5)
+        got = row[~np.isnan(row)].tolist()
+        assert got == expected and [np.copysign(1.0, d) for d in got] == [np.copysign(1.0, d) for d in expected]

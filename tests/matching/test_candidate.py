@@ -36,6 +36,33 @@ def test_every_reason_and_note_needs_its_code() -> None:
         _candidate(notes=("n",))
 
 
+
+def test_from_columns_builds_the_records_the_constructor_builds() -> None:
+    # issue 16: the ranking builds its candidates column by column; each must be the constructor's record, in
+    # field order (the JSON layout), with its own tuples, and refuse what the constructor refuses
+    kinds = [dict(), dict(apogee_m=410.0, delay_adjusted=True, reasons=["too fast"], reason_codes=["ejection-fast"],
+                          ballast_reasons=["x"], ballast_reason_codes=("y",), notes=("n",), note_codes=["c"]),
+             dict(fits=False, adapter="24-18 mm", verdict="no fit", ballast_passes=False)]
+    base = dict(motor_id="m", handle="h", designation="F10-4", maker="", impulse_class="F", total_impulse_ns=60.0,
+                diameter_m=0.024, length_m=0.07, fits=True, adapter=None)
+    given = [{**base, **kind} for kind in kinds]
+    names = sorted({name for values in given for name in values})
+    defaults = {f.name: f.default for f in dataclasses.fields(Candidate)}
+    columns = {name: [values.get(name, defaults[name]) for values in given] for name in names}
+    fast = Candidate.from_columns(columns)
+    slow = [Candidate(**values) for values in given]
+    assert fast == slow and [c.as_dict() for c in fast] == [c.as_dict() for c in slow]
+    assert all(list(c.__dict__) == list(defaults) for c in fast)
+    assert all(type(c.reasons) is tuple and type(c.note_codes) is tuple for c in fast)
+    assert type(fast[1].ballast_reasons) is tuple and fast[0].ballast_reasons is None
+    with pytest.raises(TypeError, match="has no field 'colour'"):
+        Candidate.from_columns({**columns, "colour": ["red"] * 3})
+    with pytest.raises(TypeError, match="needs field 'maker'"):
+        Candidate.from_columns({k: v for k, v in columns.items() if k != "maker"})
+    with pytest.raises(ValueError, match="needs its code"):
+        Candidate.from_columns({**columns, "reason_codes": [(), (), ()]})
+    assert Candidate.from_columns({name: [] for name in base}) == []
+
 def test_as_dict_is_plain_json_with_the_notes_where_the_output_had_them() -> None:
     fits = _candidate(notes=("needs an adapter",), note_codes=("adapter",), verdict="pass", passes=True)
     data = fits.as_dict()

@@ -73,6 +73,27 @@ def test_from_fields_builds_the_same_row_as_the_constructor(findings) -> None:
         fast.maker = "x"  # type: ignore[misc]
 
 
+
+@pytest.mark.parametrize("findings", [None, "listed"])
+def test_from_columns_builds_the_same_rows_as_the_constructor(findings) -> None:
+    # issue 16: the catalog's batch builder, pinned to the constructor field by field and in type
+    record = read_record(G59)
+    rows = [CatalogRow.from_record(record, "abc", path="maker/g59-10.xml"), CatalogRow.from_record(record, "def")]
+    columns = [[1 if name == "delay_adjustable" else "unread" if name in ("delays_s", "findings") else value
+                for name, value in row.__dict__.items()] for row in rows]  # as the index's columns give them
+    delays = [[int(d) for d in row.delays_s] for row in rows]
+    found = [None if findings is None else list(row.findings) for row in rows]
+    fast = CatalogRow.from_columns(columns, delays, found)
+    slow = [CatalogRow(**dict(row.__dict__, delays_s=d, delay_adjustable=1, findings=f))
+            for row, d, f in zip(rows, delays, found)]
+    assert fast == slow and [r.as_dict() for r in fast] == [r.as_dict() for r in slow]
+    for row in fast:
+        assert list(row.__dict__) == list(ROW_COLUMNS)
+        assert type(row.delays_s) is tuple and all(type(d) is float for d in row.delays_s)
+        assert row.delay_adjustable is True and (row.findings is None or type(row.findings) is tuple)
+        with pytest.raises(dataclasses.FrozenInstanceError):
+            row.maker = "x"  # type: ignore[misc]
+
 def test_from_fields_refuses_a_missing_or_unknown_field() -> None:
     values = dict(CatalogRow.from_record(read_record(G59), "abc").__dict__)
     with pytest.raises(TypeError, match="has no field 'colour'"):

@@ -355,3 +355,18 @@ def test_the_quick_verdict_on_samples_agrees_with_the_detailed_check(rows: list,
         time_s = np.sort(np.abs(time_s))
     thrust_n = np.array([f for _, f in rows])
     assert _samples_are_sound(time_s, thrust_n) == (_problems_in_detail(time_s, thrust_n) == [])
+
+
+def test_unwritable_character_is_exactly_what_xml_1_0_excludes():
+    # Source: W3C XML 1.0 (Fifth Edition), section 2.2 "Characters": Char ::= #x9 | #xA | #xD | [#x20-#xD7FF] |
+    # [#xE000-#xFFFD] | [#x10000-#x10FFFF]. The pattern names the refused characters (quicker to compile than
+    # the negation of the allowed ones, issue 16); every code point is checked against the production.
+    from motorlib.motor.record import UNWRITABLE_CHARACTER
+
+    def allowed(code: int) -> bool:
+        return (code in (0x9, 0xA, 0xD) or 0x20 <= code <= 0xD7FF or 0xE000 <= code <= 0xFFFD
+                or 0x10000 <= code <= 0x10FFFF)
+
+    every = "".join(map(chr, range(0x110000)))
+    refused = {m.start() for m in UNWRITABLE_CHARACTER.finditer(every)}
+    assert refused == {code for code in range(0x110000) if not allowed(code)}
