@@ -206,8 +206,14 @@ def rail_exit(model: OwnModel, u: np.ndarray, toward: np.ndarray, *, rtol: float
 
 def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10, atol: float = 1e-10,
                      method: str = "DOP853", wind_exponent: float = 1 / 7, wind_floor_m: float = 1.0,
-                     vary_gravity: bool = True, wind_cap_m: float = 1000.0) -> dict[str, float]:
-    """Liftoff, rail exit and apogee of one flight in 2-D (x downwind, z up; the rail leans downwind)."""
+                     vary_gravity: bool = True, wind_cap_m: float = 1000.0, maxima: bool = False) -> dict[str, float]:
+    """Liftoff, rail exit and apogee of one flight in 2-D (x downwind, z up; the rail leans downwind).
+
+    With ``maxima``, also the largest speed over the ground [m/s], dynamic pressure ½·ρ·|v_rel|² [Pa] and Mach
+    number |v_rel|/a from rail exit to apogee (``max_speed_m_s``, ``max_dynamic_pressure_pa``, ``max_mach``):
+    each piece of the free flight is solved with its dense output, sampled 400 times, and the best sample
+    refined by a bounded scalar search (scipy's minimize_scalar) between its neighbours.
+    """
     model = OwnModel(frame, motor, wind_exponent=wind_exponent, wind_floor_m=wind_floor_m,
                      vary_gravity=vary_gravity, wind_cap_m=wind_cap_m)
     theta = frame.launch.rail_angle_rad
@@ -233,14 +239,54 @@ def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10
         return y[3]
 
     at_apogee.terminal, at_apogee.direction = True, -1
+    peaks = _Peaks(model) if maxima else None
+    if peaks is not None:
+        peaks.note(state)
     t = exit_t
     free_knots = [k_ for k_ in model.knots if k_ > exit_t and k_ <= burnout] + [math.inf]
     for t_next in free_knots:
         end = t_next if math.isfinite(t_next) else t + 2000.0
-        sol = solve_ivp(rhs, (t, end), state, method=method, rtol=rtol, atol=atol, events=at_apogee)
+        sol = solve_ivp(rhs, (t, end), state, method=method, rtol=rtol, atol=atol, events=at_apogee,
+                        dense_output=maxima)
+        if peaks is not None:
+            peaks.search(sol.sol, t, float(sol.t[-1]))
         if sol.t_events[0].size:
-            return {"apogee_m": float(sol.y_events[0][0][1]), "apogee_time_s": float(sol.t_events[0][0]),
-                    "rail_exit_speed_m_s": exit_v, "rail_exit_time_s": exit_t, "liftoff_time_s": t0,
-                    "apogee_downrange_m": float(sol.y_events[0][0][0])}
+            out = {"apogee_m": float(sol.y_events[0][0][1]), "apogee_time_s": float(sol.t_events[0][0]),
+                   "rail_exit_speed_m_s": exit_v, "rail_exit_time_s": exit_t, "liftoff_time_s": t0,
+                   "apogee_downrange_m": float(sol.y_events[0][0][0])}
+            return out if peaks is None else {**out, **peaks.best}
         t, state = end, sol.y[:, -1]
     raise RuntimeError("no apogee")
+
+
+class _Peaks:
+    """Running maxima of speed, dynamic pressure and Mach over the dense output of a 2-D free flight."""
+
+    def __init__(self, model: OwnModel) -> None:
+        self.model = model
+        self.best = {"max_speed_m_s": 0.0, "max_dynamic_pressure_pa": 0.0, "max_mach": 0.0}
+
+    def figures(self, y: np.ndarray) -> dict[str, float]:
+        x, z, vx, vz = y
+        rel = math.hypot(vx - self.model.wind_m_s(z), vz)
+        rho, a = self.model.air(z)
+        return {"max_speed_m_s": math.hypot(vx, vz), "max_dynamic_pressure_pa": 0.5 * rho * rel * rel,
+                "max_mach": rel / a}
+
+    def note(self, y: np.ndarray) -> None:
+        for key, value in self.figures(y).items():
+            self.best[key] = max(self.best[key], value)
+
+    def search(self, dense, t0: float, t1: float) -> None:
+        from scipy.optimize import minimize_scalar
+
+        grid = np.linspace(t0, t1, 401)
+        for key in self.best:
+            values = [self.figures(dense(tk))[key] for tk in grid]
+            k = int(np.argmax(values))
+            self.best[key] = max(self.best[key], values[k])
+            lo, hi = grid[max(k - 1, 0)], grid[min(k + 1, grid.size - 1)]
+            if hi > lo:
+                found = minimize_scalar(lambda tk: -self.figures(dense(tk))[key], bounds=(lo, hi), method="bounded",
+                                        options={"xatol": 1e-12 * max(1.0, abs(hi))})
+                self.best[key] = max(self.best[key], -float(found.fun))

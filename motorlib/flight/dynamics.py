@@ -71,16 +71,21 @@ class _Group:
         east, north = self.profile.velocity_m_s(z)
         return east * a["e1e"] + north * a["e1n"], east * a["e2e"] + north * a["e2n"]
 
-    def lookup(self, z: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
+    def lookup(self, z: np.ndarray, slopes: list | None = None
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
         """Density, speed of sound, gravity and wind shape w(z)/w(10 m) at heights z above the pad (shape None in
-        a calm group).
+        a calm group). ``slopes``: a list that receives the tables' changes over the 5 m step at z (rows:
+        density, speed of sound, gravity), the height derivatives times ``step_m``.
 
         The wind power law is computed exactly: it is too curved near the ground for a 5 m table.
         """
         u = (z - self.base_m) * (1.0 / self.step_m)
         i = np.minimum(np.maximum(u.astype(np.int64), 0), self.rho.size - 2)
         air = self.table.take(i, axis=1)  # rows: density, speed of sound, gravity
-        air += (u - i) * self.slope.take(i, axis=1)
+        slope = self.slope.take(i, axis=1)
+        air += (u - i) * slope
+        if slopes is not None:
+            slopes.append(slope)
         # 0.1 = 1 / (10 m reference); held above the cap
         # (np.minimum/np.maximum: np.clip costs several times more per call on arrays this size)
         if self.calm:
@@ -128,16 +133,19 @@ def _make_group(frame: Airframe, s: FlightSettings) -> _Group:
                   cds_powered=np.array(frame.drag_cds_powered) if frame.drag_table_powered else None)
 
 
-def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz):
+def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates: bool = False):
     """Accelerations (ax, ay, az), Mach and dynamic pressure of every active flight; arrays of shape (n_active,).
 
     ``a`` holds the active flights' parameters and phase flags (compacted with the state). In a
-    planar group ``ay`` is None (y and its speed stay 0).
+    planar group ``ay`` is None (y and its speed stay 0). With ``rates``, a sixth item: the time
+    derivatives of speed² over the ground [m²/s³], of dynamic pressure [Pa/s] and of Mach [1/s] (see
+    :func:`_figure_rates`), by which a step tells that one of the flown maxima lies inside it.
     """
     dt = t - a["seg_t"]
     thrust = a["seg_f"] + a["seg_s"] * dt  # the segment's coefficients: 0 while coasting
     inv_mass = 1.0 / (a["seg_m0"] + (a["seg_m1"] + a["seg_m2"] * dt) * dt)
-    rho, sound, grav, shape = g.lookup(z)
+    slopes: list | None = [] if rates else None
+    rho, sound, grav, shape = g.lookup(z, slopes)
     wind_x, wind_y = g.wind(a, z, shape)
     vrx = vx if g.calm else vx - wind_x
     if g.planar:
@@ -166,4 +174,37 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz):
         az = np.where(on_rail, a_rail * uz, az)
         if ay is not None:
             ay = np.where(on_rail, a_rail * a["uy"], ay)
+    if rates:
+        return ax, ay, az, mach, half_rho_v * speed, _figure_rates(g, a, z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax,
+                                                                   ay, az, speed, rho, sound, slopes[0])
     return ax, ay, az, mach, half_rho_v * speed
+
+
+def _figure_rates(g: _Group, a: dict[str, np.ndarray], z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax, ay, az, speed,
+                  rho, sound, slope) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Signs that matter of the time derivatives of speed over the ground, dynamic pressure q = ½·ρ·|v_rel|² and
+    Mach |v_rel|/a, with v_rel = v − wind: v·(dv/dt), dq/dt [Pa/s] and dM/dt·a·|v_rel| [m²/s³] (each a positive
+    multiple of the derivative). d(|v_rel|²)/dt = 2·v_rel·(dv/dt − dwind/dz·vz); dρ/dt = ρ'(z)·vz and
+    da/dt = a'(z)·vz from the air tables' slopes (``slope``, per table step); the power-law wind's dw/dz = p·w/z
+    between its floor and cap, a measured profile's by a central difference over 2 cm."""
+    per_m = 1.0 / g.step_m
+    rel_ax, rel_ay = ax, ay
+    if not g.calm:
+        if g.profile is None:
+            inside = (z > g.wind_floor_m) & (z < g.wind_cap_m)
+            rel_ax = ax - np.where(inside, wind_x * g.wind_exponent / np.maximum(z, 1e-300), 0.0) * vz
+        else:
+            east_hi, north_hi = g.profile.velocity_m_s(z + 0.01)
+            east_lo, north_lo = g.profile.velocity_m_s(z - 0.01)
+            d_east, d_north = (east_hi - east_lo) * 50.0, (north_hi - north_lo) * 50.0
+            rel_ax = ax - (d_east * a["e1e"] + d_north * a["e1n"]) * vz
+            if vry is not None:
+                rel_ay = ay - (d_east * a["e2e"] + d_north * a["e2n"]) * vz
+    rel_dot = vrx * rel_ax + vz * az  # v_rel · dv_rel/dt
+    ground_dot = vx * ax + vz * az
+    if vry is not None:
+        rel_dot = rel_dot + vry * rel_ay
+        ground_dot = ground_dot + vy * ay
+    dq = rho * rel_dot + (0.5 * per_m) * slope[0] * vz * (speed * speed)
+    dmach = rel_dot - (per_m * speed * speed / sound) * slope[1] * vz
+    return ground_dot, dq, dmach

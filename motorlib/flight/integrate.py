@@ -62,6 +62,7 @@ import numpy as np
 from .airframe import Airframe, Recovery
 from .delays import DEFAULT_DRILL_STEP_S
 from .dynamics import _accel, _basis, _Group, _make_group
+from .peaks import interior_peaks
 from .events import (_deploy_altitude_reached, _ejection_steps, _liftoff, _locate_apogee, _locate_ejections,
                      _locate_landing,
                      _rail_exit, _StepEnds, _thrust_to_weight)
@@ -455,6 +456,8 @@ class _Pass:
     apogee_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)  # steps that hold an apogee
     landing_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)
     ejection_steps: list[tuple[np.ndarray, _StepEnds, np.ndarray]] = field(default_factory=list)
+    # steps that hold a maximum of speed, q or Mach: positions, ends, the wind's parameters
+    peak_steps: list[tuple[np.ndarray, _StepEnds, dict[str, np.ndarray]]] = field(default_factory=list)
 
     @classmethod
     def start(cls, pack: MotorPack, idx: np.ndarray, keep_history: bool, timer_s: np.ndarray | None = None,
@@ -513,8 +516,10 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     run = _Pass.start(pack, idx, traj is not None, timer_s, stop_at_apogee)
     a = _active_arrays(run, state0, seg0, params, s, deploy_altitude_m, descent, stop_time_s, under_device)
     _load_segment(a, run, None)
-    a["ax"], ay, a["az"], mach0, q0 = _accel(g, a, a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"])
+    a["ax"], ay, a["az"], mach0, q0, rates0 = _accel(g, a, a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"],
+                                                      a["vz"], rates=True)
     a["ay"] = a["zeros"] if ay is None else ay
+    a["rate_v"], a["rate_q"], a["rate_mach"] = rates0
     a["mach"] = mach0
     if descent:  # the start state was flown: it counts in the maxima
         a["max_speed"], a["max_mach"], a["max_q"] = np.sqrt(a["vx"]**2 + a["vy"]**2 + a["vz"]**2), mach0, q0
@@ -530,6 +535,8 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     if run.landing_steps:
         _locate_landing(run.landing_steps, run.landing)
     _locate_ejections(run.ejection_steps, run.queries_s, run.ejection)
+    if run.peak_steps:
+        _interior_maxima(g, run)
     _write_results(run, idx, out, descent)
     if traj is not None:
         _store_history(run.history, idx, traj, under_device)
@@ -649,7 +656,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     if a["any_rail"]:
         _rail_exit(a, run.rail_exit_t, run.rail_exit_v, run.status, t1, x1, y1, z1, vx1, vy1, vz1)
     # ---- derivative at the new state: the error estimate's last stage and the next step's first ----
-    ax1, ay1, az1, mach1, q1 = _accel(g, a, t1, x1, y1, z1, vx1, vy1, vz1)
+    ax1, ay1, az1, mach1, q1, rates1 = _accel(g, a, t1, x1, y1, z1, vx1, vy1, vz1, rates=True)
     if ay1 is None:
         ay1 = a["zeros"]
     # ---- error control: a step that switched the dynamics (rail exit, burnout, failure) is taken as it is ----
@@ -681,6 +688,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
             ((a["x"], x1), (a["y"], y1), (a["z"], z1), (a["vx"], vx1), (a["vy"], vy1), (a["vz"], vz1),
              (a["ax"], ax1), (a["ay"], ay1), (a["az"], az1), (t, t1)))
         mach1, q1 = np.where(rejected, a["mach"], mach1), np.where(rejected, 0.0, q1)
+        rates1 = tuple(np.where(rejected, a[k], r) for k, r in zip(_RATES, rates1))
         back = rejected & hit_seg
         if back.any():  # back to the segment the flight is still in, burning
             a["seg"] = np.where(back, a["seg"] - 1, a["seg"])
@@ -689,7 +697,8 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     ends = _StepEnds(t, t1, t1 - t, a["x"], a["y"], a["z"], a["vx"], a["vy"], a["vz"], a["ax"], a["ay"], a["az"],
                      x1, y1, z1, vx1, vy1, vz1, ax1, ay1, az1)
     landed = _record_events(a, run, ends, s, deploy_altitude_m, descent)
-    # ---- running maxima, sampled at step ends above ground (every curve sample is a step end) ----
+    # ---- running maxima, sampled at step ends above ground (every curve sample is a step end); peaks inside a
+    # step are added after the loop (_interior_maxima) ----
     flown = ~landed  # the end of the step that reaches the ground lies below it: never flown
     if g.planar:
         speed2, acc2 = vx1 * vx1 + vz1 * vz1, ax1 * ax1 + az1 * az1
@@ -699,6 +708,16 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     np.maximum(a["max_mach"], mach1, out=a["max_mach"], where=flown)
     np.maximum(a["max_q"], q1, out=a["max_q"], where=flown)
     np.maximum(a["max_acc"], np.sqrt(acc2), out=a["max_acc"], where=flown)  # kinematic, gravity included
+    # ---- a maximum of speed, q or Mach inside the step (rising at its start, falling at its end): searched after
+    # the loop, all at once (_interior_maxima) ----
+    peaked = ((a["rate_v"] > 0.0) & (rates1[0] < 0.0)) | ((a["rate_q"] > 0.0) & (rates1[1] < 0.0)) | (
+        (a["rate_mach"] > 0.0) & (rates1[2] < 0.0))
+    if peaked.any():
+        peaked &= flown & ~switched & ~rejected
+        if peaked.any():
+            run.peak_steps.append((a["ref"][peaked], ends.select(peaked),
+                                   {k: a[k][peaked] for k in _wind_params(g)}))
+    a["rate_v"], a["rate_q"], a["rate_mach"] = rates1
     a.update(t=t1, x=x1, y=y1, z=z1, vx=vx1, vy=vy1, vz=vz1, ax=ax1, ay=ay1, az=az1, mach=mach1)
     if run.history is not None:
         run.history.append(tuple(a[k][~rejected] if rejected.any() else a[k].copy() for k in _HISTORY))
@@ -864,6 +883,44 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
             for key, value in zip(_STATE, (e.t1, e.x1, e.y1, e.z1, e.vx1, e.vy1, e.vz1)):
                 run.stop[key][r] = value[stopped]
     return landed
+
+
+# The time derivatives at the state of speed² over the ground, dynamic pressure and Mach (dynamics._figure_rates)
+_RATES = ("rate_v", "rate_q", "rate_mach")
+
+
+_PEAK_CHUNK: Final = 512  # steps searched together for interior maxima (27 x 512 values, 0.1 MB, per array)
+
+
+def _wind_params(g: _Group) -> tuple[str, ...]:
+    """The per-flight parameters the group's wind reads."""
+    return () if g.calm else ("wind",) if g.profile is None else ("e1e", "e1n", "e2e", "e2n")
+
+
+def _interior_maxima(g: _Group, run: _Pass) -> None:
+    """Raise the maxima of speed, q and Mach to the peaks inside the steps recorded in ``run.peak_steps``
+    (:func:`.peaks.interior_peaks`, all steps at once): the pass's maxima, and those up to apogee, to the
+    deployment altitude and to each ejection instant where the step ends by then (these were taken at the start
+    of the step that holds the event, so a peak in that step itself stays out, as its end does)."""
+    refs = np.concatenate([r for r, _, _ in run.peak_steps])
+    ends = _StepEnds(*map(np.concatenate, zip(*[e for _, e, _ in run.peak_steps])))
+    params = {k: np.concatenate([p[k] for _, _, p in run.peak_steps]) for k in _wind_params(g)}
+    names = ("z", "vx", "vy", "vz", "ax", "ay", "az")
+    peaks = np.empty((3, refs.size))
+    for lo in range(0, refs.size, _PEAK_CHUNK):  # in chunks: the search holds (27, chunk) arrays
+        part = slice(lo, lo + _PEAK_CHUNK)
+        peaks[:, part] = interior_peaks(g, {k: v[part] for k, v in params.items()}, ends.h[part],
+                                        ({k: getattr(ends, f"{k}0")[part] for k in names},
+                                         {k: getattr(ends, f"{k}1")[part] for k in names}), g.planar)
+    for name, value in zip(("max_speed", "max_q", "max_mach"), peaks):
+        np.maximum.at(run.maxima[name], refs, value)
+        for store in (run.apogee, run.at_deploy):
+            by_then = ends.t1 <= store["t"][refs]  # NaN (no such event): False
+            np.maximum.at(store[name], refs[by_then], value[by_then])
+        ejection = run.ejection
+        for j in range(ejection["t"].shape[1]):
+            by_then = ends.t1 <= ejection["t"][refs, j]
+            np.maximum.at(ejection[name][:, j], refs[by_then], value[by_then])  # a view: in place
 
 
 def _retire(a: dict, run: _Pass, s: FlightSettings, landed: np.ndarray, t1: np.ndarray, steps: int,

@@ -68,8 +68,11 @@ class FlightResults:
     0.1 s of the curve over the liftoff weight (m·g0); ``average_thrust_to_weight``
     the total impulse over the time from the first sample to burnout, over the same
     weight; ``max_acceleration_m_s2`` the largest magnitude of the trajectory's
-    (kinematic) acceleration; maxima are sampled at step ends, and every curve
-    sample is a step end. ``max_acceleration_m_s2`` covers the flight until the
+    (kinematic) acceleration. Maxima are taken at step ends (every curve sample is
+    one), and speed, Mach and dynamic pressure also inside a step that holds their
+    peak (thrust falling below drag in a long curve segment, say: found from the
+    step's cubic Hermite interpolant, :mod:`motorlib.flight.peaks`); the
+    acceleration's only at step ends. ``max_acceleration_m_s2`` covers the flight until the
     first device opens (the opening is an instant change of drag in this model:
     its jolt is ``opening_load_n``). ``burnout_time_s`` is where the thrust curve
     reaches zero for good, and ejection delays count from it.

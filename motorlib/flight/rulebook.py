@@ -361,7 +361,8 @@ _MESSAGES: dict[str, _Message] = {
                                            f"(limit {r.max_landing_speed_m_s:g} m/s): use a larger recovery device"),
     "constant-cd-past-mach": lambda x, i, k, r, c: (f"the rocket reaches Mach {x.max_mach[i]:.2f} with a constant drag "
                                                     "coefficient, which ignores the transonic drag rise and overstates "
-                                                    "apogee and the optimal delay; give a drag_table or a [geometry]"),
+                                                    "apogee and the optimal delay; give a drag_table, or a [geometry] without "
+                                                    "a drag_coefficient (the shape's estimate then applies)"),
     "deployment-fast": _deployment_fast,
     "deployment-while-burning": lambda x, i, k, r, c: (f"the {x.device_kinds[k]} opens at {x.deployment_time_s[i, k]:.2f} s, "
                                                        f"while the motor still burns (burnout {x.burnout_time_s[i]:.2f} s)"),
