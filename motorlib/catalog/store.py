@@ -184,7 +184,10 @@ class Catalog:
     def _lock(self) -> Iterator[None]:
         """An exclusive lock between writer processes (fcntl where available)."""
         if self.read_only:
-            raise CatalogError(f"{self.root}: the catalog is read-only")
+            marker = self.root / READ_ONLY_MARKER
+            raise CatalogError(f"{self.root}: the catalog is read-only" + (
+                f" (its {READ_ONLY_MARKER} file makes it so, as in the bundled samples; delete {marker} to change "
+                "this copy)" if marker.is_file() else " (opened read-only)"))
         path = self.root / INDEX_DIR / "lock"
         path.parent.mkdir(exist_ok=True)
         with open(path, "a+b") as handle:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import sys
+from pathlib import Path
 from contextlib import contextmanager
 from typing import Any, Callable, Iterator
 
@@ -207,11 +208,12 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
 
     shown = display_units(units)
     cat = _open_catalog(catalog_dir)
-    _check_outputs({"--plot": plot_path}, overwrite)
+    ids = [resolve_motor(cat, ref) for ref in refs]
+    curve_files = [cat.root / row.path for row in cat.rows(_ids(*ids)) if row.path] if ids else []
+    _check_outputs({"--plot": plot_path}, overwrite, curve_files)  # never over one of the curves shown
     console = _console()
     records = []
-    for ref in refs:
-        motor_id = resolve_motor(cat, ref)
+    for motor_id in ids:
         record = cat.get(motor_id)
         records.append((motor_id, record))
         report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0].handle}", True, record,
@@ -303,6 +305,12 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     from ..files.export import export_records
 
     cat = _open_catalog(catalog_dir)
+    target, root = Path(folder).resolve(), Path(cat.root).resolve()
+    if target == root or root in target.parents:
+        from .group import _InputError
+
+        raise _InputError(f"--to {folder}: is inside the catalog {cat.root}, whose curves would be added to it a "
+                          "second time (or replaced); choose a folder outside it")
     ids = [resolve_motor(cat, r) for r in refs] if refs else [r.motor_id for r in cat.rows(_filter(opts))]
     rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
     items = [(r.handle, cat.get(r.motor_id)) for r in rows]

@@ -87,8 +87,10 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
     frame = apply_field_day(load_airframe(airframe_file), pop_field_day(day))
-    motor, motor_file = load_motor(motor_ref, catalog_dir, delay_s)
+    motor, motor_file, label_delay = load_motor(motor_ref, catalog_dir, delay_s)
     lead = frame.recovery_devices[0] if frame.recovery_devices else None
+    if delay_s is None and label_delay is not None and (lead is None or lead.deploy == "ejection"):
+        delay_s = label_delay  # the label's delay (E9-6), as --delay 6 gives it
     if delay_s is not None and lead is not None and lead.deploy != "ejection":
         raise click.UsageError(f"--delay {delay_s:g}: the airframe file opens its {lead.device} by electronics "
                                f"(deploy = \"{lead.deploy}\"), so the motor's delay opens nothing; leave out --delay")

@@ -8,7 +8,7 @@ import click
 
 from .group import _InputError
 from .options import _metadata_for, _metadata_options
-from .output import _console
+from .output import _check_outputs, _console
 
 
 @click.command("import")
@@ -40,6 +40,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     from ..files.motor_xml import write_record
 
     console = _console()
+    _check_outputs({"--output": output}, overwrite, [csv_file, opts.get("meta_file")])
     try:
         meta = _metadata_for(opts, [csv_file])
         record = record_from_csv(csv_file, meta(csv_file) if callable(meta) else meta, time_unit=opts["time_unit"],

@@ -440,26 +440,67 @@ def resolve_motor(catalog: Any, ref: str) -> str:
         raise MotorNotFoundError(f"{exc}{hint} ('motorlib catalog list' lists them)") from None
 
 
-def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = None) -> tuple[Any, str | None]:
-    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; and its file.
+def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = None
+               ) -> tuple[Any, str | None, float | None]:
+    """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; its file; and
+    the delay [s] its reference names, when it is the label on a motor with one of its delays (``E9-6`` for the
+    catalog's ``E9-4,6,8``), else None.
 
     Refuses a ``--delay`` of ``delay_s`` [s] that the motor does not offer (one rule with the flight's:
-    :func:`motorlib.flight.delays.delay_problem`).
+    :func:`motorlib.flight.delays.delay_problem`), or that differs from the label's.
     """
     from pathlib import Path
 
+    from ..errors import MotorNotFoundError
     from ..files.curvefiles import load_curve_file
     from ..flight.delays import delay_problem
 
+    label_delay = None
     if Path(motor_ref).is_file():
         motor, path = load_curve_file(motor_ref), motor_ref
     else:
         catalog = _open_catalog(_catalog_or_samples(catalog_dir))
-        motor_id = resolve_motor(catalog, motor_ref)
+        try:
+            motor_id = resolve_motor(catalog, motor_ref)
+        except MotorNotFoundError as exc:
+            found = _label_with_delay(catalog, motor_ref)
+            if found is None:
+                raise
+            if isinstance(found, str):
+                raise MotorNotFoundError(found) from exc
+            motor_id, label_delay = found
+            if delay_s is not None and float(delay_s) != label_delay:
+                raise click.UsageError(f"--delay {float(delay_s):g}: the label {motor_ref} names its {label_delay:g} s "
+                                       "delay; give one or the other") from None
         row_path = next((row.path for row in catalog.rows() if row.motor_id == motor_id), None)
         motor, path = catalog.get(motor_id), (str(Path(catalog.root) / row_path) if row_path else None)
     problem = None if delay_s is None else delay_problem(float(delay_s), motor.delays_s, motor.delay_adjustable,
                                                      plugged=motor.no_ejection_charge)
     if problem:
         raise click.UsageError(f"--delay {float(delay_s):g}: {motor.designation} {problem}")
-    return motor, path
+    return motor, path, label_delay
+
+
+def _label_with_delay(catalog: Any, ref: str) -> tuple[str, float] | str | None:
+    """The motor and delay [s] that a label with one delay names (``E9-6``: the catalog's ``E9-4,6,8`` at 6 s);
+    a message when the label's motor is there but offers no such delay (or several motors carry the label);
+    None when no motor carries its designation."""
+    import re
+
+    match = re.fullmatch(r"\s*(.+?)-(\d+(?:\.\d+)?)\s*", ref)
+    if match is None:
+        return None
+    base, delay = match.group(1).casefold(), float(match.group(2))
+    rows = [row for row in catalog.rows() if row.designation and "-" in row.designation
+            and row.designation.rsplit("-", 1)[0].casefold() == base]
+    if not rows:
+        return None
+    offering = [row for row in rows if delay in catalog.get(row.motor_id).delays_s]
+    if len(offering) == 1:
+        return offering[0].motor_id, delay
+    if not offering:
+        offers = "; ".join(f"{row.designation} offers {', '.join(f'{d:g}' for d in catalog.get(row.motor_id).delays_s) or 'no'}"
+                           f" s" for row in rows)
+        return f"{ref!r}: no motor with that label offers a {delay:g} s delay ({offers}); name the motor and give --delay"
+    return (f"{ref!r}: several motors carry that label ({', '.join(row.handle for row in offering)}); name one by its "
+            "handle and give --delay")

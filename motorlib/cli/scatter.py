@@ -194,7 +194,9 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
     shown = display_units(units)
     frame = load_airframe(airframe_file)
     uncertainty = uncertainty_from_options(airframe_file, opts)
-    motor = _load_motor(motor_ref, catalog_dir, delay_s)[0]
+    motor, _, label_delay = _load_motor(motor_ref, catalog_dir, delay_s)
+    if delay_s is None and label_delay is not None:
+        delay_s = label_delay  # the label's delay (E9-6), as --delay 6 gives it
     from pathlib import Path
 
     catalog = None if Path(motor_ref).is_file() else _open_catalog(_catalog_or_samples(catalog_dir))

@@ -204,8 +204,9 @@ def robust_rank(frame: Airframe, records: Sequence[MotorRecord], match: MatchSet
 
     def key(c: dict[str, Any]) -> tuple:
         median = c["apogee_m"]["p50"]
-        closeness = abs(median - target) if (target is not None and median is not None) else 0.0
-        return (-c["p_success"], closeness, c["designation"])
+        # a motor with no median apogee (most of its flights never leave the rail) is never "close": last of its kind
+        closeness = math.inf if median is None else abs(median - target) if target is not None else 0.0
+        return (-c["p_success"], median is None, closeness, c["designation"])
 
     order = sorted(range(m), key=lambda i: key(candidates[i]))
     for i, j in zip(order, order[1:] + [None]):

@@ -21,7 +21,7 @@ __all__ = ["GOOD_VERDICTS", "VERDICTS", "Verdict", "classify", "miss_percent", "
 
 # Verdict word -> meaning (the legend of the result column). Order: best first.
 VERDICTS: Final = {
-    "pass": "fits, passes every rule and reaches the target within its tolerance",
+    "pass": "fits, passes every rule and, when a target is given, reaches it within its tolerance",
     "pass with ballast": "passes every rule and reaches the target with the solved ballast aboard",
     "off target": "flies safely but its apogee is outside the target's tolerance",
     "fail": "breaks a rule (the reason codes say which)",

@@ -263,3 +263,17 @@ def test_a_writer_waiting_for_another_says_so(tmp_path) -> None:
     holder.wait(timeout=30)
     holder.stdout.close()
     assert told == [True] and result.status == "added" and len(catalog) == 1
+
+
+def test_a_copied_read_only_marker_is_named_in_the_refusal(tmp_path: Path) -> None:
+    # a copy of the bundled samples keeps their READ_ONLY file: the refusal says so and how to lift it
+    import shutil
+
+    shutil.copytree(SAMPLE_DIR, tmp_path / "mine")
+    catalog = Catalog(tmp_path / "mine")
+    with pytest.raises(CatalogError, match=r"READ_ONLY.*delete"):
+        catalog.tag(["G59-10"], "x")
+    (tmp_path / "mine" / "READ_ONLY").unlink()
+    with pytest.raises(CatalogError, match="opened read-only") as caught:
+        Catalog(tmp_path / "mine", read_only=True).tag(["G59-10"], "x")
+    assert "READ_ONLY" not in str(caught.value)

@@ -136,3 +136,21 @@ def test_adding_a_folder_again_does_not_list_every_duplicate(tmp_path: Path) -> 
     one = next(SAMPLE_DIR.glob("*.xml"))
     code, out = run("catalog", "add", "--catalog", cat, str(one))
     assert "duplicate" in out and "already in the catalog as" in " ".join(out.split())
+
+
+def test_export_and_plot_never_land_in_the_catalog(tmp_path: Path) -> None:
+    # an export into the catalog's own folder would add every curve to it a second time (and, with --overwrite,
+    # could replace its files); a plot over one of its curves would destroy it: both refused, nothing written
+    cat = tmp_path / "motors"
+    assert run("catalog", "add", "--catalog", str(cat), str(SAMPLE_DIR))[0] == 0
+    before = sorted(p.name for p in cat.rglob("*") if p.is_file())
+    for folder in (cat, cat / "sub"):
+        code, out = run("catalog", "export", "--catalog", str(cat), "--to", str(folder), "--format", "xml",
+                        "--overwrite")
+        assert code == 2 and "inside the catalog" in out, out
+    curve = next(cat.rglob("*g59-10*.xml"))
+    text = curve.read_bytes()
+    code, out = run("catalog", "show", "--catalog", str(cat), "G59-10", "--plot", str(curve), "--overwrite")
+    assert code == 2 and "is an input of this command" in out, out
+    assert curve.read_bytes() == text
+    assert sorted(p.name for p in cat.rglob("*") if p.is_file()) == before

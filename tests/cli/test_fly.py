@@ -131,3 +131,16 @@ def test_fly_says_when_the_motor_cannot_go_in_the_mount() -> None:
     assert any("98 mm motor in a 29 mm mount" in m for m in fit) and any("702 mm long" in m for m in fit)
     code, out = run("fly", str(SAMPLE_DIR / "airframes" / "quibble-41.toml"), "--motor", "F29-8", "--json")
     assert "motor-does-not-fit" not in [w["code"] for w in json.loads(out)["warnings"]]
+
+
+def test_fly_takes_the_label_on_the_motor_with_one_of_its_delays() -> None:
+    # the label printed on a motor names one delay ("E9-4"); the catalog lists the motor once with all its delays
+    # ("E9-4,6,8"): the label flies that motor at that delay, as --motor 'E9-4,6,8' --delay 4 does
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "E9-6", "--json")
+    assert code in (0, 1), out
+    data = json.loads(out)
+    assert data["motor"] == "E9-4,6,8" and data["chosen_delay_s"] == 6.0
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "E9-6", "--delay", "4")
+    assert code == 2 and "E9-6" in out and "6 s" in out, out
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "E9-5")
+    assert code == 2 and "E9-4,6,8" in out and "4, 6, 8" in out, out

@@ -55,3 +55,18 @@ def test_cli_source_kinds_match_the_records() -> None:
     from motorlib.motor.record import PROVENANCE_KINDS
 
     assert tuple(SOURCE_KINDS) == tuple(PROVENANCE_KINDS)
+
+
+def test_import_never_writes_over_its_own_inputs(tmp_path: Path) -> None:
+    # a raw stand log written over by its own record is lost: refused even with --overwrite (README: no output
+    # ever replaces one of the command's inputs), and the log is left byte for byte
+    log = tmp_path / "stand.csv"
+    log.write_bytes((FIXTURE_DIR / "sound_d12.csv").read_bytes())
+    meta = tmp_path / "meta.toml"
+    meta.write_text('designation = "D12-5"\n')
+    before = log.read_bytes(), meta.read_bytes()
+    code, out = run("import", str(log), "-o", str(log), "--designation", "D12-5", "--overwrite")
+    assert code == 2 and "is an input of this command" in out, out
+    code, out = run("import", str(log), "-o", str(meta), "--meta", str(meta), "--overwrite")
+    assert code == 2 and "is an input of this command" in out, out
+    assert (log.read_bytes(), meta.read_bytes()) == before

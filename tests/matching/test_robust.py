@@ -128,3 +128,15 @@ def test_stability_is_judged_on_every_sampled_flight(quibble, motors) -> None:
     matched = [m for m in rank(quibble, cat, MatchSettings(allow_smaller_motors=True)).candidates
                if m.designation == "F29-8"][0]
     assert flat == pytest.approx([matched.stability_margin_cal] * 3, rel=1e-9)
+
+
+def test_a_motor_that_never_flies_ranks_below_those_that_do(quibble, motors) -> None:
+    # among motors that all fail (0 % success), one stuck on the rail (no apogee at all) must not rank above those
+    # that fly: before, its missing apogee counted as "on target"
+    a8 = load_curve_file(SAMPLE_DIR / "teakettle-thrust-co_a8-3-5.xml")
+    robust = RobustSettings(n_samples=20, altitude_window_m=(250.0, 260.0))
+    result = robust_rank(quibble, [a8, motors[1]], MatchSettings(), Uncertainty(), robust, ids=["a8", "f29"])
+    by_id = {c["motor_id"]: c for c in result["candidates"]}
+    assert by_id["a8"]["apogee_m"]["p50"] is None and by_id["f29"]["apogee_m"]["p50"] is not None
+    assert by_id["a8"]["p_success"] == by_id["f29"]["p_success"] == 0.0
+    assert [c["motor_id"] for c in result["candidates"]] == ["f29", "a8"]
