@@ -10,9 +10,12 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from types import MappingProxyType
-from typing import Final, Mapping, Sequence
+from typing import TYPE_CHECKING, Final, Mapping, Sequence
 
 import numpy as np
+
+if TYPE_CHECKING:  # annotation only: pandas loads when to_frame is called
+    import pandas
 
 from .delays import nearest_delay_column
 from ..motor.record import freeze_arrays, read_only_copy
@@ -143,7 +146,7 @@ class FlightResults:
         return (f"FlightResults({self.n_flights} flights, {ok} ok; {span}; "
                 f"trajectories {'kept' if self.trajectories is not None else 'not kept'})")
 
-    def to_frame(self, index: Sequence[object] | None = None) -> "pandas.DataFrame":  # noqa: F821
+    def to_frame(self, index: Sequence[object] | None = None) -> "pandas.DataFrame":
         """One row per flight with every per-flight figure (SI, as the attribute names say).
 
         pandas is imported only here. ``index`` labels the rows (e.g. the motors' designations); by default

@@ -309,21 +309,22 @@ def _candidates_of(rows: Sequence[CatalogRow], fit_reasons: Sequence[list[tuple[
     ballasts = figure_columns.get("ballast_kg", nothing)
     ballast_reasons = figure_columns.get("ballast_reasons", nothing)
     texts, codes_of, note_texts, note_codes, verdicts, passes, ballast_passes = [], [], [], [], [], [], []
-    for i, row in enumerate(rows):
-        reasons, notes = reasons_of[i], notes_of[i]
-        fits = not fit_reasons[i]
+    target_m, tolerance = s.target_m, s.target_tolerance
+    for i, (row, reasons, notes, adapter) in enumerate(zip(rows, reasons_of, notes_of, adapters)):
         if row.n_errors:  # never hidden: the flight is of the curve, the flyer buys the label
             reasons = reasons + [("curve-errors", _curve_errors_text(row.n_errors))]
-        if adapters[i] is not None and fits:
-            notes = [("adapter", f"needs a {adapters[i]} adapter")] + notes
-        codes = [code for code, _ in reasons]
-        verdict = classify(codes, apogees[i], s.target_m, s.target_tolerance, ballast_kg=ballasts[i],
+        if adapter is not None and not fit_reasons[i]:
+            notes = [("adapter", f"needs a {adapter} adapter")] + notes
+        codes, reason_texts = zip(*reasons) if reasons else ((), ())  # (pairs -> two tuples)
+        verdict = classify(codes, apogees[i], target_m, tolerance, ballast_kg=ballasts[i],
                            ballast_reasons=ballast_reasons[i])
-        notes = notes + list(verdict.notes)
-        texts.append(tuple(text for _, text in reasons))
-        codes_of.append(tuple(codes))
-        note_texts.append(tuple(text for _, text in notes))
-        note_codes.append(tuple(code for code, _ in notes))
+        if verdict.notes:
+            notes = notes + list(verdict.notes)
+        codes_n, texts_n = zip(*notes) if notes else ((), ())
+        texts.append(reason_texts)
+        codes_of.append(codes)
+        note_texts.append(texts_n)
+        note_codes.append(codes_n)
         verdicts.append(verdict.verdict)
         passes.append(verdict.passes)
         ballast_passes.append(verdict.ballast_passes)

@@ -8,9 +8,7 @@ output for each maximum.
 from __future__ import annotations
 
 import math
-from dataclasses import replace
 
-import numpy as np
 import pytest
 
 from motorlib import MotorRecord

@@ -26,7 +26,6 @@ from motorlib.flight.stability import (
     default_nose_weight_position_m,
     nose_weight_kg,
     stability_for,
-    stability_for_pack,
     stability_for_records,
     stability_margin_cal,
     stability_margins,

@@ -98,9 +98,9 @@ def _identity(**kwargs) -> dict:
     dict(fits=False, notes=("n",), note_codes=("adapter",), ballast_reasons=["x"], ballast_reason_codes=["y"],
          ballast_kg=0.1, ballast_passes=False),
 ])
-def test_from_fields_builds_the_same_record_as_the_constructor(extra) -> None:
+def test_one_row_of_columns_builds_the_same_record_as_the_constructor(extra) -> None:
     values = _identity(**extra)
-    fast, slow = Candidate.from_fields(dict(values)), Candidate(**values)
+    fast, slow = _one(values), Candidate(**values)
     assert fast == slow and type(fast) is Candidate
     assert list(fast.__dict__) == [f.name for f in dataclasses.fields(Candidate)]  # the JSON key order
     assert fast.as_dict() == slow.as_dict() and list(fast.as_dict()) == list(slow.as_dict())
@@ -109,12 +109,18 @@ def test_from_fields_builds_the_same_record_as_the_constructor(extra) -> None:
         fast.apogee_m = 1.0  # type: ignore[misc]
 
 
-def test_from_fields_refuses_what_the_constructor_refuses() -> None:
+def _one(values: dict) -> Candidate:
+    """The candidate of one row of columns (Candidate.from_columns)."""
+    (candidate,) = Candidate.from_columns({name: [value] for name, value in values.items()})
+    return candidate
+
+
+def test_columns_refuse_what_the_constructor_refuses() -> None:
     with pytest.raises(TypeError, match="no field 'apogee'"):
-        Candidate.from_fields(_identity(apogee=1.0))
+        _one(_identity(apogee=1.0))
     values = _identity()
     del values["maker"]
     with pytest.raises(TypeError, match="needs field 'maker'"):
-        Candidate.from_fields(values)
+        _one(values)
     with pytest.raises(ValueError, match="F10-4: every reason and note needs its code"):
-        Candidate.from_fields(_identity(reasons=("a",)))
+        _one(_identity(reasons=("a",)))

@@ -16,7 +16,6 @@ from motorlib.flight import simulate
 from motorlib.flight.rules import LaunchRules
 from motorlib.matching import MatchSettings, rank
 from motorlib.motor import CatalogRow
-from motorlib.flight.rules import LaunchRules
 
 from ..conftest import SAMPLE_DIR
 

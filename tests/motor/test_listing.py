@@ -60,21 +60,6 @@ def test_as_dict_is_plain_json_in_column_order() -> None:
 
 
 @pytest.mark.parametrize("findings", [None, "listed"])
-def test_from_fields_builds_the_same_row_as_the_constructor(findings) -> None:
-    record = read_record(G59)
-    row = CatalogRow.from_record(record, "abc", path="maker/g59-10.xml")
-    values = dict(row.__dict__, delays_s=[int(d) for d in row.delays_s], delay_adjustable=1,
-                  findings=None if findings is None else list(row.findings))  # as the index's columns give them
-    fast, slow = CatalogRow.from_fields(dict(reversed(values.items()))), CatalogRow(**values)
-    assert fast == slow and list(fast.__dict__) == list(ROW_COLUMNS) and fast.as_dict() == slow.as_dict()
-    assert type(fast.delays_s) is tuple and all(type(d) is float for d in fast.delays_s)
-    assert fast.delay_adjustable is True and (fast.findings is None or type(fast.findings) is tuple)
-    with pytest.raises(dataclasses.FrozenInstanceError):
-        fast.maker = "x"  # type: ignore[misc]
-
-
-
-@pytest.mark.parametrize("findings", [None, "listed"])
 def test_from_columns_builds_the_same_rows_as_the_constructor(findings) -> None:
     # issue 16: the catalog's batch builder, pinned to the constructor field by field and in type
     record = read_record(G59)
@@ -94,10 +79,3 @@ def test_from_columns_builds_the_same_rows_as_the_constructor(findings) -> None:
         with pytest.raises(dataclasses.FrozenInstanceError):
             row.maker = "x"  # type: ignore[misc]
 
-def test_from_fields_refuses_a_missing_or_unknown_field() -> None:
-    values = dict(CatalogRow.from_record(read_record(G59), "abc").__dict__)
-    with pytest.raises(TypeError, match="has no field 'colour'"):
-        CatalogRow.from_fields({**values, "colour": "red"})
-    del values["maker"]
-    with pytest.raises(TypeError, match="needs field 'maker'"):
-        CatalogRow.from_fields(values)
