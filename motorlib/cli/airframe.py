@@ -59,7 +59,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
         try:
             written = airframe_plot(frame, summary, plot_path, overwrite=overwrite, units=display_units(units))
         except FileExistsError as exc:
-            raise _InputError(f"{exc}; use --overwrite to replace it") from exc
+            raise _InputError(f"{exc}; choose another name or use --overwrite to replace it") from exc
     if as_json:
         payload = {**summary, "plot": None if written is None else str(written), "caution": _EPILOG}
         click.echo(_strict_json(payload, indent=2))

@@ -320,7 +320,7 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     except FileExistsError as exc:
         from .group import _InputError
 
-        raise _InputError(f"{exc}; use --overwrite to replace them") from None
+        raise _InputError(f"{exc}; choose another folder or use --overwrite to replace them") from None
     from rich.markup import escape
 
     _console().print(f"Exported {len(rows)} motor(s) to {len(written)} file(s) in {escape(folder)}")

@@ -59,7 +59,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     try:
         path = write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
-        raise _InputError(f"{exc}; use --overwrite to replace it") from exc
+        raise _InputError(f"{exc}; choose another name or use --overwrite to replace it") from exc
     console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
                   f"{render.impulse_text(record.total_impulse_ns)} N·s, "
                   f"{record.computed_designation()}")

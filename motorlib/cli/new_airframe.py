@@ -34,7 +34,7 @@ def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
     try:
         written = write_atomic(path, text.encode(), overwrite=overwrite)
     except FileExistsError as exc:
-        raise _InputError(f"{exc}; use --overwrite to replace it") from None
+        raise _InputError(f"{exc}; choose another name or use --overwrite to replace it") from None
     from rich.markup import escape
 
     _console().print(f"Wrote {escape(str(written))}: edit the values, then try "

@@ -137,7 +137,7 @@ def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force
     try:
         return write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
-        raise click.ClickException(f"{exc}; use --overwrite to replace it") from exc
+        raise click.ClickException(f"{exc}; choose another name or use --overwrite to replace it") from exc
 
 
 def _log_summary(reductions: list[tuple[str, Any]]) -> list[dict[str, Any]]:

@@ -60,7 +60,7 @@ def export_records(items: Sequence[tuple[str, MotorRecord]], folder: str | os.Pa
     existing = [str(path) for path, _ in targets if os.path.lexists(path)]
     if existing and not overwrite:
         more = f" (and {len(existing) - 1} more)" if len(existing) > 1 else ""
-        raise FileExistsError(f"{existing[0]}{more}: already exists (choose another folder or allow overwriting)")
+        raise FileExistsError(f"{existing[0]}{more}: already exists")
     out.mkdir(parents=True, exist_ok=True)
     if fmt == "json":
         payload = []
