@@ -35,9 +35,10 @@ apogee): the tolerance is 100 x looser there and positions are measured
 against the height left to fall where it exceeds v²/g0; a climb under a device
 (one that opened before apogee) keeps the ascent's tolerance. Descent steps are
 also bounded by the drag time scale (recovery_phase.py). On 290 varied descents
-this put the landing within 3.1 mm at worst (median 0.25 mm) of a DOP853
-reference flown from the same opening state, with 2.3 x fewer steps (issue 16,
-tests/benchmarks/bench_descent.py).
+this puts the landing within 8 mm and 0.7 ms at worst (median 0.36 mm) of a
+DOP853 reference flown from the same opening state, in a median 98 steps a
+descent (issue 16, tests/benchmarks/bench_descent.py); flown from liftoff, the
+ascent's own error carried down makes it 129 mm at worst (median 0.6 mm).
 Apogee, landing and ejection-delay instants are located inside a step by
 cubic Hermite interpolation of position and speed, using the derivatives at
 both ends. Finished flights are compacted out of the arrays.
@@ -126,10 +127,11 @@ class FlightSettings:
         fire before apogee, a ranking took 95 loop iterations instead of 110 (the
         climb to apogee under the device, 32 instead of 47), with the same apogee,
         deployment-speed and landing errors against the same flights at tolerance
-        1e-10 and fraction 0.02 (worst 2.8e-5, 8.4e-5 and 9 cm); the 58 descents of
-        tests/benchmarks/bench_descent.py --quick land within 4.5 mm of the DOP853
-        reference flown from the same opening state (2.7 mm at 0.1). Our choice, no
-        published source.
+        1e-10 and fraction 0.02 (worst 2.8e-5, 8.4e-5 and 9 cm); the 290 descents of
+        tests/benchmarks/bench_descent.py took a median 98 steps instead of 110 and
+        land within 8.0 mm of the DOP853 reference flown from the same opening state
+        (6.0 mm at 0.1; median 0.36 mm against 0.16 mm). Our choice, no published
+        source.
     wind_exponent : float
         Power-law exponent of the wind profile, 1/7 (common practice, no published source).
     wind_floor_m : float
@@ -745,10 +747,10 @@ _AFTER_APOGEE_TOLERANCE_FACTOR: Final = 10.0
 # against the height left to fall when it exceeds v²/g0 (a position error made high up is no larger a share of the
 # fall than one made low down). Measured with the descent step rules of recovery_phase.py on 290 varied descents
 # (tests/synthetic.py descent_flights, 3-D, winds to 8 m/s, single and dual deployments; tests/benchmarks/
-# bench_descent.py): landing within 3.1 mm and 0.18 ms at worst (median 0.25 mm) of the DOP853 reference flown from
-# the same opening state, against 0.1 mm before with 2.3 x the steps. Measuring speed errors against the height
-# left as well saved another 7 % of the steps for 10 x the error (worst 3 cm): not taken. Our choice, no published
-# source.
+# bench_descent.py), with the Dormand–Prince pair: landing within 8 mm and 0.7 ms at worst (median 0.36 mm) of the
+# DOP853 reference flown from the same opening state (under RK4, 3.1 mm against 0.1 mm at the full tolerance, with
+# 2.3 x the steps). Measuring speed errors against the height left as well saved another 7 % of the steps for 10 x
+# the error (worst 3 cm): not taken. Our choice, no published source.
 _DESCENT_TOLERANCE_FACTOR: Final = 100.0
 # In the ascent, a step cut by a step rule to under this fraction of the controller's proposal leaves the proposal
 # as it was (unless rejected): on 1,000 synthetic flights such steps (at the wind's 1 m floor on the rail, mostly) each
