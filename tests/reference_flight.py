@@ -174,7 +174,7 @@ class OwnModel:
 
 
 def rail_exit(model: OwnModel, u: np.ndarray, toward: np.ndarray, *, rtol: float, atol: float,
-              method: str = "DOP853") -> tuple[float, float, float] | None:
+              method: str = "DOP853", on_piece=None) -> tuple[float, float, float] | None:
     """Time [s], distance along the rail [m] (its length, to the event's precision) and speed [m/s] at the
     rail's end, or None when the rocket never leaves it.
 
@@ -197,7 +197,10 @@ def rail_exit(model: OwnModel, u: np.ndarray, toward: np.ndarray, *, rtol: float
     y, t = np.array([0.0, 0.0]), model.liftoff_s
     for t_next in model.knots:
         end = min(t_next, t + 100.0)
-        sol = solve_ivp(rhs, (t, end), y, method=method, rtol=rtol, atol=atol, events=at_end)
+        sol = solve_ivp(rhs, (t, end), y, method=method, rtol=rtol, atol=atol, events=at_end,
+                        dense_output=on_piece is not None)
+        if on_piece is not None:  # the piece's dense output (distance, speed along the rail) and its span
+            on_piece(sol.sol, t, float(sol.t[-1]))
         if sol.t_events[0].size:
             return float(sol.t_events[0][0]), float(sol.y_events[0][0][0]), float(sol.y_events[0][0][1])
         t, y = end, sol.y[:, -1]
@@ -210,16 +213,27 @@ def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10
     """Liftoff, rail exit and apogee of one flight in 2-D (x downwind, z up; the rail leans downwind).
 
     With ``maxima``, also the largest speed over the ground [m/s], dynamic pressure ½·ρ·|v_rel|² [Pa] and Mach
-    number |v_rel|/a from rail exit to apogee (``max_speed_m_s``, ``max_dynamic_pressure_pa``, ``max_mach``):
-    each piece of the free flight is solved with its dense output, sampled 400 times, and the best sample
-    refined by a bounded scalar search (scipy's minimize_scalar) between its neighbours.
+    number |v_rel|/a from liftoff to apogee (``max_speed_m_s``, ``max_dynamic_pressure_pa``, ``max_mach``):
+    each piece of the flight (on the rail, the motion along it as a 2-D state) is solved with its dense output,
+    sampled 400 times, and the best sample refined by a bounded scalar search (scipy's minimize_scalar) between
+    its neighbours.
     """
     model = OwnModel(frame, motor, wind_exponent=wind_exponent, wind_floor_m=wind_floor_m,
                      vary_gravity=vary_gravity, wind_cap_m=wind_cap_m)
     theta = frame.launch.rail_angle_rad
     ux, uz = math.sin(theta), math.cos(theta)
     t0, burnout = model.liftoff_s, model.burnout_s
-    exit_ = rail_exit(model, np.array([ux, 0.0, uz]), np.array([1.0, 0.0, 0.0]), rtol=rtol, atol=atol, method=method)
+    peaks = _Peaks(model) if maxima else None
+
+    def on_rail(dense, a: float, b: float) -> None:  # the rail phase counts too (a motor may burn out on it)
+        def state(tk: float) -> np.ndarray:
+            along, speed = dense(tk)
+            return np.array([along * ux, along * uz, speed * ux, speed * uz])
+
+        peaks.search(state, a, b)
+
+    exit_ = rail_exit(model, np.array([ux, 0.0, uz]), np.array([1.0, 0.0, 0.0]), rtol=rtol, atol=atol, method=method,
+                      on_piece=None if peaks is None else on_rail)
     if exit_ is None:
         return {"rail_exit_speed_m_s": math.nan, "apogee_m": math.nan, "apogee_time_s": math.nan,
                 "liftoff_time_s": t0, "rail_exit_time_s": math.nan, "apogee_downrange_m": math.nan}
@@ -239,9 +253,6 @@ def reference_flight(frame: Airframe, motor: MotorRecord, *, rtol: float = 1e-10
         return y[3]
 
     at_apogee.terminal, at_apogee.direction = True, -1
-    peaks = _Peaks(model) if maxima else None
-    if peaks is not None:
-        peaks.note(state)
     t = exit_t
     free_knots = [k_ for k_ in model.knots if k_ > exit_t and k_ <= burnout] + [math.inf]
     for t_next in free_knots:
@@ -272,10 +283,6 @@ class _Peaks:
         rho, a = self.model.air(z)
         return {"max_speed_m_s": math.hypot(vx, vz), "max_dynamic_pressure_pa": 0.5 * rho * rel * rel,
                 "max_mach": rel / a}
-
-    def note(self, y: np.ndarray) -> None:
-        for key, value in self.figures(y).items():
-            self.best[key] = max(self.best[key], value)
 
     def search(self, dense, t0: float, t1: float) -> None:
         from scipy.optimize import minimize_scalar

@@ -467,8 +467,9 @@ class _Pass:
     apogee_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)  # steps that hold an apogee
     landing_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)
     ejection_steps: list[tuple[np.ndarray, _StepEnds, np.ndarray]] = field(default_factory=list)
-    # steps that hold a maximum of speed, q or Mach: positions, ends, the wind's parameters
-    peak_steps: list[tuple[np.ndarray, _StepEnds, dict[str, np.ndarray]]] = field(default_factory=list)
+    # steps that hold a maximum of speed, q or Mach: positions, end times [s], lengths [s], start states
+    # (components, m), stages (7, components, m), the wind's parameters
+    peak_steps: list[tuple] = field(default_factory=list)
 
     @classmethod
     def start(cls, pack: MotorPack, idx: np.ndarray, keep_history: bool, timer_s: np.ndarray | None = None,
@@ -545,6 +546,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         _locate_apogee(run.apogee_steps, run.apogee)
     if run.landing_steps:
         _locate_landing(run.landing_steps, run.landing)
+        _landing_maxima(g, run, params)
     _locate_ejections(run.ejection_steps, run.queries_s, run.ejection)
     if run.peak_steps:
         _interior_maxima(g, run)
@@ -675,6 +677,8 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     # is continuous there and its last step is tested like any other)
     cut_off = ended & (run.end_thrust_n[a["ref"]] > 0.0) if ended.any() else ended
     switched = cut_off | (was_on_rail & ~a["on_rail"]) | (run.status[a["ref"]] != OK)
+    # the derivative at a cut-off's end with the thrust just before it: the burn's last step, for its maxima
+    pre_cut = _before_cut_off(g, a, run, cut_off, t1, x1, y1, z1, vx1, vy1, vz1) if cut_off.any() else None
     stages[6] = (vx1, vz1, ax1, az1) if g.planar else (vx1, vy1, vz1, ax1, ay1, az1)
     err = _error_ratio(g, a, s, h, stages)
     rejected = (err > 1.0) & ~switched
@@ -721,13 +725,24 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     np.maximum(a["max_acc"], np.sqrt(acc2), out=a["max_acc"], where=flown)  # kinematic, gravity included
     # ---- a maximum of speed, q or Mach inside the step (rising at its start, falling at its end): searched after
     # the loop, all at once (_interior_maxima) ----
-    peaked = ((a["rate_v"] > 0.0) & (rates1[0] < 0.0)) | ((a["rate_q"] > 0.0) & (rates1[1] < 0.0)) | (
-        (a["rate_mach"] > 0.0) & (rates1[2] < 0.0))
+    end_rates, end_acc = rates1, (ax1, ay1, az1)
+    if pre_cut is not None:  # a cut-off step: the rates and derivative at its end as the burn left them
+        at, acc_before, rates_before = pre_cut
+        end_rates, end_acc = tuple(r.copy() for r in rates1), tuple(v.copy() for v in end_acc)
+        for full, part in zip(end_rates + end_acc, rates_before + acc_before):
+            full[at] = part
+    peaked = ((a["rate_v"] > 0.0) & (end_rates[0] < 0.0)) | ((a["rate_q"] > 0.0) & (end_rates[1] < 0.0)) | (
+        (a["rate_mach"] > 0.0) & (end_rates[2] < 0.0))
     if peaked.any():
-        peaked &= flown & ~switched & ~rejected
+        peaked &= flown & ~(switched & ~cut_off) & ~rejected
         if peaked.any():
-            run.peak_steps.append((a["ref"][peaked], ends.select(peaked),
-                                   {k: a[k][peaked] for k in _wind_params(g)}))
+            k = stages[:, :, peaked]
+            half = k.shape[1] // 2
+            k[6, half:] = [acc[peaked] for acc in (end_acc[::2] if g.planar else end_acc)]
+            components = ("x", "z", "vx", "vz") if g.planar else ("x", "y", "z", "vx", "vy", "vz")
+            run.peak_steps.append((a["ref"][peaked], t1[peaked], h[peaked],
+                                   np.stack([a[c][peaked] for c in components]), k,
+                                   {name: a[name][peaked] for name in _wind_params(g)}))
     a["rate_v"], a["rate_q"], a["rate_mach"] = rates1
     a.update(t=t1, x=x1, y=y1, z=z1, vx=vx1, vy=vy1, vz=vz1, ax=ax1, ay=ay1, az=az1, mach=mach1)
     if run.history is not None:
@@ -908,30 +923,60 @@ def _wind_params(g: _Group) -> tuple[str, ...]:
     return () if g.calm else ("wind",) if g.profile is None else ("e1e", "e1n", "e2e", "e2n")
 
 
+def _before_cut_off(g: _Group, a: dict, run: _Pass, cut_off: np.ndarray, t1, x1, y1, z1, vx1, vy1, vz1
+                    ) -> tuple[np.ndarray, tuple, tuple]:
+    """Positions of the flights whose curve was cut off (ended above zero thrust) in this step, and their
+    acceleration (ax, ay, az) and figure rates at its end with the thrust of the burn's last segment: the step's
+    own derivative there (after it, the coast's takes over)."""
+    at = np.flatnonzero(cut_off)
+    n = cut_off.size
+    sub = {k: v[at] if isinstance(v, np.ndarray) and v.shape == (n,) else v for k, v in a.items()}
+    sub["burning"] = np.ones(at.size, dtype=bool)
+    _load_segment(sub, run, None)  # a["seg"] is past the last segment: the last one is loaded
+    ax, ay, az, _, _, rates = _accel(g, sub, t1[at], x1[at], y1[at], z1[at], vx1[at], vy1[at], vz1[at], rates=True)
+    return at, (ax, sub["zeros"] if ay is None else ay, az), rates
+
+
+def _wind_params(g: _Group) -> tuple[str, ...]:
+    """The per-flight parameters the group's wind reads."""
+    return () if g.calm else ("wind",) if g.profile is None else ("e1e", "e1n", "e2e", "e2n")
+
+
 def _interior_maxima(g: _Group, run: _Pass) -> None:
     """Raise the maxima of speed, q and Mach to the peaks inside the steps recorded in ``run.peak_steps``
     (:func:`.peaks.interior_peaks`, all steps at once): the pass's maxima, and those up to apogee, to the
     deployment altitude and to each ejection instant where the step ends by then (these were taken at the start
     of the step that holds the event, so a peak in that step itself stays out, as its end does)."""
-    refs = np.concatenate([r for r, _, _ in run.peak_steps])
-    ends = _StepEnds(*map(np.concatenate, zip(*[e for _, e, _ in run.peak_steps])))
-    params = {k: np.concatenate([p[k] for _, _, p in run.peak_steps]) for k in _wind_params(g)}
-    names = ("z", "vx", "vy", "vz", "ax", "ay", "az")
+    refs, t1, h, state, stages = (np.concatenate(part, axis=-1) for part in zip(*[r[:5] for r in run.peak_steps]))
+    params = {k: np.concatenate([r[5][k] for r in run.peak_steps]) for k in _wind_params(g)}
     peaks = np.empty((3, refs.size))
     for lo in range(0, refs.size, _PEAK_CHUNK):  # in chunks: the search holds (27, chunk) arrays
         part = slice(lo, lo + _PEAK_CHUNK)
-        peaks[:, part] = interior_peaks(g, {k: v[part] for k, v in params.items()}, ends.h[part],
-                                        ({k: getattr(ends, f"{k}0")[part] for k in names},
-                                         {k: getattr(ends, f"{k}1")[part] for k in names}), g.planar)
+        peaks[:, part] = interior_peaks(g, {k: v[part] for k, v in params.items()}, h[part], state[:, part],
+                                        stages[:, :, part], g.planar)
     for name, value in zip(("max_speed", "max_q", "max_mach"), peaks):
         np.maximum.at(run.maxima[name], refs, value)
         for store in (run.apogee, run.at_deploy):
-            by_then = ends.t1 <= store["t"][refs]  # NaN (no such event): False
+            by_then = t1 <= store["t"][refs]  # NaN (no such event): False
             np.maximum.at(store[name], refs[by_then], value[by_then])
         ejection = run.ejection
         for j in range(ejection["t"].shape[1]):
-            by_then = ends.t1 <= ejection["t"][refs, j]
+            by_then = t1 <= ejection["t"][refs, j]
             np.maximum.at(ejection[name][:, j], refs[by_then], value[by_then])  # a view: in place
+
+
+def _landing_maxima(g: _Group, run: _Pass, params: dict[str, np.ndarray]) -> None:
+    """The state at ground contact is flown: its speed, q and Mach count in the pass's maxima."""
+    r = np.flatnonzero(np.isfinite(run.landing["t"]))
+    vx, vy, vz = (run.landing[k][r] for k in ("vx", "vy", "vz"))
+    z = np.zeros(r.size)
+    rho, sound, _, shape = g.lookup(z)
+    wind_x, wind_y = g.wind({k: params[k][r] for k in _wind_params(g)}, z, shape)
+    vry = vy if wind_y is None else vy - wind_y
+    rel2 = (vx - wind_x) ** 2 + vry * vry + vz * vz
+    for name, value in (("max_speed", run.landing["speed"][r]), ("max_q", 0.5 * rho * rel2),
+                        ("max_mach", np.sqrt(rel2) / sound)):
+        run.maxima[name][r] = np.fmax(run.maxima[name][r], value)
 
 
 def _retire(a: dict, run: _Pass, s: FlightSettings, landed: np.ndarray, t1: np.ndarray, steps: int,

@@ -5,13 +5,16 @@ drag and weight in the middle of a long thrust-curve segment, say), where the st
 search they were low by up to 2.3 % in dynamic pressure and 0.5 % in speed on a 5,000-motor synthetic catalog
 (tests/synthetic.py), and by 0.6 % in speed for the long thrust tail in wind of tests/flight/test_flight_maxima.py.
 A step whose start and end rates of a figure (:func:`.dynamics._figure_rates`) show it rising and then falling
-holds such a maximum. The loop records those steps; after it, each step's cubic Hermite interpolant (positions from
-the speeds, speeds from the accelerations, at both ends) is searched on a grid of 17 points, then on 9 points
-around the best, and a parabola through the best three gives the peak. All recorded steps are searched together.
+holds such a maximum (for a thrust curve cut off above zero, its last burn step with the burn's own derivative at its
+end). The loop records those steps with their stages; after it, each step's state is followed inside it by the
+Dormand–Prince pair's continuous extension of order 4, searched on a grid of 17 points, then on 9 points around the
+best, and a parabola through the best three gives the peak. All recorded steps are searched together.
 numpy only.
 """
 
 from __future__ import annotations
+
+from typing import Final
 
 import numpy as np
 
@@ -22,34 +25,52 @@ __all__: list[str] = []
 _FIRST = np.linspace(0.0, 1.0, 17)  # the first grid over the step (fractions of it)
 _SECOND = np.linspace(0.0, 1.0, 9)  # the second, across the first grid's best point and its neighbours
 
+# The Dormand–Prince pair's continuous extension of order 4 (L. F. Shampine, "Some practical Runge-Kutta formulas",
+# Math. Comp. 46, 1986, pp. 135-150; the coefficients as scipy's RK45 carries them, which the tests compare): the
+# state at the fraction θ of a step h is y0 + h·Σᵢ kᵢ·Σⱼ P[i, j]·θ^(j+1) over the seven stages kᵢ.
+_DP_DENSE: Final = np.array([
+    [1.0, -8048581381 / 2820520608, 8663915743 / 2820520608, -12715105075 / 11282082432],
+    [0.0, 0.0, 0.0, 0.0],
+    [0.0, 131558114200 / 32700410799, -68118460800 / 10900136933, 87487479700 / 32700410799],
+    [0.0, -1754552775 / 470086768, 14199869525 / 1410260304, -10690763975 / 1880347072],
+    [0.0, 127303824393 / 49829197408, -318862633887 / 49829197408, 701980252875 / 199316789632],
+    [0.0, -282668133 / 205662961, 2019193451 / 616988883, -1453857185 / 822651844],
+    [0.0, 40617522 / 29380423, -110615467 / 29380423, 69997945 / 29380423],
+])
 
-def _hermite(theta: np.ndarray, h: np.ndarray, y0: np.ndarray, d0: np.ndarray, y1: np.ndarray,
-             d1: np.ndarray) -> np.ndarray:
-    """Cubic Hermite interpolant at fractions ``theta`` (shape (p, m)) of steps of length h (shape (m,)) between
-    values y0, y1 with time derivatives d0, d1 (shape (m,))."""
-    t2 = theta * theta
-    t3 = t2 * theta
-    return ((2.0 * t3 - 3.0 * t2 + 1.0) * y0 + (t3 - 2.0 * t2 + theta) * (h * d0)
-            + (3.0 * t2 - 2.0 * t3) * y1 + (t3 - t2) * (h * d1))
+
+def _dense(theta: np.ndarray, h: np.ndarray, state: np.ndarray, stages: np.ndarray, rows: tuple[int, ...]
+           ) -> list[np.ndarray]:
+    """The state components ``rows`` at fractions ``theta`` (shape (p, m)) of steps h (shape (m,)) from the start
+    states ``state`` (components, m) and the steps' stages (7, components, m), by the continuous extension."""
+    powers = np.stack([theta ** (j + 1) for j in range(4)])  # (4, p, m)
+    weights = np.tensordot(_DP_DENSE, powers, axes=(1, 0))  # (7, p, m): Σⱼ P[i, j]·θ^(j+1)
+    out = []
+    for c in rows:
+        total = weights[0] * stages[0, c]
+        for i in range(2, 7):  # stage 2's weights are zero
+            total = total + weights[i] * stages[i, c]
+        out.append(state[c] + h * total)
+    return out
 
 
-def _figures(g: _Group, params: dict[str, np.ndarray], theta: np.ndarray, h: np.ndarray,
-             ends: tuple[dict[str, np.ndarray], dict[str, np.ndarray]], planar: bool) -> np.ndarray:
+def _figures(g: _Group, params: dict[str, np.ndarray], theta: np.ndarray, h: np.ndarray, state: np.ndarray,
+             stages: np.ndarray, planar: bool) -> np.ndarray:
     """Speed over the ground [m/s], dynamic pressure [Pa] and Mach at fractions ``theta`` (shape (p, m)) of the
     steps: array of shape (3, p, m)."""
-    e0, e1 = ends
     shape2 = theta.shape
-    z = _hermite(theta, h, e0["z"], e0["vz"], e1["z"], e1["vz"])
-    vx = _hermite(theta, h, e0["vx"], e0["ax"], e1["vx"], e1["ax"])
-    vz = _hermite(theta, h, e0["vz"], e0["az"], e1["vz"], e1["az"])
+    if planar:  # components (x, z, vx, vz)
+        z, vx, vz = _dense(theta, h, state, stages, (1, 2, 3))
+        vy = None
+    else:  # (x, y, z, vx, vy, vz)
+        z, vx, vy, vz = _dense(theta, h, state, stages, (2, 3, 4, 5))
     flat = {k: np.broadcast_to(v, shape2).ravel() for k, v in params.items()}
     zf = z.ravel()
     rho, sound, _, shape = g.lookup(zf)
     wind_x, wind_y = g.wind(flat, zf, shape)
     vrx = vx.ravel() - wind_x
     speed2, rel2 = vx * vx + vz * vz, (vrx * vrx).reshape(shape2) + vz * vz
-    if not planar:
-        vy = _hermite(theta, h, e0["vy"], e0["ay"], e1["vy"], e1["ay"])
+    if vy is not None:
         vry = vy.ravel() if wind_y is None else vy.ravel() - wind_y
         speed2 = speed2 + vy * vy
         rel2 = rel2 + (vry * vry).reshape(shape2)
@@ -57,23 +78,24 @@ def _figures(g: _Group, params: dict[str, np.ndarray], theta: np.ndarray, h: np.
     return np.stack((np.sqrt(speed2), 0.5 * rho.reshape(shape2) * rel2, rel / sound.reshape(shape2)))
 
 
-def interior_peaks(g: _Group, params: dict[str, np.ndarray], h: np.ndarray,
-                   ends: tuple[dict[str, np.ndarray], dict[str, np.ndarray]], planar: bool) -> np.ndarray:
+def interior_peaks(g: _Group, params: dict[str, np.ndarray], h: np.ndarray, state: np.ndarray, stages: np.ndarray,
+                   planar: bool) -> np.ndarray:
     """The largest speed over the ground [m/s], dynamic pressure [Pa] and Mach inside each of m steps (shape (3, m)).
 
     ``params``: the flights' parameters the wind needs (``wind``, or the axes for a measured profile), shape (m,);
-    ``h``: the steps' lengths [s]; ``ends``: the state at each end (z, vx, vy, vz, ax, ay, az [m, m/s, m/s²]),
-    the acceleration the derivative there.
+    ``h``: the steps' lengths [s]; ``state``: the states at the steps' starts, shape (components, m), positions
+    then speeds [m, m/s] ((x, z, vx, vz) when ``planar``, else (x, y, z, vx, vy, vz)); ``stages``: the steps'
+    Dormand–Prince stages, shape (7, components, m), the seventh the derivative at the end.
     """
     m = h.size
     grid = np.broadcast_to(_FIRST[:, None], (_FIRST.size, m))
-    values = _figures(g, params, grid, h, ends, planar)  # (3, p, m)
+    values = _figures(g, params, grid, h, state, stages, planar)  # (3, p, m)
     spacing = _FIRST[1] - _FIRST[0]
     centre = _FIRST[np.argmax(values, axis=1)]  # (3, m): each figure's best point
     lo, hi = np.maximum(centre - spacing, 0.0), np.minimum(centre + spacing, 1.0)
     # each figure's nine points between its best point's neighbours, all searched in one pass: (3·9, m)
     theta = (lo[:, None, :] + (hi - lo)[:, None, :] * _SECOND[None, :, None]).reshape(-1, m)
-    fine_all = _figures(g, params, theta, h, ends, planar)
+    fine_all = _figures(g, params, theta, h, state, stages, planar)
     out = np.empty((3, m))
     cols = np.arange(m)
     n = _SECOND.size

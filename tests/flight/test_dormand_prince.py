@@ -97,3 +97,24 @@ def test_a_flight_has_the_same_bits_alone_and_in_any_batch() -> None:
         assert alone.apogee_m[0] == together.apogee_m[i]
         assert alone.apogee_time_s[0] == together.apogee_time_s[i]
         assert alone.rail_exit_speed_m_s[0] == together.rail_exit_speed_m_s[i]
+
+
+def test_the_continuous_extension_is_scipys_and_ends_on_the_step() -> None:
+    # Shampine's order-4 extension of the pair (Math. Comp. 46, 1986), as scipy's RK45 carries it
+    from motorlib.flight.peaks import _DP_DENSE
+
+    np.testing.assert_allclose(_DP_DENSE, RK45.P, rtol=1e-15, atol=0.0)
+    # at θ = 1 it is the fifth-order solution: Σⱼ P[i, j] = bᵢ (b₇ = 0)
+    np.testing.assert_allclose(_DP_DENSE.sum(axis=1), list(_DP_B) + [0.0], rtol=0.0, atol=1e-15)
+    # y' = y from y(0) = 1 over one step of 0.1: inside the step it follows e^t to the extension's order
+    from motorlib.flight.peaks import _dense
+
+    h = np.array([0.1])
+    k = np.empty((7, 1, 1))
+    y = np.array([[1.0]])
+    for i in range(6):
+        k[i, 0, 0] = 1.0 + h[0] * sum(a * k[j, 0, 0] for j, a in enumerate(_DP_A[i]))
+    k[6, 0, 0] = 1.0 + h[0] * sum(b * k[j, 0, 0] for j, b in enumerate(_DP_B))  # the derivative at the end
+    theta = np.linspace(0.0, 1.0, 11)[:, None]
+    (inside,) = _dense(theta, h, y, k, (0,))
+    assert np.max(np.abs(inside[:, 0] - np.exp(theta[:, 0] * 0.1))) < 1e-8  # error O(h^5) ~ 1e-5·1e-4
