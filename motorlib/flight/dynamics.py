@@ -181,18 +181,19 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates
 
 
 def _figure_rates(g: _Group, a: dict[str, np.ndarray], z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax, ay, az, speed,
-                  rho, sound, slope) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Signs that matter of the time derivatives of speed over the ground, dynamic pressure q = ½·ρ·|v_rel|² and
-    Mach |v_rel|/a, with v_rel = v − wind: v·(dv/dt), dq/dt [Pa/s] and dM/dt·a·|v_rel| [m²/s³] (each a positive
-    multiple of the derivative). d(|v_rel|²)/dt = 2·v_rel·(dv/dt − dwind/dz·vz); dρ/dt = ρ'(z)·vz and
+                  rho, sound, slope) -> np.ndarray:
+    """Positive multiples of the time derivatives of speed over the ground, dynamic pressure q = ½·ρ·|v_rel|² and
+    Mach |v_rel|/a, with v_rel = v − wind, stacked (3, n): v·(dv/dt), dq/dt [Pa/s] and dM/dt·a·|v_rel| [m²/s³]
+    (only their signs are read). d(|v_rel|²)/dt = 2·v_rel·(dv/dt − dwind/dz·vz); dρ/dt = ρ'(z)·vz and
     da/dt = a'(z)·vz from the air tables' slopes (``slope``, per table step); the power-law wind's dw/dz = p·w/z
     between its floor and cap, a measured profile's by a central difference over 2 cm."""
-    per_m = 1.0 / g.step_m
+    vz_az = vz * az
+    ground_dot = vx * ax + vz_az
     rel_ax, rel_ay = ax, ay
     if not g.calm:
         if g.profile is None:
             inside = (z > g.wind_floor_m) & (z < g.wind_cap_m)
-            rel_ax = ax - np.where(inside, wind_x * g.wind_exponent / np.maximum(z, 1e-300), 0.0) * vz
+            rel_ax = ax - np.where(inside, wind_x * vz * g.wind_exponent / np.maximum(z, 1e-300), 0.0)
         else:
             east_hi, north_hi = g.profile.velocity_m_s(z + 0.01)
             east_lo, north_lo = g.profile.velocity_m_s(z - 0.01)
@@ -200,11 +201,9 @@ def _figure_rates(g: _Group, a: dict[str, np.ndarray], z, vx, vy, vz, vrx, vry, 
             rel_ax = ax - (d_east * a["e1e"] + d_north * a["e1n"]) * vz
             if vry is not None:
                 rel_ay = ay - (d_east * a["e2e"] + d_north * a["e2n"]) * vz
-    rel_dot = vrx * rel_ax + vz * az  # v_rel · dv_rel/dt
-    ground_dot = vx * ax + vz * az
+    rel_dot = vrx * rel_ax + vz_az  # v_rel · dv_rel/dt
     if vry is not None:
         rel_dot = rel_dot + vry * rel_ay
         ground_dot = ground_dot + vy * ay
-    dq = rho * rel_dot + (0.5 * per_m) * slope[0] * vz * (speed * speed)
-    dmach = rel_dot - (per_m * speed * speed / sound) * slope[1] * vz
-    return ground_dot, dq, dmach
+    climb = speed * speed * vz * (1.0 / g.step_m)  # |v_rel|²·vz per metre of table step
+    return np.stack((ground_dot, rho * rel_dot + 0.5 * slope[0] * climb, rel_dot - slope[1] * climb / sound))

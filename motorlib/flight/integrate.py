@@ -531,7 +531,7 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     a["ax"], ay, a["az"], mach0, q0, rates0 = _accel(g, a, a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"],
                                                       a["vz"], rates=True)
     a["ay"] = a["zeros"] if ay is None else ay
-    a["rate_v"], a["rate_q"], a["rate_mach"] = rates0
+    a["rates"] = rates0
     a["mach"] = mach0
     if descent:  # the start state was flown: it counts in the maxima
         a["max_speed"], a["max_mach"], a["max_q"] = np.sqrt(a["vx"]**2 + a["vy"]**2 + a["vz"]**2), mach0, q0
@@ -645,7 +645,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     burning = a["burning"]
     h = _step_size(g, a, s, deploy_altitude_m, descent)
     hit_seg = burning & (h >= a["seg_end"] - t)
-    x1, y1, z1, vx1, vy1, vz1, stages = _dopri(g, a, h)
+    x1, y1, z1, vx1, vy1, vz1, stages, state0 = _dopri(g, a, h)
     t1 = np.where(hit_seg, a["seg_end"], t + h)
     if descent:
         t1 = np.where(h >= a["stop_t"] - t, a["stop_t"], t1)  # a step aimed at the stop time ends on it
@@ -703,7 +703,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
             ((a["x"], x1), (a["y"], y1), (a["z"], z1), (a["vx"], vx1), (a["vy"], vy1), (a["vz"], vz1),
              (a["ax"], ax1), (a["ay"], ay1), (a["az"], az1), (t, t1)))
         mach1, q1 = np.where(rejected, a["mach"], mach1), np.where(rejected, 0.0, q1)
-        rates1 = tuple(np.where(rejected, a[k], r) for k, r in zip(_RATES, rates1))
+        rates1 = np.where(rejected, a["rates"], rates1)
         back = rejected & hit_seg
         if back.any():  # back to the segment the flight is still in, burning
             a["seg"] = np.where(back, a["seg"] - 1, a["seg"])
@@ -728,22 +728,20 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     end_rates, end_acc = rates1, (ax1, ay1, az1)
     if pre_cut is not None:  # a cut-off step: the rates and derivative at its end as the burn left them
         at, acc_before, rates_before = pre_cut
-        end_rates, end_acc = tuple(r.copy() for r in rates1), tuple(v.copy() for v in end_acc)
-        for full, part in zip(end_rates + end_acc, rates_before + acc_before):
+        end_rates, end_acc = rates1.copy(), tuple(v.copy() for v in end_acc)
+        end_rates[:, at] = rates_before
+        for full, part in zip(end_acc, acc_before):
             full[at] = part
-    peaked = ((a["rate_v"] > 0.0) & (end_rates[0] < 0.0)) | ((a["rate_q"] > 0.0) & (end_rates[1] < 0.0)) | (
-        (a["rate_mach"] > 0.0) & (end_rates[2] < 0.0))
+    peaked = ((a["rates"] > 0.0) & (end_rates < 0.0)).any(axis=0)  # rows: speed, q, Mach
     if peaked.any():
         peaked &= flown & ~(switched & ~cut_off) & ~rejected
         if peaked.any():
             k = stages[:, :, peaked]
             half = k.shape[1] // 2
             k[6, half:] = [acc[peaked] for acc in (end_acc[::2] if g.planar else end_acc)]
-            components = ("x", "z", "vx", "vz") if g.planar else ("x", "y", "z", "vx", "vy", "vz")
-            run.peak_steps.append((a["ref"][peaked], t1[peaked], h[peaked],
-                                   np.stack([a[c][peaked] for c in components]), k,
+            run.peak_steps.append((a["ref"][peaked], t1[peaked], h[peaked], state0[:, peaked], k,
                                    {name: a[name][peaked] for name in _wind_params(g)}))
-    a["rate_v"], a["rate_q"], a["rate_mach"] = rates1
+    a["rates"] = rates1
     a.update(t=t1, x=x1, y=y1, z=z1, vx=vx1, vy=vy1, vz=vz1, ax=ax1, ay=ay1, az=az1, mach=mach1)
     if run.history is not None:
         run.history.append(tuple(a[k][~rejected] if rejected.any() else a[k].copy() for k in _HISTORY))
@@ -836,8 +834,9 @@ def _error_ratio(g: _Group, a: dict, s: FlightSettings, h: np.ndarray, stages: n
 
 def _dopri(g: _Group, a: dict, h: np.ndarray) -> tuple:
     """One Dormand–Prince 5(4) step from the active state, whose derivative (first stage) is (vx, vy, vz, ax, ay,
-    az), over steps h: the new x, y, z, vx, vy, vz (fifth order) and the stage array (7, components, n) with its
-    last stage left to fill with the derivative at the new state, which the error estimate needs.
+    az), over steps h: the new x, y, z, vx, vy, vz (fifth order), the stage array (7, components, n) with its
+    last stage left to fill with the derivative at the new state, which the error estimate needs, and the start
+    state (components, n).
 
     In a planar group y and its speed stay as they are (0) and are not integrated: components (x, z, vx, vz).
     """
@@ -865,8 +864,8 @@ def _dopri(g: _Group, a: dict, h: np.ndarray) -> tuple:
             k[i, 3], k[i, 4], k[i, 5] = ax, ay, az
     new = state + h * _combine(_DP_B, k)
     if planar:
-        return new[0], y, new[1], new[2], vy, new[3], k
-    return (*new, k)
+        return new[0], y, new[1], new[2], vy, new[3], k, state
+    return (*new, k, state)
 
 
 def _next_segment(a: dict, run: _Pass, hit_seg: np.ndarray, burning: np.ndarray, t1: np.ndarray) -> np.ndarray:
@@ -911,11 +910,7 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
     return landed
 
 
-# The time derivatives at the state of speed² over the ground, dynamic pressure and Mach (dynamics._figure_rates)
-_RATES = ("rate_v", "rate_q", "rate_mach")
-
-
-_PEAK_CHUNK: Final = 512  # steps searched together for interior maxima (27 x 512 values, 0.1 MB, per array)
+_PEAK_CHUNK: Final = 512  # steps searched together for interior maxima (15 x 512 values, 60 kB, per array)
 
 
 def _wind_params(g: _Group) -> tuple[str, ...]:
@@ -950,7 +945,7 @@ def _interior_maxima(g: _Group, run: _Pass) -> None:
     refs, t1, h, state, stages = (np.concatenate(part, axis=-1) for part in zip(*[r[:5] for r in run.peak_steps]))
     params = {k: np.concatenate([r[5][k] for r in run.peak_steps]) for k in _wind_params(g)}
     peaks = np.empty((3, refs.size))
-    for lo in range(0, refs.size, _PEAK_CHUNK):  # in chunks: the search holds (27, chunk) arrays
+    for lo in range(0, refs.size, _PEAK_CHUNK):  # in chunks: the search holds (15, chunk) arrays
         part = slice(lo, lo + _PEAK_CHUNK)
         peaks[:, part] = interior_peaks(g, {k: v[part] for k, v in params.items()}, h[part], state[:, part],
                                         stages[:, :, part], g.planar)
@@ -1001,7 +996,7 @@ def _retire(a: dict, run: _Pass, s: FlightSettings, landed: np.ndarray, t1: np.n
         keep = np.flatnonzero(~done)  # positions: one take per array costs less than a boolean mask each
         for name, value in a.items():
             if isinstance(value, np.ndarray):
-                a[name] = value.take(keep)
+                a[name] = value.take(keep, axis=-1)  # (the rates: 3 rows)
         a["any_rail"] = bool(a["on_rail"].any())
 
 
