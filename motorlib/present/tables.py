@@ -317,8 +317,13 @@ def flight_card_table(card) -> Group:
     from .palette import VERDICT_MARKS
 
     styles = {"ok": "bold blue", "caution": "bold yellow", "fail": "bold red", "info": "dim"}
-    parts: list[object] = [Text.assemble((card.title, "bold"), "  ",
-                                         (VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result)]
+    # title and verdict side by side: a long title wraps in its own column, the verdict never splits
+    header = Table.grid(padding=(0, 2))
+    header.add_column()
+    header.add_column(no_wrap=True)
+    header.add_row(Text(card.title, style="bold"),
+                   Text.assemble((VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result))
+    parts: list[object] = [header]
     label_width = max((len(f.label) + 3 for p in card.phases for f in p.figures), default=10)
     for phase in card.phases:
         parts.append(Text.assemble((VERDICT_MARKS[phase.verdict][0], styles[phase.verdict]), " ",

@@ -118,3 +118,19 @@ def test_positions_read_in_words_not_signs() -> None:
     assert any(f.value.startswith("246 m upwind of the pad") and "toward 270°" in f.value for f in coast.figures)
     landing = next(p for p in card.phases if p.key == "landing")
     assert any(f.label == "lands" and f.value == "2,211 m from the pad toward 063°" for f in landing.figures)
+
+
+def test_a_long_title_never_splits_the_verdict_at_80_columns() -> None:
+    # new-user trial: "Quibble 41 (demo) with E9-4,6,8 (Teakettle Thrust Co. (fictional))  ! flight" / "completed"
+    from rich.console import Console
+
+    from motorlib.present.tables import flight_card_table
+
+    summary = _summary()
+    card = flight_card(summary, _warnings(summary, 3.0), title="Quibble 41 (demo) with E9-4,6,8 (Teakettle Thrust "
+                       "Co. (fictional))", wind_speed_m_s=3.0)
+    console = Console(width=80, record=True, color_system=None)
+    console.print(flight_card_table(card))
+    lines = console.export_text().splitlines()
+    assert any("flight completed" in line for line in lines), lines[:3]
+    assert all(len(line.rstrip()) <= 80 for line in lines)
