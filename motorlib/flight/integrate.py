@@ -910,7 +910,7 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
     return landed
 
 
-_PEAK_CHUNK: Final = 512  # steps searched together for interior maxima (15 x 512 values, 60 kB, per array)
+_PEAK_CHUNK: Final = 512  # steps searched together for interior maxima (27 x 512 values, 0.1 MB, per array)
 
 
 def _wind_params(g: _Group) -> tuple[str, ...]:
@@ -945,7 +945,7 @@ def _interior_maxima(g: _Group, run: _Pass) -> None:
     refs, t1, h, state, stages = (np.concatenate(part, axis=-1) for part in zip(*[r[:5] for r in run.peak_steps]))
     params = {k: np.concatenate([r[5][k] for r in run.peak_steps]) for k in _wind_params(g)}
     peaks = np.empty((3, refs.size))
-    for lo in range(0, refs.size, _PEAK_CHUNK):  # in chunks: the search holds (15, chunk) arrays
+    for lo in range(0, refs.size, _PEAK_CHUNK):  # in chunks: the search holds (27, chunk) arrays
         part = slice(lo, lo + _PEAK_CHUNK)
         peaks[:, part] = interior_peaks(g, {k: v[part] for k, v in params.items()}, h[part], state[:, part],
                                         stages[:, :, part], g.planar)

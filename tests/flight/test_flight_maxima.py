@@ -86,3 +86,19 @@ def test_the_landing_counts_in_the_maxima() -> None:
     landed = np.isfinite(got.landing_speed_m_s)
     assert landed.sum() >= 10
     assert np.all(got.max_speed_m_s[landed] >= got.landing_speed_m_s[landed] * (1.0 - 1e-12))
+
+
+def test_a_mach_peak_on_the_tropopause_corner() -> None:
+    # coasting at Mach 3.4 through 11 km, where the speed of sound stops falling (USSA 1976's first layer boundary):
+    # Mach peaks on that corner (independent check: a coarser search overshot it by 1.6e-5 and erred 5.6e-5)
+    from motorlib.flight.atmosphere import Site
+
+    propellant_kg = 30_000.0 / (250.0 * 9.80665)  # an invented 30 kN·s motor, specific impulse 250 s
+    motor = MotorRecord("BIG", [0.0, 0.05, 2.0, 2.1], [0.0, 15_000.0, 14_250.0, 0.0],
+                        total_mass_kg=1.5 * propellant_kg, propellant_mass_kg=propellant_kg)
+    frame = Airframe("high", 15.0, 0.06, None, launch=Launch(rail_length_m=6.0, site=Site(elevation_m=4000.0)),
+                     drag_table=((0.0, 0.2), (0.8, 0.22), (1.0, 0.35), (1.2, 0.3), (2.0, 0.15), (3.0, 0.1), (5.0, 0.08)))
+    got = simulate(frame, motor, descent=False)
+    ref = reference_flight(frame, motor, maxima=True)
+    assert got.max_mach[0] > 3.0
+    assert got.max_mach[0] == pytest.approx(ref["max_mach"], rel=2e-5)
