@@ -932,11 +932,6 @@ def _before_cut_off(g: _Group, a: dict, run: _Pass, cut_off: np.ndarray, t1, x1,
     return at, (ax, sub["zeros"] if ay is None else ay, az), rates
 
 
-def _wind_params(g: _Group) -> tuple[str, ...]:
-    """The per-flight parameters the group's wind reads."""
-    return () if g.calm else ("wind",) if g.profile is None else ("e1e", "e1n", "e2e", "e2n")
-
-
 def _interior_maxima(g: _Group, run: _Pass) -> None:
     """Raise the maxima of speed, q and Mach to the peaks inside the steps recorded in ``run.peak_steps``
     (:func:`.peaks.interior_peaks`, all steps at once): the pass's maxima, and those up to apogee, to the
