@@ -8,7 +8,7 @@ import click
 
 from .group import _InputError
 from .options import _Finite, _units_option, display_units, motor_options
-from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
+from .output import _OVERWRITE_HINT, _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 
 @click.command()
@@ -59,7 +59,7 @@ def airframe(airframe_file: str, motor_ref: str | None, catalog_dir: str | None,
         try:
             written = airframe_plot(frame, summary, plot_path, overwrite=overwrite, units=display_units(units))
         except FileExistsError as exc:
-            raise _InputError(f"{exc}; choose another name or use --overwrite to replace it") from exc
+            raise _InputError(f"{exc}; {_OVERWRITE_HINT}") from exc
     if as_json:
         payload = {**summary, "plot": None if written is None else str(written), "caution": _EPILOG}
         click.echo(_strict_json(payload, indent=2))

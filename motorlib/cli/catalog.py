@@ -209,22 +209,23 @@ def catalog_show(catalog_dir: str | None, refs: tuple[str, ...], plot_path: str 
     shown = display_units(units)
     cat = _open_catalog(catalog_dir)
     ids = [resolve_motor(cat, ref) for ref in refs]
-    curve_files = [cat.root / row.path for row in cat.rows(_ids(*ids)) if row.path] if ids else []
-    _check_outputs({"--plot": plot_path}, overwrite, curve_files)  # never over one of the curves shown
+    rows = cat.rows(_ids(*ids)) if ids else []
+    handles = {row.motor_id: row.handle for row in rows}
+    _check_outputs({"--plot": plot_path}, overwrite,  # never over one of the curves shown
+                   [cat.root / row.path for row in rows if row.path])
     console = _console()
     records = []
     for motor_id in ids:
         record = cat.get(motor_id)
         records.append((motor_id, record))
-        report = CheckReport(f"{motor_id}  {cat.rows(_ids(motor_id))[0].handle}", True, record,
+        report = CheckReport(f"{motor_id}  {handles[motor_id]}", True, record,
                              tuple(check_record(record, cat.settings)), metrics(record, cat.settings.burn_threshold))
         console.print(render.check_details(report, shown, record))
         console.print(f"  thrust |{render.sparkline(record.time_s, record.thrust_n, min(60, console.width - 24))}| "
                       f"{shown.precise(record.peak_thrust_n, 'force')} peak")
         console.print()
     if len(records) > 1:
-        console.print(render.catalog_table(cat.rows(_ids(*[i for i, _ in records])), "Comparison", shown,
-                                           console.width))
+        console.print(render.catalog_table(rows, "Comparison", shown, console.width))
     if plot_path:
         from ..present.plots import curves_plot
 

@@ -8,7 +8,7 @@ import click
 
 from .group import _InputError
 from .options import _metadata_for, _metadata_options
-from .output import _check_outputs, _console
+from .output import _OVERWRITE_HINT, _check_outputs, _console
 
 
 @click.command("import")
@@ -59,7 +59,7 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     try:
         path = write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
-        raise _InputError(f"{exc}; choose another name or use --overwrite to replace it") from exc
+        raise _InputError(f"{exc}; {_OVERWRITE_HINT}") from exc
     console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
                   f"{render.impulse_text(record.total_impulse_ns)} N·s, "
                   f"{record.computed_designation()}")

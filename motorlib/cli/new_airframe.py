@@ -6,7 +6,7 @@ import click
 
 from .group import _InputError
 from .options import _units_option, display_units
-from .output import _console
+from .output import _OVERWRITE_HINT, _console
 
 
 @click.command("new-airframe")
@@ -34,7 +34,7 @@ def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
     try:
         written = write_atomic(path, text.encode(), overwrite=overwrite)
     except FileExistsError as exc:
-        raise _InputError(f"{exc}; choose another name or use --overwrite to replace it") from None
+        raise _InputError(f"{exc}; {_OVERWRITE_HINT}") from None
     from rich.markup import escape
 
     _console().print(f"Wrote {escape(str(written))}: edit the values, then try "

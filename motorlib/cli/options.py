@@ -495,12 +495,12 @@ def _label_with_delay(catalog: Any, ref: str) -> tuple[str, float] | str | None:
             and row.designation.rsplit("-", 1)[0].casefold() == base]
     if not rows:
         return None
-    offering = [row for row in rows if delay in catalog.get(row.motor_id).delays_s]
+    offering = [row for row in rows if delay in row.delays_s]
     if len(offering) == 1:
         return offering[0].motor_id, delay
     if not offering:
-        offers = "; ".join(f"{row.designation} offers {', '.join(f'{d:g}' for d in catalog.get(row.motor_id).delays_s) or 'no'}"
-                           f" s" for row in rows)
+        offers = "; ".join(f"{row.designation} offers {', '.join(f'{d:g}' for d in row.delays_s) or 'no'} s"
+                           for row in rows)
         return f"{ref!r}: no motor with that label offers a {delay:g} s delay ({offers}); name the motor and give --delay"
     return (f"{ref!r}: several motors carry that label ({', '.join(row.handle for row in offering)}); name one by its "
             "handle and give --delay")

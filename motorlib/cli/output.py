@@ -8,6 +8,9 @@ from typing import Any, Sequence
 
 from ..safety import SAFETY_CAUTION as _EPILOG
 
+# what to do about an output that exists (every command that writes a file says it alike)
+_OVERWRITE_HINT = "choose another name or use --overwrite to replace it"
+
 
 def _console() -> Any:
     from rich.console import Console
@@ -71,7 +74,7 @@ def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *,
             return check_report_target(path, overwrite=overwrite, inputs=inputs)
         return write_report(report, path, overwrite=overwrite, inputs=inputs)
     except FileExistsError as exc:
-        raise _report_error(f"{exc}; choose another name or use --overwrite to replace it") from exc
+        raise _report_error(f"{exc}; {_OVERWRITE_HINT}") from exc
     except ValueError as exc:
         raise _report_error(str(exc)) from exc
 
@@ -108,7 +111,7 @@ def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequ
         if os.path.isdir(path):
             raise _InputError(f"{option} {path}: is a folder; give a file name")
         if os.path.lexists(path) and not overwrite and _is_regular(path):
-            raise _InputError(f"{option} {path}: already exists; choose another name or use --overwrite to replace it")
+            raise _InputError(f"{option} {path}: already exists; {_OVERWRITE_HINT}")
         parent = os.path.dirname(path) or "."
         if not os.path.isdir(parent):
             raise _InputError(f"{option} {path}: folder {parent} does not exist")

@@ -8,7 +8,7 @@ from typing import Any
 import click
 
 from .options import _Finite, _metadata_for, _metadata_options, _units_option, display_units
-from .output import _check_outputs, _console, _strict_json
+from .output import _OVERWRITE_HINT, _check_outputs, _console, _strict_json
 
 
 @click.command()
@@ -137,7 +137,7 @@ def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force
     try:
         return write_record(record, output, overwrite=overwrite)
     except FileExistsError as exc:
-        raise click.ClickException(f"{exc}; choose another name or use --overwrite to replace it") from exc
+        raise click.ClickException(f"{exc}; {_OVERWRITE_HINT}") from exc
 
 
 def _log_summary(reductions: list[tuple[str, Any]]) -> list[dict[str, Any]]:

@@ -71,11 +71,10 @@ class _Group:
         east, north = self.profile.velocity_m_s(z)
         return east * a["e1e"] + north * a["e1n"], east * a["e2e"] + north * a["e2n"]
 
-    def lookup(self, z: np.ndarray, slopes: list | None = None
-               ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray | None]:
+    def lookup(self, z: np.ndarray, with_slopes: bool = False) -> tuple:
         """Density, speed of sound, gravity and wind shape w(z)/w(10 m) at heights z above the pad (shape None in
-        a calm group). ``slopes``: a list that receives the tables' changes over the 5 m step at z (rows:
-        density, speed of sound, gravity), the height derivatives times ``step_m``.
+        a calm group). ``with_slopes``: a fifth item, the tables' changes over the 5 m step at z (rows: density,
+        speed of sound, gravity), the height derivatives times ``step_m``.
 
         The wind power law is computed exactly: it is too curved near the ground for a 5 m table.
         """
@@ -84,14 +83,11 @@ class _Group:
         air = self.table.take(i, axis=1)  # rows: density, speed of sound, gravity
         slope = self.slope.take(i, axis=1)
         air += (u - i) * slope
-        if slopes is not None:
-            slopes.append(slope)
         # 0.1 = 1 / (10 m reference); held above the cap
         # (np.minimum/np.maximum: np.clip costs several times more per call on arrays this size)
-        if self.calm:
-            return air[0], air[1], air[2], None
-        shape = (np.minimum(np.maximum(z, self.wind_floor_m), self.wind_cap_m) * 0.1) ** self.wind_exponent
-        return air[0], air[1], air[2], shape
+        shape = None if self.calm else (
+            np.minimum(np.maximum(z, self.wind_floor_m), self.wind_cap_m) * 0.1) ** self.wind_exponent
+        return (air[0], air[1], air[2], shape, slope) if with_slopes else (air[0], air[1], air[2], shape)
 
     def __post_init__(self) -> None:
         # density, speed of sound and gravity stacked with their slopes per table step: one gather reads all
@@ -137,15 +133,17 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates
     """Accelerations (ax, ay, az), Mach and dynamic pressure of every active flight; arrays of shape (n_active,).
 
     ``a`` holds the active flights' parameters and phase flags (compacted with the state). In a
-    planar group ``ay`` is None (y and its speed stay 0). With ``rates``, a sixth item: the time
-    derivatives of speed² over the ground [m²/s³], of dynamic pressure [Pa/s] and of Mach [1/s] (see
-    :func:`_figure_rates`), by which a step tells that one of the flown maxima lies inside it.
+    planar group ``ay`` is None (y and its speed stay 0). With ``rates``, a sixth item: positive multiples
+    of the time derivatives of speed over the ground, dynamic pressure and Mach, stacked (3, n)
+    (:func:`_figure_rates`), by whose signs a step tells that one of the flown maxima lies inside it.
     """
     dt = t - a["seg_t"]
     thrust = a["seg_f"] + a["seg_s"] * dt  # the segment's coefficients: 0 while coasting
     inv_mass = 1.0 / (a["seg_m0"] + (a["seg_m1"] + a["seg_m2"] * dt) * dt)
-    slopes: list | None = [] if rates else None
-    rho, sound, grav, shape = g.lookup(z, slopes)
+    if rates:
+        rho, sound, grav, shape, slope = g.lookup(z, with_slopes=True)
+    else:
+        rho, sound, grav, shape = g.lookup(z)
     wind_x, wind_y = g.wind(a, z, shape)
     vrx = vx if g.calm else vx - wind_x
     if g.planar:
@@ -176,7 +174,7 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates
             ay = np.where(on_rail, a_rail * a["uy"], ay)
     if rates:
         return ax, ay, az, mach, half_rho_v * speed, _figure_rates(g, a, z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax,
-                                                                   ay, az, speed, rho, sound, slopes[0])
+                                                                   ay, az, speed, rho, sound, slope)
     return ax, ay, az, mach, half_rho_v * speed
 
 

@@ -345,12 +345,12 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
     n_dev = out["deployment_time_s"].shape[1]
     dep = {k: np.full((n, n_dev), np.nan) for k in ("t", "z", "speed", "load", "rate")}
 
-    def record(pos: np.ndarray, k: int, state: dict[str, np.ndarray]) -> np.ndarray:
-        """Note device k's opening state; returns the air density there [kg/m³]."""
-        speed, rho = _air_speed(g, {k: v[pos] for k, v in params.items()}, state)
+    def record(pos: np.ndarray, k: int, state: dict[str, np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
+        """Note device k's opening state; returns the air density [kg/m³] and speed of sound [m/s] there."""
+        speed, rho, sound = _air_speed(g, {k: v[pos] for k, v in params.items()}, state)
         dep["t"][pos, k], dep["z"][pos, k], dep["speed"][pos, k] = state["t"], state["z"], speed
         dep["load"][pos, k] = 0.5 * rho * speed * speed * devices[k].drag_area_m2
-        return rho
+        return rho, sound
 
     def fly(pos: np.ndarray, state: dict[str, np.ndarray], extra: np.ndarray, *, device: int | None,
             stop_time_s: np.ndarray | None = None, stop_altitude_m: float | None = None,
@@ -378,12 +378,12 @@ def _fly_after_ascent(g: _Group, pack: MotorPack, devices: tuple[Recovery, ...],
     elif lead is not None and opens.any():
         pos = np.flatnonzero(opens)
         at = _sub(start, opens)
-        rho = record(pos, 0, at)
+        rho, sound = record(pos, 0, at)
         # the opening state was flown: it counts in every maximum, as it does when the descent is flown
         # (Mach and dynamic pressure from the air speed, as in the flight's right-hand side)
         air_speed = dep["speed"][pos, 0]
         acc["max_speed"][pos] = np.fmax(acc["max_speed"][pos], np.sqrt(at["vx"]**2 + at["vy"]**2 + at["vz"]**2))
-        acc["max_mach"][pos] = np.fmax(acc["max_mach"][pos], air_speed / g.lookup(at["z"])[1])
+        acc["max_mach"][pos] = np.fmax(acc["max_mach"][pos], air_speed / sound)
         acc["max_q"][pos] = np.fmax(acc["max_q"][pos], 0.5 * rho * air_speed * air_speed)
         if early.any():  # the climb under the first device, to the flown apogee
             fly(np.flatnonzero(early), _sub(start, early), np.full(int(early.sum()), lead.drag_area_m2), device=0,
@@ -958,14 +958,11 @@ def _interior_maxima(g: _Group, run: _Pass) -> None:
 def _landing_maxima(g: _Group, run: _Pass, params: dict[str, np.ndarray]) -> None:
     """The state at ground contact is flown: its speed, q and Mach count in the pass's maxima."""
     r = np.flatnonzero(np.isfinite(run.landing["t"]))
-    vx, vy, vz = (run.landing[k][r] for k in ("vx", "vy", "vz"))
-    z = np.zeros(r.size)
-    rho, sound, _, shape = g.lookup(z)
-    wind_x, wind_y = g.wind({k: params[k][r] for k in _wind_params(g)}, z, shape)
-    vry = vy if wind_y is None else vy - wind_y
-    rel2 = (vx - wind_x) ** 2 + vry * vry + vz * vz
-    for name, value in (("max_speed", run.landing["speed"][r]), ("max_q", 0.5 * rho * rel2),
-                        ("max_mach", np.sqrt(rel2) / sound)):
+    at_ground = {k: run.landing[k][r] for k in ("vx", "vy", "vz")}
+    at_ground["z"] = np.zeros(r.size)
+    air, rho, sound = _air_speed(g, {k: params[k][r] for k in _wind_params(g)}, at_ground)
+    for name, value in (("max_speed", run.landing["speed"][r]), ("max_q", 0.5 * rho * air * air),
+                        ("max_mach", air / sound)):
         run.maxima[name][r] = np.fmax(run.maxima[name][r], value)
 
 

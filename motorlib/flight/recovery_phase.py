@@ -89,12 +89,13 @@ def _first_opening(device: Recovery, ascent: dict, col: np.ndarray, has: np.ndar
 
 
 def _air_speed(g: _Group, params: dict[str, np.ndarray], state: dict[str, np.ndarray]
-               ) -> tuple[np.ndarray, np.ndarray]:
-    """Air-relative speed [m/s] and air density [kg/m³] at the given states (``params`` of those flights)."""
-    rho, _, _, shape = g.lookup(state["z"])
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Air-relative speed [m/s], air density [kg/m³] and speed of sound [m/s] at the given states (``params`` of
+    those flights)."""
+    rho, sound, _, shape = g.lookup(state["z"])
     wind_x, wind_y = g.wind(params, state["z"], shape)
     vry = state["vy"] if wind_y is None else state["vy"] - wind_y
-    return np.sqrt((state["vx"] - wind_x) ** 2 + vry**2 + state["vz"] ** 2), rho
+    return np.sqrt((state["vx"] - wind_x) ** 2 + vry**2 + state["vz"] ** 2), rho, sound
 
 
 def _sub(state: dict[str, np.ndarray], mask: np.ndarray) -> dict[str, np.ndarray]:

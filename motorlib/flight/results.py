@@ -73,8 +73,8 @@ class FlightResults:
     weight; ``max_acceleration_m_s2`` the largest magnitude of the trajectory's
     (kinematic) acceleration. Maxima are taken at step ends (every curve sample is
     one), and speed, Mach and dynamic pressure also inside a step that holds their
-    peak (thrust falling below drag in a long curve segment, say: found from the
-    step's cubic Hermite interpolant, :mod:`motorlib.flight.peaks`); the
+    peak (thrust falling below drag in a long curve segment, say: found on the
+    integrator's continuous extension, :mod:`motorlib.flight.peaks`); the
     acceleration's only at step ends. ``max_acceleration_m_s2`` covers the flight until the
     first device opens (the opening is an instant change of drag in this model:
     its jolt is ``opening_load_n``). ``burnout_time_s`` is where the thrust curve
