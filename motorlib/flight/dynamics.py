@@ -80,8 +80,8 @@ class _Group:
         """
         u = (z - self.base_m) * (1.0 / self.step_m)
         i = np.minimum(np.maximum(u.astype(np.int64), 0), self.rho.size - 2)
-        air = self.table.take(i, axis=1)  # rows: density, speed of sound, gravity
-        slope = self.slope.take(i, axis=1)
+        rows = self.table.take(i, axis=1)  # one gather: density, speed of sound, gravity, then their slopes
+        air, slope = rows[:3], rows[3:]
         air += (u - i) * slope
         # 0.1 = 1 / (10 m reference); held above the cap
         # (np.minimum/np.maximum: np.clip costs several times more per call on arrays this size)
@@ -91,8 +91,8 @@ class _Group:
 
     def __post_init__(self) -> None:
         # density, speed of sound and gravity stacked with their slopes per table step: one gather reads all
-        self.table = np.stack((self.rho, self.sound, self.gravity))
-        self.slope = np.diff(self.table, axis=1, append=self.table[:, -1:])
+        air = np.stack((self.rho, self.sound, self.gravity))
+        self.table = np.concatenate((air, np.diff(air, axis=1, append=air[:, -1:])))
 
 
 def _basis(launch: Launch) -> tuple[float, float, float, float, float]:
@@ -129,17 +129,20 @@ def _make_group(frame: Airframe, s: FlightSettings) -> _Group:
                   cds_powered=np.array(frame.drag_cds_powered) if frame.drag_table_powered else None)
 
 
-def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates: bool = False):
+def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates: bool = False,
+           figures: bool = True):
     """Accelerations (ax, ay, az), Mach and dynamic pressure of every active flight; arrays of shape (n_active,).
 
-    ``a`` holds the active flights' parameters and phase flags (compacted with the state). In a
-    planar group ``ay`` is None (y and its speed stay 0). With ``rates``, a sixth item: positive multiples
-    of the time derivatives of speed over the ground, dynamic pressure and Mach, stacked (3, n)
-    (:func:`_figure_rates`), by whose signs a step tells that one of the flown maxima lies inside it.
+    ``a`` holds the active flights' parameters and phase flags (compacted with the state), among them
+    ``half_cda``, half the drag area Cd·A plus the open devices' [m²] (with a constant Cd). In a planar group
+    ``ay`` is None (y and its speed stay 0). Without ``figures`` only (ax, ay, az) (a Runge-Kutta stage needs no
+    more). With ``rates``, a sixth item: positive multiples of the time derivatives of speed over the ground,
+    dynamic pressure and Mach, stacked (3, n) (:func:`_figure_rates`), by whose signs a step tells that one of the
+    flown maxima lies inside it.
     """
     dt = t - a["seg_t"]
     thrust = a["seg_f"] + a["seg_s"] * dt  # the segment's coefficients: 0 while coasting
-    inv_mass = 1.0 / (a["seg_m0"] + (a["seg_m1"] + a["seg_m2"] * dt) * dt)
+    mass = a["seg_m0"] + (a["seg_m1"] + a["seg_m2"] * dt) * dt
     if rates:
         rho, sound, grav, shape, slope = g.lookup(z, with_slopes=True)
     else:
@@ -152,30 +155,38 @@ def _accel(g: _Group, a: dict[str, np.ndarray], t, x, y, z, vx, vy, vz, *, rates
     else:
         vry = vy if wind_y is None else vy - wind_y
         speed = np.sqrt(vrx * vrx + vry * vry + vz * vz)
-    mach = speed / sound
-    cd = np.interp(mach, g.machs, g.cds) if g.table_cd else a["cd"]
-    if g.cds_powered is not None:  # smaller base drag while the exhaust fills part of the base
-        cd = np.where(a["burning"], np.interp(mach, g.machs, g.cds_powered), cd)
-    half_rho_v = 0.5 * rho * speed
-    drag_per_v = half_rho_v * (cd * a["area"] + a["extra"])  # drag force / |v_rel|
+    rho_v = rho * speed
+    if g.table_cd:
+        mach = speed / sound
+        cd = np.interp(mach, g.machs, g.cds)
+        if g.cds_powered is not None:  # smaller base drag while the exhaust fills part of the base
+            cd = np.where(a["burning"], np.interp(mach, g.machs, g.cds_powered), cd)
+        drag_per_v = rho_v * (0.5 * (cd * a["area"] + a["extra"]))  # drag force / |v_rel|
+    else:
+        mach = None
+        drag_per_v = rho_v * a["half_cda"]
     # free flight: thrust along v_rel (weathercocking), drag against it
-    along = (thrust / np.maximum(speed, 1e-9) - drag_per_v) * inv_mass
+    along = (thrust / np.maximum(speed, 1e-9) - drag_per_v) / mass
     ax = along * vrx
     ay = None if vry is None else along * vry
     az = along * vz - grav
-    on_rail = a["on_rail"]
     if a["any_rail"]:
-        ux, uz = a["ux"], a["uz"]
+        on_rail, ux, uz = a["on_rail"], a["ux"], a["uz"]
         rel_along = vrx * ux + vz * uz if vry is None else vrx * ux + vry * a["uy"] + vz * uz
-        a_rail = (thrust - drag_per_v * rel_along) * inv_mass - grav * uz  # uz = cos(rail angle)
+        a_rail = (thrust - drag_per_v * rel_along) / mass - grav * uz  # uz = cos(rail angle)
         ax = np.where(on_rail, a_rail * ux, ax)
         az = np.where(on_rail, a_rail * uz, az)
         if ay is not None:
             ay = np.where(on_rail, a_rail * a["uy"], ay)
+    if not figures:
+        return ax, ay, az
+    if mach is None:
+        mach = speed / sound
+    q = 0.5 * rho_v * speed
     if rates:
-        return ax, ay, az, mach, half_rho_v * speed, _figure_rates(g, a, z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax,
-                                                                   ay, az, speed, rho, sound, slope)
-    return ax, ay, az, mach, half_rho_v * speed
+        return ax, ay, az, mach, q, _figure_rates(g, a, z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax, ay, az, speed,
+                                                  rho, sound, slope)
+    return ax, ay, az, mach, q
 
 
 def _figure_rates(g: _Group, a: dict[str, np.ndarray], z, vx, vy, vz, vrx, vry, wind_x, wind_y, ax, ay, az, speed,

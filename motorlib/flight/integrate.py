@@ -585,6 +585,7 @@ def _active_arrays(run: _Pass, state0: dict[str, np.ndarray], seg0: np.ndarray, 
         a["apogee_found"] = np.zeros(n_all, dtype=bool)
         a["pending"] = np.full(n_all, deploy_altitude_m is not None)
         a["next_q"] = run.queries_s.min(axis=1)
+    a["half_cda"] = 0.5 * (a["cd"] * a["area"] + a["extra"])  # [m²], read by _accel with a constant Cd
     a["stop_t"] = np.full(n_all, np.inf) if stop_time_s is None else np.asarray(stop_time_s, dtype=float).copy()
     a["any_rail"] = bool(a["on_rail"].any())
     # the controller's next step [s]: a fraction of the burn at first; a pass after the ascent starts from its
@@ -857,10 +858,10 @@ def _dopri(g: _Group, a: dict, h: np.ndarray) -> tuple:
         stage = state + h * _combine(_DP_A[i], k)
         k[i, :half] = stage[half:]
         if planar:
-            ax, _, az, _, _ = _accel(g, a, t + _DP_C[i] * h, stage[0], y, stage[1], stage[2], vy, stage[3])
+            ax, _, az = _accel(g, a, t + _DP_C[i] * h, stage[0], y, stage[1], stage[2], vy, stage[3], figures=False)
             k[i, 2], k[i, 3] = ax, az
         else:
-            ax, ay, az, _, _ = _accel(g, a, t + _DP_C[i] * h, *stage)
+            ax, ay, az = _accel(g, a, t + _DP_C[i] * h, *stage, figures=False)
             k[i, 3], k[i, 4], k[i, 5] = ax, ay, az
     new = state + h * _combine(_DP_B, k)
     if planar:
