@@ -179,14 +179,14 @@ def _rail_exit(a: dict, rail_exit_t: np.ndarray, rail_exit_v: np.ndarray, status
     """
     on_rail = a["on_rail"]
     left = on_rail & (x1 * a["ux"] + y1 * a["uy"] + z1 * a["uz"] >= a["rail_m"] * (1.0 - 1e-7))
-    if left.any():
+    if np.count_nonzero(left):
         rows = a["ref"][left]
         rail_exit_t[rows] = t1[left]
         rail_exit_v[rows] = np.sqrt(vx1[left] ** 2 + vy1[left] ** 2 + vz1[left] ** 2)
     slid_back = on_rail & ~left & ((vx1 * a["ux"] + vy1 * a["uy"] + vz1 * a["uz"]) <= 0.0)
     status[a["ref"][slid_back]] = STUCK_ON_RAIL
     a["on_rail"] = on_rail & ~left
-    a["any_rail"] = bool(a["on_rail"].any())
+    a["any_rail"] = np.count_nonzero(a["on_rail"]) > 0
 
 
 _EJECTION_MAXIMA = ("max_speed", "max_mach", "max_acc", "max_q")
@@ -201,7 +201,7 @@ def _ejection_steps(a: dict, queries_s: np.ndarray, e: _StepEnds, steps: list) -
     step ends so far are kept with each step.
     """
     due = a["next_q"] <= e.t1
-    if not due.any():
+    if not np.count_nonzero(due):
         return
     rows_d = np.flatnonzero(due)
     r_all = a["ref"][rows_d]
@@ -243,7 +243,7 @@ def _deploy_altitude_reached(a: dict, at_deploy: dict[str, np.ndarray], deploy_a
     for the deployment state; the test allows 1e-9 relative above the altitude.
     """
     down = a["pending"] & a["apogee_found"] & (e.z1 <= deploy_altitude_m * (1.0 + 1e-9)) & (e.vz1 < 0.0)
-    if down.any():
+    if np.count_nonzero(down):
         r = a["ref"][down]
         for key, value in (("t", e.t1), ("x", e.x1), ("y", e.y1), ("z", e.z1), ("vx", e.vx1), ("vy", e.vy1),
                            ("vz", e.vz1)):

@@ -46,6 +46,10 @@ both ends. Finished flights are compacted out of the arrays.
 Vectorisation contract: k flights simulated together give the same numbers
 as k single runs (each flight's steps depend only on its own state).
 
+The loop's arrays hold a few hundred flights, where a numpy call's fixed cost outweighs its work: masks are
+tested with np.count_nonzero (0.4 us for 10 flights against 1.3-1.5 us for ndarray.any, measured), and the stages
+of a Runge-Kutta step compute no Mach or dynamic pressure.
+
 numpy only (scipy is used by the tests as the reference, never here).
 
 The module runs past 500 lines on purpose: the settings, the passes of one flight (ascent, each device,
@@ -656,7 +660,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     if a["any_rail"]:
         along = x1 * a["ux"] + y1 * a["uy"] + z1 * a["uz"]
         overshot = a["on_rail"] & (along > a["rail_m"] * (1.0 + _RAIL_EXIT_SLACK))
-        if overshot.any():
+        if np.count_nonzero(overshot):
             x1, y1, z1, vx1, vy1, vz1, t1 = (np.where(overshot, old, new) for old, new in (
                 (a["x"], x1), (a["y"], y1), (a["z"], z1), (a["vx"], vx1), (a["vy"], vy1), (a["vz"], vz1), (t, t1)))
             hit_seg = hit_seg & ~overshot
@@ -665,7 +669,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     # ---- phase changes at the step end ----
     was_on_rail = a["on_rail"]
     ended = np.zeros(t.size, dtype=bool)
-    if hit_seg.any():
+    if np.count_nonzero(hit_seg):
         ended = _next_segment(a, run, hit_seg, burning, t1)
     if a["any_rail"]:
         _rail_exit(a, run.rail_exit_t, run.rail_exit_v, run.status, t1, x1, y1, z1, vx1, vy1, vz1)
@@ -676,10 +680,10 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     # ---- error control: a step that switched the dynamics (rail exit, burnout, failure) is taken as it is ----
     # (a burnout is a switch only where the curve ends above zero thrust: a cut-off; a curve that ends at zero
     # is continuous there and its last step is tested like any other)
-    cut_off = ended & (run.end_thrust_n[a["ref"]] > 0.0) if ended.any() else ended
+    cut_off = ended & (run.end_thrust_n[a["ref"]] > 0.0) if np.count_nonzero(ended) else ended
     switched = cut_off | (was_on_rail & ~a["on_rail"]) | (run.status[a["ref"]] != OK)
     # the derivative at a cut-off's end with the thrust just before it: the burn's last step, for its maxima
-    pre_cut = _before_cut_off(g, a, run, cut_off, t1, x1, y1, z1, vx1, vy1, vz1) if cut_off.any() else None
+    pre_cut = _before_cut_off(g, a, run, cut_off, t1, x1, y1, z1, vx1, vy1, vz1) if np.count_nonzero(cut_off) else None
     stages[6] = (vx1, vz1, ax1, az1) if g.planar else (vx1, vy1, vz1, ax1, ay1, az1)
     err = _error_ratio(g, a, s, h, stages)
     rejected = (err > 1.0) & ~switched
@@ -698,7 +702,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     a["h"] = np.where(keep_h, a["h"],
                       np.where(capped, np.minimum(a["h"], np.maximum(allowed, 0.2 * h)),
                                np.minimum(np.maximum(allowed, 0.2 * h), fmax * h)))
-    if rejected.any():  # the flight stays where it was: a step of length zero
+    if np.count_nonzero(rejected):  # the flight stays where it was: a step of length zero
         x1, y1, z1, vx1, vy1, vz1, ax1, ay1, az1, t1 = (
             np.where(rejected, old, new) for old, new in
             ((a["x"], x1), (a["y"], y1), (a["z"], z1), (a["vx"], vx1), (a["vy"], vy1), (a["vz"], vz1),
@@ -706,7 +710,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
         mach1, q1 = np.where(rejected, a["mach"], mach1), np.where(rejected, 0.0, q1)
         rates1 = np.where(rejected, a["rates"], rates1)
         back = rejected & hit_seg
-        if back.any():  # back to the segment the flight is still in, burning
+        if np.count_nonzero(back):  # back to the segment the flight is still in, burning
             a["seg"] = np.where(back, a["seg"] - 1, a["seg"])
             a["burning"] = a["burning"] | (back & ended)
             _load_segment(a, run, back)
@@ -734,9 +738,9 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
         for full, part in zip(end_acc, acc_before):
             full[at] = part
     peaked = ((a["rates"] > 0.0) & (end_rates < 0.0)).any(axis=0)  # rows: speed, q, Mach
-    if peaked.any():
+    if np.count_nonzero(peaked):
         peaked &= flown & ~(switched & ~cut_off) & ~rejected
-        if peaked.any():
+        if np.count_nonzero(peaked):
             k = stages[:, :, peaked]
             half = k.shape[1] // 2
             k[6, half:] = [acc[peaked] for acc in (end_acc[::2] if g.planar else end_acc)]
@@ -745,7 +749,7 @@ def _step(g: _Group, a: dict, run: _Pass, s: FlightSettings, deploy_altitude_m: 
     a["rates"] = rates1
     a.update(t=t1, x=x1, y=y1, z=z1, vx=vx1, vy=vy1, vz=vz1, ax=ax1, ay=ay1, az=az1, mach=mach1)
     if run.history is not None:
-        run.history.append(tuple(a[k][~rejected] if rejected.any() else a[k].copy() for k in _HISTORY))
+        run.history.append(tuple(a[k][~rejected] if np.count_nonzero(rejected) else a[k].copy() for k in _HISTORY))
     _retire(a, run, s, landed, t1, steps, descent, deploy_altitude_m)
 
 
@@ -875,7 +879,7 @@ def _next_segment(a: dict, run: _Pass, hit_seg: np.ndarray, burning: np.ndarray,
     a["seg"] = np.where(hit_seg, a["seg"] + 1, a["seg"])
     ended = hit_seg & ((a["seg"] >= run.last_seg[a["ref"]]) | (t1 >= run.burnout_s[a["ref"]]))
     _load_segment(a, run, hit_seg & ~ended)
-    if ended.any():
+    if np.count_nonzero(ended):
         a["burning"] = burning & ~ended
         _coast_segment(a, ended)
     return ended
@@ -890,21 +894,21 @@ def _record_events(a: dict, run: _Pass, e: _StepEnds, s: FlightSettings, deploy_
     recorded, as are the steps that hold an ejection instant.
     """
     crossing = (e.vz1 <= 0.0) & (e.vz0 > 0.0) & ~a["apogee_found"] & ~a["on_rail"]
-    if crossing.any():
+    if np.count_nonzero(crossing):
         c = crossing
         run.apogee_steps.append((a["ref"][c], e.select(c)))
         for name in _MAXIMA:  # the maxima before apogee (step ends up to this step's start)
             run.apogee[name][a["ref"][c]] = a[name][c]
         a["apogee_found"] = a["apogee_found"] | crossing
     _ejection_steps(a, run.queries_s, e, run.ejection_steps)
-    if deploy_altitude_m is not None and a["pending"].any():
+    if deploy_altitude_m is not None and np.count_nonzero(a["pending"]):
         _deploy_altitude_reached(a, run.at_deploy, deploy_altitude_m, e)
     landed = (e.z1 <= 0.0) & (e.z0 > 0.0) & ~a["on_rail"]
-    if landed.any():
+    if np.count_nonzero(landed):
         run.landing_steps.append((a["ref"][landed], e.select(landed)))
     if descent:
         stopped = (e.t1 >= a["stop_t"]) & ~landed
-        if stopped.any():
+        if np.count_nonzero(stopped):
             r = a["ref"][stopped]
             for key, value in zip(_STATE, (e.t1, e.x1, e.y1, e.z1, e.vx1, e.vy1, e.vz1)):
                 run.stop[key][r] = value[stopped]
@@ -979,10 +983,10 @@ def _retire(a: dict, run: _Pass, s: FlightSettings, landed: np.ndarray, t1: np.n
     else:
         done = landed | (a["apogee_found"] & (t1 >= a["stop_after"]) & ~a["pending"])
     over = (t1 > s.max_time_s) | (steps >= s.max_steps)
-    if over.any():
+    if np.count_nonzero(over):
         run.status[a["ref"][over & ~done]] = STEP_LIMIT
     done = done | over | (run.status[a["ref"]] != OK)
-    if done.any():
+    if np.count_nonzero(done):
         rows = a["ref"][done]
         for name in run.maxima:
             run.maxima[name][rows] = a[name][done]
@@ -990,7 +994,7 @@ def _retire(a: dict, run: _Pass, s: FlightSettings, landed: np.ndarray, t1: np.n
         for name, value in a.items():
             if isinstance(value, np.ndarray):
                 a[name] = value.take(keep, axis=-1)  # (the rates: 3 rows)
-        a["any_rail"] = bool(a["on_rail"].any())
+        a["any_rail"] = np.count_nonzero(a["on_rail"]) > 0
 
 
 def _write_results(run: _Pass, idx: np.ndarray, out: dict[str, np.ndarray], descent: bool) -> None:

@@ -227,14 +227,14 @@ def _descent_step(g: _Group, a: dict[str, np.ndarray], s: FlightSettings) -> np.
     fraction = np.where((air_speed > 1.2 * v_t) | (vz > 0.0), s.opening_step_fraction, s.descent_step_fraction)
     h = fraction * time_scale
     first = np.isinf(a["h"])  # the controller has no step yet: the pass's first
-    if first.any():
+    if np.count_nonzero(first):
         # the fall speed to expect: terminal under a device, at most the drag-free speed at the ground
         v_fall = np.minimum(v_t, np.sqrt(vz * vz + 2.0 * grav * np.maximum(z, 0.0)))
         time_left = np.maximum(z, 1.0) / np.maximum(np.maximum(-vz, v_fall), 0.1)
         h = np.where(first, np.minimum(h, time_left / 30.0), h)
     h = np.clip(h, 1e-5, 10.0)
     t = a["t"]
-    if a["burning"].any():
+    if np.count_nonzero(a["burning"]):
         h = np.where(a["burning"], np.minimum(h, a["seg_end"] - t), h)
     stop = a["stop_t"]
     return np.where(stop > t, np.minimum(h, stop - t), h)

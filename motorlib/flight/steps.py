@@ -32,7 +32,7 @@ def _step_size(g: _Group, a: dict, s: FlightSettings, deploy_altitude_m: float |
     h = a["h"]  # the error controller's step
     if descent:
         h = np.minimum(h, _descent_step(g, a, s))  # ends on curve samples while burning, and on the stop time
-    elif a["burning"].any():
+    elif np.count_nonzero(a["burning"]):
         h = np.where(a["burning"], np.minimum(h, a["seg_end"] - t), h)
     if a["any_rail"]:
         h = _rail_step(a, h)
@@ -41,7 +41,7 @@ def _step_size(g: _Group, a: dict, s: FlightSettings, deploy_altitude_m: float |
         h = _kink_step(g, a, h)
     if not g.calm and g.profile is None:
         h = _height_step(a, h, (g.wind_floor_m, g.wind_cap_m))
-    if deploy_altitude_m is not None and a["pending"].any():
+    if deploy_altitude_m is not None and np.count_nonzero(a["pending"]):
         falling = a["pending"] & a["apogee_found"] & (vz < 0.0)
         above = z - deploy_altitude_m
         # z + vz·h + ½·az·h² = altitude, the stable root (as on the rail); linear where it has none
@@ -89,7 +89,7 @@ def _height_step(a: dict, h: np.ndarray, heights: tuple[float, ...]) -> np.ndarr
         if not np.isfinite(height):
             continue
         crosses = (z - height) * (z_end - height) < 0.0  # on the other side at the step's end
-        if not crosses.any():
+        if not np.count_nonzero(crosses):
             continue
         crosses &= a["wind"] != 0.0  # a calm flight in a windy group steps as it would alone
         at = np.flatnonzero(crosses)  # the few crossing flights only
