@@ -42,31 +42,38 @@ _DP_DENSE: Final = np.array([
 ])
 
 
-def _dense(theta: np.ndarray, h: np.ndarray, state: np.ndarray, stages: np.ndarray, rows: tuple[int, ...]
-           ) -> list[np.ndarray]:
-    """The state components ``rows`` at fractions ``theta`` (shape (p, m)) of steps h (shape (m,)) from the start
-    states ``state`` (components, m) and the steps' stages (7, components, m), by the continuous extension."""
-    powers = np.stack([theta ** (j + 1) for j in range(4)])  # (4, p, m)
-    weights = np.tensordot(_DP_DENSE, powers, axes=(1, 0))  # (7, p, m): Σⱼ P[i, j]·θ^(j+1)
+def _polynomials(h: np.ndarray, state: np.ndarray, stages: np.ndarray, rows: tuple[int, ...]) -> list[tuple]:
+    """The continuous extension of the state components ``rows`` as polynomials in θ, one per step: for each
+    component, its start value and the coefficients h·Σᵢ kᵢ·P[i, j] of θ^(j+1) (each shape (m,)), from the steps'
+    lengths h (m,), start states (components, m) and stages (7, components, m). Summed element by element in a
+    fixed order (no matrix product), so that a step's figures do not depend on the other steps in the batch."""
     out = []
     for c in rows:
-        total = weights[0] * stages[0, c]
-        for i in range(2, 7):  # stage 2's weights are zero
-            total = total + weights[i] * stages[i, c]
-        out.append(state[c] + h * total)
+        coefficients = []
+        for j in range(4):
+            total = _DP_DENSE[0, j] * stages[0, c]
+            for i in range(2, 7):  # stage 2's weights are zero
+                total = total + _DP_DENSE[i, j] * stages[i, c]
+            coefficients.append(h * total)
+        out.append((state[c], *coefficients))
     return out
 
 
-def _figures(g: _Group, params: dict[str, np.ndarray], theta: np.ndarray, h: np.ndarray, state: np.ndarray,
-             stages: np.ndarray, planar: bool) -> np.ndarray:
+def _dense(theta: np.ndarray, polynomials: list[tuple]) -> list[np.ndarray]:
+    """The components of :func:`_polynomials` at fractions ``theta`` (shape (p, m)) of their steps, by Horner's
+    rule: y0 + θ·(c1 + θ·(c2 + θ·(c3 + θ·c4)))."""
+    return [y0 + theta * (c1 + theta * (c2 + theta * (c3 + theta * c4))) for y0, c1, c2, c3, c4 in polynomials]
+
+
+def _figures(g: _Group, params: dict[str, np.ndarray], theta: np.ndarray, polynomials: list[tuple]) -> np.ndarray:
     """Speed over the ground [m/s], dynamic pressure [Pa] and Mach at fractions ``theta`` (shape (p, m)) of the
-    steps: array of shape (3, p, m)."""
+    steps, whose continuous extension is ``polynomials`` (z, vx, vz or z, vx, vy, vz): array of shape (3, p, m)."""
     shape2 = theta.shape
-    if planar:  # components (x, z, vx, vz)
-        z, vx, vz = _dense(theta, h, state, stages, (1, 2, 3))
+    if len(polynomials) == 3:  # planar: y and its speed stay 0
+        z, vx, vz = _dense(theta, polynomials)
         vy = None
-    else:  # (x, y, z, vx, vy, vz)
-        z, vx, vy, vz = _dense(theta, h, state, stages, (2, 3, 4, 5))
+    else:
+        z, vx, vy, vz = _dense(theta, polynomials)
     flat = {k: np.broadcast_to(v, shape2).ravel() for k, v in params.items()}
     zf = z.ravel()
     rho, sound, _, shape = g.lookup(zf)
@@ -91,14 +98,14 @@ def interior_peaks(g: _Group, params: dict[str, np.ndarray], h: np.ndarray, stat
     Dormand–Prince stages, shape (7, components, m), the seventh the derivative at the end.
     """
     m = h.size
-    grid = np.broadcast_to(_FIRST[:, None], (_FIRST.size, m))
-    values = _figures(g, params, grid, h, state, stages, planar)  # (3, p, m)
+    polynomials = _polynomials(h, state, stages, (1, 2, 3) if planar else (2, 3, 4, 5))
+    values = _figures(g, params, np.broadcast_to(_FIRST[:, None], (_FIRST.size, m)), polynomials)  # (3, p, m)
     spacing = _FIRST[1] - _FIRST[0]
     centre = _FIRST[np.argmax(values, axis=1)]  # (3, m): each figure's best point
     lo, hi = np.maximum(centre - spacing, 0.0), np.minimum(centre + spacing, 1.0)
     # each figure's nine points between its best point's neighbours, all searched in one pass: (3·9, m)
     theta = (lo[:, None, :] + (hi - lo)[:, None, :] * _SECOND[None, :, None]).reshape(-1, m)
-    fine_all = _figures(g, params, theta, h, state, stages, planar)
+    fine_all = _figures(g, params, theta, polynomials)
     out = np.empty((3, m))
     cols = np.arange(m)
     n = _SECOND.size

@@ -107,7 +107,7 @@ def test_the_continuous_extension_is_scipys_and_ends_on_the_step() -> None:
     # at θ = 1 it is the fifth-order solution: Σⱼ P[i, j] = bᵢ (b₇ = 0)
     np.testing.assert_allclose(_DP_DENSE.sum(axis=1), list(_DP_B) + [0.0], rtol=0.0, atol=1e-15)
     # y' = y from y(0) = 1 over one step of 0.1: inside the step it follows e^t to the extension's order
-    from motorlib.flight.peaks import _dense
+    from motorlib.flight.peaks import _dense, _polynomials
 
     h = np.array([0.1])
     k = np.empty((7, 1, 1))
@@ -116,5 +116,5 @@ def test_the_continuous_extension_is_scipys_and_ends_on_the_step() -> None:
         k[i, 0, 0] = 1.0 + h[0] * sum(a * k[j, 0, 0] for j, a in enumerate(_DP_A[i]))
     k[6, 0, 0] = 1.0 + h[0] * sum(b * k[j, 0, 0] for j, b in enumerate(_DP_B))  # the derivative at the end
     theta = np.linspace(0.0, 1.0, 11)[:, None]
-    (inside,) = _dense(theta, h, y, k, (0,))
+    (inside,) = _dense(theta, _polynomials(h, y, k, (0,)))
     assert np.max(np.abs(inside[:, 0] - np.exp(theta[:, 0] * 0.1))) < 1e-8  # error O(h^5) ~ 1e-5·1e-4
