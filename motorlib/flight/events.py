@@ -210,14 +210,17 @@ def _ejection_steps(a: dict, queries_s: np.ndarray, e: _StepEnds, steps: list) -
     a["next_q"][rows_d] = np.where(q_rows > e.t1[rows_d, None], q_rows, np.inf).min(axis=1)
 
 
-def _locate_ejections(steps: list, queries_s: np.ndarray, ejection: dict[str, np.ndarray]) -> None:
-    """Interpolate (cubic Hermite) the state at every ejection instant inside the recorded steps, all at once."""
+def _locate_ejections(steps: list, queries_s: np.ndarray, ejection: dict[str, np.ndarray],
+                      landing_t: np.ndarray) -> None:
+    """Interpolate (cubic Hermite) the state at every ejection instant inside the recorded steps, all at once.
+    An instant after the flight's landing (``landing_t``, NaN where it did not land) is no ejection: it stays NaN
+    (the step that reaches the ground ends below it, and an instant inside it past the landing lay under the pad)."""
     if not steps:
         return
     refs, e = _stacked([(r, ends) for r, ends, _ in steps])
     maxima = np.concatenate([m for _, _, m in steps], axis=1)
     q_rows = queries_s[refs]
-    inside = (q_rows > e.t0[:, None]) & (q_rows <= e.t1[:, None])
+    inside = (q_rows > e.t0[:, None]) & (q_rows <= e.t1[:, None]) & ~(q_rows > landing_t[refs][:, None])
     li, b_i = np.nonzero(inside)
     hq = e.h[li]
     tau = (q_rows[li, b_i] - e.t0[li]) / hq

@@ -550,10 +550,11 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
         _step(g, a, run, s, deploy_altitude_m, descent, steps)
     if run.apogee_steps:
         _locate_apogee(run.apogee_steps, run.apogee)
+        _state_maxima(g, run.apogee, params, (run.apogee, run.maxima))
     if run.landing_steps:
         _locate_landing(run.landing_steps, run.landing)
-        _landing_maxima(g, run, params)
-    _locate_ejections(run.ejection_steps, run.queries_s, run.ejection)
+        _state_maxima(g, run.landing, params, (run.maxima,))
+    _locate_ejections(run.ejection_steps, run.queries_s, run.ejection, run.landing["t"])
     if run.peak_steps:
         _interior_maxima(g, run)
     _write_results(run, idx, out, descent)
@@ -962,15 +963,20 @@ def _interior_maxima(g: _Group, run: _Pass) -> None:
             np.maximum.at(ejection[name][:, j], refs[by_then], value[by_then])  # a view: in place
 
 
-def _landing_maxima(g: _Group, run: _Pass, params: dict[str, np.ndarray]) -> None:
-    """The state at ground contact is flown: its speed, q and Mach count in the pass's maxima."""
-    r = np.flatnonzero(np.isfinite(run.landing["t"]))
-    at_ground = {k: run.landing[k][r] for k in ("vx", "vy", "vz")}
-    at_ground["z"] = np.zeros(r.size)
-    air, rho, sound = _air_speed(g, {k: params[k][r] for k in _wind_params(g)}, at_ground)
-    for name, value in (("max_speed", run.landing["speed"][r]), ("max_q", 0.5 * rho * air * air),
-                        ("max_mach", air / sound)):
-        run.maxima[name][r] = np.fmax(run.maxima[name][r], value)
+def _state_maxima(g: _Group, located: dict[str, np.ndarray], params: dict[str, np.ndarray],
+                  targets: tuple[dict[str, np.ndarray], ...]) -> None:
+    """A state located inside a step (apogee, where the vertical speed is 0, or ground contact, at height 0) was
+    flown: its speed, q and Mach count in the maxima ``targets`` (the pass's, and those up to apogee). A flight
+    whose apogee comes during the burn, its speed still rising, has every maximum up to apogee there."""
+    r = np.flatnonzero(np.isfinite(located["t"]))
+    state = {k: located[k][r] for k in ("vx", "vy")}
+    state["vz"] = located["vz"][r] if "vz" in located else np.zeros(r.size)  # apogee: 0
+    state["z"] = located["z"][r] if "z" in located else np.zeros(r.size)  # ground contact: 0
+    air, rho, sound = _air_speed(g, {k: params[k][r] for k in _wind_params(g)}, state)
+    ground = np.sqrt(state["vx"] ** 2 + state["vy"] ** 2 + state["vz"] ** 2)
+    for target in targets:
+        for name, value in (("max_speed", ground), ("max_q", 0.5 * rho * air * air), ("max_mach", air / sound)):
+            target[name][r] = np.fmax(target[name][r], value)
 
 
 def _retire(a: dict, run: _Pass, s: FlightSettings, landed: np.ndarray, t1: np.ndarray, steps: int,

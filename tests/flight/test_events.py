@@ -132,3 +132,15 @@ def test_the_summary_says_whether_the_flight_succeeded() -> None:
     assert results.summary(0)["status"] == "ok" and results.summary(0)["apogee_m"] > 0
     assert results.summary(1)["status"] == "failed" and results.summary(1)["apogee_m"] is None
     assert "lift off" in results.summary(1)["message"]
+
+
+@pytest.mark.parametrize("descent", [False, True])
+def test_a_delay_that_fires_after_landing_has_no_ejection_state(descent: bool) -> None:
+    # the 7 s delay fires at 7.5 s, 0.02 s after the rocket lands (7.48 s), inside the step that reaches the ground:
+    # that state lies below ground (it was reported 0.56 m under the pad; independent check) and is no ejection at all
+    motor = MotorRecord("LATE", [0.0, 0.05, 0.4, 0.5], [0.0, 12.0, 10.0, 0.0], total_mass_kg=0.02,
+                        propellant_mass_kg=0.01, delays_s=(3.0, 7.0))
+    got = simulate(Airframe("stub", 0.1, 0.03, 0.6, launch=Launch(rail_length_m=1.0)), motor, descent=descent)
+    assert got.ejection_altitude_m[0, 0] > 60.0
+    assert math.isnan(got.ejection_altitude_m[0, 1])
+    assert math.isnan(got.ejection_speed_m_s[0, 1]) and math.isnan(got.ejection_vertical_speed_m_s[0, 1])

@@ -102,3 +102,18 @@ def test_a_mach_peak_on_the_tropopause_corner() -> None:
     ref = reference_flight(frame, motor, maxima=True)
     assert got.max_mach[0] > 3.0
     assert got.max_mach[0] == pytest.approx(ref["max_mach"], rel=2e-5)
+
+
+def test_a_flight_whose_apogee_comes_during_the_burn_counts_the_apogee_state() -> None:
+    # a light rocket on a long, weak burn in an 8 m/s wind turns flat into the wind and tops out at 4.6 m while the
+    # motor still burns: its speed still rises at apogee, where every maximum up to it lies (independent check found
+    # the apogee state left out: max speed 16 % low, q 22 % low; an invented motor)
+    motor = MotorRecord("LONG", [0.0, 0.1, 4.9, 5.0], [0.0, 0.7, 0.9, 0.0], total_mass_kg=0.009,
+                        propellant_mass_kg=0.0045)
+    frame = Airframe("kite", 0.032, 0.015, 0.6, launch=Launch(rail_length_m=1.4, rail_angle_rad=math.radians(9.0),
+                                                              wind_speed_m_s=8.0))
+    got = simulate(frame, motor, descent=False)
+    ref = reference_flight(frame, motor, maxima=True)
+    assert got.apogee_time_s[0] < got.burnout_time_s[0]
+    for key in _KEYS:
+        assert getattr(got, key)[0] == pytest.approx(ref[key], rel=1e-5), key
