@@ -13,7 +13,7 @@ from ..errors import QuantityError
 from .group import _Group
 from .options import (_catalog_option, _metadata_for, _metadata_options, _open_catalog, _Quantity,
                       _units_option, display_units, resolve_motor)
-from .output import _check_outputs, _console, _err_console, _json_text
+from .output import _check_outputs, _console, _err_console, _echo_json
 
 
 @click.group(cls=_Group)
@@ -173,7 +173,7 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
     cat = _open_catalog(catalog_dir)
     rows = cat.rows(_filter(opts), sort=key, descending=desc)
     if as_json:
-        click.echo(_json_text([row.as_dict() for row in rows]))
+        _echo_json([row.as_dict() for row in rows])
     elif as_csv:
         from ..present.csvout import catalog_csv
 

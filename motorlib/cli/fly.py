@@ -8,7 +8,7 @@ import click
 
 from .options import (_Finite, _Quantity, _units_option, apply_field_day, display_units, load_motor, motor_options,
                       field_day_options, pop_field_day)
-from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _json_text
+from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _echo_json
 
 if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each command, for a fast start
     from pathlib import Path
@@ -144,7 +144,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}
-        click.echo(_json_text(payload))
+        _echo_json(payload)
         if failed:  # the figures are printed, and the exit status says the flight failed
             raise SystemExit(1)
         return

@@ -9,7 +9,7 @@ import click
 
 from .options import (DEPLOY_LIMITS_TEXT as _DEPLOY_LIMITS, RULES as _RULES, _catalog_option, _catalog_or_samples, _Finite, _open_catalog, _Quantity, _units_option,
                       apply_field_day, display_units, field_day_options, pop_field_day)
-from .output import _EPILOG, _card_units, _check_outputs, _console, _json_text
+from .output import _EPILOG, _card_units, _check_outputs, _console, _echo_json
 from .robust import pop_robust, robust_options, run_robust
 
 
@@ -140,8 +140,10 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
                               units=_card_units(units), frame=frame)
         written.append(_write_report(report, opts["report_path"], opts["overwrite"], [airframe_file]))
     if opts["as_json"]:
-        click.echo(_json_text({"airframe": result.airframe, "conditions": conditions,
-                               "candidates": [c.as_dict() for c in result.candidates]}))
+        from ..matching.candidate import Candidate
+
+        _echo_json({"airframe": result.airframe, "conditions": conditions,
+                    "candidates": Candidate.json_dicts(result.candidates)})
         return
     if opts["as_csv"]:
         from ..present.csvout import candidates_csv

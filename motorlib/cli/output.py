@@ -33,6 +33,22 @@ def _json_text(data: Any) -> str:
     return _strict_json(data, indent=2 if sys.stdout.isatty() else None)
 
 
+def _echo_json(data: Any) -> None:
+    """Print ``data`` as JSON (:func:`_json_text`) and a newline on standard output.
+
+    Written to ``sys.stdout``, not through ``click.echo``: to a pipe or a file, echo runs its ANSI-stripping
+    regular expression over the whole text (``json`` escapes the escape character, so it can never match) and
+    appends the newline by copying the text; for the 9 MB of a 5,000-motor ``match --json`` that was about 50
+    million instructions (1 % of the command). The text is ASCII, so the stream's encoding never matters.
+    """
+    stream = sys.stdout
+    if stream is None:  # no standard output attached (as click.echo, print nothing)
+        return
+    stream.write(_json_text(data))
+    stream.write("\n")
+    stream.flush()
+
+
 def _strict_json(data: Any, **kwargs: Any) -> str:
     """``json.dumps`` that always gives JSON: a non-finite number (which Python writes as ``Infinity`` or
     ``NaN``, which no JSON reader takes) becomes ``null``. Costs nothing when every number is finite."""

@@ -156,6 +156,16 @@ class Candidate:
                 out[name] = out.pop(name)
         return out
 
+    @staticmethod
+    def json_dicts(candidates: Iterable[Candidate]) -> list[dict[str, object]]:
+        """What ``json.dumps`` needs to write :meth:`as_dict` of every candidate, the same text, for writing only
+        (the dicts must not be changed): a candidate that fits hands its own field dict (every field in declaration
+        order, as_dict's order for it; sequences are tuples, which JSON writes as arrays, like lists), one that does
+        not fit its :meth:`as_dict`. At 5,000 candidates the copies of ``as_dict`` cost about 10 ms of a
+        ``match --json``.
+        """
+        return [c.__dict__ if c.fits else c.as_dict() for c in candidates]
+
 
 _UNSET: Final = object()
 # Every field with its default (``_UNSET`` for the identity fields, which have none), in declaration order

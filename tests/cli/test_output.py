@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import json
+import sys
 
 import pytest
 
@@ -32,3 +33,14 @@ def test_json_to_a_pipe_is_one_line(command: list[str]) -> None:
     code, out = run(command[0], str(AIRFRAMES / "quibble-41.toml"), *command[1:], "--json")
     assert code == 0, out
     assert out.count("\n") == 1 and json.loads(out)
+
+
+def test_echo_json_prints_the_json_text_and_a_newline(monkeypatch: pytest.MonkeyPatch) -> None:
+    from motorlib.cli.output import _echo_json
+
+    data = {"name": "\x1b[1mbold\x1b[0m", "speed_m_s": float("inf")}  # escaped, never stripped; inf -> null
+    monkeypatch.setattr("sys.stdout", io.StringIO())
+    text = _json_text(data)
+    _echo_json(data)
+    assert sys.stdout.getvalue() == text + "\n"  # type: ignore[attr-defined]
+    assert json.loads(text) == {"name": "\x1b[1mbold\x1b[0m", "speed_m_s": None}

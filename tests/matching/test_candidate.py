@@ -124,3 +124,13 @@ def test_columns_refuse_what_the_constructor_refuses() -> None:
         _one(values)
     with pytest.raises(ValueError, match="F10-4: every reason and note needs its code"):
         _one(_identity(reasons=("a",)))
+
+
+def test_json_dicts_write_the_text_of_as_dict() -> None:
+    fits = _candidate(reasons=("ejection too fast",), reason_codes=("ejection-fast",), notes=("n",), note_codes=("c",),
+                      ballast_reasons=("a",), ballast_reason_codes=("b",))
+    no_fit = _candidate(fits=False, reasons=("does not fit",), reason_codes=("motor-does-not-fit",), notes=("n",),
+                        note_codes=("c",))
+    for indent in (None, 2):
+        assert (json.dumps(Candidate.json_dicts([fits, no_fit]), indent=indent)
+                == json.dumps([fits.as_dict(), no_fit.as_dict()], indent=indent))
