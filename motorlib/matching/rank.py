@@ -42,7 +42,7 @@ from .adapters import adapter_steps, adapter_text
 from .ballast import _check_stability, _solve_ballast
 from .figures import _figures, flies_descent
 from .candidate import Candidate
-from .verdicts import classify, verdict_order
+from .verdicts import _classify, verdict_order
 from ..flight.delays import DEFAULT_DRILL_STEP_S
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
@@ -308,32 +308,32 @@ def _candidates_of(rows: Sequence[CatalogRow], fit_reasons: Sequence[list[tuple[
     apogees = figure_columns.get("apogee_m", nothing)
     ballasts = figure_columns.get("ballast_kg", nothing)
     ballast_reasons = figure_columns.get("ballast_reasons", nothing)
-    texts, codes_of, note_texts, note_codes, verdicts, passes, ballast_passes = [], [], [], [], [], [], []
     target_m, tolerance = s.target_m, s.target_tolerance
-    for i, (row, reasons, notes, adapter) in enumerate(zip(rows, reasons_of, notes_of, adapters)):
+    empty = ((), ())
+    # one tuple per motor, turned into columns at the end: a single list append per motor instead of seven
+    per_motor = []
+    append = per_motor.append
+    for row, fit, reasons, notes, adapter, apogee, ballast, ballast_reason in zip(
+            rows, fit_reasons, reasons_of, notes_of, adapters, apogees, ballasts, ballast_reasons):
         if row.n_errors:  # never hidden: the flight is of the curve, the flyer buys the label
             reasons = reasons + [("curve-errors", _curve_errors_text(row.n_errors))]
-        if adapter is not None and not fit_reasons[i]:
+        if adapter is not None and not fit:
             notes = [("adapter", f"needs a {adapter} adapter")] + notes
-        codes, reason_texts = zip(*reasons) if reasons else ((), ())  # (pairs -> two tuples)
-        verdict = classify(codes, apogees[i], target_m, tolerance, ballast_kg=ballasts[i],
-                           ballast_reasons=ballast_reasons[i])
-        if verdict.notes:
-            notes = notes + list(verdict.notes)
-        codes_n, texts_n = zip(*notes) if notes else ((), ())
-        texts.append(reason_texts)
-        codes_of.append(codes)
-        note_texts.append(texts_n)
-        note_codes.append(codes_n)
-        verdicts.append(verdict.verdict)
-        passes.append(verdict.passes)
-        ballast_passes.append(verdict.ballast_passes)
+        codes, reason_texts = zip(*reasons) if reasons else empty  # (pairs -> two tuples)
+        verdict, passes, ballast_passes, verdict_notes = _classify(codes, apogee, target_m, tolerance, ballast,
+                                                                   ballast_reason)
+        if verdict_notes:
+            notes = notes + list(verdict_notes)
+        codes_n, texts_n = zip(*notes) if notes else empty
+        append((reason_texts, codes, texts_n, codes_n, verdict, passes, ballast_passes))
+    texts, codes_of, note_texts, note_codes, verdicts, passes_of, ballast_passes_of = (
+        zip(*per_motor) if per_motor else ((),) * 7)
     columns: dict[str, Sequence[Any]] = dict(zip(_IDENTITY, zip(*map(attrgetter(*_IDENTITY), rows)))) if rows else {
         name: [] for name in _IDENTITY}
     columns.update(fits=[not reasons for reasons in fit_reasons], adapter=adapters)
     columns.update(figure_columns)
     columns.update(reasons=texts, reason_codes=codes_of, notes=note_texts, note_codes=note_codes, verdict=verdicts,
-                   passes=passes, ballast_passes=ballast_passes)
+                   passes=passes_of, ballast_passes=ballast_passes_of)
     return Candidate.from_columns(columns)
 
 

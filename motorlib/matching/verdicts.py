@@ -77,23 +77,36 @@ def classify(reason_codes: Sequence[str], apogee_m: float | None, target_m: floa
     ballast_kg, ballast_reasons : float or None, sequence of str or None
         The solved ballast (None when none was solved) and the rules broken with it aboard.
     """
-    notes: list[tuple[str, str]] = []
-    stopping = [code for code in reason_codes if code in _STOPPING]
+    return Verdict(*_classify(reason_codes, apogee_m, target_m, tolerance, ballast_kg, ballast_reasons))
+
+
+def _classify(reason_codes: Sequence[str], apogee_m: float | None, target_m: float | None, tolerance: float,
+              ballast_kg: float | None, ballast_reasons: Sequence[str] | None
+              ) -> tuple[str, bool, bool | None, tuple[tuple[str, str], ...]]:
+    """:func:`classify` as the fields of its :class:`Verdict`, in order: for the ranking, which classifies thousands
+    of candidates at once and reads each field once (a frozen record per candidate cost about 1.5 µs of ~4)."""
+    notes: tuple[tuple[str, str], ...] = ()
+    stopping = None
+    if reason_codes:
+        for code in reason_codes:
+            if code in _STOPPING:
+                stopping = code
+                break
     on_target = True
-    if not stopping and target_m is not None and apogee_m is not None:
+    if stopping is None and target_m is not None and apogee_m is not None:
         miss = (apogee_m - target_m) / target_m
         on_target = abs(miss) <= tolerance
         if not on_target and not reason_codes:  # a failing motor's reasons say enough
             where = "below" if miss < 0 else "above"
-            notes.append((f"{where} target",
-                          f"apogee {apogee_m:.0f} m is {miss_percent(miss, tolerance)} % {where} the {target_m:.0f} m "
-                          f"target (tolerance ±{tolerance * 100:g} %)"
-                          + ("; ballast could bring it down" if miss > 0 and ballast_kg is None else "")))
+            notes = ((f"{where} target",
+                      f"apogee {apogee_m:.0f} m is {miss_percent(miss, tolerance)} % {where} the {target_m:.0f} m "
+                      f"target (tolerance ±{tolerance * 100:g} %)"
+                      + ("; ballast could bring it down" if miss > 0 and ballast_kg is None else "")),)
     ballast_passes = None
     if ballast_kg is not None:
         ballast_passes = not ballast_reasons
-    if stopping:
-        verdict = _STOPPING[stopping[0]]
+    if stopping is not None:
+        verdict = _STOPPING[stopping]
     elif not reason_codes and on_target:
         verdict = "pass"
     elif ballast_passes:
@@ -102,4 +115,4 @@ def classify(reason_codes: Sequence[str], apogee_m: float | None, target_m: floa
         verdict = "off target"
     else:
         verdict = "fail"
-    return Verdict(verdict, verdict == "pass", ballast_passes, tuple(notes))
+    return verdict, verdict == "pass", ballast_passes, notes
