@@ -167,9 +167,23 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
         "ballast_ejection_speed_m_s": [None] * len(rows), "ballast_landing_speed_m_s": [None] * len(rows),
         "ballast_reasons": [None] * len(rows), "ballast_reason_codes": [None] * len(rows),
     }
-    return _Flown(columns, [_broken(f) for f in findings],
-                  [[(code, message) for severity, code, message in f if severity == "note"] for f in findings],
-                  [int(code) for code in results.status])
+    reasons, notes = _split(findings)
+    return _Flown(columns, reasons, notes, results.status.astype(int).tolist())
+
+
+def _split(findings: list[list[tuple[str, str, str]]]) -> tuple[list[list[tuple[str, str]]], list[list[tuple[str, str]]]]:
+    """(code, message) of each flight's findings that fail it (:func:`_broken`) and of its notes, each flight
+    with lists of its own; one pass, and none over a flight that broke nothing (most flights of a large ranking)."""
+    reasons: list[list[tuple[str, str]]] = []
+    notes: list[list[tuple[str, str]]] = []
+    for found in findings:
+        if found:
+            reasons.append(_broken(found))
+            notes.append([(code, message) for severity, code, message in found if severity == "note"])
+        else:
+            reasons.append([])
+            notes.append([])
+    return reasons, notes
 
 
 def _rule_findings(frame: Airframe, rows: list[CatalogRow], results: FlightResults, s: MatchSettings,
