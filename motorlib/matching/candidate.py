@@ -19,6 +19,7 @@ _SEQUENCES: Final = frozenset({"ballast_reasons", "ballast_reason_codes", "nose_
                                "nose_weight_reason_codes", "reasons", "reason_codes", "notes", "note_codes"})
 _NOTES: Final = ("notes", "note_codes")
 _CODED: Final = (("reasons", "reason_codes"), _NOTES)  # each text needs its code
+_OWN_SEQUENCE: Final = frozenset({tuple, type(None)})  # what a sequence field holds once copied
 
 
 @dataclass(frozen=True)
@@ -130,13 +131,16 @@ class Candidate:
         for name, default in _DEFAULTS.items():  # declaration order, which as_dict (the JSON layout) keeps
             column: Iterable[Any] = columns.get(name, repeat(default, n))
             if name in _SEQUENCES and name in columns:
-                column = given[name] = [v if v is None or type(v) is tuple else tuple(v) for v in column]
+                if not set(map(type, column)) <= _OWN_SEQUENCE:  # (checked without a Python loop: the ranking's are)
+                    column = [v if v is None or type(v) is tuple else tuple(v) for v in column]
+                given[name] = column
             full.append(column)
         # _check_codes of every candidate at once (a method call per candidate was a tenth of the building)
-        unequal = [[len(a) != len(b) for a, b in zip(given.get(texts, repeat(())), given.get(codes, repeat(())))]
-                   for texts, codes in _CODED if texts in given or codes in given]
-        if any(map(any, unequal)):
-            first = min(flags.index(True) for flags in unequal if any(flags))
+        lengths = {name: list(map(len, given[name])) for pair in _CODED for name in pair if name in given}
+        none = [0] * n
+        if any(lengths.get(texts, none) != lengths.get(codes, none) for texts, codes in _CODED):
+            first = next(i for i in range(n) if any(lengths.get(texts, none)[i] != lengths.get(codes, none)[i]
+                                                    for texts, codes in _CODED))
             raise ValueError(f"{list(columns['designation'])[first]}: every reason and note needs its code")
         names = tuple(_DEFAULTS)
         new = object.__new__

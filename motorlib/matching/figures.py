@@ -172,17 +172,17 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
 
 
 def _split(findings: list[list[tuple[str, str, str]]]) -> tuple[list[list[tuple[str, str]]], list[list[tuple[str, str]]]]:
-    """(code, message) of each flight's findings that fail it (:func:`_broken`) and of its notes, each flight
-    with lists of its own; one pass, and none over a flight that broke nothing (most flights of a large ranking)."""
+    """(code, message) of each flight's findings that fail it (as :func:`_broken`) and of its notes, each flight
+    with lists of its own; one loop over all of them (a comprehension per flight and kind was a frame each)."""
     reasons: list[list[tuple[str, str]]] = []
     notes: list[list[tuple[str, str]]] = []
     for found in findings:
-        if found:
-            reasons.append(_broken(found))
-            notes.append([(code, message) for severity, code, message in found if severity == "note"])
-        else:
-            reasons.append([])
-            notes.append([])
+        broken: list[tuple[str, str]] = []
+        noted: list[tuple[str, str]] = []
+        for severity, code, message in found:
+            (noted if severity == "note" else broken).append((code, message))
+        reasons.append(broken)
+        notes.append(noted)
     return reasons, notes
 
 

@@ -42,7 +42,7 @@ from .adapters import adapter_steps, adapter_text
 from .ballast import _check_stability, _solve_ballast
 from .figures import _figures, flies_descent
 from .candidate import Candidate
-from .verdicts import _classify, verdict_order
+from .verdicts import VERDICTS, _classify, verdict_order
 from ..flight.delays import DEFAULT_DRILL_STEP_S
 
 __all__ = ["MatchResult", "MatchSettings", "candidate_rows", "mount_problems", "rank"]
@@ -257,7 +257,7 @@ def rank(frame: Airframe, rows: Candidates, pack_for: PackFor | MatchSettings | 
         for i, reasons, notes in zip(fitting, figures.reasons, figures.notes):
             reasons_of[i], notes_of[i] = reasons, notes
     candidates = sorted(_candidates_of(rows, fit_reasons, adapters, figure_columns, reasons_of, notes_of, s),
-                        key=lambda c: _sort_key(c, s))
+                        key=_sort_key_for(s))
     conditions = _conditions(frame, s)
     airframe = {"name": frame.name, "mass_kg": frame.mass_kg, "diameter_m": frame.diameter_m,
                 "mount_diameter_m": frame.mount_diameter_m, "mount_length_m": frame.mount_length_m}
@@ -347,17 +347,29 @@ def _curve_errors_text(n_errors: int) -> str:
             "lists them): the motor sold under this label may not fly like this curve")
 
 
-def _sort_key(c: Candidate, s: MatchSettings) -> tuple[int, float, str]:
-    """Good choices first (by verdict), then closeness to the target (least ballast with ballast), or apogee."""
-    group = verdict_order(c.verdict)
-    apogee = c.apogee_m
-    if apogee is None or not math.isfinite(apogee):
-        return (group, 0.0, c.designation)
-    if c.verdict == "pass with ballast" and c.ballast_kg is not None:
-        return (group, c.ballast_kg, c.designation)
-    if s.target_m is not None:
-        return (group, abs(apogee - s.target_m), c.designation)
-    return (group, -apogee, c.designation)
+def _sort_key_for(s: MatchSettings) -> Callable[[Candidate], tuple[int, float, str]]:
+    """The ranking's sort key: good choices first (by verdict), then closeness to the target (least ballast with
+    ballast), or apogee; then the designation. One call per candidate, the verdict's order looked up inline."""
+    target_m = s.target_m
+    order = verdict_order
+    positions = _VERDICT_POSITIONS
+
+    def key(c: Candidate) -> tuple[int, float, str]:
+        verdict = c.verdict
+        group = positions[verdict] if verdict in positions else order(verdict)  # (order() raises for a non-verdict)
+        apogee = c.apogee_m
+        if apogee is None or not math.isfinite(apogee):
+            return (group, 0.0, c.designation)
+        if verdict == "pass with ballast" and c.ballast_kg is not None:
+            return (group, c.ballast_kg, c.designation)
+        if target_m is not None:
+            return (group, abs(apogee - target_m), c.designation)
+        return (group, -apogee, c.designation)
+
+    return key
+
+
+_VERDICT_POSITIONS = {verdict: verdict_order(verdict) for verdict in VERDICTS}
 
 
 def _conditions(frame: Airframe, s: MatchSettings) -> dict[str, Any]:
