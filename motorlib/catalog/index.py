@@ -17,11 +17,14 @@ Tables::
     motors  COLUMNS, time_blob, thrust_blob                 one row per motor (samples as float64 blobs)
     tags    motor_id, tag                                   a copy of tags.json, for queries
     curves  motor_ids, counts, time_blob, thrust_blob       every motor's samples end to end, in one row (a cache)
+    row_cache  format, data                                 every motor's row, ready to use, in one row (a cache)
 
 The ``curves`` row lets a ranking read the samples of thousands of motors as one blob
-(:func:`.query.motor_pack`). Triggers on ``motors`` delete it in the same transaction as any
-insert, update or delete of a motor, so it never outlives the rows it was built from, whatever
-process (or version of this module) writes them; the next ranking builds it again.
+(:func:`.query.motor_pack`), the ``row_cache`` row their rows (:func:`.query.select_rows`, for
+every motor in the default order, without findings). Triggers on ``motors`` delete both in the
+same transaction as any insert, update or delete of a motor, so they never outlive the rows they
+were built from, whatever process (or version of this module) writes them; the next ranking builds
+them again.
 """
 
 from __future__ import annotations
@@ -43,10 +46,11 @@ from ..motor.record import MotorRecord
 
 __all__ = ["COLUMNS", "INDEX_DIR", "SCHEMA_VERSION", "CatalogIndex", "create_schema", "scan_files"]
 
-SCHEMA_VERSION = "5"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name
+SCHEMA_VERSION = "6"  # 2: ejection column, classes at 0.01 N·s, format 1.1 kinds; 3: indexes on the duplicate-name
 # lookup and on path; 4: files.ctime_ns (a file replaced with its old size and modification time changes it);
-# 5: the curves cache and its triggers (added in place to a version 4 index: create_schema adds what is missing)
-_UPGRADABLE_FROM = "4"
+# 5: the curves cache and its triggers; 6: the row cache and its triggers (each added in place to an index of an
+# earlier version listed here: create_schema adds what is missing)
+_UPGRADABLE_FROM = ("4", "5")
 INDEX_DIR = ".motorlib"
 COLUMNS = ROW_COLUMNS  # the motors table has one column per CatalogRow field, in order
 
@@ -64,9 +68,12 @@ def create_schema(db: sqlite3.Connection) -> None:
     db.execute("CREATE INDEX IF NOT EXISTS motors_path ON motors (path)")  # refresh deletes and replaces by path
     db.execute("CREATE TABLE IF NOT EXISTS tags (motor_id TEXT, tag TEXT, PRIMARY KEY (motor_id, tag))")
     db.execute("CREATE TABLE IF NOT EXISTS curves (motor_ids TEXT, counts BLOB, time_blob BLOB, thrust_blob BLOB)")
-    for event in ("INSERT", "UPDATE", "DELETE"):  # any change to a motor drops the cache, in its own transaction
+    db.execute("CREATE TABLE IF NOT EXISTS row_cache (format TEXT, data BLOB)")
+    for event in ("INSERT", "UPDATE", "DELETE"):  # any change to a motor drops the caches, in its own transaction
         db.execute(f"CREATE TRIGGER IF NOT EXISTS motors_{event.lower()}_drops_curves AFTER {event} ON motors "
                    "BEGIN DELETE FROM curves; END")
+        db.execute(f"CREATE TRIGGER IF NOT EXISTS motors_{event.lower()}_drops_rows AFTER {event} ON motors "
+                   "BEGIN DELETE FROM row_cache; END")
     db.execute("INSERT OR REPLACE INTO meta VALUES ('schema', ?)", (SCHEMA_VERSION,))
 
 
@@ -134,7 +141,7 @@ def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSett
 
 
 class _PreviousSchema(sqlite3.DatabaseError):
-    """An undamaged index of the version before :data:`SCHEMA_VERSION`: upgraded in place, under the writer lock."""
+    """An undamaged index of an earlier version (one of ``_UPGRADABLE_FROM``): upgraded in place, under the writer lock."""
 
 
 class CatalogIndex:
@@ -190,7 +197,7 @@ class CatalogIndex:
             try:
                 return self._open_checked(create=False)
             except _PreviousSchema:
-                db = self._open_file()  # sound, one version behind: add what it lacks, keep every row
+                db = self._open_file()  # sound, of an earlier version: add what it lacks, keep every row
                 db.execute("BEGIN IMMEDIATE")
                 create_schema(db)
                 db.execute("COMMIT")
@@ -219,14 +226,14 @@ class CatalogIndex:
         db = self._open_file(create=create)
         try:
             version = db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone()
-            if version is None or version[0] not in (SCHEMA_VERSION, _UPGRADABLE_FROM):
+            if version is None or version[0] not in (SCHEMA_VERSION, *_UPGRADABLE_FROM):
                 raise sqlite3.DatabaseError("schema version mismatch")
             # a damaged page the queries of one command never touch would break the next command: check them all
             verdict = db.execute("PRAGMA quick_check(1)").fetchone()[0]
             if verdict != "ok":
                 raise sqlite3.DatabaseError(f"damaged: {verdict}")
             if version[0] != SCHEMA_VERSION:
-                raise _PreviousSchema("schema one version behind")
+                raise _PreviousSchema("schema of an earlier version")
             return db
         except BaseException:
             db.close()

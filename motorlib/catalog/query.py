@@ -9,9 +9,13 @@ pandas is imported only inside :func:`query`, so the matcher's path
 from __future__ import annotations
 
 import json
+import marshal
 import sqlite3
+import sys
 from dataclasses import dataclass
-from typing import Any, Sequence
+from itertools import chain
+from operator import attrgetter, itemgetter
+from typing import Any, Callable, Sequence, TypeVar
 
 import numpy as np
 
@@ -19,7 +23,7 @@ from ..flight.delays import offers_delay
 from ..flight.pack import MotorPack
 from ..motor.checks import Finding
 from ..motor.classes import CLASS_LETTERS
-from ..motor.listing import CatalogRow
+from ..motor.listing import ROW_COLUMNS, CatalogRow
 from .index import COLUMNS
 from ..flight.delays import DEFAULT_DRILL_STEP_S
 
@@ -112,10 +116,20 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
 
     ``findings=False`` leaves each row's check findings unread (``findings`` None; the counts ``n_errors`` and
     ``n_warnings`` stay): the ranking never reads them, and at 5,000 motors parsing them is a third of the time.
+    Every motor in the default order without findings (a ranking of the whole catalog) comes from the index's
+    row cache (:func:`_cached_rows`).
     """
     if sort not in SORT_KEYS:
         raise ValueError(f"`sort` must be one of {', '.join(SORT_KEYS)}, got {sort!r}")
     f = where or CatalogFilter()
+    if not findings and f == _EVERY_MOTOR and sort == _DEFAULT_SORT and not descending:
+        return _cached_rows(db, lambda: _selected_rows(db, f, sort, descending, findings))
+    return _selected_rows(db, f, sort, descending, findings)
+
+
+def _selected_rows(db: sqlite3.Connection, f: CatalogFilter, sort: str, descending: bool,
+                   findings: bool) -> list[CatalogRow]:
+    """:func:`select_rows` read from the ``motors`` table."""
     clauses, args = _where(f)
     names = COLUMNS if findings else tuple(c if c != "findings" else "NULL" for c in COLUMNS)
     sql = f"SELECT {', '.join(names)} FROM motors"
@@ -135,6 +149,92 @@ def select_rows(db: sqlite3.Connection, where: CatalogFilter | None = None, *, s
 
 _DELAYS = COLUMNS.index("delays_s")
 _FINDINGS = COLUMNS.index("findings")
+_EVERY_MOTOR = CatalogFilter()
+_DEFAULT_SORT = "total_impulse_ns"
+# What a row cache holds: marshal's format is Python's own (it may change between versions), the fields are
+# CatalogRow's; a cache of another format is built again.
+_ROW_CACHE_FORMAT = (f"marshal {marshal.version} python {sys.version_info[0]}.{sys.version_info[1]}: "
+                     + ",".join(ROW_COLUMNS))
+_FIELDS = attrgetter(*ROW_COLUMNS)
+# The types a cached row's fields may hold (delays: a tuple of floats); anything else and the cache is not used
+_CACHED_TYPES = frozenset({str, int, float, bool, tuple, type(None)})
+
+
+def _cached_rows(db: sqlite3.Connection, read: Callable[[], list[CatalogRow]]) -> list[CatalogRow]:
+    """Every motor's row in the default order without findings, from the ``row_cache`` row of the index (built by
+    ``read`` and stored when missing, as :func:`_curves` stores its cache).
+
+    The cache holds each row's fields, ready to use (delays as tuples of floats), as one marshal blob: loading it
+    is about a fifth of the work of reading the columns of 5,000 motors from the ``motors`` table and parsing
+    their delays (measured with callgrind: 40 against 215 million instructions). Marshal is Python's own format
+    for trusted data, so what comes out is checked (a list of tuples of the row's length holding only numbers,
+    text, None and tuples of floats) before it is used; anything else, or a blob marshal refuses, is treated as
+    a missing cache.
+    """
+    found = db.execute("SELECT format, data FROM row_cache").fetchone()
+    if found is not None and found[0] == _ROW_CACHE_FORMAT:
+        values = _loaded_rows(found[1])
+        if values is not None:
+            return CatalogRow.from_fields(values)
+    return _store_when_free(db, read, lambda rows: (
+        db.execute("DELETE FROM row_cache"),
+        db.execute("INSERT INTO row_cache VALUES (?, ?)",
+                   (_ROW_CACHE_FORMAT, marshal.dumps([_FIELDS(row) for row in rows])))))
+
+
+def _loaded_rows(data: bytes) -> list[tuple[Any, ...]] | None:
+    """The row fields in a ``row_cache`` blob, or None if it is not a list of such rows (see :func:`_cached_rows`)."""
+    try:
+        values = marshal.loads(data)
+    except (EOFError, ValueError, TypeError):
+        return None
+    if type(values) is not list or not set(map(type, values)) <= {tuple} or not set(map(len, values)) <= {_N_FIELDS}:
+        return None
+    types = list(map(type, chain.from_iterable(values)))
+    if not set(types) <= _CACHED_TYPES or types.count(tuple) != len(values):  # one tuple a row: its delays
+        return None
+    delays = list(map(_DELAYS_OF, values))
+    if not set(map(type, delays)) <= {tuple} or not set(map(type, chain.from_iterable(delays))) <= {float}:
+        return None
+    return values
+
+
+_N_FIELDS = len(ROW_COLUMNS)
+_DELAYS_OF = itemgetter(ROW_COLUMNS.index("delays_s"))
+_T = TypeVar("_T")
+
+
+def _store_when_free(db: sqlite3.Connection, read: Callable[[], _T], store: Callable[[_T], object]) -> _T:
+    """What ``read`` returns, stored by ``store`` in the same write transaction when that cannot wait (a cache
+    of the index: see :func:`_curves`).
+
+    Storing is only tried outside any other transaction and while no other process writes the catalog
+    (``BEGIN IMMEDIATE`` with no wait); otherwise what is committed is read, and stored by a later reader.
+    Reading inside the write transaction means no change to a motor can fall between reading and storing (the
+    triggers on ``motors`` drop the caches in the transaction of any change).
+    """
+    if db.in_transaction:
+        return read()
+    (timeout,) = db.execute("PRAGMA busy_timeout").fetchone()
+    db.execute("PRAGMA busy_timeout = 0")
+    try:
+        db.execute("BEGIN IMMEDIATE")
+    except sqlite3.OperationalError:  # another process is writing
+        began = False
+    else:
+        began = True
+    finally:
+        db.execute(f"PRAGMA busy_timeout = {int(timeout)}")
+    if not began:
+        return read()
+    try:
+        value = read()
+        store(value)
+        db.execute("COMMIT")
+    except BaseException:
+        db.execute("ROLLBACK")
+        raise
+    return value
 
 
 def query(db: sqlite3.Connection, where: CatalogFilter | None = None, **kwargs: Any) -> Any:
@@ -217,25 +317,4 @@ def _build_curves(db: sqlite3.Connection) -> tuple[str, bytes, bytes, bytes]:
         return (",".join(m for m, _, _ in motors), np.array([len(t) // 8 for _, t, _ in motors], dtype="<i8").tobytes(),
                 b"".join(t for _, t, _ in motors), b"".join(f for _, _, f in motors))
 
-    if db.in_transaction:
-        return read()
-    (timeout,) = db.execute("PRAGMA busy_timeout").fetchone()
-    db.execute("PRAGMA busy_timeout = 0")
-    try:
-        db.execute("BEGIN IMMEDIATE")
-    except sqlite3.OperationalError:  # another process is writing
-        began = False
-    else:
-        began = True
-    finally:
-        db.execute(f"PRAGMA busy_timeout = {int(timeout)}")
-    if not began:
-        return read()  # what is committed; stored by a later ranking
-    try:
-        row = read()
-        db.execute("INSERT INTO curves VALUES (?, ?, ?, ?)", row)
-        db.execute("COMMIT")
-    except BaseException:
-        db.execute("ROLLBACK")
-        raise
-    return row
+    return _store_when_free(db, read, lambda row: db.execute("INSERT INTO curves VALUES (?, ?, ?, ?)", row))

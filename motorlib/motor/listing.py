@@ -113,6 +113,20 @@ class CatalogRow:
         return out
 
     @classmethod
+    def from_fields(cls, rows: Sequence[Sequence[object]]) -> list[CatalogRow]:
+        """One record per sequence of field values in :data:`ROW_COLUMNS` order, each already in the row's own
+        form (delays a tuple of floats, the flag a bool, findings a tuple or None: the fields of a record built
+        here, as the catalog's row cache keeps them). Nothing is converted or checked."""
+        new = object.__new__
+        out = []
+        append = out.append
+        for values in rows:
+            row = new(cls)
+            row.__dict__.update(zip(ROW_COLUMNS, values))  # frozen: fields are set once, here
+            append(row)
+        return out
+
+    @classmethod
     def from_record(cls, record: MotorRecord, motor_id: str, *, path: str | None = None,
                     settings: CheckSettings | None = None,
                     findings: Sequence[Finding] | None = None) -> CatalogRow:

@@ -2,7 +2,10 @@
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
+
+import pytest
 
 from motorlib import MotorRecord, read_record, write_record
 from motorlib.catalog import Catalog, CatalogFilter
@@ -109,6 +112,74 @@ def test_curves_cache_never_outlives_a_change(tmp_catalog: Catalog) -> None:
     _pack_is_the_files(other)
 
 
+def _stored_rows(catalog: Catalog) -> int:
+    return catalog._db.execute("SELECT count(*) FROM row_cache").fetchone()[0]
+
+
+def _rows_are_the_table(catalog: Catalog) -> None:
+    """The rows of a ranking (every motor, no findings: from the row cache) are the rows read from the table."""
+    from motorlib.catalog import query
+
+    cached = catalog.rows(findings=False)
+    assert cached == query._selected_rows(catalog._db, CatalogFilter(), "total_impulse_ns", False, False)
+    assert cached == [dataclasses.replace(row, findings=None) for row in catalog.rows()]
+    assert all(type(row.delays_s) is tuple and type(row.delay_adjustable) is bool for row in cached)
+
+
+def test_row_cache_never_outlives_a_change(tmp_catalog: Catalog) -> None:
+    # Issue 16: a ranking reads every row from one cached blob; as the curves cache, any change to the motors drops
+    # it in the same transaction, whoever makes it.
+    root = tmp_catalog.root
+    _rows_are_the_table(tmp_catalog)
+    assert _stored_rows(tmp_catalog) == 1
+    _rows_are_the_table(tmp_catalog)  # read from the cache this time
+    changes = [
+        lambda c: c.add(MotorRecord("D10-3", [0.0, 0.1, 1.6, 1.7], [0.0, 12.0, 10.0, 0.0], maker="Added (fictional)",
+                                    delays_s=(3.0, 5.0))),
+        lambda c: c.remove("G59-10"),
+        lambda c: c.reindex(),
+    ]
+    for change in changes:
+        change(tmp_catalog)
+        assert _stored_rows(tmp_catalog) == 0
+        _rows_are_the_table(tmp_catalog)
+        assert _stored_rows(tmp_catalog) == 1
+    next(root.glob("marmalade*/*.xml")).unlink()  # behind its back; another process opens
+    other = Catalog(root)
+    assert _stored_rows(other) == 0
+    _rows_are_the_table(tmp_catalog)
+    _rows_are_the_table(other)
+
+
+@pytest.mark.parametrize("blob", [b"", b"\x00garbage", "marshal of the wrong shape", "a row of the wrong length",
+                                  "a list in a field", "an int among the delays"])
+def test_a_row_cache_that_is_not_rows_is_built_again(tmp_catalog: Catalog, blob: object) -> None:
+    import marshal
+
+    from motorlib.catalog import query
+
+    _rows_are_the_table(tmp_catalog)
+    (data,) = tmp_catalog._db.execute("SELECT data FROM row_cache").fetchone()
+    rows = marshal.loads(data)
+    delays = query.ROW_COLUMNS.index("delays_s")
+    bad = {"marshal of the wrong shape": marshal.dumps({"rows": rows}),
+           "a row of the wrong length": marshal.dumps([row[:-1] for row in rows]),
+           "a list in a field": marshal.dumps([row[:2] + ([1.0],) + row[3:] for row in rows]),
+           "an int among the delays": marshal.dumps([row[:delays] + ((3,),) + row[delays + 1:] for row in rows]),
+           }.get(blob, blob)  # type: ignore[call-overload]
+    tmp_catalog._db.execute("UPDATE row_cache SET data = ?", (bad,))
+    _rows_are_the_table(tmp_catalog)  # read from the table (and stored again)
+    (again,) = tmp_catalog._db.execute("SELECT data FROM row_cache").fetchone()
+    assert again == data
+
+
+def test_row_cache_of_another_format_is_built_again(tmp_catalog: Catalog) -> None:
+    _rows_are_the_table(tmp_catalog)
+    tmp_catalog._db.execute("UPDATE row_cache SET format = 'marshal 1 python 2.7: motor_id'")
+    _rows_are_the_table(tmp_catalog)
+    assert tmp_catalog._db.execute("SELECT count(*), min(format) FROM row_cache").fetchone()[1].startswith("marshal 4")
+
+
 def test_curves_cache_is_not_stored_while_another_process_writes(tmp_catalog: Catalog) -> None:
     import sqlite3
 
@@ -116,20 +187,25 @@ def test_curves_cache_is_not_stored_while_another_process_writes(tmp_catalog: Ca
     writer.execute("BEGIN IMMEDIATE")  # another writer holds the index: the pack is read, not stored, not waited on
     try:
         _pack_is_the_files(tmp_catalog)
-        assert _stored_curves(tmp_catalog) == 0
+        _rows_are_the_table(tmp_catalog)
+        assert _stored_curves(tmp_catalog) == 0 and _stored_rows(tmp_catalog) == 0
     finally:
         writer.execute("ROLLBACK")
         writer.close()
     (timeout,) = tmp_catalog._db.execute("PRAGMA busy_timeout").fetchone()
     assert timeout == 60000  # the connection waits for writers as before
     _pack_is_the_files(tmp_catalog)
-    assert _stored_curves(tmp_catalog) == 1
+    _rows_are_the_table(tmp_catalog)
+    assert _stored_curves(tmp_catalog) == 1 and _stored_rows(tmp_catalog) == 1
 
 
-def test_an_index_of_the_previous_version_is_upgraded_in_place(tmp_catalog: Catalog) -> None:
-    # Issue 16 added the curves cache (schema 5): a version 4 index keeps its rows, tags and stamps (no file is
-    # read again, nothing is moved aside) and gains the cache and its triggers.
+@pytest.mark.parametrize("version", ["4", "5"])
+def test_an_index_of_an_earlier_version_is_upgraded_in_place(tmp_catalog: Catalog, version: str) -> None:
+    # Issue 16 added the curves cache (schema 5) and the row cache (schema 6): an index of version 4 or 5 keeps its
+    # rows, tags and stamps (no file is read again, nothing is moved aside) and gains the caches and their triggers.
     import sqlite3
+
+    from motorlib.catalog.index import SCHEMA_VERSION
 
     root = tmp_catalog.root
     tmp_catalog.tag(["G59-10"], "in-stock")
@@ -137,16 +213,22 @@ def test_an_index_of_the_previous_version_is_upgraded_in_place(tmp_catalog: Cata
     tmp_catalog.close()
     db = sqlite3.connect(root / ".motorlib" / "index.sqlite", isolation_level=None)
     for event in ("insert", "update", "delete"):
-        db.execute(f"DROP TRIGGER motors_{event}_drops_curves")
-    db.execute("DROP TABLE curves")
-    db.execute("UPDATE meta SET value = '4' WHERE key = 'schema'")
+        db.execute(f"DROP TRIGGER motors_{event}_drops_rows")
+        if version == "4":
+            db.execute(f"DROP TRIGGER motors_{event}_drops_curves")
+    db.execute("DROP TABLE row_cache")
+    if version == "4":
+        db.execute("DROP TABLE curves")
+    db.execute("UPDATE meta SET value = ? WHERE key = 'schema'", (version,))
     db.close()
     reopened = Catalog(root)
     assert not reopened.notices and not (root / ".motorlib" / "index.corrupt").exists()
     assert reopened.rows() == before
     assert [r.designation for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
-    assert reopened._db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone() == ("5",)
+    assert reopened._db.execute("SELECT value FROM meta WHERE key = 'schema'").fetchone() == (SCHEMA_VERSION,)
     _pack_is_the_files(reopened)
+    _rows_are_the_table(reopened)
     reopened.remove("G59-10")  # the triggers came with the upgrade
-    assert _stored_curves(reopened) == 0
+    assert _stored_curves(reopened) == 0 and _stored_rows(reopened) == 0
     _pack_is_the_files(reopened)
+    _rows_are_the_table(reopened)
