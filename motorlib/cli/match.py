@@ -158,10 +158,11 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
                                      console.width))
     console.print(render.match_legend(result, opts["top"], opts["show_rejected"]))
     console.print(render.match_reasons(result, units, opts["top"], opts["show_rejected"]), end="")
-    rejected = sum(not c.fits for c in result.candidates)
+    fits = [c.fits for c in result.candidates]
+    rejected = fits.count(False)
     if rejected and not opts["show_rejected"]:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
-    listed = sum(c.fits or opts["show_rejected"] for c in result.candidates)
+    listed = len(fits) if opts["show_rejected"] else len(fits) - rejected
     if opts["top"] is not None and listed > opts["top"]:
         console.print(f"{listed - opts['top']} more ranked motor(s) below #{opts['top']} are not shown (--top); "
                       "--json lists every one.")

@@ -283,8 +283,9 @@ def motor_names(motors: list[tuple[str, str | None]], with_maker_column: bool,
                  among: list[tuple[str, str | None]] | None = None) -> list[str]:
     """Designations of (designation, maker) pairs, with a maker tag where the same designation comes from
     several makers in ``among`` (default: ``motors``; give the whole ranking when only its top is shown)."""
-    makers: dict[str, set[str]] = {}
+    makers: dict[str, set[str]] = {designation: set() for designation, _ in motors}
     for designation, maker in (motors if among is None else among):
-        makers.setdefault(designation, set()).add(maker or "")
+        if designation in makers:  # (only the designations named: a top ten among 5,000 motors)
+            makers[designation].add(maker or "")
     return [designation if with_maker_column or len(makers.get(designation, ())) < 2
             else f"{designation} {_maker_tag(maker or '', makers[designation])}" for designation, maker in motors]

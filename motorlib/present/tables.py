@@ -13,6 +13,8 @@ would suggest because it holds every command's screen; each function renders one
 from __future__ import annotations
 
 import math
+from itertools import islice
+from operator import attrgetter
 
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Iterable
@@ -488,8 +490,14 @@ def add_results_table(results: list) -> Table | None:
 
 # ----------------------------------------------------------------------------- matching
 def _shown(result: MatchResult, top: int | None, show_rejected: bool) -> list[Candidate]:
-    shown = [c for c in result.candidates if c.fits or show_rejected]
-    return shown if top is None else shown[:top]
+    """The candidates listed: those that fit (every one with ``show_rejected``), the first ``top`` of them. With
+    ``top`` the scan stops there: of 5,000 candidates a top ten reads a few dozen."""
+    shown = result.candidates if show_rejected else filter(_FITS, result.candidates)
+    return list(shown if top is None else islice(shown, top))
+
+
+_FITS = attrgetter("fits")
+_NAME = attrgetter("designation", "maker")
 
 
 def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | None = None, show_rejected: bool = False,
@@ -526,8 +534,7 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
     if ballast:
         _right(table, u.header("+mass", ballast_unit))
     table.add_column("result", no_wrap=True)
-    everyone = [(c.designation, c.maker) for c in result.candidates]
-    names = motor_names([(c.designation, c.maker) for c in shown], wide, among=everyone)
+    names = motor_names(list(map(_NAME, shown)), wide, among=list(map(_NAME, result.candidates)))
     for rank, (c, name) in enumerate(zip(shown, names), 1):
         codes = set(c.reason_codes)
         if c.apogee_m is None:
