@@ -14,6 +14,8 @@ cannot be read or is not what it should be, an output that cannot be written; 3 
 
 from __future__ import annotations
 
+import errno
+
 import os
 from typing import Any
 
@@ -56,6 +58,8 @@ class _Group(click.Group):
         except (click.exceptions.ClickException, click.exceptions.Exit, click.exceptions.Abort):
             raise
         except OSError as exc:
+            if exc.errno == errno.EPIPE:  # the reader of standard output stopped (`| head`): click ends quietly
+                raise
             raise _InputError(os_error_text(exc)) from exc
         except MemoryError as exc:
             raise _InputError("out of memory: the input is far larger than motorlib can handle") from exc

@@ -50,3 +50,16 @@ def test_demo_never_replaces_a_file_and_runs_again(tmp_path: Path, monkeypatch: 
     assert code == 0, out
     assert (tmp_path / "motorlib-demo.png").read_bytes() == b"an older chart"
     assert (tmp_path / "motorlib-demo-1.png").read_bytes()[:4] == b"\x89PNG" and "motorlib-demo-1.png" in out
+
+
+def test_a_reader_that_stops_early_ends_the_command_quietly() -> None:
+    # `motorlib match ... --json | head` closes the pipe early: the command stops without an "Error: Broken pipe"
+    # (as shell tools do), not with the message an unwritable output file gets
+    samples = Path(__file__).resolve().parents[2] / "sample_curves"
+    process = subprocess.Popen([sys.executable, "-m", "motorlib", "catalog", "list", "--catalog", str(samples),
+                                "--json"], stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    process.stdout.close()  # the reader is gone before the first byte
+    error = process.stderr.read().decode()
+    process.stderr.close()
+    assert process.wait() != 0
+    assert "Error" not in error and "Traceback" not in error, error
