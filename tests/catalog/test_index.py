@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import dataclasses
+from typing import Callable
 from pathlib import Path
 
 import pytest
@@ -87,16 +88,7 @@ def test_curves_cache_never_outlives_a_change(tmp_catalog: Catalog) -> None:
     root = tmp_catalog.root
     _pack_is_the_files(tmp_catalog)
     assert _stored_curves(tmp_catalog) == 1
-    changes = [
-        lambda c: c.add(MotorRecord("D10-3", [0.0, 0.1, 1.6, 1.7], [0.0, 12.0, 10.0, 0.0], maker="Added (fictional)")),
-        lambda c: c.remove("G59-10"),
-        lambda c: c.reindex(),
-    ]
-    for change in changes:
-        change(tmp_catalog)
-        assert _stored_curves(tmp_catalog) == 0
-        _pack_is_the_files(tmp_catalog)
-        assert _stored_curves(tmp_catalog) == 1
+    _after_each_change(tmp_catalog, _stored_curves, _pack_is_the_files)
     # behind its back: a file edited (new samples, same name), one deleted, one added; another process opens
     edited = next(root.glob("teakettle*/c6*.xml"))
     record = read_record(edited)
@@ -133,17 +125,7 @@ def test_row_cache_never_outlives_a_change(tmp_catalog: Catalog) -> None:
     _rows_are_the_table(tmp_catalog)
     assert _stored_rows(tmp_catalog) == 1
     _rows_are_the_table(tmp_catalog)  # read from the cache this time
-    changes = [
-        lambda c: c.add(MotorRecord("D10-3", [0.0, 0.1, 1.6, 1.7], [0.0, 12.0, 10.0, 0.0], maker="Added (fictional)",
-                                    delays_s=(3.0, 5.0))),
-        lambda c: c.remove("G59-10"),
-        lambda c: c.reindex(),
-    ]
-    for change in changes:
-        change(tmp_catalog)
-        assert _stored_rows(tmp_catalog) == 0
-        _rows_are_the_table(tmp_catalog)
-        assert _stored_rows(tmp_catalog) == 1
+    _after_each_change(tmp_catalog, _stored_rows, _rows_are_the_table)
     next(root.glob("marmalade*/*.xml")).unlink()  # behind its back; another process opens
     other = Catalog(root)
     assert _stored_rows(other) == 0
@@ -232,3 +214,19 @@ def test_an_index_of_an_earlier_version_is_upgraded_in_place(tmp_catalog: Catalo
     assert _stored_curves(reopened) == 0 and _stored_rows(reopened) == 0
     _pack_is_the_files(reopened)
     _rows_are_the_table(reopened)
+
+
+def _after_each_change(catalog: Catalog, stored: Callable[[Catalog], int], check: Callable[[Catalog], None]) -> None:
+    """A motor added, one removed, the index rebuilt: each drops the cache (``stored`` counts its rows), and the
+    next read (``check``, which compares it with what it caches) stores it again."""
+    changes = [
+        lambda c: c.add(MotorRecord("D10-3", [0.0, 0.1, 1.6, 1.7], [0.0, 12.0, 10.0, 0.0], maker="Added (fictional)",
+                                    delays_s=(3.0, 5.0))),
+        lambda c: c.remove("G59-10"),
+        lambda c: c.reindex(),
+    ]
+    for change in changes:
+        change(catalog)
+        assert stored(catalog) == 0
+        check(catalog)
+        assert stored(catalog) == 1
