@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import dataclasses
-from typing import Callable
 from pathlib import Path
+from typing import Callable
 
 import pytest
 
