@@ -103,10 +103,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     wanted = None if delay_s is None else np.array([delay_s])
     results = simulate(frame, [motor], added_mass_kg=ballast_kg or 0.0, deploy_delay_s=wanted,
                        trajectories=bool(csv_path or plot_path or report_path))
-    summary = results.summary(0, motor.delays_s)
+    summary = results.summary(0, motor.delays_s, delay_s)
     summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
-    if delay_s is not None and frame.recovery is None:
-        summary["chosen_delay_s"] = delay_s
     rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=np.array([summary["chosen_delay_s"]], dtype=float),
                                delays_known=motor.ejection != "unknown")

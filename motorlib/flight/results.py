@@ -170,19 +170,22 @@ class FlightResults:
         col, found = nearest_delay_column(self.ejection_delay_s[i:i + 1], self.optimal_delay_s[i:i + 1])
         return float(self.ejection_delay_s[i, col[0]]) if found[0] else math.nan
 
-    def summary(self, i: int, listed_delays_s: Sequence[float] | None = None) -> dict[str, object]:
+    def summary(self, i: int, listed_delays_s: Sequence[float] | None = None,
+                delay_s: float | None = None) -> dict[str, object]:
         """Flight ``i`` as a plain dict of SI figures (the ``fly --json`` layout). Times from ignition.
 
         ``chosen_ejection_speed_m_s`` and ``ejections[k].speed_m_s`` are speeds over the ground when a delay
         fires; ``deployments[k].speed_m_s`` is the speed through the air when a device opens (see the class).
 
         ``listed_delays_s`` limits ``ejections`` to the motor's listed delays (and the chosen one),
-        leaving out the drillable values of adjustable motors.
+        leaving out the drillable values of adjustable motors. ``delay_s``: the delay asked for (the
+        ``deploy_delay_s`` the flight was flown with), the chosen one even where it opened nothing (it fires
+        after landing: its ejection figures are then None), not the listed one closest to the optimal delay.
         """
         def num(value: float) -> float | None:
             return float(value) if np.isfinite(value) else None
 
-        chosen = self.chosen_delay_s(i)
+        chosen = self.chosen_delay_s(i) if delay_s is None else float(delay_s)
         ejections = []
         chosen_speed = None
         for k, delay in enumerate(self.ejection_delay_s[i]):

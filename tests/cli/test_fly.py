@@ -144,3 +144,13 @@ def test_fly_takes_the_label_on_the_motor_with_one_of_its_delays() -> None:
     assert code == 2 and "E9-6" in out and "6 s" in out, out
     code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", "E9-5")
     assert code == 2 and "E9-4,6,8" in out and "4, 6, 8" in out, out
+
+
+def test_a_delay_asked_for_that_fires_after_landing_is_the_one_reported() -> None:
+    # C6-7: the label's 7 s delay fires after this rocket lands (new-user trial: the card said "chosen delay 3 s",
+    # a delay nobody fitted, with a tick, and no word that the charge fires on the ground)
+    for args in (("--motor", "C6-7"), ("--motor", "C6-3,5,7", "--delay", "7")):
+        code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), *args, "--json")
+        flight = json.loads(out)
+        assert flight["chosen_delay_s"] == 7.0 and flight["chosen_ejection_speed_m_s"] is None, args
+        assert "lands-before-ejection" in [w["code"] for w in flight["warnings"]], args
