@@ -12,6 +12,11 @@ from .options import (DEPLOY_LIMITS_TEXT as _DEPLOY_LIMITS, RULES as _RULES, _ca
 from .output import _EPILOG, _card_units, _check_outputs, _console, _echo_json
 from .robust import pop_robust, robust_options, run_robust
 
+# Rows of the ranking table unless --top says otherwise: a screen or two. A 5,000-motor catalog printed whole was
+# 33,000 lines and 4.5-6.7 s of drawing (new-user trial), which nobody reads; the line below the table says how
+# many more fit, and --json lists every one. Our choice, no published source.
+_TABLE_ROWS = 40
+
 
 class _Tolerance(click.ParamType):
     """``--target-tolerance``: a percentage of the target (``5%``) or a length (``20m``, ``60ft``).
@@ -85,7 +90,9 @@ def _match_options(func: Any) -> Any:
         click.option("--adapter-steps", type=click.IntRange(1, 9), default=2, show_default=True,
                      help="Most standard motor sizes an adapter steps down (2: 24 or 18 mm in a 29 mm mount)."),
         click.option("--tag", help="Only motors with this catalog tag (e.g. the ones in stock)."),
-        click.option("--top", type=click.IntRange(1), help="Show only the first N candidates."),
+        click.option("--top", type=click.IntRange(1),
+                     help=f"Show only the first N candidates in the table (default {_TABLE_ROWS}; --json and --csv "
+                          "list every one)."),
         click.option("--show-rejected", is_flag=True, help="Also list the motors that do not fit."),
         click.option("--ballast", is_flag=True,
                      help="Solve the nose weight that brings every motor too strong for the target or the ceiling "
@@ -154,17 +161,17 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
     from ..present import tables as render
 
     console = _console()
-    console.print(render.match_table(result, units, opts["top"], opts["show_rejected"], opts["ballast"],
-                                     console.width))
-    console.print(render.match_legend(result, opts["top"], opts["show_rejected"]))
-    console.print(render.match_reasons(result, units, opts["top"], opts["show_rejected"]), end="")
+    top = _TABLE_ROWS if opts["top"] is None else opts["top"]
+    console.print(render.match_table(result, units, top, opts["show_rejected"], opts["ballast"], console.width))
+    console.print(render.match_legend(result, top, opts["show_rejected"]))
+    console.print(render.match_reasons(result, units, top, opts["show_rejected"]), end="")
     fits = [c.fits for c in result.candidates]
     rejected = fits.count(False)
     if rejected and not opts["show_rejected"]:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
     listed = len(fits) if opts["show_rejected"] else len(fits) - rejected
-    if opts["top"] is not None and listed > opts["top"]:
-        console.print(f"{listed - opts['top']} more ranked motor(s) below #{opts['top']} are not shown (--top); "
+    if listed > top:
+        console.print(f"{listed - top} more ranked motor(s) below #{top} are not shown (--top N shows more); "
                       "--json lists every one.")
     console.print(render.conditions_text(result, units, frame))
     console.print(f"Catalog: {render.escape(str(cat.root))}")

@@ -5,6 +5,7 @@ from __future__ import annotations
 import io
 import json
 import sys
+from pathlib import Path
 
 import pytest
 
@@ -44,3 +45,23 @@ def test_echo_json_prints_the_json_text_and_a_newline(monkeypatch: pytest.Monkey
     _echo_json(data)
     assert sys.stdout.getvalue() == text + "\n"  # type: ignore[attr-defined]
     assert json.loads(text) == {"name": "\x1b[1mbold\x1b[0m", "speed_m_s": None}
+
+
+def test_the_ranking_table_shows_forty_rows_unless_told(tmp_path: Path) -> None:
+    # new-user trial: a 5,000-motor catalog printed whole was 33,000 lines and 4.5-6.7 s of drawing; the table stops
+    # at 40 and says how many more fit, --top N shows more, --json lists every one
+    from motorlib.catalog import Catalog
+
+    from ..synthetic import synthetic_motors
+
+    catalog = Catalog(tmp_path / "cat")
+    for motor in [m for m in synthetic_motors(400, seed=3) if 0.5 < m.total_impulse_ns < 200.0][:60]:
+        catalog.add(motor)
+    airframe = str(AIRFRAMES / "quibble-41.toml")
+    code, out = run("match", airframe, "--catalog", str(tmp_path / "cat"), "--json")
+    listed = [c for c in json.loads(out)["candidates"] if c["fits"]]
+    assert len(listed) > 45
+    code, out = run("match", airframe, "--catalog", str(tmp_path / "cat"))
+    assert f"{len(listed) - 40} more ranked motor(s) below #40 are not shown" in out
+    code, out = run("match", airframe, "--catalog", str(tmp_path / "cat"), "--top", "45")
+    assert f"{len(listed) - 45} more ranked motor(s) below #45 are not shown" in out
