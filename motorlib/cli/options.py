@@ -440,6 +440,13 @@ def resolve_motor(catalog: Any, ref: str) -> str:
         raise MotorNotFoundError(f"{exc}{hint} ('motorlib catalog list' lists them)") from None
 
 
+def _looks_like_a_file(reference: str) -> bool:
+    """Whether a --motor reference names a file (a folder in it, or a curve file's suffix) rather than a motor."""
+    import os
+
+    return os.sep in reference or reference.lower().endswith((".xml", ".csv", ".json"))
+
+
 def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = None
                ) -> tuple[Any, str | None, float | None]:
     """The motor in the curve file ``motor_ref``, else the one ``motor_ref`` names in the catalog; its file; and
@@ -458,12 +465,18 @@ def load_motor(motor_ref: str, catalog_dir: str | None, delay_s: float | None = 
     label_delay = None
     if Path(motor_ref).is_file():
         motor, path = load_curve_file(motor_ref), motor_ref
+    elif Path(motor_ref).is_dir():
+        raise click.UsageError(f"--motor {motor_ref}: is a folder; give a curve file, or a motor's designation or id "
+                               "in the catalog")
     else:
         catalog = _open_catalog(_catalog_or_samples(catalog_dir))
         try:
             motor_id = resolve_motor(catalog, motor_ref)
         except MotorNotFoundError as exc:
             found = _label_with_delay(catalog, motor_ref)
+            if found is None and _looks_like_a_file(motor_ref):
+                raise MotorNotFoundError(f"{motor_ref}: no such file, and no motor of that name in "
+                                         f"{catalog.root}") from exc
             if found is None:
                 raise
             if isinstance(found, str):

@@ -154,3 +154,11 @@ def test_a_delay_asked_for_that_fires_after_landing_is_the_one_reported() -> Non
         flight = json.loads(out)
         assert flight["chosen_delay_s"] == 7.0 and flight["chosen_ejection_speed_m_s"] is None, args
         assert "lands-before-ejection" in [w["code"] for w in flight["warnings"]], args
+
+
+def test_a_missing_curve_file_or_a_folder_as_the_motor_is_named(tmp_path: Path) -> None:
+    # new-user trial: both were answered "no motor with that id, handle or designation in .../sample_curves"
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", str(tmp_path / "nofile.xml"))
+    assert code == 2 and "nofile.xml: no such file" in out, out
+    code, out = run("fly", str(AIRFRAMES / "quibble-41.toml"), "--motor", str(tmp_path))
+    assert code == 2 and "is a folder" in out, out
