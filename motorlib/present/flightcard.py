@@ -249,7 +249,7 @@ def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -
     figures = [
         CardFigure("apogee", f"{quantity(s.get('apogee_m'), 'length', u)} at {_seconds(s.get('time_to_apogee_s'))}"),
         CardFigure("apogee position", where),
-        CardFigure("optimal delay", _seconds(s.get("optimal_delay_s"))),
+        _optimal_delay(s.get("optimal_delay_s")),
     ]
     chosen, optimal = s.get("chosen_delay_s"), s.get("optimal_delay_s")
     if chosen is not None and optimal is not None:
@@ -258,6 +258,13 @@ def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -
                                   "ok" if abs(off) <= r.max_delay_error_s else "caution",
                                   f"within {r.max_delay_error_s:g} s"))
     return Phase("coast", "Coast to apogee", tuple(figures), tuple(warnings))
+
+
+def _optimal_delay(optimal_s: Any) -> CardFigure:
+    """The delay that fires at apogee; none when apogee comes before burnout (the delay counts from burnout)."""
+    if optimal_s is not None and float(optimal_s) < 0.0:
+        return CardFigure("optimal delay", f"none: apogee {abs(float(optimal_s)):.1f} s before burnout", "caution")
+    return CardFigure("optimal delay", _seconds(optimal_s))
 
 
 def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> list[Phase]:

@@ -95,7 +95,8 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
     delay = Facts("Delay", (
         ("offered", offered + (" (adjustable)" if motor.delay_adjustable else "")),
         ("chosen", "-" if chosen is None else f"{float(chosen):g} s"),
-        ("optimal", "-" if optimal is None else f"{float(optimal):.1f} s (burnout to apogee)"),
+        ("optimal", "-" if optimal is None else f"{float(optimal):.1f} s (burnout to apogee)" if float(optimal) >= 0.0
+         else f"none: apogee {abs(float(optimal)):.1f} s before burnout"),
         ("deployment", "motor's delay charge" if frame.recovery is None or frame.recovery.deploy == "ejection"
          else f"electronics ({frame.recovery.deploy})"),
     ))

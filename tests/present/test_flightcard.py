@@ -134,3 +134,11 @@ def test_a_long_title_never_splits_the_verdict_at_80_columns() -> None:
     lines = console.export_text().splitlines()
     assert any("flight completed" in line for line in lines), lines[:3]
     assert all(len(line.rstrip()) <= 80 for line in lines)
+
+
+def test_an_apogee_before_burnout_has_no_optimal_delay() -> None:
+    # new-user trial: a heavy rocket tops out 1.85 s before its motor burns out; the card printed "optimal delay
+    # -1.85 s", a delay no motor has. No delay fires at apogee: the card says so, and marks it
+    card = _card(_summary(burnout_time_s=4.95, time_to_apogee_s=3.10, optimal_delay_s=-1.85, chosen_delay_s=10.0))
+    optimal = next(f for f in card.phases[2].figures if f.label == "optimal delay")
+    assert optimal.value == "none: apogee 1.9 s before burnout" and optimal.verdict == "caution"
