@@ -279,6 +279,8 @@ def _airframe_from_dict(data: dict[str, Any], source: str) -> Airframe:
         )
     geometry = _geometry(source, data["geometry"]) if "geometry" in data else None
     body_m = _quantity(source, body, "airframe", "diameter", "length", required=True)
+    if body_m is not None and not body_m > 0.0:  # before the mount is compared with it
+        raise SimulationInputError(source, "airframe.diameter", f"must be above 0, got {float(body_m)!r} m")
     mount_m = _quantity(source, body, "airframe", "mount_diameter", "length")
     if mount_m is not None and body_m is not None and mount_m > body_m:
         raise SimulationInputError(source, "airframe.mount_diameter", f"{mount_m:g} m is wider than the body "

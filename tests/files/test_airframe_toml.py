@@ -64,6 +64,8 @@ def test_plain_numbers_are_si_and_tables_work(tmp_path: Path) -> None:
     ('mass = "310 g"', 'mass = "-310 g"', r"airframe\.mass: must be above 0"),
     ('mass = "310 g"\n', "", r"airframe\.mass: missing; expected a mass"),
     ('diameter = "1.64 in"', 'diameter = "1.64 furlongs"', r"airframe\.diameter: unknown length unit"),
+    # a negative body was blamed on the mount ("mount_diameter: 0.029 m is wider than the body"; new-user trial)
+    ('diameter = "1.64 in"', 'diameter = "-1.64 in"', r"airframe\.diameter: must be above 0"),
     ('drag_coefficient = 0.55', 'drag_coefficent = 0.55', r"airframe\.drag_coefficent: unknown key"),
     ('rail_angle = "5 deg"', 'rail_angle = "45 deg"', r"launch\.rail_angle: must lie between 0 and 30 degrees"),
     ('device = "parachute"', 'device = "balloon"', r"recovery\.device: must be one of"),
