@@ -141,7 +141,8 @@ def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSett
 
 
 class _PreviousSchema(sqlite3.DatabaseError):
-    """An undamaged index of an earlier version (one of ``_UPGRADABLE_FROM``): upgraded in place, under the writer lock."""
+    """An undamaged index of an earlier version (one of ``_UPGRADABLE_FROM``): upgraded in place, under the writer
+    lock."""
 
 
 class CatalogIndex:

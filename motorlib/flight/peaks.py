@@ -44,8 +44,8 @@ _DP_DENSE: Final = np.array([
 
 def _polynomials(h: np.ndarray, state: np.ndarray, stages: np.ndarray, rows: tuple[int, ...]) -> list[tuple]:
     """The continuous extension of the state components ``rows`` as polynomials in θ, one per step: for each
-    component, its start value and the coefficients h·Σᵢ kᵢ·P[i, j] of θ^(j+1) (each shape (m,)), from the steps'
-    lengths h (m,), start states (components, m) and stages (7, components, m). Summed element by element in a
+    component, its start value and the coefficients h·Σᵢ kᵢ·P[i, j] of θ^(j+1) (each shape (m,)), from the
+    steps' lengths h (m,), start states (components, m) and stages (7, components, m). Summed element by element in a
     fixed order (no matrix product), so that a step's figures do not depend on the other steps in the batch."""
     out = []
     for c in rows:

@@ -171,7 +171,8 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
     return _Flown(columns, reasons, notes, results.status.astype(int).tolist())
 
 
-def _split(findings: list[list[tuple[str, str, str]]]) -> tuple[list[list[tuple[str, str]]], list[list[tuple[str, str]]]]:
+def _split(findings: list[list[tuple[str, str, str]]]
+           ) -> tuple[list[list[tuple[str, str]]], list[list[tuple[str, str]]]]:
     """(code, message) of each flight's findings that fail it (as :func:`_broken`) and of its notes, each flight
     with lists of its own; one loop over all of them (a comprehension per flight and kind was a frame each)."""
     reasons: list[list[tuple[str, str]]] = []
