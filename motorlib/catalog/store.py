@@ -498,4 +498,9 @@ class Catalog:
         """Load tags.json into the index when it changed since the index last saw it (checked on open)."""
         if self.read_only:
             return
-        self._tags.refresh()
+        try:
+            self._tags.refresh()
+        except CatalogError as exc:  # reported and skipped, as an unusable curve file: never fatal to the catalog
+            problem = str(exc).removeprefix(f"{self._tags.path}: ")
+            self.problems.append((str(self._tags.path), f"{problem}; its tags are ignored until it is mended, and "
+                                                        "tag changes refuse to write over it"))

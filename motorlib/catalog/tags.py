@@ -65,11 +65,21 @@ class TagFile:
         self._db.execute("COMMIT")
 
     def refresh(self) -> None:
-        """Load tags.json into the index when it changed since the index last saw it."""
+        """Load tags.json into the index when it changed since the index last saw it.
+
+        A tags.json that cannot be read counts as no tags: the index's copy is emptied and the error raised (for
+        the catalog to report), on every open until the file is mended; it is never written over, since every
+        change reads it first (:meth:`read` raises)."""
         stamp = f"{self.path.stat().st_size}:{self.path.stat().st_mtime_ns}" if self.path.exists() else "none"
         seen = self._db.execute("SELECT value FROM meta WHERE key = 'tags'").fetchone()
         if seen is None or seen[0] != stamp:
-            self.sync()
+            try:
+                tags = {k: sorted(v) for k, v in self.read().items()}
+            except CatalogError:
+                self.sync({})
+                self._db.execute("INSERT OR REPLACE INTO meta VALUES ('tags', 'damaged')")
+                raise
+            self.sync(tags)
             self._db.execute("INSERT OR REPLACE INTO meta VALUES ('tags', ?)", (stamp,))
 
     def attach(self, name: str, ids: Iterable[str]) -> None:

@@ -28,3 +28,19 @@ def test_orphan_tags_name_the_ids_whose_files_are_gone(tmp_catalog: Catalog) -> 
     (tmp_catalog.root / gone.path).unlink()  # deleted by hand, not through remove()
     tmp_catalog.reindex()
     assert tmp_catalog.orphan_tags() == {"in-stock": [ids[0]]}
+
+
+def test_a_damaged_tags_file_is_reported_not_fatal_and_never_written_over(tmp_catalog: Catalog) -> None:
+    # new-user trial: a damaged tags.json stopped every command on the catalog (match, list, fly), against the
+    # README's "a file motorlib cannot use is reported and skipped, never fatal to a catalog"
+    tmp_catalog.tag(["G59-10"], "in-stock")
+    damaged = b'{"in-stock": ["abc"'  # cut short
+    (tmp_catalog.root / "tags.json").write_bytes(damaged)
+    reopened = Catalog(tmp_catalog.root)
+    assert [where for where, _ in reopened.problems] == [str(tmp_catalog.root / "tags.json")]
+    assert "not a valid tags file" in reopened.problems[0][1] and "ignored" in reopened.problems[0][1]
+    assert len(reopened.rows()) == 27 and not reopened.rows(CatalogFilter(tag="in-stock"))
+    with pytest.raises(CatalogError, match="tags.json: not a valid tags file"):
+        reopened.tag(["G59-10"], "spare")  # a change would write over what is left of the file
+    assert (tmp_catalog.root / "tags.json").read_bytes() == damaged
+    assert Catalog(tmp_catalog.root).problems  # still reported on the next open, until mended
