@@ -55,9 +55,8 @@ class TagFile:
         write_atomic(self.path, (json.dumps(clean, indent=2) + "\n").encode())
         self.sync(clean)
 
-    def sync(self, tags: dict[str, Sequence[str]] | None = None) -> None:
-        """Replace the index's ``tags`` table with ``tags`` (default: the file's content)."""
-        tags = tags if tags is not None else {k: sorted(v) for k, v in self.read().items()}
+    def sync(self, tags: dict[str, Sequence[str]]) -> None:
+        """Replace the index's ``tags`` table with ``tags`` (tag name -> motor ids)."""
         self._db.execute("BEGIN IMMEDIATE")
         self._db.execute("DELETE FROM tags")
         self._db.executemany("INSERT OR IGNORE INTO tags VALUES (?, ?)",

@@ -91,8 +91,8 @@ def _match_options(func: Any) -> Any:
                      help="Most standard motor sizes an adapter steps down (2: 24 or 18 mm in a 29 mm mount)."),
         click.option("--tag", help="Only motors with this catalog tag (e.g. the ones in stock)."),
         click.option("--top", type=click.IntRange(1),
-                     help=f"Show only the first N candidates in the table (default {_TABLE_ROWS}; --json and --csv "
-                          "list every one)."),
+                     help=f"Show only the first N candidates in the table (the ranking's: {_TABLE_ROWS} unless "
+                          "told; --robust's: every one unless told; --json and --csv list every one)."),
         click.option("--show-rejected", is_flag=True, help="Also list the motors that do not fit."),
         click.option("--ballast", is_flag=True,
                      help="Solve the nose weight that brings every motor too strong for the target or the ceiling "

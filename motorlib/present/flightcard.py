@@ -260,11 +260,18 @@ def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -
     return Phase("coast", "Coast to apogee", tuple(figures), tuple(warnings))
 
 
-def _optimal_delay(optimal_s: Any) -> CardFigure:
-    """The delay that fires at apogee; none when apogee comes before burnout (the delay counts from burnout)."""
+def no_optimal_delay(optimal_s: Any) -> str | None:
+    """What to show for an optimal delay [s] below 0, which no motor has: apogee comes before burnout, and the
+    delay counts from burnout; None for a delay that exists (or none known)."""
     if optimal_s is not None and float(optimal_s) < 0.0:
-        return CardFigure("optimal delay", f"none: apogee {abs(float(optimal_s)):.1f} s before burnout", "caution")
-    return CardFigure("optimal delay", _seconds(optimal_s))
+        return f"none: apogee {abs(float(optimal_s)):.1f} s before burnout"
+    return None
+
+
+def _optimal_delay(optimal_s: Any) -> CardFigure:
+    """The delay that fires at apogee, marked where there is none (:func:`no_optimal_delay`)."""
+    none = no_optimal_delay(optimal_s)
+    return CardFigure("optimal delay", none, "caution") if none else CardFigure("optimal delay", _seconds(optimal_s))
 
 
 def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> list[Phase]:

@@ -21,7 +21,7 @@ from typing import TYPE_CHECKING, Any, Sequence
 import numpy as np
 
 from ..matching.candidate import Candidate
-from .flightcard import FlightCard, flight_card, quantity
+from .flightcard import FlightCard, flight_card, no_optimal_delay, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
 from .display import DisplayUnits
@@ -95,8 +95,8 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
     delay = Facts("Delay", (
         ("offered", offered + (" (adjustable)" if motor.delay_adjustable else "")),
         ("chosen", "-" if chosen is None else f"{float(chosen):g} s"),
-        ("optimal", "-" if optimal is None else f"{float(optimal):.1f} s (burnout to apogee)" if float(optimal) >= 0.0
-         else f"none: apogee {abs(float(optimal)):.1f} s before burnout"),
+        ("optimal", "-" if optimal is None
+         else no_optimal_delay(optimal) or f"{float(optimal):.1f} s (burnout to apogee)"),
         ("deployment", "motor's delay charge" if frame.recovery is None or frame.recovery.deploy == "ejection"
          else f"electronics ({frame.recovery.deploy})"),
     ))
