@@ -475,6 +475,7 @@ class _Pass:
     maxima: dict[str, np.ndarray]
     stop: dict[str, np.ndarray]  # where a pass after the ascent stopped at its stop time
     history: list[tuple[np.ndarray, ...]] | None
+    segments: np.ndarray = field(default_factory=lambda: np.empty((7, 0)))  # _segment_table, set by _integrate
     apogee_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)  # steps that hold an apogee
     landing_steps: list[tuple[np.ndarray, _StepEnds]] = field(default_factory=list)
     ejection_steps: list[tuple[np.ndarray, _StepEnds, np.ndarray]] = field(default_factory=list)
@@ -538,6 +539,8 @@ def _integrate(g: _Group, pack: MotorPack, idx: np.ndarray, state0: dict[str, np
     """
     run = _Pass.start(pack, idx, traj is not None, timer_s, stop_at_apogee)
     a = _active_arrays(run, state0, seg0, params, s, deploy_altitude_m, descent, stop_time_s, under_device)
+    with np.errstate(invalid="ignore"):  # the padding past a curve's last sample is NaN
+        run.segments = _segment_table(run, params)
     _load_segment(a, run, None)
     a["ax"], ay, a["az"], mach0, q0, rates0 = _accel(g, a, a["t"], a["x"], a["y"], a["z"], a["vx"], a["vy"],
                                                       a["vz"], rates=True)
@@ -615,31 +618,38 @@ def _active_arrays(run: _Pass, state0: dict[str, np.ndarray], seg0: np.ndarray, 
 
 
 def _load_segment(a: dict, run: _Pass, mask: np.ndarray | None) -> None:
-    """Coefficients of the current curve segment of the flights in ``mask`` (all when None): start and end [s],
+    """Coefficients of the current curve segment of the flights in ``mask`` (all when None), read from
+    ``run.segments`` (:func:`_segment_table`): start and end [s],
     thrust F + S·dt [N] and mass m0 + m1·dt + m2·dt² [kg] in dt = t − start, mass falling with the impulse
     delivered (as :mod:`motorlib.flight` states). Flights that no longer burn get the coast's: no thrust,
     the burnt-out mass."""
     rows = a["ref"] if mask is None else a["ref"][mask]
     j = np.minimum(a["seg"] if mask is None else a["seg"][mask], run.last_seg[rows] - 1)
-    k = rows * run.times_s.shape[1] + j  # flat positions: one take per array beats 2-D fancy indexing
-    times, thrust = run.times_s.ravel(), run.thrust_n.ravel()
-    t_a, t_b, f_a = times.take(k), times.take(k + 1), thrust.take(k)
-    slope = (thrust.take(k + 1) - f_a) / np.maximum(t_b - t_a, _TINY)
-    pick = (lambda name: a[name]) if mask is None else (lambda name: a[name][mask])
-    per_ns = pick("m_prop") / pick("itot")  # propellant burnt per N·s [kg/(N·s)]
-    values = (t_a, t_b, f_a, slope, pick("m_full") - per_ns * run.cumulative_ns.ravel().take(k), -per_ns * f_a,
-              -0.5 * per_ns * slope)
+    values = run.segments.take(rows * (run.times_s.shape[1] - 1) + j, axis=1)  # one gather of the 7 rows
     for name, value in zip(_SEGMENT, values):
         if mask is None:
             a[name] = value
         else:
             a[name][mask] = value
-    burning = pick("burning")
+    burning = a["burning"] if mask is None else a["burning"][mask]
     if not burning.all():
         _coast_segment(a, ~burning if mask is None else mask & ~a["burning"])
 
 
 _SEGMENT = ("seg_t", "seg_end", "seg_f", "seg_s", "seg_m0", "seg_m1", "seg_m2")
+
+
+def _segment_table(run: _Pass, params: dict[str, np.ndarray]) -> np.ndarray:
+    """Every curve segment's coefficients for :func:`_load_segment`, rows in ``_SEGMENT``'s order, shape
+    (7, n_flights·(n_samples_max − 1)), flight by flight (a flight's position ``ref`` in ``params``): computed
+    once a pass, not at every segment change. Padding past a curve's last sample is never read."""
+    times, thrust = run.times_s, run.thrust_n
+    t_a, t_b, f_a = times[:, :-1], times[:, 1:], thrust[:, :-1]
+    slope = (thrust[:, 1:] - f_a) / np.maximum(t_b - t_a, _TINY)
+    per_ns = (params["m_prop"] / params["itot"])[:, None]  # propellant burnt per N·s [kg/(N·s)]
+    values = (t_a, t_b, f_a, slope, params["m_full"][:, None] - per_ns * run.cumulative_ns[:, :-1], -per_ns * f_a,
+              -0.5 * per_ns * slope)
+    return np.stack(values).reshape(len(_SEGMENT), -1)
 
 
 def _coast_segment(a: dict, mask: np.ndarray) -> None:
