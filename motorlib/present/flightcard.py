@@ -5,6 +5,11 @@ airframe has a shape), **boost** (burnout, top speed, Mach, acceleration, dynami
 its time and place, the delay against the optimal one), **each recovery event** (ejection or deployment, its
 height and speed), **landing** (descent rate, ground speed, distance and bearing from the pad).
 
+A rocket that tops out while its motor still burns (a weak motor on a heavy airframe, a long burn) has no coast:
+its apogee phase says "Apogee before burnout (no coast)", and burnout is an event of its own, told where it
+happens in time (after apogee, between the recovery events), or, when the rocket lands first, a caution in the
+landing phase ("still burning at touchdown").
+
 Two speeds at recovery, labelled apart: a device's opening is its **air speed** (the rocket's speed relative to
 the wind, what loads the device and what its kind's limit judges); a charge that opens no listed device shows
 its **ground speed** (the speed over the ground when the delay fires). At the same instant they differ by about
@@ -21,7 +26,7 @@ Plain data only (no rich, no HTML): :func:`.tables.flight_card_table` and :mod:`
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any, Final, Sequence
 
 from ..units import FOOT_M, OUNCE_KG, POUND_KG, STANDARD_GRAVITY_M_S2
@@ -84,12 +89,14 @@ class CardFigure:
 
 @dataclass(frozen=True)
 class Phase:
-    """One phase of the flight: ``key`` (pad, boost, coast, recovery, landing), a title, figures and warnings."""
+    """One phase of the flight: ``key`` (pad, boost, coast, burnout, recovery, landing), a title, figures and
+    warnings; ``time_s`` is when an event phase happens [s from ignition] (None: not known, or not an event)."""
 
     key: str
     title: str
     figures: tuple[CardFigure, ...]
     warnings: tuple[tuple[str, str], ...] = ()
+    time_s: float | None = None
 
     @property
     def verdict(self) -> str:
@@ -167,15 +174,41 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     if not completed or s.get("apogee_m") is None:
         return FlightCard(title, str(s.get("message", "flight failed")), False, (), tuple(general))
     u = units
-    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])), _boost(s, u, by_phase.get("boost", [])),
-              _coast(s, r, u, by_phase.get("coast", []))]
-    phases += _recovery(s, r, u, by_phase.get("recovery", []))
+    burnout_s, apogee_s = _number(s.get("burnout_time_s")), _number(s.get("time_to_apogee_s"))
+    powered_apogee = burnout_s is not None and apogee_s is not None and apogee_s < burnout_s
+    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])),
+              _boost(s, u, by_phase.get("boost", []), burnout_figure=not powered_apogee),
+              _coast(s, r, u, by_phase.get("coast", []), powered=powered_apogee)]
+    later = _recovery(s, r, u, by_phase.get("recovery", []))
     landing = _landing(s, r, u, by_phase.get("landing", []))
     if landing is not None:
-        phases.append(landing)
+        later.append(landing)
     elif by_phase.get("landing"):
         general += by_phase["landing"]
-    return FlightCard(title, str(s["message"]), True, tuple(phases), tuple(general))
+    if powered_apogee:
+        later = _with_burnout(later, float(burnout_s), float(burnout_s) - float(apogee_s), u)  # type: ignore[arg-type]
+    return FlightCard(title, str(s["message"]), True, tuple(phases + later), tuple(general))
+
+
+def _number(value: Any) -> float | None:
+    return None if value is None else float(value)
+
+
+def _with_burnout(later: list[Phase], burnout_s: float, after_apogee_s: float, u: str) -> list[Phase]:
+    """The phases after apogee with burnout told where it happens: its own phase before the first event that
+    comes after it, or, when the rocket lands first, a caution in the landing phase."""
+    landing = next((k for k, p in enumerate(later) if p.key == "landing"), None)
+    if landing is not None and later[landing].time_s is not None and later[landing].time_s < burnout_s:
+        phase = later[landing]
+        figure = CardFigure("motor", f"still burning at touchdown (burnout due at {_seconds(burnout_s)}, "
+                                     f"{burnout_s - float(phase.time_s):.1f} s later)", "caution")  # type: ignore[arg-type]
+        later[landing] = replace(phase, figures=phase.figures + (figure,))
+        return later
+    event = Phase("burnout", f"Burnout, {after_apogee_s:.1f} s after apogee",
+                  (CardFigure("time", _seconds(burnout_s)),), time_s=burnout_s)
+    # an event of unknown time (a charge that fires after landing) counts as later: charges fire after burnout
+    at = next((k for k, p in enumerate(later) if p.time_s is None or p.time_s > burnout_s), len(later))
+    return later[:at] + [event] + later[at:]
 
 
 def _pad(s: dict[str, Any], r: Any, u: str, wind: float, warnings: list[tuple[str, str]]) -> Phase:
@@ -223,11 +256,12 @@ def _drag_figure(drag: dict[str, Any]) -> CardFigure:
     return CardFigure("drag", text)
 
 
-def _boost(s: dict[str, Any], u: str, warnings: list[tuple[str, str]]) -> Phase:
+def _boost(s: dict[str, Any], u: str, warnings: list[tuple[str, str]], *, burnout_figure: bool = True) -> Phase:
+    """The powered flight; burnout is left to its own phase when it comes after apogee (``burnout_figure``)."""
     accel = s.get("max_acceleration_m_s2")
     mach = s.get("max_mach")
-    figures = (
-        CardFigure("burnout", _seconds(s.get("burnout_time_s"))),
+    figures: tuple[CardFigure, ...] = (CardFigure("burnout", _seconds(s.get("burnout_time_s"))),) if burnout_figure else ()
+    figures += (
         CardFigure("top speed", quantity(s.get("max_speed_m_s"), "speed", u)
                    + ("" if mach is None else f" (Mach {float(mach):.2f})")),
         CardFigure("peak acceleration", quantity(accel, "acceleration", u)
@@ -239,7 +273,8 @@ def _boost(s: dict[str, Any], u: str, warnings: list[tuple[str, str]]) -> Phase:
     return Phase("boost", "Boost", figures, tuple(warnings))
 
 
-def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> Phase:
+def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]], *, powered: bool = False) -> Phase:
+    """Apogee and the delay; ``powered``: the apogee comes before burnout, so there is no coast to claim."""
     downrange = s.get("apogee_downrange_m")  # along the wind: words, not signs ("246 m upwind")
     where = "-" if downrange is None else (
         f"{quantity(abs(float(downrange)), 'length', u)} {'downwind' if float(downrange) >= 0 else 'upwind'} of the pad")
@@ -257,7 +292,8 @@ def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -
         figures.append(CardFigure("chosen delay", f"{float(chosen):g} s ({abs(off):.1f} s {'early' if off < 0 else 'late'})",
                                   "ok" if abs(off) <= r.max_delay_error_s else "caution",
                                   f"within {r.max_delay_error_s:g} s"))
-    return Phase("coast", "Coast to apogee", tuple(figures), tuple(warnings))
+    title = "Apogee before burnout (no coast)" if powered else "Coast to apogee"
+    return Phase("coast", title, tuple(figures), tuple(warnings), time_s=_number(s.get("time_to_apogee_s")))
 
 
 def no_optimal_delay(optimal_s: Any) -> str | None:
@@ -276,7 +312,7 @@ def _optimal_delay(optimal_s: Any) -> CardFigure:
 
 def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> list[Phase]:
     """One phase per recovery event: the 3-D model's ``deployments`` list, else today's ejection and deployment."""
-    events: list[tuple[str, list[CardFigure]]] = []
+    events: list[tuple[str, list[CardFigure], float | None]] = []  # (name, figures, time from ignition [s])
     if s.get("deployments"):
         for event in s["deployments"]:
             name = str(event.get("name") or event.get("event") or event.get("device") or "deployment")
@@ -289,7 +325,7 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
                                   f"<= {quantity(limit, 'speed', u)}")]
             if event.get("opening_load_n") is not None:  # ½ρv²·CdA: no inflation model, so an upper bound
                 figures.append(CardFigure("opening load", f"up to {float(event['opening_load_n']):,.0f} N"))
-            events.append((name, figures))
+            events.append((name, figures, _number(event.get("time_s"))))
     else:
         chosen = s.get("chosen_delay_s")
         deploy_time = s.get("deploy_time_s")
@@ -299,7 +335,8 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
                 continue
             speed = ej.get("speed_m_s")
             if ej.get("altitude_m") is None:
-                events.append((f"ejection ({ej['delay_s']:g} s delay)", [CardFigure("fires", "after landing", "caution")]))
+                events.append((f"ejection ({ej['delay_s']:g} s delay)", [CardFigure("fires", "after landing", "caution")],
+                               None))
                 continue
             fired_s = None if s.get("burnout_time_s") is None else float(s["burnout_time_s"]) + float(ej["delay_s"])
             folded = deploy_time is not None and fired_s is not None and abs(float(deploy_time) - fired_s) < 1e-6
@@ -308,17 +345,19 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
                 CardFigure("height", quantity(ej.get("altitude_m"), "length", u)),
                 # the charge's figure is over the ground (no device is listed to meet the air)
                 CardFigure("ground speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
-                           f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")]))
+                           f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")], fired_s))
         if deploy_time is not None and not folded:
             events.append(("device opens", [CardFigure("time", _seconds(s.get("deploy_time_s"))),
-                                                CardFigure("height", quantity(s.get("deploy_altitude_m"), "length", u))]))
+                                            CardFigure("height", quantity(s.get("deploy_altitude_m"), "length", u))],
+                           _number(deploy_time)))
     if not events and not warnings:
         return []
     if not events:
         return [Phase("recovery", "Recovery", (), tuple(warnings))]
     phases = []
-    for k, (name, figures) in enumerate(events):
-        phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(warnings) if k == 0 else ()))
+    for k, (name, figures, time_s) in enumerate(events):
+        phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(warnings) if k == 0 else (),
+                            time_s=time_s))
     return phases
 
 
@@ -350,4 +389,5 @@ def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]])
         ]
     if not figures:
         return None
-    return Phase("landing", "Landing", tuple(figures), tuple(warnings))
+    return Phase("landing", "Landing", tuple(figures), tuple(warnings),
+                 time_s=_number(landing.get("time_s")) if isinstance(landing, dict) else None)

@@ -112,9 +112,11 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
                      width=520, height=320, key=key)
     burnout = float(summary["burnout_time_s"])
     deploy = next((s for n, s in events if n not in ("rail exit", "burnout", "apogee")), None)
-    chart.band_x(0.0, burnout, "boost: motor burning", fill=ORANGE_TINT, caption="boost")
-    coast_end = deploy if deploy is not None else end
-    chart.band_x(burnout, coast_end, "coast: unpowered climb", fill="#ffffff", caption="coast", legend=False)
+    chart.band_x(0.0, min(burnout, end), "boost: motor burning", fill=ORANGE_TINT, caption="boost")
+    coasts = burnout < apogee_t  # an apogee under thrust has no coast to draw
+    if coasts:
+        coast_end = deploy if deploy is not None else end
+        chart.band_x(burnout, coast_end, "coast: unpowered climb", fill="#ffffff", caption="coast", legend=False)
     if deploy is not None:
         chart.band_x(deploy, end, "under recovery device", fill=BLUE_TINT, hatch="dots", caption="recovery")
     chart.line(tt, zz, "altitude (left scale)", colour=INK, width=2.4)
@@ -133,8 +135,10 @@ def flight_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], key
         chart.mark(when, height, shape, text, dy=14 if below else -8 - lift,
                    anchor="start" if when < 0.6 * end else "end", dx=7 if when < 0.6 * end else -7)
     chart.legend_entry("events: ▲ rail exit, ■ burnout, ● apogee, ◆ deployment", kind="mark", shape="circle")
-    return ChartBlock(chart.render(), "Bands: orange boost, white coast, dotted blue under the recovery device. "
-                                      "The descent to the ground is in the side view.")
+    return ChartBlock(chart.render(), "Bands: orange boost, " + ("white coast, " if coasts else "")
+                      + "dotted blue under the recovery device. "
+                      + ("" if coasts else "Apogee comes before burnout: there is no coast. ")
+                      + "The descent to the ground is in the side view.")
 
 
 def side_chart(trajectory: dict[str, np.ndarray], summary: dict[str, Any], wind_m_s: float,

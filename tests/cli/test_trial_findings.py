@@ -371,3 +371,22 @@ def test_a_robust_success_of_every_sample_is_not_shown_as_certain() -> None:
     flat = " ".join(out.split())
     assert re.search(r"100\.0 \* ", flat) and not re.search(r"100\.0 0\.0 ", flat)
     assert "all 40 sampled flights alike" in flat and "below about 7.5 %" in flat
+
+
+def test_an_apogee_under_thrust_is_told_in_time_order_on_the_card_and_the_report(tmp_path) -> None:
+    # new-user trial: the long-burning G25-4 on quibble-41 with 1.4 kg of ballast tops out (4.16 s) before its
+    # motor burns out (4.95 s). The card listed burnout under "Boost" before the apogee and put the apogee under
+    # "Coast to apogee"; the report's chart drew a "coast: unpowered climb" band after burnout
+    args = (QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "G25-4", "--ballast", "1.4kg")
+    data = _fly_json(*args)
+    assert data["time_to_apogee_s"] < data["burnout_time_s"] < data["landing"]["time_s"]
+    report = tmp_path / "r.html"
+    code, out = run("fly", *args, "--report", str(report), env={"COLUMNS": "100"})
+    lines = out.splitlines()
+    assert "Coast to apogee" not in out
+    where = {name: next(i for i, line in enumerate(lines) if name in line)
+             for name in ("Apogee before burnout (no coast)", "Burnout, 0.8 s after apogee", "Landing")}
+    assert where["Apogee before burnout (no coast)"] < where["Burnout, 0.8 s after apogee"] < where["Landing"], out
+    html = report.read_text()
+    assert "Coast to apogee" not in html and ">coast<" not in html and "white coast" not in html
+    assert "Apogee before burnout (no coast)" in html

@@ -142,3 +142,57 @@ def test_an_apogee_before_burnout_has_no_optimal_delay() -> None:
     card = _card(_summary(burnout_time_s=4.95, time_to_apogee_s=3.10, optimal_delay_s=-1.85, chosen_delay_s=10.0))
     optimal = next(f for f in card.phases[2].figures if f.label == "optimal delay")
     assert optimal.value == "none: apogee 1.9 s before burnout" and optimal.verdict == "caution"
+
+
+def _titles(card) -> list[str]:
+    return [p.title for p in card.phases]
+
+
+def test_an_apogee_under_thrust_is_told_in_time_order_without_a_coast() -> None:
+    # new-user trial: G25-4 on a heavier quibble-41 tops out at 4.16 s, 0.8 s before its motor burns out (4.95 s),
+    # and lands at 6.65 s. The card showed burnout 4.95 s under "Boost", then apogee 4.16 s under "Coast to
+    # apogee": out of time order, and a coast that never happened.
+    s = _summary(burnout_time_s=4.95, time_to_apogee_s=4.16, optimal_delay_s=-0.79, chosen_delay_s=4.0,
+                 ejections=[{"delay_s": 4.0, "altitude_m": None, "speed_m_s": None, "vertical_speed_m_s": None}],
+                 deploy_time_s=None, deploy_altitude_m=None,
+                 landing={"time_s": 6.65, "speed_m_s": 44.6, "distance_m": 145.0, "bearing_deg": 270.0})
+    card = _card(s)
+    titles = _titles(card)
+    assert not any("coast" in t.lower() and "no coast" not in t.lower() for t in titles), titles
+    apogee = next(p for p in card.phases if any(f.label == "apogee" for f in p.figures))
+    assert "before burnout" in apogee.title and "no coast" in apogee.title, apogee.title
+    boost = next(p for p in card.phases if p.key == "boost")
+    assert not any(f.label == "burnout" for f in boost.figures)  # burnout comes after apogee, not before it
+    burnout = next(p for p in card.phases if p.key == "burnout")
+    assert "after apogee" in burnout.title and burnout.figures[0].value == "4.95 s"
+    keys = [p.key for p in card.phases]
+    assert keys.index("coast") < keys.index("burnout") < keys.index("landing"), keys
+
+
+def test_a_device_opened_under_thrust_comes_before_burnout_on_the_card() -> None:
+    # electronics open a drogue at apogee (4.2 s) while the motor still burns (burnout 4.95 s): the drogue's
+    # event comes before burnout, the main's after it
+    s = _summary(burnout_time_s=4.95, time_to_apogee_s=4.16, optimal_delay_s=-0.79, chosen_delay_s=None,
+                 deployments=[{"name": "drogue", "time_s": 4.2, "altitude_m": 30.0, "speed_m_s": 3.0},
+                              {"name": "main", "time_s": 8.0, "altitude_m": 15.0, "speed_m_s": 10.0}],
+                 landing={"time_s": 12.0, "speed_m_s": 5.0, "distance_m": 40.0, "bearing_deg": 90.0})
+    titles = _titles(flight_card(s, [], title="t"))
+    assert titles[2:] == ["Apogee before burnout (no coast)", "Recovery: drogue", "Burnout, 0.8 s after apogee",
+                          "Recovery: main", "Landing"], titles
+
+
+def test_a_motor_still_burning_at_touchdown_is_said_at_landing_not_before_apogee() -> None:
+    # new-user trial: G25-4 on quibble-41 with 2 kg of ballast tops out 6 m up at 2.31 s and lands at 3.35 s;
+    # its motor burns to 4.95 s. The card listed "burnout 4.95 s" first, before apogee and landing.
+    s = _summary(burnout_time_s=4.95, time_to_apogee_s=2.31, optimal_delay_s=-2.64, chosen_delay_s=4.0,
+                 ejections=[{"delay_s": 4.0, "altitude_m": None, "speed_m_s": None, "vertical_speed_m_s": None}],
+                 deploy_time_s=None, deploy_altitude_m=None,
+                 landing={"time_s": 3.35, "speed_m_s": 24.3, "distance_m": 22.0, "bearing_deg": 270.0})
+    card = _card(s)
+    assert "burnout" not in [p.key for p in card.phases]
+    assert not any(f.label == "burnout" for f in card.phases[1].figures)
+    landing = card.phases[-1]
+    assert landing.key == "landing"
+    motor = next(f for f in landing.figures if f.label == "motor")
+    assert motor.value == "still burning at touchdown (burnout due at 4.95 s, 1.6 s later)"
+    assert motor.verdict == "caution"
