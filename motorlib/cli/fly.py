@@ -36,7 +36,9 @@ if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each c
 @_units_option
 @click.option("--json", "as_json", is_flag=True, help="Print the results as JSON (SI units).")
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False),
-              help="Write the trajectory to this CSV file, in the display units (named in each column header).")
+              help="Write the trajectory to this CSV file, in the display units (named in each column header); "
+                   "its 'phase' column reads ascent (up to apogee), freefall (falling, no recovery device open) "
+                   "or descent (under a device).")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
               help="Write the flight chart (altitude by phase with its events, beside the side view with the wind) "
                    "to this PNG file.")

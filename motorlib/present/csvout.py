@@ -8,6 +8,10 @@ Motor sizes become mm and thrust and impulse stay in N and N·s (see :mod:`.disp
 The three tables the commands write, one function each: a flight's trajectory (:func:`trajectory_csv`, ``fly
 --csv``), the ranked candidates (:func:`candidates_csv`, ``match --csv``) and catalog rows (:func:`catalog_csv`,
 ``catalog list --csv``). Their column names are a contract (``tests/cli/test_csv_headers.py`` pins them).
+
+The trajectory's last column, ``phase``, says where each row is in the flight (:data:`TRAJECTORY_PHASES`):
+``ascent`` from the pad to apogee, ``freefall`` after apogee with no recovery device open (a ballistic fall, or
+the fall before the first device opens), ``descent`` with a device open.
 """
 
 from __future__ import annotations
@@ -24,11 +28,18 @@ from .display import DisplayUnits
 if TYPE_CHECKING:
     import numpy as np
 
-__all__ = ["TRAJECTORY_COLUMNS", "candidates_csv", "catalog_csv", "rows_csv", "trajectory_csv"]
+__all__ = ["TRAJECTORY_COLUMNS", "TRAJECTORY_PHASES", "candidates_csv", "catalog_csv", "rows_csv", "trajectory_csv",
+           "trajectory_phases"]
 
-# fly --csv: the trajectory's columns in order, then ``phase`` (ascent or descent)
+# fly --csv: the trajectory's columns in order, then ``phase`` (one of TRAJECTORY_PHASES)
 TRAJECTORY_COLUMNS = ("time_s", "x_m", "y_m", "altitude_m", "east_m", "north_m", "vx_m_s", "vy_m_s", "vz_m_s",
                       "ax_m_s2", "ay_m_s2", "az_m_s2")
+TRAJECTORY_PHASES = {
+    "ascent": "from the pad up to apogee, no recovery device open",
+    "freefall": "after apogee, falling with no recovery device open (before the first opens, or none ever does)",
+    "descent": "a recovery device is open",
+}
+"""The values of ``fly --csv``'s ``phase`` column and what each means."""
 # match --csv: the candidate keys left out (codes and texts as lists), their texts given as two columns instead
 _CANDIDATE_LISTS = ("reasons", "reason_codes", "ballast_reasons", "ballast_reason_codes", "notes", "note_codes",
                     "nose_weight_reasons", "nose_weight_reason_codes")
@@ -75,10 +86,26 @@ def rows_csv(rows: Sequence[dict[str, Any]], columns: Sequence[str], units: Disp
     return buffer.getvalue()
 
 
+def trajectory_phases(altitude_m: Sequence[float], under_device: Sequence[bool]) -> list[str]:
+    """The ``phase`` of each trajectory row (:data:`TRAJECTORY_PHASES`), from its altitude [m] and whether a
+    recovery device is open: ``descent`` under a device, else ``ascent`` up to apogee (the last of the highest
+    rows, so a rocket that never climbs is never said to fall) and ``freefall`` after it.
+
+    >>> trajectory_phases([0.0, 50.0, 40.0, 10.0, 0.0], [False, False, False, True, True])
+    ['ascent', 'ascent', 'freefall', 'descent', 'descent']
+    """
+    heights = [float(z) for z in altitude_m]
+    top = max(heights, default=0.0)
+    apogee_row = max((k for k, z in enumerate(heights) if z == top), default=-1)
+    return ["descent" if device else "ascent" if k <= apogee_row else "freefall"
+            for k, device in enumerate(under_device)]
+
+
 def trajectory_csv(trajectory: Mapping[str, np.ndarray], units: DisplayUnits) -> str:
-    """One flown trajectory (``FlightResults.trajectories[i]``) as CSV: :data:`TRAJECTORY_COLUMNS` and ``phase``."""
-    rows = [{**{name: float(trajectory[name][row]) for name in TRAJECTORY_COLUMNS},
-             "phase": "descent" if trajectory["descent"][row] else "ascent"}
+    """One flown trajectory (``FlightResults.trajectories[i]``) as CSV: :data:`TRAJECTORY_COLUMNS` and ``phase``
+    (:data:`TRAJECTORY_PHASES`, from :func:`trajectory_phases`)."""
+    phases = trajectory_phases(trajectory["altitude_m"], trajectory["descent"])
+    rows = [{**{name: float(trajectory[name][row]) for name in TRAJECTORY_COLUMNS}, "phase": phases[row]}
             for row in range(len(trajectory["time_s"]))]
     return rows_csv(rows, [*TRAJECTORY_COLUMNS, "phase"], units)
 

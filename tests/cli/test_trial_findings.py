@@ -390,3 +390,17 @@ def test_an_apogee_under_thrust_is_told_in_time_order_on_the_card_and_the_report
     html = report.read_text()
     assert "Coast to apogee" not in html and ">coast<" not in html and "white coast" not in html
     assert "Apogee before burnout (no coast)" in html
+
+
+def test_fly_csv_labels_a_ballistic_fall_freefall(tmp_path) -> None:
+    # new-user trial: G25-4 on quibble-41 with 1.4 kg of ballast lands before its 4 s delay fires, so no device
+    # ever opens; fly --csv labelled every row "ascent", the fall from apogee to the ground too
+    path = tmp_path / "t.csv"
+    code, out = run("fly", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "G25-4", "--ballast", "1.4kg",
+                    "--csv", str(path))
+    rows = [line.split(",") for line in path.read_text().splitlines()]
+    header, rows = rows[0], rows[1:]
+    altitude, phase = header.index("altitude_m"), header.index("phase")
+    top = max(range(len(rows)), key=lambda k: float(rows[k][altitude]))
+    assert {r[phase] for r in rows[: top + 1]} == {"ascent"}
+    assert {r[phase] for r in rows[top + 1:]} == {"freefall"} and float(rows[-1][altitude]) == 0.0
