@@ -42,8 +42,8 @@ _STATUS_CODES = {NO_LIFTOFF: "no-liftoff", STUCK_ON_RAIL: "stuck-on-rail"}
 FLIGHT_CODES: Final = (
     "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete", "rail-exit-slow", "thrust-to-weight-low",
     "over-ceiling", "delays-unknown", "no-ejection-charge", "ejection-far-from-apogee", "ejection-fast",
-    "lands-before-ejection", "descent-fast", "constant-cd-past-mach", "deployment-fast", "deployment-while-burning",
-    "lands-outside-field", "no-deployment", "live-charge-before-apogee")
+    "ejection-low", "lands-before-ejection", "descent-fast", "constant-cd-past-mach", "deployment-fast",
+    "deployment-low", "deployment-while-burning", "lands-outside-field", "no-deployment", "live-charge-before-apogee")
 """Every code :func:`evaluate_rules` can give a flight, in the order it lists them (the keys of :func:`code_masks`)."""
 
 
@@ -72,6 +72,10 @@ class RuleInputs:
         (NaN: it never opens, or unknown).
     device_kinds : tuple of str, length n_devices
         Each device's kind (``parachute``, ``drogue``, ...), which sets its deployment-speed limit.
+    ejection_altitude_m : ndarray
+        Height above the pad when the chosen delay fires [m] (NaN: not known, or the rocket lands first).
+    deployment_altitude_m : ndarray, shape (n_flights, n_devices)
+        Each device's opening height above the pad [m] (NaN: it never opens, or not known).
     """
 
     status: np.ndarray
@@ -94,6 +98,8 @@ class RuleInputs:
     deployment_speed_m_s: np.ndarray
     opening_load_n: np.ndarray
     device_kinds: tuple[str, ...] = ()
+    ejection_altitude_m: np.ndarray | float = math.nan
+    deployment_altitude_m: np.ndarray | tuple = ()
 
     def __post_init__(self) -> None:
         n = np.size(self.status)
@@ -127,8 +133,8 @@ class RuleInputs:
 def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s: np.ndarray | None = None,
                       ejection_speed_m_s: np.ndarray | None = None, landing_descent_rate_m_s: np.ndarray | None = None,
                       landing_distance_m: np.ndarray | None = None, deployment_speed_m_s: np.ndarray | None = None,
-                      delays_known: np.ndarray | bool = True, wind_speed_m_s: np.ndarray | None = None
-                      ) -> RuleInputs:
+                      delays_known: np.ndarray | bool = True, wind_speed_m_s: np.ndarray | None = None,
+                      ejection_altitude_m: np.ndarray | None = None) -> RuleInputs:
     """The rule inputs of ``frame`` flown as ``results``: the flown figures unless an estimate is given.
 
     Parameters
@@ -140,6 +146,8 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
         else the listed one closest to the optimal delay).
     ejection_speed_m_s : ndarray, optional
         Speed at the chosen delay [m/s]; default the flown one at that delay.
+    ejection_altitude_m : ndarray, optional
+        Height above the pad at the chosen delay [m]; default the flown one at that delay.
     landing_descent_rate_m_s, landing_distance_m, deployment_speed_m_s : ndarray, optional
         Estimates where the descent was not flown (``match`` without a field radius); default the flown ones:
         the descent rate at landing, the distance of the landing point, each device's opening speed.
@@ -153,10 +161,12 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
     devices = frame.recovery_devices
     if chosen_delay_s is None:
         chosen_delay_s = np.array([results.chosen_delay_s(i) for i in range(n)])
+    hit = results.ejection_delay_s == np.asarray(chosen_delay_s, dtype=float)[:, None]
+    column = np.argmax(hit, axis=1)
     if ejection_speed_m_s is None:
-        hit = results.ejection_delay_s == np.asarray(chosen_delay_s, dtype=float)[:, None]
-        column = np.argmax(hit, axis=1)
         ejection_speed_m_s = np.where(hit.any(axis=1), results.ejection_speed_m_s[np.arange(n), column], np.nan)
+    if ejection_altitude_m is None:
+        ejection_altitude_m = np.where(hit.any(axis=1), results.ejection_altitude_m[np.arange(n), column], np.nan)
     if landing_distance_m is None:
         landing_distance_m = np.hypot(results.landing_east_m, results.landing_north_m)
     k = len(devices)
@@ -175,13 +185,15 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
         deployment_time_s=results.deployment_time_s[:, :k],
         deployment_speed_m_s=(results.deployment_speed_m_s[:, :k] if deployment_speed_m_s is None
                               else np.asarray(deployment_speed_m_s, dtype=float)[:, :k]),
-        opening_load_n=results.opening_load_n[:, :k], device_kinds=tuple(d.device for d in devices))
+        opening_load_n=results.opening_load_n[:, :k], device_kinds=tuple(d.device for d in devices),
+        ejection_altitude_m=ejection_altitude_m, deployment_altitude_m=results.deployment_altitude_m[:, :k])
 
 
 def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None
                  ) -> dict[str, np.ndarray]:
     """Which flights break which rule: code -> bool array of shape (n_flights,), or (n_flights, n_devices) for
-    ``deployment-fast`` and ``deployment-while-burning``; every rule evaluated for all flights at once.
+    ``deployment-fast``, ``deployment-low`` and ``deployment-while-burning``; every rule evaluated for all flights
+    at once.
 
     A flight that failed (status) or ended before apogee breaks only that: its other figures are not judged.
     ``ceiling_m`` [m above the pad] adds the ceiling rule.
@@ -203,6 +215,7 @@ def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
     lands_first = charge & has_delay & ~np.isfinite(x.ejection_speed_m_s)
     limits = np.array([r.deployment_limit_m_s(kind) for kind in x.device_kinds])
     opened = np.isfinite(x.deployment_time_s).any(axis=1) if x.device_kinds else np.zeros(x.n_flights, bool)
+    t_open = r.deployment_opening_time_s  # LaunchRules.deployment_height_needed_m, for every flight at once
     out = {
         "not-flown": failed,
         "flight-incomplete": incomplete,
@@ -214,11 +227,14 @@ def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
         "ejection-far-from-apogee": charge & (np.abs(x.chosen_delay_s - x.optimal_delay_s) > r.max_delay_error_s),
         # a device the charge opens is checked as deployment-fast; a charge that opens nothing listed is checked here
         "ejection-fast": charge & ~x.devices_listed & (x.ejection_speed_m_s > r.max_ejection_speed_m_s),
+        # too near the ground to open and slow the rocket: the height covered at its speed while it opens
+        "ejection-low": charge & ~x.devices_listed & (x.ejection_altitude_m < x.ejection_speed_m_s * t_open),
         "lands-before-ejection": lands_first,
         # under a device: a rocket that opens none falls ballistically, and the rules above say why
         "descent-fast": past(x.landing_descent_rate_m_s, r.max_landing_speed_m_s) & opened,
         "constant-cd-past-mach": judged & x.constant_drag & (x.max_mach > r.max_constant_cd_mach),
         "deployment-fast": judged[:, None] & (x.deployment_speed_m_s > limits),
+        "deployment-low": judged[:, None] & (x.deployment_altitude_m < x.deployment_speed_m_s * t_open),
         "deployment-while-burning": judged[:, None] & (x.deployment_time_s < x.burnout_time_s[:, None]),
         "lands-outside-field": past(x.landing_distance_m, math.inf if r.field_radius_m is None else r.field_radius_m),
         # nothing opens, and no rule above says why
@@ -340,6 +356,38 @@ def _deployment_fast(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: f
             + "): risk of a torn canopy, a zipper or a broken harness")
 
 
+def _what_to_do(x: RuleInputs, i: int) -> str:
+    """What brings a charge's opening higher: a delay nearer the optimal one; else a higher trigger, a stronger motor."""
+    chosen, optimal = float(x.chosen_delay_s[i]), float(x.optimal_delay_s[i])
+    if bool(x.uses_charge[i]) and math.isfinite(chosen) and math.isfinite(optimal) and optimal >= 0.0:
+        delay = (f"a shorter delay (the optimal one is {optimal:.1f} s)" if chosen > optimal
+                 else f"a longer delay (the optimal one is {optimal:.1f} s)")
+        return f"choose {delay} or a stronger motor"
+    if bool(x.uses_charge[i]):
+        return "choose a stronger motor (apogee comes before burnout: no delay fires at apogee)"
+    return "deploy it higher (an earlier trigger or a higher deploy_altitude) or fly a stronger motor"
+
+
+def _low(height_m: float, speed_m_s: float, r: LaunchRules) -> str:
+    """"3 m above the ground at 19.4 m/s: it needs about 19 m ..." (present.messages re-words it in display units);
+    the height never reads as the height needed ("19 m ..., it needs about 19 m")."""
+    height, needed = max(float(height_m), 0.0), r.deployment_height_needed_m(speed_m_s)
+    decimals = next((d for d in range(4) if round(height, d) < round(needed, d)), 3)
+    return (f"{height:.{decimals}f} m above the ground at {float(speed_m_s):.1f} m/s: it needs about "
+            f"{needed:.{decimals}f} m to open and slow the rocket ({r.deployment_opening_time_s:g} s at that speed)")
+
+
+def _deployment_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    kind = x.device_kinds[k]
+    return (f"the {kind} opens too low: {_low(x.deployment_altitude_m[i, k], x.deployment_speed_m_s[i, k], r)}; "
+            + _what_to_do(x, i))
+
+
+def _ejection_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    return (f"the {float(x.chosen_delay_s[i]):g} s delay fires too low: {_low(x.ejection_altitude_m[i], x.ejection_speed_m_s[i], r)}; "
+            + _what_to_do(x, i))
+
+
 _Message = Callable[[RuleInputs, int, int, LaunchRules, "float | None"], str]
 _MESSAGES: dict[str, _Message] = {
     "not-flown": lambda x, i, k, r, c: MESSAGES[int(x.status[i])],
@@ -356,6 +404,7 @@ _MESSAGES: dict[str, _Message] = {
     "ejection-fast": lambda x, i, k, r, c: (f"ejection too fast: {x.ejection_speed_m_s[i]:.0f} m/s at the "
                                             f"{x.chosen_delay_s[i]:g} s delay (limit {r.max_ejection_speed_m_s:g} m/s): "
                                             "risk of damage or a torn canopy"),
+    "ejection-low": _ejection_low,
     "lands-before-ejection": lambda x, i, k, r, c: f"lands before the {x.chosen_delay_s[i]:g} s delay fires",
     "descent-fast": lambda x, i, k, r, c: (f"descent too fast: {x.landing_descent_rate_m_s[i]:.1f} m/s under the device "
                                            f"(limit {r.max_landing_speed_m_s:g} m/s): use a larger recovery device"),
@@ -364,6 +413,7 @@ _MESSAGES: dict[str, _Message] = {
                                                     "apogee and the optimal delay; give a drag_table, or a [geometry] without "
                                                     "a drag_coefficient (the shape's estimate then applies)"),
     "deployment-fast": _deployment_fast,
+    "deployment-low": _deployment_low,
     "deployment-while-burning": lambda x, i, k, r, c: (f"the {x.device_kinds[k]} opens at {x.deployment_time_s[i, k]:.2f} s, "
                                                        f"while the motor still burns (burnout {x.burnout_time_s[i]:.2f} s)"),
     "lands-outside-field": lambda x, i, k, r, c: (f"lands outside the field: about {x.landing_distance_m[i]:,.0f} m from "

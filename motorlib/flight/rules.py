@@ -26,10 +26,12 @@ delays-unknown              needs the motor's charge, but the record gives no de
 no-ejection-charge          needs the motor's charge, but the motor has none (plugged)
 ejection-far-from-apogee    fires its charge farther from apogee than the delay tolerance
 ejection-fast               moves faster than the limit when the charge fires (no device listed)
+ejection-low                fires its charge too near the ground to open a device (no device listed)
 lands-before-ejection       lands before the delay fires
 descent-fast                lands faster than the limit under its device
 constant-cd-past-mach       flies past Mach 0.8 with one drag coefficient (a note on the model)
 deployment-fast             opens a device faster than that kind's limit
+deployment-low              opens a device too near the ground for it to open and slow the rocket
 deployment-while-burning    opens a device while the motor still burns
 lands-outside-field         lands outside the recovery field
 no-deployment               lists a device that never opens
@@ -57,9 +59,11 @@ RULE_CODES: Final = {
     "thrust-to-weight-low": "thrust-to-weight too low", "over-ceiling": "over the ceiling",
     "delays-unknown": "ejection delays not given", "no-ejection-charge": "plugged: no ejection charge and no electronics",
     "ejection-far-from-apogee": "no delay near the optimal one", "ejection-fast": "ejection too fast",
+    "ejection-low": "the charge fires too near the ground",
     "lands-before-ejection": "lands before the delay fires", "descent-fast": "descends too fast under the device",
     "constant-cd-past-mach": "constant drag coefficient past Mach 0.8",
     "deployment-fast": "a recovery device opens too fast", "deployment-while-burning": "a device opens under thrust",
+    "deployment-low": "a recovery device opens too near the ground",
     "lands-outside-field": "lands outside the field", "no-deployment": "nothing deploys recovery",
     "motor-does-not-fit": "does not fit the mount", "above-class": "above your class limit",
     "no-masses": "masses unknown", "stability-low": "too little stability margin (CG too far aft)",
@@ -103,6 +107,13 @@ class LaunchRules:
         transonic drag rise starts on typical rockets (common practice, no published source; a
         constant Cd overstated apogee 13-34 % and the optimal delay 2-5 s at Mach 1.3-2.1 in the
         comparisons behind issue 10).
+    deployment_opening_time_s : float
+        The time a device takes, from its charge or trigger, to open and slow the rocket to its descent
+        rate [s]: 1 s, common practice, no published source. The flight model opens a device fully at
+        once, so it would let a parachute opened 3 m above the ground at 19 m/s "land" gently; the rule
+        asks for the height the rocket covers in that time at its opening speed,
+        :meth:`deployment_height_needed_m` (``deployment-low``; ``ejection-low`` for a charge that opens
+        no listed device, at its speed over the ground).
     """
 
     min_rail_exit_speed_m_s: float = 15.0
@@ -115,6 +126,16 @@ class LaunchRules:
                                                                ("drogue", 45.0), ("streamer", 45.0))
     field_radius_m: float | None = None
     max_constant_cd_mach: float = 0.8
+    deployment_opening_time_s: float = 1.0  # common practice, no published source
+
+    def deployment_height_needed_m(self, speed_m_s: float) -> float:
+        """The height a device opened at ``speed_m_s`` [m/s] needs to open and slow the rocket [m]: the distance
+        covered at that speed while it opens (:attr:`deployment_opening_time_s`).
+
+        >>> round(LaunchRules().deployment_height_needed_m(19.4), 6)
+        19.4
+        """
+        return float(speed_m_s) * self.deployment_opening_time_s
 
     def rail_exit_needed_m_s(self, wind_speed_m_s: float = 0.0) -> float:
         """The rail exit speed a flight needs [m/s]: the minimum, or the wind ratio times the wind if higher.
@@ -150,7 +171,8 @@ class LaunchRules:
 
     def __post_init__(self) -> None:
         for name in ("min_rail_exit_speed_m_s", "rail_exit_wind_ratio", "min_liftoff_thrust_to_weight",
-                     "max_delay_error_s", "max_ejection_speed_m_s", "max_landing_speed_m_s", "max_constant_cd_mach"):
+                     "max_delay_error_s", "max_ejection_speed_m_s", "max_landing_speed_m_s", "max_constant_cd_mach",
+                     "deployment_opening_time_s"):
             value = getattr(self, name)
             if not (isinstance(value, (int, float)) and math.isfinite(value) and value >= 0.0):
                 raise ValueError(f"`{name}` must be a finite number >= 0, got {value!r}")

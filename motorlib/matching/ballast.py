@@ -74,10 +74,11 @@ def _solve_ballast(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, fig
         f_hi = np.where(~right & (side == -1), f_hi / 2, f_hi)
         side = np.where(right, 1, -1)
     final = simulate(frame, sub, fs, added_mass_kg=mass, descent=flies_descent(frame, s))
-    chosen, _, speed, _, _ = _choose_delays(sub, final, [rows[i].delays_s for i in idx])
+    chosen, altitude, speed, _, _ = _choose_delays(sub, final, [rows[i].delays_s for i in idx])
     landing = _landing_descent_rate(frame, final, sub)
     deploy, distance = _deployment_speeds(frame, final, sub), _landing_distance(frame, final, sub)
-    findings = _rule_findings(frame, [rows[i] for i in idx], final, s, chosen, speed, landing, deploy, distance)
+    findings = _rule_findings(frame, [rows[i] for i in idx], final, s, chosen, speed, landing, deploy, distance,
+                              altitude)
     for k, i in enumerate(idx):
         figures.columns["ballast_kg"][i] = float(mass[k])
         figures.columns["ballast_apogee_m"][i] = float(final.apogee_m[k])

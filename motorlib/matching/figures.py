@@ -140,7 +140,7 @@ def _figures(frame: Airframe, rows: list[CatalogRow], pack: MotorPack, results: 
     landing = _landing_descent_rate(frame, results, pack)
     deploy = _deployment_speeds(frame, results, pack)
     distance = _landing_distance(frame, results, pack)
-    findings = _rule_findings(frame, rows, results, s, chosen, speed, landing, deploy, distance)
+    findings = _rule_findings(frame, rows, results, s, chosen, speed, landing, deploy, distance, altitude)
 
     def col(values: np.ndarray) -> list[float | None]:  # Python floats, None for NaN and ±inf
         array = np.asarray(values, dtype=float)
@@ -189,10 +189,10 @@ def _split(findings: list[list[tuple[str, str, str]]]
 
 def _rule_findings(frame: Airframe, rows: list[CatalogRow], results: FlightResults, s: MatchSettings,
                    chosen: np.ndarray, speed: np.ndarray, landing: np.ndarray, deploy: np.ndarray,
-                   distance: np.ndarray) -> list[list[tuple[str, str, str]]]:
+                   distance: np.ndarray, altitude: np.ndarray) -> list[list[tuple[str, str, str]]]:
     """Every rule each flight breaks, as (severity, code, message) (:func:`motorlib.flight.rulebook.rule_entries`:
     the rules ``fly`` applies), with this module's figures where the descent was not flown."""
-    inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed,
+    inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed, ejection_altitude_m=altitude,
                                landing_descent_rate_m_s=landing, landing_distance_m=distance,
                                deployment_speed_m_s=deploy,
                                delays_known=np.array([r.ejection != "unknown" for r in rows], dtype=bool))

@@ -52,7 +52,7 @@ _PHASE_OF_WARNING: Final = {
     "unstable": "pad", "stability-low": "pad", "over-stable": "pad", "stability-unknown": "pad",
     "over-ceiling": "coast", "ejection-far-from-apogee": "coast", "delays-unknown": "coast",
     "no-ejection-charge": "recovery", "lands-before-ejection": "recovery",
-    "ejection-fast": "recovery", "no-deployment": "recovery",
+    "ejection-fast": "recovery", "no-deployment": "recovery", "ejection-low": "recovery", "deployment-low": "recovery",
     "deployment-fast": "recovery", "descent-fast": "landing", "deployment-while-burning": "recovery",
     "lands-outside-field": "landing", "constant-cd-past-mach": "boost",
 }
@@ -319,7 +319,7 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
             speed = event.get("speed_m_s")
             limit = r.deployment_limit_m_s(str(event.get("device") or "parachute"))  # each kind has its own
             figures = [CardFigure("time", _seconds(event.get("time_s"))),
-                       CardFigure("height", quantity(event.get("altitude_m"), "length", u)),
+                       _height_figure(event.get("altitude_m"), speed, r, u),
                        # through the air (relative to the wind): what loads the device, and what its limit judges
                        CardFigure("air speed", quantity(speed, "speed", u), _check(speed, limit, False),
                                   f"<= {quantity(limit, 'speed', u)}")]
@@ -342,7 +342,9 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
             folded = deploy_time is not None and fired_s is not None and abs(float(deploy_time) - fired_s) < 1e-6
             events.append((f"ejection, {ej['delay_s']:g} s delay" + (" opens the device" if folded else ""), [
                 CardFigure("time", _seconds(fired_s)),
-                CardFigure("height", quantity(ej.get("altitude_m"), "length", u)),
+                # judged as ejection-low where the charge opens no listed device (the rule book's case)
+                _height_figure(ej.get("altitude_m"), speed, r, u) if not s.get("has_recovery")
+                else CardFigure("height", quantity(ej.get("altitude_m"), "length", u)),
                 # the charge's figure is over the ground (no device is listed to meet the air)
                 CardFigure("ground speed", quantity(speed, "speed", u), _check(speed, r.max_ejection_speed_m_s, False),
                            f"<= {quantity(r.max_ejection_speed_m_s, 'speed', u)}")], fired_s))
@@ -359,6 +361,16 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
         phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(warnings) if k == 0 else (),
                             time_s=time_s))
     return phases
+
+
+def _height_figure(altitude_m: Any, speed_m_s: Any, r: Any, u: str) -> CardFigure:
+    """An opening's height, marked against the height it needs to open and slow the rocket at its speed
+    (:meth:`~motorlib.flight.rules.LaunchRules.deployment_height_needed_m`: ``deployment-low``, ``ejection-low``)."""
+    if altitude_m is None or speed_m_s is None:
+        return CardFigure("height", quantity(altitude_m, "length", u))
+    need = r.deployment_height_needed_m(float(speed_m_s))
+    return CardFigure("height", quantity(altitude_m, "length", u), _check(altitude_m, need, True),
+                      f">= {quantity(need, 'length', u)}")
 
 
 def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> Phase | None:

@@ -33,6 +33,7 @@ REASON_CODES = {
     "descent-fast": ("S", "descends too fast under the device"),
     "no-ejection-charge": ("P", "plugged: no ejection charge and no electronics"),
     "deployment-fast": ("O", "a recovery device opens too fast"), "lands-outside-field": ("F", "lands outside the field"),
+    "deployment-low": ("G", "recovery opens too near the ground"), "ejection-low": ("G", "recovery opens too near the ground"),
     "deployment-while-burning": ("H", "a recovery device opens while the motor burns"),
     "no-deployment": ("Y", "nothing deploys recovery"), "delays-unknown": ("W", "ejection delays not given"),
     "no-liftoff": ("N", "no liftoff"), "stuck-on-rail": ("K", "stuck on the rail"),
@@ -227,6 +228,16 @@ def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond:
         if distance is not None:
             v, lim = u.beyond(distance, cond["field_radius_m"], "length", above=True)
             return f"lands outside the field: about {v} from the pad (field radius {lim})"
+    if code in ("deployment-low", "ejection-low"):
+        # rulebook._low: "... too low: 3 m above the ground at 19.4 m/s: it needs about 19 m to open and slow the
+        # rocket (1 s at that speed); <advice>"; the height needed is the speed times that time
+        low = re.match(r"(.*too low: )([\d,.]+) m above the ground at ([\d,.]+) m/s: it needs about [\d,.]+ m"
+                       r"( to open .*\(([\d.e+-]+) s at that speed\))(.*)", message)
+        if low is not None:
+            head, height, speed_text, why, opening_s, advice = low.groups()
+            speed_m_s = float(speed_text.replace(",", ""))
+            v, lim = u.beyond(float(height.replace(",", "")), speed_m_s * float(opening_s), "length", above=False)
+            return f"{head}{v} above the ground at {u.quantity(speed_m_s, 'speed')}: it needs about {lim}{why}{advice}"
     speed = get("ejection_speed_m_s") if get("ejection_speed_m_s") is not None else get("chosen_ejection_speed_m_s")
     if code == "ejection-fast" and speed is not None:
         v, lim = u.beyond(speed, cond["max_ejection_speed_m_s"], "speed", above=True, decimals=0)

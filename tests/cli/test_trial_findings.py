@@ -404,3 +404,26 @@ def test_fly_csv_labels_a_ballistic_fall_freefall(tmp_path) -> None:
     top = max(range(len(rows)), key=lambda k: float(rows[k][altitude]))
     assert {r[phase] for r in rows[: top + 1]} == {"ascent"}
     assert {r[phase] for r in rows[top + 1:]} == {"freefall"} and float(rows[-1][altitude]) == 0.0
+
+
+def test_a_parachute_opening_3_m_above_the_ground_fails_in_match_and_warns_in_fly() -> None:
+    # new-user trial: C6-3 on quibble-41 fires 1.9 s after apogee (inside the 2 s delay slack) and opens the
+    # parachute 3.0 m above the ground at 19.4 m/s through the air; fly's card ticked every figure and match
+    # failed it only for the rail exit and thrust-to-weight. In the second the device takes to open the rocket
+    # falls about 19 m: it needs that much height
+    data = _fly_json(QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "C6-3")
+    (opening,) = data["deployments"]
+    assert opening["altitude_m"] < 4.0 and opening["speed_m_s"] > 18.0
+    low = [w["message"] for w in data["warnings"] if w["code"] == "deployment-low"]
+    assert len(low) == 1 and "3 m above the ground" in low[0] and "shorter delay" in low[0], data["warnings"]
+    code, out = run("fly", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--motor", "C6-3")
+    assert code == 1
+    height = next(line for line in out.splitlines() if line.strip().startswith(("! height", "height")))
+    assert height.lstrip().startswith("!") and "3 m" in height and ">= 19 m" in height, out
+    assert "deployment-low" in out
+    code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--allow-smaller-motors", "--json")
+    c6 = next(c for c in json.loads(out)["candidates"] if c["designation"] == "C6-3,5,7")
+    assert "deployment-low" in c6["reason_codes"] and c6["verdict"] == "fail"
+    code, out = run("match", QUIBBLE, "--catalog", str(SAMPLE_DIR), "--allow-smaller-motors")
+    row = _table_row(out, "C6-3,5,7")
+    assert "G" in row[row.index("fail"):], row

@@ -24,7 +24,7 @@ GOOD: dict[str, Any] = {
     "ejection_speed_m_s": 4.0, "uses_charge": True, "devices_listed": True, "delays_known": True,
     "constant_drag": True, "landing_descent_rate_m_s": 5.0, "landing_distance_m": 200.0,
     "deployment_time_s": [[6.5]], "deployment_speed_m_s": [[4.0]], "opening_load_n": [[12.0]],
-    "device_kinds": ("parachute",),
+    "device_kinds": ("parachute",), "ejection_altitude_m": 299.0, "deployment_altitude_m": [[299.0]],
 }
 
 
@@ -47,6 +47,8 @@ def test_a_good_flight_breaks_no_rule() -> None:
     ("chosen_delay_s", 3.2, 3.19, "ejection-far-from-apogee"),  # and 2.0 s before it
     ("deployment_speed_m_s", [[25.0]], [[25.01]], "deployment-fast"),
     ("deployment_time_s", [[1.5]], [[1.49]], "deployment-while-burning"),  # opening at burnout: not under thrust
+    # 4 m/s at the opening: the rocket falls about 4 m while the device opens (1 s), so it needs 4 m of height
+    ("deployment_altitude_m", [[4.0]], [[3.99]], "deployment-low"),
 ])
 def test_each_rule_fires_past_its_default_limit_only(field: str, at_limit: Any, past_limit: Any, code: str) -> None:
     rules = LaunchRules(field_radius_m=500.0)
@@ -161,7 +163,8 @@ def _flights(draw: st.DrawFn) -> RuleInputs:
         deployment_time_s=[[draw(_figure) for _ in range(k)] for _ in range(n)],
         deployment_speed_m_s=[[draw(_figure) for _ in range(k)] for _ in range(n)],
         opening_load_n=[[draw(_figure) for _ in range(k)] for _ in range(n)],
-        device_kinds=tuple(draw(st.sampled_from(["parachute", "drogue", "streamer"])) for _ in range(k)))
+        device_kinds=tuple(draw(st.sampled_from(["parachute", "drogue", "streamer"])) for _ in range(k)),
+        ejection_altitude_m=column(), deployment_altitude_m=[[draw(_figure) for _ in range(k)] for _ in range(n)])
 
 
 @settings(max_examples=60, deadline=None)
@@ -192,7 +195,7 @@ def test_the_code_masks_name_the_flights_each_finding_goes_to(flights: RuleInput
 def test_a_failed_status_gets_its_own_code_in_the_masks() -> None:
     flights = RuleInputs(**{**GOOD, "status": [OK, NO_LIFTOFF, STUCK_ON_RAIL, STEP_LIMIT],
                             **{name: GOOD[name] * 4 for name in ("deployment_time_s", "deployment_speed_m_s",
-                                                                 "opening_load_n")}})
+                                                                 "opening_load_n", "deployment_altitude_m")}})
     masks = code_masks(flights)
     assert masks["no-liftoff"].tolist() == [False, True, False, False]
     assert masks["stuck-on-rail"].tolist() == [False, False, True, False]
@@ -202,6 +205,7 @@ def test_a_failed_status_gets_its_own_code_in_the_masks() -> None:
 def test_the_matrix_has_a_row_per_flight_and_a_column_per_device() -> None:
     flights = RuleInputs(**{**GOOD, "status": [OK, OK, OK], "rail_exit_speed_m_s": [20.0, 14.0, 16.0],
                             "deployment_time_s": np.full((3, 1), 6.5), "deployment_speed_m_s": [[4.0], [30.0], [4.0]],
+                            "deployment_altitude_m": np.full((3, 1), 299.0),
                             "opening_load_n": np.full((3, 1), 1.0)})
     broken = broken_rules(flights)
     assert broken["rail-exit-slow"].tolist() == [False, True, False]
@@ -228,3 +232,30 @@ def test_a_live_charge_firing_before_apogee_is_noted_when_electronics_deploy() -
     assert "4.2 s before apogee" in note.message and "plug" in note.message
     assert _codes(chosen_delay_s=NAN, **electronics) == []  # no charge, or no delay known: nothing fires
     assert _codes(chosen_delay_s=11.0, **electronics) == []  # after apogee: a backup charge
+
+
+def test_a_device_must_open_high_enough_to_open_and_slow_the_rocket() -> None:
+    # new-user trial: C6-3 on quibble-41 opens its parachute 3.0 m above the ground at 19.4 m/s through the air
+    # (its 3 s delay is 1.9 s after the optimal one, inside the 2 s slack): every figure had a tick. In the 1 s
+    # the device takes to open and take hold the rocket falls about 19 m: it hits the ground first
+    low = {"deployment_altitude_m": [[3.0]], "deployment_speed_m_s": [[19.4]], "ejection_altitude_m": 3.0,
+           "optimal_delay_s": 1.1, "chosen_delay_s": 3.0}
+    (finding,) = evaluate_rules(RuleInputs(**{**GOOD, **low}))[0]
+    assert (finding.code, finding.severity) == ("deployment-low", "warning")
+    assert "3 m above the ground" in finding.message and "19 m" in finding.message
+    assert "shorter delay" in finding.message  # the delay fires late, on the way down: say what to do
+    early = {**low, "chosen_delay_s": 0.0, "optimal_delay_s": 2.5}  # a charge that fires low on the way up
+    (message,) = [f.message for f in evaluate_rules(RuleInputs(**{**GOOD, **early}))[0] if f.code == "deployment-low"]
+    assert "longer delay" in message
+    # the threshold is a setting: half a second to open needs 9.7 m
+    assert _codes(LaunchRules(deployment_opening_time_s=0.5), **{**low, "deployment_altitude_m": [[9.7]]}) == []
+    assert _codes(LaunchRules(deployment_opening_time_s=0.5), **{**low, "deployment_altitude_m": [[9.69]]}) == \
+        ["deployment-low"]
+
+
+def test_a_charge_that_opens_no_listed_device_must_fire_high_enough() -> None:
+    bare = {"devices_listed": False, "deployment_time_s": [], "deployment_speed_m_s": [], "opening_load_n": [],
+            "deployment_altitude_m": [], "device_kinds": (), "ejection_speed_m_s": 18.6}
+    assert _codes(**bare, ejection_altitude_m=18.6) == []
+    assert _codes(**bare, ejection_altitude_m=3.0) == ["ejection-low"]
+    assert _codes(**bare, ejection_altitude_m=NAN) == []  # not known: no threshold broken
