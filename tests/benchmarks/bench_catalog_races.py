@@ -11,7 +11,6 @@ removes the staged and temporary files, and whether the index then matches the f
 from __future__ import annotations
 
 import multiprocessing
-import os
 import signal
 import subprocess
 import sys
