@@ -109,9 +109,10 @@ class LaunchRules:
         comparisons behind issue 10).
     deployment_opening_time_s : float
         The time a device takes, from its charge or trigger, to open and slow the rocket to its descent
-        rate [s]: 1 s, common practice, no published source. The flight model opens a device fully at
-        once, so it would let a parachute opened 3 m above the ground at 19 m/s "land" gently; the rule
-        asks for the height the rocket covers in that time at its opening speed,
+        rate [s]: 1 s, common practice, no published source (tests/reference/check_values.md#launch-rules).
+        The flight model opens a device fully at once, so it would let a parachute opened 3 m above the
+        ground at 19 m/s "land" gently; the rule asks for the height the rocket covers in that time at its
+        opening speed,
         :meth:`deployment_height_needed_m` (``deployment-low``; ``ejection-low`` for a charge that opens
         no listed device, at its speed over the ground).
     """
