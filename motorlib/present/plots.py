@@ -73,6 +73,19 @@ def _event_times(summary: dict[str, object]) -> list[tuple[str, float]]:
     return sorted(out, key=lambda e: e[1])
 
 
+def _phase_labels(burnout_s: float, apogee_s: float, deploy_s: float | None, end_s: float
+                  ) -> list[tuple[float, float, str]]:
+    """The flight chart's band labels (start [s], end [s], word): boost, coast (only when burnout comes before
+    apogee: an apogee under thrust has no coast) and recovery, each only where its band is wide enough to hold it
+    (over 6 % of the time shown, ``end_s``)."""
+    bands = [(0.0, burnout_s, "boost")]
+    if burnout_s < apogee_s:
+        bands.append((burnout_s, deploy_s if deploy_s is not None else end_s, "coast"))
+    if deploy_s is not None:
+        bands.append((deploy_s, end_s, "recovery"))
+    return [(x0, x1, name) for x0, x1, name in bands if x1 - x0 > 0.06 * end_s]
+
+
 def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], title: str,
                 path: str | os.PathLike[str], units: DisplayUnits = _METRIC) -> Path:
     """The flight in two panels side by side: altitude against time with the phases as labelled bands and the
@@ -97,9 +110,8 @@ def flight_plot(trajectory: dict[str, np.ndarray], summary: dict[str, object], t
     if deploy is not None:
         ax.axvspan(deploy, end, facecolor=BLUE_TINT, hatch="..", edgecolor=BLUE, linewidth=0, label="under recovery device")
     top = float(z.max()) * 1.2 or 1.0
-    for x0, x1, name in ((0, burnout, "boost"), (burnout, deploy or end, "coast"), (deploy, end, "recovery")):
-        if x0 is not None and x1 - x0 > 0.06 * end:
-            ax.text((x0 + x1) / 2, top * 0.96, name, ha="center", va="top", fontsize=9, fontweight="bold", color=INK)
+    for x0, x1, name in _phase_labels(burnout, apogee_t, deploy, end):
+        ax.text((x0 + x1) / 2, top * 0.96, name, ha="center", va="top", fontsize=9, fontweight="bold", color=INK)
     ax.plot(t, z, color=INK, linewidth=2.2, label="altitude (left scale)")
     ax.set_ylim(0, top)
     ax.set_xlim(0, end)
