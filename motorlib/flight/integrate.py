@@ -19,7 +19,7 @@ for a 60 m and a 6,000 m flight. A step whose error exceeds that is rejected
 step); the next step is h·clip(0.9·err^(-1/5), 0.2, 5). The pair replaced
 classic RK4 with its embedded third-order estimate (issue 16): on 1,000
 synthetic flights it took 46 steps a flight instead of 72 (91 at most instead
-of 161) for a smaller apogee error (median 2e-7 instead of 8e-7); 42.7 (91 at
+of 161) for a smaller apogee error (median 2e-7 instead of 8e-7); 43.7 (92 at
 most) since the rail and wind-floor rules of steps.py and a longer first step. Steps that would cross a
 change of dynamics end on it: every thrust-curve sample during the burn (thrust
 is smooth inside every step), rail exit, each point of a Cd(Mach) table, the
@@ -105,17 +105,17 @@ class FlightSettings:
         fall, under a device once the rocket falls; see the module docstring. On 1,000 synthetic
         flights (tests/synthetic.py, seed 7; tests/benchmarks/bench_flight.py) against solve_ivp
         DOP853 at rtol 1e-10, the apogee erred by median 2.2e-7 and at worst 3.9e-6 with 3e-7,
-        in 46 steps per flight (42.7 since the rail and wind-floor rules of steps.py and a longer
-        first step, median 2.4e-7, worst 3.6e-6; 1e-6: median
+        in 46 steps per flight (43.7 since the rail and wind-floor rules of steps.py and a longer
+        first step, median 2.3e-7, worst 3.6e-6; 1e-6: median
         8.3e-7, worst 2.0e-5, 43 steps; 2e-6: 1.8e-6, 4.8e-5, 41 steps: a looser tolerance saves
         few steps). Our choice, no published source:
         the speed goal's median error of 1e-6 with a margin of 5.
     burn_steps : int
         The first step is the burn time over this; the controller then adapts it, growing it at
-        most 5 x a step. 100: on 1,000 synthetic flights (tests/synthetic.py, seed 7) 42.7 steps a
-        flight instead of 43.5 with 400 (a first step short enough to pass the error test at liftoff
+        most 5 x a step. 100: on 1,000 synthetic flights (tests/synthetic.py, seed 7) 43.7 steps a
+        flight instead of 44.7 with 400 (a first step short enough to pass the error test at liftoff
         on nearly every flight, which then took steps to grow), the apogee's worst error against
-        DOP853 3.6e-6 instead of 3.9e-6, its median 2.4e-7 instead of 2.3e-7. Our choice, no
+        DOP853 3.6e-6 instead of 3.9e-6, its median 2.3e-7 instead of 2.2e-7. Our choice, no
         published source.
     descent_step_fraction : float
         Under a deployed device, a step is at most this fraction f of the drag

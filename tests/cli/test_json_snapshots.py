@@ -12,7 +12,7 @@ the Dormand–Prince pair (and its ascent kept the step proposal over steps cut 
 state, as its ``max_speed_m_s`` did: one motor's 0.0545 became 0.0570, its opening air speed over the speed of
 sound; and the ``deployment-low`` rule added one reason to match_quibble.json: C6-3,5,7, already failing, opens
 its parachute 3.0 m above the ground at 19.4 m/s, its reasons and codes gain that rule, nothing else moved; and
-the longer first step and the wind floor left inside rail steps (issue 16) moved figures by under 6e-5 relative,
+the longer first step (FlightSettings.burn_steps 100, issue 16) moved figures by under 6e-5 relative,
 the most an ejection's vertical speed after apogee, 1.57529 to 1.57520 m/s, where the steps run at 10 x the
 tolerance; keys, order and strings unchanged.)
 
