@@ -6,12 +6,12 @@ import os
 
 import click
 
-from .group import _InputError
+from .group import _Command, _InputError
 from .options import _Finite, _units_option, display_units, motor_options
 from .output import _OVERWRITE_HINT, _caution, _check_outputs, _console, _EPILOG, _strict_json
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @motor_options(required=False)
 @click.option("--mach", type=_Finite(0.0, 5.0), default=0.3, show_default=True,

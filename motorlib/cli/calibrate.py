@@ -6,6 +6,8 @@ from typing import Any
 
 import click
 
+from .group import _Command
+
 from .options import _Quantity, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
@@ -45,7 +47,7 @@ def _parse_flight(spec: str) -> dict[str, Any]:
     return out
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @motor_options()
 @click.option("--apogee", "apogees_m", type=_Quantity("length", minimum=0.0, strict=True), multiple=True,

@@ -7,11 +7,13 @@ from typing import Any
 
 import click
 
+from .group import _Command
+
 from .options import _Finite, _metadata_for, _metadata_options, _units_option, display_units
 from .output import _console, _strict_json
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("paths", nargs=-1, required=True, type=click.Path())
 @click.option("--json", "as_json", is_flag=True, help="Print a JSON list, one object per file.")
 @click.option("--details/--summary", default=None,

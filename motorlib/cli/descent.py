@@ -6,11 +6,13 @@ import json
 
 import click
 
+from .group import _Command
+
 from .options import _Finite, _Quantity, _units_option, display_units
 from .output import _caution, _console
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.option("--mass", "mass_kg", type=_Quantity("mass", bare=False, example="450g", minimum=0.0, strict=True),
               help="Mass under the device, with a unit (e.g. 450g, 1.2kg, 16oz).")
 @click.option("--drag-area", "drag_area_m2", type=_Quantity("area", minimum=0.0),

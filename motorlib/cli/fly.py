@@ -8,7 +8,8 @@ import click
 
 from .options import (_Finite, _Quantity, _units_option, apply_field_day, display_units, load_motor, motor_options,
                       field_day_options, pop_field_day)
-from .output import _EPILOG, _card_units, _caution, _check_outputs, _console, _echo_json
+from .group import _Command
+from .output import STDOUT_HELP, _EPILOG, _card_units, _caution, _check_outputs, _echo_json, _report_console
 
 if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each command, for a fast start
     from pathlib import Path
@@ -21,7 +22,7 @@ if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each c
     from ..present.display import DisplayUnits
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @motor_options()
 @click.option("--delay", "delay_s", type=_Quantity("time", minimum=0.0),
@@ -38,7 +39,7 @@ if TYPE_CHECKING:  # annotations only: the CLI imports the library inside each c
 @click.option("--csv", "csv_path", type=click.Path(dir_okay=False),
               help="Write the trajectory to this CSV file, in the display units (named in each column header); "
                    "its 'phase' column reads ascent (up to apogee), freefall (falling, no recovery device open) "
-                   "or descent (under a device).")
+                   f"or descent (under a device); {STDOUT_HELP}.")
 @click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
               help="Write the flight chart (altitude by phase with its events, beside the side view with the wind) "
                    "to this PNG file.")
@@ -96,7 +97,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     if delay_s is not None and lead is not None and lead.deploy != "ejection":
         raise click.UsageError(f"--delay {delay_s:g}: the airframe file opens its {lead.device} by electronics "
                                f"(deploy = \"{lead.deploy}\"), so the motor's delay opens nothing; leave out --delay")
-    _check_outputs({"--csv": csv_path, "--plot": plot_path, "--report": report_path}, overwrite, [airframe_file, motor_file])
+    _check_outputs({"--csv": csv_path, "--plot": plot_path, "--report": report_path}, overwrite, [airframe_file, motor_file],
+                   printing="--json" if as_json else None)
     if report_path:
         from .output import _write_report
 
@@ -152,12 +154,13 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     from ..present.flightcard import flight_card
 
-    console = _console()
+    console = _report_console(csv_path)  # standard error when the CSV has standard output (--csv -)
     card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
                        units=_card_units(shown), wind_speed_m_s=frame.launch.surface_wind_m_s)
     console.print(render.flight_card_table(card))
     for path in written:
-        console.print(f"Wrote {render.escape(str(path))}")
+        if path is not None:  # None: standard output
+            console.print(f"Wrote {render.escape(str(path))}")
     _caution(console)
     if failed:
         raise SystemExit(1)
@@ -189,8 +192,8 @@ def _command_line() -> str:
 
 
 def _write_trajectory_csv(trajectory: Mapping[str, np.ndarray], path: str, units: DisplayUnits,
-                          overwrite: bool) -> Path:
-    from ..files.fsio import write_atomic
+                          overwrite: bool) -> Path | None:
     from ..present.csvout import trajectory_csv
+    from .output import _write_output
 
-    return write_atomic(path, trajectory_csv(trajectory, units).encode(), overwrite=overwrite)
+    return _write_output(path, trajectory_csv(trajectory, units).encode(), overwrite)

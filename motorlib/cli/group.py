@@ -47,8 +47,35 @@ class _InternalError(click.ClickException):
     exit_code = 3
 
 
+# The flags that print to standard output. An output path of '-' means standard output (the usual convention, and
+# what `fly --csv -` does), so `match --csv -` and `--json -` say the same as the flag alone rather than failing on
+# an "unexpected extra argument".
+_PRINTING_FLAGS = ("--csv", "--json")
+
+
+class _Command(click.Command):
+    """A command whose printing flags (``--csv``, ``--json``) also accept ``-`` (standard output) after them."""
+
+    def parse_args(self, ctx: click.Context, args: list[str]) -> list[str]:
+        flags = {name for param in self.params if isinstance(param, click.Option) and param.is_flag
+                 for name in param.opts if name in _PRINTING_FLAGS}
+        kept: list[str] = []
+        previous = None
+        for i, arg in enumerate(args):
+            if arg == "--":  # everything after it is an argument, never an option
+                kept += args[i:]
+                break
+            if arg == "-" and previous in flags:
+                continue  # `--csv -`: the flag alone says it
+            previous = arg
+            kept.append(arg[:-2] if arg in {f"{flag}=-" for flag in flags} else arg)
+        return super().parse_args(ctx, kept)
+
+
 class _Group(click.Group):
     """Turns library errors, OSErrors and bugs into a clean ``Error: ...`` message (exit 2, or 3 for a bug)."""
+
+    command_class = _Command  # the subcommands made by ``@group.command`` (``catalog list --csv -``)
 
     def invoke(self, ctx: click.Context) -> Any:
         try:

@@ -6,15 +6,15 @@ from typing import Any
 
 import click
 
-from .group import _InputError
+from .group import _Command, _InputError
 from .options import _metadata_for, _metadata_options
-from .output import _OVERWRITE_HINT, _check_outputs, _console
+from .output import STDOUT_HELP, STDOUT_PATH, _OVERWRITE_HINT, _check_outputs, _report_console, _write_output
 
 
-@click.command("import")
+@click.command("import", cls=_Command)
 @click.argument("csv_file", type=click.Path(exists=True, dir_okay=False))
 @click.option("-o", "--output", required=True, type=click.Path(dir_okay=False),
-              help="Motor-record XML file to write (atomically).")
+              help=f"Motor-record XML file to write (atomically); {STDOUT_HELP}.")
 @click.option("--overwrite", is_flag=True, help="Replace OUTPUT if it exists.")
 @click.option("--force", is_flag=True, help="Write the file even when the checks find errors.")
 @_metadata_options
@@ -37,9 +37,9 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
     from ..files.motor_csv import record_from_csv
     from ..files.curvefiles import CheckReport
     from ..errors import CurveDataError
-    from ..files.motor_xml import write_record
+    from ..files.motor_xml import readable_record_bytes
 
-    console = _console()
+    console = _report_console(output)  # standard error when the record has standard output (-o -)
     _check_outputs({"--output": output}, overwrite, [csv_file, opts.get("meta_file")])
     try:
         meta = _metadata_for(opts, [csv_file])
@@ -57,9 +57,10 @@ def import_curve(csv_file: str, output: str, overwrite: bool, force: bool, **opt
         raise click.ClickException(f"{csv_file}: the checks found errors; nothing was written (use --force to "
                                    "write it anyway)")
     try:
-        path = write_record(record, output, overwrite=overwrite)
+        shown = "standard output" if output == STDOUT_PATH else output
+        path = _write_output(output, readable_record_bytes(record, shown), overwrite)
     except FileExistsError as exc:
         raise _InputError(f"{exc}; {_OVERWRITE_HINT}") from exc
-    console.print(f"Wrote {render.escape(str(path))}: {record.designation}, "
+    console.print(f"Wrote {render.escape(str(path or 'standard output'))}: {record.designation}, "
                   f"{render.impulse_text(record.total_impulse_ns)} N·s, "
                   f"{record.computed_designation()}")

@@ -9,6 +9,7 @@ import click
 
 from .options import (DEPLOY_LIMITS_TEXT as _DEPLOY_LIMITS, RULES as _RULES, _catalog_option, _catalog_or_samples, _Finite, _open_catalog, _Quantity, _units_option,
                       apply_field_day, display_units, field_day_options, pop_field_day)
+from .group import _Command
 from .output import _EPILOG, _card_units, _check_outputs, _console, _echo_json
 from .robust import pop_robust, robust_options, run_robust
 
@@ -101,9 +102,12 @@ def _match_options(func: Any) -> Any:
                      help="Least stability margin in calibers over the powered flight, when the airframe has a "
                           "[geometry] (default 1: common practice, no published source)."),
         _units_option,
-        click.option("--json", "as_json", is_flag=True, help="Print {airframe, conditions, candidates} as JSON (SI)."),
+        click.option("--json", "as_json", is_flag=True,
+                     help="Print {airframe, conditions, candidates} as JSON (SI) on standard output ('--json -' "
+                          "says the same)."),
         click.option("--csv", "as_csv", is_flag=True,
-                     help="Print the candidates as CSV, in the display units (named in each column header)."),
+                     help="Print the candidates as CSV on standard output, in the display units (named in each "
+                          "column header); '--csv -' says the same."),
         click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
         click.option("--report", "report_path", type=click.Path(dir_okay=False),
@@ -212,7 +216,7 @@ def match_settings(opts: dict[str, Any]) -> Any:
     except ValueError as exc:
         raise click.UsageError(str(exc).replace("`", "")) from None
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @_catalog_option
 @_match_options

@@ -6,7 +6,7 @@ import click
 
 from .group import _InputError
 from .options import _units_option, display_units
-from .output import _OVERWRITE_HINT, _console
+from .output import STDOUT_PATH, _OVERWRITE_HINT, _console, _write_output
 
 
 @click.command("new-airframe")
@@ -15,6 +15,8 @@ from .output import _OVERWRITE_HINT, _console
 @_units_option
 def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
     """Write a commented airframe file (TOML) to PATH, to edit and then fly or match.
+
+    PATH '-' prints it on standard output.
 
     Every key is explained in the file; the example values are a 41.6 mm
     sport model, in metric or imperial units (--units). An existing file is
@@ -28,13 +30,14 @@ def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
     from pathlib import Path
 
     from ..files.airframe_template import airframe_template
-    from ..files.fsio import write_atomic
-
-    text = airframe_template(display_units(units).system, Path(path).name)
+    name = "rocket.toml" if path == STDOUT_PATH else Path(path).name
+    text = airframe_template(display_units(units).system, name)
     try:
-        written = write_atomic(path, text.encode(), overwrite=overwrite)
+        written = _write_output(path, text.encode(), overwrite)
     except FileExistsError as exc:
         raise _InputError(f"{exc}; {_OVERWRITE_HINT}") from None
+    if written is None:  # standard output: the file alone, nothing else
+        return
     from rich.markup import escape
 
     _console().print(f"Wrote {escape(str(written))}: edit the values, then try "

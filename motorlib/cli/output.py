@@ -11,6 +11,14 @@ from ..safety import SAFETY_CAUTION as _EPILOG
 # what to do about an output that exists (every command that writes a file says it alike)
 _OVERWRITE_HINT = "choose another name or use --overwrite to replace it"
 
+# An output path of '-' means standard output, as is usual on the command line; a file of that name is './-'.
+STDOUT_PATH = "-"
+STDOUT_HELP = "'-' prints it on standard output (the command's own report then goes to standard error)"
+
+# The output options whose content cannot go to standard output, and what to say: a PNG is binary, and an HTML
+# report is a document to open or print, mixed with nothing else (``--report -`` in a terminal is a page of markup).
+_FILE_ONLY = {"--plot": "a PNG chart", "--report": "an HTML report"}
+
 
 def _console() -> Any:
     from rich.console import Console
@@ -95,12 +103,16 @@ def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *,
         raise _report_error(str(exc)) from exc
 
 
-def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequence[Any] = ()) -> None:
+def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequence[Any] = (), *,
+                   printing: str | None = None) -> None:
     """Refuse, before any work, output paths a command must not write: the one check every output option uses.
 
     ``outputs`` maps an option (``--plot``) to its path or None. Refused: a path that is one of ``inputs``
     (even with ``--overwrite``), two options naming one file, an existing file without ``--overwrite``,
     a folder, and a parent folder that does not exist. Raises an input error (exit status 2, as for every unusable input).
+
+    A path of ``-`` (:data:`STDOUT_PATH`) is standard output: refused for a PNG chart or an HTML report, for a
+    second option, and when ``printing`` (the flag that prints the command's results, e.g. ``--json``) was given.
     """
     import os
 
@@ -118,10 +130,14 @@ def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequ
     for option, path in outputs.items():
         if not path:
             continue
+        if path == STDOUT_PATH:
+            _check_stdout(option, claimed, printing)
+            claimed[option] = path
+            continue
         if any(same(path, source) for source in inputs if source):
             raise _InputError(f"{option} {path}: is an input of this command; choose another file name")
         for other, taken in claimed.items():
-            if same(path, taken):
+            if taken != STDOUT_PATH and same(path, taken):
                 raise _InputError(f"{option} {path}: also given to {other}; choose another file name")
         claimed[option] = path
         if os.path.isdir(path):
@@ -131,6 +147,47 @@ def _check_outputs(outputs: dict[str, str | None], overwrite: bool, inputs: Sequ
         parent = os.path.dirname(path) or "."
         if not os.path.isdir(parent):
             raise _InputError(f"{option} {path}: folder {parent} does not exist")
+
+
+def _check_stdout(option: str, claimed: dict[str, str], printing: str | None) -> None:
+    """Refuse ``OPTION -`` when standard output cannot take it: a chart or report, or already in use."""
+    from .group import _InputError
+
+    if option in _FILE_ONLY:
+        raise _InputError(f"{option} -: {_FILE_ONLY[option]} cannot be written to standard output; give a file name")
+    taken = printing or next((other for other, path in claimed.items() if path == STDOUT_PATH), None)
+    if taken:
+        raise _InputError(f"{option} -: {taken} prints to standard output too; give {option} a file name, "
+                          f"or leave out {taken}")
+
+
+def _write_output(path: str, data: bytes, overwrite: bool) -> Any:
+    """Write an output option's ``data``: to standard output for ``-``, else atomically to the file ``path``.
+
+    Returns the path written, or None for standard output (there is no file to name in a 'Wrote ...' line).
+    """
+    if path == STDOUT_PATH:
+        stream = sys.stdout
+        if stream is None:  # no standard output attached (as click.echo, print nothing)
+            return None
+        stream.flush()  # anything printed before goes first
+        binary = getattr(stream, "buffer", None)
+        if binary is not None:
+            binary.write(data)
+            binary.flush()
+        else:
+            stream.write(data.decode("utf-8"))
+            stream.flush()
+        return None
+    from ..files.fsio import write_atomic
+
+    return write_atomic(path, data, overwrite=overwrite)
+
+
+def _report_console(*paths: str | None) -> Any:
+    """The console for the command's own report: standard error when one of ``paths`` is ``-`` (the data has
+    standard output), else standard output."""
+    return _err_console() if STDOUT_PATH in paths else _console()
 
 
 def _is_regular(path: str) -> bool:

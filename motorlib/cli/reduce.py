@@ -8,12 +8,13 @@ from typing import Any
 import click
 
 from .options import _Finite, _metadata_for, _metadata_options, _units_option, display_units
-from .output import _OVERWRITE_HINT, _check_outputs, _console, _strict_json
+from .group import _Command
+from .output import STDOUT_HELP, STDOUT_PATH, _OVERWRITE_HINT, _check_outputs, _report_console, _strict_json
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("logs", nargs=-1, required=True, type=click.Path(exists=True, dir_okay=False))
-@click.option("-o", "--output", type=click.Path(dir_okay=False), help="Motor-record XML file to write (atomically).")
+@click.option("-o", "--output", type=click.Path(dir_okay=False), help=f"Motor-record XML file to write (atomically); {STDOUT_HELP}.")
 @click.option("--overwrite", is_flag=True, help="Replace OUTPUT, the --plot and --report files if they exist.")
 @click.option("--force", is_flag=True, help="Write OUTPUT even when the checks find errors.")
 @click.option("--combine", is_flag=True, help="Several firings of one motor: write their mean curve and report the spread.")
@@ -64,12 +65,14 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
 
     if len(logs) > 1 and not combine and output:
         raise click.UsageError("several logs with --output: add --combine to write their mean curve")
-    _check_outputs({"--output": output, "--plot": plot_path, "--report": report_path}, overwrite, logs)
+    _check_outputs({"--output": output, "--plot": plot_path, "--report": report_path}, overwrite, logs,
+                   printing="--json" if as_json else None)
     settings = ReductionSettings(cutoff_hz=_cutoff_hz(cutoff), detrend=detrend, max_points=points)
     if report_path:
         from .output import _write_report
 
-        _write_report(None, report_path, overwrite, list(logs) + ([output] if output else []), check_only=True)
+        _write_report(None, report_path, overwrite, list(logs) + ([output] if output not in (None, STDOUT_PATH) else []),
+                      check_only=True)
     # a log from our own stand, unless the option or the side file says otherwise
     meta = _metadata_for(opts, list(logs), default_kind="own-firing")
     meta = meta(logs[0]) if callable(meta) else meta  # a series is one motor: the first log's entry
@@ -79,7 +82,8 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     except CurveDataError as exc:
         raise click.ClickException(str(exc)) from None
     series = stand_series(reductions, meta, combine=combine, max_points=points,
-                          settings_text=settings_note(settings, scale=scale, offset=offset), source=output)
+                          settings_text=settings_note(settings, scale=scale, offset=offset),
+                          source=None if output == STDOUT_PATH else output)
     record, report, spread, first = series.record, series.report, series.spread, reductions[0][1]
     written = []
     if output:
@@ -98,7 +102,7 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
         from .output import _write_report
         from ..present.report_content import reduce_report
 
-        inputs = list(logs) + ([output] if output else [])
+        inputs = list(logs) + ([output] if output not in (None, STDOUT_PATH) else [])
         report_doc = reduce_report(reductions, record, report, spread, inputs=list(logs), command=_command_line())
         written.append(_write_report(report_doc, report_path, overwrite, inputs))
     summary = _log_summary(reductions)
@@ -109,9 +113,10 @@ def reduce(logs: tuple[str, ...], output: str | None, overwrite: bool, force: bo
     if as_json:
         click.echo(_strict_json({"logs": summary, "combined": spread,
                                  "series_findings": [f.as_dict() for f in series.series_findings],
-                                 **report.as_dict(), "written": [str(p) for p in written]}, indent=2, default=float))
+                                 **report.as_dict(), "written": [str(p) for p in written if p is not None]}, indent=2, default=float))
     else:
-        _print_reduction(summary, spread, report, written, display_units(units), series.log_reports, combine)
+        _print_reduction(summary, spread, report, written, display_units(units), series.log_reports, combine,
+                         to_stderr=output == STDOUT_PATH)
     if series.failed:
         raise SystemExit(1)  # the report is printed; the status tells scripts that a check found errors
 
@@ -129,13 +134,16 @@ def _cutoff_hz(cutoff: str | None) -> float | None:
 
 
 def _write_checked(record: Any, report: Any, output: str, overwrite: bool, force: bool) -> Any:
-    """Write ``record`` to ``output`` unless its checks found errors (and not ``force``); the path written."""
+    """Write ``record`` to ``output`` unless its checks found errors (and not ``force``); the path written (None
+    for standard output, ``-o -``)."""
     if not report.ok and not force:
         raise click.ClickException(_findings_message(report))
-    from ..files.motor_xml import write_record
+    from ..files.motor_xml import readable_record_bytes
+    from .output import _write_output
 
     try:
-        return write_record(record, output, overwrite=overwrite)
+        shown = "standard output" if output == STDOUT_PATH else output
+        return _write_output(output, readable_record_bytes(record, shown), overwrite)
     except FileExistsError as exc:
         raise click.ClickException(f"{exc}; {_OVERWRITE_HINT}") from exc
 
@@ -150,12 +158,14 @@ def _log_summary(reductions: list[tuple[str, Any]]) -> list[dict[str, Any]]:
 
 
 def _print_reduction(summary: list[dict[str, Any]], spread: dict[str, Any] | None, report: Any,
-                     written: list[Any], units: Any, log_reports: list[Any] = (), combine: bool = False) -> None:
+                     written: list[Any], units: Any, log_reports: list[Any] = (), combine: bool = False,
+                     to_stderr: bool = False) -> None:
     """The report for people: one line per log, the table of firings and a check block per log of a series,
-    the spread of several firings, the checks of the record, the files written."""
+    the spread of several firings, the checks of the record, the files written; on standard error when the
+    record has standard output (``to_stderr``)."""
     from ..present import tables as render
 
-    console = _console()
+    console = _report_console(STDOUT_PATH if to_stderr else None)
     console.print(render.reduction_text(summary, spread, units), end="")
     if len(summary) > 1:
         console.print(render.firings_table(summary, units))
@@ -165,7 +175,8 @@ def _print_reduction(summary: list[dict[str, Any]], spread: dict[str, Any] | Non
         console.print(f"The record below is the first firing's; --combine writes the mean of all {len(summary)}.")
     console.print(render.check_details(report, units, report.record))
     for path in written:
-        console.print(f"Wrote {render.escape(str(path))}")
+        if path is not None:  # None: standard output
+            console.print(f"Wrote {render.escape(str(path))}")
 
 
 def _log_check_block(log_report: Any, render: Any) -> Any:

@@ -6,6 +6,8 @@ from typing import Any
 
 import click
 
+from .group import _Command
+
 from .options import DEPLOY_LIMITS_TEXT, _Quantity, _units_option, display_units, motor_options
 from .output import _caution, _check_outputs, _console, _EPILOG, _strict_json
 
@@ -132,7 +134,7 @@ def _sibling_spread(motor: Any, catalog: Any) -> Any:
     return catalog_spread([catalog.get(r.motor_id) for r in rows])
 
 
-@click.command()
+@click.command(cls=_Command)
 @click.argument("airframe_file", type=click.Path(exists=True, dir_okay=False))
 @motor_options()
 @click.option("-n", "--samples", "n_samples", type=click.IntRange(1, 10_000_000), default=2000, show_default=True,
