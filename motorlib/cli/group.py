@@ -9,15 +9,27 @@ The one place an error reaches the terminal:
 
 Exit statuses, the same for every command: 0 done; 1 a check found errors or a flight failed a rule (the
 command says so and has printed its results); 2 unusable input: a bad option (as click does), a file that
-cannot be read or is not what it should be, an output that cannot be written; 3 an internal error (a bug).
+cannot be read or is not what it should be, an output that cannot be written; 3 an internal error (a bug);
+141 the reader of standard output stopped early (``motorlib catalog list | head -1``).
+
+A closed pipe: when the program reading motorlib's output stops (``head``, a pager quit early), the next write
+to standard output fails with EPIPE. motorlib then ends at once, quietly (no message: the reader asked for no
+more), with status 141 = 128 + SIGPIPE (13), the status a shell reports for any program stopped by a closed pipe
+(``yes | head -1``), so ``set -o pipefail`` scripts and ``$PIPESTATUS`` see motorlib as every other tool. Not 0:
+the command did not finish (``motorlib check DIR | head`` must not claim that every curve was checked), and not
+1, which says that a check found errors. It is the same whether the pipe breaks during the command, before it
+writes anything, or when the interpreter flushes standard output at exit (:func:`run_guarded`); whatever status
+the command was about to give, its output was cut short, and 141 says so. Output that fitted in the pipe before
+the reader stopped has been delivered, as far as motorlib can know: that run ends with its usual status.
 """
 
 from __future__ import annotations
 
 import errno
-
+import io
 import os
-from typing import Any
+import sys
+from typing import Any, Callable, NoReturn
 
 import click
 
@@ -29,6 +41,72 @@ def os_error_text(exc: OSError) -> str:
     reason = exc.strerror or str(exc) or type(exc).__name__
     names = [str(n) for n in (exc.filename, exc.filename2) if n is not None]
     return f"{' -> '.join(names)}: {reason}" if names else reason
+
+
+# 128 + SIGPIPE (13): what a shell reports for a program ended by a closed pipe (see the module docstring)
+BROKEN_PIPE_STATUS = 141
+
+
+def _quiet_standard_output() -> None:
+    """Point standard output's file descriptor at the null device, so that nothing written or flushed later (the
+    interpreter flushes standard output at exit) meets the closed pipe again: Python's documented recipe (the
+    library reference, ``signal``, "Note on SIGPIPE"). Standard error too when it is the same pipe (``2>&1 |``)."""
+    try:
+        out_fd = sys.stdout.fileno()
+    except (AttributeError, OSError, ValueError):  # no real stream (a test's CliRunner): nothing reaches a pipe
+        return
+    try:
+        err_fd = sys.stderr.fileno()
+        same = os.path.samestat(os.fstat(out_fd), os.fstat(err_fd))
+    except (AttributeError, OSError, ValueError):
+        err_fd, same = -1, False
+    devnull = os.open(os.devnull, os.O_WRONLY)
+    try:
+        os.dup2(devnull, out_fd)
+        if same:
+            os.dup2(devnull, err_fd)
+    finally:
+        os.close(devnull)
+
+
+def _end_on_broken_pipe() -> NoReturn:
+    """End the command quietly with :data:`BROKEN_PIPE_STATUS`: the reader of standard output stopped."""
+    _quiet_standard_output()
+    raise click.exceptions.Exit(BROKEN_PIPE_STATUS)
+
+
+def _buffered_stdout() -> None:
+    """Give an unbuffered standard output (``python -u``, ``PYTHONUNBUFFERED``) a buffer that it flushes at every
+    line: written straight to the file, a long text that a closing pipe takes only in part was cut short with
+    no error at all (the text layer ignores a short write), so the command ended with status 0."""
+    stream = sys.stdout
+    raw = getattr(stream, "buffer", None)
+    if not isinstance(stream, io.TextIOWrapper) or not isinstance(raw, io.FileIO):
+        return
+    sys.stdout = io.TextIOWrapper(io.BufferedWriter(raw), encoding=stream.encoding, errors=stream.errors,
+                                  line_buffering=True, write_through=True)
+
+
+def run_guarded(main: Callable[[], Any]) -> NoReturn:
+    """Run the ``motorlib`` group ``main`` (click's standalone mode, which always ends in SystemExit), then flush
+    standard output; a closed pipe there too ends with :data:`BROKEN_PIPE_STATUS`, never with Python's "Exception
+    ignored ... BrokenPipeError" and status 120."""
+    _buffered_stdout()
+    try:
+        main()
+    except SystemExit as exc:
+        ending = exc
+    else:
+        ending = SystemExit(0)
+    try:
+        if sys.stdout is not None:
+            sys.stdout.flush()
+    except OSError as exc:
+        if exc.errno != errno.EPIPE:
+            raise
+        _quiet_standard_output()
+        ending = SystemExit(BROKEN_PIPE_STATUS)
+    raise ending
 
 
 def _debug(ctx: click.Context) -> bool:
@@ -77,6 +155,15 @@ class _Group(click.Group):
 
     command_class = _Command  # the subcommands made by ``@group.command`` (``catalog list --csv -``)
 
+    def make_context(self, info_name: str | None, args: list[str], parent: click.Context | None = None,
+                     **extra: Any) -> click.Context:
+        try:  # the group's own --help and --version print here, before any command runs
+            return super().make_context(info_name, args, parent=parent, **extra)
+        except OSError as exc:
+            if exc.errno == errno.EPIPE:
+                _end_on_broken_pipe()
+            raise
+
     def invoke(self, ctx: click.Context) -> Any:
         try:
             return super().invoke(ctx)
@@ -85,8 +172,8 @@ class _Group(click.Group):
         except (click.exceptions.ClickException, click.exceptions.Exit, click.exceptions.Abort):
             raise
         except OSError as exc:
-            if exc.errno == errno.EPIPE:  # the reader of standard output stopped (`| head`): click ends quietly
-                raise
+            if exc.errno == errno.EPIPE:  # the reader of standard output stopped (`| head`): see the docstring
+                _end_on_broken_pipe()
             raise _InputError(os_error_text(exc)) from exc
         except MemoryError as exc:
             raise _InputError("out of memory: the input is far larger than motorlib can handle") from exc

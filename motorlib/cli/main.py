@@ -21,7 +21,7 @@ import importlib
 from typing import Any
 
 from .. import __version__
-from .group import _Group
+from .group import _Group, run_guarded
 from .options import _units_option
 from .output import _EPILOG
 
@@ -93,10 +93,13 @@ def run() -> None:
     the only linear algebra (calibrate's least squares, scatter's covariance) is on matrices of a few columns,
     below the size at which OpenBLAS splits work between threads. So the process asks for one BLAS thread
     before numpy is imported; a value set in the environment is kept.
+
+    A reader of standard output that stops early (``| head -1``) ends the command quietly with status 141, also
+    when the pipe breaks as the interpreter flushes standard output at exit (:func:`.group.run_guarded`).
     """
     os.environ.setdefault(_BLAS_THREADS, "1")
     gc.set_threshold(200_000, 20, 20)
-    main()
+    run_guarded(main)
 
 
 _BLAS_THREADS = "OPENBLAS_NUM_THREADS"  # read by OpenBLAS once, when numpy loads it

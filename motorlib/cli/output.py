@@ -20,16 +20,27 @@ STDOUT_HELP = "'-' prints it on standard output (the command's own report then g
 _FILE_ONLY = {"--plot": "a PNG chart", "--report": "an HTML report"}
 
 
-def _console() -> Any:
+def _console_class() -> Any:
+    """rich's Console, except that a closed pipe raises BrokenPipeError (rich ends the process with status 1 by
+    itself); :mod:`.group` then ends every command alike (status 141, see its docstring)."""
     from rich.console import Console
 
-    return Console(highlight=False)
+    class _Console(Console):
+        def on_broken_pipe(self) -> None:
+            self.quiet = True  # nothing more to write
+            import errno
+
+            raise BrokenPipeError(errno.EPIPE, "Broken pipe")
+
+    return _Console
+
+
+def _console() -> Any:
+    return _console_class()(highlight=False)
 
 
 def _err_console() -> Any:
-    from rich.console import Console
-
-    return Console(stderr=True, highlight=False)
+    return _console_class()(stderr=True, highlight=False)
 
 
 def _json_text(data: Any) -> str:
