@@ -5,7 +5,8 @@ read-only catalog) and can always be rebuilt from the files. The file readers
 (lxml) and hashlib are imported only where a file is read: opening a current
 index and reading rows and samples from it imports neither. Opening checks
 the schema version and that the tables can be read; an unusable index is
-moved aside to ``index.corrupt`` and rebuilt, and an index of the previous
+moved aside to ``index.corrupt`` and rebuilt (a folder or anything but a file in its place is the user's: it is
+refused with a :class:`~motorlib.errors.CatalogError` naming it, never moved), and an index of the previous
 version is brought up to this one in place (the tables it lacks are added). :meth:`CatalogIndex.refresh`
 compares every file's size and modification time with the ``files`` table and
 parses only what changed; a content hash confirms a change before any parsing.
@@ -34,11 +35,11 @@ import json
 import os
 import sqlite3
 from operator import itemgetter
-from stat import S_ISREG
+from stat import S_ISDIR, S_ISFIFO, S_ISREG
 from pathlib import Path
 from typing import Callable, ContextManager, Iterator, Sequence
 
-from ..errors import CurveError, CurveSyntaxError, MotorlibError
+from ..errors import CatalogError, CurveError, CurveSyntaxError, MotorlibError
 from ..files.fsio import read_bounded
 from ..motor.checks import CheckSettings, Finding
 from ..motor.listing import ROW_COLUMNS, CatalogRow
@@ -188,6 +189,7 @@ class CatalogIndex:
             create_schema(db)
             notices.append(f"{self.root}: read-only catalog, index kept in memory")
             return db
+        self._check_places()
         (self.root / INDEX_DIR).mkdir(exist_ok=True)
         with contextlib.suppress(sqlite3.DatabaseError):
             return self._open_checked(create=False)  # only a process holding the lock creates the file
@@ -214,6 +216,31 @@ class CatalogIndex:
                 create_schema(db)
                 db.execute("COMMIT")
                 return db
+
+    def _check_places(self) -> None:
+        """Refuse a ``.motorlib`` that is not a folder, or an ``index.sqlite`` that is not a file.
+
+        Something else in their place is the user's (a damaged index is a file, and is moved aside and rebuilt):
+        it is named and left as it is, never moved or deleted.
+
+        Raises
+        ------
+        CatalogError
+            Naming the path, what is there, what motorlib expects, and what to do.
+        """
+        places = ((self.root / INDEX_DIR, S_ISDIR, "a folder", "the catalog's index folder (its index, lock and "
+                   "staging files)"),
+                  (self.path, S_ISREG, "a file", "the catalog's index (a cache motorlib builds from the curve files)"))
+        for path, wanted, kind, role in places:
+            try:
+                mode = os.stat(path).st_mode  # through a link: a link to the right kind of thing is fine
+            except FileNotFoundError:
+                continue  # made when needed
+            if not wanted(mode):
+                found = ("a folder" if S_ISDIR(mode) else "a file" if S_ISREG(mode) else
+                         "a pipe" if S_ISFIFO(mode) else "a device or socket")
+                raise CatalogError(f"{path}: is {found}, where motorlib expects {kind}: {role}; remove or rename "
+                                   f"it (motorlib never deletes it), then run the command again")
 
     def _open_checked(self, *, create: bool) -> sqlite3.Connection:
         """The index, opened and checked: schema version, and every page readable (``PRAGMA quick_check``).

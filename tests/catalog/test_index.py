@@ -230,3 +230,42 @@ def _after_each_change(catalog: Catalog, stored: Callable[[Catalog], int], check
         assert stored(catalog) == 0
         check(catalog)
         assert stored(catalog) == 1
+
+
+@pytest.mark.parametrize("kind", ["folder", "pipe"])
+def test_a_folder_where_the_index_file_belongs_is_a_clear_error(kind: str, tmp_catalog: Catalog) -> None:
+    # new-user trial: a folder named index.sqlite in the catalog's .motorlib folder was taken for a damaged index,
+    # renamed to index.corrupt and replaced by a new index, without a word about the user's folder
+    import os
+
+    from motorlib.errors import CatalogError
+
+    root = tmp_catalog.root
+    tmp_catalog.close()
+    index = root / ".motorlib" / "index.sqlite"
+    index.unlink()
+    if kind == "folder":
+        index.mkdir()
+        (index / "notes.txt").write_text("mine")
+    else:
+        os.mkfifo(index)
+    with pytest.raises(CatalogError) as caught:
+        Catalog(root)
+    message = str(caught.value)
+    assert message.startswith(f"{index}: is a {kind}")
+    assert "a file" in message and "index" in message and "remove or rename" in message
+    if kind == "folder":
+        assert (index / "notes.txt").read_text() == "mine"  # never deleted, never moved
+    assert not (root / ".motorlib" / "index.corrupt").exists()
+    assert Catalog(root, read_only=True).resolve("G59-10")  # a read-only opening never uses the file
+
+
+def test_a_file_where_the_index_folder_belongs_is_a_clear_error(tmp_path: Path) -> None:
+    from motorlib.errors import CatalogError
+
+    root = tmp_path / "catalog"
+    root.mkdir()
+    (root / ".motorlib").write_text("mine")
+    with pytest.raises(CatalogError, match=r"\.motorlib: is a file.*folder.*remove or rename"):
+        Catalog(root)
+    assert (root / ".motorlib").read_text() == "mine"

@@ -154,3 +154,17 @@ def test_export_and_plot_never_land_in_the_catalog(tmp_path: Path) -> None:
     assert code == 2 and "is an input of this command" in out, out
     assert curve.read_bytes() == text
     assert sorted(p.name for p in cat.rglob("*") if p.is_file()) == before
+
+
+def test_a_folder_where_the_index_belongs_is_an_error_naming_it(tmp_path: Path) -> None:
+    # new-user trial: a folder named index.sqlite was moved aside and the index rebuilt, with no word about it
+    root = tmp_path / "cat"
+    code, out = run("catalog", "add", "--catalog", str(root), str(SAMPLE_DIR / "bramblewick-propulsion_f29-8.xml"))
+    assert code == 0, out
+    index = root / ".motorlib" / "index.sqlite"
+    index.unlink()
+    index.mkdir()
+    code, out = run("catalog", "list", "--catalog", str(root))
+    assert code == 2
+    assert f"Error: {index}: is a folder" in " ".join(out.split()) and "Traceback" not in out
+    assert index.is_dir()
