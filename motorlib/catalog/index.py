@@ -13,7 +13,8 @@ parses only what changed; a content hash confirms a change before any parsing.
 
 Tables::
 
-    meta    key -> value        schema version; the size:mtime stamp of tags.json last loaded
+    meta    key -> value        schema version; the size:mtime stamp of tags.json last loaded; the id changes
+                                of files edited in place whose tags are still to follow (``id_changes``, JSON)
     files   path, size, mtime_ns, ctime_ns, sha256, motor_id, error   one row per curve file seen
     motors  COLUMNS, time_blob, thrust_blob                 one row per motor (samples as float64 blobs)
     tags    motor_id, tag                                   a copy of tags.json, for queries
@@ -331,13 +332,17 @@ class CatalogIndex:
                 self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
                 self.db.execute("DELETE FROM files WHERE path = ?", (path,))
             for path in changed:
-                old = self.db.execute("SELECT sha256, error FROM files WHERE path = ?", (path,)).fetchone()
+                old = self.db.execute("SELECT sha256, error, motor_id FROM files WHERE path = ?", (path,)).fetchone()
                 self._index_file(path, on_disk[path], old, problems)
         return len(changed), len(removed), bool(known)
 
-    def _index_file(self, path: str, stat: tuple[int, int, int], old: tuple[str, str | None] | None,
+    def _index_file(self, path: str, stat: tuple[int, int, int], old: tuple[str, str | None, str | None] | None,
                     problems: list[tuple[str, str]]) -> None:
-        """(Re)index one file whose stamp changed; ``old`` is its former (sha256, error) row, if any."""
+        """(Re)index one file whose stamp changed; ``old`` is its former (sha256, error, motor_id) row, if any.
+
+        A file that held a motor and now holds another (edited in place: its id is the hash of its content) has
+        its change of id noted (:meth:`pending_id_changes`) in the same transaction, for its tags to follow; so
+        does one that became an exact copy of another motor (its tags join that motor's)."""
         import hashlib  # here and not at the top: opening a current index reads no file
 
         from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
@@ -364,6 +369,8 @@ class CatalogIndex:
             self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, NULL, ?)", (path, *stat, digest, str(exc)))
             problems.append((str(full), str(exc)))
             return
+        if old is not None and old[2] and old[2] != motor_id:
+            self._note_id_change(path, old[2], motor_id)
         twin = self.db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
         if twin is not None:
             message = f"an exact copy of {twin[0]}; skipped"
@@ -372,6 +379,28 @@ class CatalogIndex:
             return
         self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
         self._insert_row(row)
+
+    def _note_id_change(self, path: str, old_id: str, new_id: str) -> None:
+        """Add (path, old id, new id) to the changes whose tags are still to follow (inside the caller's
+        transaction, so that the change of id and the note of it are committed together)."""
+        self._set_id_changes([*self.pending_id_changes(), (path, old_id, new_id)])
+
+    def pending_id_changes(self) -> list[tuple[str, str, str]]:
+        """(path, old id, new id) of every file edited in place whose tags have not yet followed, oldest first."""
+        row = self.db.execute("SELECT value FROM meta WHERE key = 'id_changes'").fetchone()
+        return [] if row is None else [(str(p), str(a), str(b)) for p, a, b in json.loads(row[0])]
+
+    def forget_id_changes(self, done: Sequence[tuple[str, str, str]]) -> None:
+        """Drop the changes ``done`` (their tags have followed), keeping any noted since they were read."""
+        with self.transaction():
+            left = [change for change in self.pending_id_changes() if change not in set(done)]
+            self._set_id_changes(left)
+
+    def _set_id_changes(self, changes: Sequence[tuple[str, str, str]]) -> None:
+        if changes:
+            self.db.execute("INSERT OR REPLACE INTO meta VALUES ('id_changes', ?)", (json.dumps([*changes]),))
+        else:
+            self.db.execute("DELETE FROM meta WHERE key = 'id_changes'")
 
     def restamp(self, path: str, stat: tuple[int, int, int]) -> None:
         """Record a file's new stamp (its content is unchanged: touched, or linked to its name by the store)."""

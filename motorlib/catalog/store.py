@@ -31,7 +31,11 @@ linked but not yet indexed, which the next open indexes like any file added
 behind the catalog's back.
 
 A motor's id is the first 16 hex digits of the SHA-256 of its file (files are
-always written in canonical form, so equal records have equal ids). Its handle
+always written in canonical form, so equal records have equal ids). A file edited
+in place therefore gets a new id: the refresh that finds it notes the change in the
+index (in the transaction that indexes the new content), and its tags then follow
+to the new id in tags.json, under the writer lock, with a notice naming both ids
+(see :meth:`Catalog.refresh`). Its handle
 is its path without ``.xml`` (``bramblewick-propulsion/g59-10``), with a ``-2``,
 ``-3`` suffix where one maker and designation have several curves.
 
@@ -161,6 +165,7 @@ class Catalog:
         self.problems: list[tuple[str, str]] = []
         self.on_lock_wait = on_lock_wait  # called when a write must wait for another writer (opening may write)
         self._safe_folders: set[str] = set()  # maker folders checked (and created) in the current batch
+        self._lock_depth = 0  # how many times this object holds the writer lock (it is taken once per process)
         if not self.root.exists():
             if read_only or not create:
                 raise CatalogError(f"{self.root}: no such catalog folder")
@@ -188,6 +193,13 @@ class Catalog:
             raise CatalogError(f"{self.root}: the catalog is read-only" + (
                 f" (its {READ_ONLY_MARKER} file makes it so, as in the bundled samples; delete {marker} to change "
                 "this copy)" if marker.is_file() else " (opened read-only)"))
+        if self._lock_depth:  # held already (a refresh inside a write): flock would wait for ourselves
+            self._lock_depth += 1
+            try:
+                yield
+            finally:
+                self._lock_depth -= 1
+            return
         path = self.root / INDEX_DIR / "lock"
         path.parent.mkdir(exist_ok=True)
         with open(path, "a+b") as handle:
@@ -202,9 +214,11 @@ class Catalog:
                 if self.on_lock_wait is not None:
                     self.on_lock_wait()
                 fcntl.flock(handle.fileno(), fcntl.LOCK_EX)
+            self._lock_depth += 1
             try:
                 yield
             finally:
+                self._lock_depth -= 1
                 fcntl.flock(handle.fileno(), fcntl.LOCK_UN)
 
     def _remove_leftovers(self) -> None:
@@ -253,7 +267,47 @@ class Catalog:
         n_read, n_removed, had_files = self._index.refresh(self.problems)
         if report and had_files and (n_read or n_removed):
             self.notices.append(f"{self.root}: index refreshed ({n_read} file(s) read, {n_removed} removed)")
+        if not self.read_only and self._index.pending_id_changes():
+            self._carry_tags()
         return n_read
+
+    def _carry_tags(self) -> None:
+        """Move the tags of files edited in place to their new ids, in tags.json, under the writer lock.
+
+        The changes were noted by the refresh that indexed the new content, in the same transaction, so a process
+        killed before this runs leaves them for the next one. Each change adds the new id to every tag that names
+        the old one (to the tags it already has: a file replaced by a copy of another tagged motor merges the two)
+        and drops the old id, unless another file still holds that motor. tags.json is written once, atomically,
+        and only then are the changes forgotten; applying one twice changes nothing. A tags.json that cannot be
+        read is never written over: the changes wait until it is mended, and each open says so.
+        """
+        with self._lock():
+            changes = self._index.pending_id_changes()  # again under the lock: another writer may have done them
+            if not changes:
+                return
+            try:
+                tags = self._tags.read()
+            except CatalogError:
+                for path, old_id, new_id in changes:
+                    self.notices.append(f"{self.root / path}: changed since it was indexed, so its motor id changed "
+                                        f"from {old_id} to {new_id}; its tags will follow once {self._tags.path} "
+                                        "is mended")
+                return
+            moved_any = False
+            for path, old_id, new_id in changes:
+                names = sorted(name for name, ids in tags.items() if old_id in ids)
+                moved_any = moved_any or bool(names)
+                still_there = self._db.execute("SELECT 1 FROM motors WHERE motor_id = ?", (old_id,)).fetchone()
+                for name in names:
+                    tags[name].add(new_id)
+                    if not still_there:
+                        tags[name].discard(old_id)
+                moved = f"its tags moved to the new id: {', '.join(names)}" if names else "it had no tags"
+                self.notices.append(f"{self.root / path}: changed since it was indexed, so its motor id changed "
+                                    f"from {old_id} to {new_id}; {moved}")
+            if moved_any:
+                self._tags.write(tags)  # atomically (write_atomic), and copied into the index
+            self._index.forget_id_changes(changes)
 
     def stale_files(self) -> list[str]:
         """Re-read every file whose content no longer matches the index; returns their full paths.

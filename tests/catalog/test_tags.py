@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import pytest
 
 from motorlib.catalog import Catalog, CatalogFilter
@@ -44,3 +46,99 @@ def test_a_damaged_tags_file_is_reported_not_fatal_and_never_written_over(tmp_ca
         reopened.tag(["G59-10"], "spare")  # a change would write over what is left of the file
     assert (tmp_catalog.root / "tags.json").read_bytes() == damaged
     assert Catalog(tmp_catalog.root).problems  # still reported on the next open, until mended
+
+
+def _edit_by_hand(catalog: Catalog, designation: str, **changes: object) -> tuple[str, Path]:
+    """Rewrite a motor's file in place with ``changes`` (as a user editing it would); its old id and its path."""
+    import dataclasses
+
+    from motorlib import read_record, write_record
+
+    row = next(r for r in catalog.rows() if r.designation == designation)
+    path = catalog.root / row.path
+    record = read_record(path)
+    write_record(dataclasses.replace(record, **changes), path)
+    return row.motor_id, path
+
+
+def test_a_curve_file_edited_in_place_keeps_its_tags(tmp_catalog: Catalog) -> None:
+    # new-user trial: a motor's id is the hash of its file, so editing the file by hand gave it a new id and its
+    # tags (kept by id in tags.json) silently no longer named it
+    tmp_catalog.tag(["G59-10", "F29-8"], "in-stock")
+    tmp_catalog.tag(["G59-10"], "club-box")
+    old_id, path = _edit_by_hand(tmp_catalog, "G59-10", maker="Edited By Hand (fictional)")
+    tmp_catalog.close()
+    reopened = Catalog(tmp_catalog.root)
+    new_id = reopened.resolve("G59-10")
+    assert new_id != old_id
+    assert sorted(r.designation for r in reopened.rows(CatalogFilter(tag="in-stock"))) == ["F29-8", "G59-10"]
+    assert [r.designation for r in reopened.rows(CatalogFilter(tag="club-box"))] == ["G59-10"]
+    assert all(old_id not in ids for ids in reopened.tags().values())  # the old id is gone from tags.json
+    assert reopened.orphan_tags() == {}
+    notes = [n for n in reopened.notices if old_id in n]
+    assert len(notes) == 1 and new_id in notes[0] and str(path) in notes[0] and "club-box" in notes[0]
+    again = Catalog(tmp_catalog.root)  # applied once: nothing more to say
+    assert not [n for n in again.notices if old_id in n]
+    assert again.tags() == reopened.tags()
+
+
+def test_a_file_edited_while_the_catalog_is_open_keeps_its_tags(tmp_catalog: Catalog) -> None:
+    tmp_catalog.tag(["F29-8"], "in-stock")
+    _edit_by_hand(tmp_catalog, "F29-8", maker="Edited Meanwhile (fictional)")
+    tmp_catalog.tag(["G59-10"], "in-stock")  # the write refreshes the index first, under the writer lock
+    assert sorted(r.designation for r in tmp_catalog.rows(CatalogFilter(tag="in-stock"))) == ["F29-8", "G59-10"]
+
+
+def test_a_file_replaced_by_a_copy_of_a_tagged_motor_merges_the_tags(tmp_catalog: Catalog) -> None:
+    tmp_catalog.tag(["G59-10"], "in-stock")
+    tmp_catalog.tag(["F29-8"], "club-box")
+    rows = {r.designation: r for r in tmp_catalog.rows()}
+    kept, replaced = rows["F29-8"], rows["G59-10"]
+    (tmp_catalog.root / replaced.path).write_bytes((tmp_catalog.root / kept.path).read_bytes())
+    tmp_catalog.close()
+    reopened = Catalog(tmp_catalog.root)
+    assert reopened.tags() == {"club-box": [kept.motor_id], "in-stock": [kept.motor_id]}  # neither lost
+    assert any(replaced.motor_id in n and kept.motor_id in n for n in reopened.notices)
+
+
+def test_a_moved_file_keeps_its_tags(tmp_catalog: Catalog) -> None:
+    ids = tmp_catalog.tag(["G59-10"], "in-stock")
+    row = next(r for r in tmp_catalog.rows() if r.motor_id == ids[0])
+    (tmp_catalog.root / row.path).rename(tmp_catalog.root / "moved-g59.xml")
+    tmp_catalog.close()
+    reopened = Catalog(tmp_catalog.root)
+    assert reopened.tags() == {"in-stock": ids}
+    assert [r.path for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["moved-g59.xml"]
+
+
+def test_an_edit_under_a_damaged_tags_file_waits_for_it_to_be_mended(tmp_catalog: Catalog) -> None:
+    tmp_catalog.tag(["G59-10"], "in-stock")
+    good = (tmp_catalog.root / "tags.json").read_bytes()
+    damaged = b'{"in-stock": ["abc"'
+    (tmp_catalog.root / "tags.json").write_bytes(damaged)
+    old_id, _ = _edit_by_hand(tmp_catalog, "G59-10", maker="Edited By Hand (fictional)")
+    tmp_catalog.close()
+    reopened = Catalog(tmp_catalog.root)
+    assert (tmp_catalog.root / "tags.json").read_bytes() == damaged  # never written over
+    assert str(tmp_catalog.root / "tags.json") in [where for where, _ in reopened.problems]
+    assert any(old_id in n and "mended" in n for n in reopened.notices)
+    reopened.close()
+    (tmp_catalog.root / "tags.json").write_bytes(good)  # mended: the id change is carried over now
+    mended = Catalog(tmp_catalog.root)
+    assert [r.designation for r in mended.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
+    assert mended.orphan_tags() == {}
+
+
+def test_an_id_change_left_by_a_killed_process_is_carried_over_next_time(tmp_catalog: Catalog,
+                                                                          monkeypatch: pytest.MonkeyPatch) -> None:
+    # the index notes the change of id in the transaction that indexes the new content; a process killed before
+    # it moved the tags leaves the note, and the next open moves them
+    tmp_catalog.tag(["G59-10"], "in-stock")
+    _edit_by_hand(tmp_catalog, "G59-10", maker="Edited By Hand (fictional)")
+    tmp_catalog.close()
+    with monkeypatch.context() as patch:
+        patch.setattr(Catalog, "_carry_tags", lambda self: None)  # killed after the index committed
+        Catalog(tmp_catalog.root).close()
+    reopened = Catalog(tmp_catalog.root)
+    assert [r.designation for r in reopened.rows(CatalogFilter(tag="in-stock"))] == ["G59-10"]
+    assert reopened.orphan_tags() == {}
