@@ -221,6 +221,8 @@ class CatalogIndex:
     def _check_places(self) -> None:
         """Refuse a ``.motorlib`` that is not a folder, or an ``index.sqlite`` that is not a file.
 
+        A link to nothing in either place, or one this user may not read and write, is refused the same way.
+
         Something else in their place is the user's (a damaged index is a file, and is moved aside and rebuilt):
         it is named and left as it is, never moved or deleted.
 
@@ -236,12 +238,20 @@ class CatalogIndex:
             try:
                 mode = os.stat(path).st_mode  # through a link: a link to the right kind of thing is fine
             except FileNotFoundError:
+                if os.path.islink(path):  # a link to nothing: SQLite (or mkdir) would fail with no word of it
+                    raise CatalogError(f"{path}: is a link to {os.readlink(path)}, which does not exist, where "
+                                       f"motorlib expects {kind}: {role}; remove the link or make its target, "
+                                       f"then run the command again") from None
                 continue  # made when needed
             if not wanted(mode):
                 found = ("a folder" if S_ISDIR(mode) else "a file" if S_ISREG(mode) else
                          "a pipe" if S_ISFIFO(mode) else "a device or socket")
                 raise CatalogError(f"{path}: is {found}, where motorlib expects {kind}: {role}; remove or rename "
                                    f"it (motorlib never deletes it), then run the command again")
+            if not os.access(path, os.R_OK | os.W_OK | (os.X_OK if kind == "a folder" else 0)):
+                # SQLite would say only "unable to open database file" or "attempt to write a readonly database"
+                raise CatalogError(f"{path}: motorlib may not read and write it ({kind}: {role}); give this user "
+                                   f"permission to read and write it, then run the command again")
 
     def _open_checked(self, *, create: bool) -> sqlite3.Connection:
         """The index, opened and checked: schema version, and every page readable (``PRAGMA quick_check``).

@@ -269,3 +269,45 @@ def test_a_file_where_the_index_folder_belongs_is_a_clear_error(tmp_path: Path) 
     with pytest.raises(CatalogError, match=r"\.motorlib: is a file.*folder.*remove or rename"):
         Catalog(root)
     assert (root / ".motorlib").read_text() == "mine"
+
+
+@pytest.mark.parametrize("place", ["index", "folder"])
+def test_a_dangling_link_where_the_index_belongs_is_a_clear_error(place: str, tmp_path: Path) -> None:
+    # new-user trial: a link to a missing file at .motorlib/index.sqlite ended in
+    # "internal error (OperationalError: unable to open database file)", exit 3
+    from motorlib.errors import CatalogError
+
+    root = tmp_path / "catalog"
+    root.mkdir()
+    missing = tmp_path / "nonexistent" / "x"
+    if place == "index":
+        (root / ".motorlib").mkdir()
+        link = root / ".motorlib" / "index.sqlite"
+    else:
+        link = root / ".motorlib"
+    link.symlink_to(missing)
+    with pytest.raises(CatalogError) as caught:
+        Catalog(root)
+    message = str(caught.value)
+    assert message.startswith(f"{link}: is a link to {missing}, which does not exist")
+    assert "remove" in message
+    assert link.is_symlink() and not missing.exists()  # left as it was: nothing made at the target either
+
+
+def test_an_index_motorlib_cannot_read_or_write_is_a_clear_error(tmp_catalog: Catalog,
+                                                                 monkeypatch: pytest.MonkeyPatch) -> None:
+    # an index file without read or write permission for this user (simulated: the tests may run as root, whom
+    # permissions do not stop) is named with what it lacks, not an internal error
+    import os
+
+    from motorlib.errors import CatalogError
+
+    root = tmp_catalog.root
+    tmp_catalog.close()
+    index = root / ".motorlib" / "index.sqlite"
+    real_access = os.access
+    monkeypatch.setattr(os, "access", lambda path, mode, **kw: False if Path(path) == index
+                        else real_access(path, mode, **kw))
+    with pytest.raises(CatalogError, match=r"index\.sqlite: motorlib may not read and write it"):
+        Catalog(root)
+    assert index.is_file() and not (root / ".motorlib" / "index.corrupt").exists()

@@ -168,3 +168,15 @@ def test_a_folder_where_the_index_belongs_is_an_error_naming_it(tmp_path: Path) 
     assert code == 2
     assert f"Error: {index}: is a folder" in " ".join(out.split()) and "Traceback" not in out
     assert index.is_dir()
+
+
+def test_a_dangling_link_where_the_index_belongs_is_an_error_naming_it(tmp_path: Path) -> None:
+    # new-user trial: `ln -s /nonexistent/x CAT/.motorlib/index.sqlite` gave an internal error (exit 3)
+    root = tmp_path / "cat"
+    (root / ".motorlib").mkdir(parents=True)
+    index = root / ".motorlib" / "index.sqlite"
+    index.symlink_to(tmp_path / "nonexistent" / "x")
+    code, out = run("catalog", "list", "--catalog", str(root))
+    assert code == 2, out
+    assert f"Error: {index}: is a link to" in " ".join(out.split()) and "internal error" not in out
+    assert index.is_symlink()
