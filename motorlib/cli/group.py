@@ -132,11 +132,16 @@ _PRINTING_FLAGS = ("--csv", "--json")
 
 
 class _Command(click.Command):
-    """A command whose printing flags (``--csv``, ``--json``) also accept ``-`` (standard output) after them."""
+    """A command whose printing flags (``--csv``, ``--json``) also accept ``-`` (standard output) after them.
+
+    Two printing flags given together are refused naming both: they would share standard output, and one of them
+    used to win without a word (``match --csv --json`` printed the JSON alone).
+    """
 
     def parse_args(self, ctx: click.Context, args: list[str]) -> list[str]:
-        flags = {name for param in self.params if isinstance(param, click.Option) and param.is_flag
-                 for name in param.opts if name in _PRINTING_FLAGS}
+        printing = {name: param.name for param in self.params if isinstance(param, click.Option) and param.is_flag
+                    for name in param.opts if name in _PRINTING_FLAGS}
+        flags = set(printing)
         kept: list[str] = []
         previous = None
         for i, arg in enumerate(args):
@@ -147,7 +152,12 @@ class _Command(click.Command):
                 continue  # `--csv -`: the flag alone says it
             previous = arg
             kept.append(arg[:-2] if arg in {f"{flag}=-" for flag in flags} else arg)
-        return super().parse_args(ctx, kept)
+        rest = super().parse_args(ctx, kept)
+        given = [flag for flag, name in printing.items() if ctx.params.get(name)]
+        if len(given) > 1:
+            raise click.UsageError(f"{' and '.join(given)}: each prints to standard output, and only one can; "
+                                   f"leave out one of them (run the command once for each)", ctx)
+        return rest
 
 
 class _Group(click.Group):

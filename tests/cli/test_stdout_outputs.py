@@ -149,3 +149,20 @@ def test_the_outputs_stay_atomic_files_otherwise(in_tmp: Path) -> None:
     assert code == 0, err
     assert (in_tmp / "f29.csv").read_text().startswith("time_s,")
     assert not [p for p in os.listdir(in_tmp) if p.endswith(".tmp")]
+
+
+@pytest.mark.parametrize("command", [
+    ["match", AIRFRAME, "--target", "400", "--csv", "--json"],
+    ["match", AIRFRAME, "--target", "400", "--csv", "-", "--json", "-"],
+    ["catalog", "list", "--catalog", str(SAMPLE_DIR), "--csv", "--json"],
+    ["catalog", "list", "--catalog", str(SAMPLE_DIR), "--json", "-", "--csv"],
+])
+def test_csv_and_json_together_are_refused_naming_both(command: list[str], in_tmp: Path) -> None:
+    # new-user trial: `match AIRFRAME --csv - --json -` and `catalog list --csv --json` printed the JSON alone, as
+    # if --csv had not been given; fly refuses the same conflict
+    code, out, err = _run(*command)
+    assert code == 2, out + err
+    assert out == ""
+    flat = " ".join(err.split())
+    assert "--csv" in flat and "--json" in flat and "standard output" in flat, flat
+    assert not (in_tmp / "-").exists()
