@@ -152,10 +152,12 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
                    "dia, length, mass, check (or a JSON key such as total_impulse_ns).")
 @click.option("--desc", is_flag=True, help="Sort in descending order.")
 @_units_option
-@click.option("--json", "as_json", is_flag=True, help="Print JSON (SI units) on standard output ('--json -' says the same).")
+@click.option("--json", "as_json", is_flag=True,
+              help="Print JSON (SI units) on standard output ('--json -' says the same; it takes no file name: save "
+                   "it with '--json > FILE').")
 @click.option("--csv", "as_csv", is_flag=True,
               help="Print CSV on standard output, in the display units (named in each column header); '--csv -' says "
-                   "the same.")
+                   "the same; it takes no file name: save it with '--csv > FILE'.")
 def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | None, as_json: bool, as_csv: bool,
                  **opts: Any) -> None:
     """List the motors in the catalog, filtered and sorted.

@@ -135,7 +135,10 @@ class _Command(click.Command):
     """A command whose printing flags (``--csv``, ``--json``) also accept ``-`` (standard output) after them.
 
     Two printing flags given together are refused naming both: they would share standard output, and one of them
-    used to win without a word (``match --csv --json`` printed the JSON alone).
+    used to win without a word (``match --csv --json`` printed the JSON alone). A file name after a printing flag
+    (``match AIRFRAME --csv rank.csv``, ``--csv=rank.csv``) is refused saying that the flag prints to standard
+    output and how to redirect it, not as an "unexpected extra argument". The flag takes no optional file name:
+    ``match --json AIRFRAME`` would then read the airframe file as the output's name.
     """
 
     def parse_args(self, ctx: click.Context, args: list[str]) -> list[str]:
@@ -151,13 +154,33 @@ class _Command(click.Command):
             if arg == "-" and previous in flags:
                 continue  # `--csv -`: the flag alone says it
             previous = arg
+            flag, equals, value = arg.partition("=")
+            if equals and flag in flags and value != "-":
+                _refuse_file_name(ctx, flag, value)
             kept.append(arg[:-2] if arg in {f"{flag}=-" for flag in flags} else arg)
-        rest = super().parse_args(ctx, kept)
+        followers = {word: flag for flag, word in zip(kept, kept[1:]) if flag in flags}
+        allowed, ctx.allow_extra_args = ctx.allow_extra_args, True  # the extra arguments are judged below
+        try:
+            rest = super().parse_args(ctx, kept)
+        finally:
+            ctx.allow_extra_args = allowed
+        if rest and not allowed and not ctx.resilient_parsing:
+            named = next((word for word in rest if word in followers), None)
+            if named is not None:
+                _refuse_file_name(ctx, followers[named], named)
+            s = "s" if len(rest) > 1 else ""  # click's own wording for anything else
+            ctx.fail(f"Got unexpected extra argument{s} ({' '.join(rest)})")
         given = [flag for flag, name in printing.items() if ctx.params.get(name)]
         if len(given) > 1:
             raise click.UsageError(f"{' and '.join(given)}: each prints to standard output, and only one can; "
                                    f"leave out one of them (run the command once for each)", ctx)
         return rest
+
+
+def _refuse_file_name(ctx: click.Context, flag: str, name: str) -> NoReturn:
+    """``FLAG NAME``: a flag that prints was given a file name; say where its output goes and how to save it."""
+    raise click.UsageError(f"{flag} {name}: {flag} prints to standard output and takes no file name; to save it in "
+                           f"a file, redirect standard output: {ctx.command_path} ... {flag} > {name}", ctx)
 
 
 class _Group(click.Group):

@@ -104,10 +104,11 @@ def _match_options(func: Any) -> Any:
         _units_option,
         click.option("--json", "as_json", is_flag=True,
                      help="Print {airframe, conditions, candidates} as JSON (SI) on standard output ('--json -' "
-                          "says the same)."),
+                          "says the same; it takes no file name: save it with '--json > FILE')."),
         click.option("--csv", "as_csv", is_flag=True,
                      help="Print the candidates as CSV on standard output, in the display units (named in each "
-                          "column header); '--csv -' says the same."),
+                          "column header); '--csv -' says the same; it takes no file name: save it with "
+                          "'--csv > FILE'."),
         click.option("--plot", "plot_path", type=click.Path(dir_okay=False),
                      help="Write apogee per motor against the target and ceiling to this PNG file."),
         click.option("--report", "report_path", type=click.Path(dir_okay=False),

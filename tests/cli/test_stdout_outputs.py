@@ -166,3 +166,33 @@ def test_csv_and_json_together_are_refused_naming_both(command: list[str], in_tm
     flat = " ".join(err.split())
     assert "--csv" in flat and "--json" in flat and "standard output" in flat, flat
     assert not (in_tmp / "-").exists()
+
+
+@pytest.mark.parametrize(("command", "flag", "name"), [
+    (["match", AIRFRAME, "--target", "400", "--csv", "rank.csv"], "--csv", "rank.csv"),
+    (["match", AIRFRAME, "--json", "rank.json", "--target", "400"], "--json", "rank.json"),
+    (["catalog", "list", "--catalog", str(SAMPLE_DIR), "--csv", "motors.csv"], "--csv", "motors.csv"),
+    (["catalog", "list", "--catalog", str(SAMPLE_DIR), "--json=motors.json"], "--json", "motors.json"),
+])
+def test_a_file_name_after_a_printing_flag_says_to_redirect(command: list[str], flag: str, name: str,
+                                                            in_tmp: Path) -> None:
+    # new-user trial: `match AIRFRAME --csv rank.csv` said "Got unexpected extra argument (rank.csv)"
+    code, out, err = _run(*command)
+    assert code == 2, out + err
+    flat = " ".join(err.split())
+    assert f"{flag} {name}:" in flat and "standard output" in flat and f"{flag} > {name}" in flat, flat
+    assert "unexpected extra argument" not in flat
+    assert not (in_tmp / name).exists()
+
+
+def test_a_printing_flag_before_the_airframe_still_prints(in_tmp: Path) -> None:
+    code, out, err = _run("match", "--json", AIRFRAME, "--target", "400")
+    assert code == 0, err
+    assert json.loads(out)["candidates"]
+
+
+@pytest.mark.parametrize("command", [["match"], ["catalog", "list"]])
+def test_the_help_says_how_to_save_what_a_flag_prints(command: list[str]) -> None:
+    code, out, _ = _run(*command, "--help")
+    flat = " ".join(out.split())
+    assert code == 0 and "--csv > FILE" in flat and "--json > FILE" in flat, flat
