@@ -294,7 +294,9 @@ def catalog_remove(catalog_dir: str | None, refs: tuple[str, ...]) -> None:
 @_catalog_option
 @click.argument("refs", nargs=-1)
 @_filter_options
-@click.option("--to", "folder", required=True, type=click.Path(file_okay=False), help="Folder to write into.")
+@click.option("--to", "folder", required=True, type=click.Path(file_okay=False),
+              help="Folder to write into; with --format json (one file), '-' prints it on standard output (the "
+                   "command's own report then goes to standard error).")
 @click.option("--format", "fmt", type=click.Choice(["xml", "csv", "json"]), default="xml", show_default=True,
               help="xml: our format; csv: time_s,thrust_n per motor; json: one file with every motor.")
 @click.option("--overwrite", is_flag=True, help="Replace files of the same names in the folder.")
@@ -307,11 +309,19 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
       motorlib catalog export --class G --to ./g-motors --format csv
     """
     from ..catalog import CatalogFilter
-    from ..files.export import export_records
+    from ..files.export import export_json_bytes, export_records
+    from .output import STDOUT_PATH, _write_output
 
+    to_stdout = folder == STDOUT_PATH
+    if to_stdout and fmt != "json":
+        from .group import _InputError
+
+        raise _InputError(f"--to -: --format {fmt} writes one file per motor, into a folder, and standard output is "
+                          f"no folder; give a folder name (a folder named '-' is ./-), or use --format json, one "
+                          f"document that '-' prints on standard output")
     cat = _open_catalog(catalog_dir)
     target, root = Path(folder).resolve(), Path(cat.root).resolve()
-    if target == root or root in target.parents:
+    if not to_stdout and (target == root or root in target.parents):
         from .group import _InputError
 
         raise _InputError(f"--to {folder}: is inside the catalog {cat.root}, whose curves would be added to it a "
@@ -319,6 +329,11 @@ def catalog_export(catalog_dir: str | None, refs: tuple[str, ...], folder: str, 
     ids = [resolve_motor(cat, r) for r in refs] if refs else [r.motor_id for r in cat.rows(_filter(opts))]
     rows = cat.rows(CatalogFilter(ids=tuple(ids))) if ids else []
     items = [(r.handle, cat.get(r.motor_id)) for r in rows]
+    if to_stdout:
+        with _progress("exporting curves", len(rows)) as advance:
+            _write_output(STDOUT_PATH, export_json_bytes(items, progress=advance), overwrite)
+        _err_console().print(f"Exported {len(rows)} motor(s) to standard output")
+        return
     try:
         with _progress("exporting curves", len(rows)) as advance:
             written = export_records(items, folder, fmt, overwrite=overwrite, progress=advance)

@@ -13,7 +13,7 @@ from ..motor.record import MotorRecord
 from .fsio import slug, write_atomic
 from .motor_xml import readable_record_bytes
 
-__all__ = ["export_records", "record_as_dict"]
+__all__ = ["export_json_bytes", "export_records", "record_as_dict"]
 
 
 def record_as_dict(record: MotorRecord) -> dict[str, object]:
@@ -26,6 +26,20 @@ def record_as_dict(record: MotorRecord) -> dict[str, object]:
     data["firing_spread"] = dataclasses.asdict(spread) if spread is not None else None
     data["samples"] = {"time_s": record.time_s.tolist(), "thrust_n": record.thrust_n.tolist()}
     return data
+
+
+def export_json_bytes(items: Sequence[tuple[str, MotorRecord]], *,
+                      progress: Callable[[int], None] | None = None) -> bytes:
+    """The ``json`` export of (handle, record) pairs: one JSON list, each motor ``{handle, ...record_as_dict}``.
+
+    ``progress(1)`` is called after each motor.
+    """
+    payload = []
+    for handle, record in items:
+        payload.append({"handle": handle, **record_as_dict(record)})
+        if progress is not None:
+            progress(1)
+    return (json.dumps(payload, indent=2) + "\n").encode()
 
 
 def export_records(items: Sequence[tuple[str, MotorRecord]], folder: str | os.PathLike[str], fmt: str, *,
@@ -63,13 +77,7 @@ def export_records(items: Sequence[tuple[str, MotorRecord]], folder: str | os.Pa
         raise FileExistsError(f"{existing[0]}{more}: already exists")
     out.mkdir(parents=True, exist_ok=True)
     if fmt == "json":
-        payload = []
-        for handle, record in items:
-            payload.append({"handle": handle, **record_as_dict(record)})
-            if progress is not None:
-                progress(1)
-        return [write_atomic(out / "motors.json", (json.dumps(payload, indent=2) + "\n").encode(),
-                             overwrite=overwrite)]
+        return [write_atomic(out / "motors.json", export_json_bytes(items, progress=progress), overwrite=overwrite)]
     written = []
     for path, record in targets:
         written.append(write_atomic(path, _export_bytes(record, fmt), overwrite=overwrite))

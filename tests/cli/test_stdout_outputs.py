@@ -196,3 +196,23 @@ def test_the_help_says_how_to_save_what_a_flag_prints(command: list[str]) -> Non
     code, out, _ = _run(*command, "--help")
     flat = " ".join(out.split())
     assert code == 0 and "--csv > FILE" in flat and "--json > FILE" in flat, flat
+
+
+def test_export_json_to_dash_prints_one_document(in_tmp: Path) -> None:
+    # new-user trial: `catalog export --to - --format json` made a folder named '-'
+    code, out, err = _run("catalog", "export", "--catalog", SAMPLE_DIR, "G59-10", "F29-8", "--to", "-",
+                          "--format", "json")
+    assert code == 0, err
+    motors = json.loads(out)  # the JSON document alone on standard output
+    assert sorted(m["designation"] for m in motors) == ["F29-8", "G59-10"] and motors[0]["samples"]["time_s"]
+    assert "Exported 2 motor(s)" in err and "standard output" in err
+    assert not (in_tmp / "-").exists()
+
+
+@pytest.mark.parametrize("fmt", ["xml", "csv"])
+def test_export_of_one_file_a_motor_refuses_dash(fmt: str, in_tmp: Path) -> None:
+    code, out, err = _run("catalog", "export", "--catalog", SAMPLE_DIR, "G59-10", "--to", "-", "--format", fmt)
+    assert code == 2, out + err
+    flat = " ".join(err.split())
+    assert "--to -:" in flat and "folder" in flat and "--format json" in flat, flat
+    assert out == "" and not (in_tmp / "-").exists()
