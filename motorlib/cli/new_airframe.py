@@ -40,5 +40,5 @@ def new_airframe(path: str, overwrite: bool, units: str | None) -> None:
         return
     from rich.markup import escape
 
-    _console().print(f"Wrote {escape(str(written))}: edit the values, then try "
-                     f"'motorlib fly {escape(str(written))} --motor F29-8'.")
+    # named as the user wrote it: the file './-' is not standard output in the command suggested
+    _console().print(f"Wrote {escape(path)}: edit the values, then try 'motorlib fly {escape(path)} --motor F29-8'.")

@@ -100,7 +100,7 @@ def write_atomic(path: str | os.PathLike[str], data: bytes, *, overwrite: bool =
             raise _naming(exc, target) from exc
         return target
     if not overwrite and target.exists():
-        raise FileExistsError(f"{target}: already exists")
+        raise FileExistsError(f"{os.fspath(path)}: already exists")  # as the caller wrote it: './-', not '-'
     folder = target.parent if str(target.parent) else Path(".")
     import tempfile  # here, not at the top: it pulls in shutil and random, and a catalog opened to read never writes
 

@@ -216,3 +216,20 @@ def test_export_of_one_file_a_motor_refuses_dash(fmt: str, in_tmp: Path) -> None
     flat = " ".join(err.split())
     assert "--to -:" in flat and "folder" in flat and "--format json" in flat, flat
     assert out == "" and not (in_tmp / "-").exists()
+
+
+@pytest.mark.parametrize("name", ["./-", "./rocket.toml"])
+def test_an_existing_output_is_named_as_the_user_wrote_it(name: str, in_tmp: Path) -> None:
+    # new-user trial: `new-airframe ./-` over an existing file said "Error: -: already exists"
+    (in_tmp / name).write_text("precious")
+    code, out, err = _run("new-airframe", name)
+    assert code == 2, out + err
+    assert f"Error: {name}: already exists" in err and "--overwrite" in err, err
+    assert (in_tmp / name).read_text() == "precious"
+
+
+def test_new_airframe_names_dot_slash_dash_in_its_suggestion(in_tmp: Path) -> None:
+    code, out, err = _run("new-airframe", "./-")
+    assert code == 0, err
+    assert "Wrote ./-:" in out and "motorlib fly ./- --motor" in out, out
+    assert tomllib.loads((in_tmp / "-").read_text())
