@@ -10,7 +10,8 @@ The one place an error reaches the terminal:
 Exit statuses, the same for every command: 0 done; 1 a check found errors or a flight failed a rule (the
 command says so and has printed its results); 2 unusable input: a bad option (as click does), a file that
 cannot be read or is not what it should be, an output that cannot be written; 3 an internal error (a bug);
-141 the reader of standard output stopped early (``motorlib catalog list | head -1``).
+141 the reader of standard output stopped before motorlib had written all of it (``motorlib catalog list | head -1``
+on a catalog whose listing is larger than the pipe buffer).
 
 A closed pipe: when the program reading motorlib's output stops (``head``, a pager quit early), the next write
 to standard output fails with EPIPE. motorlib then ends at once, quietly (no message: the reader asked for no
@@ -19,8 +20,11 @@ more), with status 141 = 128 + SIGPIPE (13), the status a shell reports for any 
 the command did not finish (``motorlib check DIR | head`` must not claim that every curve was checked), and not
 1, which says that a check found errors. It is the same whether the pipe breaks during the command, before it
 writes anything, or when the interpreter flushes standard output at exit (:func:`run_guarded`); whatever status
-the command was about to give, its output was cut short, and 141 says so. Output that fitted in the pipe before
-the reader stopped has been delivered, as far as motorlib can know: that run ends with its usual status.
+the command was about to give, its output was cut short, and 141 says so. Output that fits in the pipe buffer
+(64 KiB on Linux: a short listing, ``--help``) is all written before the reader stops, so no write fails and
+motorlib cannot know that the reader read only part of it: that run ends with its usual status (0 for
+``motorlib --help | head -1``), as for any other program. That is inherent to pipes, and motorlib does not fake a
+141 it cannot observe.
 """
 
 from __future__ import annotations

@@ -94,8 +94,9 @@ def run() -> None:
     below the size at which OpenBLAS splits work between threads. So the process asks for one BLAS thread
     before numpy is imported; a value set in the environment is kept.
 
-    A reader of standard output that stops early (``| head -1``) ends the command quietly with status 141, also
-    when the pipe breaks as the interpreter flushes standard output at exit (:func:`.group.run_guarded`).
+    A reader of standard output that stops early (``| head -1``) while the command still has output to write ends
+    it quietly with status 141, also when the pipe breaks as the interpreter flushes standard output at exit
+    (:func:`.group.run_guarded`); output that fitted in the pipe buffer was delivered, and keeps its usual status.
     """
     os.environ.setdefault(_BLAS_THREADS, "1")
     gc.set_threshold(200_000, 20, 20)
