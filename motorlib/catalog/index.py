@@ -14,7 +14,9 @@ parses only what changed; a content hash confirms a change before any parsing.
 Tables::
 
     meta    key -> value        schema version; the size:mtime stamp of tags.json last loaded; the id changes
-                                of files edited in place whose tags are still to follow (``id_changes``, JSON)
+                                of files edited in place whose tags are still to follow (``id_changes``, JSON);
+                                the motors that tagged ids named when they left the index (``former_motors``,
+                                JSON id -> "designation by maker"), so that an orphaned tag can say what it was
     files   path, size, mtime_ns, ctime_ns, sha256, motor_id, error   one row per curve file seen
     motors  COLUMNS, time_blob, thrust_blob                 one row per motor (samples as float64 blobs)
     tags    motor_id, tag                                   a copy of tags.json, for queries
@@ -27,6 +29,9 @@ every motor in the default order, without findings). Triggers on ``motors`` dele
 same transaction as any insert, update or delete of a motor, so they never outlive the rows they
 were built from, whatever process (or version of this module) writes them; the next ranking builds
 them again.
+
+Over 500 lines: opening, refreshing and the notes the refresh keeps for the tags (id changes, former
+motors) all work on the same tables in the same transactions.
 """
 
 from __future__ import annotations
@@ -145,6 +150,23 @@ def motor_row(motor_id: str, path: str, record: MotorRecord, settings: CheckSett
 class _PreviousSchema(sqlite3.DatabaseError):
     """An undamaged index of an earlier version (one of ``_UPGRADABLE_FROM``): upgraded in place, under the writer
     lock."""
+
+
+# (path, old id, new id, other): a file whose motor id changed; other is None for the same motor (its tags follow)
+IdChange = tuple[str, str, str, "str | None"]
+
+
+def _same_motor(a: Sequence[object], b: Sequence[object]) -> bool:
+    """Whether two (designation, maker) pairs name one motor: equal without regard to case or spacing."""
+    def norm(value: object) -> str:
+        return " ".join(str(value or "").split()).casefold()
+
+    return all(norm(x) == norm(y) for x, y in zip(a, b))
+
+
+def _motor_label(designation: object, maker: object) -> str:
+    """A motor as people name it: ``E25-7 by Bramblewick Propulsion`` (the designation alone without a maker)."""
+    return f"{designation} by {maker}" if maker else str(designation)
 
 
 class CatalogIndex:
@@ -339,6 +361,7 @@ class CatalogIndex:
             return 0, 0, bool(known)
         with self.transaction():
             for path in removed:
+                self._remember_former("WHERE path = ?", (path,))
                 self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
                 self.db.execute("DELETE FROM files WHERE path = ?", (path,))
             for path in changed:
@@ -352,7 +375,8 @@ class CatalogIndex:
 
         A file that held a motor and now holds another (edited in place: its id is the hash of its content) has
         its change of id noted (:meth:`pending_id_changes`) in the same transaction, for its tags to follow; so
-        does one that became an exact copy of another motor (its tags join that motor's)."""
+        does one that became an exact copy of another motor. The note says whether the file still holds the same
+        motor (maker and designation, without regard to case): only then do its tags follow."""
         import hashlib  # here and not at the top: opening a current index reads no file
 
         from ..files.motor_xml import DEFAULT_MAX_BYTES, record_from_bytes
@@ -368,6 +392,8 @@ class CatalogIndex:
             self.restamp(path, stat)
             return
         motor_id = digest[:16]
+        former = self.db.execute("SELECT designation, maker FROM motors WHERE path = ?", (path,)).fetchone()
+        self._remember_former("WHERE path = ?", (path,))
         self.db.execute("DELETE FROM motors WHERE path = ?", (path,))
         try:
             record = record_from_bytes(data, str(full))
@@ -380,7 +406,10 @@ class CatalogIndex:
             problems.append((str(full), str(exc)))
             return
         if old is not None and old[2] and old[2] != motor_id:
-            self._note_id_change(path, old[2], motor_id)
+            now = (record.designation, record.maker)
+            self._note_id_change(path, old[2], motor_id,
+                                 None if former is not None and _same_motor(former, now) else
+                                 f"{_motor_label(*former) if former else 'a motor'} to {_motor_label(*now)}")
         twin = self.db.execute("SELECT path FROM motors WHERE motor_id = ?", (motor_id,)).fetchone()
         if twin is not None:
             message = f"an exact copy of {twin[0]}; skipped"
@@ -390,23 +419,49 @@ class CatalogIndex:
         self.db.execute("INSERT OR REPLACE INTO files VALUES (?, ?, ?, ?, ?, ?, NULL)", (path, *stat, digest, motor_id))
         self._insert_row(row)
 
-    def _note_id_change(self, path: str, old_id: str, new_id: str) -> None:
-        """Add (path, old id, new id) to the changes whose tags are still to follow (inside the caller's
+    def _note_id_change(self, path: str, old_id: str, new_id: str, other: str | None) -> None:
+        """Add (path, old id, new id, other) to the changes whose tags are still to follow (inside the caller's
         transaction, so that the change of id and the note of it are committed together)."""
-        self._set_id_changes([*self.pending_id_changes(), (path, old_id, new_id)])
+        self._set_id_changes([*self.pending_id_changes(), (path, old_id, new_id, other)])
 
-    def pending_id_changes(self) -> list[tuple[str, str, str]]:
-        """(path, old id, new id) of every file edited in place whose tags have not yet followed, oldest first."""
+    def pending_id_changes(self) -> list[IdChange]:
+        """(path, old id, new id, other) of every file edited in place whose tags have not yet been dealt with,
+        oldest first. ``other`` is None when the file still holds the same motor (its tags follow), else what it
+        became ("E25-7 by Maker to F29-8 by Maker": its tags stay with the old id). A note written before this
+        distinction (three items) counts as the same motor, as it was then taken to be."""
         row = self.db.execute("SELECT value FROM meta WHERE key = 'id_changes'").fetchone()
-        return [] if row is None else [(str(p), str(a), str(b)) for p, a, b in json.loads(row[0])]
+        if row is None:
+            return []
+        return [(str(p), str(a), str(b), None if not rest or rest[0] is None else str(rest[0]))
+                for p, a, b, *rest in json.loads(row[0])]
 
-    def forget_id_changes(self, done: Sequence[tuple[str, str, str]]) -> None:
-        """Drop the changes ``done`` (their tags have followed), keeping any noted since they were read."""
+    def forget_id_changes(self, done: Sequence[IdChange]) -> None:
+        """Drop the changes ``done`` (their tags have been dealt with), keeping any noted since they were read."""
         with self.transaction():
             left = [change for change in self.pending_id_changes() if change not in set(done)]
             self._set_id_changes(left)
 
-    def _set_id_changes(self, changes: Sequence[tuple[str, str, str]]) -> None:
+    def _remember_former(self, where: str, params: tuple[object, ...]) -> None:
+        """Keep "designation by maker" of the motors selected by ``where`` that a tag names (in the caller's
+        transaction, before they leave the index), so that an orphaned tag can say what it named; entries no tag
+        names any longer are dropped."""
+        tagged = {str(i) for (i,) in self.db.execute("SELECT DISTINCT motor_id FROM tags")}
+        known = self.former_motors()
+        leaving = {str(i): _motor_label(d, m) for i, d, m in
+                   self.db.execute(f"SELECT motor_id, designation, maker FROM motors {where}", params)
+                   if str(i) in tagged}
+        if not leaving:
+            return
+        kept = {i: label for i, label in {**known, **leaving}.items() if i in tagged}
+        self.db.execute("INSERT OR REPLACE INTO meta VALUES ('former_motors', ?)", (json.dumps(kept, sort_keys=True),))
+
+    def former_motors(self) -> dict[str, str]:
+        """Motor id -> "designation by maker" of the tagged motors that have left the index (as far as it knows:
+        a rebuilt index file knows none)."""
+        row = self.db.execute("SELECT value FROM meta WHERE key = 'former_motors'").fetchone()
+        return {} if row is None else {str(k): str(v) for k, v in json.loads(row[0]).items()}
+
+    def _set_id_changes(self, changes: Sequence[IdChange]) -> None:
         if changes:
             self.db.execute("INSERT OR REPLACE INTO meta VALUES ('id_changes', ?)", (json.dumps([*changes]),))
         else:
@@ -453,6 +508,7 @@ class CatalogIndex:
     def clear(self) -> None:
         """Forget every file and motor (tags stay); the next :meth:`refresh` reads everything again."""
         self.db.execute("BEGIN IMMEDIATE")
+        self._remember_former("", ())
         self.db.execute("DELETE FROM motors")
         self.db.execute("DELETE FROM files")
         self.db.execute("COMMIT")

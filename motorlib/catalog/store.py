@@ -34,14 +34,17 @@ A motor's id is the first 16 hex digits of the SHA-256 of its file (files are
 always written in canonical form, so equal records have equal ids). A file edited
 in place therefore gets a new id: the refresh that finds it notes the change in the
 index (in the transaction that indexes the new content), and its tags then follow
-to the new id in tags.json, under the writer lock, with a notice naming both ids
-(see :meth:`Catalog.refresh`). Its handle
+to the new id in tags.json, under the writer lock, with a notice naming both ids,
+while it holds the same motor (maker and designation); a file that became another
+motor leaves its tags with the old id, orphaned, and the notice says so (see
+:meth:`Catalog.refresh`). Its handle
 is its path without ``.xml`` (``bramblewick-propulsion/g59-10``), with a ``-2``,
 ``-3`` suffix where one maker and designation have several curves.
 
 This module owns the files, the writer lock, adding, removing and looking
 motors up; :class:`Catalog` delegates the index to :mod:`.index`, queries to
-:mod:`.query` and tags to :mod:`.tags`.
+:mod:`.query` and tags to :mod:`.tags`. It is over 500 lines because the lock,
+the batches and the refresh that carries tags over are one protocol on one folder.
 """
 
 from __future__ import annotations
@@ -275,11 +278,14 @@ class Catalog:
         """Move the tags of files edited in place to their new ids, in tags.json, under the writer lock.
 
         The changes were noted by the refresh that indexed the new content, in the same transaction, so a process
-        killed before this runs leaves them for the next one. Each change adds the new id to every tag that names
-        the old one (to the tags it already has: a file replaced by a copy of another tagged motor merges the two)
-        and drops the old id, unless another file still holds that motor. tags.json is written once, atomically,
-        and only then are the changes forgotten; applying one twice changes nothing. A tags.json that cannot be
-        read is never written over: the changes wait until it is mended, and each open says so.
+        killed before this runs leaves them for the next one. A file that still holds the same motor (maker and
+        designation: a hand edit of its thrust values, say) adds the new id to every tag that names the old one
+        and drops the old id, unless another file still holds that motor. A file that now holds a different motor
+        (edited into another, or replaced by a copy of another motor's file) takes no tags along: tags describe a
+        motor ("in-stock"), and the new one was never given them. Its old id's tags stay as they are, orphaned
+        (:meth:`orphan_tags`, reported by ``catalog verify``), and the notice says so. tags.json is written once,
+        atomically, and only then are the changes forgotten; applying one twice changes nothing. A tags.json that
+        cannot be read is never written over: the changes wait until it is mended, and each open says so.
         """
         with self._lock():
             changes = self._index.pending_id_changes()  # again under the lock: another writer may have done them
@@ -288,14 +294,22 @@ class Catalog:
             try:
                 tags = self._tags.read()
             except CatalogError:
-                for path, old_id, new_id in changes:
-                    self.notices.append(f"{self.root / path}: changed since it was indexed, so its motor id changed "
-                                        f"from {old_id} to {new_id}; its tags will follow once {self._tags.path} "
-                                        "is mended")
+                for path, old_id, new_id, other in changes:
+                    if other is None:
+                        self.notices.append(f"{self.root / path}: changed since it was indexed, so its motor id "
+                                            f"changed from {old_id} to {new_id}; its tags will follow once "
+                                            f"{self._tags.path} is mended")
+                    else:  # nothing to wait for: its tags stay where they are
+                        self.notices.append(self._left_behind(path, old_id, new_id, other, None))
+                if any(other is not None for *_, other in changes):
+                    self._index.forget_id_changes([c for c in changes if c[3] is not None])
                 return
             moved_any = False
-            for path, old_id, new_id in changes:
+            for path, old_id, new_id, other in changes:
                 names = sorted(name for name, ids in tags.items() if old_id in ids)
+                if other is not None:
+                    self.notices.append(self._left_behind(path, old_id, new_id, other, names))
+                    continue
                 moved_any = moved_any or bool(names)
                 still_there = self._db.execute("SELECT 1 FROM motors WHERE motor_id = ?", (old_id,)).fetchone()
                 for name in names:
@@ -308,6 +322,15 @@ class Catalog:
             if moved_any:
                 self._tags.write(tags)  # atomically (write_atomic), and copied into the index
             self._index.forget_id_changes(changes)
+
+    def _left_behind(self, path: str, old_id: str, new_id: str, other: str, names: list[str] | None) -> str:
+        """The notice for a file that now holds another motor (``other``: "E25-7 by ... to F29-8 by ...")."""
+        said = (f"its tags ({', '.join(names)}) stay with the old id, not carried over to a motor never given them: "
+                "`motorlib catalog verify` lists them; tag the new motor if they apply to it" if names else
+                "it had no tags" if names is not None else
+                "its tags, if any, stay with the old id, not carried over to a motor never given them")
+        return (f"{self.root / path}: now holds another motor ({other}), so its motor id changed from {old_id} to "
+                f"{new_id}; {said}")
 
     def stale_files(self) -> list[str]:
         """Re-read every file whose content no longer matches the index; returns their full paths.
@@ -540,6 +563,13 @@ class Catalog:
     def tags(self) -> dict[str, list[str]]:
         """Tag name -> motor ids (as stored in tags.json)."""
         return self._tags.as_lists()
+
+    def former_motors(self, ids: Sequence[str]) -> dict[str, str]:
+        """Motor id -> "designation by maker" for those of ``ids`` that the index remembers as tagged motors that
+        left it (a file deleted or edited into another motor); ids it never saw, or saw before it was rebuilt from
+        nothing, are left out."""
+        known = self._index.former_motors()
+        return {i: known[i] for i in ids if i in known}
 
     def orphan_tags(self) -> dict[str, list[str]]:
         """Tag name -> the ids it names that are no longer in the catalog (a curve file deleted by hand);

@@ -376,7 +376,10 @@ def catalog_verify(catalog_dir: str | None) -> None:
         console.print(f"[bold]{render.escape(report.source)}[/bold]")
         console.print(render.findings_text(report, include_notes=False), end="")
     for tag, ids in cat.orphan_tags().items():
-        console.print(f"[yellow]tag {tag!r} names {len(ids)} motor id(s) no longer in the catalog[/yellow]")
+        former = cat.former_motors(ids)
+        listed = ", ".join(f"{i} (was {former[i]})" if i in former else i for i in ids)
+        console.print(f"[yellow]tag {render.escape(repr(tag))} names {len(ids)} motor id(s) no longer in the "
+                      f"catalog[/yellow]: {render.escape(listed)}", soft_wrap=True)
     n_errors = sum(not r.ok for r in reports) + len(cat.problems)
     console.print(f"{len(reports)} curve(s) verified: {n_errors} with errors, {len(cat.problems)} file(s) skipped.")
     if n_errors:

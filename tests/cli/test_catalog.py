@@ -180,3 +180,25 @@ def test_a_dangling_link_where_the_index_belongs_is_an_error_naming_it(tmp_path:
     assert code == 2, out
     assert f"Error: {index}: is a link to" in " ".join(out.split()) and "internal error" not in out
     assert index.is_symlink()
+
+
+def test_verify_lists_the_ids_an_orphaned_tag_names(tmp_path: Path) -> None:
+    # new-user trial: "tag 'in-stock' names 1 motor id(s) no longer in the catalog" said neither which nor what
+    import shutil
+
+    root = tmp_path / "cat"
+    for name in ("bramblewick-propulsion_f29-8.xml", "bramblewick-propulsion_e25-7.xml"):
+        code, out = run("catalog", "add", "--catalog", str(root), str(SAMPLE_DIR / name))
+        assert code == 0, out
+    code, out = run("catalog", "tag", "--catalog", str(root), "E25-7", "F29-8", "in-stock")
+    assert code == 0, out
+    code, out = run("catalog", "list", "--catalog", str(root), "--json")
+    rows = {r["designation"]: r for r in json.loads(out)}
+    shutil.copyfile(root / rows["F29-8"]["path"], root / rows["E25-7"]["path"])  # cp f29-8.xml e25-7.xml
+    code, out = run("catalog", "verify", "--catalog", str(root))
+    flat = " ".join(out.split())
+    assert f"its motor id changed from {rows['E25-7']['motor_id']}" in flat and "not carried over" in flat, flat
+    assert "names 1 motor id(s) no longer in the catalog" in flat
+    assert f"{rows['E25-7']['motor_id']} (was E25-7 by {rows['E25-7']['maker']})" in flat, flat
+    listed = CliRunner().invoke(main, ["catalog", "list", "--catalog", str(root), "--tag", "in-stock", "--json"])
+    assert [r["designation"] for r in json.loads(listed.stdout)] == ["F29-8"]  # tagged by the user, not the copy
