@@ -77,6 +77,12 @@ class _Finite(click.FloatRange):
             self.fail(f"{value!r} is not a finite number", param, ctx)
         return number
 
+    def _describe_range(self) -> str:
+        # click describes a range with no bounds as 'x<=None' in --help; with none there is no range to show
+        if self.min is None and self.max is None:
+            return ""
+        return str(super()._describe_range())
+
 
 _UNIT_EXAMPLES = {"length": "24mm or 0.95in", "mass": "25g or 0.9oz", "time": "6s", "speed": "15m/s",
                   "area": "0.05m2 or 78in2", "angle": "5deg", "temperature": "30degC or 86degF"}

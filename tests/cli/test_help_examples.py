@@ -75,6 +75,13 @@ def test_help_fits_80_columns() -> None:
         assert not wide, (path, wide)
 
 
+def test_help_never_shows_a_missing_bound() -> None:
+    # new-user trial: `reduce --help` showed `--offset ... [default: 0.0; x<=None]` (a range with no bounds)
+    for path in _commands():
+        flat = " ".join(_help(path).split())
+        assert "None" not in flat, (path, flat[flat.find("None") - 80:flat.find("None") + 10])
+
+
 def _curve(peak_n: float, end_n: float, burn_s: float) -> tuple[np.ndarray, np.ndarray]:
     """A regressive curve: up to ``peak_n`` in 0.1 s, down to ``end_n`` at ``burn_s``, out 0.1 s later."""
     return np.array([0.0, 0.1, burn_s, burn_s + 0.1]), np.array([0.0, peak_n, end_n, 0.0])
