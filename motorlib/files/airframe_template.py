@@ -57,8 +57,10 @@ diameter = "{chute}"            # canopy diameter; or for a streamer: area = "0.
 # thickness = "{thick}"
 """
 
+# The example values fly the suggested `fly --motor F29-8` cleanly (tests/cli/test_units.py runs it): a 1.5 m rail
+# left F29-8 at 14.8 m/s, under the 15 m/s rule; 1.8 m (the imperial 6 ft) gives 16 m/s.
 _TEMPLATE_VALUES = {
-    "metric": dict(target="400m", mass="310 g", diameter="41.6 mm", mount_length="200 mm", rail="1.5 m",
+    "metric": dict(target="400m", mass="310 g", diameter="41.6 mm", mount_length="200 mm", rail="1.8 m",
                    elevation="100 m", temperature="15 degC", wind="3 m/s", chute="0.6 m", deploy="150 m",
                    cg="520 mm", nose="160 mm", body="700 mm", root="100 mm", tip="50 mm", span="60 mm",
                    sweep="50 mm", thick="3 mm"),

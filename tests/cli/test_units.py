@@ -332,3 +332,22 @@ def test_the_rail_rule_reads_the_flown_profile_wind_not_the_unused_key(tmp_path:
                      .replace('wind_speed = "3 m/s"', 'wind_speed = "5 m/s"'))
     code, out = run("match", str(frame), "--target", "400", "--json")
     assert json.loads(out)["conditions"]["rail_exit_needed_m_s"] == pytest.approx(15.0)
+
+
+@pytest.mark.parametrize("system", ["metric", "imperial"])
+def test_the_commands_new_airframe_suggests_succeed(system: str, tmp_path: Path,
+                                                    monkeypatch: pytest.MonkeyPatch) -> None:
+    # new-user trial: the suggested `motorlib fly rocket.toml --motor F29-8` failed (rail exit 14.8 m/s, status 1)
+    import shlex
+
+    monkeypatch.chdir(tmp_path)
+    code, out = run("new-airframe", "rocket.toml", "--units", system)
+    assert code == 0, out
+    suggested = re.findall(r"'(motorlib [^']+)'", " ".join(out.split()))
+    tried = re.findall(r"(motorlib \S+ rocket\.toml .*?)(?:\s{2,}|\n)", (tmp_path / "rocket.toml").read_text())
+    assert suggested and len(tried) == 2, (out, tried)  # the 'Wrote' line; the file's fly and match
+    for command in {*suggested, *tried}:
+        code, out = run(*shlex.split(command)[1:])
+        assert code == 0, (command, out)
+        if command.startswith("motorlib fly"):
+            assert "warning" not in out, out  # a clean first flight, not one that passes with a warning
