@@ -43,7 +43,8 @@ FLIGHT_CODES: Final = (
     "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete", "rail-exit-slow", "thrust-to-weight-low",
     "over-ceiling", "delays-unknown", "no-ejection-charge", "ejection-far-from-apogee", "ejection-fast",
     "ejection-low", "lands-before-ejection", "descent-fast", "constant-cd-past-mach", "deployment-fast",
-    "deployment-low", "deployment-while-burning", "lands-outside-field", "no-deployment", "live-charge-before-apogee")
+    "deployment-low", "deployment-while-burning", "lands-outside-field", "no-deployment", "no-recovery",
+    "live-charge-before-apogee")
 """Every code :func:`evaluate_rules` can give a flight, in the order it lists them (the keys of :func:`code_masks`)."""
 
 
@@ -239,6 +240,9 @@ def broken_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
         "lands-outside-field": past(x.landing_distance_m, math.inf if r.field_radius_m is None else r.field_radius_m),
         # nothing opens, and no rule above says why
         "no-deployment": judged & x.devices_listed & ~opened & ~no_delay & ~lands_first,
+        # every rocket needs a recovery system that brings all its parts down safely (_NO_RECOVERY); a charge that
+        # opens nothing listed is also judged above (ejection-fast, ejection-low), but no device means a ballistic fall
+        "no-recovery": judged & ~x.devices_listed,
         # electronics deploy (the flight leaves the charge out), but a charge left in would open the rocket at
         # speed before apogee; after apogee, or within the delay tolerance, it is a backup
         "live-charge-before-apogee": judged & ~x.uses_charge & (x.chosen_delay_s < x.optimal_delay_s
@@ -263,7 +267,7 @@ def code_masks(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_
     ...                devices_listed=False, delays_known=True, constant_drag=True, landing_descent_rate_m_s=np.nan,
     ...                landing_distance_m=np.nan, deployment_time_s=[], deployment_speed_m_s=[], opening_load_n=[])
     >>> {code: mask.tolist() for code, mask in code_masks(x).items() if mask.any()}
-    {'no-liftoff': [False, True], 'rail-exit-slow': [True, False]}
+    {'no-liftoff': [False, True], 'rail-exit-slow': [True, False], 'no-recovery': [True, False]}
     """
     broken = broken_rules(inputs, rules, ceiling_m=ceiling_m)
     failed = broken.pop("not-flown")
@@ -302,7 +306,7 @@ def evaluate_rules(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceil
     ...                devices_listed=False, delays_known=True, constant_drag=True, landing_descent_rate_m_s=nan,
     ...                landing_distance_m=nan, deployment_time_s=[], deployment_speed_m_s=[], opening_load_n=[])
     >>> [[f.code for f in flight] for flight in evaluate_rules(x)]
-    [[], ['rail-exit-slow']]
+    [['no-recovery'], ['rail-exit-slow', 'no-recovery']]
     """
     return [[Finding(*entry) for entry in flight] for flight in rule_entries(inputs, rules, ceiling_m=ceiling_m)]
 
@@ -388,6 +392,12 @@ def _ejection_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: floa
             + _what_to_do(x, i))
 
 
+# The model and high-power rocket safety codes each require a recovery system that returns every part of the
+# rocket safely (their "Recovery System" rules; from memory: not in tests/reference/check_values.md).
+_NO_RECOVERY: Final = ("no recovery device: every rocket needs a recovery system that brings all its parts down "
+                       "safely (the model and high-power rocket safety codes require one); add a [recovery] table to "
+                       "the airframe file")
+
 _Message = Callable[[RuleInputs, int, int, LaunchRules, "float | None"], str]
 _MESSAGES: dict[str, _Message] = {
     "not-flown": lambda x, i, k, r, c: MESSAGES[int(x.status[i])],
@@ -420,6 +430,7 @@ _MESSAGES: dict[str, _Message] = {
                                                   f"the pad (field radius {r.field_radius_m:,.0f} m)"),
     "no-deployment": lambda x, i, k, r, c: ("nothing deploys recovery on this flight (the device never opens): it would "
                                             "fall ballistically"),
+    "no-recovery": lambda x, i, k, r, c: _NO_RECOVERY,
     "live-charge-before-apogee": lambda x, i, k, r, c: (
         f"electronics deploy recovery, but the motor's {float(x.chosen_delay_s[i]):g} s delay would fire its charge "
         f"{float(x.optimal_delay_s[i] - x.chosen_delay_s[i]):.1f} s before apogee, at speed: remove the charge or plug "

@@ -35,6 +35,7 @@ deployment-low              opens a device too near the ground for it to open an
 deployment-while-burning    opens a device while the motor still burns
 lands-outside-field         lands outside the recovery field
 no-deployment               lists a device that never opens
+no-recovery                 lists no recovery device at all: it falls ballistically
 motor-does-not-fit          has a motor that cannot go in the mount (matching)
 above-class                 has a motor above the flyer's class limit (matching)
 no-masses                   has a motor whose total or propellant mass is unknown (matching)
@@ -65,6 +66,7 @@ RULE_CODES: Final = {
     "deployment-fast": "a recovery device opens too fast", "deployment-while-burning": "a device opens under thrust",
     "deployment-low": "a recovery device opens too near the ground",
     "lands-outside-field": "lands outside the field", "no-deployment": "nothing deploys recovery",
+    "no-recovery": "no recovery device",
     "motor-does-not-fit": "does not fit the mount", "above-class": "above your class limit",
     "no-masses": "masses unknown", "stability-low": "too little stability margin (CG too far aft)",
     "curve-errors": "the curve fails its own checks (label, class or data)",

@@ -3,7 +3,9 @@
 Phases, in flight order: **pad and rail** (mass, thrust-to-weight, rail exit speed, stability margin when the
 airframe has a shape), **boost** (burnout, top speed, Mach, acceleration, dynamic pressure), **coast** (apogee,
 its time and place, the delay against the optimal one), **each recovery event** (ejection or deployment, its
-height and speed), **landing** (descent rate, ground speed, distance and bearing from the pad).
+height and speed), **landing** (descent rate, ground speed, distance and bearing from the pad). The descent rate is marked as the
+rule book judges it: against its limit under a device that opened (``descent-fast``); a ballistic fall (nothing
+opens) is marked with the finding that says why (``no-recovery`` in this phase, or a recovery finding).
 
 A rocket that tops out while its motor still burns (a weak motor on a heavy airframe, a long burn) has no coast:
 its apogee phase says "Apogee before burnout (no coast)", and burnout is an event of its own, told where it
@@ -54,7 +56,7 @@ _PHASE_OF_WARNING: Final = {
     "no-ejection-charge": "recovery", "lands-before-ejection": "recovery",
     "ejection-fast": "recovery", "no-deployment": "recovery", "ejection-low": "recovery", "deployment-low": "recovery",
     "deployment-fast": "recovery", "descent-fast": "landing", "deployment-while-burning": "recovery",
-    "lands-outside-field": "landing", "constant-cd-past-mach": "boost",
+    "lands-outside-field": "landing", "constant-cd-past-mach": "boost", "no-recovery": "landing",
 }
 _FAILING_WARNINGS: Final = {"unstable", "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete"}
 
@@ -373,6 +375,27 @@ def _height_figure(altitude_m: Any, speed_m_s: Any, r: Any, u: str) -> CardFigur
                       f">= {quantity(need, 'length', u)}")
 
 
+def _nothing_opened(s: dict[str, Any]) -> bool:
+    """No recovery device opened on this flight (none listed, or none that opens): the fall is ballistic. A summary
+    that says nothing about its devices counts as opened."""
+    if "deployments" in s and (s["deployments"] or "has_recovery" in s):
+        return not any(event.get("time_s") is not None for event in s["deployments"] or [])
+    if "deploy_time_s" in s:
+        return s["deploy_time_s"] is None
+    return False
+
+
+def _descent_rate_figure(s: dict[str, Any], rate: Any, r: Any, u: str) -> CardFigure:
+    """The descent rate, marked as the rule book judges it: ``descent-fast`` judges the rate under an opened device;
+    a ballistic fall (nothing opens) is marked with the finding that says why (``no-recovery``, ``no-deployment``,
+    ``lands-before-ejection``, ``no-ejection-charge``, ``delays-unknown``), never with a mark of its own."""
+    limit = f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"
+    if rate is not None and _nothing_opened(s):
+        return CardFigure("descent rate", f"{quantity(rate, 'speed', u)} (ballistic: no recovery device opens)",
+                          "caution", limit)
+    return CardFigure("descent rate", quantity(rate, "speed", u), _check(rate, r.max_landing_speed_m_s, False), limit)
+
+
 def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> Phase | None:
     landing = s.get("landing")
     figures: list[CardFigure] = []
@@ -381,9 +404,7 @@ def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]])
         rate = s.get("landing_descent_rate_m_s")
         rate = speed if rate is None else rate
         # the rule is on the descent rate (as match checks it); the speed over the ground adds the wind's drift
-        figures.append(CardFigure("descent rate", quantity(rate, "speed", u),
-                                  _check(rate, r.max_landing_speed_m_s, False),
-                                  f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"))
+        figures.append(_descent_rate_figure(s, rate, r, u))
         figures.append(CardFigure("touchdown speed", quantity(speed, "speed", u) + " (with the wind's drift)"))
         if landing.get("time_s") is not None:
             figures.append(CardFigure("lands at", _seconds(landing.get("time_s"))))
@@ -394,8 +415,7 @@ def _landing(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]])
     elif s.get("landing_speed_m_s") is not None:
         rate = s.get("landing_descent_rate_m_s")
         figures += [
-            CardFigure("descent rate", quantity(rate, "speed", u), _check(rate, r.max_landing_speed_m_s, False),
-                       f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"),
+            _descent_rate_figure(s, rate, r, u),
             CardFigure("descent time", _seconds(s.get("descent_time_s"))),
             CardFigure("from the pad", f"{quantity(s.get('drift_m'), 'length', u)} downwind"),
         ]

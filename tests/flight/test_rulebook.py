@@ -59,10 +59,11 @@ def test_each_rule_fires_past_its_default_limit_only(field: str, at_limit: Any, 
 def test_the_ejection_speed_limit_applies_when_the_charge_opens_no_device_listed() -> None:
     # a device the charge opens is judged by its own kind's limit (deployment-fast); with none listed the
     # charge's speed is all there is
+    # (with no device listed the rocket also fails no-recovery: it falls ballistically)
     assert _codes(devices_listed=False, ejection_speed_m_s=25.0, deployment_time_s=[], deployment_speed_m_s=[],
-                  opening_load_n=[], device_kinds=()) == []
+                  opening_load_n=[], device_kinds=()) == ["no-recovery"]
     assert _codes(devices_listed=False, ejection_speed_m_s=25.01, deployment_time_s=[], deployment_speed_m_s=[],
-                  opening_load_n=[], device_kinds=()) == ["ejection-fast"]
+                  opening_load_n=[], device_kinds=()) == ["ejection-fast", "no-recovery"]
     assert _codes(ejection_speed_m_s=30.0) == []
 
 
@@ -256,6 +257,19 @@ def test_a_device_must_open_high_enough_to_open_and_slow_the_rocket() -> None:
 def test_a_charge_that_opens_no_listed_device_must_fire_high_enough() -> None:
     bare = {"devices_listed": False, "deployment_time_s": [], "deployment_speed_m_s": [], "opening_load_n": [],
             "deployment_altitude_m": [], "device_kinds": (), "ejection_speed_m_s": 18.6}
-    assert _codes(**bare, ejection_altitude_m=18.6) == []
-    assert _codes(**bare, ejection_altitude_m=3.0) == ["ejection-low"]
-    assert _codes(**bare, ejection_altitude_m=NAN) == []  # not known: no threshold broken
+    assert _codes(**bare, ejection_altitude_m=18.6) == ["no-recovery"]  # (no device listed: see no-recovery)
+    assert _codes(**bare, ejection_altitude_m=3.0) == ["ejection-low", "no-recovery"]
+    assert _codes(**bare, ejection_altitude_m=NAN) == ["no-recovery"]  # not known: no threshold broken
+
+
+def test_a_rocket_with_no_recovery_device_fails_no_recovery() -> None:
+    # new-user trial: a rocket with no [recovery] passed fly and match while falling at 74 m/s; every rocket needs a
+    # recovery system (the model and high-power rocket safety codes, from memory)
+    bare = {"devices_listed": False, "deployment_time_s": [], "deployment_speed_m_s": [], "opening_load_n": [],
+            "deployment_altitude_m": [], "device_kinds": (), "landing_descent_rate_m_s": 74.2}
+    assert _codes(**bare) == ["no-recovery"]
+    assert _codes() == []  # a device listed (and opened): no finding
+    message = evaluate_rules(RuleInputs(**{**GOOD, **bare}))[0][0].message
+    assert "every rocket needs a recovery system" in message and "all its parts down safely" in message
+    # a flight that failed is judged by its status only
+    assert _codes(**bare, status=NO_LIFTOFF) == ["no-liftoff"]

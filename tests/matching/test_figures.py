@@ -54,7 +54,8 @@ def test_landing_speed_is_the_terminal_descent_rate_at_sea_level() -> None:
 
 
 def test_a_motor_exactly_at_each_limit_passes() -> None:
-    frame = _frame()
+    # a parachute (every rocket needs a recovery device: no-recovery); it opens after apogee, the ascent is the same
+    frame = _frame(Recovery(device="parachute", deploy="ejection", drag_area_m2=1.0))
     flight = simulate(frame, [_motor()], FLAT, descent=False)
     exit_speed = float(flight.rail_exit_speed_m_s[0])
     ttw = float(flight.liftoff_thrust_to_weight[0])

@@ -1,0 +1,71 @@
+"""Defects a new-user trial met in recovery, the flight card and the report: each test failed before its fix."""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+from motorlib.flight.rulebook import FLIGHT_CODES
+from motorlib.flight.rules import RULE_CODES
+from motorlib.present.messages import REASON_CODES
+
+from .conftest import AIRFRAMES, SAMPLE_DIR, run
+
+QUIBBLE = AIRFRAMES / "quibble-41.toml"
+CATALOG = ("--catalog", str(SAMPLE_DIR))
+
+
+def _without_recovery(tmp_path: Path, how: str) -> str:
+    text = QUIBBLE.read_text(encoding="utf-8")
+    table = re.search(r"\[recovery\]\n(?:[^\[\n][^\n]*\n)*", text)
+    assert table is not None
+    text = text.replace(table.group(0), "" if how == "removed" else '[recovery]\ndevice = "none"\n')
+    path = tmp_path / "norec.toml"
+    path.write_text(text, encoding="utf-8")
+    return str(path)
+
+
+def test_a_rocket_without_recovery_fails_fly(tmp_path: Path) -> None:
+    for how in ("removed", "none"):
+        frame = _without_recovery(tmp_path, how)
+        code, out = run("fly", frame, *CATALOG, "--motor", "F29-8", "--json")
+        warnings = {w["code"]: w["message"] for w in json.loads(out)["warnings"]}
+        assert "no-recovery" in warnings, (how, warnings)
+        assert "recovery system" in warnings["no-recovery"]
+        assert code == 1
+        code, out = run("fly", frame, *CATALOG, "--motor", "F29-8")
+        assert code == 1 and "recovery system" in " ".join(out.split()), out
+
+
+def test_a_rocket_without_recovery_fails_every_motor_in_match(tmp_path: Path) -> None:
+    frame = _without_recovery(tmp_path, "removed")
+    code, out = run("match", frame, *CATALOG, "--allow-smaller-motors", "--json")
+    assert code == 0, out
+    candidates = json.loads(out)["candidates"]
+    assert not [c["designation"] for c in candidates if c["verdict"].startswith("pass")]
+    flown = [c for c in candidates if c.get("apogee_m") is not None]
+    assert flown and all("no-recovery" in c["reason_codes"] for c in flown)
+    code, out = run("match", frame, *CATALOG, "--allow-smaller-motors")
+    assert re.search(r"\b0 of \d+ pass", out), out
+    letter = REASON_CODES["no-recovery"][0]
+    assert re.search(rf"G99-14 .*fail [A-Z ]*{letter}", out), out
+
+
+def test_no_recovery_is_in_the_rule_book() -> None:
+    assert "no-recovery" in FLIGHT_CODES and "no-recovery" in RULE_CODES
+    letter = REASON_CODES["no-recovery"][0]
+    # a letter of its own: no other code's legend shares it
+    assert {code for code, (other, _) in REASON_CODES.items() if other == letter} == {"no-recovery"}
+
+
+def test_every_caution_on_the_flight_card_has_a_warning(tmp_path: Path) -> None:
+    # the card marked "! descent rate 74.2 m/s <= 6.5 m/s" on a ballistic fall while fly listed no warning
+    frame = _without_recovery(tmp_path, "removed")
+    code, out = run("fly", frame, *CATALOG, "--motor", "F29-8")
+    landing = out[out.index("Landing"):]
+    assert "descent rate" in landing
+    assert code == 1
+    # the landing phase tells why its descent rate is marked
+    assert "recovery system" in " ".join(landing.split())
+
