@@ -84,7 +84,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     from ..files.airframe_toml import load_airframe
     from ..flight.integrate import simulate
     from ..flight.results import dense_trajectory
-    from ..flight.rulebook import evaluate_rules, flown_rule_inputs
+    from ..flight.rulebook import device_rule_entries, flown_rule_inputs
     from ..flight.rules import RULE_CODES, LaunchRules
 
     shown = display_units(units)
@@ -112,7 +112,12 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=np.array([summary["chosen_delay_s"]], dtype=float),
                                delays_known=motor.ejection != "unknown")
-    warnings = [(f.code, f.message) for f in evaluate_rules(inputs, rules, ceiling_m=ceiling_m)[0]]
+    entries = device_rule_entries(inputs, rules, ceiling_m=ceiling_m)[0]
+    warnings = [(code, message) for _, code, message, _ in entries]
+    from ..present.flightcard import opened_device_positions
+
+    # the device each warning is about, as its place among the devices that opened (the card's recovery events)
+    devices = opened_device_positions([k for *_, k in entries], np.isfinite(results.deployment_time_s[0]).tolist())
     warnings += _stability_and_drag(frame, motor, results, summary, ballast_kg or 0.0, min_stability_cal)
     from ..matching.rank import mount_problems
 
@@ -139,7 +144,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
         inputs = [airframe_file] + ([motor_file] if motor_file else [])
         report = fly_report(frame, motor, summary, warnings, drawn, inputs=inputs,
-                            command=_command_line(), units=_card_units(shown))
+                            command=_command_line(), units=_card_units(shown),
+                            warning_devices=devices + [None] * (len(warnings) - len(devices)))
         written.append(_write_report(report, report_path, overwrite, inputs))
     # status 1 when the flight fails or breaks a launch rule (README, "When something goes wrong"); notes do not count
     failed = summary["status"] != "ok" or any(code in RULE_CODES for code, _ in warnings)
@@ -156,7 +162,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
 
     console = _report_console(csv_path)  # standard error when the CSV has standard output (--csv -)
     card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
-                       units=_card_units(shown), wind_speed_m_s=frame.launch.surface_wind_m_s)
+                       units=_card_units(shown), wind_speed_m_s=frame.launch.surface_wind_m_s,
+                       warning_devices=devices + [None] * (len(warnings) - len(devices)))
     console.print(render.flight_card_table(card))
     for path in written:
         if path is not None:  # None: standard output

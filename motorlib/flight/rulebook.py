@@ -33,8 +33,8 @@ if TYPE_CHECKING:
     from .airframe import Airframe
     from .results import FlightResults
 
-__all__ = ["FLIGHT_CODES", "RuleInputs", "broken_rules", "code_masks", "evaluate_rules", "flown_rule_inputs",
-           "rule_entries"]
+__all__ = ["FLIGHT_CODES", "RuleInputs", "broken_rules", "code_masks", "device_rule_entries", "evaluate_rules",
+           "flown_rule_inputs", "rule_entries"]
 
 # Failed flight status -> its code; any other failed status is "not-flown".
 _STATUS_CODES = {NO_LIFTOFF: "no-liftoff", STUCK_ON_RAIL: "stuck-on-rail"}
@@ -46,6 +46,10 @@ FLIGHT_CODES: Final = (
     "deployment-low", "deployment-while-burning", "lands-outside-field", "no-deployment", "no-recovery",
     "live-charge-before-apogee")
 """Every code :func:`evaluate_rules` can give a flight, in the order it lists them (the keys of :func:`code_masks`)."""
+
+
+# RuleInputs fields that describe the airframe, the same for every flight (not arrays of shape (n_flights,))
+_PER_BOOK: Final = frozenset({"device_kinds", "device_triggers", "recovery_sequence"})
 
 
 @dataclass(frozen=True, eq=False)
@@ -73,6 +77,12 @@ class RuleInputs:
         (NaN: it never opens, or unknown).
     device_kinds : tuple of str, length n_devices
         Each device's kind (``parachute``, ``drogue``, ...), which sets its deployment-speed limit.
+    device_triggers : tuple of str, length n_devices (or empty: not known)
+        What opens each device (``ejection``, ``apogee``, ``altitude``, ``after``), for the advice of a device that
+        opens too low.
+    recovery_sequence : bool
+        The devices are ``[[recovery]]`` entries (their height key is ``altitude``), not one ``[recovery]`` table
+        (``deploy_altitude``).
     ejection_altitude_m : ndarray
         Height above the pad when the chosen delay fires [m] (NaN: not known, or the rocket lands first).
     deployment_altitude_m : ndarray, shape (n_flights, n_devices)
@@ -101,13 +111,15 @@ class RuleInputs:
     device_kinds: tuple[str, ...] = ()
     ejection_altitude_m: np.ndarray | float = math.nan
     deployment_altitude_m: np.ndarray | tuple = ()
+    device_triggers: tuple[str, ...] = ()
+    recovery_sequence: bool = False
 
     def __post_init__(self) -> None:
         n = np.size(self.status)
         kinds = {"status": np.int64, "uses_charge": bool, "devices_listed": bool, "delays_known": bool,
                  "constant_drag": bool}
         for f in fields(self):
-            if f.name == "device_kinds":
+            if f.name in _PER_BOOK:
                 continue
             values = np.array(getattr(self, f.name), dtype=kinds.get(f.name, float))  # our own copy, frozen below
             if f.name.startswith(("deployment_", "opening_")):
@@ -119,6 +131,8 @@ class RuleInputs:
             values.flags.writeable = False
             object.__setattr__(self, f.name, values)
         object.__setattr__(self, "device_kinds", tuple(str(k) for k in self.device_kinds))
+        object.__setattr__(self, "device_triggers", tuple(str(k) for k in self.device_triggers))
+        object.__setattr__(self, "recovery_sequence", bool(self.recovery_sequence))
 
     @property
     def n_flights(self) -> int:
@@ -127,7 +141,7 @@ class RuleInputs:
     def take(self, index: np.ndarray | list[int] | int) -> RuleInputs:
         """The flights at ``index`` (an int gives one flight), in that order."""
         rows = np.atleast_1d(np.asarray(index, dtype=np.int64))
-        return RuleInputs(**{f.name: getattr(self, f.name) if f.name == "device_kinds" else getattr(self, f.name)[rows]
+        return RuleInputs(**{f.name: getattr(self, f.name) if f.name in _PER_BOOK else getattr(self, f.name)[rows]
                              for f in fields(self)})
 
 
@@ -187,6 +201,7 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
         deployment_speed_m_s=(results.deployment_speed_m_s[:, :k] if deployment_speed_m_s is None
                               else np.asarray(deployment_speed_m_s, dtype=float)[:, :k]),
         opening_load_n=results.opening_load_n[:, :k], device_kinds=tuple(d.device for d in devices),
+        device_triggers=tuple(d.deploy for d in devices), recovery_sequence=bool(frame.recovery_sequence),
         ejection_altitude_m=ejection_altitude_m, deployment_altitude_m=results.deployment_altitude_m[:, :k])
 
 
@@ -315,17 +330,27 @@ def rule_entries(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceilin
                  ) -> list[list[tuple[str, str, str]]]:
     """:func:`evaluate_rules` as (severity, code, message) triples, without a :class:`Finding` record per broken
     rule: for the ranking, which reads them once for thousands of flights."""
+    return [[entry[:3] for entry in flight] for flight in device_rule_entries(inputs, rules, ceiling_m=ceiling_m)]
+
+
+def device_rule_entries(inputs: RuleInputs, rules: LaunchRules | None = None, *, ceiling_m: float | None = None
+                        ) -> list[list[tuple[str, str, str, int | None]]]:
+    """:func:`rule_entries` with the device each finding is about: (severity, code, message, device), ``device``
+    the index of the device in the airframe's order (``deployment-fast``, ``deployment-low``,
+    ``deployment-while-burning``), None for a finding about the whole flight; so that a flight card puts each
+    device's findings under that device."""
     r = rules or LaunchRules()
     broken = broken_rules(inputs, r, ceiling_m=ceiling_m)
     n = inputs.n_flights
-    out: list[list[tuple[str, str, str]]] = [[] for _ in range(n)]
+    out: list[list[tuple[str, str, str, int | None]]] = [[] for _ in range(n)]
     for code, mask in broken.items():
         flights, columns = np.nonzero(mask.reshape(n, -1))
         severity = "note" if code in NOTE_CODES else "warning"
         message = _MESSAGES[code]
         for i, column in zip(flights.tolist(), columns.tolist()):
             code_i = _STATUS_CODES.get(int(inputs.status[i]), code) if code == "not-flown" else code
-            out[i].append((severity, code_i, message(inputs, i, column, r, ceiling_m)))
+            out[i].append((severity, code_i, message(inputs, i, column, r, ceiling_m),
+                           int(column) if mask.ndim == 2 else None))
     return out
 
 
@@ -360,8 +385,21 @@ def _deployment_fast(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: f
             + "): risk of a torn canopy, a zipper or a broken harness")
 
 
-def _what_to_do(x: RuleInputs, i: int) -> str:
-    """What brings a charge's opening higher: a delay nearer the optimal one; else a higher trigger, a stronger motor."""
+def _what_to_do(x: RuleInputs, i: int, k: int | None = None) -> str:
+    """What brings an opening higher: for the charge (``k`` None, or a device it opens) a delay nearer the optimal
+    one; for device ``k`` opened by electronics, what its own trigger offers, named by the key the airframe file
+    uses (``altitude`` in a ``[[recovery]]`` entry, ``deploy_altitude`` in the ``[recovery]`` table)."""
+    trigger = x.device_triggers[k] if k is not None and k < len(x.device_triggers) else None
+    if trigger not in (None, "ejection"):
+        table = "its [[recovery]] entry" if x.recovery_sequence else "the [recovery] table"
+        if trigger == "altitude":
+            # the height it opens at is the one asked for: a stronger motor changes only how fast it falls there
+            key = "altitude" if x.recovery_sequence else "deploy_altitude"
+            return f"deploy it higher (a higher {key} in {table})"
+        if trigger == "apogee":
+            return ("open it sooner after apogee (a shorter delay in its [[recovery]] entry) or fly a stronger motor"
+                    if x.recovery_sequence else "fly a stronger motor (it opens at apogee, which is too low)")
+        return f"open it sooner (a shorter delay in {table}) or fly a stronger motor"
     chosen, optimal = float(x.chosen_delay_s[i]), float(x.optimal_delay_s[i])
     if bool(x.uses_charge[i]) and math.isfinite(chosen) and math.isfinite(optimal) and optimal >= 0.0:
         delay = (f"a shorter delay (the optimal one is {optimal:.1f} s)" if chosen > optimal
@@ -384,7 +422,7 @@ def _low(height_m: float, speed_m_s: float, r: LaunchRules) -> str:
 def _deployment_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
     kind = x.device_kinds[k]
     return (f"the {kind} opens too low: {_low(x.deployment_altitude_m[i, k], x.deployment_speed_m_s[i, k], r)}; "
-            + _what_to_do(x, i))
+            + _what_to_do(x, i, k))
 
 
 def _ejection_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:

@@ -33,7 +33,7 @@ from typing import Any, Final, Sequence
 
 from ..units import FOOT_M, OUNCE_KG, POUND_KG, STANDARD_GRAVITY_M_S2
 
-__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "quantity"]
+__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "opened_device_positions", "quantity"]
 
 _ORDER: Final = {"info": 0, "ok": 1, "caution": 2, "fail": 3}
 
@@ -143,7 +143,8 @@ def _seconds(value: Any) -> str:
 
 
 def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *, title: str, units: str = "si",
-                rules: Any = None, wind_speed_m_s: float = 0.0) -> FlightCard:
+                rules: Any = None, wind_speed_m_s: float = 0.0,
+                warning_devices: Sequence[int | None] | None = None) -> FlightCard:
     """The flight card of one flight summary.
 
     Parameters
@@ -162,6 +163,10 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
         The thresholds the figures are marked against (defaults: :class:`~motorlib.flight.rules.LaunchRules`).
     wind_speed_m_s : float
         Wind at 10 m [m/s], for the rail-exit-to-wind rule.
+    warning_devices : sequence of int or None, optional
+        For each warning, the device it is about: its index among the devices that opened (the order of the
+        summary's ``deployments``; :func:`opened_device_positions`), None for the whole flight; a device's
+        warnings are shown under that device's event, the others under the first recovery event.
     """
     from ..flight.rules import LaunchRules
 
@@ -169,8 +174,13 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     s = summary
     by_phase: dict[str, list[tuple[str, str]]] = {}
     general: list[tuple[str, str]] = []
-    for code, message in warnings:
+    by_device: dict[int, list[tuple[str, str]]] = {}
+    devices = list(warning_devices) if warning_devices is not None else [None] * len(warnings)
+    for (code, message), device in zip(warnings, devices):
         phase = _PHASE_OF_WARNING.get(code)
+        if phase == "recovery" and device is not None:
+            by_device.setdefault(int(device), []).append((code, message))
+            continue
         (by_phase.setdefault(phase, []) if phase else general).append((code, message))
     completed = s.get("status") == "ok"
     if not completed or s.get("apogee_m") is None:
@@ -181,7 +191,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])),
               _boost(s, u, by_phase.get("boost", []), burnout_figure=not powered_apogee),
               _coast(s, r, u, by_phase.get("coast", []), powered=powered_apogee)]
-    later = _recovery(s, r, u, by_phase.get("recovery", []))
+    later = _recovery(s, r, u, by_phase.get("recovery", []), by_device)
     landing = _landing(s, r, u, by_phase.get("landing", []))
     if landing is not None:
         later.append(landing)
@@ -312,8 +322,21 @@ def _optimal_delay(optimal_s: Any) -> CardFigure:
     return CardFigure("optimal delay", none, "caution") if none else CardFigure("optimal delay", _seconds(optimal_s))
 
 
-def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]) -> list[Phase]:
-    """One phase per recovery event: the 3-D model's ``deployments`` list, else today's ejection and deployment."""
+def opened_device_positions(device_indices: Sequence[int | None], opened: Sequence[bool]) -> list[int | None]:
+    """Each device index (the airframe's order; None: not about a device) as its position among the devices that
+    opened (``opened[k]``), the order of a summary's ``deployments`` and so of the card's recovery events.
+
+    >>> opened_device_positions([None, 2, 0], [True, False, True])
+    [None, 1, 0]
+    """
+    return [None if k is None else int(sum(bool(o) for o in opened[:k])) for k in device_indices]
+
+
+def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]],
+              by_device: dict[int, list[tuple[str, str]]] | None = None) -> list[Phase]:
+    """One phase per recovery event: the 3-D model's ``deployments`` list, else today's ejection and deployment;
+    ``by_device`` holds the warnings about the k-th device that opened, shown under its own event."""
+    by_device = dict(by_device or {})
     events: list[tuple[str, list[CardFigure], float | None]] = []  # (name, figures, time from ignition [s])
     if s.get("deployments"):
         for event in s["deployments"]:
@@ -354,14 +377,19 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
             events.append(("device opens", [CardFigure("time", _seconds(s.get("deploy_time_s"))),
                                             CardFigure("height", quantity(s.get("deploy_altitude_m"), "length", u))],
                            _number(deploy_time)))
+    if not s.get("deployments"):  # no device events to put a device's warnings under
+        warnings = warnings + [w for k in sorted(by_device) for w in by_device[k]]
+        by_device = {}
+    elif any(k >= len(events) for k in by_device):  # (not expected: a device's finding is about its opening)
+        warnings = warnings + [w for k in sorted(by_device) if k >= len(events) for w in by_device[k]]
     if not events and not warnings:
         return []
     if not events:
         return [Phase("recovery", "Recovery", (), tuple(warnings))]
     phases = []
     for k, (name, figures, time_s) in enumerate(events):
-        phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(warnings) if k == 0 else (),
-                            time_s=time_s))
+        own = (list(warnings) if k == 0 else []) + by_device.get(k, [])
+        phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(own), time_s=time_s))
     return phases
 
 

@@ -61,12 +61,14 @@ def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -
 # ----------------------------------------------------------------------------- fly
 def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
                trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
-               made_at: str | None = None) -> FlyReport:
-    """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory)."""
+               made_at: str | None = None, warning_devices: Sequence[int | None] | None = None) -> FlyReport:
+    """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory); ``warning_devices``
+    places each device's warnings under that device on the card (:func:`~.flightcard.flight_card`)."""
     u = units
     du = _display(u)
     launch = frame.launch
-    card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.surface_wind_m_s)
+    card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.surface_wind_m_s,
+                                   warning_devices=warning_devices)
     rocket = Facts("Rocket", (
         ("name", frame.name),
         ("empty mass", quantity(frame.mass_kg, "mass", u)),

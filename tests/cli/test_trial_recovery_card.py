@@ -69,3 +69,69 @@ def test_every_caution_on_the_flight_card_has_a_warning(tmp_path: Path) -> None:
     # the landing phase tells why its descent rate is marked
     assert "recovery system" in " ".join(landing.split())
 
+
+TOLLGATE = AIRFRAMES / "tollgate-98.toml"
+_DUAL = '''[[recovery]]
+device = "drogue"
+trigger = "apogee"
+drag_coefficient = 0.8
+diameter = "0.6 m"
+
+[[recovery]]
+device = "main"
+trigger = "altitude"
+altitude = "20 m"
+drag_coefficient = 0.8
+diameter = "2.4 m"
+
+'''
+
+
+def _dual_deploy(tmp_path: Path) -> str:
+    text = TOLLGATE.read_text(encoding="utf-8")
+    table = re.search(r"\[recovery\]\n(?:[^\[\n][^\n]*\n)*\n*", text)
+    assert table is not None
+    path = tmp_path / "dd.toml"
+    path.write_text(text.replace(table.group(0), _DUAL), encoding="utf-8")
+    return str(path)
+
+
+def _sections(card: str) -> dict[str, str]:
+    """The flight card's text by section title (each title starts a line with a mark and 'Recovery: ...')."""
+    parts = re.split(r"^[✓!✗·] (.+)$", card, flags=re.M)
+    return {parts[k].strip(): " ".join(parts[k + 1].split()) for k in range(1, len(parts) - 1, 2)}
+
+
+def test_each_device_s_findings_sit_under_that_device(tmp_path: Path) -> None:
+    frame = _dual_deploy(tmp_path)
+    code, out = run("fly", frame, *CATALOG, "--motor", "L1275-P", env={"COLUMNS": "200"})
+    sections = _sections(out)
+    drogue = next(text for title, text in sections.items() if title.startswith("Recovery: drogue"))
+    main = next(text for title, text in sections.items() if title.startswith("Recovery: main"))
+    assert "deployment-fast" not in drogue and "deployment-low" not in drogue, drogue
+    assert "deployment-fast: the main opens too fast" in main and "deployment-low: the main opens too low" in main
+    # the key the [[recovery]] entry uses, and no stronger motor for a main that opens at a height asked for
+    low = main[main.index("deployment-low"):]
+    assert "a higher altitude in its [[recovery]] entry" in low and "deploy_altitude" not in low
+    assert "stronger motor" not in low
+    assert code == 1
+
+
+def test_the_report_puts_each_device_s_findings_under_that_device(tmp_path: Path) -> None:
+    frame = _dual_deploy(tmp_path)
+    report = tmp_path / "dd.html"
+    code, out = run("fly", frame, *CATALOG, "--motor", "L1275-P", "--report", str(report))
+    html = report.read_text(encoding="utf-8")
+    drogue_at, main_at = html.index("Recovery: drogue"), html.index("Recovery: main")
+    assert main_at > drogue_at
+    assert "opens too fast" not in html[drogue_at:main_at] and "opens too low" not in html[drogue_at:main_at]
+    assert "the main opens too fast" in html[main_at:]
+
+
+def test_a_single_recovery_table_names_deploy_altitude(tmp_path: Path) -> None:
+    text = TOLLGATE.read_text(encoding="utf-8").replace('deploy = "apogee"', 'deploy = "altitude"\ndeploy_altitude = "5 m"')
+    path = tmp_path / "alt.toml"
+    path.write_text(text, encoding="utf-8")
+    code, out = run("fly", str(path), *CATALOG, "--motor", "L1275-P", "--json")
+    low = {w["code"]: w["message"] for w in json.loads(out)["warnings"]}.get("deployment-low", "")
+    assert "a higher deploy_altitude in the [recovery] table" in low and "stronger motor" not in low, low
