@@ -145,7 +145,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         inputs = [airframe_file] + ([motor_file] if motor_file else [])
         report = fly_report(frame, motor, summary, warnings, drawn, inputs=inputs,
                             command=_command_line(), units=_card_units(shown),
-                            warning_devices=devices + [None] * (len(warnings) - len(devices)))
+                            warning_devices=devices + [None] * (len(warnings) - len(devices)),
+                            ballast_kg=ballast_kg or 0.0)
         written.append(_write_report(report, report_path, overwrite, inputs))
     # status 1 when the flight fails or breaks a launch rule (README, "When something goes wrong"); notes do not count
     failed = summary["status"] != "ok" or any(code in RULE_CODES for code, _ in warnings)
@@ -163,7 +164,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     console = _report_console(csv_path)  # standard error when the CSV has standard output (--csv -)
     card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
                        units=_card_units(shown), wind_speed_m_s=frame.launch.surface_wind_m_s,
-                       warning_devices=devices + [None] * (len(warnings) - len(devices)))
+                       warning_devices=devices + [None] * (len(warnings) - len(devices)),
+                       empty_mass_kg=frame.mass_kg, ballast_kg=ballast_kg or 0.0)
     console.print(render.flight_card_table(card))
     for path in written:
         if path is not None:  # None: standard output

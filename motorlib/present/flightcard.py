@@ -33,7 +33,7 @@ from typing import Any, Final, Sequence
 
 from ..units import FOOT_M, OUNCE_KG, POUND_KG, STANDARD_GRAVITY_M_S2
 
-__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "opened_device_positions", "quantity"]
+__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "liftoff_masses", "opened_device_positions", "quantity"]
 
 _ORDER: Final = {"info": 0, "ok": 1, "caution": 2, "fail": 3}
 
@@ -144,7 +144,8 @@ def _seconds(value: Any) -> str:
 
 def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *, title: str, units: str = "si",
                 rules: Any = None, wind_speed_m_s: float = 0.0,
-                warning_devices: Sequence[int | None] | None = None) -> FlightCard:
+                warning_devices: Sequence[int | None] | None = None, empty_mass_kg: float | None = None,
+                ballast_kg: float = 0.0) -> FlightCard:
     """The flight card of one flight summary.
 
     Parameters
@@ -167,6 +168,9 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
         For each warning, the device it is about: its index among the devices that opened (the order of the
         summary's ``deployments``; :func:`opened_device_positions`), None for the whole flight; a device's
         warnings are shown under that device's event, the others under the first recovery event.
+    empty_mass_kg, ballast_kg : float
+        The airframe's empty mass and the ballast flown [kg]: with ballast, the pad phase gives both and the mass
+        without the motor, so that the rocket can be weighed against the card (the liftoff mass includes both).
     """
     from ..flight.rules import LaunchRules
 
@@ -188,7 +192,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     u = units
     burnout_s, apogee_s = _number(s.get("burnout_time_s")), _number(s.get("time_to_apogee_s"))
     powered_apogee = burnout_s is not None and apogee_s is not None and apogee_s < burnout_s
-    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", [])),
+    phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", []), _mass_figures(s, u, empty_mass_kg, ballast_kg)),
               _boost(s, u, by_phase.get("boost", []), burnout_figure=not powered_apogee),
               _coast(s, r, u, by_phase.get("coast", []), powered=powered_apogee)]
     later = _recovery(s, r, u, by_phase.get("recovery", []), by_device)
@@ -223,11 +227,37 @@ def _with_burnout(later: list[Phase], burnout_s: float, after_apogee_s: float, u
     return later[:at] + [event] + later[at:]
 
 
-def _pad(s: dict[str, Any], r: Any, u: str, wind: float, warnings: list[tuple[str, str]]) -> Phase:
+def liftoff_masses(liftoff_mass_kg: Any, empty_mass_kg: float | None, ballast_kg: float, units: str = "si"
+                   ) -> list[tuple[str, str]]:
+    """(label, value) of the masses a rocket is weighed against: with ballast, the empty mass, the ballast and the
+    mass without the motor, then the liftoff mass with the motor (what the flight lifts); the card and the
+    report's Rocket section show them alike.
+
+    >>> liftoff_masses(1.677, 0.31, 1.3)
+    [('empty mass', '310 g'), ('ballast', '1.30 kg'), ('without motor', '1.61 kg'), ('liftoff mass', '1.68 kg with motor')]
+    """
+    out = []
+    if ballast_kg and empty_mass_kg is not None:
+        out += [("empty mass", quantity(empty_mass_kg, "mass", units)), ("ballast", quantity(ballast_kg, "mass", units)),
+                ("without motor", quantity(empty_mass_kg + ballast_kg, "mass", units))]
+    out.append(("liftoff mass", quantity(liftoff_mass_kg, "mass", units) + ("" if liftoff_mass_kg is None
+                                                                             else " with motor")))
+    return out
+
+
+def _mass_figures(s: dict[str, Any], u: str, empty_mass_kg: float | None, ballast_kg: float) -> list[CardFigure]:
+    """The pad's masses: the liftoff mass, and with ballast what it is made of (:func:`liftoff_masses`)."""
+    if not ballast_kg:
+        return [CardFigure("liftoff mass", quantity(s.get("liftoff_mass_kg"), "mass", u))]  # (as it always read)
+    return [CardFigure(label, value) for label, value in liftoff_masses(s.get("liftoff_mass_kg"), empty_mass_kg,
+                                                                        ballast_kg, u)]
+
+
+def _pad(s: dict[str, Any], r: Any, u: str, wind: float, warnings: list[tuple[str, str]],
+         masses: list[CardFigure] | None = None) -> Phase:
     exit_speed = s.get("rail_exit_speed_m_s")
     need = r.rail_exit_needed_m_s(wind)
-    figures = [
-        CardFigure("liftoff mass", quantity(s.get("liftoff_mass_kg"), "mass", u)),
+    figures = (masses or [CardFigure("liftoff mass", quantity(s.get("liftoff_mass_kg"), "mass", u))]) + [
         CardFigure("thrust-to-weight", "-" if s.get("liftoff_thrust_to_weight") is None
                    else f"{float(s['liftoff_thrust_to_weight']):.1f} at liftoff",
                    _check(s.get("liftoff_thrust_to_weight"), r.min_liftoff_thrust_to_weight, True),

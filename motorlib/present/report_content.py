@@ -21,7 +21,7 @@ from typing import TYPE_CHECKING, Any, Sequence
 import numpy as np
 
 from ..matching.candidate import Candidate
-from .flightcard import FlightCard, flight_card, no_optimal_delay, quantity
+from .flightcard import FlightCard, flight_card, liftoff_masses, no_optimal_delay, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
 from .display import DisplayUnits
@@ -61,17 +61,25 @@ def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -
 # ----------------------------------------------------------------------------- fly
 def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
                trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
-               made_at: str | None = None, warning_devices: Sequence[int | None] | None = None) -> FlyReport:
+               made_at: str | None = None, warning_devices: Sequence[int | None] | None = None,
+               ballast_kg: float = 0.0) -> FlyReport:
     """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory); ``warning_devices``
-    places each device's warnings under that device on the card (:func:`~.flightcard.flight_card`)."""
+    places each device's warnings under that device on the card (:func:`~.flightcard.flight_card`); ``ballast_kg``
+    [kg], the ballast flown, is shown in the Rocket section with the masses it makes, as on the card."""
     u = units
     du = _display(u)
     launch = frame.launch
     card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.surface_wind_m_s,
-                                   warning_devices=warning_devices)
+                                   warning_devices=warning_devices, empty_mass_kg=frame.mass_kg,
+                                   ballast_kg=ballast_kg)
+    # the masses the rocket is weighed against: empty, ballast, without and with the motor (a safety officer
+    # weighing a ballasted rocket against "empty mass" alone would find it kilograms off)
+    masses = liftoff_masses(summary.get("liftoff_mass_kg"), frame.mass_kg, ballast_kg, u)
+    if not ballast_kg:
+        masses.insert(0, ("empty mass", quantity(frame.mass_kg, "mass", u)))
     rocket = Facts("Rocket", (
         ("name", frame.name),
-        ("empty mass", quantity(frame.mass_kg, "mass", u)),
+        *masses,
         ("diameter", du.given(frame.diameter_m, "size")),
         ("drag", _drag_words(frame, summary)),
         ("motor mount", "-" if frame.mount_diameter_m is None else f"{frame.mount_diameter_m * 1e3:.0f} mm"

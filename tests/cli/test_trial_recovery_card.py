@@ -135,3 +135,22 @@ def test_a_single_recovery_table_names_deploy_altitude(tmp_path: Path) -> None:
     code, out = run("fly", str(path), *CATALOG, "--motor", "L1275-P", "--json")
     low = {w["code"]: w["message"] for w in json.loads(out)["warnings"]}.get("deployment-low", "")
     assert "a higher deploy_altitude in the [recovery] table" in low and "stronger motor" not in low, low
+
+
+def test_the_report_and_the_card_show_the_ballast_and_the_liftoff_mass(tmp_path: Path) -> None:
+    # a safety officer weighs the rocket against the sheet: "empty mass 310 g" alone hid 1.3 kg of ballast
+    report = tmp_path / "heavy.html"
+    code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "F29-8", "--ballast", "1.3kg", "--report", str(report),
+                    env={"COLUMNS": "200"})
+    html = report.read_text(encoding="utf-8")
+    rocket = html[html.index(">Rocket<"):html.index(">Motor<")]
+    text = " ".join(re.sub(r"<[^>]+>", " ", rocket).split())
+    assert "empty mass 310 g" in text and "ballast 1.30 kg" in text, text
+    assert "without motor 1.61 kg" in text and "liftoff mass 1.68 kg" in text, text
+    pad = " ".join(out[out.index("Pad and rail"):out.index("Boost")].split())
+    assert "ballast 1.30 kg" in pad and "without motor 1.61 kg" in pad and "liftoff mass 1.68 kg" in pad, pad
+    # without ballast the card is as before, and the report still gives the liftoff mass with the motor
+    code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "F29-8", "--report", str(tmp_path / "light.html"))
+    assert "ballast" not in out[out.index("Pad and rail"):out.index("Boost")]
+    light = re.sub(r"<[^>]+>", " ", (tmp_path / "light.html").read_text(encoding="utf-8"))
+    assert "liftoff mass" in " ".join(light[light.index(" Rocket "):light.index(" Motor ")].split())
