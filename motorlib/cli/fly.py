@@ -84,6 +84,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     from ..files.airframe_toml import load_airframe
     from ..flight.integrate import simulate
     from ..flight.results import dense_trajectory
+    from ..flight.delays import offered_delays_s
     from ..flight.rulebook import device_rule_entries, flown_rule_inputs
     from ..flight.rules import RULE_CODES, LaunchRules
 
@@ -111,7 +112,10 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     summary["has_recovery"] = frame.recovery is not None and frame.recovery.device != "none"
     rules = LaunchRules(field_radius_m=None if field_radius is None else float(field_radius))
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=np.array([summary["chosen_delay_s"]], dtype=float),
-                               delays_known=motor.ejection != "unknown")
+                               delays_known=motor.ejection != "unknown",
+                               offered_delays_s=np.array([offered_delays_s(motor.delays_s, motor.delay_adjustable)
+                                                          or [np.nan]], dtype=float),
+                               delay_adjustable=motor.delay_adjustable)
     entries = device_rule_entries(inputs, rules, ceiling_m=ceiling_m)[0]
     warnings = [(code, message) for _, code, message, _ in entries]
     from ..present.flightcard import opened_device_positions

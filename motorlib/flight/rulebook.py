@@ -83,6 +83,11 @@ class RuleInputs:
     recovery_sequence : bool
         The devices are ``[[recovery]]`` entries (their height key is ``altitude``), not one ``[recovery]`` table
         (``deploy_altitude``).
+    shortest_delay_s, longest_delay_s : ndarray
+        The shortest and longest delay the motor offers, drilled ones included [s] (NaN: none, or not known), so
+        that the advice never asks for a delay the motor does not come with.
+    delay_adjustable : ndarray of bool
+        The motor's delay can be drilled shorter (its offered delays include the drilled ones).
     ejection_altitude_m : ndarray
         Height above the pad when the chosen delay fires [m] (NaN: not known, or the rocket lands first).
     deployment_altitude_m : ndarray, shape (n_flights, n_devices)
@@ -113,11 +118,14 @@ class RuleInputs:
     deployment_altitude_m: np.ndarray | tuple = ()
     device_triggers: tuple[str, ...] = ()
     recovery_sequence: bool = False
+    shortest_delay_s: np.ndarray | float = math.nan
+    longest_delay_s: np.ndarray | float = math.nan
+    delay_adjustable: np.ndarray | bool = False
 
     def __post_init__(self) -> None:
         n = np.size(self.status)
         kinds = {"status": np.int64, "uses_charge": bool, "devices_listed": bool, "delays_known": bool,
-                 "constant_drag": bool}
+                 "constant_drag": bool, "delay_adjustable": bool}
         for f in fields(self):
             if f.name in _PER_BOOK:
                 continue
@@ -149,7 +157,8 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
                       ejection_speed_m_s: np.ndarray | None = None, landing_descent_rate_m_s: np.ndarray | None = None,
                       landing_distance_m: np.ndarray | None = None, deployment_speed_m_s: np.ndarray | None = None,
                       delays_known: np.ndarray | bool = True, wind_speed_m_s: np.ndarray | None = None,
-                      ejection_altitude_m: np.ndarray | None = None) -> RuleInputs:
+                      ejection_altitude_m: np.ndarray | None = None, offered_delays_s: np.ndarray | None = None,
+                      delay_adjustable: np.ndarray | bool = False) -> RuleInputs:
     """The rule inputs of ``frame`` flown as ``results``: the flown figures unless an estimate is given.
 
     Parameters
@@ -171,6 +180,11 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
     wind_speed_m_s : ndarray, optional
         Each flight's surface wind [m/s at 10 m] where the flights were flown in different winds (sampled
         flights); default the frame's :attr:`~motorlib.flight.airframe.Launch.surface_wind_m_s` for every flight.
+    offered_delays_s : ndarray, shape (n_flights, n_delays), optional
+        Every delay each motor offers [s], NaN-padded (:func:`~motorlib.flight.delays.offered_delays_s`); default
+        the delays flown (``results.ejection_delay_s``), which are the offered ones unless one delay was asked for.
+    delay_adjustable : bool or ndarray of bool
+        Whether each motor's delay can be drilled shorter.
     """
     n = results.n_flights
     devices = frame.recovery_devices
@@ -184,6 +198,15 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
         ejection_altitude_m = np.where(hit.any(axis=1), results.ejection_altitude_m[np.arange(n), column], np.nan)
     if landing_distance_m is None:
         landing_distance_m = np.hypot(results.landing_east_m, results.landing_north_m)
+    offered = np.atleast_2d(np.asarray(results.ejection_delay_s if offered_delays_s is None else offered_delays_s,
+                                       dtype=float)).reshape(n, -1)
+    some = np.isfinite(offered).any(axis=1)
+    filled = np.where(np.isfinite(offered), offered, np.nan)
+    shortest = np.full(n, np.nan)
+    longest = np.full(n, np.nan)
+    if some.any():
+        shortest[some] = np.nanmin(filled[some], axis=1)
+        longest[some] = np.nanmax(filled[some], axis=1)
     k = len(devices)
     return RuleInputs(
         status=results.status, rail_exit_speed_m_s=results.rail_exit_speed_m_s,
@@ -202,6 +225,7 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
                               else np.asarray(deployment_speed_m_s, dtype=float)[:, :k]),
         opening_load_n=results.opening_load_n[:, :k], device_kinds=tuple(d.device for d in devices),
         device_triggers=tuple(d.deploy for d in devices), recovery_sequence=bool(frame.recovery_sequence),
+        shortest_delay_s=shortest, longest_delay_s=longest, delay_adjustable=delay_adjustable,
         ejection_altitude_m=ejection_altitude_m, deployment_altitude_m=results.deployment_altitude_m[:, :k])
 
 
@@ -402,7 +426,18 @@ def _what_to_do(x: RuleInputs, i: int, k: int | None = None) -> str:
         return f"open it sooner (a shorter delay in {table}) or fly a stronger motor"
     chosen, optimal = float(x.chosen_delay_s[i]), float(x.optimal_delay_s[i])
     if bool(x.uses_charge[i]) and math.isfinite(chosen) and math.isfinite(optimal) and optimal >= 0.0:
-        delay = (f"a shorter delay (the optimal one is {optimal:.1f} s)" if chosen > optimal
+        shorter = chosen > optimal
+        # the offered delay nearest the optimal one on that side: when it is the one flown, no offered delay
+        # gets nearer, and asking for one would ask for a delay the motor does not come with
+        end = float(x.shortest_delay_s[i] if shorter else x.longest_delay_s[i])
+        if math.isfinite(end) and (chosen <= end + 1e-9 if shorter else chosen >= end - 1e-9):
+            listed = "no delay, even drilled," if bool(x.delay_adjustable[i]) else "no listed delay"
+            if shorter:  # a stronger motor coasts longer, which lengthens the optimal delay
+                return (f"{listed} is short enough: the shortest is {end:g} s and the optimal one is {optimal:.1f} s; "
+                        "fly a stronger motor or one with a shorter delay")
+            return (f"{listed} is long enough: the longest is {end:g} s and the optimal one is {optimal:.1f} s; "
+                    "fly a motor with a longer delay")
+        delay = (f"a shorter delay (the optimal one is {optimal:.1f} s)" if shorter
                  else f"a longer delay (the optimal one is {optimal:.1f} s)")
         return f"choose {delay} or a stronger motor"
     if bool(x.uses_charge[i]):

@@ -195,7 +195,8 @@ def _rule_findings(frame: Airframe, rows: list[CatalogRow], results: FlightResul
     inputs = flown_rule_inputs(frame, results, chosen_delay_s=chosen, ejection_speed_m_s=speed, ejection_altitude_m=altitude,
                                landing_descent_rate_m_s=landing, landing_distance_m=distance,
                                deployment_speed_m_s=deploy,
-                               delays_known=np.array([r.ejection != "unknown" for r in rows], dtype=bool))
+                               delays_known=np.array([r.ejection != "unknown" for r in rows], dtype=bool),
+                               delay_adjustable=np.array([r.delay_adjustable for r in rows], dtype=bool))
     return rule_entries(inputs, s.rules, ceiling_m=s.ceiling_m)
 
 

@@ -154,3 +154,27 @@ def test_the_report_and_the_card_show_the_ballast_and_the_liftoff_mass(tmp_path:
     assert "ballast" not in out[out.index("Pad and rail"):out.index("Boost")]
     light = re.sub(r"<[^>]+>", " ", (tmp_path / "light.html").read_text(encoding="utf-8"))
     assert "liftoff mass" in " ".join(light[light.index(" Rocket "):light.index(" Motor ")].split())
+
+
+def _reasons(airframe: Path, designation: str) -> list[str]:
+    code, out = run("match", str(airframe), *CATALOG, "--allow-smaller-motors", "--show-rejected", "--json")
+    assert code == 0, out
+    return next(c["reasons"] for c in json.loads(out)["candidates"] if c["designation"] == designation)
+
+
+def test_no_impossible_delay_advice_when_the_shortest_listed_delay_is_flown() -> None:
+    # C6-3,5,7 at its shortest delay (3 s, not drillable) opens the parachute 3 m up; "choose a shorter delay
+    # (the optimal one is 1.1 s)" asked for a delay the motor does not come with
+    for airframe, motor, shortest in ((QUIBBLE, "C6-3,5,7", "3 s"), (AIRFRAMES / "fennelwick-24.toml", "1/4A2-2,3", "2 s")):
+        low = [r for r in _reasons(airframe, motor) if "opens too low" in r or "fires too low" in r]
+        assert low, (motor, _reasons(airframe, motor))
+        for reason in low:
+            assert "choose a shorter delay" not in reason, reason
+            assert f"no listed delay is short enough: the shortest is {shortest}" in reason, reason
+
+
+def test_delay_advice_still_points_to_a_listed_shorter_delay() -> None:
+    # fly at a longer listed delay than needed: a shorter listed one exists, so the advice stands
+    code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "D12-3,5,7", "--delay", "7", "--json")
+    messages = [w["message"] for w in json.loads(out)["warnings"] if w["code"] in ("deployment-low", "ejection-low")]
+    assert messages and all("choose a shorter delay" in m for m in messages), messages

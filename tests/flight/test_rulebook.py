@@ -273,3 +273,22 @@ def test_a_rocket_with_no_recovery_device_fails_no_recovery() -> None:
     assert "every rocket needs a recovery system" in message and "all its parts down safely" in message
     # a flight that failed is judged by its status only
     assert _codes(**bare, status=NO_LIFTOFF) == ["no-liftoff"]
+
+
+def test_low_opening_advice_never_asks_for_a_delay_the_motor_does_not_offer() -> None:
+    # new-user trial: C6-3,5,7 at its shortest delay was told to "choose a shorter delay (the optimal one is 1.1 s)"
+    low = {"optimal_delay_s": 1.1, "chosen_delay_s": 3.0, "deployment_altitude_m": [[3.0]],
+           "deployment_speed_m_s": [[19.4]]}
+
+    def message(**changes: Any) -> str:
+        found = evaluate_rules(RuleInputs(**{**GOOD, **low, **changes}))[0]
+        return next(f.message for f in found if f.code == "deployment-low")
+
+    assert "choose a shorter delay" in message()  # offered delays not known: the old advice
+    assert "choose a shorter delay" in message(shortest_delay_s=2.0, longest_delay_s=7.0)
+    fixed = message(shortest_delay_s=3.0, longest_delay_s=7.0)
+    assert "no listed delay is short enough: the shortest is 3 s" in fixed and "shorter delay (" not in fixed
+    drilled = message(shortest_delay_s=3.0, longest_delay_s=7.0, delay_adjustable=True)
+    assert "no delay, even drilled, is short enough" in drilled
+    late = message(optimal_delay_s=9.0, chosen_delay_s=7.0, shortest_delay_s=3.0, longest_delay_s=7.0)
+    assert "no listed delay is long enough: the longest is 7 s" in late and "stronger motor" not in late
