@@ -150,7 +150,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
         report = fly_report(frame, motor, summary, warnings, drawn, inputs=inputs,
                             command=_command_line(), units=_card_units(shown),
                             warning_devices=devices + [None] * (len(warnings) - len(devices)),
-                            ballast_kg=ballast_kg or 0.0)
+                            ballast_kg=ballast_kg or 0.0, charge_deploys=lead is None or lead.deploy == "ejection")
         written.append(_write_report(report, report_path, overwrite, inputs))
     # status 1 when the flight fails or breaks a launch rule (README, "When something goes wrong"); notes do not count
     failed = summary["status"] != "ok" or any(code in RULE_CODES for code, _ in warnings)
@@ -169,7 +169,8 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     card = flight_card(summary, warnings, title=f"{frame.name} with {motor.designation} ({motor.maker or 'maker unknown'})",
                        units=_card_units(shown), wind_speed_m_s=frame.launch.surface_wind_m_s,
                        warning_devices=devices + [None] * (len(warnings) - len(devices)),
-                       empty_mass_kg=frame.mass_kg, ballast_kg=ballast_kg or 0.0)
+                       empty_mass_kg=frame.mass_kg, ballast_kg=ballast_kg or 0.0,
+                       charge_deploys=lead is None or lead.deploy == "ejection")
     console.print(render.flight_card_table(card))
     for path in written:
         if path is not None:  # None: standard output

@@ -18,10 +18,24 @@ from typing import Final, Sequence
 
 import numpy as np
 
-__all__ = ["DEFAULT_DRILL_STEP_S", "delay_problem", "nearest_delay_column", "offered_delays_s", "offers_delay"]
+__all__ = ["DEFAULT_DRILL_STEP_S", "delay_problem", "nearest_delay_column", "no_optimal_delay", "offered_delays_s",
+           "offers_delay"]
 
 DEFAULT_DRILL_STEP_S: Final = 1.0  # drilling increment [s]; common practice, no published source
 _SAME_S: Final = 1e-9  # two delays closer than this [s] are one (drilled values are rounded to 1e-9 s)
+
+
+def no_optimal_delay(optimal_s: object) -> str | None:
+    """What to say of an optimal delay [s] below 0, which no motor has: apogee comes before burnout, and the
+    delay counts from burnout; None for a delay that exists (or none known). The flight card and the rule
+    book's messages say it alike.
+
+    >>> no_optimal_delay(-0.14), no_optimal_delay(3.0)
+    ('none: apogee 0.1 s before burnout', None)
+    """
+    if optimal_s is not None and float(optimal_s) < 0.0:  # type: ignore[arg-type]
+        return f"none: apogee {abs(float(optimal_s)):.1f} s before burnout"  # type: ignore[arg-type]
+    return None
 
 
 def offered_delays_s(listed_delays_s: Sequence[float], adjustable: bool,

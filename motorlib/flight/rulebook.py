@@ -26,6 +26,7 @@ from typing import TYPE_CHECKING, Callable, Final
 import numpy as np
 
 from ..motor.checks import Finding
+from .delays import no_optimal_delay
 from .results import MESSAGES, NO_LIFTOFF, OK, STUCK_ON_RAIL
 from .rules import NOTE_CODES, LaunchRules
 
@@ -388,8 +389,10 @@ def _rail(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None
 
 def _delay(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
     chosen, optimal = float(x.chosen_delay_s[i]), float(x.optimal_delay_s[i])
+    # below 0 no motor has it: say so as the flight card does (no_optimal_delay), not "optimal delay -0.1 s"
+    shown = no_optimal_delay(optimal) or f"{optimal:.1f} s"
     return (f"the {chosen:g} s delay fires {abs(chosen - optimal):.1f} s {'before' if chosen < optimal else 'after'} "
-            f"apogee (optimal delay {optimal:.1f} s; limit {r.max_delay_error_s:g} s)")
+            f"apogee (optimal delay {shown}; limit {r.max_delay_error_s:g} s)")
 
 
 def _past(value: float, limit: float, decimals: int) -> str:

@@ -31,9 +31,11 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import Any, Final, Sequence
 
+from ..flight.delays import no_optimal_delay
 from ..units import FOOT_M, OUNCE_KG, POUND_KG, STANDARD_GRAVITY_M_S2
 
-__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "liftoff_masses", "opened_device_positions", "quantity"]
+__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "liftoff_masses", "no_optimal_delay",
+           "opened_device_positions", "quantity"]
 
 _ORDER: Final = {"info": 0, "ok": 1, "caution": 2, "fail": 3}
 
@@ -57,6 +59,7 @@ _PHASE_OF_WARNING: Final = {
     "ejection-fast": "recovery", "no-deployment": "recovery", "ejection-low": "recovery", "deployment-low": "recovery",
     "deployment-fast": "recovery", "descent-fast": "landing", "deployment-while-burning": "recovery",
     "lands-outside-field": "landing", "constant-cd-past-mach": "boost", "no-recovery": "landing",
+    "live-charge-before-apogee": "coast",
 }
 _FAILING_WARNINGS: Final = {"unstable", "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete"}
 
@@ -145,7 +148,7 @@ def _seconds(value: Any) -> str:
 def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *, title: str, units: str = "si",
                 rules: Any = None, wind_speed_m_s: float = 0.0,
                 warning_devices: Sequence[int | None] | None = None, empty_mass_kg: float | None = None,
-                ballast_kg: float = 0.0) -> FlightCard:
+                ballast_kg: float = 0.0, charge_deploys: bool = True) -> FlightCard:
     """The flight card of one flight summary.
 
     Parameters
@@ -171,6 +174,10 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     empty_mass_kg, ballast_kg : float
         The airframe's empty mass and the ballast flown [kg]: with ballast, the pad phase gives both and the mass
         without the motor, so that the rocket can be weighed against the card (the liftoff mass includes both).
+    charge_deploys : bool
+        The motor's charge opens the recovery (or is all there is), so its delay is judged against the optimal
+        one (``ejection-far-from-apogee``); False where electronics open it and the charge is a backup, judged
+        only when it fires before apogee (``live-charge-before-apogee``).
     """
     from ..flight.rules import LaunchRules
 
@@ -194,7 +201,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
     powered_apogee = burnout_s is not None and apogee_s is not None and apogee_s < burnout_s
     phases = [_pad(s, r, u, wind_speed_m_s, by_phase.get("pad", []), _mass_figures(s, u, empty_mass_kg, ballast_kg)),
               _boost(s, u, by_phase.get("boost", []), burnout_figure=not powered_apogee),
-              _coast(s, r, u, by_phase.get("coast", []), powered=powered_apogee)]
+              _coast(s, r, u, by_phase.get("coast", []), powered=powered_apogee, charge_deploys=charge_deploys)]
     later = _recovery(s, r, u, by_phase.get("recovery", []), by_device)
     landing = _landing(s, r, u, by_phase.get("landing", []))
     if landing is not None:
@@ -315,7 +322,8 @@ def _boost(s: dict[str, Any], u: str, warnings: list[tuple[str, str]], *, burnou
     return Phase("boost", "Boost", figures, tuple(warnings))
 
 
-def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]], *, powered: bool = False) -> Phase:
+def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]], *, powered: bool = False,
+           charge_deploys: bool = True) -> Phase:
     """Apogee and the delay; ``powered``: the apogee comes before burnout, so there is no coast to claim."""
     downrange = s.get("apogee_downrange_m")  # along the wind: words, not signs ("246 m upwind")
     where = "-" if downrange is None else (
@@ -326,30 +334,30 @@ def _coast(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]], *
     figures = [
         CardFigure("apogee", f"{quantity(s.get('apogee_m'), 'length', u)} at {_seconds(s.get('time_to_apogee_s'))}"),
         CardFigure("apogee position", where),
-        _optimal_delay(s.get("optimal_delay_s")),
+        _optimal_delay(s.get("optimal_delay_s"), charge_deploys),
     ]
     chosen, optimal = s.get("chosen_delay_s"), s.get("optimal_delay_s")
     if chosen is not None and optimal is not None:
         off = float(chosen) - float(optimal)
-        figures.append(CardFigure("chosen delay", f"{float(chosen):g} s ({abs(off):.1f} s {'early' if off < 0 else 'late'})",
-                                  "ok" if abs(off) <= r.max_delay_error_s else "caution",
-                                  f"within {r.max_delay_error_s:g} s"))
+        text = f"{float(chosen):g} s ({abs(off):.1f} s {'early' if off < 0 else 'late'})"
+        if charge_deploys:  # ejection-far-from-apogee
+            figures.append(CardFigure("chosen delay", text, "ok" if abs(off) <= r.max_delay_error_s else "caution",
+                                      f"within {r.max_delay_error_s:g} s"))
+        else:  # electronics open the recovery: the charge is a backup, judged only before apogee (a note)
+            early = off < -r.max_delay_error_s  # live-charge-before-apogee
+            figures.append(CardFigure("chosen delay", text[:-1] + "; a backup: electronics open the recovery)",
+                                      "caution" if early else "info",
+                                      f"not over {r.max_delay_error_s:g} s early" if early else ""))
     title = "Apogee before burnout (no coast)" if powered else "Coast to apogee"
     return Phase("coast", title, tuple(figures), tuple(warnings), time_s=_number(s.get("time_to_apogee_s")))
 
 
-def no_optimal_delay(optimal_s: Any) -> str | None:
-    """What to show for an optimal delay [s] below 0, which no motor has: apogee comes before burnout, and the
-    delay counts from burnout; None for a delay that exists (or none known)."""
-    if optimal_s is not None and float(optimal_s) < 0.0:
-        return f"none: apogee {abs(float(optimal_s)):.1f} s before burnout"
-    return None
-
-
-def _optimal_delay(optimal_s: Any) -> CardFigure:
-    """The delay that fires at apogee, marked where there is none (:func:`no_optimal_delay`)."""
+def _optimal_delay(optimal_s: Any, charge_deploys: bool = True) -> CardFigure:
+    """The delay that fires at apogee, marked where there is none (:func:`no_optimal_delay`) and the charge is
+    what opens the recovery (with electronics it is only the backup's)."""
     none = no_optimal_delay(optimal_s)
-    return CardFigure("optimal delay", none, "caution") if none else CardFigure("optimal delay", _seconds(optimal_s))
+    return (CardFigure("optimal delay", none, "caution" if charge_deploys else "info") if none
+            else CardFigure("optimal delay", _seconds(optimal_s)))
 
 
 def opened_device_positions(device_indices: Sequence[int | None], opened: Sequence[bool]) -> list[int | None]:

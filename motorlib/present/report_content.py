@@ -62,7 +62,7 @@ def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -
 def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
                trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
                made_at: str | None = None, warning_devices: Sequence[int | None] | None = None,
-               ballast_kg: float = 0.0) -> FlyReport:
+               ballast_kg: float = 0.0, charge_deploys: bool = True) -> FlyReport:
     """The pre-flight report of one flight (``fly --json`` summary, its warnings and trajectory); ``warning_devices``
     places each device's warnings under that device on the card (:func:`~.flightcard.flight_card`); ``ballast_kg``
     [kg], the ballast flown, is shown in the Rocket section with the masses it makes, as on the card."""
@@ -71,7 +71,7 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
     launch = frame.launch
     card: FlightCard = flight_card(summary, warnings, title="", units=u, wind_speed_m_s=launch.surface_wind_m_s,
                                    warning_devices=warning_devices, empty_mass_kg=frame.mass_kg,
-                                   ballast_kg=ballast_kg)
+                                   ballast_kg=ballast_kg, charge_deploys=charge_deploys)
     # the masses the rocket is weighed against: empty, ballast, without and with the motor (a safety officer
     # weighing a ballasted rocket against "empty mass" alone would find it kilograms off)
     masses = liftoff_masses(summary.get("liftoff_mass_kg"), frame.mass_kg, ballast_kg, u)

@@ -178,3 +178,24 @@ def test_delay_advice_still_points_to_a_listed_shorter_delay() -> None:
     code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "D12-3,5,7", "--delay", "7", "--json")
     messages = [w["message"] for w in json.loads(out)["warnings"] if w["code"] in ("deployment-low", "ejection-low")]
     assert messages and all("choose a shorter delay" in m for m in messages), messages
+
+
+def test_the_delay_warning_says_there_is_no_optimal_delay_as_the_card_does() -> None:
+    # apogee comes 0.1 s before burnout: the card said "optimal delay none: ...", the warning "-0.1 s"
+    code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "G25-4,7,10", "--ballast", "1.3kg", "--json")
+    payload = json.loads(out)
+    delay = next(w["message"] for w in payload["warnings"] if w["code"] == "ejection-far-from-apogee")
+    assert "-0.1 s" not in delay and "optimal delay none: apogee 0.1 s before burnout" in delay, delay
+    assert payload["optimal_delay_s"] < 0  # the JSON figure stays
+
+
+def test_electronics_deployment_leaves_the_motor_delay_unmarked_when_no_rule_judges_it(tmp_path: Path) -> None:
+    # deploy = "apogee": the charge is a backup; the card marked "! chosen delay 4 s (4.1 s late)" with no warning
+    path = tmp_path / "apogee.toml"
+    path.write_text(QUIBBLE.read_text(encoding="utf-8").replace('deploy = "ejection"', 'deploy = "apogee"'),
+                    encoding="utf-8")
+    code, out = run("fly", str(path), *CATALOG, "--motor", "G25-4,7,10", "--ballast", "1.3kg", env={"COLUMNS": "200"})
+    line = next(line for line in out.splitlines() if "chosen delay" in line)
+    assert not line.lstrip().startswith("!"), line
+    code, out = run("fly", str(path), *CATALOG, "--motor", "G25-4,7,10", "--ballast", "1.3kg", "--json")
+    assert not [w for w in json.loads(out)["warnings"] if "delay" in w["code"] or w["code"].startswith("ejection")]

@@ -196,3 +196,18 @@ def test_a_motor_still_burning_at_touchdown_is_said_at_landing_not_before_apogee
     motor = next(f for f in landing.figures if f.label == "motor")
     assert motor.value == "still burning at touchdown (burnout due at 4.95 s, 1.6 s later)"
     assert motor.verdict == "caution"
+
+
+def test_with_electronics_the_motor_delay_is_a_backup_and_unmarked_unless_it_fires_before_apogee() -> None:
+    # new-user trial: deploy = "apogee" marked "! chosen delay 4 s (4.8 s late)" with no warning to explain it
+    from motorlib.flight.rules import LaunchRules
+
+    def delay_figure(chosen_s: float, optimal_s: float):
+        summary = _summary(chosen_delay_s=chosen_s, optimal_delay_s=optimal_s)
+        card = flight_card(summary, [], title="t", wind_speed_m_s=3.0, charge_deploys=False)
+        return next(f for f in card.phases[2].figures if f.label == "chosen delay")
+
+    late = delay_figure(12.96, 8.16)
+    assert late.verdict == "info" and "a backup: electronics open the recovery" in late.value
+    early = delay_figure(8.16 - LaunchRules().max_delay_error_s - 0.1, 8.16)  # live-charge-before-apogee (a note)
+    assert early.verdict == "caution"
