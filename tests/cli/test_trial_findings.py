@@ -250,7 +250,7 @@ def test_imperial_match_words_every_figure_in_imperial(tmp_path) -> None:
 def test_imperial_fly_report_words_every_figure_in_imperial(tmp_path) -> None:
     frame = _imperial(TOLLGATE, tmp_path, {'"9.5 kg"': '"20.94 lb"', '"102 mm"': '"4.02 in"', '"5.5 m"': '"18 ft"',
                                            '"24 degC"': '"75 degF"', '"970 hPa"': '"28.64 inHg"',
-                                           '"4 m/s"': '"13.1 ft/s"', '"2.4 m"': '"94.5 in"'})
+                                           '"4 m/s"': '"13.1 ft/s"', '"3 m"': '"118.1 in"'})
     report = tmp_path / "f.html"
     code, out = run("--units", "imperial", "fly", frame, "--catalog", str(SAMPLE_DIR), "--motor", "K1084-P",
                     "--report", str(report), env={"COLUMNS": "200"})
