@@ -457,6 +457,15 @@ def _low(height_m: float, speed_m_s: float, r: LaunchRules) -> str:
             f"{needed:.{decimals}f} m to open and slow the rocket ({r.deployment_opening_time_s:g} s at that speed)")
 
 
+def _descent_fix(x: RuleInputs, i: int, r: LaunchRules) -> str:
+    """What slows a fast landing: a larger device, unless a device opened too low to slow the rocket to its descent
+    rate before the ground (deployment-low), where opening it higher is the fix and a larger one may not help."""
+    heights, speeds = np.atleast_2d(x.deployment_altitude_m)[i], np.atleast_2d(x.deployment_speed_m_s)[i]
+    if heights.size and np.any(heights < speeds * r.deployment_opening_time_s):
+        return "the device opened too low to slow to its descent rate before landing: open it higher (see its own finding)"
+    return "use a larger recovery device"
+
+
 def _deployment_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
     kind = x.device_kinds[k]
     return (f"the {kind} opens too low: {_low(x.deployment_altitude_m[i, k], x.deployment_speed_m_s[i, k], r)}; "
@@ -493,7 +502,7 @@ _MESSAGES: dict[str, _Message] = {
     "ejection-low": _ejection_low,
     "lands-before-ejection": lambda x, i, k, r, c: f"lands before the {x.chosen_delay_s[i]:g} s delay fires",
     "descent-fast": lambda x, i, k, r, c: (f"descent too fast: {x.landing_descent_rate_m_s[i]:.1f} m/s under the device "
-                                           f"(limit {r.max_landing_speed_m_s:g} m/s): use a larger recovery device"),
+                                           f"(limit {r.max_landing_speed_m_s:g} m/s): " + _descent_fix(x, i, r)),
     "constant-cd-past-mach": lambda x, i, k, r, c: (f"the rocket reaches Mach {x.max_mach[i]:.2f} with a constant drag "
                                                     "coefficient, which ignores the transonic drag rise and overstates "
                                                     "apogee and the optimal delay; give a drag_table, or a [geometry] without "

@@ -245,7 +245,9 @@ def reason_text(code: str, message: str, c: Candidate | Mapping[str, Any], cond:
         return f"ejection too fast: {v} at the {get('chosen_delay_s'):g} s delay (limit {lim}): risk of damage or a torn canopy"
     if code == "descent-fast" and get("landing_speed_m_s") is not None:
         v, lim = u.beyond(get("landing_speed_m_s"), cond["max_landing_speed_m_s"], "speed", above=True)
-        return f"descent too fast: {v} under the device (limit {lim}): use a larger recovery device"
+        advice = re.search(r"\(limit [^)]*\): (.+)$", message)  # the rule book's advice, whatever the units
+        return (f"descent too fast: {v} under the device (limit {lim}): "
+                + (advice.group(1) if advice else "use a larger recovery device"))
     return message
 
 

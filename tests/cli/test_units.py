@@ -237,6 +237,20 @@ def test_flight_warnings_follow_the_units_and_never_round_a_failure_away() -> No
     assert reason_text("new-code", "library words", summary, limits, DisplayUnits()) == "library words"
 
 
+def test_a_fast_descent_keeps_the_library_advice_in_display_units() -> None:
+    # new-user trial: a main that opened too low was told "use a larger recovery device" on the card although the
+    # rule book's own message said to open it higher; the display wording kept only its own advice
+    from motorlib.flight.rules import LaunchRules
+
+    limits = LaunchRules().conditions(0.0)
+    message = ("descent too fast: 7.1 m/s under the device (limit 6.5 m/s): the device opened too low to slow to "
+               "its descent rate before landing: open it higher (see its own finding)")
+    shown = reason_text("descent-fast", message, {"landing_speed_m_s": 7.1}, limits, DisplayUnits("imperial"))
+    assert shown.startswith("descent too fast: 23.3 ft/s under the device (limit 21.3 ft/s): the device opened too low")
+    plain = reason_text("descent-fast", "", {"landing_speed_m_s": 7.1}, limits, DisplayUnits())
+    assert plain.endswith("use a larger recovery device")
+
+
 def test_fly_card_warnings_follow_the_units_switch() -> None:
     # 10 oz of ballast slows the rail exit below 15 m/s and the descent above 6.5 m/s: both warnings in ft/s
     code, out = run("--units", "imperial", "fly", QUIBBLE, "--motor", "F29-8", "--ballast", "10oz")

@@ -292,3 +292,16 @@ def test_low_opening_advice_never_asks_for_a_delay_the_motor_does_not_offer() ->
     assert "no delay, even drilled, is short enough" in drilled
     late = message(optimal_delay_s=9.0, chosen_delay_s=7.0, shortest_delay_s=3.0, longest_delay_s=7.0)
     assert "no listed delay is long enough: the longest is 7 s" in late and "stronger motor" not in late
+
+
+def test_a_fast_descent_after_a_low_opening_blames_the_opening_not_the_device_size() -> None:
+    # new-user trial: a main opening 5 m up lands at 7.1 m/s and was told "use a larger recovery device"; the same
+    # main opened at 300 m lands at 5.7 m/s: it opened too low to slow down, and its own finding says so
+    low = {"deployment_altitude_m": [[5.0]], "deployment_speed_m_s": [[20.0]], "landing_descent_rate_m_s": 7.1}
+    found = {f.code: f.message for f in evaluate_rules(RuleInputs(**{**GOOD, **low}))[0]}
+    assert set(found) == {"deployment-low", "descent-fast"}
+    assert "larger recovery device" not in found["descent-fast"]
+    assert "opened too low" in found["descent-fast"]
+    # opened high enough, a fast descent is the device's size
+    (message,) = [f.message for f in evaluate_rules(RuleInputs(**{**GOOD, "landing_descent_rate_m_s": 7.1}))[0]]
+    assert "larger recovery device" in message
