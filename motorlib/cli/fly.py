@@ -86,7 +86,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
     from ..flight.results import dense_trajectory
     from ..flight.delays import offered_delays_s
     from ..flight.rulebook import device_rule_entries, flown_rule_inputs
-    from ..flight.rules import RULE_CODES, LaunchRules
+    from ..flight.rules import LaunchRules, broken_rule_codes
 
     shown = display_units(units)
     delay_s = None if delay_s is None else float(delay_s)
@@ -153,7 +153,7 @@ def fly(airframe_file: str, motor_ref: str, catalog_dir: str | None, delay_s: fl
                             ballast_kg=ballast_kg or 0.0, charge_deploys=lead is None or lead.deploy == "ejection")
         written.append(_write_report(report, report_path, overwrite, inputs))
     # status 1 when the flight fails or breaks a launch rule (README, "When something goes wrong"); notes do not count
-    failed = summary["status"] != "ok" or any(code in RULE_CODES for code, _ in warnings)
+    failed = summary["status"] != "ok" or bool(broken_rule_codes(code for code, _ in warnings))
     if as_json:
         payload = {"airframe": frame.name, "motor": motor.designation, "maker": motor.maker, **summary,
                    "warnings": [{"code": c, "message": m} for c, m in warnings], "caution": _EPILOG}

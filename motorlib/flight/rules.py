@@ -49,9 +49,9 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Final
+from typing import Final, Iterable
 
-__all__ = ["LaunchRules", "NOTE_CODES", "RULE_CODES"]
+__all__ = ["LaunchRules", "NOTE_CODES", "RULE_CODES", "broken_rule_codes"]
 
 # Every code a broken rule can carry, and what it means (the legend of match's table keys on these).
 RULE_CODES: Final = {
@@ -74,6 +74,16 @@ RULE_CODES: Final = {
 }
 # Codes about the model rather than the flight: ``fly`` warns, ``match`` lists them as notes, not failures.
 NOTE_CODES: Final = frozenset({"constant-cd-past-mach", "live-charge-before-apogee"})
+
+
+def broken_rule_codes(codes: Iterable[str]) -> list[str]:
+    """The launch rules among warning ``codes`` (those in :data:`RULE_CODES`), each once, in their order: what makes
+    ``fly`` exit with status 1, and what the flight card's headline names.
+
+    >>> broken_rule_codes(["stability-unknown", "no-recovery", "descent-fast", "no-recovery"])
+    ['no-recovery', 'descent-fast']
+    """
+    return list(dict.fromkeys(code for code in codes if code in RULE_CODES))
 
 
 @dataclass(frozen=True)

@@ -5,7 +5,12 @@ airframe has a shape), **boost** (burnout, top speed, Mach, acceleration, dynami
 its time and place, the delay against the optimal one), **each recovery event** (ejection or deployment, its
 height and speed), **landing** (descent rate, ground speed, distance and bearing from the pad). The descent rate is marked as the
 rule book judges it: against its limit under a device that opened (``descent-fast``); a ballistic fall (nothing
-opens) is marked with the finding that says why (``no-recovery`` in this phase, or a recovery finding).
+opens) is marked with the finding that says why (a recovery finding). A rocket with no recovery device at all has
+its recovery phase marked as failing, with ``no-recovery`` under it and no figure ticked (its charge opens nothing).
+
+The headline is the simulation's message ("flight completed") only when no launch rule is broken; a flight that
+breaks one (a warning code in :data:`~motorlib.flight.rules.RULE_CODES`, what makes ``fly`` exit with status 1)
+is headlined as breaking N launch rules, named, and not to be flown as is, and its card is marked as failing.
 
 A rocket that tops out while its motor still burns (a weak motor on a heavy airframe, a long burn) has no coast:
 its apogee phase says "Apogee before burnout (no coast)", and burnout is an event of its own, told where it
@@ -58,10 +63,10 @@ _PHASE_OF_WARNING: Final = {
     "no-ejection-charge": "recovery", "lands-before-ejection": "recovery",
     "ejection-fast": "recovery", "no-deployment": "recovery", "ejection-low": "recovery", "deployment-low": "recovery",
     "deployment-fast": "recovery", "descent-fast": "landing", "deployment-while-burning": "recovery",
-    "lands-outside-field": "landing", "constant-cd-past-mach": "boost", "no-recovery": "landing",
+    "lands-outside-field": "landing", "constant-cd-past-mach": "boost", "no-recovery": "recovery",
     "live-charge-before-apogee": "coast",
 }
-_FAILING_WARNINGS: Final = {"unstable", "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete"}
+_FAILING_WARNINGS: Final = {"unstable", "no-liftoff", "stuck-on-rail", "not-flown", "flight-incomplete", "no-recovery"}
 
 
 def quantity(value: Any, kind: str, units: str = "si") -> str:
@@ -112,20 +117,35 @@ class Phase:
 
 @dataclass(frozen=True)
 class FlightCard:
-    """The whole card: a title, the result line, the phases in flight order and warnings of no one phase."""
+    """The whole card: a title, the result line (the simulation's message), the phases in flight order, warnings of
+    no one phase and the launch rules the flight breaks (:func:`~motorlib.flight.rules.broken_rule_codes`)."""
 
     title: str
     result: str
     completed: bool
     phases: tuple[Phase, ...]
     general_warnings: tuple[tuple[str, str], ...] = ()
+    broken_rules: tuple[str, ...] = ()
 
     @property
     def verdict(self) -> str:
         marks = [p.verdict for p in self.phases] + ["caution" for _ in self.general_warnings]
-        if not self.completed:
+        if not self.completed or self.broken_rules:
             marks.append("fail")
         return max(marks, key=_ORDER.__getitem__, default="info")
+
+    @property
+    def headline(self) -> str:
+        """The result line, unless a completed flight breaks launch rules: then it says so, and not to fly it as is.
+
+        >>> FlightCard("t", "flight completed", True, (), broken_rules=("no-recovery",)).headline
+        'flight as predicted breaks 1 launch rule (no-recovery): do not fly it as is; see the warnings'
+        """
+        if not self.completed or not self.broken_rules:
+            return self.result
+        n = len(self.broken_rules)
+        return (f"flight as predicted breaks {n} launch rule{'s' if n != 1 else ''} ({', '.join(self.broken_rules)}): "
+                "do not fly it as is; see the warnings")
 
 
 def _check(value: Any, limit: float, above: bool) -> str:
@@ -179,9 +199,10 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
         one (``ejection-far-from-apogee``); False where electronics open it and the charge is a backup, judged
         only when it fires before apogee (``live-charge-before-apogee``).
     """
-    from ..flight.rules import LaunchRules
+    from ..flight.rules import LaunchRules, broken_rule_codes
 
     r = rules or LaunchRules()
+    broken = tuple(broken_rule_codes(code for code, _ in warnings))
     s = summary
     by_phase: dict[str, list[tuple[str, str]]] = {}
     general: list[tuple[str, str]] = []
@@ -195,7 +216,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
         (by_phase.setdefault(phase, []) if phase else general).append((code, message))
     completed = s.get("status") == "ok"
     if not completed or s.get("apogee_m") is None:
-        return FlightCard(title, str(s.get("message", "flight failed")), False, (), tuple(general))
+        return FlightCard(title, str(s.get("message", "flight failed")), False, (), tuple(general), broken)
     u = units
     burnout_s, apogee_s = _number(s.get("burnout_time_s")), _number(s.get("time_to_apogee_s"))
     powered_apogee = burnout_s is not None and apogee_s is not None and apogee_s < burnout_s
@@ -210,7 +231,7 @@ def flight_card(summary: dict[str, Any], warnings: Sequence[tuple[str, str]], *,
         general += by_phase["landing"]
     if powered_apogee:
         later = _with_burnout(later, float(burnout_s), float(burnout_s) - float(apogee_s), u)  # type: ignore[arg-type]
-    return FlightCard(title, str(s["message"]), True, tuple(phases + later), tuple(general))
+    return FlightCard(title, str(s["message"]), True, tuple(phases + later), tuple(general), broken)
 
 
 def _number(value: Any) -> float | None:
@@ -425,8 +446,12 @@ def _recovery(s: dict[str, Any], r: Any, u: str, warnings: list[tuple[str, str]]
     if not events:
         return [Phase("recovery", "Recovery", (), tuple(warnings))]
     phases = []
+    no_device = s.get("has_recovery") is False and not s.get("deployments")
     for k, (name, figures, time_s) in enumerate(events):
         own = (list(warnings) if k == 0 else []) + by_device.get(k, [])
+        if no_device:  # a charge that opens nothing recovers nothing: no figure of it earns a tick
+            figures = [replace(f, verdict="info") if f.verdict == "ok" else f for f in figures]
+            name += " (no recovery device)"
         phases.append(Phase("recovery", f"Recovery: {name}", tuple(figures), tuple(own), time_s=time_s))
     return phases
 
@@ -453,12 +478,12 @@ def _nothing_opened(s: dict[str, Any]) -> bool:
 
 def _descent_rate_figure(s: dict[str, Any], rate: Any, r: Any, u: str) -> CardFigure:
     """The descent rate, marked as the rule book judges it: ``descent-fast`` judges the rate under an opened device;
-    a ballistic fall (nothing opens) is marked with the finding that says why (``no-recovery``, ``no-deployment``,
-    ``lands-before-ejection``, ``no-ejection-charge``, ``delays-unknown``), never with a mark of its own."""
+    a ballistic fall (nothing opens) is marked with the finding that says why (``no-recovery`` in the recovery phase,
+    ``no-deployment``, ``lands-before-ejection``, ``no-ejection-charge``, ``delays-unknown``), never with a mark of its own."""
     limit = f"<= {quantity(r.max_landing_speed_m_s, 'speed', u)}"
     if rate is not None and _nothing_opened(s):
-        return CardFigure("descent rate", f"{quantity(rate, 'speed', u)} (ballistic: no recovery device opens)",
-                          "caution", limit)
+        why = "no recovery device" if s.get("has_recovery") is False else "no recovery device opens"
+        return CardFigure("descent rate", f"{quantity(rate, 'speed', u)} (ballistic: {why})", "caution", limit)
     return CardFigure("descent rate", quantity(rate, "speed", u), _check(rate, r.max_landing_speed_m_s, False), limit)
 
 

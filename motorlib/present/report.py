@@ -283,7 +283,8 @@ def _card(card: FlightCard) -> str:
                       f'</h3><dl>{figures}</dl>{f"<ul class=warn>{warns}</ul>" if warns else ""}</div>')
     looks = sum(p.verdict in ("caution", "fail") for p in card.phases)
     tally = f"; {looks} phase{'s' if looks != 1 else ''} to look at" if looks else "; every checked figure within its rule"
-    result = f'<p class="result">{_mark(card.verdict)} {escape(card.result + (tally if card.completed else ""))}</p>'
+    tallied = card.completed and not card.broken_rules  # a broken launch rule is the headline, not a tally
+    result = f'<p class="result">{_mark(card.verdict)} {escape(card.headline + (tally if tallied else ""))}</p>'
     return (f'<section><h2>Flight card: phase by phase</h2>{result}<div class="card">{"".join(phases)}</div>'
             "</section>")
 

@@ -159,7 +159,7 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
         "Times count from motor ignition; altitudes are above the pad.",
     ))
     return FlyReport(
-        title=f"{frame.name} with {motor.designation}", subtitle=f"Pre-flight prediction: {summary.get('message', '')}",
+        title=f"{frame.name} with {motor.designation}", subtitle=f"Pre-flight prediction: {card.headline}",
         rocket=rocket, motor=motor_facts, delay=delay, conditions=conditions, card=card,
         thrust_chart=thrust_chart(motor), trace=trace_for(inputs, command, made_at), flight_chart=flight,
         side_chart=side, stability=stability, recovery=recovery, landing=landing,

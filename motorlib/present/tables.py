@@ -320,12 +320,17 @@ def flight_card_table(card) -> Group:
 
     styles = {"ok": "bold blue", "caution": "bold yellow", "fail": "bold red", "info": "dim"}
     # title and verdict side by side: a long title wraps in its own column, the verdict never splits
-    header = Table.grid(padding=(0, 2))
-    header.add_column()
-    header.add_column(no_wrap=True)
-    header.add_row(Text(card.title, style="bold"),
-                   Text.assemble((VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.result))
-    parts: list[object] = [header]
+    verdict = Text.assemble((VERDICT_MARKS[card.verdict][0], styles[card.verdict]), " ", card.headline)
+    parts: list[object]
+    if card.headline != card.result:  # a broken launch rule: a sentence of its own, under the title, wrapped
+        verdict.stylize(styles[card.verdict], 2)
+        parts = [Text(card.title, style="bold"), verdict]
+    else:
+        header = Table.grid(padding=(0, 2))
+        header.add_column()
+        header.add_column(no_wrap=True)
+        header.add_row(Text(card.title, style="bold"), verdict)
+        parts = [header]
     label_width = max((len(f.label) + 3 for p in card.phases for f in p.figures), default=10)
     for phase in card.phases:
         parts.append(Text.assemble((VERDICT_MARKS[phase.verdict][0], styles[phase.verdict]), " ",

@@ -63,7 +63,9 @@ def test_a_broken_rule_marks_its_figure_and_phase_and_carries_the_warning() -> N
     rail = next(f for f in pad.figures if f.label == "rail exit")
     assert rail.verdict == "caution" and rail.rule == ">= 15.0 m/s"
     assert pad.verdict == "caution" and [code for code, _ in pad.warnings] == ["rail-exit-slow"]
-    assert card.verdict == "caution"
+    # a broken launch rule (fly exits 1) fails the card, and its headline says not to fly it as is
+    assert card.verdict == "fail" and card.broken_rules == ("rail-exit-slow",)
+    assert card.headline.startswith("flight as predicted breaks 1 launch rule (rail-exit-slow)")
 
 
 def test_the_wind_raises_the_rail_exit_rule() -> None:
@@ -74,7 +76,10 @@ def test_the_wind_raises_the_rail_exit_rule() -> None:
 
 def test_no_recovery_data_leaves_the_recovery_and_landing_phases_out() -> None:
     summary = _summary(ejections=[], chosen_delay_s=None, deploy_time_s=None, landing_speed_m_s=None, has_recovery=False)
-    assert [p.key for p in _card(summary).phases] == ["pad", "boost", "coast"]
+    phases = _card(summary).phases
+    # the no-recovery finding is the recovery phase's (a phase of its own, failing), not the landing's
+    assert [p.key for p in phases] == ["pad", "boost", "coast", "recovery"]
+    assert phases[-1].verdict == "fail" and [code for code, _ in phases[-1].warnings] == ["no-recovery"]
 
 
 def test_a_failed_flight_is_one_line_with_a_cross() -> None:

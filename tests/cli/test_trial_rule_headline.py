@@ -1,0 +1,64 @@
+"""Defects a second new-user trial met: each test failed before its fix.
+
+A flight that breaks a launch rule (``fly`` exits 1) must not be headlined "flight completed" on the card or in the
+report; a recovery phase with no device must not be ticked.
+"""
+
+from __future__ import annotations
+
+import html
+import re
+from pathlib import Path
+
+from .conftest import AIRFRAMES, SAMPLE_DIR, run
+
+QUIBBLE = AIRFRAMES / "quibble-41.toml"
+CATALOG = ("--catalog", str(SAMPLE_DIR))
+
+
+def _airframe(tmp_path: Path, recovery: str | None, name: str = "norec.toml", **replace: str) -> str:
+    """quibble-41 with its [recovery] table replaced by ``recovery`` (None: removed), and text replaced."""
+    text = QUIBBLE.read_text(encoding="utf-8")
+    table = re.search(r"\[recovery\]\n(?:[^\[\n][^\n]*\n)*", text)
+    assert table is not None
+    text = text.replace(table.group(0), recovery or "")
+    for old, new in replace.items():
+        text = text.replace(old, new)
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return str(path)
+
+
+def _headline(out: str) -> str:
+    return " ".join(out.split("✓ Pad")[0].split("! Pad")[0].split())
+
+
+def test_a_rule_breaking_flight_is_not_headlined_completed(tmp_path: Path) -> None:
+    frame = _airframe(tmp_path, None)
+    report = tmp_path / "x.html"
+    code, out = run("fly", frame, *CATALOG, "--motor", "F29-8", "--report", str(report))
+    assert code == 1
+    head = _headline(out)
+    assert "flight completed" not in head, head
+    assert "breaks 1 launch rule (no-recovery): do not fly it as is; see the warnings" in head, head
+    assert head.startswith("Quibble 41 (demo) with F29-8"), head  # the title is not squeezed out
+    page = html.unescape(report.read_text(encoding="utf-8"))
+    subtitle = re.search(r'<div class="subtitle">(.*?)</div>', page).group(1)
+    result = re.sub(r"<[^>]+>", "", re.search(r'<p class="result">(.*?)</p>', page).group(1))
+    for text in (subtitle, result):
+        assert "flight completed" not in text and "to look at" not in text, text
+        assert "breaks 1 launch rule" in text and "do not fly" in text, text
+
+
+def test_a_recovery_phase_with_no_device_fails_without_ticks(tmp_path: Path) -> None:
+    code, out = run("fly", _airframe(tmp_path, None), *CATALOG, "--motor", "F29-8")
+    recovery = out.split("Recovery")[1].split("Landing")[0]
+    line = out.split("Recovery")[0].splitlines()[-1]
+    assert line.strip().startswith("✗"), out  # the phase is marked as failing
+    assert "✓" not in recovery, recovery
+    assert "no-recovery" in recovery, recovery
+
+
+def test_a_clean_flight_keeps_its_headline(tmp_path: Path) -> None:
+    code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "F29-8")
+    assert code == 0 and "flight completed" in _headline(out) and "launch rule" not in out
