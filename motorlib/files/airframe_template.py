@@ -32,8 +32,9 @@ elevation = "{elevation}"       # the pad above sea level (air density)
 # pressure = "1013 hPa"         # station pressure at the pad; default: the standard atmosphere
 wind_speed = "{wind}"           # at 10 m above the pad; stronger winds need a faster rail exit
 
-[recovery]                      # leave this section out for a rocket without recovery
-device = "parachute"            # parachute | streamer | none
+[recovery]                      # every rocket needs one: the rule no-recovery fails a rocket without it
+device = "parachute"            # parachute | streamer | drogue | main | none (none fails no-recovery);
+                                # a drogue, then a main: [[recovery]] entries instead (data_schema/AIRFRAME.md)
 deploy = "ejection"             # ejection (the motor's delay) | apogee | altitude (electronics)
 drag_coefficient = 0.8          # Cd of the device on the area below (about 0.8 for a round canopy)
 diameter = "{chute}"            # canopy diameter; or for a streamer: area = "0.05 m2"

@@ -62,3 +62,16 @@ def test_a_recovery_phase_with_no_device_fails_without_ticks(tmp_path: Path) -> 
 def test_a_clean_flight_keeps_its_headline(tmp_path: Path) -> None:
     code, out = run("fly", str(QUIBBLE), *CATALOG, "--motor", "F29-8")
     assert code == 0 and "flight completed" in _headline(out) and "launch rule" not in out
+
+
+def test_the_template_says_every_rocket_needs_recovery_and_lists_every_device_kind() -> None:
+    from motorlib.files.airframe_template import airframe_template
+    from motorlib.flight.airframe import RECOVERY_DEVICES
+
+    for system in ("metric", "imperial"):
+        text = airframe_template(system)
+        table = text[text.index("[recovery]"):text.index("diameter", text.index("[recovery]"))]
+        assert "leave this section out" not in table, table  # it invited the setup that fails every motor
+        assert "every rocket needs" in table and "no-recovery" in table, table
+        device_line = next(line for line in table.splitlines() if line.startswith("device ="))
+        assert all(kind in device_line for kind in RECOVERY_DEVICES), device_line
