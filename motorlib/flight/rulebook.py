@@ -50,7 +50,7 @@ FLIGHT_CODES: Final = (
 
 
 # RuleInputs fields that describe the airframe, the same for every flight (not arrays of shape (n_flights,))
-_PER_BOOK: Final = frozenset({"device_kinds", "device_triggers", "recovery_sequence"})
+_PER_BOOK: Final = frozenset({"device_kinds", "device_triggers", "recovery_sequence", "recovery_none"})
 
 
 @dataclass(frozen=True, eq=False)
@@ -84,6 +84,9 @@ class RuleInputs:
     recovery_sequence : bool
         The devices are ``[[recovery]]`` entries (their height key is ``altitude``), not one ``[recovery]`` table
         (``deploy_altitude``).
+    recovery_none : bool
+        The airframe has a ``[recovery]`` table that says ``device = "none"``, so the advice of ``no-recovery`` is to
+        change it, not to add one.
     shortest_delay_s, longest_delay_s : ndarray
         The shortest and longest delay the motor offers, drilled ones included [s] (NaN: none, or not known), so
         that the advice never asks for a delay the motor does not come with.
@@ -119,6 +122,7 @@ class RuleInputs:
     deployment_altitude_m: np.ndarray | tuple = ()
     device_triggers: tuple[str, ...] = ()
     recovery_sequence: bool = False
+    recovery_none: bool = False
     shortest_delay_s: np.ndarray | float = math.nan
     longest_delay_s: np.ndarray | float = math.nan
     delay_adjustable: np.ndarray | bool = False
@@ -142,6 +146,7 @@ class RuleInputs:
         object.__setattr__(self, "device_kinds", tuple(str(k) for k in self.device_kinds))
         object.__setattr__(self, "device_triggers", tuple(str(k) for k in self.device_triggers))
         object.__setattr__(self, "recovery_sequence", bool(self.recovery_sequence))
+        object.__setattr__(self, "recovery_none", bool(self.recovery_none))
 
     @property
     def n_flights(self) -> int:
@@ -226,6 +231,7 @@ def flown_rule_inputs(frame: Airframe, results: FlightResults, *, chosen_delay_s
                               else np.asarray(deployment_speed_m_s, dtype=float)[:, :k]),
         opening_load_n=results.opening_load_n[:, :k], device_kinds=tuple(d.device for d in devices),
         device_triggers=tuple(d.deploy for d in devices), recovery_sequence=bool(frame.recovery_sequence),
+        recovery_none=not frame.recovery_sequence and frame.recovery is not None and frame.recovery.device == "none",
         shortest_delay_s=shortest, longest_delay_s=longest, delay_adjustable=delay_adjustable,
         ejection_altitude_m=ejection_altitude_m, deployment_altitude_m=results.deployment_altitude_m[:, :k])
 
@@ -480,8 +486,14 @@ def _ejection_low(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: floa
 # The model and high-power rocket safety codes each require a recovery system that returns every part of the
 # rocket safely (their "Recovery System" rules; from memory: not in tests/reference/check_values.md).
 _NO_RECOVERY: Final = ("no recovery device: every rocket needs a recovery system that brings all its parts down "
-                       "safely (the model and high-power rocket safety codes require one); add a [recovery] table to "
-                       "the airframe file")
+                       "safely (the model and high-power rocket safety codes require one); ")
+
+
+def _no_recovery(x: RuleInputs, i: int, k: int, r: LaunchRules, ceiling_m: float | None) -> str:
+    """What to do: change the ``[recovery]`` table that says ``device = "none"``, or add one where there is none."""
+    if x.recovery_none:
+        return _NO_RECOVERY + "set a device kind other than none in [recovery] (or add [[recovery]] entries)"
+    return _NO_RECOVERY + "add a [recovery] table to the airframe file"
 
 _Message = Callable[[RuleInputs, int, int, LaunchRules, "float | None"], str]
 _MESSAGES: dict[str, _Message] = {
@@ -515,7 +527,7 @@ _MESSAGES: dict[str, _Message] = {
                                                   f"the pad (field radius {r.field_radius_m:,.0f} m)"),
     "no-deployment": lambda x, i, k, r, c: ("nothing deploys recovery on this flight (the device never opens): it would "
                                             "fall ballistically"),
-    "no-recovery": lambda x, i, k, r, c: _NO_RECOVERY,
+    "no-recovery": _no_recovery,
     "live-charge-before-apogee": lambda x, i, k, r, c: (
         f"electronics deploy recovery, but the motor's {float(x.chosen_delay_s[i]):g} s delay would fire its charge "
         f"{float(x.optimal_delay_s[i] - x.chosen_delay_s[i]):.1f} s before apogee, at speed: remove the charge or plug "

@@ -75,3 +75,16 @@ def test_the_template_says_every_rocket_needs_recovery_and_lists_every_device_ki
         assert "every rocket needs" in table and "no-recovery" in table, table
         device_line = next(line for line in table.splitlines() if line.startswith("device ="))
         assert all(kind in device_line for kind in RECOVERY_DEVICES), device_line
+
+
+def test_the_no_recovery_advice_fits_a_recovery_table_with_device_none(tmp_path: Path) -> None:
+    import json
+
+    advice = {}
+    for how, table in (("removed", None), ("none", '[recovery]\ndevice = "none"\n')):
+        code, out = run("fly", _airframe(tmp_path, table), *CATALOG, "--motor", "F29-8", "--json")
+        advice[how] = {w["code"]: w["message"] for w in json.loads(out)["warnings"]}["no-recovery"]
+    # the table exists: asking to add one sends the user looking for what is already there
+    assert "add a [recovery] table" not in advice["none"], advice["none"]
+    assert "set a device kind other than none in [recovery] (or add [[recovery]] entries)" in advice["none"]
+    assert "add a [recovery] table to the airframe file" in advice["removed"], advice["removed"]
