@@ -39,7 +39,7 @@ from typing import Any, Final, Sequence
 from ..flight.delays import no_optimal_delay
 from ..units import FOOT_M, OUNCE_KG, POUND_KG, STANDARD_GRAVITY_M_S2
 
-__all__ = ["CardFigure", "FlightCard", "Phase", "flight_card", "liftoff_masses", "no_optimal_delay",
+__all__ = ["CardFigure", "FlightCard", "Phase", "delay_pair", "flight_card", "liftoff_masses", "no_optimal_delay",
            "opened_device_positions", "quantity"]
 
 _ORDER: Final = {"info": 0, "ok": 1, "caution": 2, "fail": 3}
@@ -379,6 +379,17 @@ def _optimal_delay(optimal_s: Any, charge_deploys: bool = True) -> CardFigure:
     none = no_optimal_delay(optimal_s)
     return (CardFigure("optimal delay", none, "caution" if charge_deploys else "info") if none
             else CardFigure("optimal delay", _seconds(optimal_s)))
+
+
+def delay_pair(chosen_s: float, optimal_s: float, drilled: str = "") -> str:
+    """A ranking's delay cell, chosen/optimal [s]: an optimal delay below 0 (apogee before burnout) reads "none",
+    as the reason says it (:func:`no_optimal_delay`); ``drilled`` marks a drilled delay.
+
+    >>> delay_pair(4.0, -1.2), delay_pair(6.0, 6.54, "d")
+    ('4/none', '6d/6.5')
+    """
+    optimal = "none" if no_optimal_delay(optimal_s) else f"{float(optimal_s):.1f}"
+    return f"{float(chosen_s):g}{drilled}/{optimal}"
 
 
 def opened_device_positions(device_indices: Sequence[int | None], opened: Sequence[bool]) -> list[int | None]:

@@ -21,7 +21,7 @@ from typing import TYPE_CHECKING, Any, Sequence
 import numpy as np
 
 from ..matching.candidate import Candidate
-from .flightcard import FlightCard, flight_card, liftoff_masses, no_optimal_delay, quantity
+from .flightcard import FlightCard, delay_pair, flight_card, liftoff_masses, no_optimal_delay, quantity
 from .report import (Facts, FlyReport, MatchReport, Notes, ReduceReport, TableBlock, Trace,
                      file_sha256)
 from .display import DisplayUnits
@@ -281,8 +281,8 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
     names = motor_names([(cand.designation, cand.maker) for cand in fitting], False,
                         among=[(cand.designation, cand.maker) for cand in result.candidates])
     for rank, (cand, name) in enumerate(zip(fitting, names), 1):
-        delay = "-" if cand.chosen_delay_s is None else (
-            f"{cand.chosen_delay_s:g}{' drilled' if cand.delay_adjusted else ''}/{cand.optimal_delay_s:.1f}")
+        delay = "-" if cand.chosen_delay_s is None else delay_pair(cand.chosen_delay_s, cand.optimal_delay_s,
+                                                                    " drilled" if cand.delay_adjusted else "")
         rows.append((str(rank), name, quantity(cand.apogee_m, "length", u),
                      quantity(cand.rail_exit_speed_m_s, "speed", u),
                      "-" if cand.liftoff_thrust_to_weight is None else f"{cand.liftoff_thrust_to_weight:.1f}",
@@ -304,7 +304,8 @@ def match_report(result: MatchResult, *, inputs: Sequence[str], command: str, ca
         f"Ranking: {match_count(result)}",
         ("#", "motor", "apogee", "rail exit", "T/W", "delay s", speed.report_name, "verdict and reasons"),
         tuple(rows), (True, False, True, True, True, True, True, False), tuple(marks),
-        f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened. "
+        f"Delay: chosen / optimal, 'drilled' when an adjustable delay is shortened; optimal 'none': apogee "
+        f"before burnout. "
         f"{speed.report_name.capitalize()}{speed.legend[len(speed.table_name):]}. "
         + (f"The next {left} motor(s) that fit, ranked below these, are left out to keep the report to two pages "
            "(motorlib match lists them all, with --csv or --json in full). " if left else "")

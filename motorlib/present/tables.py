@@ -28,6 +28,7 @@ from rich.text import Text
 from ..motor.classes import class_impulse_text, impulse_class_for
 from ..motor.listing import CatalogRow
 from .display import DisplayUnits
+from .flightcard import delay_pair
 from ..matching.candidate import Candidate
 from ..matching.verdicts import VERDICTS
 from .messages import (assumption_texts, deployment_column, deployment_rule, match_count, motor_names, note_text,
@@ -545,8 +546,8 @@ def match_table(result: MatchResult, units: DisplayUnits = _METRIC, top: int | N
         if c.apogee_m is None:
             cells = ["-"] * 5
         else:
-            delay = "-" if c.chosen_delay_s is None else (
-                f"{c.chosen_delay_s:g}{'d' if c.delay_adjusted else ''}/{c.optimal_delay_s:.1f}")
+            delay = "-" if c.chosen_delay_s is None else delay_pair(c.chosen_delay_s, c.optimal_delay_s,
+                                                                     "d" if c.delay_adjusted else "")
             cells = [
                 _cell(u, c.apogee_m, cond.get("ceiling_m"), "length", True, "over-ceiling" in codes),
                 _cell(u, c.rail_exit_speed_m_s, cond.get("rail_exit_needed_m_s", cond["min_rail_exit_speed_m_s"]), "speed",
@@ -675,7 +676,8 @@ def conditions_text(result: MatchResult, units: DisplayUnits = _METRIC, frame: A
                 + (f", stability >= {c['min_stability_cal']:g} cal" if c.get("min_stability_cal") is not None
                    else "; stability not checked (the airframe file has no [geometry])")
                 + ". ")
-    text.append(f"Delay column: chosen/optimal; 'd' = drilled (adjustable motor). {speed.legend[0].upper()}"
+    text.append(f"Delay column: chosen/optimal; 'd' = drilled (adjustable motor); optimal 'none': apogee before "
+                f"burnout. {speed.legend[0].upper()}"
                 f"{speed.legend[1:]}.", style="dim")
     return text
 

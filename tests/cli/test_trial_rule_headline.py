@@ -88,3 +88,22 @@ def test_the_no_recovery_advice_fits_a_recovery_table_with_device_none(tmp_path:
     assert "add a [recovery] table" not in advice["none"], advice["none"]
     assert "set a device kind other than none in [recovery] (or add [[recovery]] entries)" in advice["none"]
     assert "add a [recovery] table to the airframe file" in advice["removed"], advice["removed"]
+
+
+def test_match_shows_no_negative_optimal_delay(tmp_path: Path) -> None:
+    import json
+
+    frame = _airframe(tmp_path, '[recovery]\ndevice = "parachute"\ndeploy = "ejection"\ndrag_coefficient = 0.8\n'
+                      'diameter = "0.6 m"\n', "heavyq.toml", **{'mass = "310 g"': 'mass = "780 g"'})
+    args = ("match", frame, *CATALOG, "--allow-smaller-motors")
+    code, out = run(*args, env={"COLUMNS": "120"})
+    row = next(line for line in out.splitlines() if " E9-4,6,8 " in line)
+    assert "/-" not in row and "4/none" in row, row  # the reason says "optimal delay none: apogee ... before burnout"
+    report = tmp_path / "m.html"
+    run(*args, "--report", str(report))
+    page = html.unescape(report.read_text(encoding="utf-8"))
+    cells = re.search(r"<tr>(?:(?!</tr>).)*E9-4,6,8(?:(?!</tr>).)*</tr>", page).group(0)  # its ranking row
+    assert "/-1.2" not in cells and "4/none" in cells, cells
+    code, out = run(*args, "--json")
+    e9 = next(c for c in json.loads(out)["candidates"] if c["designation"] == "E9-4,6,8")
+    assert e9["optimal_delay_s"] < 0  # the JSON keeps its number
