@@ -226,7 +226,7 @@ def scatter(airframe_file: str, motor_ref: str, catalog_dir: str | None, n_sampl
     from ..present.scatter import scatter_text
 
     console = _console()
-    console.print(scatter_text(summary, shown))
+    console.print(scatter_text(summary, shown, devices_listed=bool(frame.recovery_devices)))
     if written:
         from rich.markup import escape
 

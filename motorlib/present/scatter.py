@@ -34,8 +34,11 @@ def _triple(block: dict[str, Any], kind: str, u: DisplayUnits) -> list[str]:
     return [u.quantity(block.get(k), kind) for k in ("p5", "p50", "p95")]
 
 
-def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") -> Group:
-    """Percentile table, probabilities and the landing ellipse of one ``scatter`` run."""
+def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric", *, devices_listed: bool = True
+                 ) -> Group:
+    """Percentile table, probabilities and the landing ellipse of one ``scatter`` run; ``devices_listed`` False (the
+    airframe lists no recovery device) leaves out the opening figures, since nothing opens (the charge's speed is
+    still judged by the rule book, and a broken rule is listed with the others)."""
     u = _units(units)
     from .tables import _table
 
@@ -44,7 +47,8 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
         table.add_column(name, justify="right" if name else "left")
     a = summary["apogee_m"]
     table.add_row("apogee", *_triple(a, "length", u))
-    table.add_row("opening air speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
+    if devices_listed:
+        table.add_row("opening air speed", *_triple(summary["deploy_speed_m_s"], "speed", u))
     table.add_row("descent rate at landing", *_triple(summary["landing_speed_m_s"], "speed", u))
     table.add_row("landing distance", *_triple(summary["landing"]["distance_m"], "length", u))
     table.add_row("flight duration", *[u.quantity(summary["flight_duration_s"].get(k), "time", 1)
@@ -64,9 +68,12 @@ def scatter_text(summary: dict[str, Any], units: DisplayUnits | str = "metric") 
         lines.append(f"Over the ceiling ({u.quantity(summary['ceiling_m'], 'length')}): "
                      f"{_percent(summary['p_over_ceiling'], summary['p_over_ceiling_standard_error'])}\n")
     limit = summary.get("max_deploy_speed_m_s")
-    lines.append(f"Deployment above {u.quantity(limit, 'speed') if limit is not None else 'its device kind' + chr(39) + 's limit'}: "
-                 + (_percent(summary["p_deploy_too_fast"], summary["p_deploy_too_fast_standard_error"])
-                    if summary["p_deploy_too_fast"] is not None else "not known for this deployment") + "\n")
+    if not devices_listed:
+        lines.append("No recovery device listed: nothing opens, and the rocket falls ballistically.\n", style="yellow")
+    else:
+        lines.append(f"Deployment above {u.quantity(limit, 'speed') if limit is not None else 'its device kind' + chr(39) + 's limit'}: "
+                     + (_percent(summary["p_deploy_too_fast"], summary["p_deploy_too_fast_standard_error"])
+                        if summary["p_deploy_too_fast"] is not None else "not known for this deployment") + "\n")
     if summary.get("field_radius_m") is not None:
         lines.append(f"Landing outside the field ({u.quantity(summary['field_radius_m'], 'length')} radius): "
                      f"{_percent(summary['p_outside_field'], summary['p_outside_field_standard_error'])}\n")

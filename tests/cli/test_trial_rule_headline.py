@@ -107,3 +107,13 @@ def test_match_shows_no_negative_optimal_delay(tmp_path: Path) -> None:
     code, out = run(*args, "--json")
     e9 = next(c for c in json.loads(out)["candidates"] if c["designation"] == "E9-4,6,8")
     assert e9["optimal_delay_s"] < 0  # the JSON keeps its number
+
+
+def test_scatter_shows_no_opening_figures_without_a_device(tmp_path: Path) -> None:
+    frame = _airframe(tmp_path, '[recovery]\ndevice = "none"\n', "none.toml")
+    code, out = run("scatter", frame, *CATALOG, "--motor", "F29-8", "-n", "40")
+    text = " ".join(out.split())
+    assert "opening air speed" not in text and "Deployment above" not in text, out  # nothing opens
+    assert "no recovery device" in text, out
+    code, out = run("scatter", str(QUIBBLE), *CATALOG, "--motor", "F29-8", "-n", "40")
+    assert "opening air speed" in out and "Deployment above" in " ".join(out.split())
