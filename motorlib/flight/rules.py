@@ -77,13 +77,14 @@ NOTE_CODES: Final = frozenset({"constant-cd-past-mach", "live-charge-before-apog
 
 
 def broken_rule_codes(codes: Iterable[str]) -> list[str]:
-    """The launch rules among warning ``codes`` (those in :data:`RULE_CODES`), each once, in their order: what makes
-    ``fly`` exit with status 1, and what the flight card's headline names.
+    """The launch rules among warning ``codes`` (those in :data:`RULE_CODES`, notes on the model in
+    :data:`NOTE_CODES` apart, as ``match`` counts them), each once, in their order: what makes ``fly`` exit with
+    status 1, and what the flight card's headline names.
 
-    >>> broken_rule_codes(["stability-unknown", "no-recovery", "descent-fast", "no-recovery"])
+    >>> broken_rule_codes(["stability-unknown", "no-recovery", "constant-cd-past-mach", "descent-fast", "no-recovery"])
     ['no-recovery', 'descent-fast']
     """
-    return list(dict.fromkeys(code for code in codes if code in RULE_CODES))
+    return list(dict.fromkeys(code for code in codes if code in RULE_CODES and code not in NOTE_CODES))
 
 
 @dataclass(frozen=True)
