@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import math
 import os
 import shutil
 import resource
@@ -34,7 +35,7 @@ ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
 from motorlib import write_record  # noqa: E402
-from motorlib.flight.airframe import Airframe, Launch  # noqa: E402
+from motorlib.flight.airframe import Airframe, Launch, Recovery  # noqa: E402
 from motorlib.catalog import Catalog  # noqa: E402
 from motorlib.matching import MatchSettings, rank  # noqa: E402
 from tests.synthetic import synthetic_motors  # noqa: E402
@@ -126,7 +127,9 @@ def main() -> None:
         airframe_path = Path(tmp) / "rocket.toml"
         airframe_path.write_text(AIRFRAME_TOML)
         frame = Airframe("Benchmark rocket (synthetic)", 1.2, 0.054, 0.5, mount_diameter_m=0.029,
-                         mount_length_m=0.3, launch=Launch(rail_length_m=2.0, rail_angle_rad=0.052, wind_speed_m_s=3.0))
+                         mount_length_m=0.3, launch=Launch(rail_length_m=2.0, rail_angle_rad=0.052, wind_speed_m_s=3.0),
+                         # the parachute of AIRFRAME_TOML (Cd 0.8, 0.9 m): without one every motor fails no-recovery
+                         recovery=Recovery(device="parachute", drag_area_m2=0.8 * math.pi * 0.45 ** 2))
         settings = MatchSettings(target_m=1000.0)
         print(f"{'motors':>7} {'rank in-process (ms)':>22}")
         pieces = {}
