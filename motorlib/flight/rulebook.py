@@ -466,8 +466,9 @@ def _low(height_m: float, speed_m_s: float, r: LaunchRules) -> str:
 def _descent_fix(x: RuleInputs, i: int, r: LaunchRules) -> str:
     """What slows a fast landing: a larger device, unless a device opened too low to slow the rocket to its descent
     rate before the ground (deployment-low), where opening it higher is the fix and a larger one may not help."""
-    heights, speeds = np.atleast_2d(x.deployment_altitude_m)[i], np.atleast_2d(x.deployment_speed_m_s)[i]
-    if heights.size and np.any(heights < speeds * r.deployment_opening_time_s):
+    # plain floats: a ranking words this for thousands of flights, a device or two each (the rows are (n, n_devices))
+    heights, speeds = x.deployment_altitude_m[i].tolist(), x.deployment_speed_m_s[i].tolist()
+    if any(h < v * r.deployment_opening_time_s for h, v in zip(heights, speeds)):
         return "the device opened too low to slow to its descent rate before landing: open it higher (see its own finding)"
     return "use a larger recovery device"
 
