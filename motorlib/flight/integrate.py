@@ -644,12 +644,15 @@ def _segment_table(run: _Pass, params: dict[str, np.ndarray]) -> np.ndarray:
     (7, n_flights·(n_samples_max − 1)), flight by flight (a flight's position ``ref`` in ``params``): computed
     once a pass, not at every segment change. Padding past a curve's last sample is never read."""
     times, thrust = run.times_s, run.thrust_n
-    t_a, t_b, f_a = times[:, :-1], times[:, 1:], thrust[:, :-1]
-    slope = (thrust[:, 1:] - f_a) / np.maximum(t_b - t_a, _TINY)
+    out = np.empty((len(_SEGMENT),) + (times.shape[0], times.shape[1] - 1))  # written row by row: no stacked copy
+    t_a, t_b, f_a, slope, m0, m1, m2 = out
+    t_a[...], t_b[...], f_a[...] = times[:, :-1], times[:, 1:], thrust[:, :-1]
+    np.divide(thrust[:, 1:] - f_a, np.maximum(t_b - t_a, _TINY), out=slope)
     per_ns = (params["m_prop"] / params["itot"])[:, None]  # propellant burnt per N·s [kg/(N·s)]
-    values = (t_a, t_b, f_a, slope, params["m_full"][:, None] - per_ns * run.cumulative_ns[:, :-1], -per_ns * f_a,
-              -0.5 * per_ns * slope)
-    return np.stack(values).reshape(len(_SEGMENT), -1)
+    np.subtract(params["m_full"][:, None], per_ns * run.cumulative_ns[:, :-1], out=m0)
+    np.multiply(-per_ns, f_a, out=m1)
+    np.multiply(-0.5 * per_ns, slope, out=m2)
+    return out.reshape(len(_SEGMENT), -1)
 
 
 def _coast_segment(a: dict, mask: np.ndarray) -> None:
