@@ -30,7 +30,7 @@ from .messages import (assumption_texts, deployment_column, deployment_rule, mat
 from .report_charts import flight_chart, match_chart, mean_chart, overlay_chart, side_chart, thrust_chart
 
 if TYPE_CHECKING:
-    from ..flight.airframe import Airframe
+    from ..flight.airframe import Airframe, Recovery
     from ..matching.rank import MatchResult
     from ..motor.record import MotorRecord
 
@@ -59,6 +59,24 @@ def trace_for(inputs: Sequence[str], command: str, made_at: str | None = None) -
 
 
 # ----------------------------------------------------------------------------- fly
+
+def _recovery_words(devices: Sequence[Recovery], u: str) -> str:
+    """Each device, what opens it and its drag area, in the report's units ``u`` (``si`` or ``imperial``): "main, opened at 300 m on the way down,
+    Cd·A 5.00 m²; ..." (a trigger's name alone, "opened at altitude", left out the height)."""
+    du = _display(u)
+    words = []
+    for k, d in enumerate(devices):
+        if d.deploy == "altitude" and d.deploy_altitude_m is not None:
+            when = f"at {quantity(d.deploy_altitude_m, 'length', u)} on the way down"
+        elif d.deploy == "apogee":
+            when = f"{d.delay_s:g} s after apogee" if d.delay_s else "at apogee"
+        elif d.deploy == "after":
+            when = f"{d.delay_s:g} s after " + ("liftoff" if k == 0 else "the device before it")
+        else:  # ejection
+            when = "by the motor's delay charge"
+        words.append(f"{d.device}, opened {when}, Cd·A {du.precise(d.drag_area_m2, 'area')}")
+    return "; ".join(words)
+
 def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], warnings: Sequence[tuple[str, str]],
                trajectory: dict[str, np.ndarray] | None, *, inputs: Sequence[str], command: str, units: str = "si",
                made_at: str | None = None, warning_devices: Sequence[int | None] | None = None,
@@ -84,9 +102,7 @@ def fly_report(frame: Airframe, motor: MotorRecord, summary: dict[str, Any], war
         ("drag", _drag_words(frame, summary)),
         ("motor mount", "-" if frame.mount_diameter_m is None else f"{frame.mount_diameter_m * 1e3:.0f} mm"
          + ("" if frame.mount_length_m is None else f", up to {frame.mount_length_m * 1e3:.0f} mm long")),
-        ("recovery", "none given" if not frame.recovery_devices else
-         "; ".join(f"{d.device}, opened at {d.deploy}, Cd·A {du.precise(d.drag_area_m2, 'area')}"
-                   for d in frame.recovery_devices)),
+        ("recovery", "none given" if not frame.recovery_devices else _recovery_words(frame.recovery_devices, u)),
     ))
     prov = motor.provenance
     cls = motor.impulse_class

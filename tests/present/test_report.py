@@ -124,3 +124,21 @@ def test_the_match_png_of_a_large_ranking_stays_readable(tmp_path: Path) -> None
     with Image.open(path) as image:
         width, height = image.size
     assert width < 4000 and height < 1500
+
+
+def test_the_rocket_section_says_when_each_device_opens() -> None:
+    # new-user trial: the report's Rocket section read "main, opened at altitude" without the altitude
+    from motorlib.flight.airframe import Recovery
+    from motorlib.present.report_content import _recovery_words
+
+    devices = (Recovery(device="drogue", deploy="apogee", drag_area_m2=0.2, delay_s=1.0),
+               Recovery(device="main", deploy="altitude", deploy_altitude_m=300.0, drag_area_m2=5.0),
+               Recovery(device="streamer", deploy="ejection", drag_area_m2=0.03),
+               Recovery(device="parachute", deploy="after", delay_s=2.0, drag_area_m2=1.0))
+    words = _recovery_words(devices, "si")
+    assert "drogue, opened 1 s after apogee" in words
+    assert "main, opened at 300 m on the way down" in words
+    assert "streamer, opened by the motor's delay charge" in words
+    assert "parachute, opened 2 s after the device before it" in words
+    assert "ft" in _recovery_words(devices[1:2], "imperial")
+    assert "2 s after liftoff" in _recovery_words(devices[3:], "si")  # a timer on the first device counts from liftoff
