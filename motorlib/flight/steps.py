@@ -13,6 +13,7 @@ arrays this size. numpy only.
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -65,6 +66,8 @@ def _apogee_step(a: dict, h: np.ndarray) -> np.ndarray:
     from the local motion (vz + az·h = 0)."""
     az = a["az"]
     climbing = ~a["apogee_found"] & ~a["burning"] & (a["vz"] > 0.0) & (az < 0.0)
+    if not np.count_nonzero(climbing):  # all burning, or all past apogee: nothing to shorten
+        return h
     # (a floor on -az instead of np.errstate, which costs more than the division on arrays this size)
     h_apogee = np.where(climbing, a["vz"] / np.maximum(-az, 1e-300), np.inf) * (1.0 + _APOGEE_OVERSHOOT)
     return np.minimum(h, h_apogee)
@@ -91,7 +94,7 @@ def _height_step(a: dict, h: np.ndarray, heights: tuple[float, ...]) -> np.ndarr
     z, vz, az = a["z"], a["vz"], a["az"]
     z_end = z + (vz + 0.5 * az * h) * h
     for height in heights:
-        if not np.isfinite(height):
+        if not math.isfinite(height):
             continue
         crosses = (z - height) * (z_end - height) < 0.0  # on the other side at the step's end
         if not np.count_nonzero(crosses):
