@@ -72,8 +72,10 @@ def _recovery_words(devices: Sequence[Recovery], u: str) -> str:
             when = f"{d.delay_s:g} s after apogee" if d.delay_s else "at apogee"
         elif d.deploy == "after":
             when = f"{d.delay_s:g} s after " + ("liftoff" if k == 0 else "the device before it")
-        else:  # ejection
+        elif d.deploy == "ejection":
             when = "by the motor's delay charge"
+        else:  # a trigger without its figure (the airframe file requires one): its name
+            when = f"at {d.deploy}"
         words.append(f"{d.device}, opened {when}, Cd·A {du.precise(d.drag_area_m2, 'area')}")
     return "; ".join(words)
 
