@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import json
 import sys
 from typing import Any, Sequence
@@ -20,6 +21,7 @@ STDOUT_HELP = "'-' prints it on standard output (the command's own report then g
 _FILE_ONLY = {"--plot": "a PNG chart", "--report": "an HTML report"}
 
 
+@functools.lru_cache(maxsize=None)  # one subclass, made when first needed (rich stays off the start-up path)
 def _console_class() -> Any:
     """rich's Console, except that a closed pipe raises BrokenPipeError (rich ends the process with status 1 by
     itself); :mod:`.group` then ends every command alike (status 141, see its docstring)."""

@@ -468,7 +468,7 @@ def _descent_fix(x: RuleInputs, i: int, r: LaunchRules) -> str:
     rate before the ground (deployment-low), where opening it higher is the fix and a larger one may not help."""
     # plain floats: a ranking words this for thousands of flights, a device or two each (the rows are (n, n_devices))
     heights, speeds = x.deployment_altitude_m[i].tolist(), x.deployment_speed_m_s[i].tolist()
-    if any(h < v * r.deployment_opening_time_s for h, v in zip(heights, speeds)):
+    if any(h < r.deployment_height_needed_m(v) for h, v in zip(heights, speeds)):  # deployment-low's test
         return "the device opened too low to slow to its descent rate before landing: open it higher (see its own finding)"
     return "use a larger recovery device"
 
