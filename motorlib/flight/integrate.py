@@ -830,7 +830,10 @@ def _combine(weights: tuple[float, ...], stages: np.ndarray) -> np.ndarray:
     total = None
     for j, w in enumerate(weights):
         if w != 0.0:
-            total = w * stages[j] if total is None else total + w * stages[j]
+            if total is None:
+                total = w * stages[j]
+            else:
+                total += w * stages[j]  # in place: the same sums, one array fewer each
     return total
 
 
