@@ -7,7 +7,7 @@ from typing import Any
 import click
 
 from .options import _Quantity, display_units
-from .output import _EPILOG, _caution, _console, _strict_json
+from .output import _EPILOG, _caution, _console, _echo_json
 
 
 class _Window(click.ParamType):
@@ -124,7 +124,7 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
                              "catalog": str(cat.root)},
               "caution": _EPILOG}
     if opts["as_json"]:
-        click.echo(_strict_json(result, indent=2))
+        _echo_json(result)  # indented at a terminal, one line to a pipe or a file (as plain `match --json`)
         return
     from rich.markup import escape
 

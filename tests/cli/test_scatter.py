@@ -74,6 +74,8 @@ def test_match_robust_json_and_windows() -> None:
                     "--altitude-window", "250m..330m", "--duration-window", "20s..200s", "--json")
     assert code == 0, out
     data = json.loads(out)
+    # not a terminal: one compact line, as `match --json` (indenting only pays for a person reading it)
+    assert out.count("\n") == 1
     assert data["n_samples"] == 20 and data["windows"]["altitude_m"] == [250.0, 330.0]
     best = data["candidates"][0]
     assert best["designation"] == "E25-7" and best["p_success"] > 0.5
