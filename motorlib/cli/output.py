@@ -24,10 +24,25 @@ _FILE_ONLY = {"--plot": "a PNG chart", "--report": "an HTML report"}
 @functools.lru_cache(maxsize=None)  # one subclass, made when first needed (rich stays off the start-up path)
 def _console_class() -> Any:
     """rich's Console, except that a closed pipe raises BrokenPipeError (rich ends the process with status 1 by
-    itself); :mod:`.group` then ends every command alike (status 141, see its docstring)."""
+    itself); :mod:`.group` then ends every command alike (status 141, see its docstring); and that a table wider
+    than the console is printed whole (see ``print``)."""
     from rich.console import Console
+    from rich.table import Table
 
     class _Console(Console):
+        def print(self, *objects: Any, **kwargs: Any) -> None:
+            """A table that needs more columns than the console has (its ``min_width``: tables._lock_widths) is
+            printed whole, that wide, instead of with cut cells."""
+            needed = max((o.min_width or 0 for o in objects if isinstance(o, Table)), default=0)
+            if needed <= self.width:
+                return super().print(*objects, **kwargs)
+            width = self.width
+            self.width = needed
+            try:
+                return super().print(*objects, **kwargs)
+            finally:
+                self.width = width
+
         def on_broken_pipe(self) -> None:
             self.quiet = True  # nothing more to write
             import errno

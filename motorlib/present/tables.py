@@ -59,7 +59,9 @@ def _lock_widths(table: Table, flexible: str | None = None, width: int | None = 
     """Give every column but ``flexible`` the width of its widest cell, so that rich never cuts or wraps it.
 
     Only the flexible column (a file or maker name) gives way on a narrow terminal of ``width`` columns, and it
-    is cut with an ellipsis.
+    is cut with an ellipsis. When the other columns need more than ``width`` even so, the table's ``min_width``
+    says how much, and the CLI's console prints it that wide (the terminal wraps the long lines): a cut cell
+    would misread, a delay list '7,12,14' as '7,12,1' or a title's 'target 400 m' as 'target 40'.
     """
     from rich.cells import cell_len
 
@@ -72,10 +74,16 @@ def _lock_widths(table: Table, flexible: str | None = None, width: int | None = 
             continue
         column.min_width = widest
         others += widest + 2  # the cell's padding and the column divider
+    has_flexible = False
     for column in table.columns:
         if column.header == flexible and width is not None:
+            has_flexible = True
             room = width - others - 3  # the flexible column's own padding and the table's edges
             column.max_width = max(column.min_width or 8, min(column.max_width or width, room))
+    if width is not None:
+        needed = others + (3 + 8 if has_flexible else 0)
+        if needed > width:
+            table.min_width = needed
     return table
 
 
