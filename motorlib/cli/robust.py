@@ -83,9 +83,14 @@ def run_robust(airframe_file: str, cat: Any, opts: dict[str, Any], robust: dict[
     from .options import apply_field_day
 
     unused = [flag for flag, key in _PLAIN_ONLY if opts.get(key)]
+    if opts.get("target_tolerance") is not None:
+        unused.append("--target-tolerance")
     if unused:
+        # the apogee advice only where the option is about apogee (a ballast or a tolerance reaches the target)
+        about_apogee = ("; give --altitude-window to judge apogee"
+                        if {"--ballast", "--target-tolerance"} & set(unused) else "")
         raise click.UsageError(f"{', '.join(unused)}: not used with --robust (it ranks by the share of sampled flights "
-                               "that meet every rule; give --altitude-window to judge apogee); leave "
+                               f"that meet every rule{about_apogee}); leave "
                                f"{'it' if len(unused) == 1 else 'them'} out or drop --robust")
     frame = apply_field_day(load_airframe(airframe_file), opts.get("_field_day") or {})
     match = match_settings(opts)

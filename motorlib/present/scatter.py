@@ -188,6 +188,9 @@ def robust_key(result: dict[str, Any], top: int | None = None) -> str:
     text = ("success: the share of sampled flights that meet every launch rule"
             + (" and " + ", ".join(limits) if limits else "; no ceiling or window was given, so apogee is not "
                "judged") + ".")
+    if conditions.get("target_m") is not None and windows.get("altitude_m") is None:
+        text += (" --target only orders motors of equal success (the median apogee nearest it first); give "
+                 "--altitude-window (e.g. 380m..420m) to count apogee in success.")
     if legend:
         text += " most failed: the rule the motor failed most often, with its share: " + "; ".join(
             f"{letter} {meaning}" for letter, meaning in sorted(legend.items())) + "."

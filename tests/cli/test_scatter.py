@@ -167,3 +167,18 @@ def test_the_text_output_lists_the_spreads_it_sampled() -> None:
     code, out = run("--units", "imperial", "scatter", QUIBBLE, "--motor", "F29-8", "-n", "30", "--seed", "2",
                     "--workers", "1", "--cg-std", "0.5in")
     assert "CG 0.5 in" in " ".join(out.split())
+
+
+def test_match_robust_says_what_target_does_and_refuses_a_tolerance() -> None:
+    # new-user trial: with --target and no window, motors 2.5 x over the target had 100 % success and nothing said
+    # that the target is not judged: it orders motors of equal success; a tolerance of it means nothing here
+    code, out = run("match", QUIBBLE, "--robust", "--samples", "5", "--workers", "1", "--allow-smaller-motors",
+                    "--target", "300")
+    assert code == 0, out
+    flat = " ".join(out.split())
+    assert "--target only orders motors of equal success" in flat and "--altitude-window" in flat, out
+    code, out = run("match", QUIBBLE, "--robust", "--samples", "5", "--target", "300", "--target-tolerance", "10%")
+    assert code == 2 and "--target-tolerance" in out and "--altitude-window" in out, out
+    # the refusal of a plain-only option gives no advice about apogee that has nothing to do with it
+    code, out = run("match", QUIBBLE, "--robust", "--samples", "5", "--csv")
+    assert code == 2 and "--csv" in out and "altitude-window" not in out, out
