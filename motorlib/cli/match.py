@@ -176,8 +176,11 @@ def _run_match(airframe_file: str, cat: Any, opts: dict[str, Any]) -> None:
         console.print(f"{rejected} motor(s) do not fit the mount or the class limit (--show-rejected lists them).")
     listed = len(fits) if opts["show_rejected"] else len(fits) - rejected
     if listed > top:
-        console.print(f"{listed - top} more ranked motor(s) below #{top} are not shown (--top N shows more); "
-                      "--json lists every one.")
+        # the motors that do not fit come after the ranked ones: counted apart, never called ranked
+        below_rejected = rejected - fits[:top].count(False) if opts["show_rejected"] else 0
+        below_ranked = listed - top - below_rejected
+        what = f"{below_ranked} more ranked motor(s)" + (f" and {below_rejected} that do not fit" if below_rejected else "")
+        console.print(f"{what} below #{top} are not shown (--top N shows more); --json lists every one.")
     console.print(render.conditions_text(result, units, frame))
     console.print(f"Catalog: {render.escape(str(cat.root))}")
     for path in written:

@@ -53,3 +53,13 @@ def test_match_table_never_cuts_a_cell(tmp_path: Path) -> None:
     assert "target 400 m ±5 %" in flat, out
     rows = [line for line in out.splitlines() if " pass with" in line and line.strip()[:1].isdigit()]
     assert len(rows) == 3 and all(line.rstrip().endswith("pass with ballast") for line in rows), out
+
+
+def test_show_rejected_footer_counts_ranked_and_rejected_apart(tmp_path: Path) -> None:
+    # new-user trial: with --show-rejected and --top, the motors that do not fit come after the ranked ones, and
+    # the footer called all of those below the cut "ranked"
+    cat = _catalog(tmp_path / "cat")
+    code, out = run("match", QUIBBLE, "--catalog", str(cat), "--target", "400", "--show-rejected", "--top", "2")
+    assert code == 0, out
+    flat = " ".join(out.split())
+    assert "1 more ranked motor(s) and 2 that do not fit below #2 are not shown" in flat, out
