@@ -12,7 +12,7 @@ import click
 from ..errors import QuantityError
 from .group import _Group
 from .options import (_catalog_option, _metadata_for, _metadata_options, _open_catalog, _Quantity,
-                      _units_option, display_units, resolve_motor)
+                      _units_option, display_units, resolve_motor, skip_text)
 from .output import _check_outputs, _console, _err_console, _echo_json
 
 
@@ -362,7 +362,7 @@ def catalog_verify(catalog_dir: str | None) -> None:
     from ..present import tables as render
     from ..files.curvefiles import check_file
 
-    cat = _open_catalog(catalog_dir)
+    cat = _open_catalog(catalog_dir, report_skipped=False)  # listed below, on standard output, once
     stale = cat.stale_files()  # changed behind the index's back (same size and time): re-read now
     reports = [check_file(cat.root / str(row.path), cat.settings) for row in cat.rows()]
     console = _console()
@@ -370,7 +370,7 @@ def catalog_verify(catalog_dir: str | None) -> None:
         console.print(f"[yellow]index was stale[/yellow] {render.escape(path)}: the file changed without a new "
                       "size or modification time; re-read", soft_wrap=True)
     for where, problem in cat.problems:
-        console.print(f"[red]skipped[/red] {render.escape(where)}: {render.escape(problem)}", soft_wrap=True)
+        console.print(f"[red]skipped[/red] {render.escape(skip_text(where, problem))}", soft_wrap=True)
     bad = [r for r in reports if any(f.severity != "note" for f in r.findings)]
     for report in bad:
         console.print(f"[bold]{render.escape(report.source)}[/bold]")
@@ -380,9 +380,9 @@ def catalog_verify(catalog_dir: str | None) -> None:
         listed = ", ".join(f"{i} (was {former[i]})" if i in former else i for i in ids)
         console.print(f"[yellow]tag {render.escape(repr(tag))} names {len(ids)} motor id(s) no longer in the "
                       f"catalog[/yellow]: {render.escape(listed)}", soft_wrap=True)
-    n_errors = sum(not r.ok for r in reports) + len(cat.problems)
+    n_errors = sum(not r.ok for r in reports)  # of the curves verified; the skipped files are counted apart
     console.print(f"{len(reports)} curve(s) verified: {n_errors} with errors, {len(cat.problems)} file(s) skipped.")
-    if n_errors:
+    if n_errors or cat.problems:
         sys.exit(1)
 
 

@@ -359,12 +359,13 @@ def default_catalog_dir() -> str:
     return os.path.join(_user_dir("data"), "motorlib", "catalog")
 
 
-def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
+def _open_catalog(folder: str | None, *, create: bool = False, report_skipped: bool = True) -> Any:
     """Open a catalog for a command; only ``catalog add`` (``create``) makes a missing folder.
 
     A read-only command never creates one: a typo in ``--catalog`` is an error naming the folder, and the
     user catalog is not made empty by a ``list`` (after which ``match`` would find "no motors" instead of
-    using the bundled samples).
+    using the bundled samples). Files skipped as unreadable are named on standard error, unless the command
+    reports them itself (``report_skipped`` False: ``catalog verify``).
     """
     import os
     from pathlib import Path
@@ -380,7 +381,8 @@ def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
     read_only = path.exists() and not os.access(path, os.W_OK)  # the bundled samples carry a READ_ONLY marker
     catalog = Catalog(path, read_only=read_only, create=create, on_lock_wait=lambda: _err_console().print(
         f"waiting for another motorlib process that is writing {path} ...", markup=False, highlight=False))
-    if not (catalog.notices and not catalog.read_only) and not catalog.problems:
+    problems = catalog.problems if report_skipped else []
+    if not (catalog.notices and not catalog.read_only) and not problems:
         return catalog  # nothing to say: rich stays unimported (a --json or --csv run never needs it)
     err = _err_console()
     for notice in catalog.notices:
@@ -388,10 +390,15 @@ def _open_catalog(folder: str | None, *, create: bool = False) -> Any:
             err.print(f"[dim]note: {notice}[/dim]")
     from rich.markup import escape
 
-    for where, problem in catalog.problems:  # paths and messages are user text: never read as markup
-        err.print(f"[yellow]skipped[/yellow] {escape(where)}: {escape(problem)}", markup=True, highlight=False,
+    for where, problem in problems:  # paths and messages are user text: never read as markup
+        err.print(f"[yellow]skipped[/yellow] {escape(skip_text(where, problem))}", markup=True, highlight=False,
                   soft_wrap=True)
     return catalog
+
+
+def skip_text(where: str, problem: str) -> str:
+    """'FILE: why' for a skipped file; the problem alone when it names the file already ('FILE:LINE: why')."""
+    return problem if problem.startswith(where + ":") else f"{where}: {problem}"
 
 
 def _catalog_or_samples(catalog_dir: str | None) -> str:

@@ -202,3 +202,20 @@ def test_verify_lists_the_ids_an_orphaned_tag_names(tmp_path: Path) -> None:
     assert f"{rows['E25-7']['motor_id']} (was E25-7 by {rows['E25-7']['maker']})" in flat, flat
     listed = CliRunner().invoke(main, ["catalog", "list", "--catalog", str(root), "--tag", "in-stock", "--json"])
     assert [r["designation"] for r in json.loads(listed.stdout)] == ["F29-8"]  # tagged by the user, not the copy
+
+
+def test_verify_counts_a_skipped_file_once_and_names_it_once(tmp_path: Path) -> None:
+    # new-user trial: "3000 curve(s) verified: 1 with errors, 1 file(s) skipped" counted the skipped file among the
+    # curves with errors, printed its line on standard output and again on standard error, and named its path twice
+    root = tmp_path / "cat"
+    root.mkdir()
+    for name in ("bramblewick-propulsion_f29-8.xml", "bramblewick-propulsion_g59-10.xml"):
+        (root / name).write_bytes((SAMPLE_DIR / name).read_bytes())
+    (root / "junk.xml").write_text("<motor>garbage", encoding="utf-8")
+    result = CliRunner().invoke(main, ["catalog", "verify", "--catalog", str(root)], env={"COLUMNS": "200"})
+    assert result.exit_code == 1, result.output
+    out, err = result.stdout, result.stderr
+    assert "2 curve(s) verified: 0 with errors, 1 file(s) skipped." in out, out
+    assert "junk.xml" in out and "junk.xml" not in err, (out, err)
+    line = next(text for text in out.splitlines() if "junk.xml" in text)
+    assert line.count("junk.xml") == 1, line
