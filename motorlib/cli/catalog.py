@@ -136,7 +136,12 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
     if listing is not None:
         console.print(listing)
     counts = Counter(r.status for r in results)
-    added = f"{counts['added']} added" + (f" ({forced} with errors, by --force)" if forced else "")
+    # curves added with warnings (a label that cannot be checked against the curve, say): counted, never silent
+    warned = sum(r.status == "added" and not render.forced_errors(r)
+                 and any(f.severity == "warning" for f in r.findings) for r in results)
+    notes = [f"{forced} with errors, by --force"] if forced else []
+    notes += [f"{warned} with warnings: `motorlib catalog verify` lists them"] if warned else []
+    added = f"{counts['added']} added" + (f" ({'; '.join(notes)})" if notes else "")
     console.print(f"{len(results)} file(s): {added}, {counts['duplicate']} already present, "
                   f"{counts['refused']} refused, {counts['unreadable']} unreadable; the catalog now holds "
                   f"{len(cat)} motor(s) in {render.escape(str(cat.root))}")

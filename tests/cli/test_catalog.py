@@ -219,3 +219,20 @@ def test_verify_counts_a_skipped_file_once_and_names_it_once(tmp_path: Path) -> 
     assert "junk.xml" in out and "junk.xml" not in err, (out, err)
     line = next(text for text in out.splitlines() if "junk.xml" in text)
     assert line.count("junk.xml") == 1, line
+
+
+def test_add_counts_the_curves_added_with_warnings(tmp_path: Path) -> None:
+    # new-user trial: 1,986 of 3,000 curves whose label could not be checked ("F30-4-6") were added with
+    # "3000 added, 0 refused" and nothing more; the summary now says how many carry warnings and where to see them
+    import numpy as np
+
+    from motorlib import MotorRecord, write_record
+
+    record = MotorRecord("F30-4-6", np.array([0.0, 0.05, 1.5, 1.6]), np.array([0.0, 35.0, 30.0, 0.0]),
+                         maker="Quokka Thrust Works (fictional)", diameter_m=0.029, length_m=0.1,
+                         total_mass_kg=0.08, propellant_mass_kg=0.04, delays_s=(4.0, 6.0))
+    src = write_record(record, tmp_path / "f30.xml")
+    code, out = run("catalog", "add", "--catalog", str(tmp_path / "cat"), str(src))
+    assert code == 0, out
+    flat = " ".join(out.split())
+    assert "1 added (1 with warnings: `motorlib catalog verify` lists them)" in flat, out
