@@ -109,7 +109,7 @@ def _finite_or_none(data: Any) -> Any:
 
 
 def _caution(console: Any) -> None:
-    console.print(f"[dim]{_EPILOG}[/dim]")
+    console.print(f"[bold yellow]Caution:[/bold yellow] [dim]{_EPILOG}[/dim]")  # as match's table ends
 
 
 def _write_report(report: Any, path: str, overwrite: bool, inputs: list[str], *, check_only: bool = False) -> Any:

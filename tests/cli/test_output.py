@@ -65,3 +65,16 @@ def test_the_ranking_table_shows_forty_rows_unless_told(tmp_path: Path) -> None:
     assert f"{len(listed) - 40} more ranked motor(s) below #40 are not shown" in out
     code, out = run("match", airframe, "--catalog", str(tmp_path / "cat"), "--top", "45")
     assert f"{len(listed) - 45} more ranked motor(s) below #45 are not shown" in out
+
+
+def test_every_command_labels_its_caution_alike() -> None:
+    # new-user trial: match's table ended "Caution: Predictions are estimates...", match --robust (and fly, scatter)
+    # the same sentence without the label
+    from .conftest import AIRFRAMES, run
+
+    quibble = str(AIRFRAMES / "quibble-41.toml")
+    for args in (("match", quibble, "--robust", "--samples", "5", "--workers", "1", "--allow-smaller-motors"),
+                 ("fly", quibble, "--motor", "F29-8")):
+        code, out = run(*args)
+        assert code in (0, 1), out
+        assert "Caution: Predictions are estimates." in " ".join(out.split()), (args, out[-400:])
