@@ -73,6 +73,7 @@ def _lock_widths(table: Table, flexible: str | None = None, width: int | None = 
             column.max_width = widest
             continue
         column.min_width = widest
+        column.width = widest  # fixed: rich then measures no cell of it again
         others += widest + 2  # the cell's padding and the column divider
     has_flexible = False
     for column in table.columns:
