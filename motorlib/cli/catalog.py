@@ -191,8 +191,8 @@ def catalog_list(catalog_dir: str | None, sort: str, desc: bool, units: str | No
         from ..present import tables as render
 
         console = _console()
-        console.print(render.catalog_table(rows, f"{len(rows)} of {len(cat)} motor(s) in {cat.root}", shown,
-                                           console.width))
+        console.print(render.long_catalog_table(rows, f"{len(rows)} of {len(cat)} motor(s) in {cat.root}", shown,
+                                                console.width))
 
 
 @catalog.command("show")

@@ -27,13 +27,13 @@ def _console_class() -> Any:
     itself); :mod:`.group` then ends every command alike (status 141, see its docstring); and that a table wider
     than the console is printed whole (see ``print``)."""
     from rich.console import Console
-    from rich.table import Table
 
     class _Console(Console):
         def print(self, *objects: Any, **kwargs: Any) -> None:
             """A table that needs more columns than the console has (its ``min_width``: tables._lock_widths) is
             printed whole, that wide, instead of with cut cells."""
-            needed = max((o.min_width or 0 for o in objects if isinstance(o, Table)), default=0)
+            needed = max((o.min_width for o in objects  # a Table, or present.tables.LongTable
+                          if isinstance(getattr(o, "min_width", None), int)), default=0)
             if needed <= self.width:
                 return super().print(*objects, **kwargs)
             width = self.width

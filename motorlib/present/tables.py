@@ -88,6 +88,61 @@ def _lock_widths(table: Table, flexible: str | None = None, width: int | None = 
     return table
 
 
+class LongTable:
+    """A locked table (:func:`_lock_widths`) of many rows, drawn as rich draws it, but each row as one line of
+    text: rich renders every cell on its own (about 40 µs each), 1.1 s for a catalog list of 3,000 motors.
+
+    The title, header and rule are rich's own (the table without its rows); each row is its cells justified to
+    their columns' fixed widths (a flexible column's cut with an ellipsis), two spaces apart, with the
+    column's and the cell's styles. ``min_width`` is the table's (the CLI's console prints a table that needs
+    more than the terminal's width whole).
+    """
+
+    def __init__(self, table: Table) -> None:
+        self.table = table
+        self.min_width = table.min_width
+
+    def __rich_console__(self, console: Any, options: Any) -> Iterable[Any]:
+        from copy import copy
+
+        from rich.segment import Segment
+
+        table = self.table
+        head = copy(table)
+        # the flexible column (no fixed width) is as wide as rich makes it with its cells: its widest, cut at
+        # its max_width, never under its min_width
+        widths = [column.width if column.width is not None else max(column.min_width or 0, column.max_width or 0)
+                  for column in table.columns]
+        head.columns = [copy(column) for column in table.columns]
+        for column, width in zip(head.columns, widths):
+            column._cells = []
+            column.width = width
+        head.rows = []
+        *top, bottom = console.render_lines(head, options, pad=False, new_lines=True)
+        for line in top:
+            yield from line
+        last = len(widths) - 1
+        for r in range(table.row_count):
+            row = Text(" ", end="")  # the table's left edge
+            for k, (column, width) in enumerate(zip(table.columns, widths)):
+                cell = column._cells[r]
+                text = cell.copy() if isinstance(cell, Text) else (
+                    Text.from_markup(cell) if "[" in cell else Text(cell))
+                if column.style:
+                    text.stylize(column.style, 0, len(text))
+                if text.cell_len > width:
+                    text.truncate(width, overflow="ellipsis")
+                text.align(column.justify if column.justify in ("left", "right", "center") else "left", width)
+                row.append_text(text)
+                # the cell's right padding (in the column's style), then the divider; the right edge after the last
+                row.append(" ", style=column.style if k < last else None)
+                if k < last:
+                    row.append(" ")
+            yield from row.render(console)
+            yield Segment.line()
+        yield from bottom
+
+
 def _facts() -> Table:
     """A two-column list of facts (name, value), for one flight or one motor."""
     table = Table(show_header=False, box=None, pad_edge=False)
@@ -449,6 +504,16 @@ def catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: Display
         cells += [_delays(r.delays_s, r.delay_adjustable, r.ejection), checks]
         table.add_row(*cells)
     return _lock_widths(table, "maker", width)
+
+
+def long_catalog_table(rows: list[CatalogRow], title: str = "Catalog", units: DisplayUnits = _METRIC,
+                       width: int = 80) -> Table | LongTable:
+    """:func:`catalog_table`, drawn a row a line (:class:`LongTable`) from :data:`LONG_TABLE_ROWS` rows on."""
+    table = catalog_table(rows, title, units, width)
+    return LongTable(table) if table.row_count >= LONG_TABLE_ROWS else table
+
+
+LONG_TABLE_ROWS = 100  # from this many rows on, a catalog list is drawn a row a line (LongTable)
 
 
 _BARS = " ▁▂▃▄▅▆▇█"

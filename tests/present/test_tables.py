@@ -39,3 +39,49 @@ def test_one_designation_from_several_makers_is_told_apart_even_when_one_is_show
                      "E12-4 Quillfeather"]
     assert _motor_names(pairs[:1], False, among=pairs) == ["F23-6 Invented Maker U"]
     assert _motor_names(pairs, True) == [d for d, _ in pairs]  # a maker column says it already
+
+
+def _drawn(renderable: object, width: int, terminal: bool) -> str:
+    import io
+
+    from motorlib.cli.output import _console
+
+    console = _console()
+    console.file = io.StringIO()
+    console.width = width
+    if terminal:  # with the styles' escape codes, which must match too
+        console._force_terminal, console._color_system = True, "truecolor"
+    console.print(renderable)
+    return console.file.getvalue()
+
+
+def test_a_long_catalog_table_is_drawn_as_rich_draws_the_table() -> None:
+    # LongTable draws each row as one line of text (a catalog list of 3,000 motors took 1.1 s in rich's per-cell
+    # rendering); the output must be the table's own, byte for byte: narrow and wide terminals (a maker cut with
+    # an ellipsis), a table wider than the terminal, metric and imperial, with and without styles
+    import numpy as np
+
+    from motorlib import MotorRecord
+    from motorlib.matching.rank import candidate_rows
+    from motorlib.present.display import DisplayUnits
+    from motorlib.present.tables import LongTable, catalog_table
+
+    records = []
+    for k in range(30):
+        impulse = 0.6 * 1.45 ** k
+        t = np.array([0.0, 0.05, 0.6, 1.0]) * (0.4 + 0.1 * k)
+        f = np.array([0.0, 1.0, 0.8, 0.0])
+        f *= impulse / np.trapezoid(f, t)
+        records.append(MotorRecord(f"X{k}-{4 + k % 3},{9 + k % 5},14", t, f, maker=["Zorblat Aerospace (fictional)",
+                                   "Quokka Thrust Works (fictional)", "Q"][k % 3],
+                                   diameter_m=0.013 + 0.001 * k, length_m=0.07 + 0.01 * k,
+                                   total_mass_kg=0.01 + 0.02 * k, propellant_mass_kg=0.005 + 0.01 * k,
+                                   delays_s=(4.0 + k % 3, 9.0 + k % 5, 14.0), delay_adjustable=k % 4 == 0))
+    rows = candidate_rows(records)
+    for width in (60, 80, 112, 125, 200):
+        for units in (DisplayUnits(), DisplayUnits("imperial")):
+            for terminal in (False, True):
+                table = catalog_table(rows, "Thirty invented motors", units, width)
+                expected = _drawn(table, width, terminal)
+                assert _drawn(LongTable(catalog_table(rows, "Thirty invented motors", units, width)), width,
+                              terminal) == expected, (width, units, terminal)
