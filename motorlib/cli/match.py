@@ -242,7 +242,9 @@ def match(airframe_file: str, catalog_dir: str | None, **opts: Any) -> None:
     'pass with ballast' (with --ballast), then 'off target' (safe, but
     misses the target), then 'fail' and the motors that cannot fly.
     Without --catalog (or $MOTORLIB_CATALOG) the user catalog is used when it
-    exists, else the bundled sample curves.
+    exists, else the bundled sample curves. The exit status is 0 whether or
+    not a motor passes (a ranking, not a check: read the verdicts); 2 for
+    unusable input.
 
     \b
     Example:
