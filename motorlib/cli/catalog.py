@@ -131,14 +131,15 @@ def catalog_add(catalog_dir: str | None, paths: tuple[str, ...], force: bool, **
                              f"catalog holds {now}); run the same command again to add the rest (curves already "
                              "in are recognised and skipped)", markup=False, highlight=False)
         sys.exit(130)  # 128 + SIGINT, as a shell reports an interrupted command
-    forced = sum(bool(render.forced_errors(r)) for r in results)
+    errors = [render.forced_errors(r) for r in results]  # what --force let in, per result
+    forced = sum(map(bool, errors))
     listing = render.add_results_table(results)
     if listing is not None:
         console.print(listing)
     counts = Counter(r.status for r in results)
     # curves added with warnings (a label that cannot be checked against the curve, say): counted, never silent
-    warned = sum(r.status == "added" and not render.forced_errors(r)
-                 and any(f.severity == "warning" for f in r.findings) for r in results)
+    warned = sum(r.status == "added" and not forced_r and any(f.severity == "warning" for f in r.findings)
+                 for r, forced_r in zip(results, errors))
     notes = [f"{forced} with errors, by --force"] if forced else []
     notes += [f"{warned} with warnings: `motorlib catalog verify` lists them"] if warned else []
     added = f"{counts['added']} added" + (f" ({'; '.join(notes)})" if notes else "")

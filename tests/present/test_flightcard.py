@@ -153,14 +153,18 @@ def _titles(card) -> list[str]:
     return [p.title for p in card.phases]
 
 
+def _burning_at_apogee(apogee_s: float, optimal_delay_s: float, landing: dict) -> dict:
+    """A G25-4-like flight (burnout 4.95 s) that tops out under thrust: its 4 s delay fires nothing in flight."""
+    return _summary(burnout_time_s=4.95, time_to_apogee_s=apogee_s, optimal_delay_s=optimal_delay_s, chosen_delay_s=4.0,
+                    ejections=[{"delay_s": 4.0, "altitude_m": None, "speed_m_s": None, "vertical_speed_m_s": None}],
+                    deploy_time_s=None, deploy_altitude_m=None, landing=landing)
+
+
 def test_an_apogee_under_thrust_is_told_in_time_order_without_a_coast() -> None:
     # new-user trial: G25-4 on a heavier quibble-41 tops out at 4.16 s, 0.8 s before its motor burns out (4.95 s),
     # and lands at 6.65 s. The card showed burnout 4.95 s under "Boost", then apogee 4.16 s under "Coast to
     # apogee": out of time order, and a coast that never happened.
-    s = _summary(burnout_time_s=4.95, time_to_apogee_s=4.16, optimal_delay_s=-0.79, chosen_delay_s=4.0,
-                 ejections=[{"delay_s": 4.0, "altitude_m": None, "speed_m_s": None, "vertical_speed_m_s": None}],
-                 deploy_time_s=None, deploy_altitude_m=None,
-                 landing={"time_s": 6.65, "speed_m_s": 44.6, "distance_m": 145.0, "bearing_deg": 270.0})
+    s = _burning_at_apogee(4.16, -0.79, {"time_s": 6.65, "speed_m_s": 44.6, "distance_m": 145.0, "bearing_deg": 270.0})
     card = _card(s)
     titles = _titles(card)
     assert not any("coast" in t.lower() and "no coast" not in t.lower() for t in titles), titles
@@ -189,10 +193,7 @@ def test_a_device_opened_under_thrust_comes_before_burnout_on_the_card() -> None
 def test_a_motor_still_burning_at_touchdown_is_said_at_landing_not_before_apogee() -> None:
     # new-user trial: G25-4 on quibble-41 with 2 kg of ballast tops out 6 m up at 2.31 s and lands at 3.35 s;
     # its motor burns to 4.95 s. The card listed "burnout 4.95 s" first, before apogee and landing.
-    s = _summary(burnout_time_s=4.95, time_to_apogee_s=2.31, optimal_delay_s=-2.64, chosen_delay_s=4.0,
-                 ejections=[{"delay_s": 4.0, "altitude_m": None, "speed_m_s": None, "vertical_speed_m_s": None}],
-                 deploy_time_s=None, deploy_altitude_m=None,
-                 landing={"time_s": 3.35, "speed_m_s": 24.3, "distance_m": 22.0, "bearing_deg": 270.0})
+    s = _burning_at_apogee(2.31, -2.64, {"time_s": 3.35, "speed_m_s": 24.3, "distance_m": 22.0, "bearing_deg": 270.0})
     card = _card(s)
     assert "burnout" not in [p.key for p in card.phases]
     assert not any(f.label == "burnout" for f in card.phases[1].figures)
